@@ -1,0 +1,123 @@
+"""The project's error and warning types.
+
+Every error raised on purpose by ``selector`` derives from :class:`SelectorError`
+and from a builtin (``ValueError`` or ``LookupError``) so that callers can catch
+either.  Messages name the field, the value given and what is allowed.
+"""
+from __future__ import annotations
+
+import difflib
+from typing import Iterable, Sequence
+
+
+class SelectorError(Exception):
+    """Base of every error that ``selector`` raises deliberately."""
+
+
+class InputError(SelectorError, ValueError):
+    """A parameter, target or option given by the caller is not valid.
+
+    Attributes
+    ----------
+    field : str
+        Name of the offending field (e.g. ``"temp_c"`` or ``"min_yield_mpa"``).
+    value : object
+        The value that was given.
+    allowed : str
+        What would have been accepted.
+    """
+
+    def __init__(self, field: str, value: object, allowed: str, context: str = ""):
+        self.field, self.value, self.allowed, self.context = field, value, allowed, context
+        where = f"{context}: " if context else ""
+        super().__init__(f"{where}{field}={value!r} is not valid; allowed: {allowed}")
+
+
+class RouteError(InputError):
+    """A process route (list of steps) is malformed or not admitted by the grade."""
+
+
+class NotModelledError(SelectorError, ValueError):
+    """The route is understood but its model is not implemented yet.
+
+    Raised instead of returning an invented number.
+    """
+
+
+class UnknownGradeError(SelectorError, LookupError):
+    """A grade name matches nothing, or more than one grade, in the catalogue.
+
+    Attributes
+    ----------
+    name : str
+        The name that was looked up.
+    suggestions : list of str
+        The nearest catalogue names.
+    """
+
+    def __init__(self, name: str, suggestions: Sequence[str], ambiguous: bool = False):
+        self.name, self.suggestions, self.ambiguous = name, list(suggestions), ambiguous
+        kind = "is ambiguous; it matches" if ambiguous else "is not in the catalogue; nearest"
+        hint = ", ".join(self.suggestions) if self.suggestions else "(none)"
+        super().__init__(f"grade {name!r} {kind}: {hint}")
+
+
+class DataFileError(SelectorError, ValueError):
+    """A CSV/TOML file (built-in or the user's) failed validation.
+
+    Attributes
+    ----------
+    path : str
+        The file.
+    line : int or None
+        1-based line number in the file (comment lines counted).
+    column : str or None
+        Column name.
+    """
+
+    def __init__(self, path: str, line: int | None, column: str | None, problem: str):
+        self.path, self.line, self.column, self.problem = str(path), line, column, problem
+        loc = str(path)
+        if line is not None:
+            loc += f", line {line}"
+        if column is not None:
+            loc += f", column {column!r}"
+        super().__init__(f"{loc}: {problem}")
+
+
+class SelectorWarning(UserWarning):
+    """A deliberate warning of the project (validity range, metallurgical caution)."""
+
+
+def nearest(name: str, choices: Iterable[str], n: int = 5) -> list[str]:
+    """Return up to ``n`` entries of ``choices`` closest to ``name`` (case-insensitive)."""
+    choices = list(dict.fromkeys(choices))
+    lower = {c.lower(): c for c in choices}
+    hits = difflib.get_close_matches(name.lower(), list(lower), n=n, cutoff=0.4)
+    return [lower[h] for h in hits]
+
+
+def check_choice(field: str, value: object, allowed: Iterable[str], context: str = "") -> str:
+    """Return ``value`` if it is one of ``allowed``, else raise :class:`InputError`
+    naming the nearest allowed choices."""
+    allowed = list(allowed)
+    if isinstance(value, str) and value in allowed:
+        return value
+    near = nearest(str(value), allowed, n=3)
+    hint = ", ".join(allowed) + (f" (did you mean {', '.join(near)}?)" if near else "")
+    raise InputError(field, value, hint, context)
+
+
+def check_number(field: str, value: object, lo: float | None = None, hi: float | None = None,
+                 context: str = "") -> float:
+    """Return ``value`` as float if it is a finite number within [lo, hi], else raise
+    :class:`InputError`."""
+    import math
+
+    if isinstance(value, bool) or not isinstance(value, (int, float)) or not math.isfinite(float(value)):
+        rng = f"a finite number in [{lo}, {hi}]" if lo is not None or hi is not None else "a finite number"
+        raise InputError(field, value, rng, context)
+    v = float(value)
+    if (lo is not None and v < lo) or (hi is not None and v > hi):
+        raise InputError(field, value, f"a number in [{lo}, {hi}]", context)
+    return v
