@@ -1,0 +1,309 @@
+"""Hardness-scale and hardness-to-tensile-strength conversions for steel (ASTM E140).
+
+The conversions interpolate linearly between the rows of ASTM E140 Table 1
+(Rockwell C range) and Table 2 (Rockwell B range) for **non-austenitic** steels
+(carbon, alloy and tool steels, homogeneous, as-forged, annealed, normalized or
+quenched and tempered), and the approximate tensile strengths that ASTM A370
+Table 3 gives beside them.  They do not apply to austenitic stainless steels,
+to cold-worked austenitic grades, nor to case-hardened surfaces with steep
+gradients.  Converted values are approximate (E140 §1; ISO 18265 calls the
+tensile-strength estimates the least reliable converted values).
+
+The rows live in ``data/hardness_conversions.csv`` (one row per table entry, with
+source and confidence).  Each conversion uses one monotone chain of rows, sorted
+by Vickers hardness:
+
+* Table 1 rows (HRC 20–68) as they are;
+* below them, the Table 2 rows whose HV, HB and tensile strength are all lower than
+  the lowest Table 1 row (the two tables overlap near HV 222–240 and disagree there
+  by about 5 %; the B-range rows that would break monotonicity, HRB 98–100, are kept
+  in the file but not used).
+
+Out-of-table rule: no extrapolation.  A value outside the span of the rows that
+define the conversion returns NaN (for example HRC below 20 or above 68, HB above
+654 where E140 gives no Brinell value, tensile strength above HRC 59).  The spans
+are registered in :mod:`selector.models.validity` as ``"astm_e140"`` so that the
+route layer can warn.
+
+References
+----------
+ASTM E140-12b, Standard Hardness Conversion Tables for Metals, Table 1 (non-austenitic
+steels, Rockwell C range) and Table 2 (Rockwell B range).
+ASTM A370, Test Methods and Definitions for Mechanical Testing of Steel Products,
+Table 3 (approximate hardness conversions and tensile strength for non-austenitic steels).
+"""
+from __future__ import annotations
+
+import functools
+
+import numpy as np
+import pandas as pd
+
+from ..catalogue.loader import Column, Schema, read_table
+from ..errors import DataFileError
+from . import validity
+
+REFERENCE = "ASTM E140-12b Table 1"
+FILE = "hardness_conversions.csv"
+KSI_TO_MPA = 6.895
+
+_SCHEMA = Schema((
+    Column("table", "choice", choices=("E140_T1", "E140_T2")),
+    Column("hrc", "float", allow_blank=True, lo=20, hi=70),
+    Column("hrb", "float", allow_blank=True, lo=0, hi=120),
+    Column("hv", "float", lo=50, hi=1200),
+    Column("hb", "float", allow_blank=True, lo=50, hi=800),
+    Column("hb_ball", "choice", allow_blank=True, choices=("steel", "carbide")),
+    Column("hb_bracketed", "bool"),
+    Column("uts_ksi", "float", allow_blank=True, lo=20, hi=400),
+    Column("uts_mpa", "float", allow_blank=True, lo=100, hi=2800),
+    Column("source", "str"),
+    Column("confidence", "choice", choices=("verified", "partial", "from memory", "common practice", "demo")),
+))
+
+
+def _strictly_increasing(path, name, x, lines):
+    bad = np.nonzero(np.diff(x) <= 0)[0]
+    if bad.size:
+        i = bad[0] + 1
+        raise DataFileError(path, int(lines[i]), name,
+                            f"is not monotone with HV (value {x[i]:g} after {x[i - 1]:g})")
+
+
+@functools.cache
+def _chains() -> dict:
+    """Monotone (HV, other) pairs for each conversion, from the CSV."""
+    t = read_table(FILE, _SCHEMA)
+    t1 = t[t["table"] == "E140_T1"].sort_values("hv")
+    t2 = t[t["table"] == "E140_T2"].sort_values("hv")
+    if t1["hrc"].isna().any():
+        raise DataFileError(FILE, int(t1.loc[t1["hrc"].isna(), "line"].iloc[0]), "hrc",
+                            "is empty on a Table 1 row")
+    floor = t1.iloc[0]
+    below = t2[(t2["hv"] < floor["hv"]) & (t2["hb"] < floor["hb"])
+               & ~(t2["uts_mpa"] >= floor["uts_mpa"])]
+    chain = pd.concat([below, t1]).sort_values("hv")
+    out = {}
+    for name, rows in (("hrc", t1), ("hb", chain), ("uts_mpa", chain)):
+        r = rows[rows[name].notna()]
+        hv, y, lines = r["hv"].to_numpy(float), r[name].to_numpy(float), r["line"].to_numpy()
+        _strictly_increasing(FILE, "hv", hv, lines)
+        _strictly_increasing(FILE, name, y, lines)
+        out[name] = (hv, y)
+    return out
+
+
+def _interp(x, xp, fp):
+    """Linear interpolation, NaN outside [xp[0], xp[-1]] (no extrapolation)."""
+    x = np.asarray(x, float)
+    y = np.interp(x, xp, fp)
+    outside = (x < xp[0] - 1e-9) | (x > xp[-1] + 1e-9) | np.isnan(x)
+    return np.where(outside, np.nan, y)
+
+
+def hv_to_hrc(hardness_hv):
+    """Rockwell C hardness from Vickers hardness (ASTM E140-12b Table 1).
+
+    HRC = linear interpolation of E140 Table 1 between the bracketing rows.
+
+    Parameters
+    ----------
+    hardness_hv : array_like
+        Vickers hardness, HV (10 kgf and over).
+
+    Returns
+    -------
+    ndarray
+        HRC; NaN below HV 238 (HRC 20, the lower limit of the Rockwell C scale;
+        the API reports None there) and above HV 940 (HRC 68).
+
+    Validity
+    --------
+    Non-austenitic steels only; HV 238–940 (registered as ``astm_e140``).
+
+    References
+    ----------
+    ASTM E140-12b, Table 1.
+    """
+    hv, hrc = _chains()["hrc"]
+    return _interp(hardness_hv, hv, hrc)
+
+
+def hrc_to_hv(hardness_hrc):
+    """Vickers hardness from Rockwell C hardness (ASTM E140-12b Table 1).
+
+    HV = linear interpolation of E140 Table 1 between the bracketing rows.
+
+    Parameters
+    ----------
+    hardness_hrc : array_like
+        Rockwell C hardness, HRC.
+
+    Returns
+    -------
+    ndarray
+        HV; NaN outside HRC 20–68.
+
+    Validity
+    --------
+    Non-austenitic steels only; HRC 20–68.
+
+    References
+    ----------
+    ASTM E140-12b, Table 1.
+    """
+    hv, hrc = _chains()["hrc"]
+    return _interp(hardness_hrc, hrc, hv)
+
+
+def hv_to_hb(hardness_hv):
+    """Brinell hardness (10 mm ball, 3000 kgf) from Vickers hardness (ASTM E140 Tables 1–2).
+
+    HB = linear interpolation between table rows.  Above about 500 HB (52 HRC) the
+    Brinell value assumes a tungsten-carbide ball; E140 brackets the values above
+    HRC 58 (outside the recommended Brinell range).
+
+    Parameters
+    ----------
+    hardness_hv : array_like
+        Vickers hardness, HV.
+
+    Returns
+    -------
+    ndarray
+        HB; NaN outside HV 100–697 (the span of the table's Brinell column).
+
+    Validity
+    --------
+    Non-austenitic steels only; HV 100–697.
+
+    References
+    ----------
+    ASTM E140-12b, Tables 1 and 2.
+    """
+    hv, hb = _chains()["hb"]
+    return _interp(hardness_hv, hv, hb)
+
+
+def hb_to_hv(hardness_hb):
+    """Vickers hardness from Brinell hardness (10 mm ball, 3000 kgf) (ASTM E140 Tables 1–2).
+
+    HV = linear interpolation between table rows (inverse of :func:`hv_to_hb`).
+
+    Parameters
+    ----------
+    hardness_hb : array_like
+        Brinell hardness, HB (HBW above about 500).
+
+    Returns
+    -------
+    ndarray
+        HV; NaN outside HB 100–654.
+
+    Validity
+    --------
+    Non-austenitic steels only; HB 100–654.
+
+    References
+    ----------
+    ASTM E140-12b, Tables 1 and 2.
+    """
+    hv, hb = _chains()["hb"]
+    return _interp(hardness_hb, hb, hv)
+
+
+def hv_to_uts_mpa(hardness_hv):
+    """Approximate tensile strength (MPa) from Vickers hardness (ASTM A370 Table 3).
+
+    UTS = linear interpolation of the tensile strengths tabulated beside E140
+    hardness values (ksi × 6.895).
+
+    Parameters
+    ----------
+    hardness_hv : array_like
+        Vickers hardness, HV.
+
+    Returns
+    -------
+    ndarray
+        Tensile strength, MPa; NaN outside HV 116–674 (HRB 65 to HRC 59, the span
+        where the table gives a strength).
+
+    Validity
+    --------
+    Carbon and alloy steels (non-austenitic), HV 116–674.  An approximation only:
+    not a substitute for a tensile test.
+
+    References
+    ----------
+    ASTM A370, Table 3; ASTM E140-12b, Tables 1 and 2.
+    """
+    hv, uts = _chains()["uts_mpa"]
+    return _interp(hardness_hv, hv, uts)
+
+
+def uts_to_hv(uts_mpa):
+    """Vickers hardness from tensile strength (MPa) (inverse of :func:`hv_to_uts_mpa`).
+
+    Parameters
+    ----------
+    uts_mpa : array_like
+        Tensile strength, MPa.
+
+    Returns
+    -------
+    ndarray
+        HV; NaN outside 386–2420 MPa.
+
+    Validity
+    --------
+    Carbon and alloy steels (non-austenitic).
+
+    References
+    ----------
+    ASTM A370, Table 3; ASTM E140-12b, Tables 1 and 2.
+    """
+    hv, uts = _chains()["uts_mpa"]
+    return _interp(uts_mpa, uts, hv)
+
+
+def hb_to_uts_mpa(hardness_hb):
+    """Approximate tensile strength (MPa) from Brinell hardness (ASTM A370 Table 3).
+
+    UTS = hv_to_uts_mpa(hb_to_hv(HB)).
+
+    Parameters
+    ----------
+    hardness_hb : array_like
+        Brinell hardness, HB (10 mm ball, 3000 kgf).
+
+    Returns
+    -------
+    ndarray
+        Tensile strength, MPa; NaN outside HB 116–634.
+
+    Validity
+    --------
+    Carbon and alloy steels (non-austenitic).
+
+    References
+    ----------
+    ASTM A370, Table 3; ASTM E140-12b, Tables 1 and 2.
+    """
+    return hv_to_uts_mpa(hb_to_hv(hardness_hb))
+
+
+def _register() -> None:
+    c = _chains()
+    hv_hrc, hrc = c["hrc"]
+    hv_hb, hb = c["hb"]
+    hv_uts, uts = c["uts_mpa"]
+    validity.register("astm_e140", {
+        "hardness_hrc": (float(hrc[0]), float(hrc[-1]), "HRC"),
+        "hardness_hv": (float(hv_hb[0]), float(hv_hrc[-1]), "HV"),
+        "hardness_hb": (float(hb[0]), float(hb[-1]), "HB"),
+        "uts_mpa": (float(uts[0]), float(uts[-1]), "MPa"),
+    }, "ASTM E140-12b Table 1")
+
+
+_register()
