@@ -1,0 +1,23 @@
+"""selector: choose a metal grade and process route that reach strength, ductility
+and hardness targets at the part's real section, at the lowest cost.
+
+Results are estimates for preliminary selection.  The final choice needs certified
+material test reports, the applicable design code and review by a qualified
+engineer.
+"""
+from .catalogue.grades import catalogue, grade
+from .errors import (DataFileError, InputError, NotModelledError, RouteError, SelectorError,
+                     SelectorWarning, UnknownGradeError)
+from .routes.evaluate import evaluate
+
+CAUTION = ("Estimates for preliminary selection only. The final choice needs certified material "
+           "test reports, the applicable design code and review by a qualified engineer.")
+
+__all__ = ["catalogue", "grade", "evaluate", "CAUTION", "SelectorError", "InputError", "RouteError",
+           "NotModelledError", "UnknownGradeError", "DataFileError", "SelectorWarning"]
+
+try:  # the selection engine (added by later modules)
+    from .selection.engine import alternatives, nearest_misses, select  # noqa: F401
+    __all__ += ["select", "nearest_misses", "alternatives"]
+except ImportError:  # pragma: no cover - during development only
+    pass

@@ -1,0 +1,147 @@
+"""``evaluate(grade, route, diameter_mm)``: the properties one route gives one grade
+at one section.  The CLI, the page, the selection engine's reproducibility check and
+the tests all go through this function."""
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+from ..catalogue.grades import Grade, default_catalogue
+from ..errors import InputError, RouteError
+from ..models import conversions
+from . import families, steps as steps_mod
+from .families.base import Batch, test_position
+
+STEEL_SCALE_FAMILIES = ("carbon_steel", "alloy_steel", "carburizing_steel", "nitriding_steel",
+                        "stainless_martensitic", "stainless_ph")
+
+E140_SOURCE = "ASTM E140-12b Table 1 / ASTM A370 Table 3 (hardness conversions, non-austenitic steels)"
+
+
+def section_args(diameter_mm, thickness_mm) -> tuple:
+    """Validate the section: a round's diameter or a plate's thickness (mm)."""
+    if thickness_mm is not None:
+        t = _positive("thickness_mm", thickness_mm)
+        return None, t
+    if diameter_mm is None:
+        raise InputError("diameter_mm", None, "a diameter (mm) or thickness_mm for a plate")
+    return _positive("diameter_mm", diameter_mm), None
+
+
+def _positive(name, v, lo=0.5, hi=500.0):
+    if isinstance(v, bool) or not isinstance(v, (int, float, np.floating, np.integer)) or not math.isfinite(float(v)):
+        raise InputError(name, v, f"a number of mm in [{lo}, {hi}]")
+    v = float(v)
+    if v < lo or v > hi:
+        raise InputError(name, v, f"a number of mm in [{lo}, {hi}]")
+    return v
+
+
+def resolve(grade, route) -> tuple[Grade, list, object]:
+    """Grade record, parsed steps and the route family for ``route``."""
+    g = default_catalogue().lookup(grade)
+    steps = steps_mod.parse_steps(route)
+    name = families.match(steps_mod.signature(steps))
+    if name not in g.routes:
+        raise RouteError("route", steps_mod.describe(steps),
+                         f"a route of a family that {g.id} admits ({', '.join(g.routes)}); "
+                         f"this one is {name}")
+    fam = families.get(name)
+    return g, steps, fam
+
+
+def scale_hardness(hv: np.ndarray, families_: np.ndarray) -> dict:
+    """HRC and HB from HV on the ASTM E140 steel table; NaN for non-steels and off-scale."""
+    steel = np.isin(families_.astype(str), STEEL_SCALE_FAMILIES)
+    hv = np.asarray(hv, float)
+    return {"hrc": np.where(steel, conversions.hv_to_hrc(hv), np.nan),
+            "hb": np.where(steel, conversions.hv_to_hb(hv), np.nan)}
+
+
+def finish(res: dict, batch: Batch) -> dict:
+    """Add the scale conversions shared by every family (in place) and return ``res``."""
+    fam = batch.attr("family")
+    for key in ("hardness", "surface_hardness", "center_hardness"):
+        hv = np.asarray(res.get(key + "_hv", np.full(batch.n, np.nan)), float)
+        res[key + "_hv"] = hv
+        sc = scale_hardness(hv, fam)
+        res[key + "_hrc"] = sc["hrc"]
+        res[key + "_hb"] = sc["hb"]
+    return res
+
+
+def _scalar(v):
+    if isinstance(v, np.ndarray):
+        v = v.item() if v.size == 1 else v.tolist()
+    if isinstance(v, (float, np.floating)):
+        v = float(v)
+        return None if math.isnan(v) else round(v, 6)
+    return v
+
+
+def evaluate(grade, route, diameter_mm: float | None = 25.0, thickness_mm: float | None = None) -> dict:
+    """Properties that ``route`` gives ``grade`` at a real section.
+
+    Parameters
+    ----------
+    grade : str or Grade
+        Catalogue id or any designation (``"4140"``, ``"42CrMo4"``, ``"G41400"``).
+    route : list of dict
+        Steps, e.g. ``[{"op": "harden", "quench": "oil"}, {"op": "temper", "temp_c": 540, "hours": 2}]``.
+    diameter_mm : float
+        Diameter of the round section, mm (ignored when ``thickness_mm`` is given).
+    thickness_mm : float, optional
+        Thickness of a plate section, mm.
+
+    Returns
+    -------
+    dict
+        ``uts_mpa, yield_mpa, elongation_pct, hardness_hv, hardness_hb, hardness_hrc``
+        (None below the HRC scale) at the ASTM A370 tension-test location (centre up to
+        38 mm, mid-radius above); ``surface_hardness_hv``, ``center_hardness_hv``,
+        ``case_depth_mm`` (0 when through-hardened); ``profile`` (r/R and hardness
+        across the section) where the family computes one; ``warnings`` and
+        ``sources`` (lists of str); ``route_family``, ``route_text``, ``params``.
+
+    Raises
+    ------
+    UnknownGradeError, RouteError, InputError, NotModelledError
+    """
+    d, t = section_args(diameter_mm, thickness_mm)
+    g, steps, fam = resolve(grade, route)
+    params, warns = fam.parse(steps, g)
+    batch = Batch.single(g, g.composition("nominal"), params, d, t)
+    res = finish(fam.compute(batch), batch)
+    out = {}
+    for key in ("uts_mpa", "yield_mpa", "elongation_pct", "hardness_hv", "hardness_hb", "hardness_hrc",
+                "surface_hardness_hv", "surface_hardness_hrc", "center_hardness_hv", "center_hardness_hrc",
+                "case_depth_mm", "reduction_area_pct", "center_uts_mpa", "center_yield_mpa",
+                "center_elongation_pct", "center_martensite_pct", "di_mm", "peak_ratio"):
+        if key in res:
+            out[key] = _scalar(res[key])
+    out["case_depth_mm"] = out.get("case_depth_mm") or 0.0
+    if "profile_hv" in res:
+        pos = np.asarray(res["profile_positions"], float)
+        hv = np.asarray(res["profile_hv"], float)[0]
+        sc = scale_hardness(hv, batch.attr("family").repeat(len(hv)))
+        section = d if d is not None else t
+        out["profile"] = [{"r_over_R": float(p), "depth_mm": round(float((1 - p) * section / 2), 3),
+                           "hardness_hv": _scalar(h), "hardness_hrc": _scalar(c)}
+                          for p, h, c in zip(pos, hv, sc["hrc"])]
+    out["test_location"] = "centre" if float(test_position(np.array([d or t]))[0]) == 0 else "mid-radius"
+    out["grade"] = g.id
+    out["family"] = g.family
+    out["route_family"] = fam.name
+    out["route"] = fam.to_steps(params)
+    out["route_text"] = steps_mod.describe(out["route"])
+    out["params"] = {k: _scalar(v) for k, v in params.items()}
+    out["diameter_mm"] = d
+    out["thickness_mm"] = t
+    notes = [m for m, mask in res.get("notes", []) if bool(np.asarray(mask).ravel()[0])]
+    out["warnings"] = list(dict.fromkeys(warns + notes))
+    srcs = [f"{g.id}: {g.source}"] + [f"composition: {s}" for s in g.comp_sources] + list(fam.references)
+    if g.family in STEEL_SCALE_FAMILIES:
+        srcs.append(E140_SOURCE)
+    out["sources"] = list(dict.fromkeys(srcs))
+    return out

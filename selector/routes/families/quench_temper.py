@@ -1,0 +1,205 @@
+"""Harden (austenitize and quench) then temper: the quenched-and-tempered route of
+steels.
+
+Chain of models, each in its own module:
+
+1. as-quenched hardness across the real section (``selector.routes.quench_response``:
+   Grossmann H of the medium → conduction cooling of the bar or plate → equivalent
+   Jominy distance → ASTM A255 Jominy curve of the composition → martensite %);
+2. tempering of that structure (``selector.models.tempering``: Hollomon–Jaffe
+   parameter and fitted master curves);
+3. tensile strength from hardness (``selector.models.conversions``: ASTM E140 /
+   A370 Table 3) at the ASTM A370 test location, then yield strength, elongation and
+   reduction of area from strength (``selector.models.correlations``).
+"""
+from __future__ import annotations
+
+from typing import Mapping, Sequence
+
+import numpy as np
+
+from ...catalogue.grades import Grade
+from ...errors import RouteError
+from ...models import conversions, correlations, critical_temperatures, tempering, validity
+from ...models.composition import el
+from ...models.martensite import martensite_hardness_hrc
+from .. import quench_response
+from .base import Batch, RouteFamily, at_position, product_grid, test_position
+
+TME_RANGE_C = (260.0, 370.0)
+CORRELATION_CLASS = {"carbon_steel": "carbon_steel", "alloy_steel": "alloy_steel",
+                     "carburizing_steel": "alloy_steel", "nitriding_steel": "alloy_steel",
+                     "stainless_martensitic": "stainless_martensitic"}
+
+
+def correlation_class(families: np.ndarray) -> np.ndarray:
+    return np.array([CORRELATION_CLASS.get(f, "alloy_steel") for f in families], dtype=object)
+
+
+def through_harden(batch: Batch, quench, agitation, austenitize_c, temper_temp_c, temper_hours) -> dict:
+    """Hardness profile and test-location properties of a quenched (and, where
+    ``temper_temp_c`` is not NaN, tempered) steel at the batch's sections.  Shared
+    by the case-hardening families for the core."""
+    comp = batch.comp
+    prof = quench_response.as_quenched_profile(
+        comp, quench, agitation, diameter_mm=None if np.all(np.isnan(batch.diameter_mm)) else batch.diameter_mm,
+        thickness_mm=None if not np.all(np.isnan(batch.diameter_mm)) else batch.thickness_mm,
+        austenitize_c=austenitize_c)
+    pos = np.asarray(prof["positions"], float)
+    hv_aq = np.asarray(prof["hardness_hv"], float)
+    c2 = {k: np.asarray(v, float)[:, None] for k, v in comp.items()}
+    hv_m = conversions.hrc_to_hv(martensite_hardness_hrc(el(comp, "C"), 99.9))[:, None]
+    t = np.asarray(temper_temp_c, float)[:, None]
+    h = np.asarray(temper_hours, float)[:, None]
+    tempered = np.isfinite(t[:, 0])
+    hv_t = hv_aq.copy()
+    if tempered.any():
+        tt = tempering.tempered_hv(hv_aq, hv_m, c2, np.where(np.isfinite(t), t, 200.0),
+                                   np.where(np.isfinite(h), h, 1.0))
+        hv_t = np.where(np.isfinite(t), np.minimum(tt, hv_aq), hv_aq)
+    where = test_position(batch.section_mm)
+    cls = correlation_class(batch.attr("family"))
+    hv_test = at_position(hv_t, pos, where)
+    hv_center = at_position(hv_t, pos, np.zeros(batch.n))
+    out = {"profile_hv": hv_t, "profile_positions": pos, "profile_as_quenched_hv": hv_aq,
+           "hardness_hv": hv_test, "surface_hardness_hv": at_position(hv_t, pos, np.ones(batch.n)),
+           "center_hardness_hv": hv_center,
+           "center_martensite_pct": at_position(np.asarray(prof["martensite_pct"], float), pos, np.zeros(batch.n)),
+           "di_mm": np.asarray(prof["di_mm"], float), "ac1_c": np.asarray(prof["ac1_c"], float),
+           "ac3_c": np.asarray(prof["ac3_c"], float), "ms_c": np.asarray(prof["ms_c"], float),
+           "quench_warnings": list(prof.get("warnings", []))}
+    t1 = np.asarray(temper_temp_c, float)
+    for key, hv in (("", hv_test), ("center_", hv_center)):
+        uts = conversions.hv_to_uts_mpa(hv)
+        out[key + "uts_mpa"] = uts
+        out[key + "yield_mpa"] = _yield(uts, t1, cls)
+        out[key + "elongation_pct"] = _by_class(correlations.elongation_from_uts, uts, cls)
+    out["reduction_area_pct"] = _by_class(correlations.reduction_of_area_from_uts, out["uts_mpa"], cls)
+    return out
+
+
+def _by_class(fn, uts, cls):
+    res = np.full(uts.shape, np.nan)
+    for c in np.unique(cls):
+        m = cls == c
+        res[m] = fn(uts[m], c)
+    return res
+
+
+def _yield(uts, temper_c, cls):
+    res = np.full(uts.shape, np.nan)
+    t = np.where(np.isfinite(temper_c), temper_c, 150.0)
+    for c in np.unique(cls):
+        m = cls == c
+        res[m] = correlations.yield_from_uts(uts[m], t[m], c)
+    return res
+
+
+def default_austenitize_c(grade: Grade) -> float:
+    """The grade's usual hardening temperature: its window default, else the
+    catalogue's ``austenitize_c``, else Ac3 + 50 °C / Ac1 + 50 °C from Andrews (1965)."""
+    w = grade.window("quench_temper", "austenitize_c")
+    if w is not None and w.default == w.default:
+        return float(w.default)
+    if grade.austenitize_c == grade.austenitize_c:
+        return float(grade.austenitize_c)
+    return float(np.asarray(critical_temperatures.default_austenitize_c(grade.composition())).ravel()[0])
+
+
+class QuenchTemper(RouteFamily):
+    name = "quench_temper"
+    label = "harden + temper"
+    patterns = (("harden",), ("harden", "temper"), ("normalize", "harden", "temper"),
+                ("anneal", "harden", "temper"))
+    main_parameter = "temper_temp_c"
+    parameters = ("quench", "agitation", "austenitize_c", "temper_temp_c", "temper_hours")
+    families = ("carbon_steel", "alloy_steel", "carburizing_steel", "nitriding_steel", "stainless_martensitic")
+    references = (
+        "J.H. Hollomon & L.D. Jaffe, Trans. AIME 162 (1945) 223 (tempering parameter)",
+        "ASTM A255 (hardenability from composition; Jominy curve)",
+        "M.A. Grossmann, Elements of Hardenability, ASM (1952) (quench severity H)",
+        "ASTM E140-12b Table 1 and ASTM A370 Table 3 (hardness conversions, approximate tensile strength)",
+        "ASTM A370 (tension-test location)",
+    )
+
+    def parse(self, steps, grade):
+        if grade.family not in self.families:
+            raise RouteError("route", "harden + temper", f"grade families {', '.join(self.families)} "
+                             f"({grade.id} is {grade.family})")
+        h = next(s for s in steps if s["op"] == "harden")
+        t = next((s for s in steps if s["op"] == "temper"), None)
+        aust = h.get("austenitize_c")
+        if aust is None:
+            aust = default_austenitize_c(grade)
+        params = {
+            "quench": h["quench"],
+            "agitation": h.get("agitation", "moderate"),
+            "austenitize_c": float(aust),
+            "temper_temp_c": t["temp_c"] if t else float("nan"),
+            "temper_hours": (t.get("hours", 2.0) if t else float("nan")),
+        }
+        warns = self.window_warnings(grade, "quench_temper", params)
+        return params, warns
+
+    def to_steps(self, params):
+        steps = [{"op": "harden", "quench": str(params["quench"])}]
+        if params.get("agitation", "moderate") != "moderate":
+            steps[0]["agitation"] = str(params["agitation"])
+        steps[0]["austenitize_c"] = float(params["austenitize_c"])
+        if np.isfinite(float(params["temper_temp_c"])):
+            steps.append({"op": "temper", "temp_c": float(params["temper_temp_c"]),
+                          "hours": float(params["temper_hours"])})
+        return steps
+
+    def grid(self, grade):
+        quench = self.choices(grade, "quench_temper", "quench", ("oil",))
+        w = grade.window("quench_temper", "temper_temp_c")
+        lo, hi = (w.min, w.max) if w is not None else (200.0, 650.0)
+        temps = np.arange(np.ceil(lo / 10) * 10, hi + 0.1, 10.0)
+        hours = self.window_value(grade, "quench_temper", "temper_hours", None, 2.0)
+        aust = default_austenitize_c(grade)
+        g = product_grid(quench=np.array(quench, dtype=object), temper_temp_c=temps)
+        n = len(g["temper_temp_c"])
+        g["agitation"] = np.array(["moderate"] * n, dtype=object)
+        g["austenitize_c"] = np.full(n, float(aust))
+        g["temper_hours"] = np.full(n, float(hours))
+        return g
+
+    def compute(self, batch):
+        p = batch.params
+        t = np.asarray(p["temper_temp_c"], float)
+        res = through_harden(batch, p["quench"], p["agitation"], np.asarray(p["austenitize_c"], float),
+                             t, np.asarray(p["temper_hours"], float))
+        res["case_depth_mm"] = np.zeros(batch.n)
+        notes = []
+        notes.append(("temper in the 260–370 °C tempered-martensite-embrittlement range: impact toughness "
+                      "may be low (common practice; ASM Handbook Vol. 4, tempering of steel)",
+                      (t >= TME_RANGE_C[0]) & (t <= TME_RANGE_C[1])))
+        notes.append(("temper above Ac1 (Andrews 1965): partial re-austenitization, fresh martensite on "
+                      "cooling; the tempering model does not apply", np.isfinite(t) & (t > res["ac1_c"])))
+        hypo = el(batch.comp, "C") < 0.77
+        notes.append(("austenitizing temperature below Ac3 (Andrews 1965) of a hypoeutectoid steel: "
+                      "ferrite remains and the quenched hardness is low",
+                      hypo & (np.asarray(p["austenitize_c"], float) < res["ac3_c"])))
+        notes.append(("centre below 50 % martensite: the section does not through-harden "
+                      "(ASTM A255 / Hodge & Orehoski)", res["center_martensite_pct"] < 50.0))
+        notes.append(("untempered martensite is brittle: temper promptly after quenching (common practice)",
+                      ~np.isfinite(t)))
+        for model, vals in (("astm_a255", {k: batch.comp.get(k, np.zeros(batch.n))
+                                           for k in ("C", "Mn", "Si", "Ni", "Cr", "Mo", "Cu", "V")}),):
+            try:
+                msgs = validity.get(model)
+            except KeyError:
+                continue
+            mask = validity.out_of_range_mask(model, **vals)
+            if mask.any():
+                notes.append((f"composition outside the validity range of {model} ({msgs.reference}): "
+                              "hardenability extrapolated", mask))
+        qw = res.pop("quench_warnings")
+        if batch.n == 1:   # batch-level messages only make sense for a single state
+            notes += [(w, np.ones(1, bool)) for w in qw]
+        res["notes"] = notes
+        return res
+
+
+FAMILIES = [QuenchTemper()]
