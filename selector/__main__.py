@@ -1,0 +1,3 @@
+from .views.cli import main
+
+raise SystemExit(main())

@@ -1,0 +1,144 @@
+"""Command-line interface: ``selector <command> ...`` (also ``python -m selector``).
+
+No physics or selection logic lives here: every command calls the library and
+formats what it returns.
+"""
+from __future__ import annotations
+
+import argparse
+import json
+import math
+import sys
+
+from .. import CAUTION
+from ..errors import InputError, SelectorError
+
+BANNER = f"CAUTION: {CAUTION}"
+
+
+def parse_step_text(text: str) -> dict:
+    """``"temper temp_c=540 hours=2"`` → ``{"op": "temper", "temp_c": 540.0, "hours": 2.0}``."""
+    parts = text.replace(",", " ").split()
+    if not parts:
+        raise InputError("step", text, "'op key=value ...', e.g. 'temper temp_c=540 hours=2'")
+    step = {"op": parts[0]}
+    for p in parts[1:]:
+        if "=" not in p:
+            raise InputError("step", text, "'op key=value ...'; each parameter as key=value")
+        k, v = p.split("=", 1)
+        try:
+            step[k] = float(v)
+        except ValueError:
+            step[k] = v
+    return step
+
+
+def _route_from_args(args) -> list:
+    if args.route_json:
+        try:
+            return json.loads(args.route_json)
+        except json.JSONDecodeError as exc:
+            raise InputError("--route-json", args.route_json, f"valid JSON ({exc.msg})") from None
+    if not args.steps:
+        raise InputError("steps", None, "at least one step, e.g. \"harden quench=oil\" \"temper temp_c=540\"")
+    return [parse_step_text(s) for s in args.steps]
+
+
+def _fmt(v, nd=0):
+    if v is None or (isinstance(v, float) and math.isnan(v)):
+        return "—"
+    if isinstance(v, float):
+        return f"{v:.{nd}f}"
+    return str(v)
+
+
+def format_evaluation(r: dict) -> str:
+    sec = (f"Ø{r['diameter_mm']:g} mm round" if r.get("diameter_mm") else f"{r['thickness_mm']:g} mm plate")
+    lines = [f"{r['grade']} ({r['family']}), {sec}", f"route: {r['route_text']}", "",
+             f"at the tension-test location ({r['test_location']}, ASTM A370):",
+             f"  tensile strength   {_fmt(r.get('uts_mpa'))} MPa",
+             f"  yield strength     {_fmt(r.get('yield_mpa'))} MPa",
+             f"  elongation         {_fmt(r.get('elongation_pct'), 1)} %",
+             f"  hardness           {_fmt(r.get('hardness_hv'))} HV  {_fmt(r.get('hardness_hb'))} HB  "
+             f"{_fmt(r.get('hardness_hrc'), 1)} HRC",
+             f"surface hardness     {_fmt(r.get('surface_hardness_hv'))} HV ({_fmt(r.get('surface_hardness_hrc'), 1)} HRC)",
+             f"centre hardness      {_fmt(r.get('center_hardness_hv'))} HV",
+             f"case depth           {_fmt(r.get('case_depth_mm'), 2)} mm"]
+    if r.get("center_martensite_pct") is not None:
+        lines.append(f"centre martensite    {_fmt(r['center_martensite_pct'])} %")
+    if r.get("profile"):
+        lines += ["", "hardness across the section (depth from surface):"]
+        for p in r["profile"]:
+            lines.append(f"  {p['depth_mm']:7.2f} mm  {_fmt(p['hardness_hv']):>5} HV  {_fmt(p['hardness_hrc'], 1):>5} HRC")
+    if r.get("warnings"):
+        lines += ["", "warnings:"] + [f"  ! {w}" for w in r["warnings"]]
+    lines += ["", "sources:"] + [f"  - {s}" for s in r["sources"]]
+    return "\n".join(lines)
+
+
+def cmd_evaluate(args) -> int:
+    from .. import evaluate
+
+    r = evaluate(args.grade, _route_from_args(args), diameter_mm=args.diameter, thickness_mm=args.thickness)
+    if args.json:
+        print(json.dumps({**r, "caution": CAUTION}, indent=2, ensure_ascii=False))
+    else:
+        print(format_evaluation(r))
+        print("\n" + BANNER)
+    return 0
+
+
+def cmd_grades(args) -> int:
+    from .. import catalogue, grade
+
+    if args.name:
+        g = grade(args.name)
+        info = {"id": g.id, "name": g.name, "family": g.family, "designations": dict(g.designations),
+                "aliases": list(g.aliases), "standard": g.standard, "routes": list(g.routes),
+                "composition": {e: [g.comp_min[e], g.comp_max[e]] for e in g.comp_min},
+                "relative_price": g.relative_price, "source": g.source, "confidence": g.confidence}
+        print(json.dumps(info, indent=2, ensure_ascii=False) if args.json else
+              "\n".join(f"{k:>15}: {v}" for k, v in info.items()))
+        return 0
+    cat = catalogue()
+    cols = ["grade", "family", "designations", "routes", "relative_price", "confidence"]
+    if args.json:
+        print(cat[cols + ["source"]].to_json(orient="records", indent=2, force_ascii=False))
+    else:
+        print(cat[cols].to_string(index=False))
+    return 0
+
+
+def build_parser() -> argparse.ArgumentParser:
+    ap = argparse.ArgumentParser(prog="selector", description="Grade and process-route selection for "
+                                 "load-bearing metal parts. " + CAUTION)
+    sub = ap.add_subparsers(dest="command", required=True)
+
+    ev = sub.add_parser("evaluate", help="properties of one grade and route at a section")
+    ev.add_argument("grade")
+    ev.add_argument("steps", nargs="*", help="steps as 'op key=value ...', e.g. \"harden quench=oil\" "
+                    "\"temper temp_c=540 hours=2\"")
+    ev.add_argument("--route-json", help="the route as a JSON list of step objects")
+    ev.add_argument("--diameter", type=float, default=25.0, help="round section diameter, mm (default 25)")
+    ev.add_argument("--thickness", type=float, default=None, help="plate thickness, mm (instead of a diameter)")
+    ev.add_argument("--json", action="store_true", help="machine-readable output")
+    ev.set_defaults(func=cmd_evaluate)
+
+    gr = sub.add_parser("grades", help="list the catalogue, or show one grade")
+    gr.add_argument("name", nargs="?")
+    gr.add_argument("--json", action="store_true")
+    gr.set_defaults(func=cmd_grades)
+
+    from . import cli_more
+    cli_more.add_commands(sub)
+    return ap
+
+
+def main(argv=None) -> int:
+    ap = build_parser()
+    args = ap.parse_args(argv)
+    try:
+        return args.func(args)
+    except SelectorError as exc:
+        print(f"error: {exc}", file=sys.stderr)
+        return 2
