@@ -150,3 +150,74 @@ def test_validity_registered():
     assert validity.check("carbon_diffusivity", temp_c=1050.0)
     assert not validity.check("carbon_diffusivity", temp_c=925.0, carbon_pct=0.8)
     assert validity.check("harris_case_depth", temp_c=800.0)
+
+
+# ------------------------------------------------------------- case hardness
+def test_8620_surface_hardness_common_practice():
+    # common practice: 8620 carburized (925 °C, 8 h, 0.85 %C surface), oil quenched
+    # and tempered at 175 °C shows 58–63 HRC at the surface; core 35 HRC is a typical
+    # oil-quenched 25 mm 8620 core (common practice)
+    h = cz.case_hardness_profile_hrc(0.0, 925.0, 8.0, 0.85, C8620, 175.0, 2.0, 35.0)
+    assert 58.0 <= float(h) <= 63.0
+
+
+def test_effective_case_not_deeper_than_total_case():
+    # SAE J423: effective case (50 HRC) lies inside the total case; both below Harris
+    # here (0.85 %C is below saturation)
+    hours = np.array([2.0, 8.0, 24.0])
+    ecd = cz.effective_case_depth_mm(925.0, hours, 0.85, C8620, 175.0, 2.0, 35.0)
+    tcd = cz.total_case_depth_mm(925.0, hours, 0.85, 0.20)
+    assert np.all(ecd > 0) and np.all(ecd <= tcd)
+    assert np.all(tcd <= cz.harris_case_depth_mm(925.0, hours))
+    # common practice (from memory): effective case about 0.5–0.8 of total case
+    assert np.all((ecd / tcd > 0.5) & (ecd / tcd < 0.8))
+
+
+def test_effective_case_depth_scales_with_root_time():
+    # the erf profile depends on x/sqrt(t) only: ECD(4t) = 2 ECD(t) (grid interpolation 1 %)
+    e = cz.effective_case_depth_mm(925.0, np.array([4.0, 16.0]), 0.85, C8620, 175.0, 2.0, 35.0)
+    assert e[1] / e[0] == pytest.approx(2.0, rel=0.01)
+
+
+def test_effective_case_depth_matches_profile():
+    e = float(cz.effective_case_depth_mm(925.0, 8.0, 0.85, C8620, 175.0, 2.0, 35.0))
+    h = cz.case_hardness_profile_hrc(np.array([0.98 * e, 1.02 * e]), 925.0, 8.0, 0.85, C8620, 175.0, 2.0, 35.0)
+    assert h[0] > 50.0 > h[1]
+
+
+def test_effective_case_depth_edge_cases():
+    # core at or above 50 HRC: no hardness boundary -> inf; surface below threshold -> 0
+    assert np.isinf(cz.effective_case_depth_mm(925.0, 8.0, 0.85, C8620, 175.0, 2.0, 52.0))
+    assert cz.effective_case_depth_mm(925.0, 8.0, 0.85, C8620, 175.0, 2.0, 35.0, threshold_hrc=66.0) == 0.0
+
+
+def test_effective_case_depth_vectorised_over_grades():
+    comp = {"C": np.array([0.15, 0.20]), "Mn": 0.8, "Ni": np.array([0.0, 1.8]), "Cr": 0.5, "Mo": 0.2}
+    e = cz.effective_case_depth_mm(925.0, np.array([[4.0], [8.0]]), 0.85, comp, 175.0, 2.0, 35.0)
+    assert e.shape == (2, 2)
+    single = cz.effective_case_depth_mm(925.0, 8.0, 0.85, {"C": 0.20, "Mn": 0.8, "Ni": 1.8, "Cr": 0.5,
+                                                         "Mo": 0.2}, 175.0, 2.0, 35.0)
+    assert e[1, 1] == pytest.approx(float(single), rel=1e-9)
+
+
+def test_profile_bounds():
+    x = np.linspace(0, 4, 41)
+    h = cz.case_hardness_profile_hrc(x, 925.0, 8.0, 0.85, C8620, 175.0, 2.0, 35.0)
+    assert np.all(np.diff(h) <= 1e-9)
+    assert np.all(h >= 35.0)
+    assert h[-1] == pytest.approx(35.0, abs=0.5)
+
+
+def test_high_surface_carbon_lowers_as_quenched_hardness():
+    # common practice: above about 0.9 %C the surface hardness falls (retained austenite)
+    h = cz.fully_hardened_case_hrc(np.array([0.7, 0.9, 1.1]), C8620)
+    assert h[0] > h[1] > h[2]
+    # a sub-zero treatment transforms austenite and restores hardness
+    assert float(cz.fully_hardened_case_hrc(1.0, C8620, quench_temp_c=-80.0)) > float(
+        cz.fully_hardened_case_hrc(1.0, C8620))
+
+
+def test_temper_softens_case():
+    aq = float(cz.case_hardness_profile_hrc(0.0, 925.0, 8.0, 0.8, C8620, None, 2.0, 35.0))
+    t = float(cz.case_hardness_profile_hrc(0.0, 925.0, 8.0, 0.8, C8620, 200.0, 2.0, 35.0))
+    assert t < aq

@@ -27,6 +27,7 @@ from scipy.special import erf, erfinv
 from ..errors import InputError, check_choice
 from . import validity
 from .composition import Composition, el
+from .critical_temperatures import ms_c as _ms_andrews_linear
 
 #: gas constant, cal mol^-1 K^-1 (Tibbetts expresses Q in cal/mol)
 R_CAL = 1.987
@@ -48,8 +49,10 @@ validity.register("carbon_profile", {"temp_c": (850.0, 1000.0, "°C"),
                                      "core_carbon_pct": (0.05, 0.30, "wt%")}, REF_CRANK)
 # Harris's table covers 1550–1800 °F (843–982 °C).
 validity.register("harris_case_depth", {"temp_c": (843.0, 982.0, "°C")}, REF_HARRIS)
-# Andrews fitted his linear Ms to steels with C below about 0.6 %.
-validity.register("andrews_ms", {"carbon_pct": (0.0, 0.6, "wt%")}, REF_ANDREWS)
+# Andrews's data set covers C below about 0.6 % (the linear form is registered as
+# "andrews_ms" by critical_temperatures); a carburized case extrapolates both forms.
+validity.register("andrews_ms_product", {"C": (0.1, 0.6, "wt%")},
+                  "K.W. Andrews, JISI 203 (1965) 721 (product form, from memory)")
 validity.register("carburized_case_hardness", {"temp_c": (850.0, 1000.0, "°C"),
                                                "surface_carbon_pct": (0.6, 1.0, "wt%"),
                                                "temper_temp_c": (120.0, 230.0, "°C")},
@@ -298,11 +301,6 @@ def _local_comp(comp: Composition, carbon_pct) -> dict:
     return out
 
 
-def _ms_andrews_linear(comp):
-    return (539.0 - 423.0 * el(comp, "C") - 30.4 * el(comp, "Mn") - 17.7 * el(comp, "Ni")
-            - 12.1 * el(comp, "Cr") - 7.5 * el(comp, "Mo"))
-
-
 def _ms_andrews_product(comp):
     c, mn, ni, cr, mo = (el(comp, s) for s in ("C", "Mn", "Ni", "Cr", "Mo"))
     return (512.0 - 453.0 * c - 16.9 * ni + 15.0 * cr - 9.5 * mo + 217.0 * c**2
@@ -330,8 +328,9 @@ def martensite_start_c(comp: Composition, method: str = "andrews_linear"):
 
         Ms = 512 - 453 C - 16.9 Ni + 15 Cr - 9.5 Mo + 217 C^2 - 71.5 C Mn - 67.6 C Cr
 
-    (wt %).  Validity: the linear form was fitted to steels with C below about
-    0.6 % (``andrews_ms``); above it the product form's C^2 term keeps Ms from
+    (wt %).  The linear form is :func:`selector.models.critical_temperatures.ms_c`.
+    Validity: Andrews's steels had C below about 0.6 % (``andrews_ms``,
+    ``andrews_ms_product``); above it the product form's C^2 term keeps Ms from
     falling too fast.
 
     References
@@ -373,7 +372,8 @@ def retained_austenite_pct(carbon_pct, comp: Composition, quench_temp_c=25.0,
 
     Validity
     --------
-    Andrews Ms (the linear form below about 0.6 %C, ``andrews_ms``); KM's alpha = 0.011 /K for
+    Andrews Ms (C below about 0.6 %, ``andrews_ms`` / ``andrews_ms_product``);
+    KM's alpha = 0.011 /K for
     plain-carbon and low-alloy steels.
 
     References
@@ -402,3 +402,183 @@ def carburizing_cautions(surface_carbon_pct) -> list[str]:
                     "expect retained austenite and possible carbide networks at the surface "
                     "(common practice: keep surface carbon near 0.7–0.9 %, or sub-zero treat)")
     return msgs
+
+
+# ------------------------------------------------------------ 5. case hardness
+def low_temper_hrc(as_quenched_hrc, comp: Composition, temper_temp_c, temper_hours):
+    """Hardness (HRC) of martensite after a low temper: the lower of the as-quenched
+    hardness and the tempered-martensite hardness of
+    :func:`selector.models.tempering.tempered_martensite_hv` at ``comp`` (whose
+    ``C`` is the local carbon), converted by ASTM E140
+    (:func:`selector.models.conversions.hv_to_hrc`).
+
+    ``temper_temp_c=None`` returns the as-quenched hardness.
+    """
+    aq = np.asarray(as_quenched_hrc, float)
+    if temper_temp_c is None:
+        return aq
+    from .conversions import hv_to_hrc
+    from .tempering import tempered_martensite_hv
+
+    _nonneg("temper_hours", temper_hours, "low_temper_hrc")
+    tempered = hv_to_hrc(tempered_martensite_hv(comp, temper_temp_c, temper_hours))
+    return np.where(np.isfinite(tempered), np.minimum(aq, tempered), aq)
+
+
+def fully_hardened_case_hrc(carbon_pct, comp_core: Composition, temper_temp_c=None, temper_hours=2.0,
+                            quench_temp_c=25.0, ms_method: str = CASE_MS_METHOD):
+    """Hardness (HRC) of a fully hardened case at local carbon ``carbon_pct``.
+
+    ::
+
+        HV = (1 - f_RA) HV_M,tempered(C) + f_RA * 300
+
+    HV_M: 99.9 % martensite at C (:func:`selector.models.martensite.martensite_hardness_hrc`,
+    ASTM A255 IH, held at its 0.70 %C value above 0.70 %C), tempered by
+    :func:`low_temper_hrc`; f_RA: :func:`retained_austenite_pct` (KM with Andrews Ms
+    of the core alloying at the local carbon); 300 HV: retained austenite
+    (:data:`RETAINED_AUSTENITE_HV`, from memory), mixed by volume.  The A255 IH
+    curve is taken as fresh martensite: by the same KM estimate it holds less than
+    8 % austenite up to 0.6 %C.
+    """
+    from .conversions import hrc_to_hv, hv_to_hrc
+    from .martensite import martensite_hardness_hrc
+
+    c = _nonneg("carbon_pct", carbon_pct, "fully_hardened_case_hrc")
+    local = _local_comp(comp_core, c)
+    hrc_m = low_temper_hrc(martensite_hardness_hrc(c, 99.9), local, temper_temp_c, temper_hours)
+    f_ra = retained_austenite_pct(c, comp_core, quench_temp_c, ms_method) / 100.0
+    hv = (1.0 - f_ra) * hrc_to_hv(hrc_m) + f_ra * RETAINED_AUSTENITE_HV
+    return hv_to_hrc(hv)
+
+
+def case_hardness_profile_hrc(depth_mm, temp_c, hours, surface_carbon_pct, comp_core: Composition,
+                              temper_temp_c, temper_hours, core_hardness_hrc, quench_temp_c=25.0,
+                              method: str = "tibbetts", ms_method: str = CASE_MS_METHOD):
+    """Hardness against depth of a carburized, quenched and low-tempered part, HRC.
+
+    ::
+
+        C(x)  = carbon_profile_pct(x, ...)                              (Crank erf, Tibbetts D)
+        Hf(C) = fully_hardened_case_hrc(C, ...)                         (martensite + temper + KM RA)
+        H(x)  = H_core + [Hf(C(x)) - Hf(C0)] (Hf(Cs) - H_core) / (Hf(Cs) - Hf(C0)),  H >= H_core
+
+    The surface reaches the fully hardened value of its carbon (the case hardens
+    through: carbon raises its hardenability); the profile falls to the core
+    hardness at the section (from the through-hardening model) in proportion to the
+    carbon's martensite-hardness increment, so a slack-quenched core does not show
+    the hardness of full martensite at the core carbon.
+
+    Parameters
+    ----------
+    depth_mm : array_like
+        Depth below the surface, mm.
+    temp_c, hours : array_like
+        Carburizing temperature (°C) and time at temperature (h).
+    surface_carbon_pct : array_like
+        Surface carbon (carbon potential), wt %.
+    comp_core : mapping
+        Core composition, wt % (its ``C`` is the core carbon C0).
+    temper_temp_c : array_like or None
+        Tempering temperature, °C (None: as quenched).
+    temper_hours : array_like
+        Tempering time, h.
+    core_hardness_hrc : array_like
+        Core hardness at the section after quench and temper, HRC.
+    quench_temp_c : array_like
+        Temperature the quench reaches, °C.
+    method, ms_method : str
+        Diffusivity (:func:`carbon_diffusivity_m2_s`) and Ms
+        (:func:`martensite_start_c`) forms.
+
+    Returns
+    -------
+    ndarray, HRC (broadcast of the inputs), never below ``core_hardness_hrc``.
+
+    Validity
+    --------
+    850–1000 °C, surface carbon 0.6–1.0 %, temper 120–230 °C
+    (``carburized_case_hardness``); see also the validity of each step.  Above
+    0.9 % surface carbon see :func:`carburizing_cautions`.
+
+    References
+    ----------
+    Crank (1975); Tibbetts (1980); ASTM A255 (IH); Koistinen & Marburger (1959);
+    Andrews (1965); ASTM E140 (HV-HRC).
+    """
+    ctx = "case_hardness_profile_hrc"
+    c0 = el(comp_core, "C")
+    cs, c0 = _check_carbon(surface_carbon_pct, c0, ctx)
+    core = np.asarray(core_hardness_hrc, float)
+    if np.any(~np.isfinite(core)):
+        raise InputError("core_hardness_hrc", float(np.atleast_1d(core)[0]), "a finite HRC value", ctx)
+    c = carbon_profile_pct(depth_mm, temp_c, hours, cs, c0, method)
+
+    def hf(carbon):
+        return fully_hardened_case_hrc(carbon, comp_core, temper_temp_c, temper_hours, quench_temp_c, ms_method)
+
+    h_s, h_0, h_x = hf(cs), hf(c0), hf(c)
+    span = h_s - h_0
+    with np.errstate(divide="ignore", invalid="ignore"):
+        scaled = core + (h_x - h_0) * (h_s - core) / np.where(np.abs(span) > 1e-9, span, 1.0)
+    prof = np.where(np.abs(span) > 1e-9, scaled, np.maximum(h_x, core))
+    return np.maximum(prof, core)
+
+
+def effective_case_depth_mm(temp_c, hours, surface_carbon_pct, comp_core: Composition, temper_temp_c,
+                            temper_hours, core_hardness_hrc, threshold_hrc=50.0, quench_temp_c=25.0,
+                            method: str = "tibbetts", ms_method: str = CASE_MS_METHOD, n_grid: int = 241):
+    """Effective case depth: depth where the hardness falls to 50 HRC (SAE J423 / ISO 2639).
+
+    The profile of :func:`case_hardness_profile_hrc` is evaluated on a grid of
+    ``n_grid`` depths from 0 to 6 sqrt(D t) (beyond which the carbon is within
+    0.01 % of the core's) for every element of the broadcast inputs, and the first
+    crossing of ``threshold_hrc`` is interpolated linearly.
+
+    Returns
+    -------
+    ndarray, mm: 0 where the surface is below the threshold, ``inf`` where the core
+    itself is at or above it (no case/core boundary by hardness).
+
+    References
+    ----------
+    SAE J423 (methods of measuring case depth); ISO 2639 (case-hardened steels,
+    determination of the effective case depth, 550 HV ~ 50 HRC criterion).
+    """
+    ctx = "effective_case_depth_mm"
+    c0 = el(comp_core, "C")
+    cs, c0 = _check_carbon(surface_carbon_pct, c0, ctx)
+    h = _nonneg("hours", hours, ctx)
+    d_s = carbon_diffusivity_m2_s(temp_c, 0.5 * (cs + c0), method)
+    thr = np.asarray(threshold_hrc, float)
+    core = np.asarray(core_hardness_hrc, float)
+    shape = np.broadcast(np.asarray(temp_c, float), h, cs, c0, core, thr,
+                         *(np.asarray(v, float) for v in comp_core.values()),
+                         np.asarray(temper_temp_c if temper_temp_c is not None else 0.0, float),
+                         np.asarray(temper_hours, float), np.asarray(quench_temp_c, float)).shape
+    x_max = np.broadcast_to(6.0 * np.sqrt(d_s * h * 3600.0) * 1e3, shape)
+    u = np.linspace(0.0, 1.0, n_grid)
+    depth = x_max[..., None] * u                                     # shape + (n,)
+
+    def ex(a):
+        return np.asarray(a, float)[..., None] if np.ndim(a) else a
+
+    comp_g = {k: ex(v) for k, v in comp_core.items()}
+    prof = case_hardness_profile_hrc(depth, ex(temp_c), ex(h), ex(cs), comp_g,
+                                     None if temper_temp_c is None else ex(temper_temp_c),
+                                     ex(temper_hours), ex(core), ex(quench_temp_c), method, ms_method)
+    prof = np.broadcast_to(prof, shape + (n_grid,))
+    thr_b = np.broadcast_to(thr, shape)[..., None]
+    below = prof < thr_b
+    first = np.argmax(below, axis=-1)                                # first index below the threshold
+    any_below = below.any(axis=-1)
+    idx = np.clip(first, 1, n_grid - 1)
+    take = lambda a, i: np.take_along_axis(a, i[..., None], axis=-1)[..., 0]  # noqa: E731
+    h1, h0 = take(prof, idx), take(prof, idx - 1)
+    x1, x0 = take(depth, idx), take(depth, idx - 1)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        frac = np.where(h0 != h1, (h0 - thr_b[..., 0]) / (h0 - h1), 0.0)
+    x = x0 + frac * (x1 - x0)
+    surface_soft = prof[..., 0] < thr_b[..., 0]
+    out = np.where(surface_soft, 0.0, np.where(any_below, x, np.inf))
+    return out
