@@ -97,7 +97,8 @@ def nearest(name: str, choices: Iterable[str], n: int = 5) -> list[str]:
     return [lower[h] for h in hits]
 
 
-def check_choice(field: str, value: object, allowed: Iterable[str], context: str = "") -> str:
+def check_choice(field: str, value: object, allowed: Iterable[str], context: str = "",
+                 error: type = InputError) -> str:
     """Return ``value`` if it is one of ``allowed``, else raise :class:`InputError`
     naming the nearest allowed choices."""
     allowed = list(allowed)
@@ -105,7 +106,7 @@ def check_choice(field: str, value: object, allowed: Iterable[str], context: str
         return value
     near = nearest(str(value), allowed, n=3)
     hint = ", ".join(allowed) + (f" (did you mean {', '.join(near)}?)" if near else "")
-    raise InputError(field, value, hint, context)
+    raise error(field, value, hint, context)
 
 
 def check_number(field: str, value: object, lo: float | None = None, hi: float | None = None,

@@ -77,7 +77,7 @@ def parse_steps(route) -> list[dict]:
             raise RouteError("op", step, "a dict with key 'op' (one of: " + ", ".join(OPS) + ")", where)
         op = step["op"]
         if op not in OPS:
-            check_choice("op", op, list(OPS), where)
+            check_choice("op", op, list(OPS), where, RouteError)
         spec = OPS[op]
         clean = {"op": op}
         for key, val in step.items():
@@ -90,7 +90,7 @@ def parse_steps(route) -> list[dict]:
                                  + (f" (did you mean {', '.join(near)}?)" if near else ""), where)
             p = spec[key]
             if p.kind == "choice":
-                clean[key] = check_choice(key, val, p.choices, f"{where} ({op})")
+                clean[key] = check_choice(key, val, p.choices, f"{where} ({op})", RouteError)
             elif p.kind == "str":
                 if not isinstance(val, str) or not val.strip():
                     raise RouteError(key, val, "a non-empty text", f"{where} ({op})")

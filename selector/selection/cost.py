@@ -1,0 +1,73 @@
+"""Indicative cost: grade price per kg plus route adders, the part's mass, and the
+user's price sheet.
+
+Prices are *relative* (1018 cold-drawn bar = 1.0 per kg) and indicative only; a
+price sheet loaded by the user overrides the catalogue's values.
+"""
+from __future__ import annotations
+
+import functools
+import math
+
+import numpy as np
+import pandas as pd
+
+from ..catalogue.grades import default_catalogue
+from ..catalogue.loader import CONFIDENCE, Column, Schema, parse_text, decode_bytes, read_table
+from ..errors import DataFileError, InputError
+
+ROUTE_COST_SCHEMA = Schema((Column("route"), Column("adder_per_kg", "float", lo=0, hi=1000),
+                            Column("source"), Column("confidence", "choice", choices=CONFIDENCE)))
+
+#: a user's price sheet: grade (any designation) and relative price per kg
+PRICE_SHEET_SCHEMA = Schema((Column("grade"), Column("relative_price", "float", lo=0.001, hi=1e5),
+                             Column("source", required=False, allow_blank=True)))
+
+
+@functools.cache
+def route_adders() -> dict:
+    t = read_table("route_costs.csv", ROUTE_COST_SCHEMA)
+    return dict(zip(t["route"], t["adder_per_kg"].astype(float)))
+
+
+def parse_price_sheet(data: bytes | str, name: str = "price sheet") -> dict:
+    """Validate a user's price sheet and return ``{grade id: relative price}``.
+
+    The CSV needs the columns ``grade`` and ``relative_price`` (per kg, on the same
+    relative scale as the catalogue or any consistent currency: only ratios matter
+    for ranking).  A bad file raises :class:`DataFileError` naming the line and
+    column; nothing is applied.
+    """
+    text = decode_bytes(data, name) if isinstance(data, (bytes, bytearray)) else data
+    df = parse_text(text, name, PRICE_SHEET_SCHEMA)
+    cat = default_catalogue()
+    out = {}
+    for r in df.itertuples(index=False):
+        try:
+            g = cat.lookup(r.grade)
+        except LookupError as exc:
+            raise DataFileError(name, r.line, "grade", str(exc)) from None
+        if g.id in out:
+            raise DataFileError(name, r.line, "grade", f"{g.id} is priced twice")
+        out[g.id] = float(r.relative_price)
+    if not out:
+        raise DataFileError(name, None, None, "has no price rows")
+    return out
+
+
+def part_mass_kg(density_g_cm3, diameter_mm=None, thickness_mm=None, length_mm=100.0, width_mm=None):
+    """Mass of a round bar (diameter × length) or a plate (thickness × width × length), kg."""
+    dens = np.asarray(density_g_cm3, float) * 1e-6  # kg/mm^3
+    if thickness_mm is not None:
+        w = width_mm if width_mm is not None else thickness_mm
+        return dens * thickness_mm * w * length_mm
+    return dens * math.pi / 4 * diameter_mm ** 2 * length_mm
+
+
+def relative_cost_per_kg(price_per_kg: np.ndarray, routes: np.ndarray) -> np.ndarray:
+    add = route_adders()
+    adders = np.array([add.get(r, np.nan) for r in routes], float)
+    if np.isnan(adders).any():
+        missing = sorted({r for r, a in zip(routes, adders) if a != a})
+        raise InputError("route", missing[0], f"a route with a cost adder in data/route_costs.csv ({', '.join(add)})")
+    return np.asarray(price_per_kg, float) + adders

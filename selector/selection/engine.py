@@ -1,0 +1,322 @@
+"""Selection: which grade-and-route candidates meet the targets, how robustly, at
+what process window and cost, and which of them form the Pareto set.
+
+Definitions (documented in docs/methods/selection.md):
+
+* A *state* is one grade × route family × parameter point × composition corner (a
+  row of :func:`selector.states.expand.expand`).
+* A *variant* groups the states of one grade and route that differ only in the
+  route's main parameter (e.g. the tempering temperature of an oil-quenched 4140).
+* A variant is a *candidate* when some value of its main parameter meets every
+  target at the nominal composition; it is *robust* when some value meets every
+  target at every composition corner (lean, nominal and rich).
+* The candidate's *window* is the contiguous range of the main parameter around
+  the chosen point over which the targets hold (at every corner for a robust
+  candidate, at the nominal composition otherwise); the chosen point is the middle
+  of the widest such range, the value most tolerant of furnace scatter.
+* The Pareto set is taken over the candidates on the chosen objectives (default:
+  maximise yield strength, maximise elongation, minimise relative cost).
+"""
+from __future__ import annotations
+
+import numpy as np
+import pandas as pd
+
+from ..catalogue.grades import FAMILIES, default_catalogue
+from ..errors import InputError
+from ..routes import families as fam_registry
+from ..routes.steps import describe
+from ..states.expand import expand
+from . import cost as cost_mod
+from .pareto import pareto_mask
+from .targets import margins, meets, shortfalls, validate_targets
+
+DEFAULT_OBJECTIVES = (("yield_mpa", "max"), ("elongation_pct", "max"), ("relative_cost", "min"))
+OBJECTIVE_COLUMNS = ("yield_mpa", "uts_mpa", "elongation_pct", "hardness_hrc", "surface_hardness_hrc",
+                     "case_depth_mm", "relative_cost", "part_cost")
+
+OUTPUT_COLUMNS = ["grade", "family", "route_family", "route_text", "route", "uts_mpa", "yield_mpa",
+                  "elongation_pct", "hardness_hv", "hardness_hrc", "surface_hardness_hv",
+                  "surface_hardness_hrc", "center_hardness_hv", "case_depth_mm", "relative_cost",
+                  "part_cost", "mass_kg", "robust", "nominal", "pareto", "window", "window_parameter",
+                  "window_min", "window_max", "robust_window_min", "robust_window_max", "main_value",
+                  "notes", "price_source"]
+
+
+def _main_param(route: str):
+    return fam_registry.get(route).main_parameter
+
+
+def _variant_keys(states: pd.DataFrame) -> pd.Series:
+    key = states["grade"] + "|" + states["route"]
+    for route, sub in states.groupby("route", sort=False):
+        fam = fam_registry.get(route)
+        others = [p for p in fam.parameters if p != fam.main_parameter and p in sub]
+        if others:
+            extra = sub[others].astype(str).agg("|".join, axis=1)
+            key.loc[sub.index] = key.loc[sub.index] + "|" + extra
+    return key
+
+
+def costed(states: pd.DataFrame, length_mm: float = 100.0, price_sheet: dict | None = None,
+           diameter_mm=None, thickness_mm=None) -> pd.DataFrame:
+    """Add ``relative_cost`` (per kg: grade price + route adder), ``mass_kg`` and
+    ``part_cost`` to a states table (returns a new frame)."""
+    df = states.copy()
+    price = df["relative_price"].to_numpy(float).copy()
+    src = np.full(len(df), "catalogue (indicative)", dtype=object)
+    if price_sheet:
+        for gid, p in price_sheet.items():
+            m = (df["grade"] == gid).to_numpy()
+            price[m] = p
+            src[m] = "price sheet"
+    df["relative_cost"] = cost_mod.relative_cost_per_kg(price, df["route"].to_numpy())
+    mass = cost_mod.part_mass_kg(df["density_g_cm3"].to_numpy(float), diameter_mm, thickness_mm, length_mm)
+    df["mass_kg"] = mass
+    df["part_cost"] = df["relative_cost"] * mass
+    df["price_source"] = src
+    return df
+
+
+def prepare(diameter_mm=25.0, thickness_mm=None, length_mm=100.0, price_sheet=None) -> pd.DataFrame:
+    """The expanded, costed states table with variant keys: everything that does
+    not depend on the targets (the page caches it)."""
+    if not isinstance(length_mm, (int, float)) or not (1.0 <= float(length_mm) <= 20000.0):
+        raise InputError("length_mm", length_mm, "a part length in [1, 20000] mm")
+    st = expand(diameter_mm, thickness_mm)
+    d = None if thickness_mm is not None else float(diameter_mm)
+    df = costed(st, float(length_mm), price_sheet, d, thickness_mm)
+    df["variant"] = _variant_keys(df)
+    df["main_value"] = np.nan
+    for route, sub in df.groupby("route", sort=False):
+        mp = _main_param(route)
+        if mp and mp in sub:
+            df.loc[sub.index, "main_value"] = sub[mp].astype(float)
+    df.attrs["section"] = {"diameter_mm": d, "thickness_mm": thickness_mm, "length_mm": float(length_mm)}
+    return df
+
+
+def _runs(sorted_df: pd.DataFrame, ok: np.ndarray) -> pd.DataFrame:
+    """Contiguous runs of ``ok`` states along the main parameter within each variant
+    (``sorted_df`` sorted by variant, main_value).  Returns one row per run."""
+    var = sorted_df["variant"].to_numpy()
+    change = np.r_[True, (var[1:] != var[:-1]) | (ok[1:] != ok[:-1])]
+    run = np.cumsum(change)
+    d = pd.DataFrame({"variant": var, "run": run, "ok": ok, "pos": np.arange(len(ok)),
+                      "main_value": sorted_df["main_value"].to_numpy()})
+    d = d[d["ok"]]
+    if d.empty:
+        return pd.DataFrame(columns=["variant", "first", "last", "lo", "hi", "count"])
+    g = d.groupby("run")
+    return pd.DataFrame({"variant": g["variant"].first(), "first": g["pos"].min(), "last": g["pos"].max(),
+                         "lo": g["main_value"].min(), "hi": g["main_value"].max(), "count": g["pos"].count()})
+
+
+def rank(prepared: pd.DataFrame, targets: dict | None = None, objectives=DEFAULT_OBJECTIVES,
+         robust_only: bool = False) -> pd.DataFrame:
+    """Candidates of ``prepared`` (from :func:`prepare`) for ``targets``: the fast
+    step that the page re-runs when only the targets change."""
+    t = validate_targets(targets, FAMILIES)
+    objectives = _check_objectives(objectives)
+    ok_all = meets(prepared, t)
+    piv = pd.DataFrame({"state_key": prepared["state_key"], "corner": prepared["corner"], "ok": ok_all})
+    wide = piv.pivot_table(index="state_key", columns="corner", values="ok", aggfunc="all")
+    nominal_rows = prepared[prepared["corner"] == "nominal"].copy()
+    wide = wide.reindex(nominal_rows["state_key"])
+    nominal_rows["nominal"] = wide["nominal"].fillna(False).to_numpy(bool)
+    nominal_rows["robust"] = wide.fillna(False).all(axis=1).to_numpy(bool)
+    s = nominal_rows.sort_values(["variant", "main_value"], kind="stable").reset_index(drop=True)
+    robust_runs = _runs(s, s["robust"].to_numpy())
+    nominal_runs = _runs(s, s["nominal"].to_numpy())
+    # choose per variant: widest robust run, else widest nominal run
+    best_r = robust_runs.sort_values(["count", "lo"], ascending=[False, True]).drop_duplicates("variant")
+    best_n = nominal_runs.sort_values(["count", "lo"], ascending=[False, True]).drop_duplicates("variant")
+    chosen = pd.concat([best_r.assign(kind="robust"),
+                        best_n[~best_n["variant"].isin(best_r["variant"])].assign(kind="nominal")])
+    if robust_only:
+        chosen = chosen[chosen["kind"] == "robust"]
+    if chosen.empty:
+        return _empty(t)
+    pick = ((chosen["first"] + chosen["last"]) // 2).to_numpy(int)
+    cand = s.iloc[pick].copy()
+    cand["window_min"] = chosen["lo"].to_numpy(float)
+    cand["window_max"] = chosen["hi"].to_numpy(float)
+    # the nominal window that contains the chosen point
+    nr = nominal_runs.set_index("variant")
+    nom_lo, nom_hi = [], []
+    for v, x in zip(cand["variant"], cand["main_value"]):
+        rows = nr.loc[[v]] if v in nr.index else None
+        if rows is None:
+            nom_lo.append(np.nan), nom_hi.append(np.nan)
+            continue
+        hit = rows[(rows["lo"] <= x) & (rows["hi"] >= x)] if x == x else rows
+        nom_lo.append(float(hit["lo"].iloc[0]) if len(hit) else np.nan)
+        nom_hi.append(float(hit["hi"].iloc[0]) if len(hit) else np.nan)
+    cand["robust_window_min"] = np.where(cand["robust"], cand["window_min"], np.nan)
+    cand["robust_window_max"] = np.where(cand["robust"], cand["window_max"], np.nan)
+    cand["window_min"], cand["window_max"] = nom_lo, nom_hi
+    return _finish(cand, t, objectives)
+
+
+def _check_objectives(objectives):
+    out = []
+    for item in objectives:
+        if not isinstance(item, (tuple, list)) or len(item) != 2:
+            raise InputError("objectives", item, "pairs (column, 'max' | 'min')")
+        col, sense = item
+        if col not in OBJECTIVE_COLUMNS:
+            raise InputError("objectives", col, ", ".join(OBJECTIVE_COLUMNS))
+        if sense not in ("max", "min"):
+            raise InputError("objectives", sense, "'max' or 'min'")
+        out.append((col, sense))
+    if not out:
+        raise InputError("objectives", objectives, "at least one (column, sense) pair")
+    return tuple(out)
+
+
+def _window_text(row) -> str:
+    fam = fam_registry.get(row["route"])
+    mp = fam.main_parameter
+    if not mp or row["window_min"] != row["window_min"]:
+        return ""
+    unit = "°C" if mp.endswith("_c") else "%" if mp.endswith("_pct") else "h" if mp.endswith("hours") \
+        else "mm" if mp.endswith("_mm") else ""
+    lo, hi = row["window_min"], row["window_max"]
+    txt = f"{mp} {lo:g}–{hi:g} {unit}".strip() if hi > lo else f"{mp} {lo:g} {unit} only".strip()
+    if row["robust"] and row["robust_window_min"] == row["robust_window_min"] and \
+            (row["robust_window_min"], row["robust_window_max"]) != (lo, hi):
+        txt += f" (all corners: {row['robust_window_min']:g}–{row['robust_window_max']:g} {unit})"
+    return txt
+
+
+def _finish(cand: pd.DataFrame, t: dict, objectives) -> pd.DataFrame:
+    cand = cand.reset_index(drop=True)
+    routes, texts = [], []
+    for _, r in cand.iterrows():
+        fam = fam_registry.get(r["route"])
+        params = {p: r[p] for p in fam.parameters if p in r.index}
+        steps = fam.to_steps(params)
+        routes.append(steps)
+        texts.append(describe(steps))
+    cand["route_family"] = cand["route"]
+    cand["route"] = routes
+    cand["route_text"] = texts
+    cand["window_parameter"] = [fam_registry.get(r).main_parameter or "" for r in cand["route_family"]]
+    cand["window"] = [_window_text({**r, "route": r["route_family"]}) for _, r in cand.iterrows()]
+    vals = np.column_stack([cand[c].to_numpy(float) for c, _ in objectives])
+    cand["pareto"] = pareto_mask(vals, [s == "max" for _, s in objectives])
+    m = margins(cand, t)
+    for c in m.columns:
+        cand[c] = m[c].to_numpy()
+    cand = cand.sort_values(["pareto", "robust", "relative_cost", "yield_mpa"],
+                            ascending=[False, False, True, False], kind="stable").reset_index(drop=True)
+    cols = OUTPUT_COLUMNS + list(m.columns) + [c for c in cand.columns
+                                               if c not in OUTPUT_COLUMNS and c not in m.columns]
+    return cand[[c for c in cols if c in cand.columns]]
+
+
+def _empty(t) -> pd.DataFrame:
+    cols = OUTPUT_COLUMNS + [f"margin_{k}" for k in t if k not in ("families", "exclude_families",
+                                                                   "corrosion_resistant")]
+    return pd.DataFrame(columns=cols)
+
+
+def select(targets: dict | None = None, diameter_mm: float = 25.0, *, thickness_mm: float | None = None,
+           length_mm: float = 100.0, price_sheet: dict | None = None, objectives=DEFAULT_OBJECTIVES,
+           robust_only: bool = False) -> pd.DataFrame:
+    """Grade-and-route candidates that meet ``targets`` at the given section.
+
+    Parameters
+    ----------
+    targets : dict
+        Any of ``min_yield_mpa, max_yield_mpa, min_uts_mpa, max_uts_mpa,
+        min_elongation_pct, min_hardness_hrc, max_hardness_hrc`` (at the tension-test
+        location), ``min_surface_hardness_hrc, min_case_depth_mm, max_relative_cost,
+        families, exclude_families, corrosion_resistant``.
+    diameter_mm : float
+        Round section diameter, mm (or give ``thickness_mm`` for a plate).
+    length_mm : float
+        Part length, mm (for the part's mass and ``part_cost``).
+    price_sheet : dict, optional
+        ``{grade id: relative price per kg}`` overriding the catalogue
+        (see :func:`selector.selection.cost.parse_price_sheet`).
+    objectives : sequence of (column, "max" | "min")
+        Pareto objectives; default maximise yield, maximise elongation, minimise cost.
+    robust_only : bool
+        Keep only candidates that meet the targets at every composition corner.
+
+    Returns
+    -------
+    pandas.DataFrame
+        One row per candidate, Pareto rows first; see the module docstring.  Empty
+        when nothing qualifies (then see :func:`nearest_misses`).
+    """
+    prepared = prepare(diameter_mm, thickness_mm, length_mm, price_sheet)
+    return rank(prepared, targets, objectives, robust_only)
+
+
+def nearest_misses(targets: dict, diameter_mm: float = 25.0, *, thickness_mm: float | None = None,
+                   length_mm: float = 100.0, price_sheet: dict | None = None, n: int = 10) -> pd.DataFrame:
+    """The closest candidates when nothing meets ``targets``: for each target, how far
+    it would have to move (``move_<key>``) for that candidate to qualify at the
+    nominal composition.  One row per variant (its best parameter point), sorted by
+    ``miss_score`` (the sum of the relative moves)."""
+    t = validate_targets(targets, FAMILIES)
+    prepared = prepare(diameter_mm, thickness_mm, length_mm, price_sheet)
+    nom = prepared[prepared["corner"] == "nominal"]
+    hard = _hard_filters(nom, t)
+    nom = nom[hard]
+    if nom.empty:
+        return pd.DataFrame(columns=["grade", "family", "route_text", "miss_score"])
+    sf = shortfalls(nom, t)
+    nom = nom.assign(**{c: sf[c].to_numpy() for c in sf.columns})
+    best = nom.sort_values("miss_score", kind="stable").drop_duplicates("variant").head(int(n))
+    out = _finish(best.assign(window_min=np.nan, window_max=np.nan, robust_window_min=np.nan,
+                              robust_window_max=np.nan, robust=False, nominal=False), {}, DEFAULT_OBJECTIVES)
+    out = out.sort_values("miss_score", kind="stable").reset_index(drop=True)
+    lead = ["grade", "family", "route_text", "miss_score"] + list(sf.columns.drop("miss_score"))
+    return out[lead + [c for c in out.columns if c not in lead]]
+
+
+def _hard_filters(frame: pd.DataFrame, t: dict) -> np.ndarray:
+    keep = np.ones(len(frame), bool)
+    if t.get("families"):
+        keep &= frame["family"].isin(t["families"]).to_numpy()
+    if t.get("exclude_families"):
+        keep &= ~frame["family"].isin(t["exclude_families"]).to_numpy()
+    if t.get("corrosion_resistant"):
+        keep &= frame["corrosion_resistant"].to_numpy(bool)
+    return keep
+
+
+def alternatives(grade, route, diameter_mm: float = 25.0, *, thickness_mm: float | None = None,
+                 length_mm: float = 100.0, price_sheet: dict | None = None) -> pd.DataFrame:
+    """Cheaper candidates that reach at least the properties of the given choice.
+
+    The given grade and route are evaluated; its yield, tensile strength,
+    elongation (and surface hardness and case depth when case-hardened, and
+    corrosion resistance when the grade has it) become minimum targets; the result
+    lists the candidates whose relative cost per kg is lower, cheapest first, with
+    ``saving_per_kg``.
+    """
+    from ..routes.evaluate import evaluate
+
+    ref = evaluate(grade, route, diameter_mm=diameter_mm, thickness_mm=thickness_mm)
+    g = default_catalogue().lookup(grade)
+    price = (price_sheet or {}).get(g.id, g.relative_price)
+    ref_cost = float(cost_mod.relative_cost_per_kg(np.array([price]), np.array([ref["route_family"]]))[0])
+    t = {"min_yield_mpa": ref["yield_mpa"], "min_uts_mpa": ref["uts_mpa"],
+         "min_elongation_pct": ref["elongation_pct"]}
+    if ref.get("case_depth_mm"):
+        t["min_case_depth_mm"] = ref["case_depth_mm"]
+        if ref.get("surface_hardness_hrc") is not None:
+            t["min_surface_hardness_hrc"] = ref["surface_hardness_hrc"]
+    if g.corrosion_resistant:
+        t["corrosion_resistant"] = True
+    t = {k: v for k, v in t.items() if v is not None}
+    cand = select(t, diameter_mm, thickness_mm=thickness_mm, length_mm=length_mm, price_sheet=price_sheet)
+    cand = cand[cand["relative_cost"] < ref_cost - 1e-9].copy()
+    cand["saving_per_kg"] = ref_cost - cand["relative_cost"]
+    cand = cand.sort_values(["relative_cost", "robust"], ascending=[True, False], kind="stable")
+    cand.attrs["reference"] = {**ref, "relative_cost": ref_cost, "targets": t}
+    return cand.reset_index(drop=True)
