@@ -80,7 +80,11 @@ def _scalar(v):
     return v
 
 
-def evaluate(grade, route, diameter_mm: float | None = 25.0, thickness_mm: float | None = None) -> dict:
+CORNERS = ("lean", "nominal", "rich")
+
+
+def evaluate(grade, route, diameter_mm: float | None = 25.0, thickness_mm: float | None = None,
+             composition: str = "nominal") -> dict:
     """Properties that ``route`` gives ``grade`` at a real section.
 
     Parameters
@@ -93,6 +97,9 @@ def evaluate(grade, route, diameter_mm: float | None = 25.0, thickness_mm: float
         Diameter of the round section, mm (ignored when ``thickness_mm`` is given).
     thickness_mm : float, optional
         Thickness of a plate section, mm.
+    composition : {"nominal", "lean", "rich"}
+        Where in the grade's composition specification to evaluate: the mid-points,
+        or every alloying element at its minimum or maximum.
 
     Returns
     -------
@@ -108,10 +115,13 @@ def evaluate(grade, route, diameter_mm: float | None = 25.0, thickness_mm: float
     ------
     UnknownGradeError, RouteError, InputError, NotModelledError
     """
+    from ..errors import check_choice
+
     d, t = section_args(diameter_mm, thickness_mm)
+    check_choice("composition", composition, CORNERS)
     g, steps, fam = resolve(grade, route)
     params, warns = fam.parse(steps, g)
-    batch = Batch.single(g, g.composition("nominal"), params, d, t)
+    batch = Batch.single(g, g.composition(composition), params, d, t)
     res = finish(fam.compute(batch), batch)
     out = {}
     for key in ("uts_mpa", "yield_mpa", "elongation_pct", "hardness_hv", "hardness_hb", "hardness_hrc",
@@ -136,6 +146,7 @@ def evaluate(grade, route, diameter_mm: float | None = 25.0, thickness_mm: float
     out["route"] = fam.to_steps(params)
     out["route_text"] = steps_mod.describe(out["route"])
     out["params"] = {k: _scalar(v) for k, v in params.items()}
+    out["composition"] = composition
     out["diameter_mm"] = d
     out["thickness_mm"] = t
     notes = [m for m, mask in res.get("notes", []) if bool(np.asarray(mask).ravel()[0])]

@@ -1,0 +1,119 @@
+"""Selection engine: candidates, robustness, Pareto, nearest misses, alternatives."""
+import numpy as np
+import pandas as pd
+import pytest
+
+import selector
+from selector.errors import InputError
+from selector.selection.engine import prepare, rank
+
+TARGETS = {"min_yield_mpa": 700, "min_uts_mpa": 850, "min_elongation_pct": 12}
+PROPS = ("uts_mpa", "yield_mpa", "elongation_pct", "hardness_hrc", "surface_hardness_hv", "case_depth_mm")
+
+
+@pytest.fixture(scope="module")
+def result():
+    return selector.select(TARGETS, diameter_mm=30)
+
+
+def test_candidates_exist_and_have_contract_columns(result):
+    assert len(result) > 3
+    for col in ("grade", "family", "route_text", "route", "uts_mpa", "yield_mpa", "elongation_pct",
+                "hardness_hrc", "surface_hardness_hv", "surface_hardness_hrc", "case_depth_mm",
+                "relative_cost", "robust", "pareto", "window", "margin_min_yield_mpa",
+                "margin_min_uts_mpa", "margin_min_elongation_pct"):
+        assert col in result.columns, col
+    assert result["pareto"].any()
+
+
+def test_every_row_reproduced_by_evaluate_and_meets_targets(result):
+    for _, row in result.iterrows():
+        r = selector.evaluate(row["grade"], row["route"], diameter_mm=30)
+        for p in ("uts_mpa", "yield_mpa", "elongation_pct"):
+            assert r[p] == pytest.approx(row[p], rel=1e-6, abs=1e-6), (row["grade"], row["route_text"], p)
+        assert r["yield_mpa"] >= TARGETS["min_yield_mpa"] - 1e-6
+        assert r["uts_mpa"] >= TARGETS["min_uts_mpa"] - 1e-6
+        assert r["elongation_pct"] >= TARGETS["min_elongation_pct"] - 1e-6
+        assert (row["margin_min_yield_mpa"]) == pytest.approx(r["yield_mpa"] - 700, abs=1e-6)
+
+
+def test_robust_rows_hold_at_every_corner(result):
+    robust = result[result["robust"]]
+    assert len(robust) > 0
+    for _, row in robust.head(12).iterrows():
+        for corner in ("lean", "rich"):
+            r = selector.evaluate(row["grade"], row["route"], diameter_mm=30, composition=corner)
+            assert r["yield_mpa"] >= 700 - 1e-6 and r["uts_mpa"] >= 850 - 1e-6
+            assert r["elongation_pct"] >= 12 - 1e-6
+
+
+def test_no_pareto_row_is_dominated(result):
+    v = result[["yield_mpa", "elongation_pct", "relative_cost"]].to_numpy(float)
+    v[:, 2] = -v[:, 2]
+    par = result["pareto"].to_numpy()
+    for i in np.flatnonzero(par):
+        dom = np.all(v >= v[i], axis=1) & np.any(v > v[i], axis=1)
+        assert not dom.any(), result.iloc[i]["grade"]
+    # and every non-Pareto row is dominated by someone
+    for i in np.flatnonzero(~par):
+        dom = np.all(v >= v[i], axis=1) & np.any(v > v[i], axis=1)
+        assert dom.any()
+
+
+def test_robust_subset_of_nominal():
+    p = prepare(30)
+    c = rank(p, TARGETS)
+    c_robust = rank(p, TARGETS, robust_only=True)
+    assert set(c_robust["variant"]) <= set(c["variant"])
+    assert set(c[c["robust"]]["variant"]) == set(c_robust["variant"])
+    assert len(c_robust) <= len(c)
+
+
+def test_tighter_target_never_adds_candidates():
+    p = prepare(30)
+    loose = rank(p, {"min_yield_mpa": 500})
+    tight = rank(p, {"min_yield_mpa": 900})
+    assert set(tight["variant"]) <= set(loose["variant"])
+    assert len(tight) < len(loose)
+
+
+def test_family_and_corrosion_filters():
+    r = selector.select({"min_yield_mpa": 200, "corrosion_resistant": True}, diameter_mm=20)
+    assert len(r) and r["family"].isin(["stainless_austenitic", "stainless_martensitic", "stainless_ph",
+                                        "aluminium", "copper_alloy", "titanium"]).all()
+    r2 = selector.select({"min_yield_mpa": 200, "families": ["alloy_steel"]}, diameter_mm=20)
+    assert len(r2) and (r2["family"] == "alloy_steel").all()
+
+
+def test_bad_targets():
+    with pytest.raises(InputError):
+        selector.select({"min_yeild_mpa": 500})
+    with pytest.raises(InputError):
+        selector.select({"min_yield_mpa": 900, "max_yield_mpa": 500})
+
+
+def test_nothing_meets_gives_nearest_misses():
+    impossible = {"min_yield_mpa": 2500, "min_elongation_pct": 30}
+    assert selector.select(impossible, diameter_mm=25).empty
+    miss = selector.nearest_misses(impossible, diameter_mm=25)
+    assert len(miss) > 0
+    assert "move_min_yield_mpa" in miss and "move_min_elongation_pct" in miss
+    assert (miss["move_min_yield_mpa"] >= 0).all()
+    assert miss["miss_score"].is_monotonic_increasing
+    # moving the targets by the reported amounts makes the first miss qualify
+    top = miss.iloc[0]
+    relaxed = {"min_yield_mpa": 2500 - top["move_min_yield_mpa"] - 1e-6,
+               "min_elongation_pct": 30 - top["move_min_elongation_pct"] - 1e-6}
+    ok = selector.select(relaxed, diameter_mm=25)
+    assert ((ok["grade"] == top["grade"]) & (ok["route_family"] == top["route_family"])).any()
+
+
+def test_alternatives_are_cheaper_and_sorted():
+    route = [{"op": "harden", "quench": "oil"}, {"op": "temper", "temp_c": 600, "hours": 2}]
+    alt = selector.alternatives("4340", route, diameter_mm=25)
+    ref = alt.attrs["reference"]
+    assert len(alt) > 0
+    assert (alt["relative_cost"] < ref["relative_cost"]).all()
+    assert alt["relative_cost"].is_monotonic_increasing
+    assert (alt["yield_mpa"] >= ref["yield_mpa"] - 1e-6).all()
+    assert (alt["elongation_pct"] >= ref["elongation_pct"] - 1e-6).all()
