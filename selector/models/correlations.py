@@ -1,0 +1,265 @@
+"""Strength–ductility correlations for quenched-and-tempered steels (fitted to handbook data).
+
+Given the tensile strength of a quenched-and-tempered (tempered-martensite) steel,
+estimate its yield strength, elongation and reduction of area.  The correlations are
+fitted by least squares, per family, to the fully hardened rows of
+``data/tempering_points.csv`` (ASM Metals Handbook Vol. 1 (1990) table of typical
+properties of quenched and tempered 25 mm bars, plus a 4340 vendor sheet):
+
+    yield        YS  = UTS · clip(r0 + r1·T/100, 0.50, 0.98)           (T = tempering °C)
+    elongation   EL  = exp(e0 + e1·UTS/1000)                           (% in 50 mm)
+    red. of area RA  = alloy_steel:  clip(q0 + q1·UTS/1000, 2, 80)
+                       carbon_steel: min(exp(q0 + q1·UTS/1000), RA_alloy(UTS))
+
+The exponential elongation form follows the proposal that total elongation is an
+exponential function of UTS for C–Mn and Q&T steels (Mater. Sci. Technol. 2025,
+doi 10.1177/02670836251331815; coefficients there not obtained, so fitted here).
+SAE J413 (1990) states that at equal hardness alloy steels show a higher reduction
+of area than plain-carbon steels; the carbon-steel RA is capped at the alloy-steel
+line to respect that where the carbon data (586–1120 MPa) would cross it.
+
+Families: ``carbon_steel``, ``alloy_steel``; ``carburizing_steel`` and
+``nitriding_steel`` (their cores) use the alloy-steel coefficients, and so does
+``stainless_martensitic`` (no martensitic-stainless rows were fitted: a documented
+approximation).
+
+Measured in the data (the reference sheet's YS/UTS "rising with tempering
+temperature" is not borne out by these rows): YS/UTS ≈ 0.90 for the alloy steels
+nearly independent of tempering temperature, ≈ 0.72–0.78 for the water-quenched
+carbon steels and falling slightly with tempering temperature.
+
+References
+----------
+ASM Metals Handbook Vol. 1 (1990), typical mechanical properties of quenched and
+tempered carbon and alloy steels (the fitted rows; see the CSV for confidence).
+SAE J413, Mechanical properties of heat treated wrought steels (1990) (qualitative
+statements only).
+"""
+from __future__ import annotations
+
+import functools
+
+import numpy as np
+
+from ..errors import InputError, check_choice
+from . import validity
+from .tempering import _points
+
+FAMILIES = ("carbon_steel", "alloy_steel", "carburizing_steel", "nitriding_steel", "stainless_martensitic")
+#: which fitted family each family uses
+FIT_FAMILY = {"carbon_steel": "carbon_steel", "alloy_steel": "alloy_steel",
+              "carburizing_steel": "alloy_steel", "nitriding_steel": "alloy_steel",
+              "stainless_martensitic": "alloy_steel"}
+RATIO_RANGE = (0.50, 0.98)
+RA_RANGE = (2.0, 80.0)
+
+
+@functools.cache
+def _rows(fit_family: str):
+    t = _points()
+    return t[t["fully_hardened"] & (t["family"] == fit_family) & t["uts_mpa"].notna()]
+
+
+def _lstsq(a, y):
+    coef, *_ = np.linalg.lstsq(a, y, rcond=None)
+    return tuple(float(c) for c in coef)
+
+
+@functools.cache
+def coefficients(fit_family: str) -> dict:
+    """Fitted coefficients of ``fit_family`` (``carbon_steel`` or ``alloy_steel``):
+    ``ratio`` (r0, r1), ``elongation`` (e0, e1), ``reduction_area`` (q0, q1), and the
+    UTS and tempering-temperature spans of the rows fitted."""
+    d = _rows(fit_family)
+    u = d["uts_mpa"].to_numpy(float) / 1000.0
+    tt = d["temp_c"].to_numpy(float) / 100.0
+    ratio = _lstsq(np.c_[np.ones_like(u), tt], d["yield_mpa"].to_numpy(float) / d["uts_mpa"].to_numpy(float))
+    m = d["elongation_pct"].notna().to_numpy()
+    el = _lstsq(np.c_[np.ones(m.sum()), u[m]], np.log(d["elongation_pct"].to_numpy(float)[m]))
+    ra_y = d["reduction_area_pct"].to_numpy(float)[m]
+    a = np.c_[np.ones(m.sum()), u[m]]
+    ra = _lstsq(a, np.log(ra_y)) if fit_family == "carbon_steel" else _lstsq(a, ra_y)
+    return {"ratio": ratio, "elongation": el, "reduction_area": ra, "n_rows": int(len(d)),
+            "uts_mpa": (float(d["uts_mpa"].min()), float(d["uts_mpa"].max())),
+            "temp_c": (float(d["temp_c"].min()), float(d["temp_c"].max()))}
+
+
+def _family(family):
+    fams = np.asarray(family)
+    for f in np.unique(fams):
+        check_choice("family", str(f), FAMILIES)
+    return fams
+
+
+def _by_family(family, uts_mpa, fn):
+    """Evaluate ``fn(fit_family, mask)`` for a scalar or array family."""
+    fams = _family(family)
+    if fams.ndim == 0:
+        return fn(FIT_FAMILY[str(fams)])
+    shape = np.broadcast(fams, uts_mpa).shape
+    out = np.full(shape, np.nan)
+    fb = np.broadcast_to(fams, shape)
+    for f in np.unique(fams):
+        m = fb == f
+        out[m] = np.broadcast_to(fn(FIT_FAMILY[str(f)]), shape)[m]
+    return out
+
+
+def _uts(uts_mpa):
+    u = np.asarray(uts_mpa, float)
+    if np.any(~np.isfinite(u)) or np.any(u <= 0):
+        raise InputError("uts_mpa", uts_mpa, "finite tensile strengths > 0 MPa")
+    return u
+
+
+def yield_from_uts(uts_mpa, temper_temp_c, family):
+    """Yield (0.2 % offset) strength of a Q&T steel from its tensile strength
+    (correlation fitted to the ASM Metals Handbook Vol. 1 (1990) Q&T table).
+
+    YS = UTS · clip(r0 + r1·T/100, 0.50, 0.98)
+
+    Parameters
+    ----------
+    uts_mpa : array_like
+        Tensile strength, MPa.
+    temper_temp_c : array_like
+        Tempering temperature, °C.
+    family : str or array of str
+        One of ``carbon_steel``, ``alloy_steel``, ``carburizing_steel``,
+        ``nitriding_steel``, ``stainless_martensitic`` (the last three use the
+        alloy-steel fit).
+
+    Returns
+    -------
+    ndarray
+        Yield strength, MPa; 0 < YS ≤ 0.98·UTS.
+
+    Validity
+    --------
+    Registered as ``qt_correlations``: the fitted UTS and tempering spans
+    (alloy steel 758–2220 MPa; carbon steel 586–1120 MPa; 205–650 °C).
+
+    References
+    ----------
+    ASM Metals Handbook Vol. 1 (1990) Q&T property table (fitted rows in
+    data/tempering_points.csv); SAE J413 (1990).
+    """
+    u = _uts(uts_mpa)
+    tt = np.asarray(temper_temp_c, float)
+    if np.any(~np.isfinite(tt)):
+        raise InputError("temper_temp_c", temper_temp_c, "finite temperatures, °C")
+
+    def f(fit):
+        r0, r1 = coefficients(fit)["ratio"]
+        return u * np.clip(r0 + r1 * tt / 100.0, *RATIO_RANGE)
+    return _by_family(family, np.empty(np.broadcast(u, tt).shape), f)
+
+
+def elongation_from_uts(uts_mpa, family):
+    """Tensile elongation (% in 50 mm) of a Q&T steel from its tensile strength
+    (exponential correlation fitted to the ASM Metals Handbook Vol. 1 (1990) Q&T table).
+
+    EL = exp(e0 + e1·UTS/1000)
+
+    Parameters
+    ----------
+    uts_mpa : array_like
+        Tensile strength, MPa.
+    family : str or array of str
+        As in :func:`yield_from_uts`.
+
+    Returns
+    -------
+    ndarray
+        Elongation, %.
+
+    Validity
+    --------
+    As :func:`yield_from_uts` (``qt_correlations``).
+
+    References
+    ----------
+    ASM Metals Handbook Vol. 1 (1990) Q&T table; exponential form after Mater. Sci.
+    Technol. (2025), doi 10.1177/02670836251331815.
+    """
+    u = _uts(uts_mpa)
+
+    def f(fit):
+        e0, e1 = coefficients(fit)["elongation"]
+        return np.exp(e0 + e1 * u / 1000.0)
+    return _by_family(family, u, f)
+
+
+def reduction_of_area_from_uts(uts_mpa, family):
+    """Reduction of area (%) of a Q&T steel from its tensile strength (correlation
+    fitted to the ASM Metals Handbook Vol. 1 (1990) Q&T table).
+
+    alloy steel:  RA = clip(q0 + q1·UTS/1000, 2, 80)
+    carbon steel: RA = min(exp(q0 + q1·UTS/1000), RA_alloy(UTS))   (SAE J413: alloy ≥ carbon)
+
+    Parameters
+    ----------
+    uts_mpa : array_like
+        Tensile strength, MPa.
+    family : str or array of str
+        As in :func:`yield_from_uts`.
+
+    Returns
+    -------
+    ndarray
+        Reduction of area, %.
+
+    Validity
+    --------
+    As :func:`yield_from_uts` (``qt_correlations``).
+
+    References
+    ----------
+    ASM Metals Handbook Vol. 1 (1990) Q&T table; SAE J413 (1990).
+    """
+    u = _uts(uts_mpa)
+
+    def alloy():
+        q0, q1 = coefficients("alloy_steel")["reduction_area"]
+        return np.clip(q0 + q1 * u / 1000.0, *RA_RANGE)
+
+    def f(fit):
+        if fit == "alloy_steel":
+            return alloy()
+        q0, q1 = coefficients("carbon_steel")["reduction_area"]
+        return np.clip(np.minimum(np.exp(q0 + q1 * u / 1000.0), alloy()), *RA_RANGE)
+    return _by_family(family, u, f)
+
+
+def fit_report() -> dict:
+    """Per-family errors of the three correlations on the fitted rows:
+    yield (median and max relative error), elongation and RA (median and max
+    absolute error, percentage points)."""
+    out = {}
+    for fit in ("carbon_steel", "alloy_steel"):
+        d = _rows(fit)
+        u, tt = d["uts_mpa"].to_numpy(float), d["temp_c"].to_numpy(float)
+        ys = d["yield_mpa"].to_numpy(float)
+        e_ys = np.abs(yield_from_uts(u, tt, fit) - ys) / ys
+        m = d["elongation_pct"].notna().to_numpy()
+        e_el = np.abs(elongation_from_uts(u[m], fit) - d["elongation_pct"].to_numpy(float)[m])
+        e_ra = np.abs(reduction_of_area_from_uts(u[m], fit) - d["reduction_area_pct"].to_numpy(float)[m])
+        out[fit] = {"n_rows": int(len(d)),
+                    "yield_rel": (float(np.median(e_ys)), float(np.max(e_ys))),
+                    "elongation_pts": (float(np.median(e_el)), float(np.max(e_el))),
+                    "reduction_area_pts": (float(np.median(e_ra)), float(np.max(e_ra)))}
+    return out
+
+
+def _register():
+    c, a = coefficients("carbon_steel"), coefficients("alloy_steel")
+    ref = ("fitted to data/tempering_points.csv (ASM Metals Handbook Vol. 1 Q&T table); "
+           "carbon steel UTS {:.0f}–{:.0f} MPa".format(*c["uts_mpa"]))
+    validity.register("qt_correlations", {
+        "uts_mpa": (a["uts_mpa"][0], a["uts_mpa"][1], "MPa"),
+        "temper_temp_c": (min(a["temp_c"][0], c["temp_c"][0]), max(a["temp_c"][1], c["temp_c"][1]), "°C"),
+    }, ref)
+    validity.register("qt_correlations_carbon", {"uts_mpa": (c["uts_mpa"][0], c["uts_mpa"][1], "MPa")}, ref)
+
+
+_register()
