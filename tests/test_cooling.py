@@ -1,0 +1,134 @@
+"""Tests of the Fourier-Bessel quench-cooling series and the Jominy equivalence."""
+import numpy as np
+import pytest
+from scipy.linalg import solve_banded
+
+from selector.errors import InputError
+from selector.models import cooling
+
+
+def test_eigenvalues_and_one_term_coefficients_against_textbook_table():
+    # One-term coefficients for transient conduction (Incropera & DeWitt, Fundamentals of Heat and
+    # Mass Transfer, Table 5.1; from memory, 4 significant figures):
+    # cylinder Bi=1: zeta1 = 1.2558, C1 = 1.2071; Bi=inf: 2.4050, 1.6018; plate Bi=1: 0.8603, 1.1191.
+    lam = cooling.eigenvalues("cylinder", np.array([1.0, np.inf]), 4)
+    c = cooling._coefficients("cylinder", lam)
+    assert lam[0, 0] == pytest.approx(1.2558, abs=2e-4)
+    assert c[0, 0] == pytest.approx(1.2071, abs=2e-4)
+    assert lam[1, 0] == pytest.approx(2.4050, abs=3e-4)
+    assert c[1, 0] == pytest.approx(1.6018, abs=3e-4)
+    lp = cooling.eigenvalues("plate", 1.0, 4)
+    assert lp[0] == pytest.approx(0.8603, abs=2e-4)
+    assert cooling._coefficients("plate", lp)[0] == pytest.approx(1.1191, abs=2e-4)
+    # the roots satisfy their equations
+    lam = cooling.eigenvalues("cylinder", 3.7, 50)
+    from scipy import special
+    assert np.max(np.abs(lam * special.j1(lam) - 3.7 * special.j0(lam))) < 1e-9
+
+
+def test_centre_temperature_matches_one_term_solution_at_large_fo():
+    # At Fo = 0.3 the higher terms are below 1e-4, so the series equals the one-term (Heisler)
+    # solution theta0 = C1 exp(-zeta1^2 Fo) (Incropera Table 5.1, Bi = inf: 1.6018, 2.4050).
+    th = cooling.theta("cylinder", np.inf, 0.0, 0.3)
+    assert th == pytest.approx(1.6018 * np.exp(-2.4050 ** 2 * 0.3), rel=2e-3)
+    # initial condition is reproduced in the interior at tiny Fo
+    assert cooling.theta("cylinder", 5.0, 0.5, 1e-5) == pytest.approx(1.0, abs=2e-3)
+
+
+def _fd_cylinder(bi, fo_end, n=200, steps=1500):
+    """Crank-Nicolson finite-volume solution of the cylinder problem (reference)."""
+    r = (np.arange(n) + 0.5) / n
+    dr = 1.0 / n
+    rf = np.arange(n + 1) / n               # faces
+    theta = np.ones(n)
+    dt = fo_end / steps
+    # conductances between cells, Robin condition at r = 1 via a half-cell resistance
+    g = rf[1:-1] / dr
+    gs = 1.0 / (0.5 * dr / rf[-1] + 1.0 / (bi * rf[-1]))
+    vol = r * dr
+    a = np.zeros((3, n))
+    diag = np.zeros(n)
+    diag[:-1] += g
+    diag[1:] += g
+    diag[-1] += gs
+    a[0, 1:] = -0.5 * dt * g / vol[:-1]
+    a[2, :-1] = -0.5 * dt * g / vol[1:]
+    a[1] = 1 + 0.5 * dt * diag / vol
+    for _ in range(steps):
+        flux = np.zeros(n)
+        flux[:-1] += g * (theta[1:] - theta[:-1])
+        flux[1:] -= g * (theta[1:] - theta[:-1])
+        flux[-1] -= gs * theta[-1]
+        theta = solve_banded((1, 1), a, theta + 0.5 * dt * flux / vol)
+    return r, theta
+
+
+def test_series_matches_finite_difference_cylinder():
+    # Independent reference: a Crank-Nicolson finite-volume solution of the same problem.
+    bi, fo = 2.5, 0.08
+    r, th_fd = _fd_cylinder(bi, fo)
+    th_series = cooling.theta("cylinder", bi, r, fo)
+    assert np.max(np.abs(th_series - th_fd)) < 0.01      # within 1 % of the initial difference
+    # and the time derivative (the cooling rate) agrees within 2 % at the centre
+    _, th_fd2 = _fd_cylinder(bi, fo * 1.02)
+    rate_fd = (th_fd[0] - th_fd2[0]) / (0.02 * fo)
+    rate_series = -(cooling.theta("cylinder", bi, r[0], fo * 1.001) - cooling.theta("cylinder", bi, r[0], fo * 0.999)) / (0.002 * fo)
+    assert rate_fd == pytest.approx(rate_series, rel=0.02)
+
+
+def test_surface_cools_faster_than_centre_and_rates_fall_with_size():
+    pos = (1.0, 0.75, 0.5, 0.25, 0.0)
+    h = np.array([800.0, 2700.0, 8000.0])
+    for kw in ({"diameter_mm": 50.0}, {"thickness_mm": 50.0}):
+        rate = cooling.cooling_rate_at_c_s(h, positions=pos, austenitize_c=850.0, **kw)
+        assert rate.shape == (3, 5)
+        assert np.all(np.diff(rate, axis=1) <= 1e-9)           # surface -> centre: slower
+        assert np.all(np.diff(rate, axis=0) > 0)               # more severe quench: faster
+    d = np.array([10.0, 25.0, 50.0, 100.0, 200.0])
+    rc = cooling.cooling_rate_at_c_s(2700.0, diameter_mm=d, austenitize_c=850.0)[:, -1]
+    assert np.all(np.diff(rc) < 0)
+    # a plate of thickness t cools its mid-plane slower than a bar of diameter t
+    bar = cooling.cooling_rate_at_c_s(2700.0, diameter_mm=50.0)[..., -1]
+    plate = cooling.cooling_rate_at_c_s(2700.0, thickness_mm=50.0)[..., -1]
+    assert plate < bar
+
+
+def test_table_agrees_with_exact_series():
+    rng = np.random.default_rng(1)
+    h = 10 ** rng.uniform(1.5, 4.3, 40)
+    d = rng.uniform(5, 250, 40)
+    t0 = rng.uniform(780, 950, 40)
+    a = cooling.cooling_rate_at_c_s(h, diameter_mm=d, austenitize_c=t0)
+    b = cooling.cooling_rate_at_c_s(h, diameter_mm=d, austenitize_c=t0, exact=True)
+    assert np.max(np.abs(a / b - 1)) < 0.02
+
+
+def test_lumped_limit_for_air_cooling():
+    # Bi << 1: the bar cools as a lump, dT/dt = 2h (T - Tb) / (rho c R) (exact limit of the series)
+    h, d = 70.0, 20.0
+    rate = cooling.cooling_rate_at_c_s(h, diameter_mm=d, austenitize_c=850.0, exact=True)
+    lumped = 2 * h * (700 - cooling.BATH_C) / (cooling.RHO_C_J_M3K * d / 2e3)
+    assert rate[..., -1] == pytest.approx(lumped, rel=0.01)
+
+
+def test_jominy_equivalence_interpolates_the_table_and_inverts():
+    # Jominy cooling rates at 705 C (Callister Fig. 14.9 axis): 70 C/s at J4 (6.35 mm), 9 C/s at J12.
+    assert cooling.jominy_equivalent_mm(70.0) == pytest.approx(6.35, rel=1e-6)
+    assert cooling.jominy_equivalent_mm(9.0) == pytest.approx(19.05, rel=1e-6)
+    r = np.array([500.0, 100.0, 20.0, 5.0, 1.0, 0.1])
+    d = cooling.jominy_equivalent_mm(r)
+    assert np.all(np.diff(d) > 0)
+    assert d[0] == pytest.approx(1.5875) and d[-1] == cooling.JOMINY_MAX_MM
+    with pytest.raises(InputError):
+        cooling.jominy_equivalent_mm(-1.0)
+
+
+def test_bad_input():
+    with pytest.raises(InputError):
+        cooling.cooling_rate_at_c_s(1000.0)
+    with pytest.raises(InputError):
+        cooling.cooling_rate_at_c_s(1000.0, diameter_mm=10.0, thickness_mm=10.0)
+    with pytest.raises(InputError):
+        cooling.cooling_rate_at_c_s(1000.0, diameter_mm=-5.0)
+    with pytest.raises(InputError):
+        cooling.cooling_rate_at_c_s(1000.0, diameter_mm=5.0, austenitize_c=650.0)
