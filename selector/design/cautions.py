@@ -1,0 +1,473 @@
+"""Metallurgical cautions attached to candidates and their routes.
+
+Each caution is a short rule with its reason, its trigger and its source.  The
+words live in ``data/cautions.csv`` (one row per rule); the trigger of each rule is
+a vectorised function in :data:`TRIGGERS` under the same code, evaluated on a
+states or candidates table (one row per grade x route x parameter point)::
+
+    mask = trigger(frame, context)    # numpy bool array, one value per row
+
+The columns read are those of the states table: ``grade``, ``family``, ``route``
+(the route family; a candidates table from ``select`` carries it as
+``route_family``), ``quench``, ``temper_temp_c``, ``age_temp_c``, ``peak_ratio``,
+``designation``, ``c_pct``, ``hardness_hrc``, ``surface_hardness_hrc``,
+``uts_mpa``.  ``grade`` and ``family`` are required; a missing optional column
+counts as "not applicable" (NaN or empty), since a table that joins several route
+families leaves the columns of the others empty.
+
+The rules (thresholds and sources in ``data/cautions.csv``):
+
+=======================  =====================================================
+tme                      hardened steel tempered at 260-370 °C
+hydrogen_embrittlement   plated steel (not austenitic) at >= 320 HV core or
+                         surface (32.2 HRC, ASTM E140) or >= 1000 MPa
+                         (ISO 4042:1999 §6)
+quench_cracking          water/brine quench of alloy steel with C >= 0.35 %
+                         or of carbon steel with C >= 0.60 %
+decarburization          steel with C >= 0.30 % austenitized on a
+                         quench_temper, normalize or anneal route
+over_aging               peak_ratio > 1, except standard over-aged tempers
+scc_7xxx_t6              7xxx aluminium in a T6-type temper
+galvanic                 anodic-index difference to the named mating material
+                         above 0.15 / 0.25 / 0.50 V (harsh / normal /
+                         controlled), MIL-DTL-14072 Table VI groups
+service_temperature      service temperature >= tempering or aging
+                         temperature - 50 °C
+=======================  =====================================================
+
+Results are estimates for preliminary selection.  The final choice needs
+certified material test reports, the applicable design code and review by a
+qualified engineer.
+
+References
+----------
+ISO 4042:1999, Fasteners — Electroplated coatings, §6 and Annex A (hydrogen
+embrittlement relief).  MIL-DTL-14072F, Finishes for ground based electronic
+equipment, §3.13 and Table VI (intermetallic couples).  ASTM G64, Classification
+of resistance to stress-corrosion cracking of heat-treatable aluminum alloys.
+ASTM E140-12b Table 1 (HV to HRC).  ASM Handbook Vol. 1 (1990) and Vol. 4 (1991)
+(from memory; see the rows of ``data/cautions.csv``).
+"""
+from __future__ import annotations
+
+import functools
+import re
+from dataclasses import dataclass
+from types import MappingProxyType
+from typing import Callable, Mapping
+
+import numpy as np
+import pandas as pd
+
+from ..catalogue.loader import CONFIDENCE, Column, Schema, read_table
+from ..errors import DataFileError, InputError, UnknownGradeError, check_choice, check_number, nearest
+from ..models import conversions
+
+CAUTIONS_FILE = "cautions.csv"
+GALVANIC_FILE = "galvanic_series.csv"
+
+NOTICE = ("Results are estimates for preliminary selection. The final choice needs certified "
+          "material test reports, the applicable design code and review by a qualified engineer.")
+
+# --- thresholds (each with its source; the words are in data/cautions.csv) -------------------
+
+#: tempered-martensite embrittlement range, °C (ASM Handbook Vol. 1, from memory; partial)
+TME_RANGE_C = (260.0, 370.0)
+#: hardness above which ISO 4042:1999 §6 asks for hydrogen-embrittlement process control, HV
+HE_HARDNESS_HV = 320.0
+#: the same limit on the Rockwell C scale (ASTM E140-12b Table 1 interpolation: 32.2 HRC)
+HE_HARDNESS_HRC = float(conversions.hv_to_hrc(HE_HARDNESS_HV))
+#: tensile strength from which ISO 15330 / ISO 9587 treat steel as susceptible, MPa
+HE_UTS_MPA = 1000.0
+#: carbon from which a water or brine quench is a cracking risk, wt % (common practice)
+QUENCH_CRACK_C_PCT = {"alloy_steel": 0.35, "nitriding_steel": 0.35, "carbon_steel": 0.60}
+SEVERE_QUENCHES = ("water", "brine")
+#: carbon from which decarburization matters, wt % (common practice)
+DECARB_C_PCT = 0.30
+#: margin between service and tempering/aging temperature, °C (common practice)
+SERVICE_MARGIN_C = 50.0
+#: largest anodic-index difference by environment, V (common practice, see data/cautions.csv)
+GALVANIC_LIMITS_V = MappingProxyType({"harsh": 0.15, "normal": 0.25, "controlled": 0.50})
+
+HARDENED_STEELS = ("carbon_steel", "alloy_steel", "carburizing_steel", "nitriding_steel")
+HARDENING_ROUTES = ("quench_temper", "induction", "carburize")
+HE_FAMILIES = ("carbon_steel", "alloy_steel", "carburizing_steel", "nitriding_steel",
+               "stainless_martensitic", "stainless_ph")
+DECARB_FAMILIES = ("carbon_steel", "alloy_steel", "carburizing_steel", "nitriding_steel",
+                   "stainless_martensitic")
+DECARB_ROUTES = ("quench_temper", "normalize", "anneal")
+
+_OVERAGED_AL = re.compile(r"^T7\d*", re.I)           # T73, T7351, T76, T74 ...
+_PH_H = re.compile(r"^H(\d{3,4})", re.I)               # H900 ... H1150
+_T6 = re.compile(r"^T6\d*$", re.I)                     # T6, T651, T6511
+_SERIES_7XXX = re.compile(r"^7\d{3}")
+
+
+# --- the frame, read once -------------------------------------------------------------------
+
+class _Frame:
+    """Column arrays of a states/candidates table, with defaults for absent columns."""
+
+    def __init__(self, frame: pd.DataFrame):
+        if not isinstance(frame, pd.DataFrame):
+            raise InputError("frame", type(frame).__name__, "a pandas DataFrame (states or candidates table)")
+        missing = [c for c in ("grade", "family") if c not in frame.columns]
+        if missing:
+            raise InputError("frame", f"columns {list(frame.columns)}",
+                             f"a table with the columns grade and family (missing: {', '.join(missing)})")
+        self.n = len(frame)
+        self.grade = self._str(frame, "grade")
+        self.family = self._str(frame, "family")
+        route_col = "route_family" if "route_family" in frame.columns else "route"
+        self.route = self._str(frame, route_col)
+        self.quench = np.char.lower(self._str(frame, "quench").astype(str))
+        self.designation = self._str(frame, "designation")
+        for col in ("temper_temp_c", "age_temp_c", "peak_ratio", "c_pct", "hardness_hrc",
+                    "surface_hardness_hrc", "uts_mpa"):
+            setattr(self, col, self._num(frame, col))
+
+    def _str(self, frame, col) -> np.ndarray:
+        if col not in frame.columns:
+            return np.full(self.n, "", dtype=object)
+        s = frame[col]
+        out = s.where(s.notna(), "").astype(str).str.strip().to_numpy(dtype=object)
+        return out
+
+    def _num(self, frame, col) -> np.ndarray:
+        if col not in frame.columns:
+            return np.full(self.n, np.nan)
+        return pd.to_numeric(frame[col], errors="coerce").to_numpy(float)
+
+    def isin(self, attr: str, values) -> np.ndarray:
+        return np.isin(getattr(self, attr).astype(str), list(values))
+
+
+def _ge(x: np.ndarray, lim) -> np.ndarray:
+    """x >= lim with NaN counted False (no comparison warning)."""
+    with np.errstate(invalid="ignore"):
+        return np.nan_to_num(x, nan=-np.inf) >= lim
+
+
+# --- triggers: (frame, context) -> bool mask ------------------------------------------------
+
+def _tme(f: _Frame, ctx: dict) -> np.ndarray:
+    lo, hi = TME_RANGE_C
+    t = f.temper_temp_c
+    with np.errstate(invalid="ignore"):
+        in_range = (t >= lo) & (t <= hi)
+    return f.isin("family", HARDENED_STEELS) & f.isin("route", HARDENING_ROUTES) & in_range
+
+
+def _hydrogen(f: _Frame, ctx: dict) -> np.ndarray:
+    if not ctx["plated"]:
+        return np.zeros(f.n, bool)
+    strong = (_ge(f.hardness_hrc, HE_HARDNESS_HRC) | _ge(f.surface_hardness_hrc, HE_HARDNESS_HRC)
+              | _ge(f.uts_mpa, HE_UTS_MPA))
+    return f.isin("family", HE_FAMILIES) & strong
+
+
+def _quench_cracking(f: _Frame, ctx: dict) -> np.ndarray:
+    severe = np.array([q.split("_")[0].split(" ")[0] in SEVERE_QUENCHES for q in f.quench], bool)
+    limit = np.array([QUENCH_CRACK_C_PCT.get(fam, np.inf) for fam in f.family], float)
+    return severe & _ge(f.c_pct - limit, -1e-9)
+
+
+def _decarb(f: _Frame, ctx: dict) -> np.ndarray:
+    return f.isin("family", DECARB_FAMILIES) & f.isin("route", DECARB_ROUTES) & _ge(f.c_pct, DECARB_C_PCT - 1e-9)
+
+
+def _deliberately_overaged(designation: str, family: str) -> bool:
+    if family == "aluminium":
+        return bool(_OVERAGED_AL.match(designation))
+    m = _PH_H.match(designation)
+    return family == "stainless_ph" and bool(m) and int(m.group(1)) >= 1025
+
+
+def _over_aging(f: _Frame, ctx: dict) -> np.ndarray:
+    with np.errstate(invalid="ignore"):
+        past = np.nan_to_num(f.peak_ratio, nan=0.0) > 1.0
+    if not past.any():
+        return past
+    exempt = np.array([_deliberately_overaged(d, fam) for d, fam in zip(f.designation, f.family)], bool)
+    return past & ~exempt
+
+
+def _scc_7xxx(f: _Frame, ctx: dict) -> np.ndarray:
+    series = np.array([bool(_SERIES_7XXX.match(g)) for g in f.grade], bool)
+    t6 = np.array([bool(_T6.match(d)) for d in f.designation], bool)
+    return (f.family == "aluminium") & series & t6
+
+
+def _galvanic(f: _Frame, ctx: dict) -> np.ndarray:
+    mate = ctx.get("mating")
+    if mate is None:
+        return np.zeros(f.n, bool)
+    own = ctx["own_index"]
+    with np.errstate(invalid="ignore"):
+        return np.nan_to_num(np.abs(own - mate["anodic_index_v"]), nan=0.0) > ctx["galvanic_limit_v"] + 1e-9
+
+
+def _service_temperature(f: _Frame, ctx: dict) -> np.ndarray:
+    ts = ctx.get("service_temp_c")
+    if ts is None:
+        return np.zeros(f.n, bool)
+    return _ge(ts - f.temper_temp_c, -SERVICE_MARGIN_C - 1e-9) | _ge(ts - f.age_temp_c, -SERVICE_MARGIN_C - 1e-9)
+
+
+# --- per-row detail appended to a reason (optional) ----------------------------------------
+
+def _galvanic_detail(f: _Frame, ctx: dict, i: int) -> str:
+    mate, own = ctx["mating"], float(ctx["own_index"][i])
+    anode = "this part" if own > mate["anodic_index_v"] else f"the mating {mate['name']}"
+    return (f" Anodic index {own:.2f} V ({ctx['own_category'][i]}) against {mate['anodic_index_v']:.2f} V "
+            f"({mate['category']}): difference {abs(own - mate['anodic_index_v']):.2f} V > "
+            f"{ctx['galvanic_limit_v']:.2f} V ({ctx['environment']} environment); {anode} is the anode.")
+
+
+def _service_detail(f: _Frame, ctx: dict, i: int) -> str:
+    temps = [f"{name} {t:g} °C" for name, t in (("tempered at", f.temper_temp_c[i]), ("aged at", f.age_temp_c[i]))
+             if t == t]
+    return f" Service {ctx['service_temp_c']:g} °C; {' and '.join(temps)}."
+
+
+TRIGGERS: Mapping[str, Callable] = MappingProxyType({
+    "tme": _tme,
+    "hydrogen_embrittlement": _hydrogen,
+    "quench_cracking": _quench_cracking,
+    "decarburization": _decarb,
+    "over_aging": _over_aging,
+    "scc_7xxx_t6": _scc_7xxx,
+    "galvanic": _galvanic,
+    "service_temperature": _service_temperature,
+})
+_DETAILS: Mapping[str, Callable] = MappingProxyType({
+    "galvanic": _galvanic_detail,
+    "service_temperature": _service_detail,
+})
+
+
+# --- the registry ----------------------------------------------------------------------------
+
+@dataclass(frozen=True)
+class Caution:
+    """One rule: its words (from ``data/cautions.csv``) and its trigger."""
+
+    code: str
+    title: str
+    rule: str
+    reason: str
+    trigger_text: str
+    source: str
+    confidence: str
+    trigger: Callable
+
+    def mask(self, frame: pd.DataFrame, **context) -> np.ndarray:
+        """Boolean mask of the rows of ``frame`` where this caution fires."""
+        f = _Frame(frame)
+        return self.trigger(f, _context(f, **context))
+
+
+_CAUTION_SCHEMA = Schema((
+    Column("code"), Column("title"), Column("rule"), Column("reason"), Column("trigger"),
+    Column("source"), Column("confidence", "choice", choices=CONFIDENCE),
+))
+
+_GALVANIC_SCHEMA = Schema((
+    Column("category"), Column("description"), Column("anodic_index_v", "float", lo=0.0, hi=3.0),
+    Column("members"), Column("source"), Column("confidence", "choice", choices=CONFIDENCE),
+))
+
+
+def _load_cautions() -> Mapping[str, Caution]:
+    df = read_table(CAUTIONS_FILE, _CAUTION_SCHEMA)
+    out = {}
+    for r in df.itertuples(index=False):
+        if r.code in out:
+            raise DataFileError(CAUTIONS_FILE, r.line, "code", f"{r.code!r} appears twice")
+        if r.code not in TRIGGERS:
+            raise DataFileError(CAUTIONS_FILE, r.line, "code",
+                                f"{r.code!r} has no trigger; triggers exist for: {', '.join(TRIGGERS)}")
+        out[r.code] = Caution(r.code, r.title, r.rule, r.reason, r.trigger, r.source, r.confidence,
+                              TRIGGERS[r.code])
+    lacking = [c for c in TRIGGERS if c not in out]
+    if lacking:
+        raise DataFileError(CAUTIONS_FILE, None, "code", f"no row for the trigger(s): {', '.join(lacking)}")
+    return MappingProxyType(out)
+
+
+#: every caution, by code (loaded once from data/cautions.csv)
+CAUTIONS: Mapping[str, Caution] = _load_cautions()
+
+
+def _norm(name: str) -> str:
+    return re.sub(r"[\s\-_./]", "", str(name).lower())
+
+
+@functools.cache
+def galvanic_series() -> pd.DataFrame:
+    """``data/galvanic_series.csv`` validated: one row per group with ``anodic_index_v``."""
+    df = read_table(GALVANIC_FILE, _GALVANIC_SCHEMA)
+    seen = {}
+    for r in df.itertuples(index=False):
+        for m in str(r.members).split(";"):
+            k = _norm(m)
+            if not k:
+                continue
+            if k in seen:
+                raise DataFileError(GALVANIC_FILE, r.line, "members",
+                                    f"{m.strip()!r} is already a member of {seen[k]!r}")
+            seen[k] = r.category
+    return df
+
+
+@functools.cache
+def _member_index() -> Mapping[str, dict]:
+    out = {}
+    for r in galvanic_series().itertuples(index=False):
+        rec = {"category": r.category, "description": r.description,
+               "anodic_index_v": float(r.anodic_index_v), "source": r.source, "confidence": r.confidence}
+        for m in str(r.members).split(";"):
+            if _norm(m):
+                out[_norm(m)] = rec
+    return MappingProxyType(out)
+
+
+def _grade_keys(grade: str, family: str):
+    """Keys tried in order for a catalogue grade: its id, its aluminium series, its family."""
+    g = _norm(grade)
+    keys = [g]
+    if family == "aluminium" and g[:1].isdigit():
+        keys.append(g[0] + "xxx")
+    keys.append(_norm(family))
+    return keys
+
+
+def _lookup_grade(grade: str, family: str) -> dict | None:
+    idx = _member_index()
+    for k in _grade_keys(grade, family):
+        if k in idx:
+            return idx[k]
+    return None
+
+
+_TEMPER_SUFFIX = re.compile(r"(t\d+|h\d+|o|f)$")
+
+
+def anodic_index(material: str) -> dict:
+    """The galvanic group of a material name: a catalogue grade (``"6061"``,
+    ``"AISI 4140"``, ``"C26000"``) or a plain name (``"brass"``, ``"zinc plated"``,
+    ``"cast iron"``).  Returns ``category``, ``description``, ``anodic_index_v``,
+    ``source``, ``confidence`` and ``name``.  An unknown name raises
+    :class:`InputError` listing the nearest accepted names.
+
+    Reference: MIL-DTL-14072F §3.13 and Table VI (see ``data/galvanic_series.csv``).
+    """
+    if not isinstance(material, str) or not material.strip():
+        raise InputError("mating_material", material, "a material name, e.g. 'brass', '6061', 'steel'")
+    idx = _member_index()
+    k = _norm(material)
+    tries = [k]
+    stripped = _TEMPER_SUFFIX.sub("", k)
+    if stripped and stripped != k:
+        tries.append(stripped)
+    for t in tries:
+        if t in idx:
+            return {**idx[t], "name": material.strip()}
+    from ..catalogue.grades import default_catalogue   # the catalogue is optional here
+    for t in dict.fromkeys([material.strip(), re.sub(r"[-\s]?(T\d+|H\d+|O)$", "", material.strip(), flags=re.I)]):
+        try:
+            g = default_catalogue().lookup(t)
+        except (UnknownGradeError, DataFileError):
+            continue
+        rec = _lookup_grade(g.id, g.family)
+        if rec is not None:
+            return {**rec, "name": material.strip()}
+    names = sorted({m.strip() for ms in galvanic_series()["members"] for m in ms.split(";")
+                    if m.strip() and "_" not in m})
+    near = nearest(material, names, n=4)
+    hint = "a catalogue grade or one of: " + ", ".join(names)
+    if near:
+        hint += f" (did you mean {', '.join(near)}?)"
+    raise InputError("mating_material", material, hint)
+
+
+def _context(f: _Frame, plated=False, mating_material=None, service_temp_c=None,
+             environment: str = "normal", plating: str | None = None) -> dict:
+    if not isinstance(plated, (bool, np.bool_)):
+        raise InputError("plated", plated, "True or False")
+    env = check_choice("environment", environment, tuple(GALVANIC_LIMITS_V))
+    ctx = {"plated": bool(plated), "environment": env, "galvanic_limit_v": GALVANIC_LIMITS_V[env],
+           "service_temp_c": None, "mating": None}
+    if service_temp_c is not None:
+        ctx["service_temp_c"] = check_number("service_temp_c", service_temp_c, -273.15, 1500.0)
+    if plating is not None and not plated:
+        raise InputError("plating", plating, "a plating name only together with plated=True")
+    if mating_material is not None:
+        ctx["mating"] = anodic_index(mating_material)
+        if plated and plating is not None:
+            p = anodic_index(plating)
+            own = np.full(f.n, p["anodic_index_v"])
+            cat = np.full(f.n, f"{p['category']} plating", dtype=object)
+        else:
+            recs = [_lookup_grade(g, fam) for g, fam in zip(f.grade, f.family)]
+            own = np.array([np.nan if r is None else r["anodic_index_v"] for r in recs], float)
+            cat = np.array(["unknown" if r is None else r["category"] for r in recs], dtype=object)
+        ctx["own_index"], ctx["own_category"] = own, cat
+    return ctx
+
+
+def caution_masks(frame: pd.DataFrame, **context) -> pd.DataFrame:
+    """One boolean column per caution code (same index as ``frame``)."""
+    f = _Frame(frame)
+    ctx = _context(f, **context)
+    return pd.DataFrame({code: np.asarray(c.trigger(f, ctx), bool) for code, c in CAUTIONS.items()},
+                        index=frame.index)
+
+
+def cautions_for(frame: pd.DataFrame, plated: bool = False, mating_material: str | None = None,
+                 service_temp_c: float | None = None, environment: str = "normal",
+                 plating: str | None = None) -> list[list[dict]]:
+    """The cautions that apply to each row of ``frame``.
+
+    Parameters
+    ----------
+    frame : pandas.DataFrame
+        States or candidates table (see the module docstring for its columns).
+    plated : bool
+        The part will be electroplated (hydrogen-embrittlement rule; for the
+        galvanic rule the plating, when named, replaces the base metal).
+    mating_material : str, optional
+        The material the part touches: a catalogue grade or a plain name (see
+        :func:`anodic_index`).
+    service_temp_c : float, optional
+        Highest service temperature, °C.
+    environment : str
+        ``harsh``, ``normal`` (default) or ``controlled``: the galvanic limit.
+    plating : str, optional
+        The plating metal (``"zinc plated"``, ``"nickel plated"`` ...), with ``plated=True``.
+
+    Returns
+    -------
+    list of list of dict
+        One list per row, each caution as ``{"code", "title", "reason"}`` in the
+        order of ``data/cautions.csv``.
+    """
+    f = _Frame(frame)
+    ctx = _context(f, plated=plated, mating_material=mating_material, service_temp_c=service_temp_c,
+                   environment=environment, plating=plating)
+    out: list[list[dict]] = [[] for _ in range(f.n)]
+    for code, c in CAUTIONS.items():
+        mask = np.asarray(c.trigger(f, ctx), bool)
+        detail = _DETAILS.get(code)
+        for i in np.flatnonzero(mask):
+            reason = c.reason + (detail(f, ctx, int(i)) if detail else "")
+            out[int(i)].append({"code": code, "title": c.title, "reason": reason})
+    return out
+
+
+def caution_column(frame: pd.DataFrame, **context) -> pd.Series:
+    """The titles of the cautions of each row joined with ``"; "`` ("" for none),
+    indexed like ``frame``: a column for result tables."""
+    lists = cautions_for(frame, **context)
+    return pd.Series(["; ".join(d["title"] for d in row) for row in lists], index=frame.index,
+                     name="cautions", dtype=object)
