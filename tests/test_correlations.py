@@ -115,7 +115,17 @@ def test_bad_input():
     with pytest.raises(InputError, match="uts_mpa"):
         cr.elongation_from_uts(-5.0, "alloy_steel")
     with pytest.raises(InputError, match="temper_temp_c"):
-        cr.yield_from_uts(1000.0, np.nan, "alloy_steel")
+        cr.yield_from_uts(1000.0, np.inf, "alloy_steel")
+    with pytest.raises(InputError, match="uts_mpa"):
+        cr.reduction_of_area_from_uts(np.array([900.0, 0.0]), "carbon_steel")
+
+
+def test_nan_propagates():
+    # NaN marks "no value" (e.g. a hardness above the A370 strength column)
+    out = cr.elongation_from_uts(np.array([np.nan, 1000.0]), "alloy_steel")
+    assert np.isnan(out[0]) and np.isfinite(out[1])
+    assert np.isnan(cr.yield_from_uts(1000.0, np.nan, "alloy_steel"))
+    assert np.isnan(cr.reduction_of_area_from_uts(np.nan, "carbon_steel"))
 
 
 def test_fit_statistics_match_documented_values():

@@ -61,6 +61,16 @@ def test_bad_input_raises_input_error():
         tp.hollomon_jaffe_parameter(-300.0, 1.0, 20.0)
     with pytest.raises(InputError, match="C"):
         tp.tempered_martensite_hv({"C": -0.1}, 500.0, 1.0)
+    with pytest.raises(InputError, match="hardness_hv_as_quenched"):
+        tp.tempered_hv(-5.0, 600.0, C4140, 500.0, 1.0)
+
+
+def test_nan_propagates():
+    # NaN marks "no value" in the vectorised catalogue
+    out = tp.tempered_martensite_hv({"C": np.array([0.4, np.nan])}, 500.0, 1.0)
+    assert np.isfinite(out[0]) and np.isnan(out[1])
+    out = tp.tempered_hv(np.array([500.0, np.nan]), 600.0, C4140, 500.0, 1.0)
+    assert np.isfinite(out[0]) and np.isnan(out[1])
 
 
 # --- physical behaviour ------------------------------------------------------------

@@ -106,9 +106,10 @@ def _by_family(family, uts_mpa, fn):
 
 
 def _uts(uts_mpa):
+    """NaN (no value) propagates; infinite or non-positive strengths raise."""
     u = np.asarray(uts_mpa, float)
-    if np.any(~np.isfinite(u)) or np.any(u <= 0):
-        raise InputError("uts_mpa", uts_mpa, "finite tensile strengths > 0 MPa")
+    if np.any(np.isinf(u)) or np.any(u <= 0):
+        raise InputError("uts_mpa", uts_mpa, "finite tensile strengths > 0 MPa (NaN for none)")
     return u
 
 
@@ -146,8 +147,8 @@ def yield_from_uts(uts_mpa, temper_temp_c, family):
     """
     u = _uts(uts_mpa)
     tt = np.asarray(temper_temp_c, float)
-    if np.any(~np.isfinite(tt)):
-        raise InputError("temper_temp_c", temper_temp_c, "finite temperatures, °C")
+    if np.any(np.isinf(tt)):
+        raise InputError("temper_temp_c", temper_temp_c, "finite temperatures, °C (NaN for none)")
 
     def f(fit):
         r0, r1 = coefficients(fit)["ratio"]

@@ -371,31 +371,34 @@ def fit_report() -> dict:
 # ---------------------------------------------------------------------------------
 # input checks
 
+# NaN marks "no value" in the vectorised catalogue and propagates to NaN; impossible
+# values (infinite, negative time, below absolute zero) raise InputError.
+
 def _kelvin(temp_c):
     t = np.asarray(temp_c, float)
-    if np.any(~np.isfinite(t)) or np.any(t <= -273.15):
-        raise InputError("temp_c", temp_c, "finite temperatures above -273.15 °C")
+    if np.any(np.isinf(t)) or np.any(t <= -273.15):
+        raise InputError("temp_c", temp_c, "finite temperatures above -273.15 °C (NaN for none)")
     return t + 273.15
 
 
 def _positive_hours(hours):
     h = np.asarray(hours, float)
-    if np.any(~np.isfinite(h)) or np.any(h <= 0):
-        raise InputError("hours", hours, "finite times > 0 h")
+    if np.any(np.isinf(h)) or np.any(h <= 0):
+        raise InputError("hours", hours, "finite times > 0 h (NaN for none)")
     return h
 
 
 def _carbon(c_pct):
     c = np.asarray(c_pct, float)
-    if np.any(~np.isfinite(c)) or np.any(c < 0) or np.any(c > 2.1):
-        raise InputError("C", c_pct, "carbon 0–2.1 wt % (steels)")
+    if np.any(np.isinf(c)) or np.any(c < 0) or np.any(c > 2.1):
+        raise InputError("C", c_pct, "carbon 0–2.1 wt % (steels; NaN for none)")
     return c
 
 
 def _hardness(name, x):
     a = np.asarray(x, float)
-    if np.any(~np.isfinite(a)) or np.any(a <= 0):
-        raise InputError(name, x, "finite hardness values > 0 HV")
+    if np.any(np.isinf(a)) or np.any(a <= 0):
+        raise InputError(name, x, "finite hardness values > 0 HV (NaN for none)")
     return a
 
 
