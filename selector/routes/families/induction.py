@@ -1,0 +1,213 @@
+"""Induction hardening: a hard surface layer of given depth on a core left as it was.
+
+Accepted sequences: ``harden → temper → induction_harden [→ temper]`` (core
+quenched and tempered first), ``normalize → induction_harden [→ temper]`` and
+``induction_harden [→ temper]`` (core in the supplied condition).
+
+Chain of models:
+
+1. core: for a prior harden and temper, the through-hardening model at the real
+   section (:func:`selector.routes.families.quench_temper.through_harden`); the low
+   temper after induction hardening is below the prior temper and leaves the core
+   unchanged.  For a normalized or supplied core, the grade's annealed baseline is
+   used (conservative for a normalized core: no normalizing model yet);
+2. case: the user's hardened depth; surface hardness from carbon (99.9 % martensite,
+   ASTM A255 initial hardness, low temper by Hollomon–Jaffe,
+   :mod:`selector.models.induction`); the profile is a step at the hardened depth;
+3. frequency: if given, checked against the practice table; the reference depth
+   delta = 503 sqrt(rho / (mu_r f)) is reported;
+4. tensile properties: the core's at the ASTM A370 location.
+"""
+from __future__ import annotations
+
+import numpy as np
+
+from ...errors import RouteError
+from ...models import conversions, induction, validity
+from ...models.composition import el
+from .base import Batch, RouteFamily, product_grid
+from .carburize import merged_positions, resample
+from .quench_temper import default_austenitize_c, through_harden
+
+ROUTE = "induction"
+PRIORS = ("quench_temper", "normalize", "none")
+
+
+class Induction(RouteFamily):
+    name = "induction"
+    label = "induction harden + temper"
+    patterns = (("induction_harden",), ("induction_harden", "temper"),
+                ("normalize", "induction_harden"), ("normalize", "induction_harden", "temper"),
+                ("harden", "temper", "induction_harden"),
+                ("harden", "temper", "induction_harden", "temper"))
+    main_parameter = "case_depth_mm"
+    parameters = ("case_depth_mm", "frequency_hz", "quench", "temper_temp_c", "temper_hours", "prior",
+                  "prior_quench", "prior_agitation", "prior_austenitize_c", "prior_temper_temp_c",
+                  "prior_temper_hours")
+    families = ("carbon_steel", "alloy_steel")
+    references = (
+        "electromagnetic reference depth delta = 503 sqrt(rho/(mu_r f)) (V. Rudnev et al., ASM Handbook "
+        "Vol. 4C (2014), principles of induction hardening)",
+        "ASM Handbook Vol. 4 and S.L. Semiatin & D.E. Stutz, Induction Heat Treatment of Steel, ASM (1986) "
+        "(frequency for hardened depth; from memory)",
+        "ASTM A255 (martensite hardness; hardenability of the core)",
+        "J.H. Hollomon & L.D. Jaffe, Trans. AIME 162 (1945) 223 (tempering)",
+        "ASTM E140-12b Table 1 and ASTM A370 Table 3 (hardness conversions, tensile strength)",
+    )
+
+    def parse(self, steps, grade):
+        if grade.family not in self.families:
+            raise RouteError("route", "induction harden", f"grade families {', '.join(self.families)} "
+                             f"({grade.id} is {grade.family})")
+        ops = [s["op"] for s in steps]
+        i = ops.index("induction_harden")
+        ih = steps[i]
+        after = steps[i + 1] if i + 1 < len(steps) else None
+        params = {"case_depth_mm": float(ih["case_depth_mm"]),
+                  "frequency_hz": float(ih.get("frequency_hz", float("nan"))),
+                  "quench": str(self.window_value(grade, ROUTE, "quench", ih.get("quench"), "water")),
+                  "temper_temp_c": float(after["temp_c"]) if after else float("nan"),
+                  "temper_hours": float(after.get("hours", 1.0)) if after else float("nan")}
+        if "harden" in ops:
+            h = steps[ops.index("harden")]
+            t = steps[ops.index("temper")]
+            aust = float(h["austenitize_c"]) if "austenitize_c" in h else default_austenitize_c(grade)
+            params.update(prior="quench_temper", prior_quench=str(h["quench"]),
+                          prior_agitation=str(h.get("agitation", "moderate")), prior_austenitize_c=aust,
+                          prior_temper_temp_c=float(t["temp_c"]), prior_temper_hours=float(t.get("hours", 2.0)))
+        else:
+            params.update(prior="normalize" if "normalize" in ops else "none", prior_quench="oil",
+                          prior_agitation="moderate", prior_austenitize_c=float("nan"),
+                          prior_temper_temp_c=float("nan"), prior_temper_hours=float("nan"))
+        warns = self.window_warnings(grade, ROUTE, {k: params[k] for k in ("case_depth_mm", "temper_temp_c",
+                                                                            "quench")})
+        return params, warns
+
+    def to_steps(self, params):
+        steps = []
+        prior = str(params.get("prior", "none"))
+        if prior == "quench_temper":
+            h = {"op": "harden", "quench": str(params["prior_quench"])}
+            if str(params.get("prior_agitation", "moderate")) != "moderate":
+                h["agitation"] = str(params["prior_agitation"])
+            h["austenitize_c"] = float(params["prior_austenitize_c"])
+            steps += [h, {"op": "temper", "temp_c": float(params["prior_temper_temp_c"]),
+                          "hours": float(params["prior_temper_hours"])}]
+        elif prior == "normalize":
+            steps.append({"op": "normalize"})
+        ih = {"op": "induction_harden", "case_depth_mm": float(params["case_depth_mm"])}
+        if np.isfinite(float(params.get("frequency_hz", float("nan")))):
+            ih["frequency_hz"] = float(params["frequency_hz"])
+        ih["quench"] = str(params["quench"])
+        steps.append(ih)
+        if np.isfinite(float(params["temper_temp_c"])):
+            steps.append({"op": "temper", "temp_c": float(params["temper_temp_c"]),
+                          "hours": float(params["temper_hours"])})
+        return steps
+
+    def grid(self, grade):
+        depth = self.span(grade, ROUTE, "case_depth_mm", 4, (0.5, 6.0))
+        prior_t = self.span(grade, "quench_temper", "temper_temp_c", 3, (450.0, 650.0))
+        g = product_grid(case_depth_mm=depth, prior_temper_temp_c=prior_t)
+        n = len(g["case_depth_mm"])
+        g["frequency_hz"] = np.full(n, np.nan)
+        g["quench"] = np.array([self.window_value(grade, ROUTE, "quench", None, "water")] * n, dtype=object)
+        g["temper_temp_c"] = np.full(n, float(self.window_value(grade, ROUTE, "temper_temp_c", None, 180.0)))
+        g["temper_hours"] = np.full(n, 1.0)
+        g["prior"] = np.array(["quench_temper"] * n, dtype=object)
+        g["prior_quench"] = np.array([self.choices(grade, "quench_temper", "quench", ("oil",))[0]] * n,
+                                     dtype=object)
+        g["prior_agitation"] = np.array(["moderate"] * n, dtype=object)
+        g["prior_austenitize_c"] = np.full(n, default_austenitize_c(grade))
+        g["prior_temper_hours"] = np.full(n, 2.0)
+        return g
+
+    def compute(self, batch: Batch):
+        p = batch.params
+        n = batch.n
+        comp = batch.comp
+        depth_case = np.asarray(p["case_depth_mm"], float)
+        freq = np.asarray(p["frequency_hz"], float)
+        t_t = np.asarray(p["temper_temp_c"], float)
+        t_h = np.asarray(p["temper_hours"], float)
+        tempered = np.isfinite(t_t)
+        prior_qt = np.asarray(p["prior"]).astype(str) == "quench_temper"
+        pt_t = np.asarray(p["prior_temper_temp_c"], float)
+        if prior_qt.any():
+            res = through_harden(batch, p["prior_quench"], p["prior_agitation"],
+                                 np.where(prior_qt, np.asarray(p["prior_austenitize_c"], float), 850.0),
+                                 np.where(prior_qt, pt_t, 600.0),
+                                 np.where(prior_qt, np.asarray(p["prior_temper_hours"], float), 2.0))
+            core_pos = np.asarray(res["profile_positions"], float)
+            pos = merged_positions(core_pos)
+            core_hv = resample(res["profile_hv"], core_pos, pos)
+        else:
+            res = {}
+            pos = merged_positions(np.linspace(1.0, 0.0, 11))
+            core_hv = np.zeros((n, len(pos)))
+        base_hv = conversions.hb_to_hv(batch.attr("base_hardness_hb"))
+        core_hv = np.where(prior_qt[:, None], core_hv, base_hv[:, None])
+        if not prior_qt.all():
+            for k, attr in (("uts_mpa", "base_uts_mpa"), ("yield_mpa", "base_yield_mpa"),
+                            ("elongation_pct", "base_elongation_pct")):
+                v = batch.attr(attr)
+                res[k] = np.where(prior_qt, res.get(k, v), v)
+                res["center_" + k] = np.where(prior_qt, res.get("center_" + k, v), v)
+            res["hardness_hv"] = np.where(prior_qt, res.get("hardness_hv", base_hv), base_hv)
+            res["center_hardness_hv"] = np.where(prior_qt, res.get("center_hardness_hv", base_hv), base_hv)
+            if "reduction_area_pct" in res:
+                res["reduction_area_pct"] = np.where(prior_qt, res["reduction_area_pct"], np.nan)
+            if "center_martensite_pct" in res:
+                res["center_martensite_pct"] = np.where(prior_qt, res["center_martensite_pct"], 0.0)
+
+        c = el(comp, "C")
+        hrc_q = induction.surface_hardness_hrc(c)
+        hrc_t = induction.surface_hardness_hrc(c, np.where(tempered, t_t, 150.0), np.where(tempered, t_h, 1.0),
+                                               comp)
+        surf_hv = conversions.hrc_to_hv(np.where(tempered, hrc_t, hrc_q))
+        section = batch.section_mm
+        depth = (1.0 - pos)[None, :] * section[:, None] / 2.0
+        in_case = depth <= depth_case[:, None] + 1e-9
+        prof = np.where(in_case, np.maximum(surf_hv[:, None], core_hv), core_hv)
+        res["profile_hv"] = prof
+        res["profile_positions"] = pos
+        res["surface_hardness_hv"] = np.maximum(surf_hv, core_hv[:, 0])
+        res["case_depth_mm"] = np.minimum(depth_case, section / 2.0)
+        f_ok = np.isfinite(freq)
+        res["reference_depth_hot_mm"] = np.where(f_ok, induction.reference_depth_mm(np.where(f_ok, freq, 1e4)),
+                                                 np.nan)
+        res.pop("profile_as_quenched_hv", None)
+
+        lo, hi = induction.suggested_frequency_range_hz(np.clip(depth_case, 0.4, 10.0),
+                                                        np.where(np.isfinite(section), section, 1e3))
+        notes = [("tensile properties are those of the core at the ASTM A370 location; the hardened layer "
+                  "is not included", np.ones(n, bool))]
+        notes.append(("the hardened depth is the user's: it depends on frequency, power density and heating "
+                      "time together, so the model does not predict it (Rudnev et al., ASM Handbook Vol. 4C)",
+                      np.ones(n, bool)))
+        notes.append(("frequency outside the range usually chosen for this hardened depth (ASM Handbook "
+                      "Vol. 4; Semiatin & Stutz 1986; from memory)", f_ok & ((freq < lo) | (freq > hi))))
+        notes.append(("hardened depth outside 0.4–10 mm, the range of the frequency practice table",
+                      (depth_case < 0.4) | (depth_case > 10.0)))
+        notes.append(("hardened depth over a quarter of the section: close to through-hardening; residual "
+                      "stresses and cracking risk differ from a surface layer (common practice)",
+                      depth_case > section / 4.0))
+        notes.append(("untempered induction-hardened surface: brittle; temper at 150–230 °C (common practice)",
+                      ~tempered))
+        notes.append(("core taken as the annealed baseline (no normalizing model): a normalized core is "
+                      "somewhat stronger; estimate conservative", np.asarray(p["prior"]).astype(str) == "normalize"))
+        notes.append(("carbon below 0.30 %: the surface hardness reached by induction hardening is low "
+                      "(common practice: 0.35–0.55 %C grades)", c < 0.30))
+        mask = validity.out_of_range_mask("induction_surface_hardness", c_pct=c,
+                                          temper_temp_c=np.where(tempered, t_t, 180.0))
+        if mask.any():
+            notes.append(("outside the validity range of induction_surface_hardness "
+                          f"({validity.get('induction_surface_hardness').reference}): extrapolated", mask))
+        qw = res.pop("quench_warnings", [])
+        if n == 1:
+            notes += [(w, np.ones(1, bool)) for w in qw]
+        res["notes"] = notes
+        return res
+
+
+FAMILIES = [Induction()]

@@ -1,0 +1,188 @@
+"""Harden, temper, nitride: the gas-nitrided route.
+
+Accepted sequences: ``harden → temper → nitride`` (the usual route: the core is
+quenched and tempered first) and ``nitride`` alone (nitrided in the supplied,
+annealed condition).
+
+Chain of models:
+
+1. core: the through-hardening model at the real section
+   (:func:`selector.routes.families.quench_temper.through_harden`), tempered by the
+   prior temper *and* the nitriding cycle added on the Hollomon–Jaffe parameter
+   (equivalent time at the higher of the two temperatures, Hollomon & Jaffe 1945);
+   for ``nitride`` alone the core keeps the grade's annealed baseline;
+2. case: nitriding hardness depth x = K(T) sqrt(t) to core + 50 HV (DIN 50190-3),
+   surface hardness from the nitride formers, erfc profile
+   (:mod:`selector.models.nitriding`);
+3. tensile properties: the core's at the ASTM A370 location.
+"""
+from __future__ import annotations
+
+import numpy as np
+
+from ...errors import RouteError
+from ...models import conversions, nitriding, tempering, validity
+from ...models.composition import el
+from .base import Batch, RouteFamily, product_grid
+from .carburize import merged_positions, resample
+from .quench_temper import default_austenitize_c, through_harden
+
+ROUTE = "nitride"
+PRIORS = ("quench_temper", "none")
+
+
+def equivalent_temper(temper_temp_c, temper_hours, nitride_temp_c, nitride_hours, carbon_pct):
+    """Prior temper and nitriding cycle as one temper (Hollomon–Jaffe additivity).
+
+    Both steps are converted to the higher of the two temperatures, T_ref, with
+    t_eq = 10^(T_i (C + log t_i) / T_ref - C) (Hollomon & Jaffe 1945; models
+    reference §5, derived), and their times added.
+
+    Returns
+    -------
+    (temp_c, hours) : tuple of ndarray
+    """
+    c = tempering.hollomon_jaffe_constant(carbon_pct)
+    t_ref = np.maximum(temper_temp_c, nitride_temp_c)
+    h = (tempering.equivalent_hours(temper_temp_c, temper_hours, t_ref, c)
+         + tempering.equivalent_hours(nitride_temp_c, nitride_hours, t_ref, c))
+    return t_ref, h
+
+
+class Nitride(RouteFamily):
+    name = "nitride"
+    label = "harden + temper + nitride"
+    patterns = (("nitride",), ("harden", "temper", "nitride"))
+    main_parameter = "hours"
+    parameters = ("temp_c", "hours", "prior", "quench", "agitation", "austenitize_c",
+                  "temper_temp_c", "temper_hours")
+    families = ("nitriding_steel", "alloy_steel")
+    references = (
+        "DIN 50190-3 (nitriding hardness depth, core + 50 HV)",
+        "parabolic case growth x = K sqrt(t); K from memory (ASM Handbook Vol. 4, gas nitriding)",
+        "J.D. Fast & M.B. Verrijp, JISI 176 (1954) 24 (N diffusion in ferrite, activation energy)",
+        "ASM Handbook Vol. 4, gas nitriding (typical surface hardness; fitted relation)",
+        "J.H. Hollomon & L.D. Jaffe, Trans. AIME 162 (1945) 223 (tempering; nitriding cycle as temper)",
+        "ASTM A255 (hardenability of the core); ASTM E140 / A370 (conversions)",
+    )
+
+    def parse(self, steps, grade):
+        if grade.family not in self.families:
+            raise RouteError("route", "nitride", f"grade families {', '.join(self.families)} "
+                             f"({grade.id} is {grade.family})")
+        n = next(s for s in steps if s["op"] == "nitride")
+        h = next((s for s in steps if s["op"] == "harden"), None)
+        t = next((s for s in steps if s["op"] == "temper"), None)
+        params = {"temp_c": float(n["temp_c"]), "hours": float(n["hours"])}
+        if h is not None:
+            aust = float(h["austenitize_c"]) if "austenitize_c" in h else default_austenitize_c(grade)
+            params.update(prior="quench_temper", quench=str(h["quench"]),
+                          agitation=str(h.get("agitation", "moderate")), austenitize_c=aust,
+                          temper_temp_c=float(t["temp_c"]), temper_hours=float(t.get("hours", 2.0)))
+        else:
+            params.update(prior="none", quench="oil", agitation="moderate", austenitize_c=float("nan"),
+                          temper_temp_c=float("nan"), temper_hours=float("nan"))
+        warns = self.window_warnings(grade, ROUTE, {k: params[k] for k in ("temp_c", "hours", "temper_temp_c")})
+        warns += nitriding.nitriding_cautions(params["temp_c"],
+                                              params["temper_temp_c"] if h is not None else None)
+        return params, warns
+
+    def to_steps(self, params):
+        steps = []
+        if str(params.get("prior", "none")) == "quench_temper":
+            hs = {"op": "harden", "quench": str(params["quench"])}
+            if str(params.get("agitation", "moderate")) != "moderate":
+                hs["agitation"] = str(params["agitation"])
+            hs["austenitize_c"] = float(params["austenitize_c"])
+            steps += [hs, {"op": "temper", "temp_c": float(params["temper_temp_c"]),
+                           "hours": float(params["temper_hours"])}]
+        steps.append({"op": "nitride", "temp_c": float(params["temp_c"]), "hours": float(params["hours"])})
+        return steps
+
+    def grid(self, grade):
+        hours = self.span(grade, ROUTE, "hours", 5, (10.0, 90.0))
+        quench = self.choices(grade, "quench_temper", "quench", ("oil",))[:1]
+        temper = self.span(grade, ROUTE, "temper_temp_c", 3, (565.0, 705.0))
+        g = product_grid(hours=hours, temper_temp_c=temper)
+        n = len(g["hours"])
+        g["temp_c"] = np.full(n, float(self.window_value(grade, ROUTE, "temp_c", None, 525.0)))
+        g["prior"] = np.array(["quench_temper"] * n, dtype=object)
+        g["quench"] = np.array([quench[0]] * n, dtype=object)
+        g["agitation"] = np.array(["moderate"] * n, dtype=object)
+        g["austenitize_c"] = np.full(n, default_austenitize_c(grade))
+        g["temper_hours"] = np.full(n, float(self.window_value(grade, "quench_temper", "temper_hours", None, 2.0)))
+        return g
+
+    def compute(self, batch: Batch):
+        p = batch.params
+        temp = np.asarray(p["temp_c"], float)
+        hours = np.asarray(p["hours"], float)
+        prior_qt = np.asarray(p["prior"]).astype(str) == "quench_temper"
+        comp = batch.comp
+        n = batch.n
+        t_t = np.asarray(p["temper_temp_c"], float)
+        t_h = np.asarray(p["temper_hours"], float)
+        res = None
+        if prior_qt.any():
+            tt, th = equivalent_temper(np.where(prior_qt, t_t, temp), np.where(prior_qt, t_h, 1.0),
+                                       temp, hours, el(comp, "C"))
+            aust = np.where(prior_qt, np.asarray(p["austenitize_c"], float), 850.0)
+            res = through_harden(batch, p["quench"], p["agitation"], aust, tt, th)
+            core_pos = np.asarray(res["profile_positions"], float)
+            pos = merged_positions(core_pos)
+            core_hv = resample(res["profile_hv"], core_pos, pos)
+        else:
+            pos = merged_positions(np.linspace(1.0, 0.0, 11))
+            core_hv = np.zeros((n, len(pos)))
+            res = {}
+        # annealed baseline where there is no prior hardening
+        base_hv = conversions.hb_to_hv(batch.attr("base_hardness_hb"))
+        core_hv = np.where(prior_qt[:, None], core_hv, base_hv[:, None])
+        if not prior_qt.all():
+            base = {"uts_mpa": batch.attr("base_uts_mpa"), "yield_mpa": batch.attr("base_yield_mpa"),
+                    "elongation_pct": batch.attr("base_elongation_pct")}
+            for k, v in base.items():
+                res[k] = np.where(prior_qt, res.get(k, v), v)
+                res["center_" + k] = np.where(prior_qt, res.get("center_" + k, v), v)
+            res["hardness_hv"] = np.where(prior_qt, res.get("hardness_hv", base_hv), base_hv)
+            res["center_hardness_hv"] = np.where(prior_qt, res.get("center_hardness_hv", base_hv), base_hv)
+            if "reduction_area_pct" in res:
+                res["reduction_area_pct"] = np.where(prior_qt, res["reduction_area_pct"], np.nan)
+            if "center_martensite_pct" in res:
+                res["center_martensite_pct"] = np.where(prior_qt, res["center_martensite_pct"], 0.0)
+
+        section = batch.section_mm
+        depth = (1.0 - pos)[None, :] * section[:, None] / 2.0
+        comp2 = {k: np.asarray(v, float)[:, None] for k, v in comp.items()}
+        prof = nitriding.hardness_profile_hv(depth, temp[:, None], hours[:, None], comp2, core_hv)
+        res["profile_hv"] = prof
+        res["profile_positions"] = pos
+        res["surface_hardness_hv"] = prof[:, 0]
+        res["case_depth_mm"] = np.minimum(nitriding.nitrided_case_depth_mm(temp, hours), section / 2.0)
+        res.pop("profile_as_quenched_hv", None)
+
+        notes = [("tensile properties are those of the core at the ASTM A370 location; the nitrided case "
+                  "is not included", np.ones(n, bool))]
+        notes.append(("nitrided without a prior harden and temper: the soft annealed core gives the case "
+                      "little support (common practice: harden and temper first)", ~prior_qt))
+        notes.append(("prior temper less than 30 °C above the nitriding temperature: the core softens during "
+                      "nitriding (common practice)", prior_qt & (t_t < temp + nitriding.TEMPER_MARGIN_C)))
+        lo, hi = nitriding.GAS_NITRIDING_RANGE_C
+        notes.append((f"nitriding temperature outside the gas-nitriding range {lo:.0f}–{hi:.0f} °C: the case "
+                      "estimate is extrapolated", (temp < lo) | (temp > hi)))
+        notes.append(("the compound (white) layer, 0–20 µm, is not modelled; it is brittle and is often "
+                      "removed or limited on fatigue-loaded parts (common practice)", np.ones(n, bool)))
+        for model, vals in (("nitrided_case_depth", {"temp_c": temp, "hours": hours}),
+                            ("nitrided_surface_hardness", {k: el(comp, k) for k in ("Al", "Cr", "Mo", "V")})):
+            mask = validity.out_of_range_mask(model, **vals)
+            if mask.any():
+                notes.append((f"outside the validity range of {model} ({validity.get(model).reference}): "
+                              "extrapolated", mask))
+        qw = res.pop("quench_warnings", [])
+        if n == 1:
+            notes += [(w, np.ones(1, bool)) for w in qw]
+        res["notes"] = notes
+        return res
+
+
+FAMILIES = [Nitride()]
