@@ -120,3 +120,13 @@ def test_every_row_sourced():
     m = t["uts_ksi"].notna()
     np.testing.assert_allclose(t.loc[m, "uts_mpa"], t.loc[m, "uts_ksi"] * 6.895, atol=0.051)
     assert (t["uts_mpa"].notna() == m).all()
+
+
+@pytest.mark.parametrize("fn", [cv.hv_to_hrc, cv.hrc_to_hv, cv.hv_to_hb, cv.hb_to_hv, cv.hv_to_uts_mpa, cv.uts_to_hv, cv.hb_to_uts_mpa])
+def test_docstring_documents_every_parameter(fn):
+    import inspect
+    doc = fn.__doc__
+    assert "Parameters" in doc and "References" in doc
+    params = doc.split("Parameters", 1)[1].split("Returns", 1)[0]
+    for name in inspect.signature(fn).parameters:
+        assert f"{name} :" in params, f"{fn.__name__}: parameter {name} not documented"

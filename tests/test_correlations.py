@@ -142,3 +142,13 @@ def test_validity_registered():
     assert validity.check("qt_correlations", uts_mpa=2500.0)
     assert not validity.check("qt_correlations", uts_mpa=1200.0, temper_temp_c=500.0)
     assert validity.check("qt_correlations_carbon", uts_mpa=1500.0)
+
+
+@pytest.mark.parametrize("fn", [cr.yield_from_uts, cr.elongation_from_uts, cr.reduction_of_area_from_uts])
+def test_docstring_documents_every_parameter(fn):
+    import inspect
+    doc = fn.__doc__
+    assert "Parameters" in doc and "References" in doc
+    params = doc.split("Parameters", 1)[1].split("Returns", 1)[0]
+    for name in inspect.signature(fn).parameters:
+        assert f"{name} :" in params, f"{fn.__name__}: parameter {name} not documented"

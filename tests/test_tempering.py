@@ -165,3 +165,13 @@ def test_validity_ranges_registered():
     assert validity.check("tempering_hv", Mo=0.5)
     assert not validity.check("tempering_hv", temp_c=540.0, hours=2.0, C=0.4, Mo=0.2)
     assert validity.get("hollomon_jaffe").ranges["temp_c"][:2] == (150.0, 705.0)
+
+
+@pytest.mark.parametrize("fn", [tp.hollomon_jaffe_parameter, tp.hollomon_jaffe_constant, tp.equivalent_hours, tp.tempered_martensite_hv, tp.tempered_hv])
+def test_docstring_documents_every_parameter(fn):
+    import inspect
+    doc = fn.__doc__
+    assert "Parameters" in doc and "References" in doc
+    params = doc.split("Parameters", 1)[1].split("Returns", 1)[0]
+    for name in inspect.signature(fn).parameters:
+        assert f"{name} :" in params, f"{fn.__name__}: parameter {name} not documented"
