@@ -131,7 +131,8 @@ def _mask_2d(x: np.ndarray) -> np.ndarray:
     n = x.shape[0]
     a, b = x[:, 0], x[:, 1]
     if n >= _PREFILTER_MIN_POINTS:
-        s = x @ _scale(x)
+        with np.errstate(invalid="ignore"):   # inf - inf -> NaN, handled below
+            s = x @ _scale(x)
         p = int(s.argmax())               # argmax returns the first NaN if there is one
         if np.isfinite(s[p]):             # hence: no NaN and no inf anywhere
             pa, pb = x[p]
@@ -160,7 +161,8 @@ def _score(x: np.ndarray) -> np.ndarray:
     clipped into the finite range first, which keeps the score monotone."""
     k = x.shape[1]
     scale = _scale(x)
-    s = x @ scale
+    with np.errstate(invalid="ignore"):       # inf - inf -> NaN, handled below
+        s = x @ scale
     if np.isnan(s[int(np.argmax(s))]):    # argmax returns the first NaN if there is one
         fin = np.isfinite(x)
         lo = np.array([x[fin[:, j], j].min() if fin[:, j].any() else 0.0 for j in range(k)])
