@@ -100,7 +100,13 @@ def _runs(sorted_df: pd.DataFrame, ok: np.ndarray) -> pd.DataFrame:
     """Contiguous runs of ``ok`` states along the main parameter within each variant
     (``sorted_df`` sorted by variant, main_value).  Returns one row per run."""
     var = sorted_df["variant"].to_numpy()
-    change = np.r_[True, (var[1:] != var[:-1]) | (ok[1:] != ok[:-1])]
+    main = sorted_df["main_value"].to_numpy(float)
+    same = var[1:] == var[:-1]
+    diff = np.where(same, main[1:] - main[:-1], np.nan)
+    # a gap in the grid (a window made of separate bands) also ends a run
+    step = pd.Series(np.where(diff > 0, diff, np.nan)).groupby(var[1:]).transform("min").to_numpy()
+    gap = np.nan_to_num(diff > 1.5 * step, nan=False).astype(bool)
+    change = np.r_[True, ~same | (ok[1:] != ok[:-1]) | gap]
     run = np.cumsum(change)
     d = pd.DataFrame({"variant": var, "run": run, "ok": ok, "pos": np.arange(len(ok)),
                       "main_value": sorted_df["main_value"].to_numpy()})

@@ -149,7 +149,12 @@ class RouteFamily:
                                f"(usual: {', '.join(w.values)}; {w.source})")
             elif v is not None and v == v:
                 lo, hi = w.min, w.max
-                if (lo == lo and v < lo) or (hi == hi and v > hi):
+                bands = RouteFamily.bands(grade, route, name)
+                if bands and not any(a - 1e-9 <= v <= b + 1e-9 for a, b in bands):
+                    txt = ", ".join(f"{a:g}–{b:g}" for a, b in bands)
+                    out.append(f"{name} = {v:g} {w.unit} is outside the usual window {txt} {w.unit} "
+                               f"for {grade.id} ({w.source}); the estimate is extrapolated")
+                elif not bands and ((lo == lo and v < lo) or (hi == hi and v > hi)):
                     out.append(f"{name} = {v:g} {w.unit} is outside the usual window {lo:g}–{hi:g} {w.unit} "
                                f"for {grade.id} ({w.source}); the estimate is extrapolated")
         return out
@@ -165,6 +170,29 @@ class RouteFamily:
         else:
             lo, hi = w.min, w.max
         return np.linspace(lo, hi, n) if hi > lo else np.array([lo], float)
+
+    @staticmethod
+    def bands(grade: Grade, route: str, parameter: str, fallback: tuple | None = None) -> list:
+        """Allowed ``(lo, hi)`` bands of a numeric parameter: the window's ``values``
+        when they are written as ranges (``"150-370;540-650"``) or numbers, else
+        ``[(min, max)]``."""
+        w = grade.window(route, parameter)
+        if w is not None and w.values:
+            out = []
+            for v in w.values:
+                a, sep, b = v.partition("-")
+                try:
+                    lo = float(a)
+                    hi = float(b) if sep else lo
+                except ValueError:
+                    out = []
+                    break
+                out.append((lo, hi))
+            if out:
+                return out
+        if w is not None and w.min == w.min and w.max == w.max:
+            return [(w.min, w.max)]
+        return [fallback] if fallback else []
 
     @staticmethod
     def choices(grade: Grade, route: str, parameter: str, fallback: Sequence[str]) -> tuple:

@@ -118,7 +118,6 @@ class QuenchTemper(RouteFamily):
         "J.H. Hollomon & L.D. Jaffe, Trans. AIME 162 (1945) 223 (tempering parameter)",
         "ASTM A255 (hardenability from composition; Jominy curve)",
         "M.A. Grossmann, Elements of Hardenability, ASM (1952) (quench severity H)",
-        "ASTM E140-12b Table 1 and ASTM A370 Table 3 (hardness conversions, approximate tensile strength)",
         "ASTM A370 (tension-test location)",
     )
 
@@ -153,9 +152,9 @@ class QuenchTemper(RouteFamily):
 
     def grid(self, grade):
         quench = self.choices(grade, "quench_temper", "quench", ("oil",))
-        w = grade.window("quench_temper", "temper_temp_c")
-        lo, hi = (w.min, w.max) if w is not None else (200.0, 650.0)
-        temps = np.arange(np.ceil(lo / 10) * 10, hi + 0.1, 10.0)
+        bands = self.bands(grade, "quench_temper", "temper_temp_c", (200.0, 650.0))
+        temps = np.unique(np.concatenate([np.arange(np.ceil(lo / 10) * 10, hi + 0.1, 10.0)
+                                          for lo, hi in bands]))
         hours = self.window_value(grade, "quench_temper", "temper_hours", None, 2.0)
         aust = default_austenitize_c(grade)
         g = product_grid(quench=np.array(quench, dtype=object), temper_temp_c=temps)
