@@ -53,8 +53,10 @@ def _variant_keys(states: pd.DataFrame) -> pd.Series:
         fam = fam_registry.get(route)
         others = [p for p in fam.parameters if p != fam.main_parameter and p in sub]
         if others:
-            extra = sub[others].astype(str).agg("|".join, axis=1)
-            key.loc[sub.index] = key.loc[sub.index] + "|" + extra
+            extra = key.loc[sub.index].to_numpy().astype(str)
+            for c in others:
+                extra = np.char.add(np.char.add(extra, "|"), sub[c].to_numpy().astype(str))
+            key.loc[sub.index] = extra
     return key
 
 
