@@ -126,17 +126,25 @@ class Carburize(RouteFamily):
 
     # ------------------------------------------------------------------- grid
     def grid(self, grade):
+        """Carburizing time across its window, hardened by a direct quench in the
+        window's default medium (a carburize step names no quench) and by a reheat
+        quench in every usual medium."""
         hours = self.span(grade, ROUTE, "hours", 6, (2.0, 20.0))
         quench = self.choices(grade, ROUTE, "quench", ("oil",))
-        g = product_grid(quench=np.array(quench, dtype=object), hours=hours)
-        n = len(g["hours"])
+        direct_q = str(self.window_value(grade, ROUTE, "quench", None, "oil"))
         temp = float(self.window_value(grade, ROUTE, "temp_c", None, 925.0))
+        reheat_c = default_austenitize_c(grade)
+        d = product_grid(quench=np.array([direct_q], dtype=object), hours=hours)
+        r = product_grid(quench=np.array(quench, dtype=object), hours=hours)
+        nd, nr = len(d["hours"]), len(r["hours"])
+        g = {"quench": np.concatenate([d["quench"], r["quench"]]), "hours": np.concatenate([d["hours"], r["hours"]])}
+        n = nd + nr
+        g["hardening"] = np.array(["direct"] * nd + ["reheat"] * nr, dtype=object)
+        g["austenitize_c"] = np.concatenate([np.full(nd, temp), np.full(nr, reheat_c)])
         g["temp_c"] = np.full(n, temp)
         g["surface_carbon_pct"] = np.full(n, float(self.window_value(grade, ROUTE, "surface_carbon_pct",
                                                                      None, 0.85)))
-        g["hardening"] = np.array(["direct"] * n, dtype=object)
         g["agitation"] = np.array(["moderate"] * n, dtype=object)
-        g["austenitize_c"] = np.full(n, temp)
         g["temper_temp_c"] = np.full(n, float(self.window_value(grade, ROUTE, "temper_temp_c", None, 175.0)))
         g["temper_hours"] = np.full(n, 2.0)
         return g
