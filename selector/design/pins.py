@@ -110,6 +110,31 @@ NOTICE = ("Results are estimates for preliminary selection. The final choice nee
           "certified material test reports, the applicable design code and review "
           "by a qualified engineer.")
 
+#: the worked demo of docs/demo.md (an INVENTED company and part; demo data only).
+#: The page uses it as its default; tests/test_pins.py checks it against docs/demo.md.
+DEMO_CASE = {
+    "company": "Fenwick Moor Implements Ltd (invented)",
+    "part": "FM-31 top-link hitch pin (invented)",
+    "load_kn": 60.0,
+    "diameter_mm": 25.0,
+    "shear_planes": 2,
+    "safety_factor": 2.0,
+    "gap_mm": 1.5,
+    "lug_thickness_mm": 38.0,
+    "clevis_thickness_mm": 16.0,
+    "wear_surface_hardness_hrc": 50.0,
+    "plated": True,
+    "plating": "zinc plated",
+    "mating_material": "structural steel",
+    "environment": "harsh",
+    "service_temp_c": 60.0,
+    "sweep_diameters_mm": [20.0, 22.0, 25.0, 28.0, 30.0, 32.0, 36.0, 40.0],
+}
+
+#: the keys of DEMO_CASE that :func:`pin_targets` takes
+DEMO_PIN_KEYS = ("load_kn", "diameter_mm", "shear_planes", "safety_factor", "gap_mm", "lug_thickness_mm",
+                 "clevis_thickness_mm", "wear_surface_hardness_hrc")
+
 _CONTEXT = "clevis pin"
 
 
