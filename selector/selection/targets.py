@@ -258,11 +258,12 @@ def _in_families(frame: pd.DataFrame, names: Sequence[str]) -> np.ndarray:
 
 def _is_corrosion_resistant(frame: pd.DataFrame) -> np.ndarray:
     c = frame["corrosion_resistant"]
-    if c.dtype == bool:
-        return c.to_numpy()
-    if c.dtype == object:
-        return c.map(lambda v: v is True or v is np.True_ or str(v).strip().lower() == "true").to_numpy(bool)
-    return c.fillna(0).to_numpy(dtype=float) != 0
+    if pd.api.types.is_bool_dtype(c.dtype):
+        return c.to_numpy(dtype=bool)
+    if pd.api.types.is_numeric_dtype(c.dtype):
+        return c.fillna(0).to_numpy(dtype=float) != 0
+    # text or mixed objects: True / "true" (any case) count as resistant
+    return c.map(lambda v: v is True or v is np.True_ or str(v).strip().lower() == "true").to_numpy(bool)
 
 
 def _hard(frame: pd.DataFrame, targets: Mapping, every: bool = True) -> dict[str, np.ndarray]:
