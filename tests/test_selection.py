@@ -48,7 +48,7 @@ def test_robust_rows_hold_at_every_corner(result):
 
 
 def test_no_pareto_row_is_dominated(result):
-    v = result[["yield_mpa", "elongation_pct", "relative_cost"]].to_numpy(float)
+    v = result[["yield_mpa", "elongation_pct", "relative_cost"]].to_numpy(float).copy()
     v[:, 2] = -v[:, 2]
     par = result["pareto"].to_numpy()
     for i in np.flatnonzero(par):
@@ -116,4 +116,7 @@ def test_alternatives_are_cheaper_and_sorted():
     assert (alt["relative_cost"] < ref["relative_cost"]).all()
     assert alt["relative_cost"].is_monotonic_increasing
     assert (alt["yield_mpa"] >= ref["yield_mpa"] - 1e-6).all()
-    assert (alt["elongation_pct"] >= ref["elongation_pct"] - 1e-6).all()
+    # elongation within the documented tolerance of the reference (ELONGATION_TOLERANCE_PCT)
+    assert (alt["elongation_pct"] >= ref["elongation_pct"] - 1.0 - 1e-6).all()
+    assert ref["targets"]["min_yield_mpa"] == pytest.approx(ref["yield_mpa"])
+    assert not ((alt["grade"] == "4340") & (alt["route_family"] == "quench_temper")).any()

@@ -297,15 +297,23 @@ def _hard_filters(frame: pd.DataFrame, t: dict) -> np.ndarray:
     return keep
 
 
+ELONGATION_TOLERANCE_PCT = 1.0
+
+
 def alternatives(grade, route, diameter_mm: float = 25.0, *, thickness_mm: float | None = None,
-                 length_mm: float = 100.0, price_sheet: dict | None = None) -> pd.DataFrame:
+                 length_mm: float = 100.0, price_sheet: dict | None = None,
+                 elongation_tolerance_pct: float = ELONGATION_TOLERANCE_PCT) -> pd.DataFrame:
     """Cheaper candidates that reach at least the properties of the given choice.
 
-    The given grade and route are evaluated; its yield, tensile strength,
-    elongation (and surface hardness and case depth when case-hardened, and
-    corrosion resistance when the grade has it) become minimum targets; the result
-    lists the candidates whose relative cost per kg is lower, cheapest first, with
-    ``saving_per_kg``.
+    The given grade and route are evaluated; its yield and tensile strength (and
+    surface hardness and case depth when case-hardened, and corrosion resistance
+    when the grade has it) become minimum targets, and its elongation less
+    ``elongation_tolerance_pct`` (default 1 point: in quenched-and-tempered steels
+    elongation follows strength closely, SAE J413, so an exact tie in both is only
+    reached by the same steel; 1 point is below the elongation correlation's median
+    error of 1.2 points, docs/methods/correlations.md).  The result lists the
+    candidates whose relative cost per kg is lower, cheapest first, with
+    ``saving_per_kg``; ``attrs["reference"]`` holds the given choice.
     """
     from ..routes.evaluate import evaluate
 
@@ -314,7 +322,7 @@ def alternatives(grade, route, diameter_mm: float = 25.0, *, thickness_mm: float
     price = (price_sheet or {}).get(g.id, g.relative_price)
     ref_cost = float(cost_mod.relative_cost_per_kg(np.array([price]), np.array([ref["route_family"]]))[0])
     t = {"min_yield_mpa": ref["yield_mpa"], "min_uts_mpa": ref["uts_mpa"],
-         "min_elongation_pct": ref["elongation_pct"]}
+         "min_elongation_pct": max(ref["elongation_pct"] - float(elongation_tolerance_pct), 0.0)}
     if ref.get("case_depth_mm"):
         t["min_case_depth_mm"] = ref["case_depth_mm"]
         if ref.get("surface_hardness_hrc") is not None:
