@@ -1,0 +1,796 @@
+"""Helpers of the local page (``app.py``): display units, input checks that belong
+to the page's widgets, the cached wrappers around the library, and chart builders
+that turn DataFrames into Altair charts.
+
+No physics and no selection logic live here: every number comes from
+:func:`selector.selection.engine.prepare`, :func:`~selector.selection.engine.rank`,
+:func:`~selector.selection.engine.nearest_misses` and :func:`selector.evaluate`.
+The page only converts units for display (the library works in SI throughout),
+draws, and keeps the expensive target-independent expansion in ``st.cache_data``
+so that a change of targets only re-ranks.
+
+Results are estimates for preliminary selection; see :data:`selector.CAUTION`.
+"""
+from __future__ import annotations
+
+import json
+import math
+from typing import Mapping, Sequence
+
+import altair as alt
+import numpy as np
+import pandas as pd
+import streamlit as st
+
+import selector
+from selector.catalogue.grades import FAMILIES
+from selector.errors import DataFileError, InputError, SelectorError
+from selector.routes.steps import OPS
+
+# --------------------------------------------------------------------------- demo
+
+#: The page's default part and targets.  A neutral placeholder scenario (a plain
+#: round pin); align it with ``docs/demo.md`` and ``selector.design.pins`` when the
+#: demo scenario lands.
+DEMO = {
+    "title": "Demo part: a plain round pin, Ø30 mm × 100 mm (neutral defaults)",
+    "shape": "round",
+    "diameter_mm": 30.0,
+    "thickness_mm": 20.0,
+    "length_mm": 100.0,
+    "targets": {"min_yield_mpa": 700.0, "min_uts_mpa": 850.0, "min_elongation_pct": 12.0},
+}
+
+#: The notice shown on every view, after :data:`selector.CAUTION`.
+DEFER_NOTICE = ("Parts chosen here can hurt people when they fail. Defer to the applicable design "
+                "code and local regulations, certified material test reports for the actual heat, "
+                "and review by a qualified, licensed engineer.")
+
+# --------------------------------------------------------------------------- units
+
+SI, US = "SI", "US customary"
+UNIT_SYSTEMS = (SI, US)
+
+MPA_PER_KSI = 6.894757   # 1 ksi = 6.894757 MPa (NIST SP 811, Appendix B.8, 'kip per square inch')
+MM_PER_IN = 25.4         # exact by definition (NIST SP 811, Appendix B.8, 'inch')
+
+UNITS = {  # quantity -> (SI label, US label)
+    "stress": ("MPa", "ksi"),
+    "length": ("mm", "in"),
+    "temperature": ("°C", "°F"),
+}
+
+
+def unit(quantity: str, system: str) -> str:
+    """Display unit label of ``quantity`` (``stress``, ``length``, ``temperature``)."""
+    si, us = UNITS[quantity]
+    return us if system == US else si
+
+
+def to_display(value, quantity: str, system: str):
+    """An SI value (MPa, mm, °C; scalar or array) in the display units of ``system``."""
+    if value is None:
+        return None
+    v = np.asarray(value, float)
+    if system == US:
+        if quantity == "stress":
+            v = v / MPA_PER_KSI
+        elif quantity == "length":
+            v = v / MM_PER_IN
+        elif quantity == "temperature":
+            v = v * 9.0 / 5.0 + 32.0
+    return float(v) if v.ndim == 0 else v
+
+
+def to_si(value, quantity: str, system: str):
+    """A value typed in the display units of ``system`` back to SI (MPa, mm, °C)."""
+    if value is None:
+        return None
+    v = np.asarray(value, float)
+    if system == US:
+        if quantity == "stress":
+            v = v * MPA_PER_KSI
+        elif quantity == "length":
+            v = v * MM_PER_IN
+        elif quantity == "temperature":
+            v = (v - 32.0) * 5.0 / 9.0
+    return float(v) if v.ndim == 0 else v
+
+
+def quantity_of(name: str) -> str | None:
+    """The quantity of an SI-suffixed column or parameter name, or None."""
+    if name.endswith("_mpa"):
+        return "stress"
+    if name.endswith("_mm"):
+        return "length"
+    if name.endswith("_c") or name == "temp_c":
+        return "temperature"
+    return None
+
+
+def display_name(name: str, system: str) -> str:
+    """``yield_mpa`` -> ``yield_ksi`` in US units (column headers of the table)."""
+    q = quantity_of(name)
+    if q is None or system == SI:
+        return name
+    suffix = {"stress": "_ksi", "length": "_in", "temperature": "_f"}[q]
+    return name[: name.rfind("_")] + suffix
+
+
+#: page inputs that carry a unit: widget key -> quantity
+UNIT_INPUTS = {"diameter": "length", "thickness": "length", "length": "length",
+               "min_yield": "stress", "max_yield": "stress", "min_uts": "stress", "max_uts": "stress",
+               "min_case_depth": "length"}
+
+#: digits kept when a unit switch converts an input
+_DIGITS = {("stress", SI): 0, ("stress", US): 2, ("length", SI): 2, ("length", US): 3}
+
+
+def convert_inputs(state: Mapping, old: str, new: str) -> dict:
+    """New values of the unit-bearing inputs when the unit system changes from
+    ``old`` to ``new`` (blank inputs stay blank)."""
+    out = {}
+    if old == new:
+        return out
+    for key, q in UNIT_INPUTS.items():
+        v = state.get(key)
+        if v is None:
+            continue
+        si = to_si(v, q, old)
+        out[key] = round(float(to_display(si, q, new)), _DIGITS[(q, new)])
+    return out
+
+
+#: target key -> (page widget key, quantity or None, label)
+TARGET_FIELDS = {
+    "min_yield_mpa": ("min_yield", "stress", "Minimum yield strength"),
+    "max_yield_mpa": ("max_yield", "stress", "Maximum yield strength"),
+    "min_uts_mpa": ("min_uts", "stress", "Minimum tensile strength"),
+    "max_uts_mpa": ("max_uts", "stress", "Maximum tensile strength"),
+    "min_elongation_pct": ("min_elong", None, "Minimum elongation (%)"),
+    "min_hardness_hrc": ("min_hrc", None, "Minimum hardness (HRC)"),
+    "max_hardness_hrc": ("max_hrc", None, "Maximum hardness (HRC)"),
+    "min_surface_hardness_hrc": ("min_surface_hrc", None, "Minimum surface hardness (HRC)"),
+    "min_case_depth_mm": ("min_case_depth", "length", "Minimum case depth"),
+    "max_relative_cost": ("max_cost", None, "Maximum relative cost per kg"),
+}
+
+#: library field -> (page label, quantity) for error messages
+FIELD_LABELS = {k: (lab, q) for k, (_, q, lab) in TARGET_FIELDS.items()}
+FIELD_LABELS.update({"diameter_mm": ("Diameter", "length"), "thickness_mm": ("Plate thickness", "length"),
+                     "length_mm": ("Part length", "length"), "families": ("Families", None)})
+
+
+def targets_from_inputs(values: Mapping, system: str, families: Sequence[str] | None = None,
+                        corrosion_resistant: bool = False) -> dict:
+    """SI targets for the library from the page's inputs (widget key -> value in the
+    display units; blank = no target).  ``families`` is passed only when it narrows
+    the catalogue."""
+    t = {}
+    for key, (wkey, q, _) in TARGET_FIELDS.items():
+        v = values.get(wkey)
+        if v is None:
+            continue
+        t[key] = float(to_si(v, q, system)) if q else float(v)
+    if families is not None and set(families) != set(FAMILIES):
+        t["families"] = list(families)
+    if corrosion_resistant:
+        t["corrosion_resistant"] = True
+    return t
+
+
+def explain(exc: Exception, system: str) -> str:
+    """The library's message, led by the page's name of the field and the value in
+    the units the user typed (``Diameter = 0.01 in (0.254 mm): diameter_mm=0.254 …``)."""
+    msg = str(exc)
+    if isinstance(exc, InputError) and exc.field in FIELD_LABELS:
+        label, q = FIELD_LABELS[exc.field]
+        v = exc.value
+        if q and isinstance(v, (int, float)) and not isinstance(v, bool) and system == US:
+            shown = f"{to_display(v, q, system):.4g} {unit(q, system)} ({v:.4g} {unit(q, SI)})"
+        elif q and isinstance(v, (int, float)) and not isinstance(v, bool):
+            shown = f"{v:.4g} {unit(q, SI)}"
+        else:
+            shown = repr(v)
+        return f"{label} = {shown}: {msg}"
+    return msg
+
+
+def check_families(families: Sequence[str]) -> str | None:
+    """A message when no family is chosen (the page's own multiselect), else None."""
+    if not families:
+        return ("Families: none chosen; allowed: one or more of " + ", ".join(FAMILIES))
+    return None
+
+
+def read_price_sheet(data: bytes | str | None, name: str = "price sheet") -> tuple[dict | None, str | None]:
+    """Parse an uploaded or pasted price sheet with the library's parser.
+
+    Returns ``(prices, None)``, or ``(None, message)`` with the
+    :class:`~selector.errors.DataFileError` text (file, line, column) when it is
+    bad, so that nothing of a bad sheet is applied.  Empty input gives ``(None, None)``.
+    """
+    if data is None or (isinstance(data, (bytes, str)) and not data.strip()):
+        return None, None
+    try:
+        return selector.selection.cost.parse_price_sheet(data, name), None
+    except (DataFileError, SelectorError) as exc:
+        return None, str(exc)
+
+
+# --------------------------------------------------------------------------- cached library calls
+
+def _prices(price_items) -> dict | None:
+    return dict(price_items) if price_items else None
+
+
+@st.cache_data(show_spinner="Expanding the catalogue over every process window…", max_entries=8)
+def cached_prepare(diameter_mm, thickness_mm, length_mm, price_items=()) -> pd.DataFrame:
+    """:func:`~selector.selection.engine.prepare`, cached per section, length and
+    price sheet (``price_items``: sorted ``(grade, price)`` pairs)."""
+    from selector.selection.engine import prepare
+    return prepare(diameter_mm, thickness_mm, length_mm, _prices(price_items))
+
+
+@st.cache_data(show_spinner="Ranking…", max_entries=64)
+def cached_rank(diameter_mm, thickness_mm, length_mm, price_items, targets_json, robust_only=False):
+    """:func:`~selector.selection.engine.rank` on the cached prepared table
+    (``targets_json``: the SI targets as sorted JSON, so the cache key is stable)."""
+    from selector.selection.engine import rank
+    prepared = cached_prepare(diameter_mm, thickness_mm, length_mm, price_items)
+    return rank(prepared, json.loads(targets_json), robust_only=robust_only)
+
+
+@st.cache_data(show_spinner="Looking for the nearest misses…", max_entries=16)
+def cached_nearest_misses(diameter_mm, thickness_mm, length_mm, price_items, targets_json, n=10):
+    """:func:`~selector.selection.engine.nearest_misses`, cached."""
+    from selector.selection.engine import nearest_misses
+    return nearest_misses(json.loads(targets_json), diameter_mm, thickness_mm=thickness_mm,
+                          length_mm=length_mm, price_sheet=_prices(price_items), n=n)
+
+
+@st.cache_data(show_spinner=False, max_entries=64)
+def cached_variant_states(diameter_mm, thickness_mm, length_mm, price_items, variants: tuple) -> pd.DataFrame:
+    """The rows of the prepared table that belong to ``variants`` (every corner and
+    every value of the main parameter): the reachable region of each candidate."""
+    prepared = cached_prepare(diameter_mm, thickness_mm, length_mm, price_items)
+    cols = [c for c in ("variant", "grade", "route", "corner", "main_value", "yield_mpa", "uts_mpa",
+                        "elongation_pct", "hardness_hv", "hardness_hrc", "surface_hardness_hv",
+                        "case_depth_mm") if c in prepared.columns]
+    sub = prepared.loc[prepared["variant"].isin(list(variants)), cols]
+    return sub.reset_index(drop=True)
+
+
+@st.cache_data(show_spinner=False, max_entries=128)
+def cached_evaluate(grade: str, route_json: str, diameter_mm, thickness_mm, composition="nominal") -> dict:
+    """:func:`selector.evaluate` of one candidate (``route_json``: its steps as JSON)."""
+    return selector.evaluate(grade, json.loads(route_json), diameter_mm=diameter_mm,
+                             thickness_mm=thickness_mm, composition=composition)
+
+
+@st.cache_data(show_spinner=False)
+def cached_cautions(frame_json: str) -> list:
+    """Cautions of the candidate rows from :mod:`selector.design.cautions` when that
+    module is present (else an empty list per row)."""
+    frame = pd.read_json(frame_json, orient="records")
+    try:
+        from selector.design.cautions import cautions_for
+    except ImportError:
+        return [[] for _ in range(len(frame))]
+    return cautions_for(frame)
+
+
+def targets_key(targets: Mapping) -> str:
+    return json.dumps(dict(targets), sort_keys=True)
+
+
+def route_json(route) -> str:
+    return json.dumps(list(route), sort_keys=True)
+
+
+# --------------------------------------------------------------------------- candidate labels
+
+ROUTE_SHORT = {"quench_temper": "harden+temper", "carburize": "carburize", "nitride": "nitride",
+               "induction": "induction", "cold_work": "cold work", "age": "solution+age",
+               "anneal": "anneal", "normalize": "normalize"}
+
+PARAM_LABELS = {"temper_temp_c": "tempering temperature", "hours": "time at temperature",
+                "reduction_pct": "cold reduction", "age_temp_c": "aging temperature",
+                "age_hours": "aging time", "case_depth_mm": "case depth", "temp_c": "temperature"}
+
+#: the page's own palette for candidates (ink-like hues, light enough to overlap)
+PALETTE = ["#1b6f8a", "#c2571a", "#5b8c2a", "#8e3b74", "#b3922b", "#3f4fa3", "#a8323e", "#2f8f7b",
+           "#6b5a3e", "#d07fa8", "#4d7ea8", "#7c8a1f", "#9b5fc0", "#c0873f", "#355c4a"]
+TARGET_FILL = "#f1e6c8"
+TARGET_STROKE = "#8a6d1e"
+
+
+def param_label(name: str) -> str:
+    return PARAM_LABELS.get(name, name.replace("_", " "))
+
+
+def param_unit(name: str, system: str) -> str:
+    q = quantity_of(name)
+    if q:
+        return unit(q, system)
+    if name.endswith("hours"):
+        return "h"
+    if name.endswith("_pct"):
+        return "%"
+    return ""
+
+
+def _variant_extra(row) -> str:
+    q = row.get("quench") if hasattr(row, "get") else None
+    if isinstance(q, str) and q:
+        return f" ({q})"
+    return ""
+
+
+def label_candidates(cand: pd.DataFrame) -> pd.DataFrame:
+    """Add ``id`` (C1, C2 … in the engine's order) and ``label`` (id, grade and a
+    short route name) to a candidates table."""
+    out = cand.reset_index(drop=True).copy()
+    out.insert(0, "id", [f"C{i + 1}" for i in range(len(out))])
+    out["label"] = [f"{i} {g} · {ROUTE_SHORT.get(r, r)}{_variant_extra(row)}"
+                    for i, g, r, (_, row) in zip(out["id"], out["grade"], out["route_family"], out.iterrows())]
+    return out
+
+
+# --------------------------------------------------------------------------- table for display
+
+def _fmt_window(lo, hi, param, system) -> str:
+    if lo is None or hi is None or lo != lo or hi != hi or not param:
+        return ""
+    q = quantity_of(param)
+    if q:
+        lo, hi = to_display(lo, q, system), to_display(hi, q, system)
+    u = param_unit(param, system)
+    if hi > lo:
+        return f"{param_label(param)} {lo:.4g}–{hi:.4g} {u}".strip()
+    return f"{param_label(param)} {lo:.4g} {u} only".strip()
+
+
+def display_table(cand: pd.DataFrame, system: str) -> pd.DataFrame:
+    """The candidates with the columns of ``select`` in the display units (headers
+    renamed, e.g. ``yield_ksi``); the route as JSON text; the window columns
+    converted row by row according to their parameter."""
+    df = cand.copy()
+    if "route" in df:
+        df["route"] = [route_json(r) if isinstance(r, (list, tuple)) else str(r) for r in df["route"]]
+    if system == US and "window_parameter" in df:
+        params = df["window_parameter"].astype(str).tolist()
+        if "window_min" in df and "window_max" in df:
+            df["window"] = [_fmt_window(lo, hi, p, system)
+                            for lo, hi, p in zip(df["window_min"], df["window_max"], params)]
+        df["window_unit"] = [param_unit(p, system) for p in params]
+        for col in ("main_value", "window_min", "window_max", "robust_window_min", "robust_window_max"):
+            if col not in df:
+                continue
+            vals = df[col].to_numpy(float).copy()
+            for i, p in enumerate(params):
+                q = quantity_of(p)
+                if q and vals[i] == vals[i]:
+                    vals[i] = to_display(vals[i], q, system)
+            df[col] = vals
+    rename = {}
+    for col in df.columns:
+        q = quantity_of(col)
+        if q and system == US and pd.api.types.is_numeric_dtype(df[col]):
+            df[col] = to_display(df[col].to_numpy(float), q, system)
+            rename[col] = display_name(col, system)
+    return df.rename(columns=rename)
+
+
+def to_csv(df: pd.DataFrame) -> bytes:
+    return df.to_csv(index=False).encode("utf-8")
+
+
+# --------------------------------------------------------------------------- region geometry (display)
+
+def hull_band(x: np.ndarray, y: np.ndarray) -> pd.DataFrame:
+    """The convex hull of points (x, y) as a band: at each hull vertex abscissa,
+    the lower and upper edge (``x, lo, hi``) — a form an area mark can fill.
+
+    Andrew's monotone chain (A.M. Andrew, Inf. Process. Lett. 9 (1979) 216) gives the
+    lower and upper chains of the hull, both ordered by x, so the band is exact for
+    the convex region.  A purely geometric display helper.
+    """
+    pts = np.column_stack([np.asarray(x, float), np.asarray(y, float)])
+    pts = pts[np.isfinite(pts).all(axis=1)]
+    if len(pts) == 0:
+        return pd.DataFrame(columns=["x", "lo", "hi"])
+    pts = np.unique(pts, axis=0)          # sorted by x then y
+    if len(pts) == 1 or np.ptp(pts[:, 0]) == 0:
+        xs = float(pts[0, 0])
+        return pd.DataFrame({"x": [xs, xs], "lo": [pts[:, 1].min()] * 2, "hi": [pts[:, 1].max()] * 2})
+
+    def chain(points):
+        out = []
+        for p in points:
+            while len(out) >= 2 and np.cross(out[-1] - out[-2], p - out[-2]) <= 0:
+                out.pop()
+            out.append(p)
+        return np.array(out)
+
+    lower = chain(pts)
+    upper = chain(pts[::-1])[::-1]
+    xs = np.unique(np.concatenate([lower[:, 0], upper[:, 0]]))
+    lo = np.interp(xs, lower[:, 0], lower[:, 1])
+    hi = np.interp(xs, upper[:, 0], upper[:, 1])
+    return pd.DataFrame({"x": xs, "lo": np.minimum(lo, hi), "hi": np.maximum(lo, hi)})
+
+
+def chart_frames(states: pd.DataFrame, cand: pd.DataFrame, y: str, system: str,
+                 picked: str | None = None) -> dict:
+    """Frames for :func:`strength_elongation_chart`: ``regions`` (hull band of each
+    candidate's states, every corner and main-parameter value), ``paths`` (nominal
+    corner along the main parameter, with text labels of the parameter value) and
+    ``points`` (each candidate's chosen state).  ``y`` is ``yield_mpa`` or ``uts_mpa``."""
+    regions, paths = [], []
+    for _, c in cand.iterrows():
+        s = states[states["variant"] == c["variant"]]
+        band = hull_band(s["elongation_pct"], s[y])
+        if len(band):
+            band = band.assign(label=c["label"], id=c["id"])
+            regions.append(band)
+        nom = s[s["corner"] == "nominal"].dropna(subset=["elongation_pct", y])
+        nom = nom.sort_values("main_value") if nom["main_value"].notna().any() else nom
+        if len(nom):
+            param = c.get("window_parameter") or ""
+            q = quantity_of(param) if param else None
+            mv = nom["main_value"].to_numpy(float)
+            shown = to_display(mv, q, system) if q else mv
+            u = param_unit(param, system)
+            n = len(nom)
+            step = 1 if c["id"] == picked else max(1, n // 3)
+            keep = np.zeros(n, bool)
+            keep[::step] = True
+            keep[-1] = True
+            text = [f"{v:.0f}{'°' if q == 'temperature' else ' ' + u if u else ''}" if (k and v == v) else ""
+                    for v, k in zip(np.atleast_1d(shown), keep)]
+            paths.append(pd.DataFrame({"x": nom["elongation_pct"].to_numpy(float),
+                                       "y": nom[y].to_numpy(float), "order": np.arange(n),
+                                       "text": text, "param": np.atleast_1d(shown),
+                                       "label": c["label"], "id": c["id"]}))
+    reg = pd.concat(regions, ignore_index=True) if regions else pd.DataFrame(columns=["x", "lo", "hi", "label", "id"])
+    pth = pd.concat(paths, ignore_index=True) if paths else pd.DataFrame(
+        columns=["x", "y", "order", "text", "param", "label", "id"])
+    pts = pd.DataFrame({"x": cand["elongation_pct"].to_numpy(float), "y": cand[y].to_numpy(float),
+                        "label": cand["label"], "id": cand["id"], "grade": cand["grade"],
+                        "route": cand["route_text"], "window": cand.get("window", ""),
+                        "set": np.where(cand["pareto"].astype(bool), "Pareto set", "meets targets"),
+                        "cost": cand["relative_cost"].to_numpy(float)})
+    for frame in (reg, pth, pts):
+        for col in ("y", "lo", "hi"):
+            if col in frame:
+                frame[col] = to_display(frame[col].to_numpy(float), "stress", system)
+    return {"regions": reg, "paths": pth, "points": pts}
+
+
+def _domain(values, pad=0.06, floor=None):
+    v = np.asarray([x for x in values if x is not None and x == x], float)
+    if len(v) == 0:
+        return [0.0, 1.0]
+    lo, hi = float(v.min()), float(v.max())
+    span = (hi - lo) or max(abs(hi), 1.0) * 0.1
+    lo, hi = lo - pad * span, hi + pad * span
+    if floor is not None:
+        lo = max(lo, floor)
+    return [lo, hi]
+
+
+def strength_elongation_chart(frames: dict, targets: Mapping, y: str, system: str,
+                              picked: str | None = None, height: int = 460) -> alt.Chart:
+    """Strength (yield or tensile) against elongation: each candidate's reachable
+    region (hull over corners and main-parameter values), its process path with the
+    parameter values, the target region, and the chosen points (Pareto set filled)."""
+    reg, pth, pts = frames["regions"], frames["paths"], frames["points"]
+    su = unit("stress", system)
+    ytitle = ("Yield strength" if y == "yield_mpa" else "Tensile strength") + f" ({su})"
+    tmin = targets.get("min_" + y.replace("_mpa", "") + "_mpa")
+    tmax = targets.get("max_" + y.replace("_mpa", "") + "_mpa")
+    emin = targets.get("min_elongation_pct")
+    ys = list(reg.get("lo", [])) + list(reg.get("hi", [])) + list(pts["y"])
+    xs = list(reg.get("x", [])) + list(pts["x"])
+    ys += [to_display(v, "stress", system) for v in (tmin, tmax) if v is not None]
+    xs += [emin] if emin is not None else []
+    xdom, ydom = _domain(xs, floor=0.0), _domain(ys, floor=0.0)
+    labels = list(dict.fromkeys(list(pts["label"])))
+    colour = alt.Color("label:N", title="candidate", scale=alt.Scale(domain=labels, range=PALETTE[:len(labels)]
+                                                                     if len(labels) <= len(PALETTE) else None),
+                       legend=alt.Legend(orient="right", symbolType="square", labelLimit=260))
+    x = alt.X("x:Q", title="Elongation (%)", scale=alt.Scale(domain=xdom, nice=False))
+    yy = alt.Y("y:Q", title=ytitle, scale=alt.Scale(domain=ydom, nice=False))
+
+    box = pd.DataFrame({"x": [emin if emin is not None else xdom[0]], "x2": [xdom[1]],
+                        "y": [to_display(tmin, "stress", system) if tmin is not None else ydom[0]],
+                        "y2": [to_display(tmax, "stress", system) if tmax is not None else ydom[1]]})
+    target = alt.Chart(box).mark_rect(fill=TARGET_FILL, opacity=0.55, stroke=TARGET_STROKE,
+                                      strokeDash=[6, 3], strokeWidth=1.2).encode(
+        x=alt.X("x:Q", scale=alt.Scale(domain=xdom, nice=False)), x2="x2:Q",
+        y=alt.Y("y:Q", scale=alt.Scale(domain=ydom, nice=False)), y2="y2:Q")
+    target_txt = alt.Chart(box).mark_text(align="right", baseline="bottom", dx=-6, dy=-4, color=TARGET_STROKE,
+                                          fontStyle="italic").encode(
+        x="x2:Q", y="y2:Q", text=alt.value("target region"))
+    layers = [target, target_txt]
+    if len(reg):
+        layers.append(alt.Chart(reg).mark_area(opacity=0.16, line={"strokeWidth": 0.6}).encode(
+            x=alt.X("x:Q", scale=alt.Scale(domain=xdom, nice=False)), y=alt.Y("lo:Q", title=ytitle,
+                                                                              scale=alt.Scale(domain=ydom,
+                                                                                              nice=False)),
+            y2="hi:Q", color=colour, detail="label:N",
+            tooltip=[alt.Tooltip("label:N", title="candidate")]))
+    if len(pth):
+        layers.append(alt.Chart(pth).mark_line(strokeWidth=1.6, point=alt.OverlayMarkDef(size=18, filled=True))
+                      .encode(x=x, y=yy, order="order:Q", color=colour, detail="label:N",
+                              tooltip=[alt.Tooltip("label:N", title="candidate"),
+                                       alt.Tooltip("param:Q", title="process value", format=".4g"),
+                                       alt.Tooltip("x:Q", title="elongation %", format=".1f"),
+                                       alt.Tooltip("y:Q", title=su, format=".4g")]))
+        layers.append(alt.Chart(pth[pth["text"] != ""]).mark_text(dx=7, dy=-7, fontSize=10, align="left")
+                      .encode(x=x, y=yy, text="text:N", color=colour))
+    shape = alt.Shape("set:N", title="", scale=alt.Scale(domain=["Pareto set", "meets targets"],
+                                                        range=["diamond", "triangle-down"]))
+    layers.append(alt.Chart(pts).mark_point(size=150, filled=True, stroke="#222222", strokeWidth=1.0)
+                  .encode(x=x, y=yy, shape=shape, color=colour,
+                          fillOpacity=alt.condition("datum.set == 'Pareto set'", alt.value(1.0), alt.value(0.25)),
+                          tooltip=[alt.Tooltip("label:N", title="candidate"), alt.Tooltip("route:N"),
+                                   alt.Tooltip("window:N"), alt.Tooltip("set:N", title="status"),
+                                   alt.Tooltip("x:Q", title="elongation %", format=".1f"),
+                                   alt.Tooltip("y:Q", title=su, format=".4g"),
+                                   alt.Tooltip("cost:Q", title="relative cost/kg", format=".2f")]))
+    layers.append(alt.Chart(pts).mark_text(dx=0, dy=-13, fontWeight="bold", fontSize=11)
+                  .encode(x=x, y=yy, text="id:N", color=colour))
+    if picked is not None and (pts["id"] == picked).any():
+        layers.append(alt.Chart(pts[pts["id"] == picked]).mark_point(size=600, shape="circle", filled=False,
+                                                                     strokeWidth=2.2, color="#111111")
+                      .encode(x=x, y=yy))
+    return alt.layer(*layers).properties(height=height).resolve_scale(color="shared")
+
+
+def profile_frame(profiles: Mapping[str, list], system: str) -> pd.DataFrame:
+    """Long frame of hardness profiles: ``label -> evaluate()["profile"]`` to columns
+    ``label, depth, r_over_R, hardness_hv, hardness_hrc`` (depth in display units)."""
+    rows = []
+    for label, prof in profiles.items():
+        for p in prof or []:
+            rows.append({"label": label, "depth": to_display(p["depth_mm"], "length", system),
+                         "r_over_R": p["r_over_R"], "hardness_hv": p["hardness_hv"],
+                         "hardness_hrc": p.get("hardness_hrc")})
+    return pd.DataFrame(rows, columns=["label", "depth", "r_over_R", "hardness_hv", "hardness_hrc"])
+
+
+def profile_chart(frame: pd.DataFrame, system: str, labels: Sequence[str] | None = None,
+                  height: int = 260, title: str = "Hardness across the section") -> alt.Chart:
+    """Hardness (HV) against depth from the surface; one line per label on shared axes."""
+    labels = list(labels or dict.fromkeys(frame["label"]))
+    colour = alt.Color("label:N", title="candidate", scale=alt.Scale(domain=labels, range=_colours_for(labels)),
+                       legend=alt.Legend(orient="bottom", labelLimit=300))
+    lu = unit("length", system)
+    return alt.Chart(frame).mark_line(point=alt.OverlayMarkDef(size=22), strokeWidth=2).encode(
+        x=alt.X("depth:Q", title=f"Depth below the surface ({lu}); centre at the right"),
+        y=alt.Y("hardness_hv:Q", title="Hardness (HV)", scale=alt.Scale(zero=False)),
+        color=colour,
+        tooltip=[alt.Tooltip("label:N", title="candidate"), alt.Tooltip("depth:Q", format=".3g", title=lu),
+                 alt.Tooltip("r_over_R:Q", format=".2f", title="r/R"),
+                 alt.Tooltip("hardness_hv:Q", format=".0f", title="HV"),
+                 alt.Tooltip("hardness_hrc:Q", format=".1f", title="HRC")],
+    ).properties(height=height, title=title)
+
+
+def _colours_for(labels: Sequence[str]) -> list:
+    """Palette colours by candidate id (``C3 …`` -> the third colour), so a candidate
+    keeps its colour in every chart."""
+    out = []
+    for lab in labels:
+        try:
+            i = int(str(lab).split()[0][1:]) - 1
+        except ValueError:
+            i = len(out)
+        out.append(PALETTE[i % len(PALETTE)])
+    return out
+
+
+def parameter_frame(states: pd.DataFrame, variant: str, system: str) -> pd.DataFrame:
+    """Properties of one variant along its main parameter, per corner, long form:
+    ``param, corner, quantity, value`` (strengths in display units)."""
+    s = states[states["variant"] == variant].dropna(subset=["main_value"])
+    rows = []
+    for q, col in (("yield", "yield_mpa"), ("tensile", "uts_mpa"), ("elongation", "elongation_pct")):
+        if col not in s:
+            continue
+        v = s[col].to_numpy(float)
+        if col.endswith("_mpa"):
+            v = to_display(v, "stress", system)
+        rows.append(pd.DataFrame({"main_value": s["main_value"].to_numpy(float), "corner": s["corner"].to_numpy(),
+                                  "quantity": q, "value": v}))
+    return pd.concat(rows, ignore_index=True) if rows else pd.DataFrame(
+        columns=["main_value", "corner", "quantity", "value"])
+
+
+def parameter_chart(frame: pd.DataFrame, param: str, window: tuple, robust_window: tuple,
+                    targets: Mapping, system: str, chosen: float | None = None) -> alt.Chart:
+    """Strength and elongation against the main process parameter: the nominal
+    composition as a line, the lean–rich spread as a band, the window that meets the
+    targets shaded (darker where it holds at every composition corner), the targets
+    as rules and the chosen value as a vertical mark."""
+    q = quantity_of(param)
+    f = frame.copy()
+    if q:
+        f["main_value"] = to_display(f["main_value"].to_numpy(float), q, system)
+
+    def conv(v):
+        return to_display(v, q, system) if (q and v is not None and v == v) else v
+    pu = param_unit(param, system)
+    xt = f"{param_label(param).capitalize()} ({pu})" if pu else param_label(param).capitalize()
+    xdom = _domain(f["main_value"], pad=0.02)
+    x = alt.X("main_value:Q", title=xt, scale=alt.Scale(domain=xdom, nice=False))
+    spread = f.pivot_table(index=["main_value", "quantity"], values="value", aggfunc=["min", "max"]).reset_index()
+    spread.columns = ["main_value", "quantity", "lo", "hi"]
+    nominal = f[f["corner"] == "nominal"]
+    su = unit("stress", system)
+    panels = []
+    for qty, title, tkeys, qcol in ((("yield", "tensile"), f"Strength ({su})",
+                                     ("min_yield_mpa", "max_yield_mpa", "min_uts_mpa", "max_uts_mpa"), "stress"),
+                                    (("elongation",), "Elongation (%)", ("min_elongation_pct",), None)):
+        sp = spread[spread["quantity"].isin(qty)]
+        nm = nominal[nominal["quantity"].isin(qty)]
+        layers = []
+        if window and window[0] == window[0] and window[0] is not None:
+            layers.append(alt.Chart(pd.DataFrame({"a": [conv(window[0])], "b": [conv(window[1])]}))
+                          .mark_rect(color="#cfe3d6", opacity=0.7).encode(
+                x=alt.X("a:Q", scale=alt.Scale(domain=xdom, nice=False)), x2="b:Q"))
+        if robust_window and robust_window[0] == robust_window[0] and robust_window[0] is not None:
+            layers.append(alt.Chart(pd.DataFrame({"a": [conv(robust_window[0])], "b": [conv(robust_window[1])]}))
+                          .mark_rect(color="#8fbf9f", opacity=0.6).encode(
+                x=alt.X("a:Q", scale=alt.Scale(domain=xdom, nice=False)), x2="b:Q"))
+        qcolour = alt.Color("quantity:N", title="", scale=alt.Scale(domain=["yield", "tensile", "elongation"],
+                                                                    range=["#1b6f8a", "#c2571a", "#5b8c2a"]))
+        ytitle = title
+        layers.append(alt.Chart(sp).mark_area(opacity=0.22).encode(
+            x=x, y=alt.Y("lo:Q", title=ytitle, scale=alt.Scale(zero=False)), y2="hi:Q", color=qcolour))
+        layers.append(alt.Chart(nm).mark_line(strokeWidth=2, point=alt.OverlayMarkDef(size=16)).encode(
+            x=x, y=alt.Y("value:Q", title=ytitle, scale=alt.Scale(zero=False)), color=qcolour,
+            tooltip=[alt.Tooltip("main_value:Q", title=xt, format=".4g"), alt.Tooltip("quantity:N"),
+                     alt.Tooltip("value:Q", format=".4g")]))
+        rules = []
+        for k in tkeys:
+            v = targets.get(k)
+            if v is not None:
+                rules.append({"v": to_display(v, qcol, system) if qcol else v,
+                              "t": k.replace("_mpa", "").replace("_pct", "").replace("_", " ")})
+        if rules:
+            rf = pd.DataFrame(rules)
+            layers.append(alt.Chart(rf).mark_rule(color=TARGET_STROKE, strokeDash=[5, 3]).encode(y="v:Q"))
+            layers.append(alt.Chart(rf).mark_text(align="left", dx=4, dy=-5, color=TARGET_STROKE, fontSize=10)
+                          .encode(y="v:Q", x=alt.value(2), text="t:N"))
+        if chosen is not None and chosen == chosen:
+            layers.append(alt.Chart(pd.DataFrame({"c": [conv(chosen)]})).mark_rule(color="#111111", strokeWidth=1.5)
+                          .encode(x=alt.X("c:Q", scale=alt.Scale(domain=xdom, nice=False))))
+        panels.append(alt.layer(*layers).properties(height=190))
+    return alt.vconcat(*panels).resolve_scale(color="shared", x="shared")
+
+
+def comparison_frame(cand: pd.DataFrame, ids: Sequence[str], system: str) -> pd.DataFrame:
+    """Properties of the chosen candidates in long form for the shared-axis bars:
+    ``label, group, quantity, value`` (strengths in display units)."""
+    sub = cand[cand["id"].isin(list(ids))]
+    rows = []
+    su = unit("stress", system)
+    for _, r in sub.iterrows():
+        for col, qty, group in (("yield_mpa", "yield", f"strength ({su})"), ("uts_mpa", "tensile", f"strength ({su})"),
+                                ("elongation_pct", "elongation", "elongation (%)"),
+                                ("hardness_hrc", "hardness", "hardness (HRC)"),
+                                ("surface_hardness_hrc", "surface hardness", "hardness (HRC)"),
+                                ("relative_cost", "per kg", "relative cost"),
+                                ("part_cost", "per part", "relative cost")):
+            v = r.get(col)
+            if v is None or v != v:
+                continue
+            v = float(v)
+            if col.endswith("_mpa"):
+                v = float(to_display(v, "stress", system))
+            rows.append({"label": r["label"], "id": r["id"], "group": group, "quantity": qty, "value": v})
+    return pd.DataFrame(rows, columns=["label", "id", "group", "quantity", "value"])
+
+
+def comparison_bars(frame: pd.DataFrame, group: str, labels: Sequence[str], height: int = 170) -> alt.Chart:
+    """Bars of one property group (e.g. strength) for each candidate, on one shared axis."""
+    f = frame[frame["group"] == group]
+    return alt.Chart(f).mark_bar(cornerRadiusEnd=2).encode(
+        y=alt.Y("quantity:N", title=None),
+        yOffset=alt.YOffset("label:N", sort=list(labels)),
+        x=alt.X("value:Q", title=group),
+        color=alt.Color("label:N", title="candidate", scale=alt.Scale(domain=list(labels),
+                                                                      range=_colours_for(labels)),
+                        legend=alt.Legend(orient="bottom", labelLimit=300)),
+        tooltip=[alt.Tooltip("label:N", title="candidate"), "quantity:N", alt.Tooltip("value:Q", format=".4g")],
+    ).properties(height=height)
+
+
+def comparison_table(cand: pd.DataFrame, ids: Sequence[str], system: str) -> pd.DataFrame:
+    """One column per chosen candidate, one row per property, in display units."""
+    sub = cand.set_index("id").loc[list(ids)]
+    su, lu = unit("stress", system), unit("length", system)
+    rows = {
+        "grade": sub["grade"], "family": sub["family"], "route": sub["route_text"],
+        f"yield ({su})": to_display(sub["yield_mpa"].to_numpy(float), "stress", system),
+        f"tensile ({su})": to_display(sub["uts_mpa"].to_numpy(float), "stress", system),
+        "elongation (%)": sub["elongation_pct"], "hardness (HRC)": sub["hardness_hrc"],
+        "surface hardness (HRC)": sub["surface_hardness_hrc"],
+        f"case depth ({lu})": to_display(sub["case_depth_mm"].to_numpy(float), "length", system),
+        "relative cost per kg": sub["relative_cost"], "relative cost per part": sub["part_cost"],
+        "robust over composition": sub["robust"], "Pareto set": sub["pareto"],
+        "process window": [_fmt_window(a, b, p, system) for a, b, p in
+                           zip(sub["window_min"], sub["window_max"], sub["window_parameter"].astype(str))],
+    }
+    out = pd.DataFrame({k: list(v) for k, v in rows.items()}, index=sub.index).T
+    out.columns = list(sub["label"])
+    return out.astype(object).map(_cell)
+
+
+def _cell(v):
+    if isinstance(v, (bool, np.bool_)):
+        return "yes" if v else "no"
+    if isinstance(v, (float, np.floating)):
+        return "—" if v != v else f"{v:.4g}"
+    return v
+
+
+# --------------------------------------------------------------------------- readable route
+
+OP_TITLES = {"harden": "Austenitize and quench", "temper": "Temper", "normalize": "Normalize",
+             "anneal": "Anneal", "carburize": "Carburize", "nitride": "Nitride (gas)",
+             "induction_harden": "Induction harden", "cold_work": "Cold work",
+             "solution_treat": "Solution treat", "age": "Age"}
+
+
+#: how a step parameter reads in a sentence: name -> (words before the value, kind)
+STEP_WORDS = {"temp_c": ("at", "temperature"), "austenitize_c": ("from", "temperature"),
+              "hours": ("for", "hours"), "quench": ("quench in", "text"), "agitation": ("agitation", "text"),
+              "case_depth_mm": ("to a case depth of", "length"), "frequency_hz": ("at", "hz"),
+              "surface_carbon_pct": ("to a surface carbon of", "wt%"), "reduction_pct": ("by", "%"),
+              "designation": ("temper", "text")}
+
+
+def route_steps(route: Sequence[Mapping], system: str) -> list[str]:
+    """Readable numbered steps of a route, parameters in display units
+    (``2. **Temper** at 1004 °F, for 2 h``)."""
+    out = []
+    for i, s in enumerate(route, 1):
+        op = s.get("op", "?")
+        bits = []
+        for k, v in s.items():
+            if k == "op":
+                continue
+            words, kind = STEP_WORDS.get(k, (k.replace("_", " "), "number"))
+            if isinstance(v, bool) or not isinstance(v, (int, float)):
+                bits.append(f"{words} {v}")
+            elif kind == "temperature":
+                bits.append(f"{words} {to_display(v, 'temperature', system):.0f} {unit('temperature', system)}")
+            elif kind == "length":
+                bits.append(f"{words} {to_display(v, 'length', system):.3g} {unit('length', system)}")
+            elif kind == "hours":
+                bits.append(f"{words} {v:.3g} h")
+            elif kind == "hz":
+                bits.append(f"{words} {v / 1000:.3g} kHz")
+            else:
+                bits.append(f"{words} {v:.3g} {kind if kind not in ('number', 'text') else ''}".strip())
+        out.append(f"{i}. **{OP_TITLES.get(op, op)}**" + (" " + ", ".join(bits) if bits else ""))
+    return out
+
+
+def miss_table(misses: pd.DataFrame, system: str) -> pd.DataFrame:
+    """The nearest-miss report in display units (``move_*`` columns converted)."""
+    df = misses.copy()
+    keep = [c for c in df.columns if c in ("grade", "family", "route_text", "miss_score") or c.startswith("move_")]
+    keep += [c for c in ("yield_mpa", "uts_mpa", "elongation_pct", "hardness_hrc", "relative_cost") if c in df]
+    df = df[keep]
+    rename = {}
+    for c in df.columns:
+        q = quantity_of(c)
+        if q and system == US:
+            df[c] = to_display(df[c].to_numpy(float), q, system)
+            rename[c] = display_name(c, system)
+    return df.rename(columns=rename)
