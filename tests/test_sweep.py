@@ -135,3 +135,28 @@ def test_diameter_range():
         sweep.diameter_range(20, 10, 1)
     with pytest.raises(InputError):
         sweep.diameter_range(10, 20, 0)
+
+
+@pytest.mark.slow
+def test_sweep_agrees_with_select_at_each_diameter():
+    # the real engine: at each diameter the sweep's pick is the cheapest robust row of
+    # select(pin_targets(d), d, robust_only=True) run directly
+    import selector
+
+    case = {k: pins.DEMO_CASE[k] for k in pins.DEMO_PIN_KEYS if k != "diameter_mm"}
+    ds = [20.0, 28.0, 36.0]
+    sw = sweep.diameter_sweep(ds, **case)
+    length = sweep.pin_length_mm(case["shear_planes"], case["lug_thickness_mm"],
+                                 case["clevis_thickness_mm"], case["gap_mm"])
+    for d, row in zip(ds, sw.itertuples()):
+        t = pins.pin_targets(diameter_mm=d, **case)
+        cand = selector.select(t, d, length_mm=length, robust_only=True)
+        cand = cand[cand["robust"].astype(bool)]
+        assert row.n_robust == len(cand)
+        best = cand.sort_values(["part_cost", "relative_cost", "yield_mpa", "grade"],
+                                ascending=[True, True, False, True], kind="stable").iloc[0]
+        assert (row.grade, row.route_family, row.route_text) == (best["grade"], best["route_family"],
+                                                                  best["route_text"])
+        assert row.part_cost == pytest.approx(best["part_cost"], rel=1e-12)
+        assert row.part_cost == cand["part_cost"].min()
+        assert best["yield_mpa"] >= t["min_yield_mpa"] and best["uts_mpa"] >= t["min_uts_mpa"]
