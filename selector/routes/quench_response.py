@@ -1,0 +1,225 @@
+"""As-quenched hardness across a real section: the seam between the quench models and the route layer.
+
+Chain (each step its own published model):
+
+1. Grossmann severity H of the medium and agitation (:mod:`selector.models.quench_severity`)
+   → surface heat-transfer coefficient h = 2kH;
+2. transient conduction in the round bar or plate from the austenitizing temperature
+   into a 40 °C bath (:mod:`selector.models.cooling`, Fourier–Bessel series) → cooling
+   rate at 700 °C at each position r/R;
+3. the Jominy distance that cools at the same rate (Jominy cooling-rate table);
+4. the ASTM A255 Jominy curve of the composition at that distance
+   (:mod:`selector.models.hardenability`: IH(C) / DF(DI, d)) → as-quenched HRC;
+5. percent martensite from that hardness relative to the 99.9 / 90 / 50 %-martensite
+   hardness of the carbon content (:mod:`selector.models.martensite`).
+
+Air cooling (H ≈ 0.03–0.1 in⁻¹) runs through the same chain: its Jominy-equivalent
+distance lies beyond the 50 mm of the dividing factors, where the 50 mm hardness is
+held; those states carry a warning that the value is an upper estimate (a
+normalized structure of ferrite–pearlite or bainite is expected).
+
+Everything is vectorised over states; the only loop is over a handful of warning
+checks.  Results are estimates for preliminary selection.
+"""
+from __future__ import annotations
+
+import numpy as np
+
+from ..errors import InputError
+from ..models import conversions, cooling, critical_temperatures, hardenability, quench_severity, validity
+from ..models.composition import el
+from ..models.martensite import ih_hrc, martensite_hardness_hrc
+
+POSITIONS = (1.0, 0.75, 0.5, 0.25, 0.0)   # r/R, surface to centre
+
+#: lowest austenitizing temperature accepted, °C (the rate is taken at 700 °C)
+MIN_AUSTENITIZE_C = 720.0
+#: distance up to which the dividing factors are tabulated, mm
+DF_MAX_MM = 50.0
+
+
+def _as_1d(name, value, n=None):
+    a = np.asarray(value)
+    if a.ndim > 1:
+        raise InputError(name, f"array of shape {a.shape}", "a scalar or a 1-D array of one value per state")
+    return a
+
+
+def _first(mask):
+    return int(np.flatnonzero(mask)[0])
+
+
+def martensite_pct_from_hardness(c_pct, hardness_hrc):
+    """Percent martensite that gives ``hardness_hrc`` at carbon ``c_pct``.
+
+    Closed-form inverse of :func:`selector.models.martensite.martensite_hardness_hrc`
+    (piecewise linear between its 50, 90 and 99.9 % curves; linear extrapolation
+    below 50 %), clipped to 0–99.9 %.
+    """
+    c = np.asarray(c_pct, float)
+    h = np.asarray(hardness_hrc, float)
+    h100 = martensite_hardness_hrc(c, 99.9)
+    h90 = martensite_hardness_hrc(c, 90.0)
+    h50 = martensite_hardness_hrc(c, 50.0)
+    d_hi = np.maximum(h100 - h90, 1e-9)
+    d_lo = np.maximum(h90 - h50, 1e-9)
+    m = np.where(h >= h90, 90.0 + 9.9 * (h - h90) / d_hi,
+                 np.where(h >= h50, 50.0 + 40.0 * (h - h50) / d_lo, 50.0 - 40.0 * (h50 - h) / d_lo))
+    return np.clip(m, 0.0, 99.9)
+
+
+def _hrc_to_hv(hrc):
+    """E140 conversion; below HRC 20 extrapolated linearly along the HRC 20–22 rows (floor 100 HV)."""
+    hv = conversions.hrc_to_hv(np.clip(hrc, 20.0, 68.0))
+    hv20 = conversions.hrc_to_hv(20.0)
+    slope = (conversions.hrc_to_hv(22.0) - hv20) / 2.0
+    return np.where(hrc < 20.0, np.maximum(hv20 + slope * (hrc - 20.0), 100.0), hv)
+
+
+def as_quenched_profile(comp, quench, agitation="moderate", diameter_mm=None, thickness_mm=None,
+                        austenitize_c=None, grain_size_astm=7.0, positions=POSITIONS) -> dict:
+    """As-quenched hardness and martensite across a round bar or plate section.
+
+    Method: cooling rate at 700 °C (Grossmann H → Fourier–Bessel conduction) →
+    Jominy-equivalent distance → ASTM A255 Jominy hardness of the composition →
+    percent martensite against the carbon's 99.9 / 90 / 50 % martensite hardness.
+
+    Parameters
+    ----------
+    comp : mapping
+        Element → wt %, arrays of shape (n,) (scalars broadcast).
+    quench, agitation : str or array of str, shape (n,)
+        Quench medium (water, brine, oil, polymer, air) and agitation (none, mild,
+        moderate, strong).
+    diameter_mm, thickness_mm : float or array (n,)
+        Round-bar diameter or plate thickness, mm (exactly one of them).
+    austenitize_c : float or array (n,), optional
+        Austenitizing temperature, °C; None (or NaN entries) → Andrews Ac3 + 40 °C
+        (hypereutectoid: Ac1 + 50 °C), :func:`critical_temperatures.default_austenitize_c`.
+    grain_size_astm : float or array (n,)
+        ASTM austenite grain size (default 7, the A255 basis).
+    positions : sequence of float
+        r/R (bar) or x/L (plate), 1 = surface, 0 = centre.
+
+    Returns
+    -------
+    dict
+        ``positions`` (n_pos,); ``hardness_hrc``, ``hardness_hv``, ``martensite_pct``,
+        ``jominy_mm``, ``cooling_rate_c_s`` (n, n_pos); ``di_mm``, ``ms_c``, ``ac1_c``,
+        ``ac3_c``, ``austenitize_c`` (n,); ``warnings`` (list of str naming the states).
+
+    Raises
+    ------
+    InputError
+        Unknown medium/agitation, both or neither size given, non-positive size,
+        austenitize_c ≤ 720 °C, positions outside 0–1.
+
+    References
+    ----------
+    Grossmann (1952); Carslaw & Jaeger (1959); ASTM A255-10; Hodge & Orehoski (1946).
+    """
+    pos = np.asarray(positions, float)
+    if pos.ndim != 1 or pos.size == 0 or np.any(pos < 0) or np.any(pos > 1):
+        raise InputError("positions", positions, "a 1-D sequence of r/R values in [0, 1]")
+    if (diameter_mm is None) == (thickness_mm is None):
+        raise InputError("diameter_mm/thickness_mm", (diameter_mm, thickness_mm),
+                         "exactly one of diameter_mm (round bar) or thickness_mm (plate)")
+    size_name = "diameter_mm" if diameter_mm is not None else "thickness_mm"
+    size = _as_1d(size_name, diameter_mm if diameter_mm is not None else thickness_mm).astype(float)
+    q = _as_1d("quench", quench)
+    a = _as_1d("agitation", agitation)
+    g = _as_1d("grain_size_astm", grain_size_astm).astype(float)
+    comp1 = {k: _as_1d(k, v).astype(float) for k, v in comp.items()}
+    shapes = [v.shape for v in comp1.values()] + [size.shape, q.shape, a.shape, g.shape]
+    t0_in = None if austenitize_c is None else _as_1d("austenitize_c", austenitize_c).astype(float)
+    if t0_in is not None:
+        shapes.append(t0_in.shape)
+    shape = np.broadcast_shapes(*shapes)
+    n = shape[0] if shape else 1
+    bc = lambda x: np.broadcast_to(x, (n,))  # noqa: E731
+    comp1 = {k: bc(v) for k, v in comp1.items()}
+    size, q, a, g = bc(size), bc(q), bc(a), bc(g)
+
+    warnings: list[str] = []
+
+    def warn(mask, text, detail):
+        mask = np.asarray(mask, bool)
+        if mask.any():
+            i = _first(mask)
+            warnings.append(f"{text} for {int(mask.sum())} of {n} states (first: state {i}, {detail(i)})")
+
+    # temperatures
+    ac1 = np.asarray(critical_temperatures.ac1_c(comp1), float) * np.ones(n)
+    ac3 = np.asarray(critical_temperatures.ac3_c(comp1), float) * np.ones(n)
+    ms = np.asarray(critical_temperatures.ms_c(comp1), float) * np.ones(n)
+    t_default = np.asarray(critical_temperatures.default_austenitize_c(comp1), float) * np.ones(n)
+    if t0_in is None:
+        t0 = t_default
+    else:
+        t0 = np.where(np.isnan(bc(t0_in)), t_default, bc(t0_in))
+        given_low = ~np.isnan(bc(t0_in)) & (bc(t0_in) <= MIN_AUSTENITIZE_C)
+        if given_low.any():
+            i = _first(given_low)
+            raise InputError("austenitize_c", float(bc(t0_in)[i]),
+                             f"temperatures above {MIN_AUSTENITIZE_C:g} C (state {i})")
+    low = t0 <= MIN_AUSTENITIZE_C + 30.0
+    warn(low, f"default austenitizing temperature below {MIN_AUSTENITIZE_C + 30:.0f} C raised to that value",
+         lambda i: f"{t0[i]:.0f} C")
+    t0 = np.maximum(t0, MIN_AUSTENITIZE_C + 30.0)
+    hypo = el(comp1, "C") * np.ones(n) < critical_temperatures.EUTECTOID_C
+    warn(hypo & (t0 < ac3 - 1e-9), "austenitizing temperature below Andrews Ac3 (intercritical: ferrite remains)",
+         lambda i: f"{t0[i]:.0f} C < Ac3 {ac3[i]:.0f} C")
+
+    # quench severity -> cooling
+    h_in = np.asarray(quench_severity.grossmann_h_per_in(q, a), float)
+    h_w = quench_severity.heat_transfer_coefficient_w_m2k(h_in, cooling.K_STEEL_W_MK)
+    kw = {size_name: size}
+    rate = cooling.cooling_rate_at_c_s(h_w, positions=tuple(pos), austenitize_c=t0, **kw)
+    bi = cooling.biot_number(h_w, **kw)
+    warn(bi > 100.0, "Biot number above 100: surface cooling rate taken at Bi = 100",
+         lambda i: f"{q[i]}/{a[i]}, {size[i]:g} mm")
+
+    # Jominy equivalence and A255 hardness
+    jmm = cooling.jominy_equivalent_mm(rate)
+    c = el(comp1, "C") * np.ones(n)
+    di = np.asarray(hardenability.di_mm(comp1, g), float) * np.ones(n)
+    hrc = ih_hrc(c)[:, None] / hardenability.dividing_factor(di[:, None], jmm)
+    mart = martensite_pct_from_hardness(c[:, None], hrc)
+    hv = _hrc_to_hv(hrc)
+
+    # validity and metallurgical warnings, each naming the states
+    ranges = validity.get("astm_a255").ranges
+    for e, (lo, hi, unit) in ranges.items():
+        x = el(comp1, e) * np.ones(n)
+        bad = (x < lo - 1e-9) | (x > hi + 1e-9)
+        warn(bad, f"astm_a255: {e} outside {lo:g}-{hi:g} {unit} ({validity.get('astm_a255').reference}); "
+                  "DI and Jominy curve extrapolated", lambda i, x=x, e=e: f"{e} = {x[i]:.3g} {unit}")
+    warn((di < 10.0) | (di > 160.0), "DI outside 10-160 mm of the dividing-factor fit; end value held",
+         lambda i: f"DI = {di[i]:.0f} mm")
+    warn(np.any(jmm > DF_MAX_MM, axis=1),
+         "Jominy-equivalent distance beyond 50 mm (slow cooling, e.g. air): hardness is the 50 mm value, "
+         "an upper estimate", lambda i: f"{q[i]}/{a[i]}, {size[i]:g} mm, J = {jmm[i].max():.0f} mm")
+    centre = int(np.argmin(pos))
+    warn(mart[:, centre] < 50.0, "as-quenched centre below 50 % martensite (not through-hardened)",
+         lambda i: f"{q[i]}/{a[i]}, {size_name} = {size[i]:g}, centre {mart[i, centre]:.0f} % martensite")
+    warn(np.any(hrc < 20.0, axis=1), "hardness below HRC 20: HV extrapolated below ASTM E140 Table 1",
+         lambda i: f"{hrc[i].min():.1f} HRC")
+    warn(c > 0.6 + 1e-9, f"andrews_ac: C above 0.6 wt% ({critical_temperatures.ANDREWS}); Ac3 and Ms extrapolated",
+         lambda i: f"C = {c[i]:.2f} wt%")
+    warn((g < 5) | (g > 9), "grain size outside ASTM 5-9 of the Grossmann grain-size fit",
+         lambda i: f"G = {g[i]:g}")
+
+    return {
+        "positions": pos,
+        "hardness_hrc": hrc,
+        "hardness_hv": hv,
+        "martensite_pct": mart,
+        "jominy_mm": jmm,
+        "cooling_rate_c_s": rate,
+        "di_mm": di,
+        "ms_c": ms,
+        "ac1_c": ac1,
+        "ac3_c": ac3,
+        "austenitize_c": t0,
+        "warnings": warnings,
+    }
