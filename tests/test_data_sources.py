@@ -22,7 +22,7 @@ from selector.catalogue.loader import CONFIDENCE
 ROOT = Path(__file__).resolve().parents[1]
 DATA = ROOT / "data"
 README = DATA / "README.md"
-KINDS = ("typical", "minimum", "band")
+KINDS = ("typical", "minimum", "band", "band min/max")  # "band min/max": a row giving both limits of a hardenability band
 
 _spec = importlib.util.spec_from_file_location("list_sources", ROOT / "scripts" / "list_sources.py")
 LS = importlib.util.module_from_spec(_spec)
