@@ -31,6 +31,8 @@ from .quench_temper import default_austenitize_c, through_harden
 
 ROUTE = "induction"
 PRIORS = ("quench_temper", "normalize", "none")
+#: lowest prior temper spanned by the grid, °C (common practice for induction-hardened Q&T cores)
+PRIOR_TEMPER_MIN_C = 450.0
 
 
 class Induction(RouteFamily):
@@ -106,8 +108,14 @@ class Induction(RouteFamily):
         return steps
 
     def grid(self, grade):
-        depth = self.span(grade, ROUTE, "case_depth_mm", 4, (0.5, 6.0))
-        prior_t = self.span(grade, "quench_temper", "temper_temp_c", 3, (450.0, 650.0))
+        depth = np.unique(np.round(self.span(grade, ROUTE, "case_depth_mm", 5, (0.5, 6.0)) * 2.0) / 2.0)
+        # a core for induction hardening is tempered well above the 150–230 °C temper that
+        # follows (common practice: quench and temper to 450–650 °C first)
+        w = grade.window("quench_temper", "temper_temp_c")
+        hi = w.max if w is not None and w.max == w.max else 650.0
+        wlo = w.min if w is not None and w.min == w.min else PRIOR_TEMPER_MIN_C
+        lo = max(PRIOR_TEMPER_MIN_C, wlo) if hi >= PRIOR_TEMPER_MIN_C else wlo
+        prior_t = np.unique(np.round(np.linspace(lo, max(lo, hi), 3) / 5.0) * 5.0)
         g = product_grid(case_depth_mm=depth, prior_temper_temp_c=prior_t)
         n = len(g["case_depth_mm"])
         g["frequency_hz"] = np.full(n, np.nan)
@@ -192,6 +200,8 @@ class Induction(RouteFamily):
         notes.append(("hardened depth over a quarter of the section: close to through-hardening; residual "
                       "stresses and cracking risk differ from a surface layer (common practice)",
                       depth_case > section / 4.0))
+        notes.append(("prior temper below the temper after induction hardening: the core is tempered again; "
+                      "the model keeps the prior core", prior_qt & tempered & (pt_t < t_t)))
         notes.append(("untempered induction-hardened surface: brittle; temper at 150–230 °C (common practice)",
                       ~tempered))
         notes.append(("core taken as the annealed baseline (no normalizing model): a normalized core is "
