@@ -251,3 +251,35 @@ def test_galvanic_members_are_unique_and_indices_ordered():
     for fam in ("carbon_steel", "alloy_steel", "carburizing_steel", "nitriding_steel", "stainless_austenitic",
                 "stainless_martensitic", "stainless_ph", "aluminium", "copper_alloy", "titanium"):
         assert ca._lookup_grade("x", fam) is not None, fam
+
+
+# --- two-stage routes: the prior hardening of an induction route, the Q&T before nitriding ---
+def test_two_stage_routes():
+    ind = dict(grade="4140", family="alloy_steel", route="induction", prior="quench_temper", quench="polymer",
+               temper_temp_c=180.0, c_pct=0.40, prior_quench="oil", prior_temper_temp_c=550.0)
+    nit = dict(grade="41CrAlMo7-10", family="nitriding_steel", route="nitride", quench="oil",
+               temper_temp_c=600.0, temp_c=525.0, c_pct=0.41)
+    car = dict(grade="8620", family="carburizing_steel", route="carburize", quench="oil",
+               temper_temp_c=175.0, temp_c=925.0, c_pct=0.35)
+    df = frame(ind,
+               dict(ind, prior_temper_temp_c=300.0),             # core in the TME range
+               dict(ind, prior_quench="water"),                  # prior water quench, 0.40 % C
+               dict(ind, prior="", c_pct=0.25),                  # bare induction, low C
+               nit, car)
+    got = fired(df)
+    assert got[0] == ["decarburization"]
+    assert got[1] == ["tme", "decarburization"]
+    assert got[2] == ["quench_cracking", "decarburization"]
+    assert got[3] == []
+    assert got[4] == ["decarburization"]
+    assert got[5] == []                                          # carburizing atmosphere: no decarb rule
+    # service near the nitriding temperature (525 °C) fires from 475 °C; the carburizing
+    # temperature (925 °C) is not a tempering temperature, its 175 °C temper is
+    def svc(df, t):
+        return [("service_temperature" in c) for c in fired(df, service_temp_c=t)]
+    assert svc(frame(nit, car), 474.9) == [False, True]
+    assert svc(frame(nit), 475.0) == [True]
+    assert svc(frame(car), 124.9) == [False]
+    reason = {d["code"]: d["reason"] for d in ca.cautions_for(frame(nit), service_temp_c=480.0)[0]}[
+        "service_temperature"]
+    assert "nitrided at 525 °C" in reason and "tempered at 600 °C" in reason

@@ -11,27 +11,32 @@ The columns read are those of the states table: ``grade``, ``family``, ``route``
 (the route family; a candidates table from ``select`` carries it as
 ``route_family``), ``quench``, ``temper_temp_c``, ``age_temp_c``, ``peak_ratio``,
 ``designation``, ``c_pct``, ``hardness_hrc``, ``surface_hardness_hrc``,
-``uts_mpa``.  ``grade`` and ``family`` are required; a missing optional column
+``uts_mpa``, and for two-stage routes ``prior`` (the route of the prior
+hardening), ``prior_quench``, ``prior_temper_temp_c`` and ``temp_c`` (the
+nitriding temperature of a nitride route).  ``grade`` and ``family`` are required; a missing optional column
 counts as "not applicable" (NaN or empty), since a table that joins several route
 families leaves the columns of the others empty.
 
 The rules (thresholds and sources in ``data/cautions.csv``):
 
 =======================  =====================================================
-tme                      hardened steel tempered at 260-370 °C
+tme                      hardened steel tempered at 260-370 °C (final temper, or
+                         the prior temper of an induction-hardened core)
 hydrogen_embrittlement   plated steel (not austenitic) at >= 320 HV core or
                          surface (32.2 HRC, ASTM E140) or >= 1000 MPa
                          (ISO 4042:1999 §6)
-quench_cracking          water/brine quench of alloy steel with C >= 0.35 %
-                         or of carbon steel with C >= 0.60 %
-decarburization          steel with C >= 0.30 % austenitized on a
-                         quench_temper, normalize or anneal route
+quench_cracking          water/brine quench (the route's or the prior one) of
+                         alloy steel with C >= 0.35 % or of carbon steel with
+                         C >= 0.60 %
+decarburization          steel with C >= 0.30 % austenitized in a furnace:
+                         quench_temper, normalize, anneal, the Q&T before
+                         nitriding, or the prior hardening of induction
 over_aging               peak_ratio > 1, except standard over-aged tempers
 scc_7xxx_t6              7xxx aluminium in a T6-type temper
 galvanic                 anodic-index difference to the named mating material
                          above 0.15 / 0.25 / 0.50 V (harsh / normal /
                          controlled), MIL-DTL-14072 Table VI groups
-service_temperature      service temperature >= tempering or aging
+service_temperature      service temperature >= tempering, aging or nitriding
                          temperature - 50 °C
 =======================  =====================================================
 
@@ -121,9 +126,11 @@ class _Frame:
         route_col = "route_family" if "route_family" in frame.columns else "route"
         self.route = self._str(frame, route_col)
         self.quench = np.char.lower(self._str(frame, "quench").astype(str))
+        self.prior_quench = np.char.lower(self._str(frame, "prior_quench").astype(str))
+        self.prior = self._str(frame, "prior")
         self.designation = self._str(frame, "designation")
         for col in ("temper_temp_c", "age_temp_c", "peak_ratio", "c_pct", "hardness_hrc",
-                    "surface_hardness_hrc", "uts_mpa"):
+                    "surface_hardness_hrc", "uts_mpa", "prior_temper_temp_c", "temp_c"):
             setattr(self, col, self._num(frame, col))
 
     def _str(self, frame, col) -> np.ndarray:
@@ -150,12 +157,18 @@ def _ge(x: np.ndarray, lim) -> np.ndarray:
 
 # --- triggers: (frame, context) -> bool mask ------------------------------------------------
 
-def _tme(f: _Frame, ctx: dict) -> np.ndarray:
+def _in_tme(t: np.ndarray) -> np.ndarray:
     lo, hi = TME_RANGE_C
-    t = f.temper_temp_c
     with np.errstate(invalid="ignore"):
-        in_range = (t >= lo) & (t <= hi)
-    return f.isin("family", HARDENED_STEELS) & f.isin("route", HARDENING_ROUTES) & in_range
+        return (t >= lo) & (t <= hi)
+
+
+def _tme(f: _Frame, ctx: dict) -> np.ndarray:
+    # the final temper of a hardening route, or the prior quench-and-temper of the core
+    # of an induction-hardened part (induction re-hardens only the surface)
+    final = f.isin("route", HARDENING_ROUTES) & _in_tme(f.temper_temp_c)
+    core = (f.route == "induction") & _in_tme(f.prior_temper_temp_c)
+    return f.isin("family", HARDENED_STEELS) & (final | core)
 
 
 def _hydrogen(f: _Frame, ctx: dict) -> np.ndarray:
@@ -166,14 +179,23 @@ def _hydrogen(f: _Frame, ctx: dict) -> np.ndarray:
     return f.isin("family", HE_FAMILIES) & strong
 
 
+def _severe(quench: np.ndarray) -> np.ndarray:
+    return np.array([q.split("_")[0].split(" ")[0] in SEVERE_QUENCHES for q in quench], bool)
+
+
 def _quench_cracking(f: _Frame, ctx: dict) -> np.ndarray:
-    severe = np.array([q.split("_")[0].split(" ")[0] in SEVERE_QUENCHES for q in f.quench], bool)
+    # the route's own quench, or the prior through-hardening quench of an induction route
+    severe = _severe(f.quench) | _severe(f.prior_quench)
     limit = np.array([QUENCH_CRACK_C_PCT.get(fam, np.inf) for fam in f.family], float)
     return severe & _ge(f.c_pct - limit, -1e-9)
 
 
 def _decarb(f: _Frame, ctx: dict) -> np.ndarray:
-    return f.isin("family", DECARB_FAMILIES) & f.isin("route", DECARB_ROUTES) & _ge(f.c_pct, DECARB_C_PCT - 1e-9)
+    # furnace austenitizing: the route itself, the quench-and-temper before nitriding,
+    # or the prior through-hardening of an induction route
+    furnace = (f.isin("route", DECARB_ROUTES) | (f.route == "nitride")
+               | ((f.route == "induction") & f.isin("prior", DECARB_ROUTES)))
+    return f.isin("family", DECARB_FAMILIES) & furnace & _ge(f.c_pct, DECARB_C_PCT - 1e-9)
 
 
 def _deliberately_overaged(designation: str, family: str) -> bool:
@@ -211,7 +233,9 @@ def _service_temperature(f: _Frame, ctx: dict) -> np.ndarray:
     ts = ctx.get("service_temp_c")
     if ts is None:
         return np.zeros(f.n, bool)
-    return _ge(ts - f.temper_temp_c, -SERVICE_MARGIN_C - 1e-9) | _ge(ts - f.age_temp_c, -SERVICE_MARGIN_C - 1e-9)
+    nitriding = np.where(f.route == "nitride", f.temp_c, np.nan)
+    near = [_ge(ts - t, -SERVICE_MARGIN_C - 1e-9) for t in (f.temper_temp_c, f.age_temp_c, nitriding)]
+    return near[0] | near[1] | near[2]
 
 
 # --- per-row detail appended to a reason (optional) ----------------------------------------
@@ -225,8 +249,9 @@ def _galvanic_detail(f: _Frame, ctx: dict, i: int) -> str:
 
 
 def _service_detail(f: _Frame, ctx: dict, i: int) -> str:
-    temps = [f"{name} {t:g} °C" for name, t in (("tempered at", f.temper_temp_c[i]), ("aged at", f.age_temp_c[i]))
-             if t == t]
+    nit = f.temp_c[i] if f.route[i] == "nitride" else np.nan
+    temps = [f"{name} {t:g} °C" for name, t in (("tempered at", f.temper_temp_c[i]), ("aged at", f.age_temp_c[i]),
+                                                 ("nitrided at", nit)) if t == t]
     return f" Service {ctx['service_temp_c']:g} °C; {' and '.join(temps)}."
 
 
