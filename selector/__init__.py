@@ -13,11 +13,8 @@ from .routes.evaluate import evaluate
 CAUTION = ("Estimates for preliminary selection only. The final choice needs certified material "
            "test reports, the applicable design code and review by a qualified engineer.")
 
-__all__ = ["catalogue", "grade", "evaluate", "CAUTION", "SelectorError", "InputError", "RouteError",
-           "NotModelledError", "UnknownGradeError", "DataFileError", "SelectorWarning"]
+from .selection.engine import alternatives, nearest_misses, select
 
-try:  # the selection engine (added by later modules)
-    from .selection.engine import alternatives, nearest_misses, select  # noqa: F401
-    __all__ += ["select", "nearest_misses", "alternatives"]
-except ImportError:  # pragma: no cover - during development only
-    pass
+__all__ = ["catalogue", "grade", "evaluate", "select", "nearest_misses", "alternatives", "CAUTION",
+           "SelectorError", "InputError", "RouteError", "NotModelledError", "UnknownGradeError",
+           "DataFileError", "SelectorWarning"]
