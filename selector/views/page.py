@@ -268,16 +268,31 @@ def cached_evaluate(grade: str, route_json: str, diameter_mm, thickness_mm, comp
                              thickness_mm=thickness_mm, composition=composition)
 
 
-@st.cache_data(show_spinner=False)
-def cached_cautions(frame_json: str) -> list:
-    """Cautions of the candidate rows from :mod:`selector.design.cautions` when that
-    module is present (else an empty list per row)."""
-    frame = pd.read_json(frame_json, orient="records")
+#: columns the caution rules read (selector.design.cautions), when present
+CAUTION_COLUMNS = ("grade", "family", "route_family", "quench", "temper_temp_c", "age_temp_c", "peak_ratio",
+                   "designation", "c_pct", "hardness_hrc", "surface_hardness_hrc", "uts_mpa")
+
+
+def candidate_cautions(row: Mapping, warnings: Sequence[str] = ()) -> list[str]:
+    """Every caution of one candidate, without repeats: the route model's notes and
+    ``evaluate`` warnings, then the rules of :mod:`selector.design.cautions` (when
+    that module is present) as ``title: reason``."""
+    out = [w for w in warnings if w]
+    notes = row.get("notes")
+    if isinstance(notes, str) and notes:
+        out += [n.strip() for n in notes.split(" | ") if n.strip()]
     try:
         from selector.design.cautions import cautions_for
     except ImportError:
-        return [[] for _ in range(len(frame))]
-    return cautions_for(frame)
+        cautions_for = None
+    if cautions_for is not None:
+        frame = pd.DataFrame([{c: row.get(c) for c in CAUTION_COLUMNS if c in row}])
+        try:
+            found = cautions_for(frame)[0]
+        except SelectorError:
+            found = []
+        out += [f"{c['title']}: {c['reason']}" for c in found]
+    return list(dict.fromkeys(out))
 
 
 def targets_key(targets: Mapping) -> str:

@@ -1,0 +1,311 @@
+"""The local page of ``selector``: ``streamlit run app.py`` (serves on 127.0.0.1 only).
+
+Layout, widgets and calls only.  Every number comes from the library through the
+cached wrappers of :mod:`selector.views.page`; unit conversion is for display and
+input, the library works in SI.  Results are estimates for preliminary selection.
+"""
+from __future__ import annotations
+
+import streamlit as st
+
+import selector
+from selector.catalogue.grades import FAMILIES
+from selector.errors import SelectorError
+from selector.selection.targets import validate_targets
+from selector.views import page as pg
+
+st.set_page_config(page_title="selector · grade and route finder", page_icon="🔩", layout="wide")
+
+
+# ----------------------------------------------------------------------------- state defaults
+def _defaults():
+    d = pg.DEMO
+    ss = st.session_state
+    if "_init" in ss:
+        return
+    ss["_init"] = True
+    ss["units"] = pg.SI
+    ss["_units_prev"] = pg.SI
+    ss["shape"] = "round bar" if d["shape"] == "round" else "plate"
+    ss["diameter"] = d["diameter_mm"]
+    ss["thickness"] = d["thickness_mm"]
+    ss["length"] = d["length_mm"]
+    for key, (wkey, _, _) in pg.TARGET_FIELDS.items():
+        ss[wkey] = d["targets"].get(key)
+    ss["families"] = list(FAMILIES)
+
+
+def _units_changed():
+    ss = st.session_state
+    new, old = ss["units"], ss.get("_units_prev", pg.SI)
+    for k, v in pg.convert_inputs({k: ss.get(k) for k in pg.UNIT_INPUTS}, old, new).items():
+        ss[k] = v
+    ss["_units_prev"] = new
+
+
+_defaults()
+ss = st.session_state
+
+
+def notice(where: str):
+    """The caution and the notice to defer to codes and review (every view)."""
+    st.warning(f"**{selector.CAUTION}** {pg.DEFER_NOTICE}", icon="⚠️")
+
+
+# ----------------------------------------------------------------------------- inputs (sidebar)
+with st.sidebar:
+    st.markdown("### Part")
+    st.radio("Units", pg.UNIT_SYSTEMS, key="units", horizontal=True, on_change=_units_changed,
+             help="SI: MPa, mm, °C.  US customary: ksi, in, °F.  The library computes in SI.")
+    system = ss["units"]
+    su, lu = pg.unit("stress", system), pg.unit("length", system)
+    lfmt = "%.3f" if system == pg.US else "%.1f"
+    sfmt = "%.1f" if system == pg.US else "%.0f"
+    st.radio("Section", ("round bar", "plate"), key="shape", horizontal=True)
+    if ss["shape"] == "round bar":
+        st.number_input(f"Diameter ({lu})", key="diameter", value=None, step=0.1 if system == pg.US else 1.0,
+                        format=lfmt)
+    else:
+        st.number_input(f"Plate thickness ({lu})", key="thickness", value=None,
+                        step=0.1 if system == pg.US else 1.0, format=lfmt)
+    st.number_input(f"Part length ({lu})", key="length", value=None, step=0.5 if system == pg.US else 10.0,
+                    format=lfmt)
+
+    st.markdown("### Targets")
+    st.caption("Blank means no limit.  Strength and hardness at the ASTM A370 test location.")
+    c1, c2 = st.columns(2)
+    c1.number_input(f"Min yield ({su})", key="min_yield", value=None, format=sfmt)
+    c2.number_input(f"Max yield ({su})", key="max_yield", value=None, format=sfmt)
+    c1.number_input(f"Min tensile ({su})", key="min_uts", value=None, format=sfmt)
+    c2.number_input(f"Max tensile ({su})", key="max_uts", value=None, format=sfmt)
+    c1.number_input("Min elongation (%)", key="min_elong", value=None, format="%.1f")
+    c2.number_input("Max rel. cost / kg", key="max_cost", value=None, format="%.2f")
+    with st.expander("Hardness and case"):
+        h1, h2 = st.columns(2)
+        h1.number_input("Min hardness (HRC)", key="min_hrc", value=None, format="%.1f")
+        h2.number_input("Max hardness (HRC)", key="max_hrc", value=None, format="%.1f")
+        h1.number_input("Min surface (HRC)", key="min_surface_hrc", value=None, format="%.1f")
+        h2.number_input(f"Min case depth ({lu})", key="min_case_depth", value=None,
+                        format="%.3f" if system == pg.US else "%.2f")
+
+    st.markdown("### Scope")
+    st.multiselect("Families", list(FAMILIES), key="families", format_func=lambda f: f.replace("_", " "))
+    st.checkbox("Corrosion-resistant grades only", key="corrosion")
+    st.checkbox("Only candidates that hold over the whole composition range", key="robust_only")
+
+    st.markdown("### Prices")
+    upload = st.file_uploader("Price sheet (CSV: grade, relative_price[, source])", type=["csv"], key="price_file")
+    with st.expander("…or paste one"):
+        st.text_area("Price sheet text", key="price_text", height=90,
+                     placeholder="grade,relative_price\n4140,1.9\n1045,1.2")
+
+    st.markdown("### Chart")
+    st.radio("Strength axis", ("yield", "tensile"), key="chart_y", horizontal=True)
+    st.slider("Candidates drawn", 3, 30, 15, key="chart_n")
+
+
+# ----------------------------------------------------------------------------- header
+st.title("selector · grade and route finder")
+st.caption(pg.DEMO["title"])
+notice("top")
+
+# ----------------------------------------------------------------------------- validation
+errors = []
+round_bar = ss["shape"] == "round bar"
+d_si = pg.to_si(ss.get("diameter"), "length", system) if round_bar else None
+t_si = None if round_bar else pg.to_si(ss.get("thickness"), "length", system)
+len_si = pg.to_si(ss.get("length"), "length", system)
+if round_bar and d_si is None:
+    errors.append(f"Diameter: blank; allowed: a diameter in {lu}")
+if not round_bar and t_si is None:
+    errors.append(f"Plate thickness: blank; allowed: a thickness in {lu}")
+if len_si is None:
+    errors.append(f"Part length: blank; allowed: a length in {lu}")
+
+fam_msg = pg.check_families(ss["families"])
+if fam_msg:
+    errors.append(fam_msg)
+targets = pg.targets_from_inputs({k: ss.get(k) for k in [w for w, _, _ in pg.TARGET_FIELDS.values()]},
+                                 system, ss["families"] or None, bool(ss.get("corrosion")))
+try:
+    targets = validate_targets(targets, FAMILIES)
+except SelectorError as exc:
+    errors.append(pg.explain(exc, system))
+
+prices_file = upload.getvalue() if upload is not None else None
+prices, price_msg = pg.read_price_sheet(prices_file, getattr(upload, "name", "price sheet"))
+if price_msg is None and prices is None:
+    prices, price_msg = pg.read_price_sheet(ss.get("price_text") or None, "pasted price sheet")
+if price_msg:
+    st.error(f"Price sheet not applied (nothing of it is used): {price_msg}")
+    prices = ss.get("_prices_ok")
+elif prices is not None:
+    ss["_prices_ok"] = prices
+else:
+    ss["_prices_ok"] = None
+price_items = tuple(sorted(prices.items())) if prices else ()
+
+prepared_ok = False
+if not errors:
+    try:
+        pg.cached_prepare(d_si, t_si, len_si, price_items)
+        prepared_ok = True
+    except SelectorError as exc:
+        errors.append(pg.explain(exc, system))
+
+for e in errors:
+    st.error(e)
+
+
+# ----------------------------------------------------------------------------- views
+def candidate_view(cand, states):
+    ids = list(cand["variant"])
+    labels = dict(zip(cand["variant"], cand["label"]))
+    if ss.get("pick") not in ids:
+        ss["pick"] = ids[0]
+    st.selectbox("Candidate", ids, key="pick", format_func=lambda v: labels.get(v, v))
+    row = cand.set_index("variant").loc[ss["pick"]]
+    ev = pg.cached_evaluate(row["grade"], pg.route_json(row["route"]), d_si, t_si)
+    g = selector.grade(row["grade"])
+    st.subheader(f"{row['id']} · {g.name} · {row['route_text']}")
+    m = st.columns(6)
+    m[0].metric(f"Yield ({su})", f"{pg.to_display(row['yield_mpa'], 'stress', system):.4g}")
+    m[1].metric(f"Tensile ({su})", f"{pg.to_display(row['uts_mpa'], 'stress', system):.4g}")
+    m[2].metric("Elongation (%)", f"{row['elongation_pct']:.3g}")
+    hrc = row["hardness_hrc"]
+    m[3].metric("Hardness (HRC)", "—" if hrc != hrc else f"{hrc:.3g}")
+    m[4].metric("Rel. cost / kg", f"{row['relative_cost']:.3g}")
+    m[5].metric("Holds at every corner", "yes" if row["robust"] else "nominal only")
+    left, right = st.columns(2)
+    with left:
+        st.markdown("**Route**")
+        st.markdown("\n".join(pg.route_steps(row["route"], system)))
+        param = row["window_parameter"]
+        if param:
+            st.markdown(f"**Process window** (nominal composition): "
+                        f"{pg._fmt_window(row['window_min'], row['window_max'], param, system) or '—'}")
+            rw = pg._fmt_window(row["robust_window_min"], row["robust_window_max"], param, system)
+            st.markdown(f"**Window at every composition corner**: {rw or 'none: holds at the nominal only'}")
+    with right:
+        st.markdown("**Cautions**")
+        cautions = pg.candidate_cautions(row, ev.get("warnings", []))
+        if cautions:
+            st.warning("\n".join(f"- {c}" for c in cautions))
+        else:
+            st.info("No route-specific caution raised; the general notice above still applies.")
+    c1, c2 = st.columns(2)
+    with c1:
+        param = row["window_parameter"]
+        if param:
+            pf = pg.parameter_frame(states, ss["pick"], system)
+            st.altair_chart(pg.parameter_chart(pf, param, (row["window_min"], row["window_max"]),
+                                               (row["robust_window_min"], row["robust_window_max"]), targets,
+                                               system, row["main_value"]), width="stretch")
+            st.caption("Line: nominal composition; band: lean to rich corner; light shading: the window that "
+                       "meets the targets; darker: where it holds at every corner.")
+        else:
+            st.info("This route has no main process parameter to vary.")
+    with c2:
+        if ev.get("profile"):
+            pfr = pg.profile_frame({row["label"]: ev["profile"]}, system)
+            st.altair_chart(pg.profile_chart(pfr, system, [row["label"]]), width="stretch")
+        else:
+            st.info("This route family reports no hardness profile across the section.")
+    st.markdown("**Sources**")
+    st.markdown("\n".join(f"- {s}" for s in ev.get("sources", [])))
+
+
+def comparison_view(cand):
+    ids = list(cand["variant"])
+    labels = dict(zip(cand["variant"], cand["label"]))
+    cur = [v for v in ss.get("compare", []) if v in ids]
+    if not cur:
+        through = cand[cand["route_family"] == "quench_temper"]["variant"].head(1).tolist()
+        case = cand[cand["route_family"].isin(["carburize", "nitride", "induction"])]["variant"].head(1).tolist()
+        cur = (through + case) if len(through + case) >= 2 else ids[:2]
+    ss["compare"] = cur[:3]
+    st.multiselect("Candidates to compare (two or three)", ids, key="compare", max_selections=3,
+                   format_func=lambda v: labels.get(v, v))
+    chosen = ss["compare"]
+    if len(chosen) < 2:
+        st.info("Pick two or three candidates.")
+        return
+    sub = cand[cand["variant"].isin(chosen)]
+    cids = list(sub["id"])
+    lab = list(sub["label"])
+    st.dataframe(pg.comparison_table(cand, cids, system), width="stretch")
+    frame = pg.comparison_frame(cand, cids, system)
+    b1, b2 = st.columns(2)
+    b1.altair_chart(pg.comparison_bars(frame, f"strength ({su})", lab), width="stretch")
+    b2.altair_chart(pg.comparison_bars(frame, "relative cost", lab), width="stretch")
+    b3, b4 = st.columns(2)
+    b3.altair_chart(pg.comparison_bars(frame, "elongation (%)", lab, height=110), width="stretch")
+    b4.altair_chart(pg.comparison_bars(frame, "hardness (HRC)", lab, height=140), width="stretch")
+    profiles = {}
+    for _, r in sub.iterrows():
+        ev = pg.cached_evaluate(r["grade"], pg.route_json(r["route"]), d_si, t_si)
+        if ev.get("profile"):
+            profiles[r["label"]] = ev["profile"]
+    if profiles:
+        st.altair_chart(pg.profile_chart(pg.profile_frame(profiles, system), system, list(profiles),
+                                         title="Hardness across the section (shared axes)"),
+                        width="stretch")
+    for _, r in sub.iterrows():
+        ev = pg.cached_evaluate(r["grade"], pg.route_json(r["route"]), d_si, t_si)
+        cautions = pg.candidate_cautions(r, ev.get("warnings", []))
+        if cautions:
+            st.warning(f"**{r['label']}**\n" + "\n".join(f"- {c}" for c in cautions))
+
+
+if prepared_ok:
+    try:
+        cand = pg.cached_rank(d_si, t_si, len_si, price_items, pg.targets_key(targets),
+                              bool(ss.get("robust_only")))
+    except SelectorError as exc:
+        st.error(pg.explain(exc, system))
+        cand = None
+    if cand is not None and len(cand) == 0:
+        st.subheader("No candidate meets every target")
+        st.markdown("The nearest misses: how far each target would have to move for the candidate to "
+                    "qualify at the nominal composition (`move_*`, in the units shown), smallest total first.")
+        try:
+            misses = pg.cached_nearest_misses(d_si, t_si, len_si, price_items, pg.targets_key(targets))
+            st.dataframe(pg.miss_table(misses, system), width="stretch", hide_index=True,
+                         key="misses")
+        except SelectorError as exc:
+            st.error(pg.explain(exc, system))
+    elif cand is not None:
+        cand = pg.label_candidates(cand)
+        n_chart = int(ss.get("chart_n", 15))
+        top = cand.head(n_chart)
+        pick = ss.get("pick") if ss.get("pick") in set(cand["variant"]) else cand["variant"].iloc[0]
+        states = pg.cached_variant_states(d_si, t_si, len_si, price_items,
+                                          tuple(sorted(set(top["variant"]) | {pick})))
+        st.markdown(f"**{len(cand)}** candidates meet the targets: **{int(cand['pareto'].sum())}** in the "
+                    f"Pareto set (max yield, max elongation, min cost), **{int(cand['robust'].sum())}** hold at "
+                    f"every composition corner.")
+        tab_map, tab_one, tab_two = st.tabs(["Map and list", "One candidate", "Side by side"])
+        with tab_map:
+            y = "yield_mpa" if ss.get("chart_y", "yield") == "yield" else "uts_mpa"
+            picked_id = cand.set_index("variant").loc[pick, "id"]
+            frames = pg.chart_frames(states, top, y, system, picked=picked_id)
+            st.altair_chart(pg.strength_elongation_chart(frames, targets, y, system, picked=picked_id),
+                            width="stretch")
+            st.caption(f"Shaded: each candidate's reachable region over its process window and composition "
+                       f"range; line: its process path at the nominal composition, labelled with the main "
+                       f"parameter; ◆ Pareto set, ▼ other candidates; ringed: the candidate in focus. "
+                       f"Top {len(top)} of {len(cand)} drawn.")
+            table = pg.display_table(cand.drop(columns=["label"]), system)
+            st.dataframe(table, width="stretch", hide_index=True, key="candidates")
+            st.download_button("Download the table (CSV)", pg.to_csv(table), file_name="candidates.csv",
+                               mime="text/csv", key="download")
+        with tab_one:
+            candidate_view(cand, states)
+        with tab_two:
+            comparison_view(cand)
+
+# ----------------------------------------------------------------------------- footer
+st.divider()
+notice("footer")
+st.caption("Catalogue values carry a confidence tag (verified, partial, from memory, common practice); "
+           "models and their publications are listed in docs/methods.md.")
