@@ -37,7 +37,7 @@ DIN_50190_DELTA_HV = 50.0
 #: core does not soften during the long nitriding cycle
 TEMPER_MARGIN_C = 30.0
 
-REF_DEPTH = ("x = K sqrt(t), parabolic diffusion-zone growth (case-hardening course notes; "
+REF_DEPTH = ("x = K sqrt(t), parabolic diffusion-zone growth (case-hardening introduction, vdocuments.mx; "
              "K from memory, models reference §11); depth to core + 50 HV per DIN 50190-3")
 REF_HV = "fitted to ASM Handbook Vol. 4 'Gas nitriding' typical surface hardness (from memory)"
 GAS_NITRIDING_RANGE_C = (495.0, 565.0)
