@@ -181,3 +181,19 @@ def test_notice_and_assumptions_are_reported():
     rep = pins.pin_report(load_kn=1.0, **BASE)
     assert "qualified engineer" in rep["notice"] and "test reports" in rep["notice"]
     assert any("uniform" in a for a in rep["stresses"]["assumptions"])
+
+
+def test_demo_doc_matches_demo_case():
+    # docs/demo.md carries the invented demo scenario in a toml block; the page uses DEMO_CASE
+    import re
+    import tomllib
+    from pathlib import Path
+
+    text = (Path(__file__).resolve().parents[1] / "docs" / "demo.md").read_text(encoding="utf-8")
+    block = re.search(r"```toml\n(.*?)```", text, re.S).group(1)
+    assert tomllib.loads(block) == pins.DEMO_CASE
+    assert "invented" in text.lower() and "qualified engineer" in text
+    # the targets the page states (to the 0.1 MPa it prints)
+    t = pins.pin_targets(**{k: pins.DEMO_CASE[k] for k in pins.DEMO_PIN_KEYS})
+    assert round(t["min_yield_mpa"], 1) == 743.2 and "| `min_yield_mpa` | 743.2 |" in text
+    assert round(t["min_uts_mpa"], 1) == 203.7 and "| `min_uts_mpa` | 203.7" in text
