@@ -283,3 +283,15 @@ def test_two_stage_routes():
     reason = {d["code"]: d["reason"] for d in ca.cautions_for(frame(nit), service_temp_c=480.0)[0]}[
         "service_temperature"]
     assert "nitrided at 525 °C" in reason and "tempered at 600 °C" in reason
+
+
+def test_docstring_documents_every_parameter():
+    import inspect
+    fn = ca.cautions_for
+    doc = fn.__doc__
+    assert "Parameters" in doc and "Returns" in doc and "References" in doc
+    block = doc.split("Parameters", 1)[1].split("Returns", 1)[0]
+    documented = {n.strip() for line in block.splitlines()
+                  if line.startswith("    ") and not line.startswith("     ") and " : " in line
+                  for n in line.split(" : ")[0].split(",")}
+    assert documented == set(inspect.signature(fn).parameters)

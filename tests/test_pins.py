@@ -197,3 +197,24 @@ def test_demo_doc_matches_demo_case():
     t = pins.pin_targets(**{k: pins.DEMO_CASE[k] for k in pins.DEMO_PIN_KEYS})
     assert round(t["min_yield_mpa"], 1) == 743.2 and "| `min_yield_mpa` | 743.2 |" in text
     assert round(t["min_uts_mpa"], 1) == 203.7 and "| `min_uts_mpa` | 203.7" in text
+
+
+def _documented(fn):
+    import inspect
+    doc = fn.__doc__
+    assert "Parameters" in doc and "Returns" in doc and "References" in doc, fn.__name__
+    block = doc.split("Parameters", 1)[1].split("Returns", 1)[0]
+    names, lines = set(), block.splitlines()
+    for i, line in enumerate(lines):
+        if line.startswith("    ") and not line.startswith("        ") and line.strip() and \
+                not set(line.strip()) <= {"-"}:
+            head = line.split(" : ")[0]
+            names |= {n.strip() for n in head.split(",") if n.strip()}
+    return names, set(inspect.signature(fn).parameters)
+
+
+@pytest.mark.parametrize("fn", [pins.pin_stresses, pins.pin_targets, pins.pin_report])
+def test_docstring_documents_every_parameter(fn):
+    documented, actual = _documented(fn)
+    assert actual <= documented, f"{fn.__name__}: undocumented {actual - documented}"
+    assert documented <= actual, f"{fn.__name__}: documented but absent {documented - actual}"

@@ -160,3 +160,16 @@ def test_sweep_agrees_with_select_at_each_diameter():
         assert row.part_cost == pytest.approx(best["part_cost"], rel=1e-12)
         assert row.part_cost == cand["part_cost"].min()
         assert best["yield_mpa"] >= t["min_yield_mpa"] and best["uts_mpa"] >= t["min_uts_mpa"]
+
+
+def test_docstring_documents_every_parameter():
+    import inspect
+    fn = sweep.diameter_sweep
+    doc = fn.__doc__
+    assert "Parameters" in doc and "Returns" in doc and "References" in doc
+    block = doc.split("Parameters", 1)[1].split("Returns", 1)[0]
+    documented = set()
+    for line in block.splitlines():
+        if line.startswith("    ") and not line.startswith("     ") and line.strip() and set(line.strip()) != {"-"}:
+            documented |= {n.strip() for n in line.split(" : ")[0].split(",") if n.strip()}
+    assert documented == set(inspect.signature(fn).parameters)

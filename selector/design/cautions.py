@@ -476,6 +476,11 @@ def cautions_for(frame: pd.DataFrame, plated: bool = False, mating_material: str
     list of list of dict
         One list per row, each caution as ``{"code", "title", "reason"}`` in the
         order of ``data/cautions.csv``.
+
+    References
+    ----------
+    The source of each rule is its row of ``data/cautions.csv`` (``CAUTIONS[code].source``);
+    see the module docstring.
     """
     f = _Frame(frame)
     ctx = _context(f, plated=plated, mating_material=mating_material, service_temp_c=service_temp_c,

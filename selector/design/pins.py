@@ -346,11 +346,29 @@ def pin_report(load_kn=None, diameter_mm=None, shear_planes: int = 2, safety_fac
                gap_mm=0.0, lug_thickness_mm=None, clevis_thickness_mm=None, load_lbf=None,
                wear_surface_hardness_hrc=None, material_class: str = "steel",
                load_model: str = "uniform", bearing_factor=1.0) -> dict:
-    """The targets of :func:`pin_targets` with their working: ``targets`` (dict),
-    ``stresses`` (from :func:`pin_stresses`), ``governing`` (``"bending"``,
-    ``"shear"`` or ``"bearing"``: the mode that sets the yield target),
-    ``yield_candidates_mpa`` (SF x each mode's yield demand), ``shear_to_tensile``
-    (ratio, source, confidence), ``safety_factor`` and ``notice``."""
+    """The targets of :func:`pin_targets` with their working (same equations).
+
+    Parameters
+    ----------
+    load_kn, diameter_mm, shear_planes, safety_factor, gap_mm, lug_thickness_mm,
+    clevis_thickness_mm, load_lbf, wear_surface_hardness_hrc, material_class,
+    load_model, bearing_factor
+        As in :func:`pin_targets`.
+
+    Returns
+    -------
+    dict
+        ``targets`` (the dict of :func:`pin_targets`), ``stresses`` (from
+        :func:`pin_stresses`), ``governing`` (``"bending"``, ``"shear"`` or
+        ``"bearing"``: the mode that sets the yield target), ``yield_candidates_mpa``
+        (SF x each mode's yield demand), ``material_class``, ``shear_to_tensile``
+        (ratio, source, confidence), ``safety_factor``, ``bearing_factor`` and
+        ``notice``.
+
+    References
+    ----------
+    As :func:`pin_targets` and :func:`pin_stresses`.
+    """
     for name, v in (("load_kn", load_kn), ("load_lbf", load_lbf), ("diameter_mm", diameter_mm),
                     ("gap_mm", gap_mm), ("lug_thickness_mm", lug_thickness_mm),
                     ("clevis_thickness_mm", clevis_thickness_mm)):

@@ -134,6 +134,11 @@ def diameter_sweep(diameters_mm, *, load_kn=None, load_lbf=None, shear_planes: i
         where no robust candidate exists; ``changed`` is True where the pick (grade
         or route family) differs from the previous diameter's.  ``attrs["notice"]``
         carries the preliminary-selection notice.
+
+    References
+    ----------
+    Pin stresses and targets: :mod:`selector.design.pins` (docs/methods/pins.md).
+    Candidates, robustness and cost: :func:`selector.select` (docs/methods/selection.md).
     """
     d_all = _diameters(diameters_mm)
     cost_column = check_choice("cost_column", cost_column, COST_COLUMNS, "diameter sweep")
