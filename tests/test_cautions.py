@@ -295,3 +295,21 @@ def test_docstring_documents_every_parameter():
                   if line.startswith("    ") and not line.startswith("     ") and " : " in line
                   for n in line.split(" : ")[0].split(",")}
     assert documented == set(inspect.signature(fn).parameters)
+
+
+def test_age_route_temperature_from_temp_c():
+    # an aging route that names its temperature temp_c (the step's parameter) counts as aged there
+    df = frame(dict(grade="6061", family="aluminium", route="age", temp_c=175.0, c_pct=0.0, peak_ratio=1.0))
+    assert fired(df, service_temp_c=124.9) == [[]]
+    assert fired(df, service_temp_c=125.0) == [["service_temperature"]]
+    # temp_c of a carburize route is not an aging temperature
+    df2 = frame(dict(grade="8620", family="carburizing_steel", route="carburize", temp_c=925.0, c_pct=0.2))
+    assert fired(df2, service_temp_c=900.0) == [[]]
+
+
+def test_columns_read_cover_every_frame_attribute():
+    cols = set(ca.COLUMNS_READ)
+    df = frame({})
+    f = ca._Frame(df)
+    attrs = {k for k in vars(f) if k != "n"}
+    assert attrs <= cols | {"route"}

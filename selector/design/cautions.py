@@ -13,7 +13,8 @@ The columns read are those of the states table: ``grade``, ``family``, ``route``
 ``designation``, ``c_pct``, ``hardness_hrc``, ``surface_hardness_hrc``,
 ``uts_mpa``, and for two-stage routes ``prior`` (the route of the prior
 hardening), ``prior_quench``, ``prior_temper_temp_c`` and ``temp_c`` (the
-nitriding temperature of a nitride route).  ``grade`` and ``family`` are required; a missing optional column
+nitriding temperature of a nitride route; on an ``age`` route it stands in for a
+missing ``age_temp_c``).  :data:`COLUMNS_READ` lists them all.  ``grade`` and ``family`` are required; a missing optional column
 counts as "not applicable" (NaN or empty), since a table that joins several route
 families leaves the columns of the others empty.
 
@@ -132,6 +133,9 @@ class _Frame:
         for col in ("temper_temp_c", "age_temp_c", "peak_ratio", "c_pct", "hardness_hrc",
                     "surface_hardness_hrc", "uts_mpa", "prior_temper_temp_c", "temp_c"):
             setattr(self, col, self._num(frame, col))
+        # an aging route may carry its temperature as temp_c (the step's parameter name)
+        self.age_temp_c = np.where(np.isnan(self.age_temp_c) & (self.route == "age"), self.temp_c,
+                                   self.age_temp_c)
 
     def _str(self, frame, col) -> np.ndarray:
         if col not in frame.columns:
@@ -319,6 +323,11 @@ def _load_cautions() -> Mapping[str, Caution]:
         raise DataFileError(CAUTIONS_FILE, None, "code", f"no row for the trigger(s): {', '.join(lacking)}")
     return MappingProxyType(out)
 
+
+#: the columns the triggers read (a view that builds a frame for cautions_for should keep them)
+COLUMNS_READ = ("grade", "family", "route", "route_family", "quench", "prior", "prior_quench",
+                "prior_temper_temp_c", "temper_temp_c", "age_temp_c", "temp_c", "peak_ratio",
+                "designation", "c_pct", "hardness_hrc", "surface_hardness_hrc", "uts_mpa")
 
 #: every caution, by code (loaded once from data/cautions.csv)
 CAUTIONS: Mapping[str, Caution] = _load_cautions()
