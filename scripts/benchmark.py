@@ -30,7 +30,7 @@ def _best(fn, repeat=3):
 def main(argv=None) -> int:
     argv = sys.argv[1:] if argv is None else argv
     import selector
-    from selector.selection.engine import prepare, rank
+    from selector.selection.engine import _prepare_cached, prepare, rank
     from selector.states.expand import expand
 
     selector.grade("4140")   # load the catalogue and models once (import cost is not selection cost)
@@ -39,6 +39,7 @@ def main(argv=None) -> int:
     for d in (25.0, 60.0):
         def cold():
             expand.cache_clear()
+            _prepare_cached.cache_clear()
             return selector.select(targets, diameter_mm=d)
         best, med = _best(cold)
         n_states = len(expand(d))

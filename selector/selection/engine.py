@@ -19,12 +19,15 @@ Definitions (documented in docs/methods/selection.md):
 """
 from __future__ import annotations
 
+import functools
+
 import numpy as np
 import pandas as pd
 
 from ..catalogue.grades import FAMILIES, default_catalogue
 from ..errors import InputError
 from ..routes import families as fam_registry
+from ..routes.evaluate import section_args
 from ..routes.steps import describe
 from ..states.expand import expand
 from . import cost as cost_mod
@@ -80,44 +83,69 @@ def costed(states: pd.DataFrame, length_mm: float = 100.0, price_sheet: dict | N
     return df
 
 
-def prepare(diameter_mm=25.0, thickness_mm=None, length_mm=100.0, price_sheet=None) -> pd.DataFrame:
-    """The expanded, costed states table with variant keys: everything that does
-    not depend on the targets (the page caches it)."""
-    if not isinstance(length_mm, (int, float)) or not (1.0 <= float(length_mm) <= 20000.0):
-        raise InputError("length_mm", length_mm, "a part length in [1, 20000] mm")
+@functools.lru_cache(maxsize=8)
+def _prepare_cached(diameter_mm, thickness_mm, length_mm, prices: tuple) -> pd.DataFrame:
     st = expand(diameter_mm, thickness_mm)
     d = None if thickness_mm is not None else float(diameter_mm)
-    df = costed(st, float(length_mm), price_sheet, d, thickness_mm)
+    df = costed(st, float(length_mm), dict(prices) or None, d, thickness_mm)
     df["variant"] = _variant_keys(df)
     df["main_value"] = np.nan
     for route, sub in df.groupby("route", sort=False):
         mp = _main_param(route)
         if mp and mp in sub:
             df.loc[sub.index, "main_value"] = sub[mp].astype(float)
-    df.attrs["section"] = {"diameter_mm": d, "thickness_mm": thickness_mm, "length_mm": float(length_mm)}
-    return df
+    # layout used by rank(): the nominal block sorted by variant and main value, then the
+    # lean and the rich blocks in the same state order
+    df["variant_code"] = pd.factorize(df["variant"])[0]
+    nom = df[df["corner"] == "nominal"].sort_values(["variant_code", "main_value", "state_key"], kind="stable")
+    order = nom["state_key"].to_numpy()
+    blocks = [nom]
+    for corner in ("lean", "rich"):
+        blk = df[df["corner"] == corner].set_index("state_key", drop=False).loc[order]
+        blocks.append(blk)
+    out = pd.concat(blocks, ignore_index=True)
+    m = len(nom)
+    keys = out["state_key"].to_numpy()
+    if len(out) != 3 * m or not (np.array_equal(keys[:m], keys[m:2 * m]) and np.array_equal(keys[:m], keys[2 * m:])):
+        raise RuntimeError("states table is not aligned by composition corner")
+    out.attrs["section"] = {"diameter_mm": d, "thickness_mm": thickness_mm, "length_mm": float(length_mm)}
+    return out
 
 
-def _runs(sorted_df: pd.DataFrame, ok: np.ndarray) -> pd.DataFrame:
-    """Contiguous runs of ``ok`` states along the main parameter within each variant
-    (``sorted_df`` sorted by variant, main_value).  Returns one row per run."""
-    var = sorted_df["variant"].to_numpy()
-    main = sorted_df["main_value"].to_numpy(float)
-    same = var[1:] == var[:-1]
-    diff = np.where(same, main[1:] - main[:-1], np.nan)
-    # a gap in the grid (a window made of separate bands) also ends a run
-    step = pd.Series(np.where(diff > 0, diff, np.nan)).groupby(var[1:]).transform("min").to_numpy()
-    gap = np.nan_to_num(diff > 1.5 * step, nan=False).astype(bool)
-    change = np.r_[True, ~same | (ok[1:] != ok[:-1]) | gap]
-    run = np.cumsum(change)
-    d = pd.DataFrame({"variant": var, "run": run, "ok": ok, "pos": np.arange(len(ok)),
-                      "main_value": sorted_df["main_value"].to_numpy()})
-    d = d[d["ok"]]
-    if d.empty:
-        return pd.DataFrame(columns=["variant", "first", "last", "lo", "hi", "count"])
-    g = d.groupby("run")
-    return pd.DataFrame({"variant": g["variant"].first(), "first": g["pos"].min(), "last": g["pos"].max(),
-                         "lo": g["main_value"].min(), "hi": g["main_value"].max(), "count": g["pos"].count()})
+def prepare(diameter_mm=25.0, thickness_mm=None, length_mm=100.0, price_sheet=None) -> pd.DataFrame:
+    """The expanded, costed states table with variant keys: everything that does
+    not depend on the targets (cached; the page caches it too).  Rows are laid out
+    as three aligned blocks (nominal, lean, rich), the nominal block sorted by
+    variant and main parameter; treat the frame as read-only."""
+    if isinstance(length_mm, bool) or not isinstance(length_mm, (int, float)) or \
+            not (1.0 <= float(length_mm) <= 20000.0):
+        raise InputError("length_mm", length_mm, "a part length in [1, 20000] mm")
+    d, t = section_args(diameter_mm, thickness_mm)
+    prices = tuple(sorted((price_sheet or {}).items()))
+    return _prepare_cached(d, t, float(length_mm), prices)
+
+
+def _true_runs(ok: np.ndarray, brk: np.ndarray) -> tuple:
+    """Start and end positions of maximal runs of True in ``ok`` that do not cross a
+    segment break (``brk[i]`` True where a new variant or a gap in the grid starts)."""
+    prev = np.r_[False, ok[:-1]]
+    nxt = np.r_[ok[1:], False]
+    brk_next = np.r_[brk[1:], True]
+    start = np.flatnonzero(ok & (brk | ~prev))
+    end = np.flatnonzero(ok & (brk_next | ~nxt))
+    return start, end
+
+
+def _best_runs(start, end, vcode, main):
+    """Per variant, the widest run (ties: the lowest main value)."""
+    if len(start) == 0:
+        return start, end
+    count = end - start
+    order = np.lexsort((main[start], -count, vcode[start]))
+    v_sorted = vcode[start][order]
+    first = np.r_[True, v_sorted[1:] != v_sorted[:-1]]
+    pick = order[first]
+    return start[pick], end[pick]
 
 
 def rank(prepared: pd.DataFrame, targets: dict | None = None, objectives=DEFAULT_OBJECTIVES,
@@ -126,43 +154,41 @@ def rank(prepared: pd.DataFrame, targets: dict | None = None, objectives=DEFAULT
     step that the page re-runs when only the targets change."""
     t = validate_targets(targets, FAMILIES)
     objectives = _check_objectives(objectives)
-    ok_all = meets(prepared, t)
-    piv = pd.DataFrame({"state_key": prepared["state_key"], "corner": prepared["corner"], "ok": ok_all})
-    wide = piv.pivot_table(index="state_key", columns="corner", values="ok", aggfunc="all")
-    nominal_rows = prepared[prepared["corner"] == "nominal"].copy()
-    wide = wide.reindex(nominal_rows["state_key"])
-    nominal_rows["nominal"] = wide["nominal"].fillna(False).to_numpy(bool)
-    nominal_rows["robust"] = wide.fillna(False).all(axis=1).to_numpy(bool)
-    s = nominal_rows.sort_values(["variant", "main_value"], kind="stable").reset_index(drop=True)
-    robust_runs = _runs(s, s["robust"].to_numpy())
-    nominal_runs = _runs(s, s["nominal"].to_numpy())
-    # choose per variant: widest robust run, else widest nominal run
-    best_r = robust_runs.sort_values(["count", "lo"], ascending=[False, True]).drop_duplicates("variant")
-    best_n = nominal_runs.sort_values(["count", "lo"], ascending=[False, True]).drop_duplicates("variant")
-    chosen = pd.concat([best_r.assign(kind="robust"),
-                        best_n[~best_n["variant"].isin(best_r["variant"])].assign(kind="nominal")])
+    m = len(prepared) // 3
+    ok = np.asarray(meets(prepared, t), bool)
+    nominal = ok[:m]
+    robust = ok.reshape(3, m).all(axis=0)
+    nom = prepared.iloc[:m]
+    vcode = nom["variant_code"].to_numpy()
+    main = nom["main_value"].to_numpy(float)
+    same = np.r_[False, vcode[1:] == vcode[:-1]]
+    diff = np.r_[np.nan, main[1:] - main[:-1]]
+    diff = np.where(same, diff, np.nan)
+    step = pd.Series(np.where(diff > 0, diff, np.nan)).groupby(vcode).transform("min").to_numpy()
+    gap = np.nan_to_num(diff > 1.5 * step, nan=False).astype(bool)
+    brk = ~same | gap
+    rs, re_ = _best_runs(*_true_runs(robust, brk), vcode, main)
+    ns_all, ne_all = _true_runs(nominal, brk)
+    ns, ne = _best_runs(ns_all, ne_all, vcode, main)
+    robust_v = set(vcode[rs].tolist())
+    keep_n = np.array([v not in robust_v for v in vcode[ns]], bool) if len(ns) else np.zeros(0, bool)
     if robust_only:
-        chosen = chosen[chosen["kind"] == "robust"]
-    if chosen.empty:
+        starts, ends = rs, re_
+    else:
+        starts, ends = np.r_[rs, ns[keep_n]], np.r_[re_, ne[keep_n]]
+    if len(starts) == 0:
         return _empty(t)
-    pick = ((chosen["first"] + chosen["last"]) // 2).to_numpy(int)
-    cand = s.iloc[pick].copy()
-    cand["window_min"] = chosen["lo"].to_numpy(float)
-    cand["window_max"] = chosen["hi"].to_numpy(float)
+    pick = (starts + ends) // 2
+    cand = nom.iloc[pick].copy()
+    cand["nominal"] = True
+    cand["robust"] = robust[pick]
+    run_lo, run_hi = main[starts], main[ends]
     # the nominal window that contains the chosen point
-    nr = nominal_runs.set_index("variant")
-    nom_lo, nom_hi = [], []
-    for v, x in zip(cand["variant"], cand["main_value"]):
-        rows = nr.loc[[v]] if v in nr.index else None
-        if rows is None:
-            nom_lo.append(np.nan), nom_hi.append(np.nan)
-            continue
-        hit = rows[(rows["lo"] <= x) & (rows["hi"] >= x)] if x == x else rows
-        nom_lo.append(float(hit["lo"].iloc[0]) if len(hit) else np.nan)
-        nom_hi.append(float(hit["hi"].iloc[0]) if len(hit) else np.nan)
-    cand["robust_window_min"] = np.where(cand["robust"], cand["window_min"], np.nan)
-    cand["robust_window_max"] = np.where(cand["robust"], cand["window_max"], np.nan)
-    cand["window_min"], cand["window_max"] = nom_lo, nom_hi
+    j = np.searchsorted(ns_all, pick, side="right") - 1
+    cand["window_min"] = main[ns_all[j]]
+    cand["window_max"] = main[ne_all[j]]
+    cand["robust_window_min"] = np.where(cand["robust"], run_lo, np.nan)
+    cand["robust_window_max"] = np.where(cand["robust"], run_hi, np.nan)
     return _finish(cand, t, objectives)
 
 
@@ -199,18 +225,19 @@ def _window_text(row) -> str:
 
 def _finish(cand: pd.DataFrame, t: dict, objectives) -> pd.DataFrame:
     cand = cand.reset_index(drop=True)
-    routes, texts = [], []
-    for _, r in cand.iterrows():
+    routes, texts, wparam, wtext = [], [], [], []
+    for r in cand.to_dict("records"):
         fam = fam_registry.get(r["route"])
-        params = {p: r[p] for p in fam.parameters if p in r.index}
-        steps = fam.to_steps(params)
+        steps = fam.to_steps({p: r[p] for p in fam.parameters if p in r})
         routes.append(steps)
         texts.append(describe(steps))
+        wparam.append(fam.main_parameter or "")
+        wtext.append(_window_text(r))
     cand["route_family"] = cand["route"]
     cand["route"] = routes
     cand["route_text"] = texts
-    cand["window_parameter"] = [fam_registry.get(r).main_parameter or "" for r in cand["route_family"]]
-    cand["window"] = [_window_text({**r, "route": r["route_family"]}) for _, r in cand.iterrows()]
+    cand["window_parameter"] = wparam
+    cand["window"] = wtext
     vals = np.column_stack([cand[c].to_numpy(float) for c, _ in objectives])
     cand["pareto"] = pareto_mask(vals, [s == "max" for _, s in objectives])
     m = margins(cand, t)
