@@ -1,0 +1,194 @@
+"""Austenite decomposition on continuous cooling (Li et al. 1998 kinetics, Scheil additivity, Koistinen–Marburger).
+
+Isothermal kinetics of the Kirkaldy type as refitted by Li, Niebuhr, Meekisho &
+Atteridge (1998), T in K, R = 1.987 cal mol⁻¹ K⁻¹, τ in s:
+
+    τ_F = FC / [2^(0.41G) (Ae3 − T)³ exp(−27500/RT)] · S(X),
+          FC = exp(1.00 + 6.31C + 1.78Mn + 0.31Si + 1.12Ni + 2.70Cr + 4.06Mo)
+    τ_P = PC / [2^(0.32G) (Ae1 − T)³ exp(−27500/RT)] · S(X),
+          PC = exp(−4.25 + 4.12C + 4.36Mn + 0.44Si + 1.71Ni + 3.33Cr + 5.19√Mo)
+    τ_B = BC / [2^(0.29G) (Bs − T)² exp(−27500/RT)] · S(X),
+          BC = exp(−10.23 + 10.18C + 0.85Mn + 0.55Ni + 0.90Cr + 0.36Mo)
+    S(X) = ∫₀ˣ dX / [X^(0.4(1−X)) (1−X)^(0.4X)]
+
+Continuous cooling by Scheil additivity applied to S: for each reaction
+S ← S + Δt / τ_1(T) (τ_1 the time per unit S), X = S⁻¹(S).  Reactions run in
+their ranges (ferrite below Ae3, capped at the lever-rule fraction
+(0.77 − C)/0.77; pearlite below Ae1; bainite below Bs) and each converts the
+austenite still present in proportion to its normalised progress.  The austenite
+left at Ms becomes martensite by Koistinen–Marburger (1959),
+f_M = 1 − exp[−0.011 (Ms − 25 °C)] of it; the rest is retained austenite.
+Andrews Ac3/Ac1 stand in for Ae3/Ae1; Bs and Ms are the Li et al. forms.
+
+The cooling path is Newtonian, T = Tb + (T0 − Tb) exp(−t/τc), with τc set so that
+the rate at 700 °C equals the given rate: a simplification of the real Jominy or
+bar cooling curves.  This path is a comparison model only; route evaluation uses
+the ASTM A255 path (:mod:`selector.models.hardenability`).
+
+References
+----------
+M.V. Li, D.V. Niebuhr, L.L. Meekisho, D.G. Atteridge, "A computational model for the
+prediction of steel hardenability", Metall. Mater. Trans. B 29B (1998) 661–672
+(equations as recalled, models reference sheet §7.2: from memory).
+J.S. Kirkaldy, D. Venugopalan, in *Phase Transformations in Ferrous Alloys*, TMS-AIME
+1984, 125–148.
+E. Scheil, Arch. Eisenhüttenwes. 8 (1935) 565.
+D.P. Koistinen, R.E. Marburger, Acta Metall. 7 (1959) 59.
+"""
+from __future__ import annotations
+
+import functools
+
+import numpy as np
+
+from ..errors import InputError
+from .composition import el
+from .critical_temperatures import ac1_c, ac3_c
+from . import validity
+
+R_CAL = 1.987
+Q_CAL = 27500.0
+KM_ALPHA = 0.011
+ROOM_C = 25.0
+EUTECTOID_C = 0.77
+
+validity.register("li_1998", {"C": (0.1, 0.6, "wt%"), "Mn": (0.2, 1.8, "wt%"), "Ni": (0.0, 3.5, "wt%"),
+                              "Cr": (0.0, 1.5, "wt%"), "Mo": (0.0, 0.6, "wt%")},
+                  "Li et al., Metall. Mater. Trans. B 29B (1998) 661 (ranges from memory)")
+
+
+def bs_li_c(comp):
+    """Bainite start, °C (Li et al. 1998): 637 − 58C − 35Mn − 15Ni − 34Cr − 41Mo."""
+    return (637.0 - 58 * el(comp, "C") - 35 * el(comp, "Mn") - 15 * el(comp, "Ni")
+            - 34 * el(comp, "Cr") - 41 * el(comp, "Mo"))
+
+
+def ms_li_c(comp):
+    """Martensite start, °C (Li et al. 1998): Andrews linear Ms + 10Co − 7.5Si."""
+    return (539.0 - 423 * el(comp, "C") - 30.4 * el(comp, "Mn") - 17.7 * el(comp, "Ni")
+            - 12.1 * el(comp, "Cr") - 7.5 * el(comp, "Mo") + 10 * el(comp, "Co") - 7.5 * el(comp, "Si"))
+
+
+@functools.cache
+def _s_table():
+    x = np.linspace(0.0, 0.999, 4001)
+    xm = 0.5 * (x[1:] + x[:-1])
+    integrand = 1.0 / (xm ** (0.4 * (1 - xm)) * (1 - xm) ** (0.4 * xm))
+    s = np.concatenate([[0.0], np.cumsum(integrand * np.diff(x))])
+    return x, s
+
+
+def s_integral(x):
+    """S(X) = ∫₀ˣ dX / [X^(0.4(1−X)) (1−X)^(0.4X)] (numerical table, X ≤ 0.999)."""
+    xs, s = _s_table()
+    return np.interp(np.asarray(x, float), xs, s)
+
+
+def _x_of_s(s):
+    xs, st = _s_table()
+    return np.interp(s, st, xs)
+
+
+def _rate_constants(comp, grain):
+    c, mn, si, ni, cr, mo = (el(comp, e) for e in ("C", "Mn", "Si", "Ni", "Cr", "Mo"))
+    fc = np.exp(1.00 + 6.31 * c + 1.78 * mn + 0.31 * si + 1.12 * ni + 2.70 * cr + 4.06 * mo)
+    pc = np.exp(-4.25 + 4.12 * c + 4.36 * mn + 0.44 * si + 1.71 * ni + 3.33 * cr + 5.19 * np.sqrt(mo))
+    bc = np.exp(-10.23 + 10.18 * c + 0.85 * mn + 0.55 * ni + 0.90 * cr + 0.36 * mo)
+    g = np.asarray(grain, float)
+    return fc / 2 ** (0.41 * g), pc / 2 ** (0.32 * g), bc / 2 ** (0.29 * g)
+
+
+def isothermal_time_s(comp, temp_c, fraction, reaction="ferrite", grain_size_astm=8.0):
+    """Time (s) to reach normalised progress ``fraction`` of one reaction at constant ``temp_c``."""
+    if reaction not in ("ferrite", "pearlite", "bainite"):
+        raise InputError("reaction", reaction, "ferrite, pearlite, bainite")
+    fF, fP, fB = _rate_constants(comp, grain_size_astm)
+    tk = np.asarray(temp_c, float) + 273.15
+    arr = np.exp(-Q_CAL / (R_CAL * tk))
+    if reaction == "ferrite":
+        tau1 = fF / (np.maximum(ac3_c(comp) - temp_c, 1e-9) ** 3 * arr)
+    elif reaction == "pearlite":
+        tau1 = fP / (np.maximum(ac1_c(comp) - temp_c, 1e-9) ** 3 * arr)
+    else:
+        tau1 = fB / (np.maximum(bs_li_c(comp) - temp_c, 1e-9) ** 2 * arr)
+    return tau1 * s_integral(fraction)
+
+
+def continuous_cooling_fractions(comp, cooling_rate_c_s, austenitize_c=845.0, bath_c=25.0,
+                                 grain_size_astm=8.0, step_c=2.0):
+    """Phase fractions after continuous cooling at a given rate at 700 °C (Li 1998 + Scheil + KM).
+
+    Parameters
+    ----------
+    comp : mapping
+        Element → wt % (arrays broadcast with ``cooling_rate_c_s``).
+    cooling_rate_c_s : array_like
+        Cooling rate at 700 °C, °C/s (> 0), fixing the Newtonian path.
+    austenitize_c, bath_c : float
+        Start and bath temperatures, °C.
+    grain_size_astm : float
+        ASTM austenite grain size.
+    step_c : float
+        Temperature step of the integration, °C.
+
+    Returns
+    -------
+    dict of ndarray
+        ``ferrite``, ``pearlite``, ``bainite``, ``martensite``, ``retained_austenite`` (fractions 0–1).
+
+    Validity
+    --------
+    ``li_1998`` (low-alloy steels).  Equations from memory; comparison model only.
+    """
+    rate = np.asarray(cooling_rate_c_s, float)
+    if np.any(np.isnan(rate)) or np.any(rate <= 0):
+        raise InputError("cooling_rate_c_s", cooling_rate_c_s, "rates > 0 C/s")
+    shape = np.broadcast_shapes(rate.shape, *[np.shape(v) for v in comp.values()])
+    rate = np.broadcast_to(rate, shape)
+    tau_c = (700.0 - bath_c) / rate
+    kF, kP, kB = (np.broadcast_to(k, shape) for k in _rate_constants(comp, grain_size_astm))
+    ae3 = np.broadcast_to(ac3_c(comp), shape)
+    ae1 = np.broadcast_to(ac1_c(comp), shape)
+    bs = np.broadcast_to(bs_li_c(comp), shape)
+    ms = np.broadcast_to(ms_li_c(comp), shape)
+    c = np.broadcast_to(el(comp, "C"), shape)
+    xeq = np.clip((EUTECTOID_C - c) / EUTECTOID_C, 0.0, 1.0)
+    sF = np.zeros(shape); sP = np.zeros(shape); sB = np.zeros(shape)
+    xF = np.zeros(shape); xP = np.zeros(shape); xB = np.zeros(shape)
+    fF = np.zeros(shape); fP = np.zeros(shape); fB = np.zeros(shape)
+    aust_at_ms = np.full(shape, np.nan)
+    temps = np.arange(austenitize_c, ROOM_C, -step_c)
+    for t_hi, t_lo in zip(temps[:-1], temps[1:]):
+        tm = 0.5 * (t_hi + t_lo)
+        dt = tau_c * np.log((t_hi - bath_c) / max(t_lo - bath_c, 1e-6))
+        arr = np.exp(-Q_CAL / (R_CAL * (tm + 273.15)))
+        above_ms = tm > ms
+        avail = 1.0 - fF - fP - fB
+        # ferrite, capped at the lever-rule fraction
+        on = (tm < ae3) & above_ms
+        sF = np.where(on, sF + dt * np.maximum(ae3 - tm, 0) ** 3 * arr / kF, sF)
+        xF = _x_of_s(sF)
+        dF = np.where(on, np.clip(xeq * xF - fF, 0.0, avail), 0.0)
+        fF = fF + dF
+        avail = avail - dF
+        # pearlite and bainite convert the austenite present in proportion to normalised progress
+        onP = (tm < ae1) & above_ms
+        sP = np.where(onP, sP + dt * np.maximum(ae1 - tm, 0) ** 3 * arr / kP, sP)
+        xPn = _x_of_s(sP)
+        dP = np.where(onP, avail * np.clip((xPn - xP) / np.maximum(1 - xP, 1e-9), 0, 1), 0.0)
+        xP = xPn
+        fP = fP + dP
+        avail = avail - dP
+        onB = (tm < bs) & above_ms
+        sB = np.where(onB, sB + dt * np.maximum(bs - tm, 0) ** 2 * arr / kB, sB)
+        xBn = _x_of_s(sB)
+        dB = np.where(onB, avail * np.clip((xBn - xB) / np.maximum(1 - xB, 1e-9), 0, 1), 0.0)
+        xB = xBn
+        fB = fB + dB
+        avail = avail - dB
+        aust_at_ms = np.where(np.isnan(aust_at_ms) & ~above_ms, avail, aust_at_ms)
+    aust_at_ms = np.where(np.isnan(aust_at_ms), 1.0 - fF - fP - fB, aust_at_ms)
+    km = 1.0 - np.exp(-KM_ALPHA * np.maximum(ms - ROOM_C, 0.0))
+    fM = aust_at_ms * km
+    return {"ferrite": fF, "pearlite": fP, "bainite": fB, "martensite": fM,
+            "retained_austenite": aust_at_ms - fM}

@@ -1,0 +1,65 @@
+"""Tests of the Li et al. (1998) kinetics with Scheil additivity and Koistinen-Marburger."""
+import numpy as np
+import pandas as pd
+import pytest
+
+from selector.catalogue.loader import read_table
+from selector.models import conversions, cooling, phase_hardness as ph, transformation as tr
+
+S1045 = {"C": 0.45, "Mn": 0.75, "Si": 0.25}
+
+
+def test_s_integral_values():
+    # models reference sheet §7.2 (numerical values of the Li S(X) integral): S(0.01) = 0.104, S(0.99) = 1.95
+    assert tr.s_integral(0.01) == pytest.approx(0.104, abs=0.003)
+    assert tr.s_integral(0.99) == pytest.approx(1.95, abs=0.03)
+
+
+def test_isothermal_start_times_1045():
+    # models reference sheet §7.2 sanity values for 1045, G = 8 (derived from the same equations with a
+    # thermodynamic Ae3; here Andrews Ac3 stands in): 1 % pearlite at 650 C ~ 0.4 s, 1 % bainite at
+    # 450 C ~ 1.6 s, 1 % ferrite at 650 C ~ 2.7 s. Tolerance: factor 1.3 (pearlite, bainite), 2 (ferrite).
+    assert tr.isothermal_time_s(S1045, 650, 0.01, "pearlite") == pytest.approx(0.4, rel=0.3)
+    assert tr.isothermal_time_s(S1045, 450, 0.01, "bainite") == pytest.approx(1.6, rel=0.3)
+    assert 2.7 / 2 < tr.isothermal_time_s(S1045, 650, 0.01, "ferrite") < 2.7 * 2
+
+
+def test_fast_and_slow_cooling_limits():
+    rates = np.array([1000.0, 100.0, 10.0, 1.0, 0.1])
+    f = tr.continuous_cooling_fractions(S1045, rates)
+    total = sum(f.values())
+    assert np.allclose(total, 1.0, atol=1e-9)
+    assert np.all(np.diff(f["martensite"]) <= 1e-9)
+    # Koistinen-Marburger: of the austenite left at Ms, 1 - exp(-0.011 (Ms - 25)) becomes martensite
+    # (Koistinen & Marburger 1959); at 1000 C/s almost all austenite reaches Ms
+    km = 1 - np.exp(-0.011 * (tr.ms_li_c(S1045) - 25))
+    assert f["martensite"][0] / (f["martensite"][0] + f["retained_austenite"][0]) == pytest.approx(km, abs=1e-6)
+    assert f["martensite"][0] + f["retained_austenite"][0] > 0.95
+    # slow cooling of 1045: ferrite + pearlite, ferrite near the lever-rule fraction (0.77-0.45)/0.77
+    assert f["ferrite"][-1] + f["pearlite"][-1] > 0.98
+    assert f["ferrite"][-1] == pytest.approx((0.77 - 0.45) / 0.77, abs=0.05)
+
+
+def test_comparison_with_h_bands_is_measured():
+    # Comparison path only (evaluate uses ASTM A255): mid-range 4140H and 4340H chemistries, Jominy
+    # cooling rates, Maynier hardness; SAE J1268 bands (values from memory). Recorded result: 46 of 48
+    # points inside +-1 HRC; the check keeps it above 85 %. The same path does worse on 8620H (19/20)
+    # and badly on 5160H (5/24, far too hardenable): see docs/methods/hardenability.md.
+    from test_hardenability import H_STEELS, _mid
+    t = read_table("reference/hardenability_bands.csv")
+    ld, lr = cooling._jominy_table()
+    ok = n = 0
+    for g in ("4140H", "4340H"):
+        r = t[t.grade == g]
+        d = r.distance_mm.astype(float).to_numpy()
+        lo, hi = pd.to_numeric(r.hrc_min).to_numpy(), pd.to_numeric(r.hrc_max).to_numpy()
+        rate = np.exp(np.interp(np.log(d), ld, lr))
+        comp = _mid(g)
+        f = tr.continuous_cooling_fractions(comp, rate)
+        hm, hb, hfp = ph.phase_hardness_hv(comp, rate)
+        hv = ph.mixture_hv([f["martensite"] + f["retained_austenite"], f["bainite"], f["ferrite"] + f["pearlite"]],
+                           [hm, hb, hfp])
+        hrc = conversions.hv_to_hrc(hv)
+        ok += int(((hrc <= hi + 1) & (hrc >= lo - 1)).sum())
+        n += len(d)
+    assert ok / n >= 0.85
