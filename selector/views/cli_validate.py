@@ -1,0 +1,35 @@
+"""CLI command ``selector validate``: recompute every reference row and write the
+validation report (``docs/validation.md`` and its PNG parity plots).  Only calls
+:func:`selector.validation.report.run` and prints its summary."""
+from __future__ import annotations
+
+import sys
+
+from .. import CAUTION
+
+
+def cmd_validate(args) -> int:
+    from ..validation import report
+
+    res = report.run(args.out, args.figures)
+    comp = res["comparisons"]
+    n_cmp = int((comp["status"] == "compared").sum())
+    n_not = int(comp.loc[comp["status"] != "compared", "case"].nunique())
+    print(f"wrote {res['report']} and {len(res['plots'])} parity plots; "
+          f"{n_cmp} comparisons, {n_not} reference rows not compared (listed in the report)")
+    for msg in res["undocumented"]:
+        print(f"no threshold documented for: {msg}", file=sys.stderr)
+    for msg in res["violations"]:
+        print(f"threshold exceeded: {msg}", file=sys.stderr)
+    print(f"\nCAUTION: {CAUTION}")
+    return 1 if res["violations"] or (args.strict and res["undocumented"]) else 0
+
+
+def add_commands(sub) -> None:
+    v = sub.add_parser("validate", help="recompute the published reference rows and write the validation report")
+    v.add_argument("--out", default="docs/validation.md", help="report file (default docs/validation.md)")
+    v.add_argument("--figures", default=None,
+                   help="folder for the PNG parity plots (default: the report path without .md)")
+    v.add_argument("--strict", action="store_true",
+                   help="also fail when a compared group has no documented threshold")
+    v.set_defaults(func=cmd_validate)
