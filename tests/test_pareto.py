@@ -61,6 +61,34 @@ def test_matches_brute_force(k, kind, n):
         np.testing.assert_array_equal(got, brute_mask(x, maximize))
 
 
+@pytest.mark.parametrize("kind,maximize", [("continuous", (True, True)), ("ties", (False, True)),
+                                           ("anticorrelated", (True, True))])
+def test_large_two_objective_sets_match_brute_force(kind, maximize):
+    rng = np.random.default_rng(len(kind))
+    x = random_set(rng, 2100, 2, kind)           # above the pre-filter size
+    x[rng.choice(2100, 20, replace=False), rng.integers(0, 2)] = np.nan
+    np.testing.assert_array_equal(pareto_mask(x, list(maximize)), brute_mask(x, maximize))
+
+
+@pytest.mark.parametrize("k", [2, 3, 4])
+def test_prefilter_paths_on_small_sets(k, monkeypatch):
+    # Force the pivot pre-filters (and their repeated passes) onto small inputs.
+    from selector.selection import pareto
+    monkeypatch.setattr(pareto, "_PREFILTER_MIN_POINTS", 4)
+    monkeypatch.setattr(pareto, "_SCALE_SAMPLE", 8)
+    monkeypatch.setattr(pareto, "_ND_PREFILTER_MIN_POINTS", 4)
+    rng = np.random.default_rng(100 + k)
+    for trial in range(60):
+        n = int(rng.integers(1, 120))
+        x = random_set(rng, n, k, ["continuous", "ties", "anticorrelated"][trial % 3])
+        if trial % 4 == 0:
+            x[rng.integers(0, n, 2), rng.integers(0, k)] = np.nan
+        if trial % 5 == 0:
+            x[rng.integers(0, n, 2), 0] = np.inf
+        maximize = list(SENSES[k][trial % len(SENSES[k])])
+        np.testing.assert_array_equal(pareto_mask(x, maximize), brute_mask(x, maximize))
+
+
 @pytest.mark.parametrize("k", [2, 3, 4])
 def test_nan_rows_never_on_front_and_dominate_nothing(k):
     rng = np.random.default_rng(k)

@@ -54,7 +54,9 @@ from ..errors import InputError
 __all__ = ["pareto_mask", "pareto_rank"]
 
 # Below this many points the 2-D pivot pre-filter is not worth its passes.
-_PREFILTER_MIN_POINTS = 512
+_PREFILTER_MIN_POINTS = 2048
+# Below this many rows the k >= 3 single-pivot passes stop.
+_ND_PREFILTER_MIN_POINTS = 256
 # Points sampled (evenly strided) to estimate the objective ranges for the pivot score.
 _SCALE_SAMPLE = 1024
 # Upper bound on pivots × candidates compared in one numpy block (k >= 3).
@@ -128,26 +130,41 @@ def _scale(x: np.ndarray) -> np.ndarray:
 
 
 def _mask_2d(x: np.ndarray) -> np.ndarray:
+    """Front of two maximised objectives; NaN rows are never on it.
+
+    Large inputs are first cut down by a pivot (certificate of exclusion, Bentley,
+    Clarkson & Levine 1993): the best point of an evenly strided sample by the
+    range-normalised sum; every point strictly below it in both objectives is
+    dominated and dropped (so are rows with NaN where the comparison fails).  The
+    survivors are cut again the same way while that halves them, then swept."""
     n = x.shape[0]
     a, b = x[:, 0], x[:, 1]
     if n >= _PREFILTER_MIN_POINTS:
-        with np.errstate(invalid="ignore"):   # inf - inf -> NaN, handled below
-            s = x @ _scale(x)
-        p = int(s.argmax())               # argmax returns the first NaN if there is one
-        if np.isfinite(s[p]):             # hence: no NaN and no inf anywhere
-            pa, pb = x[p]
+        sample = x[::max(1, n // _SCALE_SAMPLE)]
+        with np.errstate(invalid="ignore"):   # inf - inf -> NaN: not a pivot
+            ss = sample @ _scale(x)
+        ss[np.isnan(ss)] = -np.inf
+        pa, pb = sample[int(np.argmax(ss))]
+        if pa == pa and pb == pb:             # a pivot without NaN
             keep = a >= pa
-            keep |= b >= pb               # the rest is strictly below p in both
+            keep |= b >= pb                   # the rest is strictly below the pivot
             idx = np.flatnonzero(keep)
-            sub = x[idx]
             out = np.zeros(n, dtype=bool)
-            out[idx[_sweep_2d(sub[:, 0], sub[:, 1])]] = True
+            if idx.size <= n // 2:
+                out[idx[_mask_2d(x[idx])]] = True
+            else:
+                out[idx[_mask_sorted_2d(x[idx])]] = True
             return out
+    return _mask_sorted_2d(x)
+
+
+def _mask_sorted_2d(x: np.ndarray) -> np.ndarray:
+    a, b = x[:, 0], x[:, 1]
     ok = ~np.isnan(a) & ~np.isnan(b)
     if ok.all():
         return _sweep_2d(a, b)
     idx = np.flatnonzero(ok)
-    out = np.zeros(n, dtype=bool)
+    out = np.zeros(x.shape[0], dtype=bool)
     out[idx[_sweep_2d(a[idx], b[idx])]] = True
     return out
 
@@ -171,47 +188,79 @@ def _score(x: np.ndarray) -> np.ndarray:
     return s
 
 
+def _prefilter(x: np.ndarray, s: np.ndarray) -> np.ndarray:
+    """Ids of the rows that survive a few single-pivot passes (certificates of
+    exclusion, Bentley, Clarkson & Levine 1993).
+
+    Each pass takes the best-scored row not yet used as a pivot and drops every row
+    strictly below it in all objectives (such a row is dominated).  Passes stop when
+    one removes less than a quarter of the rows left."""
+    n, k = x.shape
+    ids = vals = work = None                  # None: still the whole of x
+    for _ in range(8):
+        m = n if ids is None else ids.size
+        if m < _ND_PREFILTER_MIN_POINTS:
+            break
+        v, w = (x, s) if ids is None else (vals, work)
+        p = int(np.argmax(w))
+        piv = v[p]
+        keep = v[:, 0] >= piv[0]
+        for j in range(1, k):
+            keep |= v[:, j] >= piv[j]
+        kept = int(np.count_nonzero(keep))
+        if ids is None:
+            ids = np.flatnonzero(keep)
+            vals, work = x[ids], s[ids]
+            work[np.searchsorted(ids, p)] = -np.inf   # do not pick the same pivot again
+        else:
+            w[p] = -np.inf
+            if kept < m:
+                ids, vals, work = ids[keep], vals[keep], work[keep]
+        if kept > 0.75 * m:
+            break
+    return np.arange(n) if ids is None else ids
+
+
 def _mask_nd(x: np.ndarray) -> np.ndarray:
-    """Sort-filter-skyline over NaN-free rows, after one pivot pre-filter; pivots in
-    numpy blocks."""
+    """Sort-filter-skyline over NaN-free rows after single-pivot pre-filter passes;
+    the presorted pivots are taken in numpy blocks that grow while few rows fall."""
     n, k = x.shape
     out = np.zeros(n, dtype=bool)
     if n == 0:
         return out
     s = _score(x)
-    # pre-filter: drop what the best-scored point beats strictly in every objective
-    piv = x[int(np.argmax(s))]
-    keep = x[:, 0] >= piv[0]
-    for j in range(1, k):
-        keep |= x[:, j] >= piv[j]
-    idx = np.flatnonzero(keep)
+    idx = _prefilter(x, s)
     order = idx[np.argsort(-s[idx], kind="stable")]
     cand = order                          # candidate ids, score descending
     vals = x[order]
     neg_s = -s[order]                     # ascending, for searchsorted
     pos = 0                               # cand[:pos] have served as pivots
+    nb = 1
     while pos < cand.size:
         m_tail = cand.size - pos
-        nb = int(min(m_tail, max(1, _BLOCK_BUDGET // m_tail)))
+        nb = int(min(nb, m_tail, max(1, _BLOCK_BUDGET // m_tail)))
         piv = vals[pos:pos + nb]
         # A dominator never has a lower score; only candidates whose score is at most
         # the block's best can be dominated by the block (ties may sit before pos).
         lo = int(np.searchsorted(neg_s, neg_s[pos], side="left"))
         tail = vals[lo:]
-        ge = np.ones((nb, tail.shape[0]), dtype=bool)
-        eq = np.ones((nb, tail.shape[0]), dtype=bool)
-        for j in range(k):
-            pj, tj = piv[:, j:j + 1], tail[None, :, j]
+        ge = piv[:, None, 0] >= tail[None, :, 0]
+        eq = piv[:, None, 0] == tail[None, :, 0]
+        for j in range(1, k):
+            pj, tj = piv[:, None, j], tail[None, :, j]
             ge &= pj >= tj
             eq &= pj == tj
         dominated = (ge & ~eq).any(axis=0)
-        if dominated.any():
+        n_dom = int(np.count_nonzero(dominated))
+        if n_dom:
             keep = np.ones(cand.size, dtype=bool)
             keep[lo:] = ~dominated
-            pos = int(keep[:pos + nb].sum())
+            pos = int(np.count_nonzero(keep[:pos + nb]))
             cand, vals, neg_s = cand[keep], vals[keep], neg_s[keep]
         else:
             pos += nb
+        # many rows fell: stay with small blocks; few fell: take more pivots at once
+        nb = 1 if n_dom > 0.25 * m_tail else 2 * nb
     out[cand] = True
     return out
 
@@ -227,10 +276,9 @@ def _mask_oriented(x: np.ndarray) -> np.ndarray:
         if np.isnan(col).all():
             return np.zeros(n, dtype=bool)
         return col == np.nanmax(col)
-    ok = ~np.isnan(x).any(axis=1)
-    if ok.all():
+    if not np.isnan(x).any():
         return _mask_nd(x)
-    idx = np.flatnonzero(ok)
+    idx = np.flatnonzero(~np.isnan(x).any(axis=1))
     out = np.zeros(n, dtype=bool)
     out[idx[_mask_nd(x[idx])]] = True
     return out
