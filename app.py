@@ -198,9 +198,10 @@ def candidate_view(cand, states):
         param = row["window_parameter"]
         if param:
             pf = pg.parameter_frame(states, ss["pick"], system)
-            st.altair_chart(pg.parameter_chart(pf, param, (row["window_min"], row["window_max"]),
-                                               (row["robust_window_min"], row["robust_window_max"]), targets,
-                                               system, row["main_value"]), width="stretch")
+            for chart in pg.parameter_charts(pf, param, (row["window_min"], row["window_max"]),
+                                             (row["robust_window_min"], row["robust_window_max"]), targets,
+                                             system, row["main_value"]):
+                st.altair_chart(chart, width="stretch")
             st.caption("Line: nominal composition; band: lean to rich corner; light shading: the window that "
                        "meets the targets; darker: where it holds at every corner.")
         else:
@@ -236,11 +237,11 @@ def comparison_view(cand):
     st.dataframe(pg.comparison_table(cand, cids, system), width="stretch")
     frame = pg.comparison_frame(cand, cids, system)
     b1, b2 = st.columns(2)
-    b1.altair_chart(pg.comparison_bars(frame, f"strength ({su})", lab), width="stretch")
-    b2.altair_chart(pg.comparison_bars(frame, "relative cost", lab), width="stretch")
+    b1.altair_chart(pg.comparison_bars(frame, f"strength ({su})", lab, legend=True), width="stretch")
+    b2.altair_chart(pg.comparison_bars(frame, "relative cost", lab, legend=True), width="stretch")
     b3, b4 = st.columns(2)
-    b3.altair_chart(pg.comparison_bars(frame, "elongation (%)", lab, height=110), width="stretch")
-    b4.altair_chart(pg.comparison_bars(frame, "hardness (HRC)", lab, height=140), width="stretch")
+    b3.altair_chart(pg.comparison_bars(frame, "elongation (%)", lab, height=200), width="stretch")
+    b4.altair_chart(pg.comparison_bars(frame, "hardness (HRC)", lab, height=200), width="stretch")
     profiles = {}
     for _, r in sub.iterrows():
         ev = pg.cached_evaluate(r["grade"], pg.route_json(r["route"]), d_si, t_si)
@@ -248,7 +249,8 @@ def comparison_view(cand):
             profiles[r["label"]] = ev["profile"]
     if profiles:
         st.altair_chart(pg.profile_chart(pg.profile_frame(profiles, system), system, list(profiles),
-                                         title="Hardness across the section (shared axes)"),
+                                         title="Hardness across the section (shared axes)",
+                                         colours=[pg.COMPARE_COLOURS[lab.index(k)] for k in profiles]),
                         width="stretch")
     for _, r in sub.iterrows():
         ev = pg.cached_evaluate(r["grade"], pg.route_json(r["route"]), d_si, t_si)

@@ -447,7 +447,7 @@ def chart_frames(states: pd.DataFrame, cand: pd.DataFrame, y: str, system: str,
         s = states[states["variant"] == c["variant"]]
         band = hull_band(s["elongation_pct"], s[y])
         if len(band):
-            band = band.assign(label=c["label"], id=c["id"])
+            band = band.assign(label=c["label"], id=c["id"], focus=c["id"] == picked)
             regions.append(band)
         nom = s[s["corner"] == "nominal"].dropna(subset=["elongation_pct", y])
         nom = nom.sort_values("main_value") if nom["main_value"].notna().any() else nom
@@ -458,19 +458,20 @@ def chart_frames(states: pd.DataFrame, cand: pd.DataFrame, y: str, system: str,
             shown = to_display(mv, q, system) if q else mv
             u = param_unit(param, system)
             n = len(nom)
-            step = 1 if c["id"] == picked else max(1, n // 3)
+            focus = c["id"] == picked
+            step = max(1, int(math.ceil(n / 14)))     # at most about 14 labels on the focus path
             keep = np.zeros(n, bool)
-            keep[::step] = True
-            keep[-1] = True
-            text = [f"{v:.0f}{'°' if q == 'temperature' else ' ' + u if u else ''}" if (k and v == v) else ""
-                    for v, k in zip(np.atleast_1d(shown), keep)]
+            if focus:
+                keep[::step] = True
+                keep[-1] = True
+            text = [_param_text(v, q, u) if (k and v == v) else "" for v, k in zip(np.atleast_1d(shown), keep)]
             paths.append(pd.DataFrame({"x": nom["elongation_pct"].to_numpy(float),
                                        "y": nom[y].to_numpy(float), "order": np.arange(n),
                                        "text": text, "param": np.atleast_1d(shown),
-                                       "label": c["label"], "id": c["id"]}))
-    reg = pd.concat(regions, ignore_index=True) if regions else pd.DataFrame(columns=["x", "lo", "hi", "label", "id"])
+                                       "label": c["label"], "id": c["id"], "focus": focus}))
+    reg = pd.concat(regions, ignore_index=True) if regions else pd.DataFrame(columns=["x", "lo", "hi", "label", "id", "focus"])
     pth = pd.concat(paths, ignore_index=True) if paths else pd.DataFrame(
-        columns=["x", "y", "order", "text", "param", "label", "id"])
+        columns=["x", "y", "order", "text", "param", "label", "id", "focus"])
     pts = pd.DataFrame({"x": cand["elongation_pct"].to_numpy(float), "y": cand[y].to_numpy(float),
                         "label": cand["label"], "id": cand["id"], "grade": cand["grade"],
                         "route": cand["route_text"], "window": cand.get("window", ""),
@@ -481,6 +482,14 @@ def chart_frames(states: pd.DataFrame, cand: pd.DataFrame, y: str, system: str,
             if col in frame:
                 frame[col] = to_display(frame[col].to_numpy(float), "stress", system)
     return {"regions": reg, "paths": pth, "points": pts}
+
+
+def _param_text(v: float, q: str | None, u: str) -> str:
+    if q == "temperature":
+        return f"{v:.0f}°"
+    if q == "length":
+        return f"{v:.3g} {u}"
+    return f"{v:.3g} {u}".strip()
 
 
 def _domain(values, pad=0.06, floor=None):
@@ -496,7 +505,7 @@ def _domain(values, pad=0.06, floor=None):
 
 
 def strength_elongation_chart(frames: dict, targets: Mapping, y: str, system: str,
-                              picked: str | None = None, height: int = 460) -> alt.Chart:
+                              picked: str | None = None, height: int = 500) -> alt.Chart:
     """Strength (yield or tensile) against elongation: each candidate's reachable
     region (hull over corners and main-parameter values), its process path with the
     parameter values, the target region, and the chosen points (Pareto set filled)."""
@@ -514,7 +523,8 @@ def strength_elongation_chart(frames: dict, targets: Mapping, y: str, system: st
     labels = list(dict.fromkeys(list(pts["label"])))
     colour = alt.Color("label:N", title="candidate", scale=alt.Scale(domain=labels, range=PALETTE[:len(labels)]
                                                                      if len(labels) <= len(PALETTE) else None),
-                       legend=alt.Legend(orient="right", symbolType="square", labelLimit=260))
+                       legend=alt.Legend(orient="right", symbolType="square", labelLimit=260, labelFontSize=11,
+                                         symbolLimit=0))
     x = alt.X("x:Q", title="Elongation (%)", scale=alt.Scale(domain=xdom, nice=False))
     yy = alt.Y("y:Q", title=ytitle, scale=alt.Scale(domain=ydom, nice=False))
 
@@ -530,20 +540,24 @@ def strength_elongation_chart(frames: dict, targets: Mapping, y: str, system: st
         x="x2:Q", y="y2:Q", text=alt.value("target region"))
     layers = [target, target_txt]
     if len(reg):
-        layers.append(alt.Chart(reg).mark_area(opacity=0.16, line={"strokeWidth": 0.6}).encode(
+        layers.append(alt.Chart(reg).mark_area(line={"strokeWidth": 0.6}).encode(
+            opacity=alt.condition("datum.focus", alt.value(0.32), alt.value(0.06)),
             x=alt.X("x:Q", scale=alt.Scale(domain=xdom, nice=False)), y=alt.Y("lo:Q", title=ytitle,
                                                                               scale=alt.Scale(domain=ydom,
                                                                                               nice=False)),
             y2="hi:Q", color=colour, detail="label:N",
             tooltip=[alt.Tooltip("label:N", title="candidate")]))
     if len(pth):
-        layers.append(alt.Chart(pth).mark_line(strokeWidth=1.6, point=alt.OverlayMarkDef(size=18, filled=True))
+        layers.append(alt.Chart(pth).mark_line(point=alt.OverlayMarkDef(size=14, filled=True))
                       .encode(x=x, y=yy, order="order:Q", color=colour, detail="label:N",
+                              strokeWidth=alt.condition("datum.focus", alt.value(2.6), alt.value(0.9)),
+                              opacity=alt.condition("datum.focus", alt.value(1.0), alt.value(0.45)),
                               tooltip=[alt.Tooltip("label:N", title="candidate"),
                                        alt.Tooltip("param:Q", title="process value", format=".4g"),
                                        alt.Tooltip("x:Q", title="elongation %", format=".1f"),
                                        alt.Tooltip("y:Q", title=su, format=".4g")]))
-        layers.append(alt.Chart(pth[pth["text"] != ""]).mark_text(dx=7, dy=-7, fontSize=10, align="left")
+        layers.append(alt.Chart(pth[pth["text"] != ""]).mark_text(dx=8, dy=-6, fontSize=11, align="left",
+                                                                  fontWeight="bold")
                       .encode(x=x, y=yy, text="text:N", color=colour))
     shape = alt.Shape("set:N", title="", scale=alt.Scale(domain=["Pareto set", "meets targets"],
                                                         range=["diamond", "triangle-down"]))
@@ -577,11 +591,14 @@ def profile_frame(profiles: Mapping[str, list], system: str) -> pd.DataFrame:
 
 
 def profile_chart(frame: pd.DataFrame, system: str, labels: Sequence[str] | None = None,
-                  height: int = 260, title: str = "Hardness across the section") -> alt.Chart:
-    """Hardness (HV) against depth from the surface; one line per label on shared axes."""
+                  height: int = 320, title: str = "Hardness across the section",
+                  colours: Sequence[str] | None = None) -> alt.Chart:
+    """Hardness (HV) against depth from the surface; one line per label on shared
+    axes (colours: by candidate id unless given)."""
     labels = list(labels or dict.fromkeys(frame["label"]))
-    colour = alt.Color("label:N", title="candidate", scale=alt.Scale(domain=labels, range=_colours_for(labels)),
-                       legend=alt.Legend(orient="bottom", labelLimit=300))
+    colour = alt.Color("label:N", title="candidate",
+                       scale=alt.Scale(domain=labels, range=list(colours or _colours_for(labels))),
+                       legend=alt.Legend(orient="top", labelLimit=300, direction="horizontal", title=None))
     lu = unit("length", system)
     return alt.Chart(frame).mark_line(point=alt.OverlayMarkDef(size=22), strokeWidth=2).encode(
         x=alt.X("depth:Q", title=f"Depth below the surface ({lu}); centre at the right"),
@@ -624,9 +641,10 @@ def parameter_frame(states: pd.DataFrame, variant: str, system: str) -> pd.DataF
         columns=["main_value", "corner", "quantity", "value"])
 
 
-def parameter_chart(frame: pd.DataFrame, param: str, window: tuple, robust_window: tuple,
-                    targets: Mapping, system: str, chosen: float | None = None) -> alt.Chart:
-    """Strength and elongation against the main process parameter: the nominal
+def parameter_charts(frame: pd.DataFrame, param: str, window: tuple, robust_window: tuple,
+                     targets: Mapping, system: str, chosen: float | None = None) -> list:
+    """Two charts on the same x axis (strength, then elongation) against the main
+    process parameter: the nominal
     composition as a line, the lean–rich spread as a band, the window that meets the
     targets shaded (darker where it holds at every composition corner), the targets
     as rules and the chosen value as a vertical mark."""
@@ -660,8 +678,10 @@ def parameter_chart(frame: pd.DataFrame, param: str, window: tuple, robust_windo
             layers.append(alt.Chart(pd.DataFrame({"a": [conv(robust_window[0])], "b": [conv(robust_window[1])]}))
                           .mark_rect(color="#8fbf9f", opacity=0.6).encode(
                 x=alt.X("a:Q", scale=alt.Scale(domain=xdom, nice=False)), x2="b:Q"))
-        qcolour = alt.Color("quantity:N", title="", scale=alt.Scale(domain=["yield", "tensile", "elongation"],
-                                                                    range=["#1b6f8a", "#c2571a", "#5b8c2a"]))
+        qrange = {"yield": "#1b6f8a", "tensile": "#c2571a", "elongation": "#5b8c2a"}
+        qcolour = alt.Color("quantity:N", title=None,
+                            scale=alt.Scale(domain=list(qty), range=[qrange[k] for k in qty]),
+                            legend=alt.Legend(orient="top", direction="horizontal"))
         ytitle = title
         layers.append(alt.Chart(sp).mark_area(opacity=0.22).encode(
             x=x, y=alt.Y("lo:Q", title=ytitle, scale=alt.Scale(zero=False)), y2="hi:Q", color=qcolour))
@@ -683,8 +703,8 @@ def parameter_chart(frame: pd.DataFrame, param: str, window: tuple, robust_windo
         if chosen is not None and chosen == chosen:
             layers.append(alt.Chart(pd.DataFrame({"c": [conv(chosen)]})).mark_rule(color="#111111", strokeWidth=1.5)
                           .encode(x=alt.X("c:Q", scale=alt.Scale(domain=xdom, nice=False))))
-        panels.append(alt.layer(*layers).properties(height=190))
-    return alt.vconcat(*panels).resolve_scale(color="shared", x="shared")
+        panels.append(alt.layer(*layers).properties(height=210 if qcol else 170))
+    return panels
 
 
 def comparison_frame(cand: pd.DataFrame, ids: Sequence[str], system: str) -> pd.DataFrame:
@@ -710,16 +730,24 @@ def comparison_frame(cand: pd.DataFrame, ids: Sequence[str], system: str) -> pd.
     return pd.DataFrame(rows, columns=["label", "id", "group", "quantity", "value"])
 
 
-def comparison_bars(frame: pd.DataFrame, group: str, labels: Sequence[str], height: int = 170) -> alt.Chart:
-    """Bars of one property group (e.g. strength) for each candidate, on one shared axis."""
+#: colours of the compared candidates, by their place in the comparison
+COMPARE_COLOURS = ["#1b6f8a", "#c2571a", "#5b8c2a"]
+
+
+def comparison_bars(frame: pd.DataFrame, group: str, labels: Sequence[str], height: int = 240,
+                    legend: bool = False) -> alt.Chart:
+    """Grouped bars of one property group (e.g. strength) for the compared
+    candidates, on one shared value axis."""
     f = frame[frame["group"] == group]
-    return alt.Chart(f).mark_bar(cornerRadiusEnd=2).encode(
-        y=alt.Y("quantity:N", title=None),
-        yOffset=alt.YOffset("label:N", sort=list(labels)),
-        x=alt.X("value:Q", title=group),
-        color=alt.Color("label:N", title="candidate", scale=alt.Scale(domain=list(labels),
-                                                                      range=_colours_for(labels)),
-                        legend=alt.Legend(orient="bottom", labelLimit=300)),
+    labels = list(labels)
+    return alt.Chart(f).mark_bar(cornerRadiusTopLeft=2, cornerRadiusTopRight=2).encode(
+        x=alt.X("quantity:N", title=None, axis=alt.Axis(labelAngle=0)),
+        xOffset=alt.XOffset("label:N", sort=labels),
+        y=alt.Y("value:Q", title=group),
+        color=alt.Color("label:N", title="candidate", sort=labels,
+                        scale=alt.Scale(domain=labels, range=COMPARE_COLOURS[:len(labels)]),
+                        legend=alt.Legend(orient="top", labelLimit=300, direction="horizontal", title=None)
+                        if legend else None),
         tooltip=[alt.Tooltip("label:N", title="candidate"), "quantity:N", alt.Tooltip("value:Q", format=".4g")],
     ).properties(height=height)
 

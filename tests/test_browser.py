@@ -1,0 +1,126 @@
+"""Real-browser check of the page: start ``streamlit run app.py`` on a free local
+port, open it in Debian's headless Chromium through Playwright, check that the
+strength–elongation chart and the candidate table render with data, and save
+``docs/screenshot.png`` (the README shows it).
+
+Needs ``/usr/bin/chromium`` (Debian package ``chromium``; ``.ci/run`` installs it)
+and the ``playwright`` Python package; no browser is downloaded.
+"""
+from __future__ import annotations
+
+import os
+import re
+import shutil
+import socket
+import subprocess
+import sys
+import tempfile
+import time
+import urllib.request
+from pathlib import Path
+
+import pytest
+
+ROOT = Path(__file__).resolve().parents[1]
+CHROMIUM = "/usr/bin/chromium"
+SCREENSHOT = ROOT / "docs" / "screenshot.png"
+LAUNCH_ARGS = ["--headless", "--no-sandbox", "--disable-gpu", "--disable-background-networking",
+               "--disable-component-update", "--disable-sync", "--no-first-run"]
+
+pytestmark = pytest.mark.slow
+
+
+def _free_port() -> int:
+    with socket.socket(socket.AF_INET, socket.SOCK_STREAM) as s:
+        s.bind(("127.0.0.1", 0))
+        return s.getsockname()[1]
+
+
+def _wait_healthy(url: str, proc: subprocess.Popen, timeout_s: float = 90.0) -> None:
+    end = time.monotonic() + timeout_s
+    while time.monotonic() < end:
+        if proc.poll() is not None:
+            raise RuntimeError(f"streamlit exited with code {proc.returncode}")
+        try:
+            with urllib.request.urlopen(url + "/_stcore/health", timeout=2) as r:
+                if r.status == 200 and r.read().strip() == b"ok":
+                    return
+        except OSError:
+            pass
+        time.sleep(0.3)
+    raise TimeoutError(f"{url}/_stcore/health did not answer within {timeout_s} s")
+
+
+@pytest.fixture(scope="module")
+def server():
+    if not shutil.which("streamlit"):
+        pytest.fail("the streamlit command is not on PATH")
+    port = _free_port()
+    env = dict(os.environ, PYTHONPATH=str(ROOT) + os.pathsep + os.environ.get("PYTHONPATH", ""))
+    log = tempfile.TemporaryFile()
+    proc = subprocess.Popen([sys.executable, "-m", "streamlit", "run", "app.py", "--server.port", str(port),
+                             "--server.address", "127.0.0.1", "--server.headless", "true",
+                             "--browser.gatherUsageStats", "false"],
+                            cwd=ROOT, env=env, stdout=log, stderr=subprocess.STDOUT)
+    url = f"http://127.0.0.1:{port}"
+    try:
+        _wait_healthy(url, proc)
+        yield url
+    finally:
+        proc.terminate()
+        try:
+            proc.wait(timeout=15)
+        except subprocess.TimeoutExpired:
+            proc.kill()
+        log.close()
+
+
+def test_page_renders_chart_and_table_with_data(server, tmp_path):
+    playwright = pytest.importorskip("playwright.sync_api")
+    if not Path(CHROMIUM).exists():
+        pytest.fail(f"{CHROMIUM} not found: install Debian's chromium package (.ci/run does)")
+    with playwright.sync_playwright() as p:
+        # a new, throw-away profile directory (Playwright passes it as --user-data-dir)
+        browser = p.chromium.launch_persistent_context(str(tmp_path / "profile"), executable_path=CHROMIUM,
+                                                       headless=True, args=LAUNCH_ARGS,
+                                                       viewport={"width": 1500, "height": 1350})
+        try:
+            page = browser.new_page()
+            t0 = time.monotonic()
+            page.goto(server, wait_until="domcontentloaded")
+            # the strength-elongation chart: a vega-embed canvas or svg with nonzero size
+            chart = page.locator("[data-testid='stVegaLiteChart'] canvas, "
+                                 "[data-testid='stVegaLiteChart'] svg").first
+            chart.wait_for(state="visible", timeout=120_000)
+            box = chart.bounding_box()
+            assert box and box["width"] > 300 and box["height"] > 200
+            # the chart is drawn from data: the vega view holds the candidates' points
+            n_points = page.evaluate("""() => {
+                const el = document.querySelector("[data-testid='stVegaLiteChart'] .vega-embed");
+                if (!el) return -1;
+                const svg = el.querySelector('svg');
+                if (svg) return svg.querySelectorAll('path, symbol, text').length;
+                return el.querySelector('canvas') ? 1e6 : 0;
+            }""")
+            assert n_points > 10
+            # the candidate table: a data grid with column headers from select() and rows
+            grid = page.locator("[data-testid='stDataFrame']").first
+            grid.wait_for(state="visible", timeout=60_000)
+            gbox = grid.bounding_box()
+            assert gbox and gbox["height"] > 100
+            text = page.locator("[data-testid='stMarkdownContainer']").all_inner_texts()
+            summary = [t for t in text if "candidates meet the targets" in t]
+            assert summary, "the summary line of the candidates is missing"
+            n_cand = int(re.search(r"(\d+)\s+candidates meet", summary[0]).group(1))
+            assert n_cand > 0
+            # the caution notice is on the page (top and footer)
+            alerts = page.locator("[data-testid='stAlert']").all_inner_texts()
+            assert sum("qualified" in a for a in alerts) >= 2
+            load_s = time.monotonic() - t0
+            page.wait_for_timeout(1500)       # let the chart finish its transitions
+            SCREENSHOT.parent.mkdir(exist_ok=True)
+            page.screenshot(path=str(SCREENSHOT), full_page=False)
+            assert SCREENSHOT.stat().st_size > 20_000
+            print(f"first load with chart and table: {load_s:.1f} s; {n_cand} candidates")
+        finally:
+            browser.close()
