@@ -14,7 +14,10 @@ CAUTION = ("Estimates for preliminary selection only. The final choice needs cer
            "test reports, the applicable design code and review by a qualified engineer.")
 
 from .selection.engine import alternatives, nearest_misses, select
+from .design.pins import pin_targets
+from .design.sweep import diameter_sweep
 
-__all__ = ["catalogue", "grade", "evaluate", "select", "nearest_misses", "alternatives", "CAUTION",
+__all__ = ["catalogue", "grade", "evaluate", "select", "nearest_misses", "alternatives", "pin_targets",
+           "diameter_sweep", "CAUTION",
            "SelectorError", "InputError", "RouteError", "NotModelledError", "UnknownGradeError",
            "DataFileError", "SelectorWarning"]

@@ -13,7 +13,9 @@ Definitions (documented in docs/methods/selection.md):
 * The candidate's *window* is the contiguous range of the main parameter around
   the chosen point over which the targets hold (at every corner for a robust
   candidate, at the nominal composition otherwise); the chosen point is the middle
-  of the widest such range, the value most tolerant of furnace scatter.
+  of the widest such range (the value most tolerant of furnace scatter), moved to
+  the nearest state with the fewest model notes where the middle carries one (for
+  example a temper inside the tempered-martensite-embrittlement range).
 * The Pareto set is taken over the candidates on the chosen objectives (default:
   maximise yield strength, maximise elongation, minimise relative cost).
 """
@@ -31,6 +33,7 @@ from ..routes.evaluate import section_args
 from ..routes.steps import describe
 from ..states.expand import expand
 from . import cost as cost_mod
+from ..design.cautions import caution_column
 from .pareto import pareto_mask
 from .targets import margins, meets, shortfalls, validate_targets
 
@@ -43,7 +46,7 @@ OUTPUT_COLUMNS = ["grade", "family", "route_family", "route_text", "route", "uts
                   "surface_hardness_hrc", "center_hardness_hv", "case_depth_mm", "relative_cost",
                   "part_cost", "mass_kg", "robust", "nominal", "pareto", "window", "window_parameter",
                   "window_min", "window_max", "robust_window_min", "robust_window_max", "main_value",
-                  "notes", "price_source"]
+                  "cautions", "notes", "price_source"]
 
 
 def _main_param(route: str):
@@ -108,6 +111,7 @@ def _prepare_cached(diameter_mm, thickness_mm, length_mm, prices: tuple) -> pd.D
     keys = out["state_key"].to_numpy()
     if len(out) != 3 * m or not (np.array_equal(keys[:m], keys[m:2 * m]) and np.array_equal(keys[:m], keys[2 * m:])):
         raise RuntimeError("states table is not aligned by composition corner")
+    out["n_notes"] = [0 if not x else x.count(" | ") + 1 for x in out["notes"]]
     out.attrs["section"] = {"diameter_mm": d, "thickness_mm": thickness_mm, "length_mm": float(length_mm)}
     return out
 
@@ -148,10 +152,25 @@ def _best_runs(start, end, vcode, main):
     return start[pick], end[pick]
 
 
+def _representative(starts: np.ndarray, ends: np.ndarray, n_notes: np.ndarray) -> np.ndarray:
+    """The chosen point of each run: among the run's states with the fewest model
+    notes (e.g. outside the tempered-martensite-embrittlement range), the one
+    nearest the middle of the run, the value most tolerant of furnace scatter."""
+    out = np.empty(len(starts), int)
+    for i, (a, b) in enumerate(zip(starts, ends)):
+        seg = n_notes[a:b + 1]
+        mid = (a + b) / 2.0
+        cost = (seg - seg.min()) * 10_000 + np.abs(np.arange(a, b + 1) - mid)
+        out[i] = a + int(np.argmin(cost))
+    return out
+
+
 def rank(prepared: pd.DataFrame, targets: dict | None = None, objectives=DEFAULT_OBJECTIVES,
-         robust_only: bool = False) -> pd.DataFrame:
+         robust_only: bool = False, service: dict | None = None) -> pd.DataFrame:
     """Candidates of ``prepared`` (from :func:`prepare`) for ``targets``: the fast
-    step that the page re-runs when only the targets change."""
+    step that the page re-runs when only the targets change.  ``service`` holds the
+    context of the cautions (``plated``, ``plating``, ``mating_material``,
+    ``service_temp_c``, ``environment``; see :func:`selector.design.cautions.cautions_for`)."""
     t = validate_targets(targets, FAMILIES)
     objectives = _check_objectives(objectives)
     m = len(prepared) // 3
@@ -178,7 +197,7 @@ def rank(prepared: pd.DataFrame, targets: dict | None = None, objectives=DEFAULT
         starts, ends = np.r_[rs, ns[keep_n]], np.r_[re_, ne[keep_n]]
     if len(starts) == 0:
         return _empty(t)
-    pick = (starts + ends) // 2
+    pick = _representative(starts, ends, nom["n_notes"].to_numpy())
     cand = nom.iloc[pick].copy()
     cand["nominal"] = True
     cand["robust"] = robust[pick]
@@ -189,7 +208,7 @@ def rank(prepared: pd.DataFrame, targets: dict | None = None, objectives=DEFAULT
     cand["window_max"] = main[ne_all[j]]
     cand["robust_window_min"] = np.where(cand["robust"], run_lo, np.nan)
     cand["robust_window_max"] = np.where(cand["robust"], run_hi, np.nan)
-    return _finish(cand, t, objectives)
+    return _finish(cand, t, objectives, service)
 
 
 def _check_objectives(objectives):
@@ -223,8 +242,9 @@ def _window_text(row) -> str:
     return txt
 
 
-def _finish(cand: pd.DataFrame, t: dict, objectives) -> pd.DataFrame:
+def _finish(cand: pd.DataFrame, t: dict, objectives, service: dict | None = None) -> pd.DataFrame:
     cand = cand.reset_index(drop=True)
+    cand["cautions"] = caution_column(cand, **(service or {})).to_numpy()
     routes, texts, wparam, wtext = [], [], [], []
     for r in cand.to_dict("records"):
         fam = fam_registry.get(r["route"])
@@ -258,7 +278,9 @@ def _empty(t) -> pd.DataFrame:
 
 def select(targets: dict | None = None, diameter_mm: float = 25.0, *, thickness_mm: float | None = None,
            length_mm: float = 100.0, price_sheet: dict | None = None, objectives=DEFAULT_OBJECTIVES,
-           robust_only: bool = False) -> pd.DataFrame:
+           robust_only: bool = False, plated: bool = False, plating: str | None = None,
+           mating_material: str | None = None, service_temp_c: float | None = None,
+           environment: str = "normal") -> pd.DataFrame:
     """Grade-and-route candidates that meet ``targets`` at the given section.
 
     Parameters
@@ -279,6 +301,10 @@ def select(targets: dict | None = None, diameter_mm: float = 25.0, *, thickness_
         Pareto objectives; default maximise yield, maximise elongation, minimise cost.
     robust_only : bool
         Keep only candidates that meet the targets at every composition corner.
+    plated, plating, mating_material, service_temp_c, environment
+        Service context for the ``cautions`` column (hydrogen embrittlement of
+        plated high-strength steel, galvanic pairs, service temperature near the
+        tempering or aging temperature); see :mod:`selector.design.cautions`.
 
     Returns
     -------
@@ -287,7 +313,9 @@ def select(targets: dict | None = None, diameter_mm: float = 25.0, *, thickness_
         when nothing qualifies (then see :func:`nearest_misses`).
     """
     prepared = prepare(diameter_mm, thickness_mm, length_mm, price_sheet)
-    return rank(prepared, targets, objectives, robust_only)
+    service = dict(plated=plated, plating=plating, mating_material=mating_material,
+                   service_temp_c=service_temp_c, environment=environment)
+    return rank(prepared, targets, objectives, robust_only, service)
 
 
 def nearest_misses(targets: dict, diameter_mm: float = 25.0, *, thickness_mm: float | None = None,
