@@ -16,8 +16,9 @@ Kung, Luccio & Preparata 1975).
 
 Methods
 -------
-* two objectives: a linear pre-filter by one pivot point (a "certificate of
-  exclusion", Bentley, Clarkson & Levine 1993), then the sort-and-sweep of Kung,
+* two objectives: linear pre-filter passes, each by one pivot point taken from an
+  evenly strided sample (a "certificate of exclusion", Bentley, Clarkson & Levine
+  1993), then the sort-and-sweep of Kung,
   Luccio & Preparata (1975): sort by objective 1 descending (ties by objective 2
   descending) and keep a point when its objective 2 beats the running maximum of
   the points before its group.  O(n log n) worst case, about O(n) on typical data.
