@@ -96,14 +96,29 @@ def _yield(uts, temper_c, cls):
 
 
 def default_austenitize_c(grade: Grade) -> float:
-    """The grade's usual hardening temperature: its window default, else the
-    catalogue's ``austenitize_c``, else Ac3 + 50 °C / Ac1 + 50 °C from Andrews (1965)."""
+    """The grade's default hardening temperature, set by its critical temperatures.
+
+    Andrews (1965) Ac3 + 40 °C for hypoeutectoid and Ac1 + 50 °C for hypereutectoid
+    steels (``critical_temperatures.default_austenitize_c``, nominal composition),
+    clipped into the grade's austenitizing window (``data/route_windows.csv``: the
+    handbook practice range).  Where the composition lies outside the validity of
+    Andrews' equations (stainless and high-Al nitriding steels, C > 0.6 % for Ac3)
+    the window's handbook default is used instead.  Andrews' Ac3 runs 30–45 °C below
+    handbook values for Cr–Mo steels (docs/methods/critical_temperatures.md), which
+    the clipping to the practice window absorbs.
+    """
+    comp = grade.composition()
     w = grade.window("quench_temper", "austenitize_c")
-    if w is not None and w.default == w.default:
-        return float(w.default)
-    if grade.austenitize_c == grade.austenitize_c:
-        return float(grade.austenitize_c)
-    return float(np.asarray(critical_temperatures.default_austenitize_c(grade.composition())).ravel()[0])
+    handbook = (float(w.default) if w is not None and w.default == w.default else
+                float(grade.austenitize_c) if grade.austenitize_c == grade.austenitize_c else float("nan"))
+    vals = {k: comp.get(k, 0.0) for k in ("C", "Mn", "Si", "Ni", "Cr", "Mo")}
+    outside = bool(validity.out_of_range_mask("andrews_ac", **vals))
+    if outside and handbook == handbook:
+        return handbook
+    t = float(np.asarray(critical_temperatures.default_austenitize_c(comp)).ravel()[0])
+    if w is not None and w.min == w.min and w.max == w.max:
+        t = min(max(t, float(w.min)), float(w.max))
+    return t
 
 
 class QuenchTemper(RouteFamily):
