@@ -126,6 +126,11 @@ class Case:
     source: str = ""
     table: str = ""
     skip_reason: str = ""         # set when the row cannot be recomputed (grade unknown ...)
+    #: further routes tried in order when ``steps`` is refused (e.g. a designation the family
+    #: does not list, then the reduction or schedule the row records)
+    alternatives: list = field(default_factory=list)
+    #: why the row is not independent of a calibration table ("" if it is)
+    calibration: str = ""
 
     @property
     def id(self) -> str:
@@ -193,42 +198,45 @@ def temper_case(rec: dict, file: str = TEMPERS_FILE) -> Case:
 
     anneal → ``[anneal]``; cold_work → ``[cold_work designation=<condition>]`` (or
     ``reduction_pct`` where the row records one and the condition is not a
-    designation); age → ``[solution_treat temp_c, age temp_c hours designation]``
-    with whatever treatment the row records.
+    designation); age → ``[solution_treat temp_c, age designation=<condition>]``, else
+    ``[solution_treat temp_c, age temp_c hours]`` with the schedule the row records.
     A band row's tensile strength is compared with the mid-point of the range.
     """
     gid, fam = _lookup_family(rec["grade"])
     route, cond = rec["route"], rec["condition"].strip()
     assumptions: list = []
+    alternatives: list = []
     if route == "anneal":
         steps = [{"op": "anneal"}]
     elif route == "cold_work":
         red = _f(rec.get("reduction_pct"))
-        step = {"op": "cold_work", "designation": cond}
+        steps = [{"op": "cold_work", "designation": cond}]
         if red == red:
-            step["reduction_pct"] = red
-        steps = [step]
+            steps[0]["reduction_pct"] = red
+            alternatives.append([{"op": "cold_work", "reduction_pct": red}])
     else:
         sol = {"op": "solution_treat"}
         st = _f(rec.get("solution_temp_c"))
         if st == st:
             sol["temp_c"] = st
-        age = {"op": "age", "designation": cond}
+        steps = [sol, {"op": "age", "designation": cond}]
         at, ah = _f(rec.get("age_temp_c")), _f(rec.get("age_hours"))
         if at == at:
-            age["temp_c"] = at
-        if ah == ah:
-            age["hours"] = ah
-        steps = [sol, age]
+            age = {"op": "age", "temp_c": at}
+            if ah == ah:
+                age["hours"] = ah
+            alternatives.append([dict(sol), age])
     pub = _published(rec, ("uts_mpa", "yield_mpa", "elongation_pct", "hardness_hb", "hardness_hrc",
                            "hardness_hv"))
     umax = _f(rec.get("uts_max_mpa"))
     if "uts_mpa" in pub and umax == umax:
         pub["uts_mpa"] = 0.5 * (pub["uts_mpa"] + umax)
         assumptions.append("tensile strength compared with the mid-point of the published range")
-    return Case(file, int(rec["line"]), rec["grade"], fam, route, cond, rec["kind"], pub, steps,
-                DEFAULT_SECTION_MM, assumptions, rec["confidence"], rec["source"], rec["table"],
-                "" if gid else "grade not in the catalogue")
+    c = Case(file, int(rec["line"]), rec["grade"], fam, route, cond, rec["kind"], pub, steps,
+             DEFAULT_SECTION_MM, assumptions, rec["confidence"], rec["source"], rec["table"],
+             "" if gid else "grade not in the catalogue")
+    c.alternatives = alternatives
+    return c
 
 
 def band_cases(frame: pd.DataFrame, file: str = BANDS_FILE) -> list[Case]:
@@ -259,26 +267,76 @@ def band_cases(frame: pd.DataFrame, file: str = BANDS_FILE) -> list[Case]:
     return out
 
 
+def _plain_rows(name: str, root: Path) -> list[dict]:
+    import csv
+
+    text = (root / name).read_text(encoding="utf-8")
+    lines = [ln for ln in text.splitlines() if ln.strip() and not ln.lstrip().startswith("#")]
+    return list(csv.DictReader(lines))
+
+
+def _calibration_keys(root: Path) -> dict:
+    """(grade, condition) pairs that a calibration table under data/ was fitted to."""
+    keys = {}
+    try:
+        for r in _plain_rows("aging_calibration.csv", root):
+            if r.get("kind") == "point" and r.get("role") == "fit":
+                keys[(r["alloy"], r["condition"])] = "the condition of a fit point of data/aging_calibration.csv"
+    except (OSError, KeyError):
+        pass
+    try:
+        for r in _plain_rows("temper_aliases.csv", root):
+            keys.setdefault((r["ref_grade"], r["designation"]),
+                            "the temper that defines the designation in data/temper_aliases.csv")
+            if r.get("basis", "").startswith("derived"):
+                # the reduction was chosen so that the model meets this temper: every grade of the family
+                keys.setdefault((r["family"], r["designation"].upper().replace(" ", "")),
+                                "a designation whose reduction was derived from the published temper "
+                                "(data/temper_aliases.csv)")
+    except (OSError, KeyError):
+        pass
+    return keys
+
+
+def _tag_calibration(cases: list, root: Path, notes: dict) -> None:
+    keys = _calibration_keys(root)
+    for c in cases:
+        why = ""
+        if c.route == "quench_temper" and "overlaps data/" in notes.get(c.id, ""):
+            why = "same handbook table as data/tempering_points.csv (calibration)"
+        elif (c.grade, c.condition) in keys:
+            why = keys[(c.grade, c.condition)]
+        elif c.route == "cold_work" and (c.family, c.condition.upper().replace(" ", "")) in keys:
+            why = keys[(c.family, c.condition.upper().replace(" ", ""))]
+        c.calibration = why
+
+
 def load_cases(files: Iterable[str] = (QT_FILE, TEMPERS_FILE, BANDS_FILE), root: Path | None = None) -> list[Case]:
     """Every reference row of ``files`` (paths under ``data/``), mapped to a case."""
     root = Path(root) if root is not None else data_dir()
     out: list[Case] = []
+    notes = {}
     for name in files:
         if name == QT_FILE:
-            out += [qt_case(r, name) for r in read_file(root / name, QT_SCHEMA).to_dict("records")]
+            recs = read_file(root / name, QT_SCHEMA).to_dict("records")
+            out += [qt_case(r, name) for r in recs]
         elif name == TEMPERS_FILE:
-            out += [temper_case(r, name) for r in read_file(root / name, TEMPERS_SCHEMA).to_dict("records")]
+            recs = read_file(root / name, TEMPERS_SCHEMA).to_dict("records")
+            out += [temper_case(r, name) for r in recs]
         elif name == BANDS_FILE:
+            recs = []
             out += band_cases(read_file(root / name, BANDS_SCHEMA), name)
         else:
             raise ValueError(f"no case mapping for {name}")
+        notes.update({f"{name}:{int(r['line'])}": str(r.get("note", "")) for r in recs})
+    _tag_calibration(out, root, notes)
     return out
 
 
 # ----------------------------------------------------------------------------- recompute
 
 COLUMNS = ["case", "file", "line", "grade", "family", "route", "condition", "kind", "confidence",
-           "property", "unit", "published", "predicted", "error", "abs_error", "status", "reason",
+           "calibration", "property", "unit", "published", "predicted", "error", "abs_error", "status", "reason",
            "assumptions"]
 
 
@@ -294,14 +352,14 @@ def _rows_for(case: Case, predicted: dict, status: str, reason: str = "") -> lis
         out.append({"case": case.id, "file": case.file, "line": case.line, "grade": case.grade,
                     "family": case.family or "(not catalogued)", "route": case.route,
                     "condition": case.condition, "kind": case.kind, "confidence": case.confidence,
-                    "property": prop, "unit": PROPERTIES[prop][1], "published": pub, "predicted": pred,
+                    "calibration": case.calibration, "property": prop, "unit": PROPERTIES[prop][1], "published": pub, "predicted": pred,
                     "error": err, "abs_error": abs(err), "status": st, "reason": why,
                     "assumptions": "; ".join(case.assumptions)})
     if not case.published:
         out.append({"case": case.id, "file": case.file, "line": case.line, "grade": case.grade,
                     "family": case.family or "(not catalogued)", "route": case.route,
                     "condition": case.condition, "kind": case.kind, "confidence": case.confidence,
-                    "property": "", "unit": "", "published": math.nan, "predicted": math.nan,
+                    "calibration": case.calibration, "property": "", "unit": "", "published": math.nan, "predicted": math.nan,
                     "error": math.nan, "abs_error": math.nan, "status": "no published value",
                     "reason": "the row gives none of the compared properties",
                     "assumptions": "; ".join(case.assumptions)})
@@ -325,14 +383,22 @@ def recompute_case(case: Case) -> list[dict]:
         return _rows_for(case, _jominy_predictions(case), "compared")
     from ..routes.evaluate import evaluate
 
-    try:
-        res = evaluate(case.grade, case.steps, diameter_mm=case.diameter_mm)
-    except NotModelledError as exc:
-        return _rows_for(case, {}, "not modelled", str(exc))
-    except SelectorError as exc:
-        return _rows_for(case, {}, "not modelled", f"{type(exc).__name__}: {exc}")
-    pred = {p: res.get(spec[2]) for p, spec in PROPERTIES.items() if spec[2]}
-    return _rows_for(case, pred, "compared")
+    first = None
+    for steps in [case.steps] + list(case.alternatives):
+        try:
+            res = evaluate(case.grade, steps, diameter_mm=case.diameter_mm)
+        except NotModelledError as exc:
+            return _rows_for(case, {}, "not modelled", str(exc))
+        except SelectorError as exc:
+            first = first or f"{type(exc).__name__}: {exc}"
+            continue
+        except Exception as exc:  # noqa: BLE001 - a library bug: listed as such, never hidden
+            return _rows_for(case, {}, "error", f"undocumented {type(exc).__name__}: {exc}")
+        if steps is not case.steps:
+            case.assumptions.append(f"route as recomputed: {res['route_text']} (first form refused: {first})")
+        pred = {p: res.get(spec[2]) for p, spec in PROPERTIES.items() if spec[2]}
+        return _rows_for(case, pred, "compared")
+    return _rows_for(case, {}, "not modelled", first)
 
 
 def recompute(cases: Sequence[Case]) -> pd.DataFrame:
@@ -347,17 +413,19 @@ GROUP = ["family", "route", "kind", "property"]
 
 
 def statistics(comparisons: pd.DataFrame) -> pd.DataFrame:
-    """Per (family, route, kind, property): ``n``, ``median_abs``, ``p90_abs`` (90th
+    """Per (family, route, kind, property): ``n``, ``n_calibration`` (how many of them
+    come from a table the model was calibrated on), ``median_abs``, ``p90_abs`` (90th
     percentile, linear interpolation) and ``median_error`` (signed, predicted −
     published), over the rows with status ``compared``."""
     c = comparisons[comparisons["status"] == "compared"]
-    cols = GROUP + ["unit", "n", "median_abs", "p90_abs", "median_error"]
+    cols = GROUP + ["unit", "n", "n_calibration", "median_abs", "p90_abs", "median_error"]
     if c.empty:
         return pd.DataFrame(columns=cols)
     rows = []
     for key, g in c.groupby(GROUP, sort=True):
         a = g["abs_error"].to_numpy(float)
         rows.append(dict(zip(GROUP, key), unit=g["unit"].iloc[0], n=len(a),
+                         n_calibration=int((g["calibration"] != "").sum()),
                          median_abs=float(np.median(a)), p90_abs=float(np.percentile(a, 90)),
                          median_error=float(np.median(g["error"].to_numpy(float)))))
     return pd.DataFrame(rows, columns=cols)
@@ -488,11 +556,18 @@ def render(comparisons: pd.DataFrame, stats: pd.DataFrame, plots: Sequence[Path]
          "grade 4140 — nominal composition against the band mid-point, the lean corner (every alloying "
          "element at its minimum) against the band minimum, the rich corner against the band maximum.",
          "* Kind `minimum`: the model estimates typical properties, so a positive error of a few "
-         "percent is expected there; compare the bias column.", "",
+         "percent is expected there; compare the bias column.",
+         "* Column *of which calibration*: comparisons whose published value comes from a table the "
+         "model was fitted to (the Q&T handbook table behind `data/tempering_points.csv`, the fit points "
+         "of `data/aging_calibration.csv`, the tempers that define `data/temper_aliases.csv`).  They "
+         "check the implementation, not the model's predictive power; an error near zero there is "
+         "expected.", "",
          "## Summary", "",
          f"* reference rows: {len(cases)} ({cases['file'].value_counts().to_dict()})",
          f"* comparisons made: {len(compared)} (of {len(comparisons)} published values)",
          f"* rows or values not compared: {len(nm)} — listed below with the reason",
+         f"* rows that failed with an undocumented error (a bug): "
+         f"{comparisons.loc[comparisons['status'] == 'error', 'case'].nunique()}",
          f"* thresholds exceeded: {len(violations)}" + ("" if not violations else
                                                        " — " + "; ".join(violations)),
          f"* groups compared without a documented threshold: {len(missing)}"
@@ -518,7 +593,8 @@ def render(comparisons: pd.DataFrame, stats: pd.DataFrame, plots: Sequence[Path]
         t["median limit"] = lim_med
         t["p90 limit"] = lim_p90
         t = t.drop(columns=["unit"])
-        t = t.rename(columns={"median_abs": "median |err|", "p90_abs": "p90 |err|", "median_error": "bias"})
+        t = t.rename(columns={"median_abs": "median |err|", "p90_abs": "p90 |err|", "median_error": "bias",
+                              "n_calibration": "of which calibration"})
         for route, g in t.groupby("route", sort=False):
             L += [f"### route: {route}", "", _md_table(g.drop(columns=["route"]),
                                                        {c: "{:.1f}" for c in g.columns if c != "n"}), ""]
