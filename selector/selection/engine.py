@@ -246,7 +246,10 @@ def _finish(cand: pd.DataFrame, t: dict, objectives, service: dict | None = None
     cand = cand.reset_index(drop=True)
     cand["cautions"] = caution_column(cand, **(service or {})).to_numpy()
     routes, texts, wparam, wtext = [], [], [], []
-    for r in cand.to_dict("records"):
+    need = {"route", "window_min", "window_max", "robust", "robust_window_min", "robust_window_max"}
+    for f in fam_registry.available():
+        need.update(f.parameters)
+    for r in cand[[c for c in cand.columns if c in need]].to_dict("records"):
         fam = fam_registry.get(r["route"])
         steps = fam.to_steps({p: r[p] for p in fam.parameters if p in r})
         routes.append(steps)
