@@ -137,8 +137,6 @@ def add_commands(sub) -> None:
     _common(a)
     a.set_defaults(func=cmd_alternatives)
 
-    try:
-        from . import cli_design
-    except ImportError:
-        return
+    from . import cli_design
+
     cli_design.add_commands(sub)

@@ -115,7 +115,8 @@ def default_austenitize_c(grade: Grade) -> float:
     outside = bool(validity.out_of_range_mask("andrews_ac", **vals))
     if outside and handbook == handbook:
         return handbook
-    t = float(np.asarray(critical_temperatures.default_austenitize_c(comp)).ravel()[0])
+    # rounded to 5 °C, as a furnace is set
+    t = 5.0 * round(float(np.asarray(critical_temperatures.default_austenitize_c(comp)).ravel()[0]) / 5.0)
     if w is not None and w.min == w.min and w.max == w.max:
         t = min(max(t, float(w.min)), float(w.max))
     return t
