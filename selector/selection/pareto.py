@@ -118,15 +118,17 @@ def _scale(x: np.ndarray) -> np.ndarray:
     """1 / range of each column, estimated on an evenly strided sample of rows
     (1 where the range is zero or not finite)."""
     n, k = x.shape
-    sample = x[::max(1, n // _SCALE_SAMPLE)]
+    st = np.ascontiguousarray(x[::max(1, n // _SCALE_SAMPLE)].T)   # (k, sample)
+    r = st.max(axis=1) - st.min(axis=1)
+    if not np.isfinite(r).all():              # NaN or inf in the sample: column by column
+        r = np.zeros(k)
+        for j in range(k):
+            col = st[j][np.isfinite(st[j])]
+            if col.size:
+                r[j] = col.max() - col.min()
+        r[~np.isfinite(r)] = 0.0
     scale = np.ones(k)
-    for j in range(k):
-        col = sample[:, j]
-        col = col[np.isfinite(col)]
-        if col.size:
-            r = col.max() - col.min()
-            if 0 < r < np.inf:
-                scale[j] = 1.0 / r
+    np.divide(1.0, r, out=scale, where=r > 0)
     return scale
 
 
@@ -161,10 +163,9 @@ def _mask_2d(x: np.ndarray) -> np.ndarray:
 
 def _mask_sorted_2d(x: np.ndarray) -> np.ndarray:
     a, b = x[:, 0], x[:, 1]
-    ok = ~np.isnan(a) & ~np.isnan(b)
-    if ok.all():
+    if not np.isnan(x).any():
         return _sweep_2d(a, b)
-    idx = np.flatnonzero(ok)
+    idx = np.flatnonzero(~np.isnan(a) & ~np.isnan(b))
     out = np.zeros(x.shape[0], dtype=bool)
     out[idx[_sweep_2d(a[idx], b[idx])]] = True
     return out
