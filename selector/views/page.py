@@ -123,7 +123,7 @@ UNIT_INPUTS = {"diameter": "length", "thickness": "length", "length": "length",
                "min_case_depth": "length"}
 
 #: digits kept when a unit switch converts an input
-_DIGITS = {("stress", SI): 0, ("stress", US): 2, ("length", SI): 2, ("length", US): 3}
+_DIGITS = {("stress", SI): 1, ("stress", US): 3, ("length", SI): 2, ("length", US): 4}
 
 
 def convert_inputs(state: Mapping, old: str, new: str) -> dict:
@@ -420,10 +420,13 @@ def hull_band(x: np.ndarray, y: np.ndarray) -> pd.DataFrame:
         xs = float(pts[0, 0])
         return pd.DataFrame({"x": [xs, xs], "lo": [pts[:, 1].min()] * 2, "hi": [pts[:, 1].max()] * 2})
 
+    def turn(o, a, b):   # z of the cross product (a - o) x (b - o)
+        return (a[0] - o[0]) * (b[1] - o[1]) - (a[1] - o[1]) * (b[0] - o[0])
+
     def chain(points):
         out = []
         for p in points:
-            while len(out) >= 2 and np.cross(out[-1] - out[-2], p - out[-2]) <= 0:
+            while len(out) >= 2 and turn(out[-2], out[-1], p) <= 0:
                 out.pop()
             out.append(p)
         return np.array(out)

@@ -1,0 +1,284 @@
+"""The local page (app.py) through Streamlit's AppTest, and the pure helpers of
+selector.views.page (units, hull band, chart data).
+
+The first AppTest run expands the catalogue (several seconds); the cached
+expansion is reused by the later runs of the same process, as on the page.
+"""
+from __future__ import annotations
+
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+import pytest
+from streamlit.testing.v1 import AppTest
+
+import selector
+from selector.catalogue.grades import FAMILIES
+from selector.selection.engine import prepare, rank
+from selector.views import page as pg
+
+APP = str(Path(__file__).resolve().parents[1] / "app.py")
+TIMEOUT = 120
+
+
+def _run(at: AppTest) -> AppTest:
+    at.run(timeout=TIMEOUT)
+    assert not at.exception, [e.value for e in at.exception]
+    return at
+
+
+@pytest.fixture
+def at():
+    return _run(AppTest.from_file(APP, default_timeout=TIMEOUT))
+
+
+def _table(at) -> pd.DataFrame | None:
+    for df in at.dataframe:
+        v = df.value
+        if "route_text" in v.columns and "pareto" in v.columns:
+            return v
+    return None
+
+
+def _misses(at) -> pd.DataFrame | None:
+    for df in at.dataframe:
+        if "miss_score" in df.value.columns:
+            return df.value
+    return None
+
+
+def _errors(at) -> list[str]:
+    return [e.value for e in at.error]
+
+
+# --------------------------------------------------------------------------- page interactions
+
+def test_default_page_shows_table_chart_and_cautions(at):
+    table = _table(at)
+    assert table is not None and len(table) > 0
+    assert not _errors(at)
+    d = pg.DEMO["targets"]
+    # every row meets the demo targets (the page passed them to the library)
+    assert (table["yield_mpa"] >= d["min_yield_mpa"] - 1e-6).all()
+    assert (table["uts_mpa"] >= d["min_uts_mpa"] - 1e-6).all()
+    assert (table["elongation_pct"] >= d["min_elongation_pct"] - 1e-6).all()
+    # the columns of select() are all in the table
+    from selector.selection.engine import OUTPUT_COLUMNS
+    missing = [c for c in OUTPUT_COLUMNS if c not in table.columns]
+    assert not missing
+    assert table["pareto"].any()
+    charts = at.get("vega_lite_chart")
+    assert len(charts) >= 3       # map, parameter curves, profile
+    # the caution and the notice to defer: at the top and in the footer
+    notices = [w.value for w in at.warning if selector.CAUTION in w.value]
+    assert len(notices) >= 2 and all("qualified, licensed engineer" in n for n in notices)
+
+
+def test_table_is_the_library_ranking(at):
+    table = _table(at)
+    d = pg.DEMO
+    ref = rank(prepare(d["diameter_mm"], None, d["length_mm"]), d["targets"])
+    assert len(table) == len(ref)
+    assert list(table["grade"] + table["route_text"]) == list(ref["grade"] + ref["route_text"])
+
+
+def test_targets_change_the_table(at):
+    before = _table(at)
+    at.number_input(key="min_yield").set_value(1000.0)
+    _run(at)
+    after = _table(at)
+    assert after is not None and 0 < len(after) < len(before)
+    assert (after["yield_mpa"] >= 1000 - 1e-6).all()
+    assert (before["yield_mpa"] < 1000).any()
+    # an upper limit cuts the other side
+    at.number_input(key="max_uts").set_value(1150.0)
+    _run(at)
+    capped = _table(at)
+    assert (capped["uts_mpa"] <= 1150 + 1e-6).all() and len(capped) < len(after)
+
+
+def test_no_candidate_gives_the_nearest_miss_report(at):
+    at.number_input(key="min_yield").set_value(3000.0)
+    at.number_input(key="min_elong").set_value(40.0)
+    _run(at)
+    assert _table(at) is None
+    assert any("No candidate meets every target" in s.value for s in at.subheader)
+    misses = _misses(at)
+    assert misses is not None and len(misses) > 0
+    assert (misses["move_min_yield_mpa"] > 0).all()
+    assert misses["miss_score"].is_monotonic_increasing
+    # the cautions stay visible on this view too
+    assert sum(selector.CAUTION in w.value for w in at.warning) >= 2
+
+
+BAD_INPUTS = [  # widget key, bad value, words the message must hold (field, value, what is allowed)
+    ("diameter", -5.0, ("Diameter", "diameter_mm", "-5", "allowed")),
+    ("diameter", 900.0, ("Diameter", "diameter_mm", "900", "allowed")),
+    ("length", 0.0, ("Part length", "length_mm", "allowed")),
+    ("min_yield", -10.0, ("Minimum yield strength", "min_yield_mpa", "-10", "allowed")),
+    ("min_elong", -1.0, ("min_elongation_pct", "-1", "allowed")),
+]
+
+
+def test_bad_inputs_give_messages_naming_field_value_and_allowed(at):
+    good = {k: at.number_input(key=k).value for k, _, _ in BAD_INPUTS}
+    previous = None
+    for key, value, words in BAD_INPUTS:
+        if previous is not None:
+            at.number_input(key=previous).set_value(good[previous])
+        at.number_input(key=key).set_value(value)
+        _run(at)
+        errs = " ".join(_errors(at))
+        for w in words:
+            assert w in errs, (key, w, errs)
+        assert _table(at) is None, key
+        previous = key
+
+
+def test_contradictory_and_missing_inputs_give_messages(at):
+    at.number_input(key="min_yield").set_value(900.0)
+    at.number_input(key="max_yield").set_value(800.0)
+    _run(at)
+    errs = " ".join(_errors(at))
+    assert "min_yield_mpa" in errs and "max_yield_mpa" in errs and _table(at) is None
+    at.number_input(key="max_yield").set_value(None)
+    at.number_input(key="length").set_value(None)
+    at.multiselect(key="families").set_value([])
+    _run(at)
+    errs = _errors(at)
+    assert any(e.startswith("Part length: blank") for e in errs)
+    assert any(e.startswith("Families: none chosen") and "carbon_steel" in e for e in errs)
+
+
+def test_bad_price_sheet_shows_line_and_column_and_changes_nothing(at):
+    before = _table(at)
+    at.text_area(key="price_text").set_value("grade,relative_price\n4140,1.9\n1045,cheap\n")
+    _run(at)
+    errs = " ".join(_errors(at))
+    assert "not applied" in errs and "line 3" in errs and "relative_price" in errs
+    after = _table(at)
+    pd.testing.assert_frame_equal(before, after)
+
+
+def test_good_price_sheet_reprices_the_grade(at):
+    before = _table(at)
+    assert (before["grade"] == "4140").any()
+    at.text_area(key="price_text").set_value("grade,relative_price\nAISI 4140,0.25\n")
+    _run(at)
+    assert not _errors(at)
+    after = _table(at)
+    rows = after[after["grade"] == "4140"]
+    assert len(rows) and (rows["price_source"] == "price sheet").all()
+    old = before[before["grade"] == "4140"].set_index("route_text")["relative_cost"]
+    new = rows.set_index("route_text")["relative_cost"]
+    common = old.index.intersection(new.index)
+    assert len(common) and (new[common] < old[common]).all()
+
+
+def test_us_units_convert_inputs_and_table(at):
+    at.radio(key="units").set_value(pg.US)
+    _run(at)
+    # the inputs follow the unit switch: 700 MPa -> 101.53 ksi, 30 mm -> 1.181 in
+    assert at.number_input(key="min_yield").value == pytest.approx(700 / 6.894757, abs=0.01)
+    assert at.number_input(key="diameter").value == pytest.approx(30 / 25.4, abs=0.001)
+    us = _table(at)
+    assert "yield_ksi" in us.columns and "yield_mpa" not in us.columns
+    assert "case_depth_in" in us.columns and "uts_ksi" in us.columns
+    # the library got the inputs back in SI, and the table shows its result in US units
+    vals = {k: at.number_input(key=k).value for k in ("diameter", "length", "min_yield", "min_uts", "min_elong")}
+    t = pg.targets_from_inputs(vals, pg.US)
+    ref = rank(prepare(pg.to_si(vals["diameter"], "length", pg.US), None, pg.to_si(vals["length"], "length", pg.US)),
+               t)
+    assert list(us["grade"] + us["route_text"]) == list(ref["grade"] + ref["route_text"])
+    np.testing.assert_allclose(us["yield_ksi"], ref["yield_mpa"] / 6.894757, rtol=1e-12)
+    np.testing.assert_allclose(us["case_depth_in"], ref["case_depth_mm"] / 25.4, rtol=1e-12)
+    qt = (ref["window_parameter"] == "temper_temp_c").to_numpy()
+    assert qt.any()
+    np.testing.assert_allclose(us.loc[qt, "window_min"], ref.loc[qt, "window_min"] * 9 / 5 + 32, rtol=1e-12)
+    assert us.loc[qt, "window"].str.endswith("°F").all()
+    # and back
+    at.radio(key="units").set_value(pg.SI)
+    _run(at)
+    assert at.number_input(key="min_yield").value == pytest.approx(700, abs=0.5)
+
+
+def test_candidate_view_shows_route_window_profile_sources(at):
+    table = _table(at)
+    variants = at.selectbox(key="pick").options
+    assert len(variants) == len(table)
+    pick = at.selectbox(key="pick")
+    pick.select_index(1)
+    _run(at)
+    row = table.iloc[1]
+    heads = [s.value for s in at.subheader]
+    assert any(h.startswith("C2 · ") and row["route_text"] in h for h in heads)
+    md = " ".join(m.value for m in at.markdown)
+    assert "**Process window**" in md and "**Sources**" in md
+    assert "1. **" in md                               # numbered route steps
+
+
+def test_comparison_defaults_to_through_and_case_hardened(at):
+    table = _table(at)
+    chosen = at.multiselect(key="compare").value
+    assert 2 <= len(chosen) <= 3
+    kinds = {v.split("|")[1] for v in chosen}
+    if {"quench_temper"} < set(table["route_family"]):
+        assert "quench_temper" in kinds and kinds & {"carburize", "nitride", "induction"}
+
+
+# --------------------------------------------------------------------------- pure helpers
+
+def test_unit_conversions():
+    # 1 ksi = 6.894757 MPa (NIST SP 811 (2008), Appendix B.8)
+    assert pg.to_display(6.894757, "stress", pg.US) == pytest.approx(1.0, rel=1e-12)
+    assert pg.to_display(25.4, "length", pg.US) == pytest.approx(1.0, rel=1e-12)      # exact by definition
+    assert pg.to_display(100.0, "temperature", pg.US) == pytest.approx(212.0, abs=1e-9)
+    assert pg.to_display(-40.0, "temperature", pg.US) == pytest.approx(-40.0, abs=1e-9)
+    for q in ("stress", "length", "temperature"):
+        v = np.array([-10.0, 0.0, 123.4])
+        np.testing.assert_allclose(pg.to_si(pg.to_display(v, q, pg.US), q, pg.US), v, atol=1e-9)
+        np.testing.assert_array_equal(pg.to_display(v, q, pg.SI), v)
+
+
+def test_targets_from_inputs_converts_to_si():
+    t = pg.targets_from_inputs({"min_yield": 100.0, "min_case_depth": 0.04, "min_elong": 12.0}, pg.US,
+                               families=["alloy_steel"])
+    assert t["min_yield_mpa"] == pytest.approx(689.4757)
+    assert t["min_case_depth_mm"] == pytest.approx(1.016)
+    assert t["min_elongation_pct"] == 12.0 and t["families"] == ["alloy_steel"]
+    assert "families" not in pg.targets_from_inputs({}, pg.SI, families=list(FAMILIES))
+
+
+def test_hull_band_contains_every_point():
+    rng = np.random.default_rng(7)
+    x, y = rng.uniform(5, 25, 200), rng.uniform(400, 1600, 200)
+    band = pg.hull_band(x, y)
+    lo = np.interp(x, band["x"], band["lo"])
+    hi = np.interp(x, band["x"], band["hi"])
+    assert (lo <= y + 1e-9).all() and (y <= hi + 1e-9).all()
+    assert band["x"].min() == pytest.approx(x.min()) and band["x"].max() == pytest.approx(x.max())
+    # a triangle is its own hull: the band's edges are the triangle's sides
+    tri = pg.hull_band([0, 2, 1], [0, 0, 2])
+    assert np.interp(1.0, tri["x"], tri["hi"]) == pytest.approx(2.0)
+    assert np.interp(0.5, tri["x"], tri["hi"]) == pytest.approx(1.0)
+    assert np.interp(0.5, tri["x"], tri["lo"]) == pytest.approx(0.0)
+
+
+def test_chart_frames_hold_each_candidate_region_and_path():
+    d = pg.DEMO
+    prep = prepare(d["diameter_mm"], None, d["length_mm"])
+    cand = pg.label_candidates(rank(prep, d["targets"])).head(5)
+    states = prep[prep["variant"].isin(cand["variant"])]
+    f = pg.chart_frames(states, cand, "yield_mpa", pg.SI, picked="C1")
+    assert set(f["regions"]["id"]) == set(cand["id"])
+    assert set(f["paths"]["id"]) == set(cand["id"])
+    # the focus path is labelled with its parameter values, the others are not
+    labelled = f["paths"][f["paths"]["text"] != ""]
+    assert set(labelled["id"]) == {"C1"} and labelled["text"].str.endswith("°").all()
+    # each chosen point lies inside its own region band
+    for _, p in f["points"].iterrows():
+        b = f["regions"][f["regions"]["id"] == p["id"]]
+        assert np.interp(p["x"], b["x"], b["lo"]) - 1e-6 <= p["y"] <= np.interp(p["x"], b["x"], b["hi"]) + 1e-6
+    spec = pg.strength_elongation_chart(f, d["targets"], "yield_mpa", pg.SI, picked="C1").to_dict()
+    assert len(spec["layer"]) >= 6
