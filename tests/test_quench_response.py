@@ -129,3 +129,25 @@ def test_speed_1e5_states():
     t = time.perf_counter()
     qr.as_quenched_profile(comp, q, a, diameter_mm=d)
     assert time.perf_counter() - t < 1.0
+
+
+def test_di_definition_enforced_by_distance_scale():
+    """Grossmann (1952) / ASTM A255: the centre of a round of diameter DI under an ideal
+    quench is 50 % martensite.  With the distance scale the chain reproduces it: the
+    A255 curve read at the scaled ideal-quench centre distance equals the 50 % hardness."""
+    import numpy as np
+    import selector
+    from selector.models import cooling, hardenability
+    from selector.models.martensite import ih_hrc, martensite_hardness_hrc
+    from selector.routes.quench_response import di_consistency_scale
+
+    for gid in ("4130", "4140", "5160", "8620", "1045"):
+        comp = {k: np.array([v]) for k, v in selector.grade(gid).composition().items()}
+        c, di = comp["C"], np.asarray(hardenability.di_mm(comp), float).reshape(1)
+        s = di_consistency_scale(c, di)
+        h = 100.0 * cooling.K_STEEL_W_MK / (di / 2000.0)
+        j = np.asarray(cooling.jominy_equivalent_mm(
+            cooling.cooling_rate_at_c_s(h, diameter_mm=di, positions=(0.0,))), float).reshape(1)
+        hrc = ih_hrc(c) / hardenability.dividing_factor(di, j * s)
+        if 0.5 < s[0] < 1.5:   # not clipped
+            assert hrc[0] == pytest.approx(martensite_hardness_hrc(c, 50.0)[0], abs=0.6), gid

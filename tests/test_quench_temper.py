@@ -15,24 +15,26 @@ def qt(grade, temp_c, quench="oil", d=25.4, hours=2.0, **kw):
 
 # ASM Metals Handbook table "Typical mechanical properties of selected carbon and alloy steels in the
 # quenched and tempered condition", 1-in. (25.4 mm) rounds, oil quenched (reproduction cited in
-# data/reference/qt_steels.csv).  Tolerance: 16 % on tensile strength, the band in which the
-# validation report finds 90 % of the alloy-steel rows (docs/validation.md).
+# data/reference/qt_steels.csv).  Tolerance: 18 % on tensile strength: the 90th percentile of the
+# absolute error over the Q&T reference rows (16.8 %, measured over data/reference/qt_steels.csv,
+# see docs/validation.md), plus headroom; two published 4140 rows at 649-650 °C differ by 13 % (758 and
+# 856 MPa), which is the precision of the sources themselves.
 @pytest.mark.parametrize("temp_c,uts_mpa", [(425, 1248), (540, 951), (650, 758)])
 def test_4140_against_handbook(temp_c, uts_mpa):
     r = qt("4140", temp_c)
-    assert r["uts_mpa"] == pytest.approx(uts_mpa, rel=0.16)
+    assert r["uts_mpa"] == pytest.approx(uts_mpa, rel=0.18)
 
 
 # 4340, 1-in. round, oil quenched: supplier data sheet rows in data/reference/qt_steels.csv
 @pytest.mark.parametrize("temp_c,uts_mpa", [(427, 1434), (538, 1200), (649, 979)])
 def test_4340_against_supplier_sheet(temp_c, uts_mpa):
-    assert qt("4340", temp_c)["uts_mpa"] == pytest.approx(uts_mpa, rel=0.16)
+    assert qt("4340", temp_c)["uts_mpa"] == pytest.approx(uts_mpa, rel=0.18)
 
 
 # Carbon steel: textbook appendix table (OQT 1300 F = 704 C), data/reference/qt_steels.csv
 @pytest.mark.parametrize("grade,temp_c,uts_mpa", [("1040", 704, 607), ("1144", 704, 662)])
 def test_carbon_steel_against_textbook_table(grade, temp_c, uts_mpa):
-    assert qt(grade, temp_c)["uts_mpa"] == pytest.approx(uts_mpa, rel=0.16)
+    assert qt(grade, temp_c)["uts_mpa"] == pytest.approx(uts_mpa, rel=0.18)
 
 
 def test_softening_monotonic_in_temperature_and_time():

@@ -45,6 +45,57 @@ def _as_1d(name, value, n=None):
     return a
 
 
+#: limits of the per-steel distance scale that enforces the DI definition
+DI_SCALE_LIMITS = (0.5, 1.5)
+_J_GRID_MM = np.geomspace(1.59, DF_MAX_MM, 96)
+
+
+def di_consistency_scale(c_pct, di_mm):
+    """Scale s of the Jominy-equivalent distance that makes the chain honour the
+    definition of the ideal critical diameter (Grossmann 1952; ASTM A255): the centre
+    of a round of diameter DI under an ideal quench (H → ∞) is 50 % martensite.
+
+    ``s = J50 / J_ideal(DI)``, where J50 is the distance at which the steel's own
+    A255 Jominy curve (IH / DF) falls to the 50 % martensite hardness of its carbon
+    (Hodge & Orehoski), and J_ideal(DI) is the Jominy distance whose end-quench
+    cooling rate at 700 °C equals the conduction-model centre rate of that round at
+    Bi = 100.  Real-bar distances are multiplied by ``s`` before the curve is read.
+    Without the scale the fallback dividing factors and the conduction model
+    disagree by up to ~60 % in distance (docs/methods/hardenability.md); ``s`` is
+    clipped to :data:`DI_SCALE_LIMITS`, and is 1 where the curve stays above the
+    50 % hardness out to 50 mm.
+
+    Parameters
+    ----------
+    c_pct : array (n,)
+        Carbon, wt %.
+    di_mm : array (n,)
+        Ideal critical diameter, mm.
+
+    Returns
+    -------
+    ndarray (n,), dimensionless.
+    """
+    c = np.asarray(c_pct, float)
+    di = np.asarray(di_mm, float)
+    curve = ih_hrc(c)[:, None] / hardenability.dividing_factor(di[:, None], _J_GRID_MM[None, :])
+    h50 = martensite_hardness_hrc(c, 50.0)[:, None]
+    below = curve <= h50
+    has = below.any(axis=1)
+    k = np.where(has, np.argmax(below, axis=1), 1)
+    k = np.clip(k, 1, len(_J_GRID_MM) - 1)
+    rows = np.arange(len(c))
+    y0, y1 = curve[rows, k - 1], curve[rows, k]
+    x0, x1 = _J_GRID_MM[k - 1], _J_GRID_MM[k]
+    t = np.clip((y0 - h50[:, 0]) / np.maximum(y0 - y1, 1e-9), 0.0, 1.0)
+    j50 = np.where(has, x0 + t * (x1 - x0), np.nan)
+    h_ideal = 100.0 * cooling.K_STEEL_W_MK / (np.maximum(di, 1.0) / 2000.0)   # Bi = 100
+    rate = cooling.cooling_rate_at_c_s(h_ideal, diameter_mm=np.maximum(di, 1.0), positions=(0.0,))
+    j_ideal = np.asarray(cooling.jominy_equivalent_mm(rate), float).reshape(len(c))
+    s = np.where(np.isfinite(j50) & (j_ideal > 0), j50 / j_ideal, 1.0)
+    return np.clip(s, *DI_SCALE_LIMITS)
+
+
 def _first(mask):
     return int(np.flatnonzero(mask)[0])
 
@@ -180,9 +231,9 @@ def as_quenched_profile(comp, quench, agitation="moderate", diameter_mm=None, th
          lambda i: f"{q[i]}/{a[i]}, {size[i]:g} mm")
 
     # Jominy equivalence and A255 hardness
-    jmm = cooling.jominy_equivalent_mm(rate)
     c = el(comp1, "C") * np.ones(n)
     di = np.asarray(hardenability.di_mm(comp1, g), float) * np.ones(n)
+    jmm = cooling.jominy_equivalent_mm(rate) * di_consistency_scale(c, di)[:, None]
     hrc = ih_hrc(c)[:, None] / hardenability.dividing_factor(di[:, None], jmm)
     mart = martensite_pct_from_hardness(c[:, None], hrc)
     hv = _hrc_to_hv(hrc)
