@@ -1,5 +1,4 @@
 """Tests of the as-quenched section profile (the seam to the route layer)."""
-import time
 
 import numpy as np
 import pytest
@@ -113,22 +112,6 @@ def test_nan_austenitize_entries_take_the_default():
                                austenitize_c=np.array([np.nan, 860.0]))
     assert r["austenitize_c"][1] == 860.0
     assert 780 < r["austenitize_c"][0] < 830
-
-
-@pytest.mark.slow
-def test_speed_1e5_states():
-    n = 100_000
-    rng = np.random.default_rng(0)
-    comp = {"C": rng.uniform(0.15, 0.6, n), "Mn": rng.uniform(0.5, 1.2, n), "Si": 0.25,
-            "Cr": rng.uniform(0, 1.2, n), "Mo": rng.uniform(0, 0.3, n), "Ni": rng.uniform(0, 2, n)}
-    q = rng.choice(["oil", "water", "air", "polymer", "brine"], n)
-    a = rng.choice(["none", "mild", "moderate", "strong"], n)
-    d = rng.uniform(5, 200, n)
-    qr.as_quenched_profile({k: np.asarray(v)[:5] if np.ndim(v) else v for k, v in comp.items()},
-                           q[:5], a[:5], diameter_mm=d[:5])          # builds the cooling table once
-    t = time.perf_counter()
-    qr.as_quenched_profile(comp, q, a, diameter_mm=d)
-    assert time.perf_counter() - t < 1.0
 
 
 def test_di_definition_enforced_by_distance_scale():
