@@ -8,10 +8,8 @@ against the documented thresholds (selector/validation/thresholds.py).
 from __future__ import annotations
 
 import csv
-import math
 from pathlib import Path
 
-import numpy as np
 import pandas as pd
 import pytest
 

@@ -352,14 +352,16 @@ def _rows_for(case: Case, predicted: dict, status: str, reason: str = "") -> lis
         out.append({"case": case.id, "file": case.file, "line": case.line, "grade": case.grade,
                     "family": case.family or "(not catalogued)", "route": case.route,
                     "condition": case.condition, "kind": case.kind, "confidence": case.confidence,
-                    "calibration": case.calibration, "property": prop, "unit": PROPERTIES[prop][1], "published": pub, "predicted": pred,
+                    "calibration": case.calibration, "property": prop, "unit": PROPERTIES[prop][1],
+                    "published": pub, "predicted": pred,
                     "error": err, "abs_error": abs(err), "status": st, "reason": why,
                     "assumptions": "; ".join(case.assumptions)})
     if not case.published:
         out.append({"case": case.id, "file": case.file, "line": case.line, "grade": case.grade,
                     "family": case.family or "(not catalogued)", "route": case.route,
                     "condition": case.condition, "kind": case.kind, "confidence": case.confidence,
-                    "calibration": case.calibration, "property": "", "unit": "", "published": math.nan, "predicted": math.nan,
+                    "calibration": case.calibration, "property": "", "unit": "",
+                    "published": math.nan, "predicted": math.nan,
                     "error": math.nan, "abs_error": math.nan, "status": "no published value",
                     "reason": "the row gives none of the compared properties",
                     "assumptions": "; ".join(case.assumptions)})
@@ -394,7 +396,7 @@ def recompute_case(case: Case) -> list[dict]:
             continue
         except Exception as exc:  # noqa: BLE001 - a library bug: listed as such, never hidden
             return _rows_for(case, {}, "error", f"undocumented {type(exc).__name__}: {exc}")
-        if steps is not case.steps:
+        if steps is not case.steps and not any(a.startswith("route as recomputed") for a in case.assumptions):
             case.assumptions.append(f"route as recomputed: {res['route_text']} (first form refused: {first})")
         pred = {p: res.get(spec[2]) for p, spec in PROPERTIES.items() if spec[2]}
         return _rows_for(case, pred, "compared")
@@ -459,7 +461,7 @@ def check(stats: pd.DataFrame, thresholds=None) -> tuple[list[str], list[str]]:
 
 def _md_table(df: pd.DataFrame, fmt: dict | None = None) -> str:
     fmt = fmt or {}
-    head = "| " + " | ".join(df.columns) + " |"
+    head = "| " + " | ".join(str(c).replace("|", "/") for c in df.columns) + " |"
     sep = "|" + "|".join("---" for _ in df.columns) + "|"
     lines = [head, sep]
     for r in df.itertuples(index=False):
@@ -563,7 +565,8 @@ def render(comparisons: pd.DataFrame, stats: pd.DataFrame, plots: Sequence[Path]
          "check the implementation, not the model's predictive power; an error near zero there is "
          "expected.", "",
          "## Summary", "",
-         f"* reference rows: {len(cases)} ({cases['file'].value_counts().to_dict()})",
+         f"* reference rows: {len(cases)} ("
+         + ", ".join(f"`{k}` {v}" for k, v in cases["file"].value_counts(sort=False).items()) + ")",
          f"* comparisons made: {len(compared)} (of {len(comparisons)} published values)",
          f"* rows or values not compared: {len(nm)} — listed below with the reason",
          f"* rows that failed with an undocumented error (a bug): "
@@ -593,7 +596,7 @@ def render(comparisons: pd.DataFrame, stats: pd.DataFrame, plots: Sequence[Path]
         t["median limit"] = lim_med
         t["p90 limit"] = lim_p90
         t = t.drop(columns=["unit"])
-        t = t.rename(columns={"median_abs": "median |err|", "p90_abs": "p90 |err|", "median_error": "bias",
+        t = t.rename(columns={"median_abs": "median abs. error", "p90_abs": "p90 abs. error", "median_error": "bias",
                               "n_calibration": "of which calibration"})
         for route, g in t.groupby("route", sort=False):
             L += [f"### route: {route}", "", _md_table(g.drop(columns=["route"]),
