@@ -6,6 +6,8 @@ input, the library works in SI.  Results are estimates for preliminary selection
 """
 from __future__ import annotations
 
+import time
+
 import streamlit as st
 
 import selector
@@ -33,6 +35,13 @@ def _defaults():
     for key, (wkey, _, _) in pg.TARGET_FIELDS.items():
         ss[wkey] = d["targets"].get(key)
     ss["families"] = list(FAMILIES)
+    ss["robust_only"] = bool(d.get("robust_only"))
+    sv = d.get("service", {})
+    ss["plated"] = bool(sv.get("plated", False))
+    ss["plating"] = sv.get("plating", "")
+    ss["mating"] = sv.get("mating_material", "")
+    ss["environment"] = sv.get("environment", "normal")
+    ss["service_temp"] = sv.get("service_temp_c")
 
 
 def _units_changed():
@@ -45,6 +54,8 @@ def _units_changed():
 
 _defaults()
 ss = st.session_state
+T0 = time.perf_counter()
+timings = {}
 
 
 def notice(where: str):
@@ -93,6 +104,14 @@ with st.sidebar:
     st.checkbox("Corrosion-resistant grades only", key="corrosion")
     st.checkbox("Only candidates that hold over the whole composition range", key="robust_only")
 
+    with st.expander("Service conditions (for the cautions)"):
+        st.checkbox("Electroplated", key="plated")
+        st.text_input("Plating", key="plating", placeholder="zinc plated")
+        st.text_input("Mating material", key="mating", placeholder="structural steel, brass, 6061 …")
+        st.selectbox("Environment", pg.ENVIRONMENTS, key="environment")
+        st.number_input(f"Highest service temperature ({pg.unit('temperature', system)})", key="service_temp",
+                        value=None, format="%.0f")
+
     st.markdown("### Prices")
     upload = st.file_uploader("Price sheet (CSV: grade, relative_price[, source])", type=["csv"], key="price_file")
     with st.expander("…or paste one"):
@@ -132,6 +151,12 @@ try:
 except SelectorError as exc:
     errors.append(pg.explain(exc, system))
 
+service = pg.service_context(ss.get("plated"), ss.get("plating"), ss.get("mating"), ss.get("environment", "normal"),
+                             pg.to_si(ss.get("service_temp"), "temperature", system))
+svc_msg = pg.check_service(service)
+if svc_msg:
+    errors.append(svc_msg)
+
 prices_file = upload.getvalue() if upload is not None else None
 prices, price_msg = pg.read_price_sheet(prices_file, getattr(upload, "name", "price sheet"))
 if price_msg is None and prices is None:
@@ -148,7 +173,9 @@ price_items = tuple(sorted(prices.items())) if prices else ()
 prepared_ok = False
 if not errors:
     try:
+        t = time.perf_counter()
         pg.cached_prepare(d_si, t_si, len_si, price_items)
+        timings["expansion"] = time.perf_counter() - t
         prepared_ok = True
     except SelectorError as exc:
         errors.append(pg.explain(exc, system))
@@ -188,7 +215,7 @@ def candidate_view(cand, states):
             st.markdown(f"**Window at every composition corner**: {rw or 'none: holds at the nominal only'}")
     with right:
         st.markdown("**Cautions**")
-        cautions = pg.candidate_cautions(row, ev.get("warnings", []))
+        cautions = pg.candidate_cautions(row, ev.get("warnings", []), service)
         if cautions:
             st.warning("\n".join(f"- {c}" for c in cautions))
         else:
@@ -254,15 +281,17 @@ def comparison_view(cand):
                         width="stretch")
     for _, r in sub.iterrows():
         ev = pg.cached_evaluate(r["grade"], pg.route_json(r["route"]), d_si, t_si)
-        cautions = pg.candidate_cautions(r, ev.get("warnings", []))
+        cautions = pg.candidate_cautions(r, ev.get("warnings", []), service)
         if cautions:
             st.warning(f"**{r['label']}**\n" + "\n".join(f"- {c}" for c in cautions))
 
 
 if prepared_ok:
     try:
+        t = time.perf_counter()
         cand = pg.cached_rank(d_si, t_si, len_si, price_items, pg.targets_key(targets),
                               bool(ss.get("robust_only")))
+        timings["ranking"] = time.perf_counter() - t
     except SelectorError as exc:
         st.error(pg.explain(exc, system))
         cand = None
@@ -281,18 +310,22 @@ if prepared_ok:
         n_chart = int(ss.get("chart_n", 15))
         top = cand.head(n_chart)
         pick = ss.get("pick") if ss.get("pick") in set(cand["variant"]) else cand["variant"].iloc[0]
+        t = time.perf_counter()
         states = pg.cached_variant_states(d_si, t_si, len_si, price_items,
                                           tuple(sorted(set(top["variant"]) | {pick})))
+        timings["regions"] = time.perf_counter() - t
         st.markdown(f"**{len(cand)}** candidates meet the targets: **{int(cand['pareto'].sum())}** in the "
                     f"Pareto set (max yield, max elongation, min cost), **{int(cand['robust'].sum())}** hold at "
                     f"every composition corner.")
         tab_map, tab_one, tab_two = st.tabs(["Map and list", "One candidate", "Side by side"])
         with tab_map:
+            t = time.perf_counter()
             y = "yield_mpa" if ss.get("chart_y", "yield") == "yield" else "uts_mpa"
             picked_id = cand.set_index("variant").loc[pick, "id"]
             frames = pg.chart_frames(states, top, y, system, picked=picked_id)
             st.altair_chart(pg.strength_elongation_chart(frames, targets, y, system, picked=picked_id),
                             width="stretch")
+            timings["map"] = time.perf_counter() - t
             st.caption(f"Shaded: each candidate's reachable region over its process window and composition "
                        f"range; line: its process path at the nominal composition, labelled with the main "
                        f"parameter; ◆ Pareto set, ▼ other candidates; ringed: the candidate in focus. "
@@ -301,13 +334,19 @@ if prepared_ok:
             st.dataframe(table, width="stretch", hide_index=True, key="candidates")
             st.download_button("Download the table (CSV)", pg.to_csv(table), file_name="candidates.csv",
                                mime="text/csv", key="download")
+        t = time.perf_counter()
         with tab_one:
             candidate_view(cand, states)
+        timings["candidate"] = time.perf_counter() - t
+        t = time.perf_counter()
         with tab_two:
             comparison_view(cand)
+        timings["comparison"] = time.perf_counter() - t
 
 # ----------------------------------------------------------------------------- footer
 st.divider()
 notice("footer")
 st.caption("Catalogue values carry a confidence tag (verified, partial, from memory, common practice); "
-           "models and their publications are listed in docs/methods.md.")
+           "models and their publications are listed in docs/methods.md.  "
+           "This run: " + ", ".join(f"{k} {v:.2f} s" for k, v in timings.items())
+           + f", page {time.perf_counter() - T0:.2f} s (expansion and ranking are cached).")

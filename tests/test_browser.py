@@ -29,6 +29,9 @@ LAUNCH_ARGS = ["--headless", "--no-sandbox", "--disable-gpu", "--disable-backgro
 
 pytestmark = pytest.mark.slow
 
+#: the page's script has finished its run (the attribute Streamlit sets on its root element)
+IDLE = """() => document.querySelector("[data-testid='stApp']")?.dataset.testScriptState === 'notRunning'"""
+
 
 def _free_port() -> int:
     with socket.socket(socket.AF_INET, socket.SOCK_STREAM) as s:
@@ -94,15 +97,18 @@ def test_page_renders_chart_and_table_with_data(server, tmp_path):
             chart.wait_for(state="visible", timeout=120_000)
             box = chart.bounding_box()
             assert box and box["width"] > 300 and box["height"] > 200
-            # the chart is drawn from data: the vega view holds the candidates' points
-            n_points = page.evaluate("""() => {
-                const el = document.querySelector("[data-testid='stVegaLiteChart'] .vega-embed");
-                if (!el) return -1;
-                const svg = el.querySelector('svg');
-                if (svg) return svg.querySelectorAll('path, symbol, text').length;
-                return el.querySelector('canvas') ? 1e6 : 0;
+            # the chart is drawn from data: the first chart (the strength-elongation map) holds one
+            # symbol per drawn candidate, filled areas for the regions and the target rectangle
+            marks = page.evaluate("""() => {
+                const el = document.querySelector("[data-testid='stVegaLiteChart']");
+                const svg = el && el.querySelector('svg');
+                if (!svg) return null;
+                const n = (sel) => svg.querySelectorAll(sel).length;
+                return {symbols: n('.mark-symbol path'), areas: n('.mark-area path'), rects: n('.mark-rect path'),
+                        lines: n('.mark-line path'), texts: n('.mark-text text')};
             }""")
-            assert n_points > 10
+            assert marks is not None, "the chart has no svg"
+            assert marks["symbols"] >= 3 and marks["areas"] >= 3 and marks["rects"] >= 1 and marks["lines"] >= 3
             # the candidate table: a data grid with column headers from select() and rows
             grid = page.locator("[data-testid='stDataFrame']").first
             grid.wait_for(state="visible", timeout=60_000)
@@ -116,11 +122,28 @@ def test_page_renders_chart_and_table_with_data(server, tmp_path):
             # the caution notice is on the page (top and footer)
             alerts = page.locator("[data-testid='stAlert']").all_inner_texts()
             assert sum("qualified" in a for a in alerts) >= 2
+            page.wait_for_function(IDLE, timeout=120_000)
             load_s = time.monotonic() - t0
             page.wait_for_timeout(1500)       # let the chart finish its transitions
             SCREENSHOT.parent.mkdir(exist_ok=True)
             page.screenshot(path=str(SCREENSHOT), full_page=False)
             assert SCREENSHOT.stat().st_size > 20_000
-            print(f"first load with chart and table: {load_s:.1f} s; {n_cand} candidates")
+            # a change of targets re-ranks: the summary line changes to fewer candidates
+            field = page.get_by_label(re.compile(r"^Min yield \(MPa\)"))
+            t1 = time.monotonic()
+            field.fill("1000")
+            field.press("Enter")
+            page.wait_for_function(
+                """(before) => [...document.querySelectorAll("[data-testid='stMarkdownContainer']")]
+                       .some(e => /(\\d+) candidates meet/.test(e.innerText)
+                                  && +e.innerText.match(/(\\d+) candidates meet/)[1] !== before)""",
+                arg=n_cand, timeout=60_000)
+            page.wait_for_function(IDLE, timeout=60_000)
+            rerank_s = time.monotonic() - t1
+            text = page.locator("[data-testid='stMarkdownContainer']").all_inner_texts()
+            n_after = int(re.search(r"(\d+)\s+candidates meet", [t for t in text if "candidates meet" in t][0]).group(1))
+            assert 0 < n_after < n_cand
+            print(f"first load with chart and table: {load_s:.1f} s ({n_cand} candidates); "
+                  f"re-rank after a target change: {rerank_s:.1f} s ({n_after} candidates)")
         finally:
             browser.close()

@@ -29,17 +29,34 @@ from selector.routes.steps import OPS
 
 # --------------------------------------------------------------------------- demo
 
-#: The page's default part and targets.  A neutral placeholder scenario (a plain
-#: round pin); align it with ``docs/demo.md`` and ``selector.design.pins`` when the
-#: demo scenario lands.
-DEMO = {
-    "title": "Demo part: a plain round pin, Ø30 mm × 100 mm (neutral defaults)",
-    "shape": "round",
-    "diameter_mm": 30.0,
-    "thickness_mm": 20.0,
-    "length_mm": 100.0,
-    "targets": {"min_yield_mpa": 700.0, "min_uts_mpa": 850.0, "min_elongation_pct": 12.0},
-}
+def _demo() -> dict:
+    """The page's default part, targets and service conditions: the invented
+    scenario of ``docs/demo.md`` (``selector.design.pins.DEMO_CASE``), its targets
+    from :func:`selector.design.pins.pin_targets`.  Falls back to a neutral round
+    pin when that module is absent."""
+    try:
+        from selector.design.pins import DEMO_CASE, DEMO_PIN_KEYS, pin_targets
+    except ImportError:
+        return {"title": "Demo part: a plain round pin, Ø30 mm × 100 mm (neutral defaults)", "shape": "round",
+                "diameter_mm": 30.0, "thickness_mm": 20.0, "length_mm": 100.0, "robust_only": False,
+                "targets": {"min_yield_mpa": 700.0, "min_uts_mpa": 850.0, "min_elongation_pct": 12.0},
+                "service": {}}
+    c = DEMO_CASE
+    # grip length of the double-shear pin: lug + two clevis arms + two gaps (docs/demo.md, step 2)
+    grip_mm = c["lug_thickness_mm"] + 2 * c["clevis_thickness_mm"] + 2 * c["gap_mm"]
+    return {"title": (f"Demo (invented scenario, demo data): {c['company']}, {c['part']}: "
+                      f"Ø{c['diameter_mm']:g} mm pin, {c['load_kn']:g} kN design load in double shear, "
+                      f"safety factor {c['safety_factor']:g}; see docs/demo.md"),
+            "shape": "round", "diameter_mm": float(c["diameter_mm"]), "thickness_mm": 20.0,
+            "length_mm": float(grip_mm), "robust_only": True,
+            "targets": pin_targets(**{k: c[k] for k in DEMO_PIN_KEYS}),
+            "service": {"plated": bool(c["plated"]), "plating": c["plating"],
+                        "mating_material": c["mating_material"], "environment": c["environment"],
+                        "service_temp_c": float(c["service_temp_c"])}}
+
+
+#: The page's default part and targets (see :func:`_demo`).
+DEMO = _demo()
 
 #: The notice shown on every view, after :data:`selector.CAUTION`.
 DEFER_NOTICE = ("Parts chosen here can hurt people when they fail. Defer to the applicable design "
@@ -120,10 +137,11 @@ def display_name(name: str, system: str) -> str:
 #: page inputs that carry a unit: widget key -> quantity
 UNIT_INPUTS = {"diameter": "length", "thickness": "length", "length": "length",
                "min_yield": "stress", "max_yield": "stress", "min_uts": "stress", "max_uts": "stress",
-               "min_case_depth": "length"}
+               "min_case_depth": "length", "service_temp": "temperature"}
 
 #: digits kept when a unit switch converts an input
-_DIGITS = {("stress", SI): 1, ("stress", US): 3, ("length", SI): 2, ("length", US): 4}
+_DIGITS = {("stress", SI): 1, ("stress", US): 3, ("length", SI): 2, ("length", US): 4,
+           ("temperature", SI): 1, ("temperature", US): 1}
 
 
 def convert_inputs(state: Mapping, old: str, new: str) -> dict:
@@ -273,10 +291,41 @@ CAUTION_COLUMNS = ("grade", "family", "route_family", "quench", "temper_temp_c",
                    "designation", "c_pct", "hardness_hrc", "surface_hardness_hrc", "uts_mpa")
 
 
-def candidate_cautions(row: Mapping, warnings: Sequence[str] = ()) -> list[str]:
+ENVIRONMENTS = ("harsh", "normal", "controlled")
+
+
+def service_context(plated: bool, plating: str | None, mating_material: str | None, environment: str,
+                    service_temp_c: float | None) -> dict:
+    """The service conditions the caution rules read, blanks dropped."""
+    ctx = {"plated": bool(plated), "environment": environment}
+    if plated and plating and plating.strip():
+        ctx["plating"] = plating.strip()
+    if mating_material and mating_material.strip():
+        ctx["mating_material"] = mating_material.strip()
+    if service_temp_c is not None:
+        ctx["service_temp_c"] = float(service_temp_c)
+    return ctx
+
+
+def check_service(context: Mapping) -> str | None:
+    """The library's message when the service conditions are not valid (an unknown
+    mating material, say), else None."""
+    try:
+        from selector.design.cautions import cautions_for
+    except ImportError:
+        return None
+    probe = pd.DataFrame([{"grade": "4140", "family": "alloy_steel", "route_family": "quench_temper"}])
+    try:
+        cautions_for(probe, **context)
+    except SelectorError as exc:
+        return f"Service conditions: {exc}"
+    return None
+
+
+def candidate_cautions(row: Mapping, warnings: Sequence[str] = (), context: Mapping | None = None) -> list[str]:
     """Every caution of one candidate, without repeats: the route model's notes and
     ``evaluate`` warnings, then the rules of :mod:`selector.design.cautions` (when
-    that module is present) as ``title: reason``."""
+    that module is present) under the service ``context``, as ``title: reason``."""
     out = [w for w in warnings if w]
     notes = row.get("notes")
     if isinstance(notes, str) and notes:
@@ -288,7 +337,7 @@ def candidate_cautions(row: Mapping, warnings: Sequence[str] = ()) -> list[str]:
     if cautions_for is not None:
         frame = pd.DataFrame([{c: row.get(c) for c in CAUTION_COLUMNS if c in row}])
         try:
-            found = cautions_for(frame)[0]
+            found = cautions_for(frame, **dict(context or {}))[0]
         except SelectorError:
             found = []
         out += [f"{c['title']}: {c['reason']}" for c in found]
