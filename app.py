@@ -73,12 +73,11 @@ with st.sidebar:
     lfmt = "%.3f" if system == pg.US else "%.1f"
     sfmt = "%.1f" if system == pg.US else "%.0f"
     st.radio("Section", ("round bar", "plate"), key="shape", horizontal=True)
-    if ss["shape"] == "round bar":
-        st.number_input(f"Diameter ({lu})", key="diameter", value=None, step=0.1 if system == pg.US else 1.0,
-                        format=lfmt)
-    else:
-        st.number_input(f"Plate thickness ({lu})", key="thickness", value=None,
-                        step=0.1 if system == pg.US else 1.0, format=lfmt)
+    # both inputs stay on the page (the unused one disabled) so that each keeps its value
+    st.number_input(f"Diameter ({lu})", key="diameter", value=None, step=0.1 if system == pg.US else 1.0,
+                    format=lfmt, disabled=ss["shape"] != "round bar")
+    st.number_input(f"Plate thickness ({lu})", key="thickness", value=None,
+                    step=0.1 if system == pg.US else 1.0, format=lfmt, disabled=ss["shape"] == "round bar")
     st.number_input(f"Part length ({lu})", key="length", value=None, step=0.5 if system == pg.US else 10.0,
                     format=lfmt)
 

@@ -313,3 +313,27 @@ def test_service_conditions_reach_the_cautions(at):
     _run(at)
     errs = " ".join(_errors(at))
     assert "Service conditions" in errs and "mating_material" in errs and "unobtainium" in errs
+
+
+def test_plate_section_ranks_at_the_plate_thickness(at):
+    diameter = at.number_input(key="diameter").value
+    at.radio(key="shape").set_value("plate")
+    _run(at)
+    at.number_input(key="thickness").set_value(20.0)
+    _run(at)
+    table = _table(at)
+    d = pg.DEMO
+    ref = rank(prepare(None, 20.0, d["length_mm"]), d["targets"], robust_only=d["robust_only"])
+    assert table is not None and len(table) == len(ref) > 0
+    np.testing.assert_allclose(table["yield_mpa"], ref["yield_mpa"], rtol=1e-12)
+    # a 20 mm plate: the profile runs from the surface to the mid-plane at 10 mm
+    charts = [c for c in at.get("vega_lite_chart") if "Hardness across the section" in c.proto.spec]
+    assert charts
+    import pyarrow as pa       # the chart data travel as Arrow tables beside the spec
+    frames = [pa.ipc.open_stream(ds.data.data).read_all().to_pandas() for ds in charts[0].proto.datasets]
+    depths = [v for f in frames if "depth" in f for v in f["depth"]]
+    assert depths and min(depths) == pytest.approx(0.0) and max(depths) == pytest.approx(10.0)
+    # back to the round bar: its diameter was kept
+    at.radio(key="shape").set_value("round bar")
+    _run(at)
+    assert at.number_input(key="diameter").value == diameter and _table(at) is not None
