@@ -77,6 +77,8 @@ QT_FILE = "reference/qt_steels.csv"
 TEMPERS_FILE = "reference/tempers_nonferrous.csv"
 BANDS_FILE = "reference/hardenability_bands.csv"
 KINDS = ("typical", "minimum", "band")
+#: families whose anneal route gives the catalogue's annealed baseline properties
+BASELINE_FAMILIES = ("stainless_austenitic", "aluminium", "copper_alloy", "titanium")
 
 
 def _num(*names):
@@ -306,6 +308,8 @@ def _tag_calibration(cases: list, root: Path, notes: dict) -> None:
             why = "same handbook table as data/tempering_points.csv (calibration)"
         elif (c.grade, c.condition) in keys:
             why = keys[(c.grade, c.condition)]
+        elif c.route == "anneal" and c.family in BASELINE_FAMILIES:
+            why = "the anneal route returns the catalogue's annealed baseline (data/grades.csv)"
         elif c.route == "cold_work" and (c.family, c.condition.upper().replace(" ", "")) in keys:
             why = keys[(c.family, c.condition.upper().replace(" ", ""))]
         c.calibration = why
@@ -601,6 +605,17 @@ def render(comparisons: pd.DataFrame, stats: pd.DataFrame, plots: Sequence[Path]
         for route, g in t.groupby("route", sort=False):
             L += [f"### route: {route}", "", _md_table(g.drop(columns=["route"]),
                                                        {c: "{:.1f}" for c in g.columns if c != "n"}), ""]
+    measured = {tuple(k) for k in stats[GROUP].itertuples(index=False, name=None)} if not stats.empty else set()
+    th_rows = [{"family": k[0], "route": k[1], "kind": k[2],
+                "property": f"{PROPERTIES[k[3]][0]} ({PROPERTIES[k[3]][1]})",
+                "median limit": t.median_abs, "p90 limit": t.p90_abs,
+                "compared in this run": "yes" if k in measured else "no"}
+               for k, t in sorted(THRESHOLDS.items())]
+    if th_rows:
+        L += ["### Every documented threshold", "",
+              "Groups marked *no* were not compared in this run (their rows are listed below as not "
+              "compared); their thresholds apply as soon as they are.", "",
+              _md_table(pd.DataFrame(th_rows), {"median limit": "{:g}", "p90 limit": "{:g}"}), ""]
     if not compared.empty:
         w = compared.assign(rel=compared["abs_error"] / compared["published"].abs().clip(lower=1e-9))
         w = w.sort_values("rel", ascending=False).head(n_worst)

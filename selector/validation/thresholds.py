@@ -84,4 +84,27 @@ THRESHOLDS: dict = {
     ('stainless_ph', 'age', 'minimum', 'hardness_hrc'): Threshold(1.5, 4.5),  # n=14, measured 1.14 / 3.36 HRC
     ('stainless_ph', 'age', 'minimum', 'uts_mpa'): Threshold(40, 110),  # n=14, measured 30.1 / 87.1 MPa
     ('stainless_ph', 'age', 'minimum', 'yield_mpa'): Threshold(50, 255),  # n=14, measured 39.5 / 200 MPa
+    # anneal rows: measured with selector.models.grain_size imported first (anneal.py needs its
+    # validity range and does not import it; reported as a bug)
+    ('aluminium', 'anneal', 'band', 'elongation_pct'): Threshold(12.5, 12.5),  # n=1, measured 10 / 10 %
+    ('aluminium', 'anneal', 'band', 'uts_mpa'): Threshold(5, 5),  # n=1, measured 1.5 / 1.5 MPa
+    ('aluminium', 'anneal', 'band', 'yield_mpa'): Threshold(20, 20),  # n=1, measured 14 / 14 MPa
+    ('aluminium', 'anneal', 'typical', 'elongation_pct'): Threshold(1.5, 12.5),  # n=6, measured 1 / 10 %
+    ('aluminium', 'anneal', 'typical', 'uts_mpa'): Threshold(5, 5),  # n=6, measured 0 / 1 MPa
+    ('aluminium', 'anneal', 'typical', 'yield_mpa'): Threshold(5, 5),  # n=6, measured 0 / 1 MPa
+    ('copper_alloy', 'anneal', 'band', 'elongation_pct'): Threshold(21.5, 29.5),  # n=2, measured 17 / 23.4 %
+    ('copper_alloy', 'anneal', 'band', 'uts_mpa'): Threshold(25, 45),  # n=3, measured 17 / 35.4 MPa
+    ('copper_alloy', 'anneal', 'band', 'yield_mpa'): Threshold(80, 100),  # n=2, measured 61.5 / 78.7 MPa
+    ('copper_alloy', 'anneal', 'typical', 'elongation_pct'): Threshold(1, 1),  # n=1, measured 0 / 0 %
+    ('copper_alloy', 'anneal', 'typical', 'uts_mpa'): Threshold(5, 5),  # n=1, measured 0 / 0 MPa
+    ('copper_alloy', 'anneal', 'typical', 'yield_mpa'): Threshold(5, 5),  # n=1, measured 0 / 0 MPa
+    ('stainless_austenitic', 'anneal', 'minimum', 'elongation_pct'): Threshold(25, 25),  # n=1, measured 20 / 20 %
+    ('stainless_austenitic', 'anneal', 'minimum', 'uts_mpa'): Threshold(85, 85),  # n=1, measured 68 / 68 MPa
+    ('stainless_austenitic', 'anneal', 'minimum', 'yield_mpa'): Threshold(35, 35),  # n=1, measured 28 / 28 MPa
+    ('titanium', 'anneal', 'band', 'elongation_pct'): Threshold(2.5, 2.5),  # n=1, measured 2 / 2 %
+    ('titanium', 'anneal', 'band', 'uts_mpa'): Threshold(100, 100),  # n=1, measured 77.5 / 77.5 MPa
+    ('titanium', 'anneal', 'band', 'yield_mpa'): Threshold(10, 10),  # n=1, measured 5 / 5 MPa
+    ('titanium', 'anneal', 'minimum', 'elongation_pct'): Threshold(5, 5),  # n=1, measured 4 / 4 %
+    ('titanium', 'anneal', 'minimum', 'uts_mpa'): Threshold(70, 70),  # n=1, measured 54 / 54 MPa
+    ('titanium', 'anneal', 'minimum', 'yield_mpa'): Threshold(70, 70),  # n=1, measured 53 / 53 MPa
 }
