@@ -193,7 +193,7 @@ def candidate_view(cand, states):
     row = cand.set_index("variant").loc[ss["pick"]]
     ev = pg.cached_evaluate(row["grade"], pg.route_json(row["route"]), d_si, t_si)
     g = selector.grade(row["grade"])
-    st.subheader(f"{row['id']} · {g.name} · {row['route_text']}")
+    st.subheader(f"{row['id']} · {g.name} · {pg.route_line(row['route'], system, row['route_text'])}")
     m = st.columns(6)
     m[0].metric(f"Yield ({su})", f"{pg.to_display(row['yield_mpa'], 'stress', system):.4g}")
     m[1].metric(f"Tensile ({su})", f"{pg.to_display(row['uts_mpa'], 'stress', system):.4g}")

@@ -203,7 +203,10 @@ def test_us_units_convert_inputs_and_table(at):
     t = pg.targets_from_inputs(vals, pg.US)
     ref = rank(prepare(pg.to_si(vals["diameter"], "length", pg.US), None, pg.to_si(vals["length"], "length", pg.US)),
                t, robust_only=pg.DEMO["robust_only"])
-    assert list(us["grade"] + us["route_text"]) == list(ref["grade"] + ref["route_text"])
+    assert list(us["route"]) == [pg.route_json(r) for r in ref["route"]]
+    # the route text in °F: 540 °C reads 1004 °F
+    assert us["route_text"].str.contains("°F").all() and not us["route_text"].str.contains("°C").any()
+    assert pg.route_line([{"op": "temper", "temp_c": 540.0, "hours": 2.0}], pg.US) == "Temper at 1004 °F, for 2 h"
     np.testing.assert_allclose(us["yield_ksi"], ref["yield_mpa"] / 6.894757, rtol=1e-12)
     np.testing.assert_allclose(us["case_depth_in"], ref["case_depth_mm"] / 25.4, rtol=1e-12)
     qt = (ref["window_parameter"] == "temper_temp_c").to_numpy()

@@ -420,6 +420,9 @@ def display_table(cand: pd.DataFrame, system: str) -> pd.DataFrame:
     renamed, e.g. ``yield_ksi``); the route as JSON text; the window columns
     converted row by row according to their parameter."""
     df = cand.copy()
+    if system == US and "route" in df:
+        df["route_text"] = [route_line(r, system) if isinstance(r, (list, tuple)) else t
+                            for r, t in zip(df["route"], df["route_text"])]
     if "route" in df:
         df["route"] = [route_json(r) if isinstance(r, (list, tuple)) else str(r) for r in df["route"]]
     if system == US and "window_parameter" in df:
@@ -809,7 +812,8 @@ def comparison_table(cand: pd.DataFrame, ids: Sequence[str], system: str) -> pd.
     sub = cand.set_index("id").loc[list(ids)]
     su, lu = unit("stress", system), unit("length", system)
     rows = {
-        "grade": sub["grade"], "family": sub["family"], "route": sub["route_text"],
+        "grade": sub["grade"], "family": sub["family"],
+        "route": [route_line(r, system, t) for r, t in zip(sub["route"], sub["route_text"])],
         f"yield ({su})": to_display(sub["yield_mpa"].to_numpy(float), "stress", system),
         f"tensile ({su})": to_display(sub["uts_mpa"].to_numpy(float), "stress", system),
         "elongation (%)": sub["elongation_pct"], "hardness (HRC)": sub["hardness_hrc"],
@@ -876,9 +880,22 @@ def route_steps(route: Sequence[Mapping], system: str) -> list[str]:
     return out
 
 
+def route_line(route: Sequence[Mapping], system: str, si_text: str | None = None) -> str:
+    """One-line route text: the library's own text in SI, the same steps with
+    temperatures and depths converted in US units."""
+    if system == SI and si_text:
+        return si_text
+    parts = []
+    for step in route_steps(route, system):
+        parts.append(step.split(". ", 1)[1].replace("**", ""))
+    return " → ".join(parts)
+
+
 def miss_table(misses: pd.DataFrame, system: str) -> pd.DataFrame:
     """The nearest-miss report in display units (``move_*`` columns converted)."""
     df = misses.copy()
+    if system == US and "route" in df:
+        df["route_text"] = [route_line(r, system) for r in df["route"]]
     keep = [c for c in df.columns if c in ("grade", "family", "route_text", "miss_score") or c.startswith("move_")]
     keep += [c for c in ("yield_mpa", "uts_mpa", "elongation_pct", "hardness_hrc", "relative_cost") if c in df]
     df = df[keep]
