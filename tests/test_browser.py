@@ -124,6 +124,7 @@ def test_page_renders_chart_and_table_with_data(server, tmp_path):
             assert sum("qualified" in a for a in alerts) >= 2
             page.wait_for_function(IDLE, timeout=120_000)
             load_s = time.monotonic() - t0
+            first_run = page.get_by_text(re.compile("This run:")).all_inner_texts()
             page.wait_for_timeout(1500)       # let the chart finish its transitions
             SCREENSHOT.parent.mkdir(exist_ok=True)
             page.screenshot(path=str(SCREENSHOT), full_page=False)
@@ -143,7 +144,10 @@ def test_page_renders_chart_and_table_with_data(server, tmp_path):
             text = page.locator("[data-testid='stMarkdownContainer']").all_inner_texts()
             n_after = int(re.search(r"(\d+)\s+candidates meet", [t for t in text if "candidates meet" in t][0]).group(1))
             assert 0 < n_after < n_cand
+            server_side = page.get_by_text(re.compile("This run:")).all_inner_texts()
             print(f"first load with chart and table: {load_s:.1f} s ({n_cand} candidates); "
-                  f"re-rank after a target change: {rerank_s:.1f} s ({n_after} candidates)")
+                  f"re-rank after a target change: {rerank_s:.1f} s ({n_after} candidates); "
+                  f"server side of the first run: {first_run[0].split('This run:')[1].strip() if first_run else '?'}; "
+                  f"of the re-rank: {server_side[0].split('This run:')[1].strip() if server_side else '?'}")
         finally:
             browser.close()

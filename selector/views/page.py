@@ -25,7 +25,6 @@ import streamlit as st
 import selector
 from selector.catalogue.grades import FAMILIES
 from selector.errors import DataFileError, InputError, SelectorError
-from selector.routes.steps import OPS
 
 # --------------------------------------------------------------------------- demo
 
