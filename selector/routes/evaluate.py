@@ -59,9 +59,20 @@ def scale_hardness(hv: np.ndarray, families_: np.ndarray) -> dict:
             "hb": np.where(steel, conversions.hv_to_hb(hv), np.nan)}
 
 
+OFF_TABLE_NOTE = ("hardness above the tensile-strength column of ASTM A370 Table 3 / E140 (about HRC 59): "
+                  "tensile strength, yield and elongation are not estimated")
+
+
 def finish(res: dict, batch: Batch) -> dict:
-    """Add the scale conversions shared by every family (in place) and return ``res``."""
+    """Add the scale conversions shared by every family (in place), and the note for
+    states whose strength is undefined because their hardness is off the conversion
+    table, and return ``res``."""
     fam = batch.attr("family")
+    hv_test = np.asarray(res.get("hardness_hv", np.full(batch.n, np.nan)), float)
+    uts = np.asarray(res.get("uts_mpa", np.full(batch.n, np.nan)), float)
+    off = np.isfinite(hv_test) & ~np.isfinite(uts)
+    if off.any():
+        res.setdefault("notes", []).append((OFF_TABLE_NOTE, off))
     for key in ("hardness", "surface_hardness", "center_hardness"):
         hv = np.asarray(res.get(key + "_hv", np.full(batch.n, np.nan)), float)
         res[key + "_hv"] = hv

@@ -76,7 +76,7 @@ def parse_steps(route) -> list[dict]:
         if not isinstance(step, Mapping) or "op" not in step:
             raise RouteError("op", step, "a dict with key 'op' (one of: " + ", ".join(OPS) + ")", where)
         op = step["op"]
-        if op not in OPS:
+        if not isinstance(op, str) or op not in OPS:
             check_choice("op", op, list(OPS), where, RouteError)
         spec = OPS[op]
         clean = {"op": op}

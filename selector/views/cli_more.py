@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import json
 import sys
+from pathlib import Path
 
 import pandas as pd
 
@@ -20,9 +21,9 @@ TABLE_COLUMNS = ["grade", "route_text", "yield_mpa", "uts_mpa", "elongation_pct"
 
 
 def _targets_from_args(args) -> dict:
-    from ..selection.targets import targets_from_toml
+    from ..studies import load_targets
 
-    t = targets_from_toml(args.targets) if getattr(args, "targets", None) else {}
+    t = dict(load_targets(Path(args.targets), args.targets)) if getattr(args, "targets", None) else {}
     for key, _ in TARGET_FLAGS:
         v = getattr(args, key, None)
         if v is not None:
@@ -39,15 +40,9 @@ def _targets_from_args(args) -> dict:
 def _price_sheet(args):
     if not getattr(args, "prices", None):
         return None
-    from ..selection.cost import parse_price_sheet
-    from pathlib import Path
+    from ..studies import load_price_sheet
 
-    p = Path(args.prices)
-    try:
-        data = p.read_bytes()
-    except OSError as exc:
-        raise InputError("--prices", args.prices, f"a readable CSV file ({exc.strerror})") from None
-    return parse_price_sheet(data, str(p))
+    return load_price_sheet(Path(args.prices), args.prices)
 
 
 def _json_ready(df: pd.DataFrame) -> list:
@@ -137,6 +132,7 @@ def add_commands(sub) -> None:
     _common(a)
     a.set_defaults(func=cmd_alternatives)
 
-    from . import cli_design
+    from . import cli_design, cli_validate
 
     cli_design.add_commands(sub)
+    cli_validate.add_commands(sub)

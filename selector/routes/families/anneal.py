@@ -16,7 +16,7 @@ from __future__ import annotations
 import numpy as np
 
 from ...errors import RouteError
-from ...models import conversions, critical_temperatures, ferrite_pearlite as fp, validity
+from ...models import conversions, critical_temperatures, ferrite_pearlite as fp, grain_size, validity  # noqa: F401 (grain_size registers its validity range)
 from ...models.composition import el
 from .base import Batch, RouteFamily
 

@@ -200,9 +200,7 @@ class QuenchTemper(RouteFamily):
                       "(ASTM A255 / Hodge & Orehoski)", res["center_martensite_pct"] < 50.0))
         notes.append(("untempered martensite is brittle: temper promptly after quenching (common practice)",
                       ~np.isfinite(t)))
-        notes.append(("hardness above the tensile-strength column of ASTM A370 Table 3 / E140 (about HRC 59): "
-                      "tensile strength, yield and elongation are not estimated",
-                      np.isfinite(res["hardness_hv"]) & ~np.isfinite(res["uts_mpa"])))
+
         for model, vals in (("astm_a255", {k: batch.comp.get(k, np.zeros(batch.n))
                                            for k in ("C", "Mn", "Si", "Ni", "Cr", "Mo", "Cu", "V")}),):
             try:
