@@ -78,6 +78,11 @@ class ColdWork(RouteFamily):
 
     def grid(self, grade):
         r = self.span(grade, ROUTE, "reduction_pct", 7, (0.0, 40.0))
+        # 0 % is the annealed stock, which the anneal route already covers; a cold-worked
+        # condition starts at the first grid step (values rounded to 0.5 %)
+        r = np.unique(np.round(r[r > 0] * 2.0) / 2.0)
+        if r.size == 0:
+            r = np.array([self.span(grade, ROUTE, "reduction_pct", 2, (0.0, 40.0)).max()])
         n = len(r)
         return {"reduction_pct": r, "designation": np.array([""] * n, dtype=object),
                 "prior_anneal": np.array(["none"] * n, dtype=object)}
