@@ -122,3 +122,24 @@ def check_number(field: str, value: object, lo: float | None = None, hi: float |
     if (lo is not None and v < lo) or (hi is not None and v > hi):
         raise InputError(field, value, f"a number in [{lo}, {hi}]", context)
     return v
+
+
+def check_array(field: str, x, lo: float | None = None, hi: float | None = None, context: str = "",
+                lo_open: bool = False):
+    """``x`` as a float array if every element is finite and within [lo, hi] (or
+    (lo, hi] with ``lo_open``), else :class:`InputError` naming the first bad value."""
+    import numpy as np
+
+    a = np.asarray(x, float)
+    bad = ~np.isfinite(a)
+    if lo is not None:
+        bad |= (a <= lo) if lo_open else (a < lo)
+    if hi is not None:
+        bad |= a > hi
+    if np.any(bad):
+        v = float(np.atleast_1d(a)[np.atleast_1d(bad)][0])
+        lo_s = "" if lo is None else (f"> {lo:g}" if lo_open else f">= {lo:g}")
+        hi_s = "" if hi is None else f"<= {hi:g}"
+        raise InputError(field, v, "a finite number" + (" " + " and ".join(x for x in (lo_s, hi_s) if x)
+                                                        if (lo_s or hi_s) else ""), context)
+    return a

@@ -24,7 +24,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from ..errors import InputError
+from ..errors import check_array
 from . import validity
 from .composition import Composition, el
 
@@ -61,19 +61,7 @@ validity.register("hodgson_gibbs_ferrite_grain", {"ceq": (0.05, 0.6, "wt%"), "co
                   "Hodgson & Gibbs (1992), C-Mn steels, Ceq = C + Mn/6 (ranges from memory)")
 
 
-def _check(field, x, lo=None, hi=None, context="", lo_open=False):
-    a = np.asarray(x, float)
-    bad = ~np.isfinite(a)
-    if lo is not None:
-        bad |= (a <= lo) if lo_open else (a < lo)
-    if hi is not None:
-        bad |= a > hi
-    if np.any(bad):
-        v = float(np.atleast_1d(a)[np.atleast_1d(bad)][0])
-        raise InputError(field, v, f"a finite number {'>' if lo_open else '>='} {lo}" +
-                         (f" and <= {hi}" if hi is not None else ""), context)
-    return a
-
+_check = check_array  # shared helper in selector.errors
 
 def pearlite_fraction(comp: Composition):
     """Pearlite volume fraction by the lever rule: ``(C - 0.02) / (0.77 - 0.02)``, in

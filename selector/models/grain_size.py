@@ -17,7 +17,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from ..errors import InputError
+from ..errors import check_array
 from . import validity
 
 R_J = 8.314
@@ -37,21 +37,7 @@ validity.register("austenite_grain_growth", {"temp_c": (850.0, 1250.0, "°C"), "
 validity.register("astm_e112", {"grain_size_number": (-3.0, 14.0, "")}, "ASTM E112 tables cover G 00 to 14")
 
 
-def _check(field, x, lo=None, hi=None, context="", lo_open=False):
-    a = np.asarray(x, float)
-    bad = ~np.isfinite(a)
-    if lo is not None:
-        bad |= (a <= lo) if lo_open else (a < lo)
-    if hi is not None:
-        bad |= a > hi
-    if np.any(bad):
-        v = float(np.atleast_1d(a)[np.atleast_1d(bad)][0])
-        rng = f"{'>' if lo_open else '>='} {lo:g}" if lo is not None else ""
-        if hi is not None:
-            rng += (" and " if rng else "") + f"<= {hi:g}"
-        raise InputError(field, v, f"a finite number {rng}".strip(), context)
-    return a
-
+_check = check_array  # shared helper in selector.errors
 
 def astm_e112_mean_diameter_um(grain_size_number):
     """Mean grain diameter (µm) of an ASTM E112 grain-size number G.

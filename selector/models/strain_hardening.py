@@ -24,7 +24,7 @@ import math
 
 import numpy as np
 
-from ..errors import InputError
+from ..errors import InputError, check_array
 from . import validity
 
 #: Brown & Sharpe (AWG) gauge ratio per gauge number, 92^(1/39) (ASTM B258 definition)
@@ -41,21 +41,7 @@ validity.register("strain_hardening", {"reduction_pct": (0.0, 80.0, "%"), "true_
                   "reduction); beyond that flow stress saturates and the power law over-predicts")
 
 
-def _check_array(field: str, x, lo: float | None, hi: float | None, context: str,
-                 lo_open: bool = False) -> np.ndarray:
-    a = np.asarray(x, float)
-    bad = ~np.isfinite(a)
-    if lo is not None:
-        bad |= (a <= lo) if lo_open else (a < lo)
-    if hi is not None:
-        bad |= a > hi
-    if np.any(bad):
-        v = float(np.atleast_1d(a)[np.atleast_1d(bad)][0])
-        lo_s = "" if lo is None else (f"> {lo:g}" if lo_open else f">= {lo:g}")
-        hi_s = "" if hi is None else f"<= {hi:g}"
-        raise InputError(field, v, "a finite number " + " and ".join(s for s in (lo_s, hi_s) if s), context)
-    return a
-
+_check_array = check_array  # shared helper in selector.errors
 
 def true_strain_from_reduction(reduction_pct):
     """True (logarithmic) strain of a cold reduction of area.
