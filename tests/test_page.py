@@ -168,6 +168,15 @@ def test_bad_price_sheet_shows_line_and_column_and_changes_nothing(at):
     pd.testing.assert_frame_equal(before, after)
 
 
+def test_price_sheet_reader_names_line_and_column_of_a_bad_byte():
+    # a Latin-1 upload: byte 0xe9 ('é') at line 3, column 5 is not UTF-8
+    prices, msg = pg.read_price_sheet(b"grade,relative_price\n4140,1.9\nAISI\xe9,2\n", "prices.csv")
+    assert prices is None and "line 3" in msg and "column 5" in msg and "UTF-8" in msg
+    # pasted text is read as text, not taken for a path
+    assert pg.read_price_sheet("grade,relative_price\n4140,0.5\n", "pasted") == ({"4140": 0.5}, None)
+    assert pg.read_price_sheet("  \n", "pasted") == (None, None)
+
+
 def test_good_price_sheet_reprices_the_grade(at):
     before = _table(at)
     assert (before["grade"] == "4140").any()

@@ -221,7 +221,10 @@ def check_families(families: Sequence[str]) -> str | None:
 
 
 def read_price_sheet(data: bytes | str | None, name: str = "price sheet") -> tuple[dict | None, str | None]:
-    """Parse an uploaded or pasted price sheet with the library's parser.
+    """Read an uploaded or pasted price sheet with the library's user-file reader
+    (:func:`selector.studies.load_price_sheet`: UTF-8 check with the line and column
+    of a bad byte, then the price-sheet schema).  Pasted text is passed as its UTF-8
+    bytes (a ``str`` would be taken for a path).
 
     Returns ``(prices, None)``, or ``(None, message)`` with the
     :class:`~selector.errors.DataFileError` text (file, line, column) when it is
@@ -229,8 +232,11 @@ def read_price_sheet(data: bytes | str | None, name: str = "price sheet") -> tup
     """
     if data is None or (isinstance(data, (bytes, str)) and not data.strip()):
         return None, None
+    from selector import studies
+
+    raw = data.encode("utf-8") if isinstance(data, str) else bytes(data)
     try:
-        return selector.selection.cost.parse_price_sheet(data, name), None
+        return studies.load_price_sheet(raw, name), None
     except (DataFileError, SelectorError) as exc:
         return None, str(exc)
 
