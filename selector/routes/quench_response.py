@@ -76,8 +76,14 @@ def di_consistency_scale(c_pct, di_mm):
     -------
     ndarray (n,), dimensionless.
     """
-    c = np.asarray(c_pct, float)
-    di = np.asarray(di_mm, float)
+    c_all = np.asarray(c_pct, float).reshape(-1)
+    di_all = np.asarray(di_mm, float).reshape(-1)
+    # states of one grade and composition corner share (C, DI): compute each pair once
+    pairs, inverse = np.unique(np.stack([c_all, di_all], axis=1), axis=0, return_inverse=True)
+    return _di_scale_unique(pairs[:, 0], pairs[:, 1])[inverse.reshape(-1)]
+
+
+def _di_scale_unique(c, di):
     curve = ih_hrc(c)[:, None] / hardenability.dividing_factor(di[:, None], _J_GRID_MM[None, :])
     h50 = martensite_hardness_hrc(c, 50.0)[:, None]
     below = curve <= h50
