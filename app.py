@@ -12,6 +12,7 @@ import streamlit as st
 
 import selector
 from selector.catalogue.grades import FAMILIES
+from selector.design.sweep import changes
 from selector.errors import SelectorError
 from selector.selection.targets import validate_targets
 from selector.views import page as pg
@@ -42,6 +43,21 @@ def _defaults():
     ss["mating"] = sv.get("mating_material", "")
     ss["environment"] = sv.get("environment", "normal")
     ss["service_temp"] = sv.get("service_temp_c")
+    pin = d.get("pin") or {}
+    ss["pin_load"] = pin.get("load_kn")
+    ss["pin_diameter"] = pin.get("diameter_mm")
+    ss["pin_planes"] = int(pin.get("shear_planes", 2))
+    ss["pin_model"] = "uniform"
+    ss["pin_lug"] = pin.get("lug_thickness_mm")
+    ss["pin_clevis"] = pin.get("clevis_thickness_mm")
+    ss["pin_gap"] = pin.get("gap_mm", 0.0)
+    ss["pin_sf"] = pin.get("safety_factor", 2.0)
+    ss["pin_wear_hrc"] = pin.get("wear_surface_hardness_hrc")
+    sweep_d = pin.get("sweep_diameters_mm") or [20.0, 25.0, 30.0]
+    ss["sweep_mode"] = pg.SWEEP_MODES[0]
+    ss["sweep_list"] = pg.format_lengths(sweep_d, pg.SI)
+    ss["sweep_from"], ss["sweep_to"] = min(sweep_d), max(sweep_d)
+    ss["sweep_step"] = 2.0
 
 
 def _units_changed():
@@ -49,7 +65,21 @@ def _units_changed():
     new, old = ss["units"], ss.get("_units_prev", pg.SI)
     for k, v in pg.convert_inputs({k: ss.get(k) for k in pg.UNIT_INPUTS}, old, new).items():
         ss[k] = v
+    ss["sweep_list"] = pg.convert_length_text(ss.get("sweep_list"), old, new)
     ss["_units_prev"] = new
+
+
+def _apply_pin():
+    """'Use these targets': the sidebar takes over the pin's targets and section
+    (computed from the pin inputs as they are when the button is pressed)."""
+    system = ss["units"]
+    case, msgs = pg.pin_case_from_inputs({k: ss.get(k) for k in pg.PIN_INPUT_KEYS}, system)
+    rep = pg.pin_report_for(case, system)[0] if case else None
+    if rep is None:
+        return
+    for k, v in pg.inputs_from_pin(rep, case, system).items():
+        ss[k] = v
+    ss["_pin_applied"] = True
 
 
 _defaults()
@@ -285,6 +315,132 @@ def comparison_view(cand):
             st.warning(f"**{r['label']}**\n" + "\n".join(f"- {c}" for c in cautions))
 
 
+def pin_view():
+    """The clevis-pin load case -> stresses and targets, and the diameter sweep."""
+    fu = pg.unit("force", system)
+    st.markdown("**Clevis pin.** The lug sits between the two arms of the clevis (double shear), or two "
+                "members meet across one shear plane (single shear).  Stresses by elementary beam theory "
+                "(Budynas & Nisbett 2015, ch. 3; docs/methods/pins.md); the targets multiply them by the "
+                "safety factor.")
+    inputs, results = st.columns([2, 3], gap="large")
+    with inputs:
+        c1, c2 = st.columns(2)
+        c1.number_input(f"Load ({fu})", key="pin_load", value=None, format="%.0f" if system == pg.US else "%.2f",
+                        help="The load the joint carries (the design load, shock included).")
+        c2.number_input(f"Pin diameter ({lu})", key="pin_diameter", value=None, format=lfmt)
+        c1.radio("Shear planes", (2, 1), key="pin_planes", format_func=pg.SHEAR_PLANE_LABELS.get)
+        c2.radio("Bending model", tuple(pg.LOAD_MODEL_LABELS), key="pin_model",
+                 format_func=pg.LOAD_MODEL_LABELS.get,
+                 help="Uniform: bearing pressure spread over each member's thickness.  Concentrated: loads "
+                      "at the bearing centres, a higher moment (double shear only; single shear is always "
+                      "the clamped cantilever).")
+        c1.number_input(f"Lug thickness ({lu})", key="pin_lug", value=None, format=lfmt,
+                        help="The middle member in double shear; the member the pin is clamped in, in single shear.")
+        c2.number_input(f"Clevis arm thickness ({lu})", key="pin_clevis", value=None, format=lfmt,
+                        help="One arm of the clevis (double shear), or the other member (single shear).")
+        c1.number_input(f"Gap each side ({lu})", key="pin_gap", value=None, format=lfmt)
+        c2.number_input("Safety factor", key="pin_sf", value=None, format="%.2f", help="1 to 10.")
+        c1.number_input("Wear surface hardness (HRC)", key="pin_wear_hrc", value=None, format="%.1f",
+                        help="Optional: the minimum surface hardness for wear (20 to 70 HRC).  Blank: none.")
+    case, msgs = pg.pin_case_from_inputs({k: ss.get(k) for k in pg.PIN_INPUT_KEYS}, system)
+    rep = None
+    if case is not None:
+        rep, msg = pg.pin_report_for(case, system)
+        msgs = [msg] if msg else []
+    with results:
+        for m in msgs:
+            st.error(m)
+        if rep is not None:
+            s = rep["stresses"]
+            m = st.columns(4)
+            m[0].metric(f"Shear ({su})", f"{pg.to_display(s['shear_mpa'], 'stress', system):.4g}")
+            m[1].metric(f"Bending ({su})", f"{pg.to_display(s['bending_mpa'], 'stress', system):.4g}")
+            m[2].metric(f"Bearing ({su})", f"{pg.to_display(s['bearing_mpa'], 'stress', system):.4g}")
+            m[3].metric("Governing", rep["governing"])
+            t = rep["targets"]
+            m = st.columns(4)
+            m[0].metric(f"Min yield ({su})", f"{pg.to_display(t['min_yield_mpa'], 'stress', system):.4g}")
+            m[1].metric(f"Min tensile ({su})", f"{pg.to_display(t['min_uts_mpa'], 'stress', system):.4g}")
+            wear = t.get("min_surface_hardness_hrc")
+            m[2].metric("Min surface (HRC)", "—" if wear is None else f"{wear:.3g}")
+            m[3].metric(f"Grip length ({lu})", f"{pg.to_display(pg.pin_grip_mm(case), 'length', system):.4g}")
+            st.dataframe(pg.pin_stress_table(rep, system), hide_index=True, width="stretch", key="pin_stresses")
+            k = rep["shear_to_tensile"]
+            with st.expander("Formulas and assumptions"):
+                st.markdown("\n".join(f"- `{v}`" for v in s["formulas"].values()))
+                st.markdown(f"- yield target = SF × max(bending, √3 × shear (von Mises), bearing / "
+                            f"{rep['bearing_factor']:g}); tensile target = SF × shear / {k['ratio']:g} "
+                            f"({k['source']}; {k['confidence']})")
+                st.markdown("\n".join(f"- {a}" for a in s["assumptions"]))
+            st.button("Use these targets in the candidate table", key="pin_apply", on_click=_apply_pin,
+                      type="primary",
+                      help="The sidebar takes over the minimum yield, tensile and surface hardness (a blank wear "
+                           "hardness clears the surface target) and the section: a round bar of the pin's "
+                           "diameter, the grip length.  Other targets stay.")
+            if ss.pop("_pin_applied", False):
+                st.success("The sidebar now holds the pin's targets and section; the other tabs are ranked on them.")
+
+    st.divider()
+    st.subheader("Diameter sweep")
+    st.caption("At each diameter the pin's targets are recomputed and the cheapest robust candidate (lowest "
+               "part cost; targets met at every composition corner) is picked at that section.  A larger pin "
+               "needs less strength but hardens less deeply, so the pick need not change monotonically.  The "
+               "sidebar's other targets, prices and service conditions apply too.")
+    w = st.columns([2, 1, 1, 1])
+    w[0].radio("Diameters", pg.SWEEP_MODES, key="sweep_mode", horizontal=True)
+    listed = ss["sweep_mode"] == pg.SWEEP_MODES[0]
+    w[0].text_input(f"Diameters ({lu}, comma-separated)", key="sweep_list", disabled=not listed)
+    w[1].number_input(f"From ({lu})", key="sweep_from", value=None, format=lfmt, disabled=listed)
+    w[2].number_input(f"To ({lu})", key="sweep_to", value=None, format=lfmt, disabled=listed)
+    w[3].number_input(f"Step ({lu})", key="sweep_step", value=None, format=lfmt, disabled=listed)
+    diam, dmsg = pg.sweep_diameters(ss["sweep_mode"], ss.get("sweep_list"), ss.get("sweep_from"),
+                                    ss.get("sweep_to"), ss.get("sweep_step"), system)
+    if dmsg:
+        st.error(dmsg)
+    args = None
+    if rep is not None and not dmsg:
+        extra = {k: v for k, v in targets.items() if k not in pg.PIN_TARGET_KEYS}
+        args = (diam, pg.targets_key({k: v for k, v in case.items() if k != "diameter_mm"}),
+                pg.targets_key(extra), price_items, pg.targets_key(service))
+    n = len(diam)
+    pressed = st.button(f"Run the sweep ({n} diameters, about {n * pg.SWEEP_SECONDS_PER_DIAMETER:.0f} s)"
+                        if n else "Run the sweep", key="sweep_run", disabled=args is None)
+    if pressed and args is not None:
+        t = time.perf_counter()
+        try:
+            with st.spinner(f"Sweeping {n} diameters: the whole catalogue at each section…"):
+                sw = pg.cached_sweep(*args)
+            ss["_sweep"] = {"args": args, "table": sw, "seconds": time.perf_counter() - t}
+        except SelectorError as exc:
+            ss.pop("_sweep", None)
+            st.error(pg.explain(exc, system, pg.SWEEP_LABELS))
+        timings["sweep"] = time.perf_counter() - t
+    res = ss.get("_sweep")
+    if res is None:
+        st.info("Press **Run the sweep** (it runs the selection once per diameter).")
+        return
+    if res["args"] != args:
+        st.info("The inputs have changed since this sweep was run; press **Run the sweep** to update it.")
+    sw = res["table"]
+    st.altair_chart(pg.sweep_chart(sw, system), width="stretch")
+    ch = changes(sw)
+    moves = [f"**{pg.to_display(r['diameter_mm'], 'length', system):.4g} {lu}**: "
+             f"{pg.pick_label(r['grade'], r['route_family'])}" for _, r in ch.iloc[1:].iterrows()]
+    first = ch.iloc[0]
+    st.markdown(f"From {pg.to_display(first['diameter_mm'], 'length', system):.4g} {lu}: "
+                f"{pg.pick_label(first['grade'], first['route_family'])}; "
+                + (("the pick changes at " + ", ".join(moves)) if moves else "the pick does not change")
+                + f".  Sweep of {len(sw)} diameters in {res['seconds']:.1f} s (cached).")
+    table = pg.sweep_table(sw, system)
+    st.dataframe(table, width="stretch", hide_index=True, key="sweep_table")
+    st.download_button("Download the sweep (CSV)", pg.to_csv(table), file_name="diameter_sweep.csv",
+                       mime="text/csv", key="sweep_download")
+    st.caption(sw.attrs.get("notice", selector.CAUTION) + f"  Pin length for the part cost: "
+               f"{pg.to_display(sw.attrs.get('length_mm', float('nan')), 'length', system):.4g} {lu} (grip length).")
+
+
+TAB_LABELS = ["Map and list", "One candidate", "Side by side", "Clevis pin and sizes"]
+cand = None
 if prepared_ok:
     try:
         t = time.perf_counter()
@@ -294,7 +450,22 @@ if prepared_ok:
     except SelectorError as exc:
         st.error(pg.explain(exc, system))
         cand = None
-    if cand is not None and len(cand) == 0:
+if cand is not None and len(cand):
+    cand = pg.label_candidates(cand)
+    n_chart = int(ss.get("chart_n", 15))
+    top = cand.head(n_chart)
+    pick = ss.get("pick") if ss.get("pick") in set(cand["variant"]) else cand["variant"].iloc[0]
+    t = time.perf_counter()
+    states = pg.cached_variant_states(d_si, t_si, len_si, price_items,
+                                      tuple(sorted(set(top["variant"]) | {pick})))
+    timings["regions"] = time.perf_counter() - t
+    st.markdown(f"**{len(cand)}** candidates meet the targets: **{int(cand['pareto'].sum())}** in the "
+                f"Pareto set (max yield, max elongation, min cost), **{int(cand['robust'].sum())}** hold at "
+                f"every composition corner.")
+tab_map, tab_one, tab_two, tab_pin = st.tabs(TAB_LABELS)
+no_table = "No candidate table: see the messages above."
+if cand is not None and len(cand) == 0:
+    with tab_map:
         st.subheader("No candidate meets every target")
         st.markdown("The nearest misses: how far each target would have to move for the candidate to "
                     "qualify at the nominal composition (`move_*`, in the units shown), smallest total first.")
@@ -304,43 +475,42 @@ if prepared_ok:
                          key="misses")
         except SelectorError as exc:
             st.error(pg.explain(exc, system))
-    elif cand is not None:
-        cand = pg.label_candidates(cand)
-        n_chart = int(ss.get("chart_n", 15))
-        top = cand.head(n_chart)
-        pick = ss.get("pick") if ss.get("pick") in set(cand["variant"]) else cand["variant"].iloc[0]
+    for tab in (tab_one, tab_two):
+        with tab:
+            st.info("No candidate meets every target: see the nearest misses under Map and list.")
+elif cand is not None:
+    with tab_map:
         t = time.perf_counter()
-        states = pg.cached_variant_states(d_si, t_si, len_si, price_items,
-                                          tuple(sorted(set(top["variant"]) | {pick})))
-        timings["regions"] = time.perf_counter() - t
-        st.markdown(f"**{len(cand)}** candidates meet the targets: **{int(cand['pareto'].sum())}** in the "
-                    f"Pareto set (max yield, max elongation, min cost), **{int(cand['robust'].sum())}** hold at "
-                    f"every composition corner.")
-        tab_map, tab_one, tab_two = st.tabs(["Map and list", "One candidate", "Side by side"])
-        with tab_map:
-            t = time.perf_counter()
-            y = "yield_mpa" if ss.get("chart_y", "yield") == "yield" else "uts_mpa"
-            picked_id = cand.set_index("variant").loc[pick, "id"]
-            frames = pg.chart_frames(states, top, y, system, picked=picked_id)
-            st.altair_chart(pg.strength_elongation_chart(frames, targets, y, system, picked=picked_id),
-                            width="stretch")
-            timings["map"] = time.perf_counter() - t
-            st.caption(f"Shaded: each candidate's reachable region over its process window and composition "
-                       f"range; line: its process path at the nominal composition, labelled with the main "
-                       f"parameter; ◆ Pareto set, ▼ other candidates; ringed: the candidate in focus. "
-                       f"Top {len(top)} of {len(cand)} drawn.")
-            table = pg.display_table(cand.drop(columns=["label"]), system)
-            st.dataframe(table, width="stretch", hide_index=True, key="candidates")
-            st.download_button("Download the table (CSV)", pg.to_csv(table), file_name="candidates.csv",
-                               mime="text/csv", key="download")
-        t = time.perf_counter()
-        with tab_one:
-            candidate_view(cand, states)
-        timings["candidate"] = time.perf_counter() - t
-        t = time.perf_counter()
-        with tab_two:
-            comparison_view(cand)
-        timings["comparison"] = time.perf_counter() - t
+        y = "yield_mpa" if ss.get("chart_y", "yield") == "yield" else "uts_mpa"
+        picked_id = cand.set_index("variant").loc[pick, "id"]
+        frames = pg.chart_frames(states, top, y, system, picked=picked_id)
+        st.altair_chart(pg.strength_elongation_chart(frames, targets, y, system, picked=picked_id),
+                        width="stretch")
+        timings["map"] = time.perf_counter() - t
+        st.caption(f"Shaded: each candidate's reachable region over its process window and composition "
+                   f"range; line: its process path at the nominal composition, labelled with the main "
+                   f"parameter; ◆ Pareto set, ▼ other candidates; ringed: the candidate in focus. "
+                   f"Top {len(top)} of {len(cand)} drawn.")
+        table = pg.display_table(cand.drop(columns=["label"]), system)
+        st.dataframe(table, width="stretch", hide_index=True, key="candidates")
+        st.download_button("Download the table (CSV)", pg.to_csv(table), file_name="candidates.csv",
+                           mime="text/csv", key="download")
+    t = time.perf_counter()
+    with tab_one:
+        candidate_view(cand, states)
+    timings["candidate"] = time.perf_counter() - t
+    t = time.perf_counter()
+    with tab_two:
+        comparison_view(cand)
+    timings["comparison"] = time.perf_counter() - t
+else:
+    for tab in (tab_map, tab_one, tab_two):
+        with tab:
+            st.info(no_table)
+t = time.perf_counter()
+with tab_pin:
+    pin_view()
+timings["pin"] = time.perf_counter() - t
 
 # ----------------------------------------------------------------------------- footer
 st.divider()

@@ -349,3 +349,187 @@ def test_plate_section_ranks_at_the_plate_thickness(at):
     at.radio(key="shape").set_value("round bar")
     _run(at)
     assert at.number_input(key="diameter").value == diameter and _table(at) is not None
+
+
+# --------------------------------------------------------------------------- clevis pin and diameter sweep
+
+from selector.design.pins import pin_stresses          # noqa: E402
+from selector.design.sweep import diameter_sweep       # noqa: E402
+
+#: a load case unlike the demo's: single shear, no wear target
+PIN_CASE = {"pin_load": 45.0, "pin_diameter": 30.0, "pin_lug": 20.0, "pin_clevis": 12.0, "pin_gap": 2.0,
+            "pin_sf": 2.5, "pin_wear_hrc": None}
+
+
+def _set_pin(at, values: dict, planes: int | None = None):
+    for k, v in values.items():
+        at.number_input(key=k).set_value(v)
+    if planes is not None:
+        at.radio(key="pin_planes").set_value(planes)
+    return _run(at)
+
+
+def _frame(at, key: str) -> pd.DataFrame | None:
+    for df in at.dataframe:
+        if df.proto.id and key in df.proto.id or getattr(df, "key", None) == key:
+            return df.value
+    return None
+
+
+def _sweep(at) -> pd.DataFrame | None:
+    for df in at.dataframe:
+        if "n_robust" in df.value.columns:
+            return df.value
+    return None
+
+
+def _metric(at, label: str) -> str:
+    return next(m.value for m in at.metric if m.label == label)
+
+
+def test_pin_section_targets_are_the_library_targets_and_apply_to_the_table(at):
+    # the defaults are the demo load case: its targets are the sidebar's at start
+    assert at.number_input(key="min_yield").value == pytest.approx(pg.DEMO["targets"]["min_yield_mpa"])
+    before = _table(at)
+    _set_pin(at, PIN_CASE, planes=1)
+    ref = selector.pin_targets(load_kn=45.0, diameter_mm=30.0, shear_planes=1, safety_factor=2.5, gap_mm=2.0,
+                               lug_thickness_mm=20.0, clevis_thickness_mm=12.0)
+    assert set(ref) == {"min_yield_mpa", "min_uts_mpa"}
+    # shown targets (4 significant digits) and the stress table are the library's
+    assert float(_metric(at, "Min yield (MPa)")) == pytest.approx(ref["min_yield_mpa"], rel=5e-4)
+    assert float(_metric(at, "Min tensile (MPa)")) == pytest.approx(ref["min_uts_mpa"], rel=5e-4)
+    assert _metric(at, "Min surface (HRC)") == "—"
+    s = pin_stresses(load_kn=45.0, diameter_mm=30.0, shear_planes=1, gap_mm=2.0, lug_thickness_mm=20.0,
+                     clevis_thickness_mm=12.0)
+    st_tab = next(df.value for df in at.dataframe if "yield demand (MPa)" in df.value.columns)
+    np.testing.assert_allclose(st_tab["stress (MPa)"], [s["shear_mpa"], s["bending_mpa"], s["bearing_mpa"]],
+                               rtol=1e-12)
+    assert st_tab.loc[st_tab["governs"], "mode"].tolist() == ["bending"]
+    # the sidebar is unchanged until the button is pressed
+    assert at.number_input(key="min_yield").value == pytest.approx(pg.DEMO["targets"]["min_yield_mpa"])
+    at.button(key="pin_apply").click()
+    _run(at)
+    assert at.number_input(key="min_yield").value == pytest.approx(ref["min_yield_mpa"], rel=1e-12)
+    assert at.number_input(key="min_uts").value == pytest.approx(ref["min_uts_mpa"], rel=1e-12)
+    assert at.number_input(key="min_surface_hrc").value is None       # no wear target: cleared
+    assert at.number_input(key="diameter").value == 30.0
+    assert at.number_input(key="length").value == pytest.approx(20.0 + 12.0 + 2.0)   # single-shear grip
+    after = _table(at)
+    assert after is not None and len(after) != len(before)
+    assert (after["yield_mpa"] >= ref["min_yield_mpa"] - 1e-6).all()
+    ranked = rank(prepare(30.0, None, 34.0), {**ref}, robust_only=pg.DEMO["robust_only"])
+    assert list(after["grade"] + after["route_text"]) == list(ranked["grade"] + ranked["route_text"])
+
+
+def test_pin_section_in_us_units(at):
+    at.radio(key="units").set_value(pg.US)
+    _run(at)
+    # 1 lbf = 4.4482216152605 N (NIST SP 811, App. B.9, exact); the page keeps 0.1 lbf
+    assert at.number_input(key="pin_load").value == pytest.approx(60_000 / 4.4482216152605, abs=0.05)
+    assert at.number_input(key="pin_diameter").value == pytest.approx(25 / 25.4, abs=1e-4)
+    at.button(key="pin_apply").click()
+    _run(at)
+    d = pg.DEMO["pin"]
+    ref = selector.pin_targets(load_lbf=at.number_input(key="pin_load").value,
+                               diameter_mm=at.number_input(key="pin_diameter").value * 25.4,
+                               **{k: d[k] * 1.0 for k in ("safety_factor",)},
+                               shear_planes=2, gap_mm=at.number_input(key="pin_gap").value * 25.4,
+                               lug_thickness_mm=at.number_input(key="pin_lug").value * 25.4,
+                               clevis_thickness_mm=at.number_input(key="pin_clevis").value * 25.4,
+                               wear_surface_hardness_hrc=d["wear_surface_hardness_hrc"])
+    assert at.number_input(key="min_yield").value == pytest.approx(ref["min_yield_mpa"] / 6.894757, rel=1e-9)
+    # the rounding of the unit switch moves the demo target by less than 0.1 %
+    assert ref["min_yield_mpa"] == pytest.approx(pg.DEMO["targets"]["min_yield_mpa"], rel=1e-3)
+    assert _metric(at, "Min yield (ksi)") == f"{ref['min_yield_mpa'] / 6.894757:.4g}"
+    assert not _errors(at)
+
+
+PIN_BAD = [  # widget key, bad value, words the message must hold (field, value, what is allowed)
+    ("pin_load", -5.0, ("Pin load (kN)", "load_kn", "-5", "allowed", "> 0")),
+    ("pin_diameter", None, ("Pin diameter: blank", "allowed", "mm")),
+    ("pin_gap", -1.0, ("Gap each side", "gap_mm", "-1", "allowed", ">= 0")),
+    ("pin_sf", 0.5, ("Safety factor", "safety_factor", "0.5", "[1, 10]")),
+    ("pin_wear_hrc", 80.0, ("Wear surface hardness (HRC)", "80", "allowed")),
+]
+
+
+def test_pin_bad_inputs_give_messages(at):
+    good = {k: at.number_input(key=k).value for k, _, _ in PIN_BAD}
+    for key, value, words in PIN_BAD:
+        at.number_input(key=key).set_value(value)
+        _run(at)
+        errs = " ".join(_errors(at))
+        for w in words:
+            assert w in errs, (key, w, errs)
+        # no targets to apply, no sweep to run; the main table is untouched
+        assert not [b for b in at.button if b.key == "pin_apply"], key
+        assert at.button(key="sweep_run").disabled, key
+        assert _table(at) is not None
+        at.number_input(key=key).set_value(good[key])
+    _run(at)
+    assert not _errors(at)
+    # the sweep's own inputs
+    at.text_input(key="sweep_list").set_value("20, 2x5")
+    _run(at)
+    errs = " ".join(_errors(at))
+    assert "Sweep diameters" in errs and "'2x5'" in errs and "allowed" in errs
+    at.radio(key="sweep_mode").set_value(pg.SWEEP_MODES[1])
+    _run(at)
+    at.number_input(key="sweep_to").set_value(10.0)
+    _run(at)
+    errs = " ".join(_errors(at))
+    assert "Sweep to = 10 mm" in errs and "stop_mm" in errs and "allowed" in errs
+
+
+def test_sweep_on_two_diameters_is_the_library_pick(at):
+    at.radio(key="sweep_mode").set_value(pg.SWEEP_MODES[1])
+    _run(at)
+    at.number_input(key="sweep_from").set_value(22.0)
+    at.number_input(key="sweep_to").set_value(28.0)
+    at.number_input(key="sweep_step").set_value(6.0)
+    _run(at)
+    assert _sweep(at) is None                      # only on the button
+    at.button(key="sweep_run").click()
+    _run(at)
+    table = _sweep(at)
+    assert table is not None and list(table["diameter_mm"]) == [22.0, 28.0]
+    d = pg.DEMO["pin"]
+    case = {k: d[k] for k in ("load_kn", "shear_planes", "safety_factor", "gap_mm", "lug_thickness_mm",
+                              "clevis_thickness_mm", "wear_surface_hardness_hrc")}
+    sv = pg.DEMO["service"]
+    ref = diameter_sweep([22.0, 28.0], **case, caution_context=dict(
+        plated=sv["plated"], plating=sv["plating"], mating_material=sv["mating_material"],
+        environment=sv["environment"], service_temp_c=sv["service_temp_c"]))
+    for col in ("grade", "route_text", "cautions", "governing"):
+        assert list(table[col]) == list(ref[col]), col
+    np.testing.assert_allclose(table["part_cost"], ref["part_cost"], rtol=1e-12)
+    np.testing.assert_allclose(table["min_yield_mpa"], ref["min_yield_mpa"], rtol=1e-12)
+    # and each pick is the cheapest robust row of select() at that diameter
+    for _, row in table.iterrows():
+        t = selector.pin_targets(diameter_mm=row["diameter_mm"], **case)
+        cand = selector.select(t, row["diameter_mm"], robust_only=True, length_mm=73.0)
+        cheapest = cand[cand["part_cost"] == cand["part_cost"].min()]
+        assert row["part_cost"] == pytest.approx(cand["part_cost"].min(), rel=1e-12)
+        assert (row["grade"], row["route_text"]) in set(zip(cheapest["grade"], cheapest["route_text"]))
+    assert list(table["changed"]) == [False, ref["grade"][0] + ref["route_family"][0]
+                                      != ref["grade"][1] + ref["route_family"][1]]
+    # the chart: cost and yield target against diameter, the changes marked
+    charts = [c for c in at.get("vega_lite_chart") if "Cheapest robust pick per diameter" in c.proto.spec]
+    assert len(charts) == 1
+    import pyarrow as pa
+    frames = [pa.ipc.open_stream(ds.data.data).read_all().to_pandas() for ds in charts[0].proto.datasets]
+    costs = [f for f in frames if "cost" in f.columns and len(f) == 2]
+    assert costs and np.allclose(costs[0]["cost"], ref["part_cost"])
+    marked = [f for f in frames if "changed" in f.columns and len(f) and f["changed"].all()]
+    assert bool(marked) == bool(ref["changed"].any())
+    # the same diameters listed give the same (cached) result; a changed input flags the old one
+    at.radio(key="sweep_mode").set_value(pg.SWEEP_MODES[0])
+    _run(at)
+    at.text_input(key="sweep_list").set_value("28, 22")
+    _run(at)
+    assert not any("have changed" in i.value for i in at.info)
+    at.number_input(key="pin_load").set_value(70.0)
+    _run(at)
+    assert any("have changed since this sweep" in i.value for i in at.info)
+    assert _sweep(at) is not None
+    assert sum(selector.CAUTION in w.value for w in at.warning) >= 2

@@ -39,7 +39,7 @@ def _demo() -> dict:
         return {"title": "Demo part: a plain round pin, Ø30 mm × 100 mm (neutral defaults)", "shape": "round",
                 "diameter_mm": 30.0, "thickness_mm": 20.0, "length_mm": 100.0, "robust_only": False,
                 "targets": {"min_yield_mpa": 700.0, "min_uts_mpa": 850.0, "min_elongation_pct": 12.0},
-                "service": {}}
+                "service": {}, "pin": None}
     c = DEMO_CASE
     # grip length of the double-shear pin: lug + two clevis arms + two gaps (docs/demo.md, step 2)
     grip_mm = c["lug_thickness_mm"] + 2 * c["clevis_thickness_mm"] + 2 * c["gap_mm"]
@@ -51,7 +51,9 @@ def _demo() -> dict:
             "targets": pin_targets(**{k: c[k] for k in DEMO_PIN_KEYS}),
             "service": {"plated": bool(c["plated"]), "plating": c["plating"],
                         "mating_material": c["mating_material"], "environment": c["environment"],
-                        "service_temp_c": float(c["service_temp_c"])}}
+                        "service_temp_c": float(c["service_temp_c"])},
+            "pin": {**{k: c[k] for k in DEMO_PIN_KEYS},
+                    "sweep_diameters_mm": [float(v) for v in c["sweep_diameters_mm"]]}}
 
 
 #: The page's default part and targets (see :func:`_demo`).
@@ -70,10 +72,13 @@ UNIT_SYSTEMS = (SI, US)
 MPA_PER_KSI = 6.894757   # 1 ksi = 6.894757 MPa (NIST SP 811, Appendix B.8, 'kip per square inch')
 MM_PER_IN = 25.4         # exact by definition (NIST SP 811, Appendix B.8, 'inch')
 
+N_PER_LBF = 4.4482216152605  # 1 lbf = 4.448 221 615 260 5 N, exact (NIST SP 811, Appendix B.9)
+
 UNITS = {  # quantity -> (SI label, US label)
     "stress": ("MPa", "ksi"),
     "length": ("mm", "in"),
     "temperature": ("°C", "°F"),
+    "force": ("kN", "lbf"),
 }
 
 
@@ -84,7 +89,7 @@ def unit(quantity: str, system: str) -> str:
 
 
 def to_display(value, quantity: str, system: str):
-    """An SI value (MPa, mm, °C; scalar or array) in the display units of ``system``."""
+    """An SI value (MPa, mm, °C, kN; scalar or array) in the display units of ``system``."""
     if value is None:
         return None
     v = np.asarray(value, float)
@@ -95,11 +100,13 @@ def to_display(value, quantity: str, system: str):
             v = v / MM_PER_IN
         elif quantity == "temperature":
             v = v * 9.0 / 5.0 + 32.0
+        elif quantity == "force":
+            v = v * 1000.0 / N_PER_LBF
     return float(v) if v.ndim == 0 else v
 
 
 def to_si(value, quantity: str, system: str):
-    """A value typed in the display units of ``system`` back to SI (MPa, mm, °C)."""
+    """A value typed in the display units of ``system`` back to SI (MPa, mm, °C, kN)."""
     if value is None:
         return None
     v = np.asarray(value, float)
@@ -110,6 +117,8 @@ def to_si(value, quantity: str, system: str):
             v = v * MM_PER_IN
         elif quantity == "temperature":
             v = (v - 32.0) * 5.0 / 9.0
+        elif quantity == "force":
+            v = v * N_PER_LBF / 1000.0
     return float(v) if v.ndim == 0 else v
 
 
@@ -136,11 +145,14 @@ def display_name(name: str, system: str) -> str:
 #: page inputs that carry a unit: widget key -> quantity
 UNIT_INPUTS = {"diameter": "length", "thickness": "length", "length": "length",
                "min_yield": "stress", "max_yield": "stress", "min_uts": "stress", "max_uts": "stress",
-               "min_case_depth": "length", "service_temp": "temperature"}
+               "min_case_depth": "length", "service_temp": "temperature",
+               # the clevis-pin section and its diameter sweep
+               "pin_load": "force", "pin_diameter": "length", "pin_gap": "length", "pin_lug": "length",
+               "pin_clevis": "length", "sweep_from": "length", "sweep_to": "length", "sweep_step": "length"}
 
 #: digits kept when a unit switch converts an input
 _DIGITS = {("stress", SI): 1, ("stress", US): 3, ("length", SI): 2, ("length", US): 4,
-           ("temperature", SI): 1, ("temperature", US): 1}
+           ("temperature", SI): 1, ("temperature", US): 1, ("force", SI): 3, ("force", US): 1}
 
 
 def convert_inputs(state: Mapping, old: str, new: str) -> dict:
@@ -196,12 +208,14 @@ def targets_from_inputs(values: Mapping, system: str, families: Sequence[str] | 
     return t
 
 
-def explain(exc: Exception, system: str) -> str:
+def explain(exc: Exception, system: str, labels: Mapping | None = None) -> str:
     """The library's message, led by the page's name of the field and the value in
-    the units the user typed (``Diameter = 0.01 in (0.254 mm): diameter_mm=0.254 …``)."""
+    the units the user typed (``Diameter = 0.01 in (0.254 mm): diameter_mm=0.254 …``).
+    ``labels``: library field -> (page label, quantity); default the main inputs'."""
     msg = str(exc)
-    if isinstance(exc, InputError) and exc.field in FIELD_LABELS:
-        label, q = FIELD_LABELS[exc.field]
+    labels = FIELD_LABELS if labels is None else labels
+    if isinstance(exc, InputError) and exc.field in labels:
+        label, q = labels[exc.field]
         v = exc.value
         if q and isinstance(v, (int, float)) and not isinstance(v, bool) and system == US:
             shown = f"{to_display(v, q, system):.4g} {unit(q, system)} ({v:.4g} {unit(q, SI)})"
@@ -911,3 +925,284 @@ def miss_table(misses: pd.DataFrame, system: str) -> pd.DataFrame:
             df[c] = to_display(df[c].to_numpy(float), q, system)
             rename[c] = display_name(c, system)
     return df.rename(columns=rename)
+
+
+# --------------------------------------------------------------------------- clevis pin and diameter sweep
+
+#: pin inputs of the page: widget key -> (argument of pin_report, quantity or None, page label)
+PIN_FIELDS = {
+    "pin_load": ("load", "force", "Pin load"),
+    "pin_diameter": ("diameter_mm", "length", "Pin diameter"),
+    "pin_lug": ("lug_thickness_mm", "length", "Lug thickness"),
+    "pin_clevis": ("clevis_thickness_mm", "length", "Clevis arm thickness"),
+    "pin_gap": ("gap_mm", "length", "Gap each side"),
+    "pin_sf": ("safety_factor", None, "Safety factor"),
+    "pin_wear_hrc": ("wear_surface_hardness_hrc", None, "Wear surface hardness (HRC)"),
+}
+#: every widget key of the pin inputs
+PIN_INPUT_KEYS = tuple(PIN_FIELDS) + ("pin_planes", "pin_model")
+#: the pin inputs that may not be blank (the wear hardness may)
+PIN_REQUIRED = ("pin_load", "pin_diameter", "pin_lug", "pin_clevis", "pin_gap", "pin_sf")
+
+#: targets the pin sets; "use these targets" replaces exactly these in the sidebar
+PIN_TARGET_KEYS = ("min_yield_mpa", "min_uts_mpa", "min_surface_hardness_hrc")
+
+SHEAR_PLANE_LABELS = {2: "2 (double shear)", 1: "1 (single shear)"}
+LOAD_MODEL_LABELS = {"uniform": "uniform bearing", "concentrated": "concentrated (conservative)"}
+
+#: library field -> (page label, quantity) for the messages of the pin section
+PIN_LABELS = {"load_kn": ("Pin load (kN)", None), "load_lbf": ("Pin load (lbf)", None),
+              "diameter_mm": ("Pin diameter", "length"), "gap_mm": ("Gap each side", "length"),
+              "lug_thickness_mm": ("Lug thickness", "length"),
+              "clevis_thickness_mm": ("Clevis arm thickness", "length"),
+              "shear_planes": ("Shear planes", None), "safety_factor": ("Safety factor", None),
+              "wear_surface_hardness_hrc": ("Wear surface hardness (HRC)", None),
+              "load_model": ("Bending model", None)}
+#: ... and of the sweep (its select calls report the sidebar's targets by their labels)
+SWEEP_LABELS = {**FIELD_LABELS, **PIN_LABELS, "diameter_mm": ("Sweep diameter", "length"),
+                "diameters_mm": ("Sweep diameters", None), "start_mm": ("Sweep from", "length"),
+                "stop_mm": ("Sweep to", "length"), "step_mm": ("Sweep step", "length")}
+
+SWEEP_MODES = ("listed", "from / to / step")
+#: most diameters one press of the page's button sweeps (the CLI ``selector sweep`` takes up to 200)
+MAX_SWEEP_DIAMETERS = 25
+#: seconds per diameter measured for the sweep on the demo case (for the spinner text only)
+SWEEP_SECONDS_PER_DIAMETER = 1.7
+
+
+def pin_case_from_inputs(values: Mapping, system: str) -> tuple[dict | None, list[str]]:
+    """The load case for :func:`selector.design.pins.pin_report` from the pin inputs
+    (widget key -> value in display units, plus ``pin_planes`` and ``pin_model``).
+
+    Lengths go to mm; the load is passed as ``load_kn`` in SI and as ``load_lbf`` in
+    US units (the library converts it).  Returns ``(case, [])``, or
+    ``(None, messages)`` naming each blank required input and what is allowed.
+    """
+    msgs = []
+    for key in PIN_REQUIRED:
+        if values.get(key) is None:
+            _, q, label = PIN_FIELDS[key]
+            what = f"a value in {unit(q, system)}" if q else "a number in [1, 10]"
+            msgs.append(f"{label}: blank; allowed: {what}")
+    if msgs:
+        return None, msgs
+    case = {"shear_planes": values.get("pin_planes", 2), "load_model": values.get("pin_model", "uniform")}
+    case["load_lbf" if system == US else "load_kn"] = float(values["pin_load"])
+    for key in ("pin_diameter", "pin_lug", "pin_clevis", "pin_gap"):
+        case[PIN_FIELDS[key][0]] = float(to_si(values[key], "length", system))
+    case["safety_factor"] = float(values["pin_sf"])
+    wear = values.get("pin_wear_hrc")
+    case["wear_surface_hardness_hrc"] = None if wear is None else float(wear)
+    return case, []
+
+
+def pin_report_for(case: Mapping, system: str) -> tuple[dict | None, str | None]:
+    """:func:`selector.design.pins.pin_report` of a load case: ``(report, None)``, or
+    ``(None, message)`` led by the page's name of the field."""
+    from selector.design.pins import pin_report
+    try:
+        return pin_report(**case), None
+    except SelectorError as exc:
+        return None, explain(exc, system, PIN_LABELS)
+
+
+def pin_grip_mm(case: Mapping) -> float:
+    """Grip length of the pin (lug + clevis arms + gaps), mm: the length the page
+    uses for its mass (:func:`selector.design.sweep.pin_length_mm`)."""
+    from selector.design.sweep import pin_length_mm
+    return pin_length_mm(case["shear_planes"], case["lug_thickness_mm"], case["clevis_thickness_mm"],
+                         case["gap_mm"])
+
+
+def inputs_from_pin(report: Mapping, case: Mapping, system: str) -> dict:
+    """Sidebar widget values that take over the pin's targets (the keys of
+    :data:`PIN_TARGET_KEYS`; a target the pin does not set is cleared) and its
+    section (round bar of the pin's diameter, the grip length), in display units."""
+    t = report["targets"]
+    out = {}
+    for key in PIN_TARGET_KEYS:
+        wkey, q, _ = TARGET_FIELDS[key]
+        v = t.get(key)
+        out[wkey] = None if v is None else (float(to_display(v, q, system)) if q else float(v))
+    out["shape"] = "round bar"
+    out["diameter"] = float(to_display(case["diameter_mm"], "length", system))
+    out["length"] = float(to_display(pin_grip_mm(case), "length", system))
+    return out
+
+
+def pin_stress_table(report: Mapping, system: str) -> pd.DataFrame:
+    """Stresses of the pin and the yield demand of each mode (x safety factor), in
+    display units, with the formula of each."""
+    s, su = report["stresses"], unit("stress", system)
+    rows = []
+    for mode, col in (("shear", "shear_mpa"), ("bending", "bending_mpa"), ("bearing", "bearing_mpa")):
+        rows.append({"mode": mode, f"stress ({su})": to_display(s[col], "stress", system),
+                     f"yield demand ({su})": to_display(report["yield_candidates_mpa"][mode], "stress", system),
+                     "governs": mode == report["governing"], "formula": s["formulas"][mode]})
+    return pd.DataFrame(rows)
+
+
+def format_lengths(values_mm: Sequence[float], system: str) -> str:
+    """Diameters in mm as the comma-separated text of the sweep input (display units)."""
+    return ", ".join(f"{to_display(float(v), 'length', system):.4g}" for v in values_mm)
+
+
+def parse_lengths(text: str | None, system: str) -> tuple[list | None, str | None]:
+    """The sweep's comma-separated diameters (display units) in mm: ``(values, None)``
+    or ``(None, message)``."""
+    allowed = f"diameters in {unit('length', system)} separated by commas, e.g. " + (
+        "0.75, 1, 1.25" if system == US else "20, 25, 30")
+    parts = [p.strip() for p in (text or "").replace(";", ",").split(",") if p.strip()]
+    if not parts:
+        return None, f"Sweep diameters: blank; allowed: {allowed}"
+    out = []
+    for p in parts:
+        try:
+            v = float(p)
+        except ValueError:
+            return None, f"Sweep diameters: {p!r} is not a number; allowed: {allowed}"
+        if not math.isfinite(v) or v <= 0:
+            return None, f"Sweep diameters: {p} is not a diameter; allowed: {allowed} (each > 0)"
+        out.append(float(to_si(v, "length", system)))
+    return out, None
+
+
+def convert_length_text(text: str | None, old: str, new: str) -> str | None:
+    """The sweep's diameter list converted on a unit switch; text that does not
+    parse is left as typed."""
+    values, msg = parse_lengths(text, old)
+    if msg or old == new:
+        return text
+    return format_lengths(values, new)
+
+
+def sweep_diameters(mode: str, text: str | None, start, stop, step, system: str) -> tuple[tuple, str | None]:
+    """The sweep's diameters in mm from the listed text or from / to / step (display
+    units): ``(diameters, None)`` or ``((), message)``; at most
+    :data:`MAX_SWEEP_DIAMETERS`."""
+    from selector.design.sweep import diameter_range
+    if mode == SWEEP_MODES[0]:
+        values, msg = parse_lengths(text, system)
+        if msg:
+            return (), msg
+    else:
+        blank = [lab for lab, v in (("Sweep from", start), ("Sweep to", stop), ("Sweep step", step)) if v is None]
+        if blank:
+            return (), f"{', '.join(blank)}: blank; allowed: a diameter in {unit('length', system)}"
+        try:
+            values = diameter_range(*(float(to_si(v, "length", system)) for v in (start, stop, step)))
+        except SelectorError as exc:
+            return (), explain(exc, system, SWEEP_LABELS)
+    values = sorted({round(float(v), 6) for v in values})
+    if len(values) > MAX_SWEEP_DIAMETERS:
+        return (), (f"Sweep diameters: {len(values)} diameters; allowed: at most {MAX_SWEEP_DIAMETERS} on the "
+                    f"page (about {SWEEP_SECONDS_PER_DIAMETER:g} s each); the command `selector sweep` "
+                    "takes more")
+    return tuple(values), None
+
+
+def _route_of(cand: pd.DataFrame | None, grade: str, route_text: str) -> str:
+    """The route steps (JSON) of the row of ``cand`` with this grade and route text."""
+    if cand is None or not grade or len(cand) == 0:
+        return ""
+    hit = cand[(cand["grade"] == grade) & (cand["route_text"] == route_text)]
+    return route_json(hit["route"].iloc[0]) if len(hit) else ""
+
+
+@st.cache_data(show_spinner=False, max_entries=16)
+def cached_sweep(diameters_mm: tuple, case_json: str, extra_json: str = "{}", price_items=(),
+                 context_json: str = "{}") -> pd.DataFrame:
+    """:func:`selector.design.sweep.diameter_sweep` of the load case (``case_json``:
+    the keywords of ``pin_report`` but the diameter), with the sidebar's other
+    targets (``extra_json``), the price sheet and the service conditions for the
+    cautions.  Adds ``route`` (the pick's steps as JSON, for the route text in
+    US units).  Cached per argument set: the sweep runs ``select`` once per diameter."""
+    from selector.design.sweep import diameter_sweep
+    from selector.selection.engine import select
+
+    seen = {}
+
+    def select_and_keep(targets, diameter_mm, **kw):
+        cand = select(targets, diameter_mm, **kw)
+        seen[float(diameter_mm)] = cand
+        return cand
+
+    extra = json.loads(extra_json) or None
+    sw = diameter_sweep(list(diameters_mm), **json.loads(case_json), extra_targets=extra,
+                        price_sheet=_prices(price_items), caution_context=json.loads(context_json),
+                        select=select_and_keep)
+    sw["route"] = [_route_of(seen.get(float(d)), g, t)
+                   for d, g, t in zip(sw["diameter_mm"], sw["grade"], sw["route_text"])]
+    return sw
+
+
+def pick_label(grade: str, route_family: str) -> str:
+    """``4140 · harden+temper`` (or ``no robust candidate``)."""
+    if not grade:
+        return "no robust candidate"
+    return f"{grade} · {ROUTE_SHORT.get(route_family, route_family)}"
+
+
+#: sweep columns shown on the page, in order
+SWEEP_SHOWN = ["diameter_mm", "min_yield_mpa", "min_uts_mpa", "min_surface_hardness_hrc", "governing",
+               "n_robust", "grade", "family", "route_text", "yield_mpa", "uts_mpa", "surface_hardness_hrc",
+               "hardness_hrc", "relative_cost", "part_cost", "changed", "cautions"]
+
+
+def sweep_table(sw: pd.DataFrame, system: str) -> pd.DataFrame:
+    """The sweep in display units: library column names (``diameter_in``,
+    ``min_yield_ksi`` in US units), the route text in °F in US units."""
+    df = sw.copy()
+    if system == US and "route" in df:
+        df["route_text"] = [route_line(json.loads(r), system) if r else t
+                            for r, t in zip(df["route"], df["route_text"])]
+    df = df[[c for c in SWEEP_SHOWN if c in df]]
+    rename = {}
+    for col in df.columns:
+        q = quantity_of(col)
+        if q and system == US:
+            df[col] = to_display(df[col].to_numpy(float), q, system)
+            rename[col] = display_name(col, system)
+    return df.rename(columns=rename)
+
+
+def sweep_chart(sw: pd.DataFrame, system: str, height: int = 340) -> alt.LayerChart:
+    """Relative part cost of the cheapest robust pick (left axis) and the minimum
+    yield target (right axis) against the pin diameter; each diameter where the pick
+    changes grade or route is marked (◆, a dashed rule and the new pick's label),
+    and the first pick is labelled.  Diameters with no robust candidate are marked
+    ✕ at the foot of the chart."""
+    lu, su = unit("length", system), unit("stress", system)
+    f = pd.DataFrame({"d": to_display(sw["diameter_mm"].to_numpy(float), "length", system),
+                      "cost": sw["part_cost"].to_numpy(float),
+                      "target": to_display(sw["min_yield_mpa"].to_numpy(float), "stress", system),
+                      "pick": [pick_label(g, r) for g, r in zip(sw["grade"], sw["route_family"])],
+                      "route": sw["route_text"].astype(str), "changed": sw["changed"].to_numpy(bool)})
+    f["starts"] = f["changed"] | (np.arange(len(f)) == 0)
+    series = alt.Scale(domain=["part cost", "min yield target"], range=[PALETTE[0], TARGET_STROKE])
+    colour = alt.Color("series:N", title=None, scale=series, legend=alt.Legend(orient="top", direction="horizontal"))
+    x = alt.X("d:Q", title=f"Pin diameter ({lu})", scale=alt.Scale(domain=_domain(f["d"], pad=0.04), nice=False))
+    have = f[f["cost"].notna()].assign(series="part cost")
+    ycost = alt.Y("cost:Q", title="Relative part cost (cheapest robust pick)", scale=alt.Scale(zero=False))
+    tips = [alt.Tooltip("d:Q", title=lu, format=".4g"), alt.Tooltip("pick:N"), alt.Tooltip("route:N"),
+            alt.Tooltip("cost:Q", title="part cost", format=".3f"),
+            alt.Tooltip("target:Q", title=f"min yield ({su})", format=".4g")]
+    cost = alt.Chart(have).mark_line(strokeWidth=2.4, point=alt.OverlayMarkDef(size=40, filled=True)).encode(
+        x=x, y=ycost, color=colour, tooltip=tips)
+    starts = have[have["starts"]]
+    marks = alt.Chart(starts[starts["changed"]]).mark_point(shape="diamond", size=260, filled=True,
+                                                          stroke="#111111", strokeWidth=1.2).encode(
+        x=x, y=ycost, color=colour, tooltip=tips)
+    labels = alt.Chart(starts).mark_text(align="left", dx=8, dy=-12, fontWeight="bold", fontSize=11,
+                                         color="#222222").encode(x=x, y=ycost, text="pick:N")
+    rules = alt.Chart(f[f["changed"]]).mark_rule(strokeDash=[4, 3], color="#555555").encode(x=x)
+    none = alt.Chart(f[f["cost"].isna()]).mark_point(shape="cross", size=120, color="#a8323e", filled=True).encode(
+        x=x, y=alt.value(height - 8), tooltip=[alt.Tooltip("d:Q", title=lu, format=".4g"), alt.Tooltip("pick:N")])
+    target = alt.Chart(f.assign(series="min yield target")).mark_line(strokeDash=[6, 3], strokeWidth=1.6,
+                                                                      point=alt.OverlayMarkDef(size=18)).encode(
+        x=x, y=alt.Y("target:Q", title=f"Min yield target ({su})", scale=alt.Scale(zero=False),
+                     axis=alt.Axis(orient="right")),
+        color=colour, tooltip=tips)
+    left = alt.layer(rules, cost, marks, labels, none)
+    return alt.layer(left, target).resolve_scale(y="independent").properties(
+        height=height, title="Cheapest robust pick per diameter (◆ where the grade or route changes)")
