@@ -168,6 +168,30 @@ class Induction(RouteFamily):
             if "center_martensite_pct" in res:
                 res["center_martensite_pct"] = np.where(prior_qt, res["center_martensite_pct"], 0.0)
 
+        prior_norm = np.asarray(p["prior"]).astype(str) == "normalize"
+        if prior_norm.any():
+            # the core keeps the normalized condition: the normalize family's model at the section
+            from .anneal import FAMILIES as SOFT, _default
+            norm = next(f for f in SOFT if f.name == "normalize")
+            idx = np.flatnonzero(prior_norm)
+            sub = batch.subset(prior_norm)
+            sub = Batch(sub.grades, sub.gidx, sub.comp,
+                        {"temp_c": np.array([_default(sub.grades[i], "normalize", "temp_c", 870.0) for i in sub.gidx]),
+                         "hours": np.array([_default(sub.grades[i], "normalize", "hours", 1.0) for i in sub.gidx])},
+                        sub.diameter_mm, sub.thickness_mm)
+            nres = norm.compute(sub)
+            for k in ("uts_mpa", "yield_mpa", "elongation_pct"):
+                res[k] = np.asarray(res[k], float).copy()
+                res[k][idx] = nres[k]
+                ck = "center_" + k
+                res[ck] = np.asarray(res[ck], float).copy()
+                res[ck][idx] = nres.get(ck, nres[k])
+            for k in ("hardness_hv", "center_hardness_hv"):
+                res[k] = np.asarray(res[k], float).copy()
+                res[k][idx] = nres["hardness_hv"]
+            core_hv = core_hv.copy()
+            core_hv[idx, :] = np.asarray(nres["hardness_hv"], float)[:, None]
+
         c = el(comp, "C")
         hrc_q = induction.surface_hardness_hrc(c)
         hrc_t = induction.surface_hardness_hrc(c, np.where(tempered, t_t, 150.0), np.where(tempered, t_h, 1.0),
@@ -204,8 +228,6 @@ class Induction(RouteFamily):
                       "the model keeps the prior core", prior_qt & tempered & (pt_t < t_t)))
         notes.append(("untempered induction-hardened surface: brittle; temper at 150–230 °C (common practice)",
                       ~tempered))
-        notes.append(("core taken as the annealed baseline (no normalizing model): a normalized core is "
-                      "somewhat stronger; estimate conservative", np.asarray(p["prior"]).astype(str) == "normalize"))
         notes.append(("carbon below 0.30 %: the surface hardness reached by induction hardening is low "
                       "(common practice: 0.35–0.55 %C grades)", c < 0.30))
         mask = validity.out_of_range_mask("induction_surface_hardness", c_pct=c,
