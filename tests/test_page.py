@@ -6,6 +6,7 @@ expansion is reused by the later runs of the same process, as on the page.
 """
 from __future__ import annotations
 
+import json
 from pathlib import Path
 
 import numpy as np
@@ -442,6 +443,40 @@ def test_pin_section_in_us_units(at):
     assert ref["min_yield_mpa"] == pytest.approx(pg.DEMO["targets"]["min_yield_mpa"], rel=1e-3)
     assert _metric(at, "Min yield (ksi)") == f"{ref['min_yield_mpa'] / 6.894757:.4g}"
     assert not _errors(at)
+    # the listed sweep diameters follow the switch (inch, 4 significant digits)
+    listed, msg = pg.parse_lengths(at.text_input(key="sweep_list").value, pg.US)
+    assert msg is None
+    np.testing.assert_allclose(listed, d["sweep_diameters_mm"], atol=0.01)
+
+
+def test_sweep_table_and_chart_in_display_units():
+    route = [{"op": "harden", "austenitize_c": 845.0, "quench": "oil"}, {"op": "temper", "temp_c": 540.0, "hours": 2.0}]
+    sw = pd.DataFrame({"diameter_mm": [25.4, 50.8, 76.2], "min_yield_mpa": [6.894757 * 100, 6.894757 * 50, 200.0],
+                       "min_uts_mpa": [300.0, 200.0, 100.0], "min_surface_hardness_hrc": np.nan,
+                       "governing": "bending", "n_robust": [3, 5, 0], "grade": ["4140", "1045", ""],
+                       "family": ["alloy_steel", "carbon_steel", ""], "route_family": ["quench_temper", "induction", ""],
+                       "route_text": ["harden oil quench, from 845 °C → temper 540 °C, 2 h", "x", ""],
+                       "yield_mpa": [900.0, 600.0, np.nan], "uts_mpa": [1000.0, 800.0, np.nan],
+                       "hardness_hrc": [30.0, 20.0, np.nan], "surface_hardness_hrc": [30.0, 55.0, np.nan],
+                       "relative_cost": [1.9, 1.4, np.nan], "part_cost": [0.4, 0.6, np.nan],
+                       "changed": [False, True, True], "cautions": ["", "", ""],
+                       "route": [json.dumps(route), "", ""]})
+    us = pg.sweep_table(sw, pg.US)
+    # 1 in = 25.4 mm, 1 ksi = 6.894757 MPa (NIST SP 811 (2008), Appendix B.8)
+    np.testing.assert_allclose(us["diameter_in"], [1.0, 2.0, 3.0], rtol=1e-12)
+    np.testing.assert_allclose(us["min_yield_ksi"][:2], [100.0, 50.0], rtol=1e-12)
+    assert "diameter_mm" not in us and "yield_ksi" in us
+    assert us["route_text"][0] == "Austenitize and quench from 1553 °F, quench in oil → Temper at 1004 °F, for 2 h"
+    assert us["route_text"][1] == "x"                 # no steps kept: the library's text
+    si = pg.sweep_table(sw, pg.SI)
+    assert list(si.columns) == [c for c in pg.SWEEP_SHOWN]
+    spec = pg.sweep_chart(sw, pg.US).to_dict()
+    data = {k: pd.DataFrame(v) for k, v in spec["datasets"].items()}
+    # the change at 2 in is marked; 3 in has no robust candidate (✕ at the foot, no cost point)
+    marked = [f for f in data.values() if "changed" in f and len(f) and f["changed"].all() and f["cost"].notna().all()]
+    assert marked and all(list(f["d"]) == pytest.approx([2.0]) for f in marked)
+    nothing = [f for f in data.values() if "cost" in f and len(f) == 1 and f["cost"].isna().all()]
+    assert nothing and nothing[0]["pick"][0] == "no robust candidate" and nothing[0]["d"][0] == pytest.approx(3.0)
 
 
 PIN_BAD = [  # widget key, bad value, words the message must hold (field, value, what is allowed)

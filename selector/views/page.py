@@ -9,6 +9,10 @@ The page only converts units for display (the library works in SI throughout),
 draws, and keeps the expensive target-independent expansion in ``st.cache_data``
 so that a change of targets only re-ranks.
 
+The clevis-pin tab takes its stresses and targets from
+:func:`selector.design.pins.pin_report` and its diameter sweep from
+:func:`selector.design.sweep.diameter_sweep` (cached, run on a button press).
+
 Results are estimates for preliminary selection; see :data:`selector.CAUTION`.
 """
 from __future__ import annotations
@@ -1103,11 +1107,12 @@ def sweep_diameters(mode: str, text: str | None, start, stop, step, system: str)
 
 
 def _route_of(cand: pd.DataFrame | None, grade: str, route_text: str) -> str:
-    """The route steps (JSON) of the row of ``cand`` with this grade and route text."""
+    """The route steps (JSON, each step's keys in the library's order, so that the
+    readable text keeps it) of the row of ``cand`` with this grade and route text."""
     if cand is None or not grade or len(cand) == 0:
         return ""
     hit = cand[(cand["grade"] == grade) & (cand["route_text"] == route_text)]
-    return route_json(hit["route"].iloc[0]) if len(hit) else ""
+    return json.dumps(list(hit["route"].iloc[0])) if len(hit) else ""
 
 
 @st.cache_data(show_spinner=False, max_entries=16)
