@@ -370,13 +370,6 @@ def _set_pin(at, values: dict, planes: int | None = None):
     return _run(at)
 
 
-def _frame(at, key: str) -> pd.DataFrame | None:
-    for df in at.dataframe:
-        if df.proto.id and key in df.proto.id or getattr(df, "key", None) == key:
-            return df.value
-    return None
-
-
 def _sweep(at) -> pd.DataFrame | None:
     for df in at.dataframe:
         if "n_robust" in df.value.columns:
@@ -450,7 +443,8 @@ def test_pin_section_in_us_units(at):
 
 
 def test_sweep_table_and_chart_in_display_units():
-    route = [{"op": "harden", "austenitize_c": 845.0, "quench": "oil"}, {"op": "temper", "temp_c": 540.0, "hours": 2.0}]
+    route = [{"op": "harden", "austenitize_c": 845.0, "quench": "oil"},
+             {"op": "temper", "temp_c": 540.0, "hours": 2.0}]
     sw = pd.DataFrame({"diameter_mm": [25.4, 50.8, 76.2], "min_yield_mpa": [6.894757 * 100, 6.894757 * 50, 200.0],
                        "min_uts_mpa": [300.0, 200.0, 100.0], "min_surface_hardness_hrc": np.nan,
                        "governing": "bending", "n_robust": [3, 5, 0], "grade": ["4140", "1045", ""],
