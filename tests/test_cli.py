@@ -75,3 +75,18 @@ def test_pin_command_targets_match_library():
     data = json.loads(out)
     t = selector.pin_targets(load_kn=60, diameter_mm=25, gap_mm=1.5, lug_thickness_mm=38, clevis_thickness_mm=16)
     assert data["targets"]["min_yield_mpa"] == pytest.approx(t["min_yield_mpa"])
+
+
+def test_module_entry_point_and_console_script():
+    import shutil
+    import subprocess
+    import sys
+
+    r = subprocess.run([sys.executable, "-m", "selector", "grades", "4140", "--json"], capture_output=True,
+                       text=True, timeout=120)
+    assert r.returncode == 0 and json.loads(r.stdout)["id"] == "4140"
+    exe = shutil.which("selector")
+    if exe is None:
+        pytest.skip("console script not installed (run pip install -e .)")
+    r = subprocess.run([exe, "grades", "G41400", "--json"], capture_output=True, text=True, timeout=120)
+    assert r.returncode == 0 and json.loads(r.stdout)["id"] == "4140"
