@@ -276,10 +276,6 @@ def build_catalogue(grades_path=None, comp_path=None, windows_path=None) -> Cata
         for nm in (r.id, r.name, *aliases, *[v for v in des.values() if v]):
             for k in _keys(nm):
                 index.setdefault(k, set()).add(r.id)
-    # a full-key collision between two grades on one of their own names is a data error
-    for k, ids_ in index.items():
-        if len(ids_) > 1 and any(_norm(x) == k for x in ids_):
-            pass
     return Catalogue(MappingProxyType(out), MappingProxyType({k: tuple(sorted(v)) for k, v in index.items()}))
 
 

@@ -74,9 +74,7 @@ class Age(RouteFamily):
     )
 
     def parse(self, steps, grade):
-        if grade.family not in self.families:
-            raise RouteError("route", "solution treat + age", f"grade families {', '.join(self.families)} "
-                             f"({grade.id} is {grade.family})")
+        self.require_family(grade)
         if grade.id not in ag.alloys():
             raise NotModelledError(f"aging of {grade.id} is not calibrated (calibrated: {', '.join(ag.alloys())}); "
                                    "no estimate is given rather than an invented one")

@@ -15,7 +15,6 @@ from __future__ import annotations
 
 import numpy as np
 
-from ...errors import RouteError
 from ...models import conversions, critical_temperatures, ferrite_pearlite as fp, grain_size, validity  # noqa: F401 (grain_size registers its validity range)
 from ...models.composition import el
 from .base import Batch, RouteFamily
@@ -49,9 +48,7 @@ class _Soften(RouteFamily):
     references = REFERENCES
 
     def parse(self, steps, grade):
-        if grade.family not in self.families:
-            raise RouteError("route", self.label, f"grade families {', '.join(self.families)} "
-                             f"({grade.id} is {grade.family})")
+        self.require_family(grade)
         s = steps[0]
         params = {"temp_c": float(s["temp_c"]) if "temp_c" in s else _default(grade, self.route, "temp_c", 870.0),
                   "hours": float(s["hours"]) if "hours" in s else _default(grade, self.route, "hours", 1.0)}

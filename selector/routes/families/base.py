@@ -19,7 +19,7 @@ an aluminium alloy on a steel scale).
 """
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 from typing import Mapping, Sequence
 
 import numpy as np
@@ -121,6 +121,12 @@ class RouteFamily:
         raise NotImplementedError
 
     # helpers shared by families -------------------------------------------------
+    def require_family(self, grade: Grade) -> None:
+        """:class:`RouteError` unless the route is modelled for the grade's family."""
+        if self.families and grade.family not in self.families:
+            raise RouteError("route", self.label, f"grade families {', '.join(self.families)} "
+                             f"({grade.id} is {grade.family})")
+
     @staticmethod
     def window_value(grade: Grade, route: str, parameter: str, given, fallback=None):
         """``given`` if not None, else the window default, else ``fallback``."""

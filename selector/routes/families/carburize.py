@@ -75,9 +75,7 @@ class Carburize(RouteFamily):
 
     # ------------------------------------------------------------------ parse
     def parse(self, steps, grade):
-        if grade.family not in self.families:
-            raise RouteError("route", "carburize", f"grade families {', '.join(self.families)} "
-                             f"({grade.id} is {grade.family})")
+        self.require_family(grade)
         c = next(s for s in steps if s["op"] == "carburize")
         h = next((s for s in steps if s["op"] == "harden"), None)
         t = next((s for s in steps if s["op"] == "temper"), None)

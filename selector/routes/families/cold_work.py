@@ -56,9 +56,7 @@ class ColdWork(RouteFamily):
     )
 
     def parse(self, steps, grade):
-        if grade.family not in self.families:
-            raise RouteError("route", "cold work", f"grade families {', '.join(self.families)} "
-                             f"({grade.id} is {grade.family})")
+        self.require_family(grade)
         cw = next(s for s in steps if s["op"] == ROUTE)
         red, des = _reduction_from_step(cw, grade)
         if red is None:

@@ -22,7 +22,6 @@ from __future__ import annotations
 
 import numpy as np
 
-from ...errors import RouteError
 from ...models import conversions, induction, validity
 from ...models.composition import el
 from .base import Batch, RouteFamily, product_grid
@@ -58,9 +57,7 @@ class Induction(RouteFamily):
     )
 
     def parse(self, steps, grade):
-        if grade.family not in self.families:
-            raise RouteError("route", "induction harden", f"grade families {', '.join(self.families)} "
-                             f"({grade.id} is {grade.family})")
+        self.require_family(grade)
         ops = [s["op"] for s in steps]
         i = ops.index("induction_harden")
         ih = steps[i]

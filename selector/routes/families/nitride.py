@@ -20,7 +20,6 @@ from __future__ import annotations
 
 import numpy as np
 
-from ...errors import RouteError
 from ...models import conversions, nitriding, tempering, validity
 from ...models.composition import el
 from .base import Batch, RouteFamily, product_grid
@@ -67,9 +66,7 @@ class Nitride(RouteFamily):
     )
 
     def parse(self, steps, grade):
-        if grade.family not in self.families:
-            raise RouteError("route", "nitride", f"grade families {', '.join(self.families)} "
-                             f"({grade.id} is {grade.family})")
+        self.require_family(grade)
         n = next(s for s in steps if s["op"] == "nitride")
         h = next((s for s in steps if s["op"] == "harden"), None)
         t = next((s for s in steps if s["op"] == "temper"), None)

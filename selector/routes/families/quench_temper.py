@@ -14,12 +14,10 @@ Chain of models, each in its own module:
 """
 from __future__ import annotations
 
-from typing import Mapping, Sequence
 
 import numpy as np
 
 from ...catalogue.grades import Grade
-from ...errors import RouteError
 from ...models import conversions, correlations, critical_temperatures, tempering, validity
 from ...models.composition import el
 from ...models.martensite import martensite_hardness_hrc
@@ -138,9 +136,7 @@ class QuenchTemper(RouteFamily):
     )
 
     def parse(self, steps, grade):
-        if grade.family not in self.families:
-            raise RouteError("route", "harden + temper", f"grade families {', '.join(self.families)} "
-                             f"({grade.id} is {grade.family})")
+        self.require_family(grade)
         h = next(s for s in steps if s["op"] == "harden")
         t = next((s for s in steps if s["op"] == "temper"), None)
         aust = h.get("austenitize_c")
