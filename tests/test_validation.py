@@ -50,7 +50,19 @@ def test_statistics_use_compared_rows_only_and_count_calibration_rows():
     f = _frame([1.0, 2.0, 50.0, 3.0], status=["compared", "compared", "not modelled", "compared"],
                calibration=["", "a fit point", "", ""])
     r = report.statistics(f).iloc[0]
-    assert r["n"] == 3 and r["median_abs"] == 2.0 and r["n_calibration"] == 1
+    # independent compared rows: errors 1 and 3 (the calibration row and the not-modelled row are left out)
+    assert r["n"] == 2 and r["median_abs"] == 2.0 and r["n_calibration"] == 1
+    c = report.statistics(f, rows="calibration").iloc[0]
+    assert c["n"] == 1 and c["median_abs"] == 2.0
+    assert report.statistics(f, rows="all").iloc[0]["n"] == 3
+
+
+def test_headline_is_relative_and_leaves_calibration_rows_out():
+    f = _frame([100.0, -50.0, 20.0, 300.0], calibration=["", "", "", "a fit point"])
+    h = report.headline(f).set_index("comparison").loc["Q&T steels, tensile strength"]
+    # published 1000 MPa: relative errors 10 %, -5 %, 2 % (the 30 % calibration row is left out)
+    assert h["n"] == 3 and h["n_calibration"] == 1
+    assert h["median_abs"] == pytest.approx(5.0) and h["median_error"] == pytest.approx(2.0)
 
 
 def test_check_flags_a_statistic_above_its_threshold_and_undocumented_groups():

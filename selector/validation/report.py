@@ -45,6 +45,7 @@ import pandas as pd
 from ..catalogue.grades import default_catalogue
 from ..catalogue.loader import CONFIDENCE, Column, Schema, data_dir, read_file
 from ..errors import NotModelledError, SelectorError, UnknownGradeError
+from . import calibration
 
 #: defaults used where a reference row leaves a treatment condition blank
 DEFAULT_TEMPER_HOURS = 2.0     # common practice: 1 h per inch of section, 2 h as a usual shop minimum
@@ -131,8 +132,10 @@ class Case:
     #: further routes tried in order when ``steps`` is refused (e.g. a designation the family
     #: does not list, then the reduction or schedule the row records)
     alternatives: list = field(default_factory=list)
-    #: why the row is not independent of a calibration table ("" if it is)
+    #: why the row is not independent of a fit ("" if it is): the fit row it joins
     calibration: str = ""
+    #: the row's own join keys (published quench, section, tempering temperature)
+    keys: dict = field(default_factory=dict)
 
     @property
     def id(self) -> str:
@@ -189,10 +192,13 @@ def qt_case(rec: dict, file: str = QT_FILE) -> Case:
         assumptions.append(f"section not stated: {section:g} mm round")
     steps = [harden, {"op": "temper", "temp_c": _f(rec["temper_temp_c"]), "hours": hours}]
     cond = f"{quench or 'oil'} quench, temper {_f(rec['temper_temp_c']):g} °C, Ø{section:g} mm"
-    return Case(file, int(rec["line"]), rec["grade"], fam, "quench_temper", cond, rec["kind"],
-                _published(rec, ("uts_mpa", "yield_mpa", "elongation_pct", "hardness_hb", "hardness_hrc")),
-                steps, section, assumptions, rec["confidence"], rec["source"], rec["table"],
-                "" if gid else "grade not in the catalogue")
+    c = Case(file, int(rec["line"]), rec["grade"], fam, "quench_temper", cond, rec["kind"],
+             _published(rec, ("uts_mpa", "yield_mpa", "elongation_pct", "hardness_hb", "hardness_hrc")),
+             steps, section, assumptions, rec["confidence"], rec["source"], rec["table"],
+             "" if gid else "grade not in the catalogue")
+    c.keys = {"quench": str(rec.get("quench") or "").strip(), "section_mm": _f(rec.get("section_mm")),
+              "temp_c": _f(rec["temper_temp_c"])}
+    return c
 
 
 def temper_case(rec: dict, file: str = TEMPERS_FILE) -> Case:
@@ -269,49 +275,21 @@ def band_cases(frame: pd.DataFrame, file: str = BANDS_FILE) -> list[Case]:
     return out
 
 
-def _plain_rows(name: str, root: Path) -> list[dict]:
-    import csv
-
-    text = (root / name).read_text(encoding="utf-8")
-    lines = [ln for ln in text.splitlines() if ln.strip() and not ln.lstrip().startswith("#")]
-    return list(csv.DictReader(lines))
-
-
-def _calibration_keys(root: Path) -> dict:
-    """(grade, condition) pairs that a calibration table under data/ was fitted to."""
-    keys = {}
-    try:
-        for r in _plain_rows("aging_calibration.csv", root):
-            if r.get("kind") == "point" and r.get("role") == "fit":
-                keys[(r["alloy"], r["condition"])] = "the condition of a fit point of data/aging_calibration.csv"
-    except (OSError, KeyError):
-        pass
-    try:
-        for r in _plain_rows("temper_aliases.csv", root):
-            keys.setdefault((r["ref_grade"], r["designation"]),
-                            "the temper that defines the designation in data/temper_aliases.csv")
-            if r.get("basis", "").startswith("derived"):
-                # the reduction was chosen so that the model meets this temper: every grade of the family
-                keys.setdefault((r["family"], r["designation"].upper().replace(" ", "")),
-                                "a designation whose reduction was derived from the published temper "
-                                "(data/temper_aliases.csv)")
-    except (OSError, KeyError):
-        pass
-    return keys
-
-
-def _tag_calibration(cases: list, root: Path, notes: dict) -> None:
-    keys = _calibration_keys(root)
+def _tag_calibration(cases: list, root: Path) -> None:
+    """Set ``case.calibration`` by the key join of :mod:`selector.validation.calibration`."""
+    rows = calibration.fit_rows(str(root))
     for c in cases:
         why = ""
-        if c.route == "quench_temper" and "overlaps data/" in notes.get(c.id, ""):
-            why = "same handbook table as data/tempering_points.csv (calibration)"
-        elif (c.grade, c.condition) in keys:
-            why = keys[(c.grade, c.condition)]
-        elif c.route == "anneal" and c.family in BASELINE_FAMILIES:
+        if c.route == "anneal" and c.family in BASELINE_FAMILIES:
             why = "the anneal route returns the catalogue's annealed baseline (data/grades.csv)"
-        elif c.route == "cold_work" and (c.family, c.condition.upper().replace(" ", "")) in keys:
-            why = keys[(c.family, c.condition.upper().replace(" ", ""))]
+        elif c.route == "quench_temper":
+            hit = calibration.match(rows, grade=c.grade, route=c.route, quench=c.keys.get("quench", ""),
+                                    section_mm=c.keys.get("section_mm", math.nan),
+                                    temp_c=c.keys.get("temp_c", math.nan))
+            why = hit.describe() if hit else ""
+        elif c.route != "jominy":
+            hit = calibration.match(rows, grade=c.grade, family=c.family, route=c.route, condition=c.condition)
+            why = hit.describe() if hit else ""
         c.calibration = why
 
 
@@ -319,7 +297,6 @@ def load_cases(files: Iterable[str] = (QT_FILE, TEMPERS_FILE, BANDS_FILE), root:
     """Every reference row of ``files`` (paths under ``data/``), mapped to a case."""
     root = Path(root) if root is not None else data_dir()
     out: list[Case] = []
-    notes = {}
     for name in files:
         if name == QT_FILE:
             recs = read_file(root / name, QT_SCHEMA).to_dict("records")
@@ -332,8 +309,7 @@ def load_cases(files: Iterable[str] = (QT_FILE, TEMPERS_FILE, BANDS_FILE), root:
             out += band_cases(read_file(root / name, BANDS_SCHEMA), name)
         else:
             raise ValueError(f"no case mapping for {name}")
-        notes.update({f"{name}:{int(r['line'])}": str(r.get("note", "")) for r in recs})
-    _tag_calibration(out, root, notes)
+    _tag_calibration(out, root)
     return out
 
 
@@ -418,23 +394,76 @@ def recompute(cases: Sequence[Case]) -> pd.DataFrame:
 GROUP = ["family", "route", "kind", "property"]
 
 
-def statistics(comparisons: pd.DataFrame) -> pd.DataFrame:
-    """Per (family, route, kind, property): ``n``, ``n_calibration`` (how many of them
-    come from a table the model was calibrated on), ``median_abs``, ``p90_abs`` (90th
+def statistics(comparisons: pd.DataFrame, rows: str = "independent") -> pd.DataFrame:
+    """Per (family, route, kind, property): ``n`` (comparisons measured), ``n_calibration``
+    (comparisons of the group whose published value a fit has used, by the key join of
+    :mod:`selector.validation.calibration`), ``median_abs``, ``p90_abs`` (90th
     percentile, linear interpolation) and ``median_error`` (signed, predicted −
-    published), over the rows with status ``compared``."""
+    published), over the rows with status ``compared``.
+
+    ``rows="independent"`` (default) measures the independent rows only — the figures
+    that describe accuracy; ``rows="calibration"`` measures the calibration rows only
+    (an implementation check, not accuracy); ``rows="all"`` both.  Groups with no row
+    of the requested kind are left out."""
+    if rows not in ("independent", "calibration", "all"):
+        raise ValueError(f"rows: {rows!r}; allowed: independent, calibration, all")
     c = comparisons[comparisons["status"] == "compared"]
     cols = GROUP + ["unit", "n", "n_calibration", "median_abs", "p90_abs", "median_error"]
     if c.empty:
         return pd.DataFrame(columns=cols)
-    rows = []
+    out = []
     for key, g in c.groupby(GROUP, sort=True):
-        a = g["abs_error"].to_numpy(float)
-        rows.append(dict(zip(GROUP, key), unit=g["unit"].iloc[0], n=len(a),
-                         n_calibration=int((g["calibration"] != "").sum()),
-                         median_abs=float(np.median(a)), p90_abs=float(np.percentile(a, 90)),
-                         median_error=float(np.median(g["error"].to_numpy(float)))))
-    return pd.DataFrame(rows, columns=cols)
+        is_cal = (g["calibration"] != "").to_numpy()
+        sel = {"independent": ~is_cal, "calibration": is_cal, "all": np.ones(len(g), bool)}[rows]
+        if not sel.any():
+            continue
+        a = g["abs_error"].to_numpy(float)[sel]
+        out.append(dict(zip(GROUP, key), unit=g["unit"].iloc[0], n=len(a),
+                        n_calibration=int(is_cal.sum()),
+                        median_abs=float(np.median(a)), p90_abs=float(np.percentile(a, 90)),
+                        median_error=float(np.median(g["error"].to_numpy(float)[sel]))))
+    return pd.DataFrame(out, columns=cols)
+
+
+#: the headline groups: label -> (families, route, kind, property, relative?)
+HEADLINE = {
+    "Q&T steels, tensile strength": (("carbon_steel", "alloy_steel"), "quench_temper", "typical", "uts_mpa", True),
+    "Q&T steels, yield strength": (("carbon_steel", "alloy_steel"), "quench_temper", "typical", "yield_mpa", True),
+    "Q&T steels, hardness HB": (("carbon_steel", "alloy_steel"), "quench_temper", "typical", "hardness_hb", True),
+    "Q&T steels, hardness HRC": (("carbon_steel", "alloy_steel"), "quench_temper", "typical", "hardness_hrc",
+                                 False),
+    "Jominy H-bands, nominal vs band mid": (None, "jominy", "band", "jominy_mid_hrc", False),
+    "Jominy H-bands, lean corner vs band minimum": (None, "jominy", "band", "jominy_min_hrc", False),
+    "PH stainless aged, tensile strength": (("stainless_ph",), "age", None, "uts_mpa", True),
+}
+
+
+def headline(comparisons: pd.DataFrame) -> pd.DataFrame:
+    """The figures quoted in the README and notes, on independent rows only: per
+    headline group, n, n_calibration (left out), median absolute error, p90 and
+    median bias — relative (% of the published value) for strength and HB,
+    absolute (HRC) for Rockwell C."""
+    c = comparisons[comparisons["status"] == "compared"]
+    out = []
+    for label, (fams, route, kind, prop, rel) in HEADLINE.items():
+        g = c[(c["route"] == route) & (c["property"] == prop)]
+        if fams is not None:
+            g = g[g["family"].isin(fams)]
+        if kind is not None:
+            g = g[g["kind"] == kind]
+        ind = g[g["calibration"] == ""]
+        if rel:
+            e = (ind["error"] / ind["published"].abs().clip(lower=1e-9) * 100.0).to_numpy(float)
+            unit = "%"
+        else:
+            e = ind["error"].to_numpy(float)
+            unit = PROPERTIES[prop][1]
+        out.append({"comparison": label, "n": len(e), "n_calibration": int((g["calibration"] != "").sum()),
+                    "unit": unit,
+                    "median_abs": float(np.median(np.abs(e))) if len(e) else math.nan,
+                    "p90_abs": float(np.percentile(np.abs(e), 90)) if len(e) else math.nan,
+                    "median_error": float(np.median(e)) if len(e) else math.nan})
+    return pd.DataFrame(out)
 
 
 def check(stats: pd.DataFrame, thresholds=None) -> tuple[list[str], list[str]]:
@@ -563,11 +592,21 @@ def render(comparisons: pd.DataFrame, stats: pd.DataFrame, plots: Sequence[Path]
          "element at its minimum) against the band minimum, the rich corner against the band maximum.",
          "* Kind `minimum`: the model estimates typical properties, so a positive error of a few "
          "percent is expected there; compare the bias column.",
-         "* Column *of which calibration*: comparisons whose published value comes from a table the "
-         "model was fitted to (the Q&T handbook table behind `data/tempering_points.csv`, the fit points "
-         "of `data/aging_calibration.csv`, the tempers that define `data/temper_aliases.csv`).  They "
-         "check the implementation, not the model's predictive power; an error near zero there is "
-         "expected.", "",
+         "* **Calibration is not validation.**  A comparison is *calibration* when a fit used its "
+         "published value, decided by a key join (selector/validation/calibration.py) against the rows "
+         "every fit lists in `data/fits/*_rows.csv`, the fit points of `data/aging_calibration.csv` and "
+         "the tempers that define `data/temper_aliases.csv` (same grade, quench, section within "
+         f"{calibration.SECTION_TOL_MM:g} mm and tempering temperature within {calibration.TEMP_TOL_C:g} °C; "
+         "or same grade and condition).  Every accuracy figure below (headline, error statistics, "
+         "thresholds) is measured on the independent rows only; the calibration rows are reported apart "
+         "as a check of the implementation.", "",
+         "## Headline accuracy (independent rows only)", "",
+         "Relative errors in % of the published value (strength, HB); Rockwell C and Jominy in HRC.  "
+         "These are the figures quoted in the README.", "",
+         _md_table(headline(comparisons).rename(columns={
+             "n_calibration": "calibration rows left out", "median_abs": "median abs. error",
+             "p90_abs": "p90 abs. error", "median_error": "median bias"}), {
+             "median abs. error": "{:.1f}", "p90 abs. error": "{:.1f}", "median bias": "{:+.1f}"}), "",
          "## Summary", "",
          f"* reference rows: {len(cases)} ("
          + ", ".join(f"`{k}` {v}" for k, v in cases["file"].value_counts(sort=False).items()) + ")",
@@ -586,7 +625,7 @@ def render(comparisons: pd.DataFrame, stats: pd.DataFrame, plots: Sequence[Path]
                 if Path(p).resolve().is_relative_to(out_path.resolve().parent) else str(p)
             L.append(f"![{Path(p).stem}]({rel})")
         L.append("")
-    L += ["## Error statistics and thresholds", "",
+    L += ["## Error statistics and thresholds (independent rows)", "",
           "A test (`tests/test_validation.py`, slow suite) fails when a median or p90 exceeds its "
           "threshold.  " + HEADROOM_NOTE, ""]
     if not stats.empty:
@@ -600,11 +639,30 @@ def render(comparisons: pd.DataFrame, stats: pd.DataFrame, plots: Sequence[Path]
         t["median limit"] = lim_med
         t["p90 limit"] = lim_p90
         t = t.drop(columns=["unit"])
-        t = t.rename(columns={"median_abs": "median abs. error", "p90_abs": "p90 abs. error", "median_error": "bias",
-                              "n_calibration": "of which calibration"})
+        t = t.rename(columns={"n": "n independent", "median_abs": "median abs. error",
+                              "p90_abs": "p90 abs. error", "median_error": "bias",
+                              "n_calibration": "calibration rows (left out)"})
         for route, g in t.groupby("route", sort=False):
             L += [f"### route: {route}", "", _md_table(g.drop(columns=["route"]),
-                                                       {c: "{:.1f}" for c in g.columns if c != "n"}), ""]
+                                                       {c: "{:.1f}" for c in g.columns
+                                                        if c not in ("n independent",
+                                                                     "calibration rows (left out)")}), ""]
+    cal = statistics(comparisons, rows="calibration")
+    if not cal.empty:
+        t = cal.drop(columns=["unit", "n_calibration"]).copy()
+        t["property"] = [f"{PROPERTIES[p][0]} ({PROPERTIES[p][1]})" for p in cal["property"]]
+        t = t.rename(columns={"n": "n calibration", "median_abs": "median abs. error",
+                              "p90_abs": "p90 abs. error", "median_error": "bias"})
+        L += ["### Calibration rows (a check of the implementation, not accuracy)", "",
+              "The same statistics on the comparisons a fit has used.  Small errors here are expected and "
+              "say nothing of predictive power.", "",
+              _md_table(t, {c: "{:.1f}" for c in t.columns if c != "n calibration"}), ""]
+    cv = cross_validation_table()
+    if not cv.empty:
+        L += ["### Leave-one-grade-out cross-validation of the fitted surfaces", "",
+              "Written by each fit script (`scripts/fit_*.py` → `data/fits/*_cv.csv`): the surface refitted "
+              "without one grade predicts that grade.", "",
+              _md_table(cv, {"median_abs_error": "{:.1f}", "median_error": "{:+.1f}"}), ""]
     measured = {tuple(k) for k in stats[GROUP].itertuples(index=False, name=None)} if not stats.empty else set()
     th_rows = [{"family": k[0], "route": k[1], "kind": k[2],
                 "property": f"{PROPERTIES[k[3]][0]} ({PROPERTIES[k[3]][1]})",
@@ -640,6 +698,23 @@ def render(comparisons: pd.DataFrame, stats: pd.DataFrame, plots: Sequence[Path]
           "sources compared here:", ""]
     L += [f"* {s}" for s in sources]
     return "\n".join(L) + "\n"
+
+
+def cross_validation_table(root: Path | None = None) -> pd.DataFrame:
+    """Pooled leave-one-grade-out figures of every fit, from ``data/fits/*_cv.csv``:
+    per fit and property, the number of grades, of rows, and the median over grades of
+    the median absolute and signed errors."""
+    root = Path(root) if root is not None else data_dir()
+    frames = []
+    for path in sorted((root / "fits").glob("*_cv.csv")):
+        frames.append(pd.read_csv(path, comment="#"))
+    if not frames:
+        return pd.DataFrame()
+    cv = pd.concat(frames, ignore_index=True)
+    out = cv.groupby(["fit", "property", "unit"], sort=True).agg(
+        grades=("grade", "nunique"), rows=("n", "sum"), median_abs_error=("median_abs_error", "median"),
+        median_error=("median_error", "median")).reset_index()
+    return out
 
 
 def _sources(cases: Sequence[Case]) -> list[str]:
