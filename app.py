@@ -232,6 +232,34 @@ def candidate_view(cand, states):
     m[3].metric("Hardness (HRC)", "—" if hrc != hrc else f"{hrc:.3g}")
     m[4].metric("Rel. cost / kg", f"{row['relative_cost']:.3g}")
     m[5].metric("Holds at every corner", "yes" if row["robust"] else "nominal only")
+    st.caption(pg.band_text(ev, system))
+    heat_text = st.text_input("Heat analysis from the mill certificate (wt %)", key="heat_text",
+                              placeholder="e.g. C=0.41 Mn=0.86 Cr=0.95 Mo=0.18 (other elements: nominal)",
+                              help="Evaluates this route for one heat instead of the grade's nominal "
+                                   "composition. An element outside the grade's specification is named in a "
+                                   "warning.")
+    heat_json, heat_err = pg.read_heat(heat_text)
+    if heat_err:
+        st.error(heat_err)
+    elif heat_json:
+        try:
+            hv = pg.cached_evaluate(row["grade"], pg.route_json(row["route"]), d_si, t_si, "nominal", heat_json)
+        except SelectorError as exc:
+            st.error(str(exc))
+        else:
+            hm = st.columns(4)
+            hm[0].metric(f"Heat: yield ({su})", f"{pg.to_display(hv['yield_mpa'], 'stress', system):.4g}"
+                         if hv.get("yield_mpa") is not None else "—")
+            hm[1].metric(f"Heat: tensile ({su})", f"{pg.to_display(hv['uts_mpa'], 'stress', system):.4g}"
+                         if hv.get("uts_mpa") is not None else "—")
+            hm[2].metric("Heat: elongation (%)", f"{hv['elongation_pct']:.3g}"
+                         if hv.get("elongation_pct") is not None else "—")
+            hm[3].metric("Heat: hardness (HRC)", f"{hv['hardness_hrc']:.3g}"
+                         if hv.get("hardness_hrc") is not None else "—")
+            st.caption(pg.band_text(hv, system))
+            heat_warn = [w for w in hv.get("warnings", []) if w.startswith("heat analysis")]
+            if heat_warn:
+                st.warning("\n".join(f"- {w}" for w in heat_warn))
     left, right = st.columns(2)
     with left:
         st.markdown("**Route**")

@@ -7,10 +7,11 @@ import math
 
 import numpy as np
 
+from ..catalogue import heat
 from ..catalogue.grades import Grade, default_catalogue
 from ..errors import InputError, RouteError
 from ..models import conversions
-from . import families, steps as steps_mod
+from . import bands, families, steps as steps_mod
 from .families.base import Batch, test_position
 
 STEEL_SCALE_FAMILIES = ("carbon_steel", "alloy_steel", "carburizing_steel", "nitriding_steel",
@@ -63,10 +64,13 @@ OFF_TABLE_NOTE = ("hardness above the tensile-strength column of ASTM A370 Table
                   "tensile strength, yield and elongation are not estimated")
 
 
-def finish(res: dict, batch: Batch) -> dict:
-    """Add the scale conversions shared by every family (in place), and the note for
-    states whose strength is undefined because their hardness is off the conversion
-    table, and return ``res``."""
+def finish(res: dict, batch: Batch, route: str = bands.ANY) -> dict:
+    """Add what every family shares (in place) and return ``res``: the scale
+    conversions, the note for states whose strength is undefined because their
+    hardness is off the conversion table, and the 90 % prediction band
+    (``<key>_lo``/``<key>_hi``, :mod:`selector.routes.bands`) of tensile and yield
+    strength, elongation and hardness (HV, with its HRC/HB conversions) for the
+    route family ``route``."""
     fam = batch.attr("family")
     hv_test = np.asarray(res.get("hardness_hv", np.full(batch.n, np.nan)), float)
     uts = np.asarray(res.get("uts_mpa", np.full(batch.n, np.nan)), float)
@@ -79,6 +83,12 @@ def finish(res: dict, batch: Batch) -> dict:
         sc = scale_hardness(hv, fam)
         res[key + "_hrc"] = sc["hrc"]
         res[key + "_hb"] = sc["hb"]
+    section = np.where(np.isfinite(batch.diameter_mm), batch.diameter_mm, batch.thickness_mm)
+    res.update(bands.band_columns(res, fam, route, section))
+    for edge in ("lo", "hi"):
+        if f"hardness_hv_{edge}" in res:
+            sc = scale_hardness(res[f"hardness_hv_{edge}"], fam)
+            res[f"hardness_hrc_{edge}"], res[f"hardness_hb_{edge}"] = sc["hrc"], sc["hb"]
     return res
 
 
@@ -92,10 +102,13 @@ def _scalar(v):
 
 
 CORNERS = ("lean", "nominal", "rich")
+#: the prediction-band keys of the result (``<key>_lo``, ``<key>_hi``)
+BAND_KEYS = tuple(f"{k}_{e}" for k in ("uts_mpa", "yield_mpa", "elongation_pct", "hardness_hv", "hardness_hrc",
+                                        "hardness_hb") for e in ("lo", "hi"))
 
 
 def evaluate(grade, route, diameter_mm: float | None = 25.0, thickness_mm: float | None = None,
-             composition: str = "nominal") -> dict:
+             composition: str = "nominal", heat_composition=None) -> dict:
     """Properties that ``route`` gives ``grade`` at a real section.
 
     Parameters
@@ -111,6 +124,13 @@ def evaluate(grade, route, diameter_mm: float | None = 25.0, thickness_mm: float
     composition : {"nominal", "lean", "rich"}
         Where in the grade's composition specification to evaluate: the mid-points,
         or every alloying element at its minimum or maximum.
+    heat_composition : mapping, optional
+        One heat's analysis from its mill certificate, element → wt %
+        (``{"C": 0.41, "Mn": 0.86, "Cr": 0.95, "Mo": 0.18}``); elements not given take
+        the grade's nominal value (:mod:`selector.catalogue.heat`).  An element
+        outside the grade's specification gives a warning naming it; a negative,
+        non-finite or impossible value (total over 100 %) an ``InputError``.  Only
+        with ``composition="nominal"``.
 
     Returns
     -------
@@ -131,14 +151,22 @@ def evaluate(grade, route, diameter_mm: float | None = 25.0, thickness_mm: float
     d, t = section_args(diameter_mm, thickness_mm)
     check_choice("composition", composition, CORNERS)
     g, steps, fam = resolve(grade, route)
+    comp, heat_warns = g.composition(composition), []
+    if heat_composition is not None:
+        if composition != "nominal":
+            raise InputError("composition", composition,
+                             "'nominal' when heat_composition is given (the heat replaces the corner)")
+        comp, heat_warns = heat.heat_composition(g, heat_composition,
+                                                 heat.known_elements(default_catalogue()))
     params, warns = fam.parse(steps, g)
-    batch = Batch.single(g, g.composition(composition), params, d, t)
-    res = finish(fam.compute(batch), batch)
+    warns = heat_warns + list(warns)
+    batch = Batch.single(g, comp, params, d, t)
+    res = finish(fam.compute(batch), batch, fam.name)
     out = {}
     for key in ("uts_mpa", "yield_mpa", "elongation_pct", "hardness_hv", "hardness_hb", "hardness_hrc",
                 "surface_hardness_hv", "surface_hardness_hrc", "center_hardness_hv", "center_hardness_hrc",
                 "case_depth_mm", "reduction_area_pct", "center_uts_mpa", "center_yield_mpa",
-                "center_elongation_pct", "center_martensite_pct", "di_mm", "peak_ratio"):
+                "center_elongation_pct", "center_martensite_pct", "di_mm", "peak_ratio") + BAND_KEYS:
         if key in res:
             out[key] = _scalar(res[key])
     out["case_depth_mm"] = out.get("case_depth_mm") or 0.0
@@ -157,7 +185,9 @@ def evaluate(grade, route, diameter_mm: float | None = 25.0, thickness_mm: float
     out["route"] = fam.to_steps(params)
     out["route_text"] = steps_mod.describe(out["route"])
     out["params"] = {k: _scalar(v) for k, v in params.items()}
-    out["composition"] = composition
+    out["composition"] = composition if heat_composition is None else "heat"
+    if heat_composition is not None:
+        out["heat_composition"] = {e: round(float(v), 6) for e, v in comp.items()}
     out["diameter_mm"] = d
     out["thickness_mm"] = t
     notes = [m for m, mask in res.get("notes", []) if bool(np.asarray(mask).ravel()[0])]
@@ -165,5 +195,6 @@ def evaluate(grade, route, diameter_mm: float | None = 25.0, thickness_mm: float
     srcs = [f"{g.id}: {g.source}"] + [f"composition: {s}" for s in g.comp_sources] + list(fam.references)
     if g.family in STEEL_SCALE_FAMILIES:
         srcs.append(E140_SOURCE)
+    srcs.append(bands.source_note())
     out["sources"] = list(dict.fromkeys(srcs))
     return out

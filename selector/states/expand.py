@@ -17,7 +17,7 @@ import pandas as pd
 from ..catalogue.grades import default_catalogue
 from ..errors import NotModelledError
 from ..routes import families as fam_registry
-from ..routes.evaluate import finish, section_args
+from ..routes.evaluate import BAND_KEYS, finish, section_args
 from ..routes.families.base import Batch
 
 CORNERS = ("lean", "nominal", "rich")
@@ -26,7 +26,7 @@ CORNERS = ("lean", "nominal", "rich")
 RESULT_COLUMNS = ("uts_mpa", "yield_mpa", "elongation_pct", "hardness_hv", "hardness_hrc", "hardness_hb",
                   "surface_hardness_hv", "surface_hardness_hrc", "center_hardness_hv", "center_hardness_hrc",
                   "case_depth_mm", "reduction_area_pct", "center_uts_mpa", "center_yield_mpa",
-                  "center_martensite_pct", "peak_ratio", "di_mm")
+                  "center_martensite_pct", "peak_ratio", "di_mm") + BAND_KEYS
 
 
 def _family_batch(fam, grades, diameter_mm, thickness_mm, corners):
@@ -74,7 +74,7 @@ def expand_family(fam, diameter_mm=25.0, thickness_mm=None, grades=None, corners
     if built is None:
         return pd.DataFrame()
     batch, state_no, corner = built
-    res = finish(fam.compute(batch), batch)
+    res = finish(fam.compute(batch), batch, fam.name)
     df = pd.DataFrame({"grade": batch.attr("id"), "family": batch.attr("family"), "route": fam.name,
                        "corner": corner, "state": state_no})
     for name in fam.parameters:

@@ -315,7 +315,7 @@ def load_cases(files: Iterable[str] = (QT_FILE, TEMPERS_FILE, BANDS_FILE), root:
 
 # ----------------------------------------------------------------------------- recompute
 
-COLUMNS = ["case", "file", "line", "grade", "family", "route", "condition", "kind", "confidence",
+COLUMNS = ["case", "file", "line", "grade", "family", "route", "condition", "section_mm", "kind", "confidence",
            "calibration", "property", "unit", "published", "predicted", "error", "abs_error", "status", "reason",
            "assumptions"]
 
@@ -331,16 +331,16 @@ def _rows_for(case: Case, predicted: dict, status: str, reason: str = "") -> lis
         err = pred - pub if st == "compared" else math.nan
         out.append({"case": case.id, "file": case.file, "line": case.line, "grade": case.grade,
                     "family": case.family or "(not catalogued)", "route": case.route,
-                    "condition": case.condition, "kind": case.kind, "confidence": case.confidence,
-                    "calibration": case.calibration, "property": prop, "unit": PROPERTIES[prop][1],
+                    "condition": case.condition, "section_mm": case.diameter_mm, "kind": case.kind,
+                    "confidence": case.confidence, "calibration": case.calibration, "property": prop, "unit": PROPERTIES[prop][1],
                     "published": pub, "predicted": pred,
                     "error": err, "abs_error": abs(err), "status": st, "reason": why,
                     "assumptions": "; ".join(case.assumptions)})
     if not case.published:
         out.append({"case": case.id, "file": case.file, "line": case.line, "grade": case.grade,
                     "family": case.family or "(not catalogued)", "route": case.route,
-                    "condition": case.condition, "kind": case.kind, "confidence": case.confidence,
-                    "calibration": case.calibration, "property": "", "unit": "",
+                    "condition": case.condition, "section_mm": case.diameter_mm, "kind": case.kind,
+                    "confidence": case.confidence, "calibration": case.calibration, "property": "", "unit": "",
                     "published": math.nan, "predicted": math.nan,
                     "error": math.nan, "abs_error": math.nan, "status": "no published value",
                     "reason": "the row gives none of the compared properties",

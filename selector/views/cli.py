@@ -44,6 +44,13 @@ def _route_from_args(args) -> list:
     return [parse_step_text(s) for s in args.steps]
 
 
+def parse_heat_text(text: str) -> dict:
+    """``"C=0.41 Mn=0.86 Cr=0.95"`` → ``{"C": 0.41, "Mn": 0.86, "Cr": 0.95}`` (wt %)."""
+    from ..catalogue.heat import parse_heat_text as parse
+
+    return parse(text, "--heat")
+
+
 def _fmt(v, nd=0):
     if v is None or (isinstance(v, float) and math.isnan(v)):
         return "—"
@@ -52,15 +59,27 @@ def _fmt(v, nd=0):
     return str(v)
 
 
+def _banded(r: dict, key: str, unit: str, nd: int = 0) -> str:
+    """``969 MPa (905–1030, 90 %)``: the estimate with its prediction band."""
+    v, lo, hi = r.get(key), r.get(key + "_lo"), r.get(key + "_hi")
+    text = f"{_fmt(v, nd)} {unit}"
+    if v is not None and lo is not None and hi is not None:
+        text += f" ({_fmt(lo, nd)}–{_fmt(hi, nd)}, 90 %)"
+    return text
+
+
 def format_evaluation(r: dict) -> str:
     sec = (f"Ø{r['diameter_mm']:g} mm round" if r.get("diameter_mm") else f"{r['thickness_mm']:g} mm plate")
-    lines = [f"{r['grade']} ({r['family']}), {sec}", f"route: {r['route_text']}", "",
+    lines = [f"{r['grade']} ({r['family']}), {sec}", f"route: {r['route_text']}"]
+    if r.get("heat_composition"):
+        lines.append("heat analysis (wt %): " + " ".join(f"{e}={v:g}" for e, v in r["heat_composition"].items()))
+    lines += ["", "(90 %: the range that held 90 % of independent published values for similar states)",
              f"at the tension-test location ({r['test_location']}, ASTM A370):",
-             f"  tensile strength   {_fmt(r.get('uts_mpa'))} MPa",
-             f"  yield strength     {_fmt(r.get('yield_mpa'))} MPa",
-             f"  elongation         {_fmt(r.get('elongation_pct'), 1)} %",
-             f"  hardness           {_fmt(r.get('hardness_hv'))} HV  {_fmt(r.get('hardness_hb'))} HB  "
-             f"{_fmt(r.get('hardness_hrc'), 1)} HRC",
+             f"  tensile strength   {_banded(r, 'uts_mpa', 'MPa')}",
+             f"  yield strength     {_banded(r, 'yield_mpa', 'MPa')}",
+             f"  elongation         {_banded(r, 'elongation_pct', '%', 1)}",
+             f"  hardness           {_banded(r, 'hardness_hv', 'HV')}  {_fmt(r.get('hardness_hb'))} HB  "
+             f"{_banded(r, 'hardness_hrc', 'HRC', 1)}",
              f"surface hardness     {_fmt(r.get('surface_hardness_hv'))} HV ({_fmt(r.get('surface_hardness_hrc'), 1)} HRC)",
              f"centre hardness      {_fmt(r.get('center_hardness_hv'))} HV",
              f"case depth           {_fmt(r.get('case_depth_mm'), 2)} mm"]
@@ -79,7 +98,9 @@ def format_evaluation(r: dict) -> str:
 def cmd_evaluate(args) -> int:
     from .. import evaluate
 
-    r = evaluate(args.grade, _route_from_args(args), diameter_mm=args.diameter, thickness_mm=args.thickness)
+    heat = parse_heat_text(args.heat) if args.heat is not None else None
+    r = evaluate(args.grade, _route_from_args(args), diameter_mm=args.diameter, thickness_mm=args.thickness,
+                 heat_composition=heat)
     if args.json:
         print(json.dumps({**r, "caution": CAUTION}, indent=2, ensure_ascii=False))
     else:
@@ -121,6 +142,8 @@ def build_parser() -> argparse.ArgumentParser:
     ev.add_argument("--route-json", help="the route as a JSON list of step objects")
     ev.add_argument("--diameter", type=float, default=25.0, help="round section diameter, mm (default 25)")
     ev.add_argument("--thickness", type=float, default=None, help="plate thickness, mm (instead of a diameter)")
+    ev.add_argument("--heat", default=None, help="the heat's analysis from its mill certificate, wt %%, e.g. "
+                    "\"C=0.41 Mn=0.86 Cr=0.95 Mo=0.18\" (other elements: the grade's nominal)")
     ev.add_argument("--json", action="store_true", help="machine-readable output")
     ev.set_defaults(func=cmd_evaluate)
 

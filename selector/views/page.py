@@ -303,10 +303,44 @@ def cached_variant_states(diameter_mm, thickness_mm, length_mm, price_items, var
 
 
 @st.cache_data(show_spinner=False, max_entries=128)
-def cached_evaluate(grade: str, route_json: str, diameter_mm, thickness_mm, composition="nominal") -> dict:
-    """:func:`selector.evaluate` of one candidate (``route_json``: its steps as JSON)."""
+def cached_evaluate(grade: str, route_json: str, diameter_mm, thickness_mm, composition="nominal",
+                    heat_json: str | None = None) -> dict:
+    """:func:`selector.evaluate` of one candidate (``route_json``: its steps as JSON;
+    ``heat_json``: a heat analysis as JSON, element → wt %)."""
     return selector.evaluate(grade, json.loads(route_json), diameter_mm=diameter_mm,
-                             thickness_mm=thickness_mm, composition=composition)
+                             thickness_mm=thickness_mm, composition=composition,
+                             heat_composition=None if heat_json is None else json.loads(heat_json))
+
+
+def read_heat(text: str | None) -> tuple[str | None, str | None]:
+    """The heat-analysis field: ``(heat_json, None)``, ``(None, None)`` when blank, or
+    ``(None, message)`` naming the element, its value and what is allowed."""
+    if text is None or not str(text).strip():
+        return None, None
+    from ..catalogue.heat import parse_heat_text
+
+    try:
+        return json.dumps(parse_heat_text(text, "heat analysis"), sort_keys=True), None
+    except SelectorError as exc:
+        return None, str(exc)
+
+
+def band_text(ev: Mapping, system: str) -> str:
+    """One line with the 90 % prediction band of each estimate, in display units."""
+    parts = []
+    for key, label, q in (("yield_mpa", "yield", "stress"), ("uts_mpa", "tensile", "stress"),
+                          ("elongation_pct", "elongation", None), ("hardness_hrc", "hardness", None)):
+        lo, hi = ev.get(key + "_lo"), ev.get(key + "_hi")
+        if lo is None or hi is None:
+            continue
+        if q:
+            lo, hi, u = to_display(lo, q, system), to_display(hi, q, system), unit(q, system)
+        else:
+            u = "%" if key == "elongation_pct" else "HRC"
+        nd = 1 if key in ("elongation_pct", "hardness_hrc") else 0
+        parts.append(f"{label} {lo:.{nd}f}–{hi:.{nd}f} {u}")
+    return ("90 % band (the range that held 90 % of independent published values for similar states): "
+            + "; ".join(parts)) if parts else ""
 
 
 #: columns the caution rules read (selector.design.cautions), when present
