@@ -244,6 +244,32 @@ def test_candidate_view_shows_route_window_profile_sources(at):
     assert "1. **" in md                               # numbered route steps
 
 
+def test_candidate_view_band_and_heat_analysis(at):
+    # the band caption is the library's band of the candidate, and a heat analysis is evaluated by the library
+    captions = " ".join(c.value for c in at.caption)
+    assert "90 % band" in captions
+    table = _table(at)
+    row = table.iloc[0]
+    steel = selector.grade(row["grade"]).is_steel
+    at.text_input(key="heat_text").input("C=0.41 Mn=0.86 Cr=0.95 Mo=0.18" if steel else "Cu=0.3")
+    _run(at)
+    labels = [m.label for m in at.metric]
+    assert "Heat: yield (MPa)" in labels
+    at.text_input(key="heat_text").input("C=-1")
+    _run(at)
+    assert any("heat_composition['C']" in e and "[0, 100]" in e for e in _errors(at))
+    at.text_input(key="heat_text").input("C=abc")
+    _run(at)
+    assert any("heat analysis C" in e and "'abc'" in e for e in _errors(at))
+
+
+def test_band_text_converts_units():
+    ev = {"yield_mpa_lo": 689.476, "yield_mpa_hi": 827.371, "hardness_hrc_lo": 30.0, "hardness_hrc_hi": 36.0}
+    si, us = pg.band_text(ev, pg.SI), pg.band_text(ev, pg.US)
+    assert "yield 689–827 MPa" in si and "hardness 30.0–36.0 HRC" in si
+    assert "yield 100–120 ksi" in us            # 689.476 MPa = 100 ksi (1 ksi = 6.894757 MPa)
+
+
 def test_comparison_defaults_to_through_and_case_hardened(at):
     table = _table(at)
     chosen = at.multiselect(key="compare").value
