@@ -76,3 +76,13 @@ def test_shipped_band_table_is_what_the_fit_script_writes():
     assert len(shipped) == len(table)
     for col in ("q_lo", "q_hi"):
         np.testing.assert_allclose(shipped[col].astype(float), table[col].astype(float), rtol=1e-6, atol=1e-6)
+@pytest.mark.slow
+def test_band_covers_85_to_95_percent_of_independent_published_values():
+    # the check: per family with at least 20 independent rows, the 90 % band holds 85-95 %
+    # of the published values (typical rows of data/reference/, not used by any fit)
+    table, res = band_fit.run()
+    cov = band_fit.coverage(res, table)
+    checked = cov[cov["n"] >= 20]
+    assert len(checked) >= 1, f"no family has 20 independent rows of a property:\n{cov}"
+    bad = checked[(checked["coverage"] < 0.85) | (checked["coverage"] > 0.95)]
+    assert bad.empty, bad

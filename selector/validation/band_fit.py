@@ -60,8 +60,12 @@ def residuals(comparisons: pd.DataFrame) -> pd.DataFrame:
 
 
 def _q(r: np.ndarray) -> tuple[float, float]:
+    """5th and 95th percentiles at the plotting position p·(n+1) (``method="weibull"``):
+    the interpolated form of the distribution-free prediction interval between order
+    statistics (Hahn & Meeker 1991, ch. 5), which holds a new value with probability
+    0.90 without assuming a distribution."""
     a = (1.0 - bands.LEVEL) / 2.0
-    return float(np.quantile(r, a)), float(np.quantile(r, 1.0 - a))
+    return (float(np.quantile(r, a, method="weibull")), float(np.quantile(r, 1.0 - a, method="weibull")))
 
 
 #: the widest group (every family and route) is fitted from this many residuals, so that every
@@ -70,20 +74,33 @@ MIN_ROWS_POOLED = 5
 
 
 def fit(res: pd.DataFrame, min_rows: int = bands.MIN_ROWS) -> pd.DataFrame:
-    """The band table: one row per group with at least ``min_rows`` residuals, at the
-    levels (family, route, section band), (family, route, *), (*, route, *), and the
-    pooled group (*, *, *) from ``MIN_ROWS_POOLED`` residuals, each with its 5th/95th
-    percentile."""
+    """The band table, from the most specific group to the widest.
+
+    Levels: (family, route, section band), (family, route, *), (*, route, *),
+    (*, *, *).  At each level the residuals not yet described by a more specific
+    group are grouped, and every group with at least ``min_rows`` of them gets its
+    5th/95th percentile; its rows are then described.  So a wider group is fitted on
+    the rows its narrower groups leave (the states that will fall back to it), and
+    each row is described by exactly one group — the one :mod:`selector.routes.bands`
+    looks up for it.  The widest group takes the rows left (at least
+    ``MIN_ROWS_POOLED``; else every row of the property), so every property has a
+    band; its ``n`` column says how thin it is."""
     A = bands.ANY
     out = []
     levels = (("family", "route", "section_band"), ("family", "route"), ("route",), ())
     names = {3: "family, route, section band", 2: "family, route", 1: "route", 0: "every route"}
     for prop, gp in res.groupby("property"):
+        left = np.ones(len(gp), bool)
         for cols in levels:
-            groups = gp.groupby(list(cols)) if cols else [((), gp)]
+            sub = gp[left]
+            if not cols:
+                g = sub if len(sub) >= MIN_ROWS_POOLED else gp
+                groups = [((), g)] if len(g) >= 1 else []
+            else:
+                groups = list(sub.groupby(list(cols)))
             for key, g in groups:
                 key = key if isinstance(key, tuple) else (key,)
-                if len(g) < (min_rows if cols else min(min_rows, MIN_ROWS_POOLED)):
+                if cols and len(g) < min_rows:
                     continue
                 d = dict(zip(cols, key))
                 lo, hi = _q(g["r"].to_numpy(float))
@@ -92,6 +109,7 @@ def fit(res: pd.DataFrame, min_rows: int = bands.MIN_ROWS) -> pd.DataFrame:
                             "mode": bands.PROPERTIES[prop], "q_lo": round(lo, 6), "q_hi": round(hi, 6),
                             "n": len(g), "level": names[len(cols)], "source": SOURCE,
                             "confidence": "fitted"})
+                left &= ~gp.index.isin(g.index)
     return pd.DataFrame(out, columns=["family", "route", "section_band", "property", "mode", "q_lo", "q_hi",
                                       "n", "level", "source", "confidence"])
 
