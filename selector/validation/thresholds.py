@@ -79,11 +79,14 @@ THRESHOLDS: dict = {
     ('stainless_austenitic', 'cold_work', 'minimum', 'elongation_pct'): Threshold(1.5, 1.5),  # n=2, measured 1.1 / 1.19 %
     ('stainless_austenitic', 'cold_work', 'minimum', 'uts_mpa'): Threshold(5, 5),  # n=2, measured 0.198 / 0.235 MPa
     ('stainless_austenitic', 'cold_work', 'minimum', 'yield_mpa'): Threshold(270, 315),  # n=2, measured 215 / 249 MPa
-    ('stainless_ph', 'age', 'minimum', 'elongation_pct'): Threshold(2, 2.5),  # n=14, measured 1.33 / 1.86 %
-    ('stainless_ph', 'age', 'minimum', 'hardness_hb'): Threshold(20, 25),  # n=14, measured 14.9 / 16.4 HB
-    ('stainless_ph', 'age', 'minimum', 'hardness_hrc'): Threshold(1.5, 4.5),  # n=14, measured 1.14 / 3.36 HRC
-    ('stainless_ph', 'age', 'minimum', 'uts_mpa'): Threshold(40, 110),  # n=14, measured 30.1 / 87.1 MPa
-    ('stainless_ph', 'age', 'minimum', 'yield_mpa'): Threshold(50, 255),  # n=14, measured 39.5 / 200 MPa
+    # stainless_ph rows are ASTM A564 MINIMUMS: since the aging constants are fitted to typical values
+    # (scripts/fit_aging_ph.py) the "error" is the margin above the minimum (every median error > 0,
+    # tests/test_aging.py requires prediction >= minimum); thresholds re-set from the margins measured then
+    ('stainless_ph', 'age', 'minimum', 'elongation_pct'): Threshold(4.5, 6),  # n=14, measured 3.51 / 4.56 % (above min)
+    ('stainless_ph', 'age', 'minimum', 'hardness_hb'): Threshold(20, 50),  # n=14, measured 15.0 / 37.7 HB (above min)
+    ('stainless_ph', 'age', 'minimum', 'hardness_hrc'): Threshold(4, 8.5),  # n=14, measured 2.86 / 6.56 HRC (above min)
+    ('stainless_ph', 'age', 'minimum', 'uts_mpa'): Threshold(100, 220),  # n=14, measured 79.6 / 176 MPa (above min)
+    ('stainless_ph', 'age', 'minimum', 'yield_mpa'): Threshold(170, 410),  # n=14, measured 136 / 325 MPa (above min)
     # anneal rows: measured with selector.models.grain_size imported first (anneal.py needs its
     # validity range and does not import it; reported as a bug)
     ('aluminium', 'anneal', 'band', 'elongation_pct'): Threshold(12.5, 12.5),  # n=1, measured 10 / 10 %
