@@ -80,8 +80,9 @@ def test_carburized_8620_effective_case_against_published(carb_8620):
     # bar like Jominy 9-10 mm (issue 11 item 3, owned by the cooling work), the depth
     # cannot reach the published value and the check is reported as an expected failure.
     from selector.routes.quench_response import as_quenched_profile
-    j_surface = float(as_quenched_profile({"C": 0.2, "Mn": 0.8, "Si": 0.25, "Ni": 0.55, "Cr": 0.5, "Mo": 0.2},
-                                          "oil", diameter_mm=25.0, austenitize_c=925.0,
+    from selector.catalogue.grades import grade
+    comp = {k: float(v) for k, v in grade("8620").composition().items()}
+    j_surface = float(as_quenched_profile(comp, "oil", diameter_mm=25.0, austenitize_c=925.0,
                                           positions=(1.0,))["jominy_mm"][0, 0])
     if j_surface > 8.0:
         pytest.xfail(f"surface of a 25 mm oil-quenched bar cools like J {j_surface:.1f} mm (issue 11 item 3)")
