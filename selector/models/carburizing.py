@@ -502,7 +502,7 @@ def case_as_quenched_hrc(carbon_pct, comp_core: Composition, jominy_mm=None, gra
     Examples
     --------
     8620 alloy (0.80 Mn, 0.55 Ni, 0.50 Cr, 0.20 Mo) at 0.35 %C, J = 5 mm: about
-    52 HRC (A255: IH(0.35) = 53.3 HRC, DI about 90 mm).
+    52 HRC (this code: IH(0.35) = 53.3 HRC, DI 83 mm, DF 1.02).
     """
     from .hardenability import J1_MM, jominy_hardness_hrc
 
