@@ -88,21 +88,98 @@ def test_calibration_points_reproduced(row):
 
 
 CONDITIONS_17_4 = ["H900", "H925", "H1025", "H1075", "H1100", "H1150"]
+ROOT = __import__("pathlib").Path(__file__).resolve().parents[1]
+
+
+def _fit_script():
+    import importlib.util
+    spec = importlib.util.spec_from_file_location("fit_aging_ph", ROOT / "scripts" / "fit_aging_ph.py")
+    mod = importlib.util.module_from_spec(spec)
+    spec.loader.exec_module(mod)
+    return mod
+
+
+def _csv(rel):
+    import pandas as pd
+    return pd.read_csv(ROOT / "data" / rel, comment="#")
+
+
+def _ph_predict(alloy, temp_c, hours):
+    return ag.aged_properties(ag.aging_constants(alloy), temp_c, hours)
+
+
+def test_ph_coefficients_equal_what_the_fit_script_produces():
+    # fit convention: the shipped file can never drift from its script (rel 1e-9)
+    fit = _fit_script()
+    d = fit.fit(fit.load_rows())
+    shipped = _csv("fits/aging_ph_coefficients.csv").set_index("coefficient")["value"]
+    for name in ag.CONSTANT_NAMES:
+        assert float(shipped[name]) == pytest.approx(d[name], rel=1e-9), name
+    assert ag.ph_coefficients()["s0_mpa"] == pytest.approx(d["s0_mpa"], rel=1e-9)
+    rows = _csv("fits/aging_ph_rows.csv")
+    assert set(zip(rows["grade"], rows["condition"])) == set(
+        zip(fit.load_rows()["grade"], fit.load_rows()["condition"]))
+    cv = _csv("fits/aging_ph_cv.csv")
+    assert set(cv["grade"]) == {"17-4PH", "15-5PH"} and (cv["median_abs_error"] >= 0).all()
+
+
+@pytest.mark.parametrize("alloy", ["17-4PH", "15-5PH"])
+def test_ph_typical_values_on_rows_not_used_by_the_fit(alloy):
+    # data/reference/ph_typical.csv: typical bar properties (Aerospace Structural Metals
+    # Handbook 17-4PH / 15-5PH, values from memory).  Independent rows: the conditions the
+    # fit did not use (join on grade + condition with data/fits/aging_ph_rows.csv).
+    # Issue 11 target: tensile and yield within 6 % of typical.  Measured: H925 -2/-2 %,
+    # H1075 -6/-5 %, H1100 +1/+2 %.
+    t = _csv("reference/ph_typical.csv")
+    used = set(zip(*[_csv("fits/aging_ph_rows.csv")[k] for k in ("grade", "condition")]))
+    held = t[(t["grade"] == alloy) & t["condition"].isin(CONDITIONS_17_4)
+             & np.array([(g, c) not in used for g, c in zip(t["grade"], t["condition"])])]
+    assert len(held) >= 3
+    res = _ph_predict(alloy, held["age_temp_c"].to_numpy(float), held["age_hours"].to_numpy(float))
+    np.testing.assert_allclose(res["uts_mpa"], held["uts_mpa"], rtol=0.06)
+    np.testing.assert_allclose(res["yield_mpa"], held["yield_mpa"], rtol=0.06)
+    # elongation is not a target: within 15 %
+    np.testing.assert_allclose(res["elongation_pct"], held["elongation_pct"], rtol=0.15)
+
+
+def test_ph_calibration_rows_reproduced():
+    # calibration (the rows the fit used, data/fits/aging_ph_rows.csv): yield within 10 %
+    # (H1025 -9 %: the Shercliff-Ashby fall from the H900 peak is steeper than the
+    # published plateau to H1025), tensile within 5 %, elongation within 10 %
+    t = _csv("reference/ph_typical.csv")
+    used = _csv("fits/aging_ph_rows.csv")
+    aged = t.merge(used[["grade", "condition"]], on=["grade", "condition"])
+    aged = aged[aged["condition"] != "A"]
+    for alloy, g in aged.groupby("grade"):
+        res = _ph_predict(alloy, g["age_temp_c"].to_numpy(float), g["age_hours"].to_numpy(float))
+        np.testing.assert_allclose(res["yield_mpa"], g["yield_mpa"], rtol=0.10)
+        np.testing.assert_allclose(res["uts_mpa"], g["uts_mpa"], rtol=0.05)
+        np.testing.assert_allclose(res["elongation_pct"], g["elongation_pct"], rtol=0.10)
 
 
 @pytest.mark.parametrize("alloy", ["17-4PH", "15-5PH"])
 @pytest.mark.parametrize("condition", CONDITIONS_17_4)
-def test_ph_stainless_against_a564_minimums(alloy, condition):
-    # ASTM A564 Type 630 / XM-12 minimums (from memory), aging 482 °C x 1 h (H900) and
-    # 496-621 °C x 4 h (AMS 5622 schedule).  17-4PH constants fitted on H900, H1025,
-    # H1150; H925, H1075, H1100 held out.  Measured: yield within 11 % of the minimum
-    # (H1025 -10 %), tensile within 5 %, elongation within 15 %.
-    t = ag.calibration_points(alloy)
-    rows = t[t["condition"] == condition].set_index("name")
-    pred = predict(alloy, rows.loc["yield_mpa"])
-    assert float(pred["yield_mpa"]) == pytest.approx(rows.loc["yield_mpa", "value"], rel=0.11)
-    assert float(pred["uts_mpa"]) == pytest.approx(rows.loc["uts_mpa", "value"], rel=0.05)
-    assert float(pred["elongation_pct"]) == pytest.approx(rows.loc["elongation_pct", "value"], rel=0.15)
+def test_ph_stainless_at_or_above_a564_minimums(alloy, condition):
+    # ASTM A564/A564M Table 3 minimums for Types 630 / XM-12, as recorded in
+    # data/reference/tempers_nonferrous.csv (kind minimum; from memory, H1075/H1150 UTS
+    # read on a data sheet).  Every standard condition must stay at or above its minimum
+    # (tensile, yield, elongation); aging schedules as the route's designations.
+    from selector.routes.families.age import designation_steps
+    t = _csv("reference/tempers_nonferrous.csv")
+    row = t[(t["grade"] == alloy) & (t["condition"] == condition) & (t["kind"] == "minimum")].iloc[0]
+    (temp_c, hours), = designation_steps(alloy, condition)[0]
+    res = _ph_predict(alloy, temp_c, hours)
+    assert float(res["uts_mpa"]) >= row["uts_mpa"]
+    assert float(res["yield_mpa"]) >= row["yield_mpa"]
+    assert float(res["elongation_pct"]) >= row["elongation_pct"]
+
+
+def test_ph_constants_not_in_the_calibration_table():
+    # one source of PH constants: the offline fit, never data/aging_calibration.csv
+    t = ag.calibration_table()
+    assert not t["alloy"].isin(ag.PH_ALLOYS).any()
+    c = ag.aging_constants(["17-4PH", "15-5PH"])
+    assert c.s0_mpa[0] == c.s0_mpa[1] == ag.ph_coefficients()["s0_mpa"]
 
 
 def test_ph_stainless_strength_falls_from_h900_to_h1150():

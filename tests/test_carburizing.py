@@ -5,6 +5,7 @@ import pytest
 from selector.errors import InputError
 from selector.models import carburizing as cz
 from selector.models import validity
+from selector.models.conversions import hrc_to_hv, hv_to_hrc
 
 #: AISI 8620 nominal (SAE J404 mid-range, from memory)
 C8620 = {"C": 0.20, "Mn": 0.80, "Si": 0.25, "Ni": 0.55, "Cr": 0.50, "Mo": 0.20}
@@ -165,12 +166,81 @@ def test_effective_case_not_deeper_than_total_case():
     # SAE J423: effective case (50 HRC) lies inside the total case; both below Harris
     # here (0.85 %C is below saturation)
     hours = np.array([2.0, 8.0, 24.0])
-    ecd = cz.effective_case_depth_mm(925.0, hours, 0.85, C8620, 175.0, 2.0, 35.0)
     tcd = cz.total_case_depth_mm(925.0, hours, 0.85, 0.20)
-    assert np.all(ecd > 0) and np.all(ecd <= tcd)
-    assert np.all(tcd <= cz.harris_case_depth_mm(925.0, hours))
-    # common practice (from memory): effective case about 0.5–0.8 of total case
-    assert np.all((ecd / tcd > 0.5) & (ecd / tcd < 0.8))
+    harris = cz.harris_case_depth_mm(925.0, hours)
+    assert np.all(tcd <= harris)
+    for j in (1.59, 3.0, 6.0):   # surface cooling from the quenched end to a slow oil quench
+        ecd = cz.effective_case_depth_mm(925.0, hours, 0.85, C8620, 175.0, 2.0, 35.0, jominy_mm=j)
+        assert np.all(ecd > 0) and np.all(ecd <= tcd)
+        # common practice (not a published table): effective case about 2/3-3/4 of the
+        # total case; checked against Harris (1943) total case with a 0.05 margin
+        assert np.all((ecd / harris > 0.60) & (ecd / harris < 0.80))
+
+
+def _reference(basis):
+    import pandas as pd
+    from pathlib import Path
+    t = pd.read_csv(Path(__file__).resolve().parents[1] / "data" / "reference" / "case_depth.csv", comment="#")
+    return t[t["basis"] == basis]
+
+
+def test_harris_total_case_reference_rows():
+    # data/reference/case_depth.csv: Harris (1943) total case, formula as reproduced at
+    # flamemet.com/tech/feharris.html (0.635 mm per sqrt(h) at 1700 F); depths printed
+    # to 3 decimals -> 0.5 %
+    rows = _reference("total")
+    assert len(rows) >= 3
+    got = cz.harris_case_depth_mm(rows["temp_c"].to_numpy(float), rows["hours"].to_numpy(float))
+    np.testing.assert_allclose(got, rows["depth_mm"].to_numpy(float), rtol=0.005)
+
+
+@pytest.mark.parametrize("jominy_mm", [1.59, 3.0, 4.5, 6.0])
+def test_8620_effective_case_within_20_pct_of_published(jominy_mm):
+    # data/reference/case_depth.csv, effective rows (independent checks, no fit uses them):
+    # ASM Handbook Vol. 4 gas carburizing, 925 C 8 h oil: 1.0-1.4 mm (from memory) and
+    # 2/3-3/4 of the Harris (1943) total case at 4 h and 16 h (common practice ratio).
+    # The surface of an oil-quenched part cools like the first few mm of a Jominy bar
+    # (J 1.6-6 mm: the surface of bars up to about 25 mm; Lamont-type charts, from memory).
+    # Target of issue 11: within 20 % of published.
+    rows = _reference("effective")
+    assert len(rows) >= 3
+    ecd = cz.effective_case_depth_mm(rows["temp_c"].to_numpy(float), rows["hours"].to_numpy(float),
+                                     rows["surface_carbon_pct"].to_numpy(float), C8620,
+                                     rows["temper_temp_c"].to_numpy(float), 2.0, 25.0, jominy_mm=jominy_mm)
+    err = ecd / rows["depth_mm"].to_numpy(float) - 1.0
+    assert np.all(np.abs(err) <= 0.20), err
+
+
+def test_50_hrc_point_at_low_carbon_not_half_percent():
+    # Each depth hardens with its own carbon: with a fully hardening quench the 50 HRC
+    # point of an 8620 case lies near 0.30-0.35 %C (ASTM A255 IH: 53 HRC at 0.35 %C, then
+    # a 175 C temper), not near 0.52 %C as a profile scaled toward a soft core gives
+    # (issue 11 diagnosis).  Bounds 0.25-0.40 %C: common practice.
+    e = float(cz.effective_case_depth_mm(925.0, 8.0, 0.85, C8620, 175.0, 2.0, 25.0))
+    c_at = float(cz.carbon_profile_pct(e, 925.0, 8.0, 0.85, 0.20))
+    assert 0.25 < c_at < 0.40
+
+
+def test_slower_cooling_gives_shallower_effective_case():
+    j = np.array([1.59, 3.0, 6.0, 10.0, 15.0])
+    e = cz.effective_case_depth_mm(925.0, 8.0, 0.85, C8620, 175.0, 2.0, 20.0, jominy_mm=j)
+    assert np.all(np.diff(e) < 0)
+
+
+def test_case_as_quenched_uses_local_hardenability():
+    # ASTM A255: HRC = IH(C) / DF(DI, J); at J1 the dividing factor is 1 (identity)
+    from selector.models.martensite import ih_hrc
+    assert float(cz.case_as_quenched_hrc(0.35, C8620)) == pytest.approx(float(ih_hrc(0.35)), abs=1e-9)
+    # more carbon -> more hardenability: at J = 10 mm the 0.6 %C case keeps more of its IH
+    lo = cz.case_as_quenched_hrc(0.25, C8620, 10.0) / cz.case_as_quenched_hrc(0.25, C8620)
+    hi = cz.case_as_quenched_hrc(0.60, C8620, 10.0) / cz.case_as_quenched_hrc(0.60, C8620)
+    assert hi > lo
+
+
+def test_case_hardness_hv_never_raised_by_retained_austenite():
+    hv = cz.case_hardness_hv(np.array([250.0, 500.0, 800.0]), np.array([0.2, 0.5, 1.0]), C8620, None)
+    assert np.all(hv <= [250.0, 500.0, 800.0])
+    assert hv[2] < 800.0 * 0.95     # about 19 % retained austenite at 1 %C
 
 
 def test_effective_case_depth_scales_with_root_time():
@@ -202,10 +272,12 @@ def test_effective_case_depth_vectorised_over_grades():
 
 def test_profile_bounds():
     x = np.linspace(0, 4, 41)
-    h = cz.case_hardness_profile_hrc(x, 925.0, 8.0, 0.85, C8620, 175.0, 2.0, 35.0)
+    h = cz.case_hardness_profile_hrc(x, 925.0, 8.0, 0.85, C8620, 175.0, 2.0, 20.0, jominy_mm=8.0)
     assert np.all(np.diff(h) <= 1e-9)
-    assert np.all(h >= 35.0)
-    assert h[-1] == pytest.approx(35.0, abs=0.5)
+    assert np.all(h >= 20.0)
+    # deep below the case: the core alloy at its own carbon and the same cooling
+    core = cz.case_hardness_hv(hrc_to_hv(cz.case_as_quenched_hrc(0.20, C8620, 8.0)), 0.20, C8620, 175.0, 2.0)
+    assert h[-1] == pytest.approx(max(float(hv_to_hrc(core)), 20.0), abs=0.3)
 
 
 def test_high_surface_carbon_lowers_as_quenched_hardness():

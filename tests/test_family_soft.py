@@ -67,8 +67,9 @@ def test_cold_work_roundtrip_steps():
     # Aluminum Association typical (data/aging_calibration.csv, sources there)
     ("6061", "T4", 145.0, 241.0), ("6061", "T6", 276.0, 310.0), ("7075", "T6", 503.0, 572.0),
     ("7075", "T73", 435.0, 505.0), ("2024", "T4", 324.0, 469.0),
-    # ASTM A564 Type 630 minimums (from memory): within 11 % (yield) / 5 % (tensile)
-    ("17-4PH", "H900", 1172.0, 1310.0), ("17-4PH", "H1150", 724.0, 931.0),
+    # typical values, data/reference/ph_typical.csv (Aerospace Structural Metals Handbook,
+    # from memory); calibration rows of scripts/fit_aging_ph.py: within 11 % / 5 %
+    ("17-4PH", "H900", 1269.0, 1379.0), ("17-4PH", "H1150", 862.0, 1000.0),
     # ASTM B196 TF00 mid-range tensile 1172 MPa
     ("C17200", "TF00", 1035.0, 1172.0),
 ])

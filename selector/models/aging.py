@@ -333,11 +333,43 @@ def calibration_table():
     return read_table("aging_calibration.csv", schema)
 
 
+#: precipitation-hardening stainless steels whose constants come from the offline fit
+#: ``scripts/fit_aging_ph.py`` (``data/fits/aging_ph_coefficients.csv``), fitted to typical
+#: published values (``data/reference/ph_typical.csv``); one constant set for both
+PH_ALLOYS = ("17-4PH", "15-5PH")
+PH_FIT_FILE = "fits/aging_ph_coefficients.csv"
+
+
+@functools.cache
+def ph_coefficients() -> dict:
+    """Constants of the PH stainless steels from ``data/fits/aging_ph_coefficients.csv``
+    (written by ``scripts/fit_aging_ph.py``; the package never fits), validated."""
+    from ..catalogue.loader import CONFIDENCE, Column, Schema, read_table
+    from ..errors import DataFileError
+
+    schema = Schema((Column("fit", "choice", choices=("aging_ph",)), Column("coefficient"),
+                     Column("value", "float"), Column("unit", allow_blank=True), Column("source"),
+                     Column("confidence", "choice", choices=CONFIDENCE)),
+                    row_check=lambda r: None if r["coefficient"] in CONSTANT_NAMES else
+                    ("coefficient", f"{r['coefficient']!r} is not a constant of the model"))
+    t = read_table(PH_FIT_FILE, schema)
+    d = {str(k): float(v) for k, v in zip(t["coefficient"], t["value"])}
+    missing = [n for n in CONSTANT_NAMES if n not in d]
+    if missing:
+        raise DataFileError(PH_FIT_FILE, None, "coefficient", f"lacks constants {', '.join(missing)}")
+    d["model"] = "shercliff_ashby_ph_stainless"
+    return d
+
+
 @functools.cache
 def _alloy_constants() -> dict:
     t = calibration_table()
-    out = {}
+    out = {a: dict(ph_coefficients()) for a in PH_ALLOYS}
     for alloy, g in t[t["kind"] == "constant"].groupby("alloy"):
+        if alloy in PH_ALLOYS:
+            from ..errors import DataFileError
+            raise DataFileError("aging_calibration.csv", None, "alloy",
+                                f"{alloy} constants come from {PH_FIT_FILE} (scripts/fit_aging_ph.py), not here")
         d = dict(zip(g["name"], g["value"]))
         missing = [n for n in CONSTANT_NAMES + ("model",) if n not in d]
         if missing:

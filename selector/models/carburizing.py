@@ -8,11 +8,12 @@ The pipeline, one published model per step:
    surface carbon on a semi-infinite body (Crank, *The Mathematics of Diffusion*);
 3. total case depth, Harris (1943), and the depth where the erf profile comes
    within 0.07 %C of the core (the point Harris's depth corresponds to);
-4. local hardness: as-quenched martensite at the local carbon
-   (:mod:`selector.models.martensite`), low-temperature tempering
-   (:mod:`selector.models.tempering` when present), retained austenite by
-   Koistinen–Marburger (1959) with the Andrews (1965) linear Ms of the local
-   composition, mixed by volume in Vickers hardness;
+4. local hardness: each depth with its OWN carbon and hardenability, the ASTM A255
+   Jominy hardness of the core alloy at the local carbon at the depth's equivalent
+   Jominy distance (:func:`case_as_quenched_hrc`), tempered by the quench-and-temper
+   rule at the local carbon (:func:`selector.models.tempering.tempered_hv`), retained
+   austenite by Koistinen–Marburger (1959) with the Andrews (1965) Ms of the local
+   composition, mixed by volume in Vickers hardness (:func:`case_hardness_hv`);
 5. effective case depth to 50 HRC (SAE J423 / ISO 2639 convention).
 
 Every function broadcasts over numpy arrays.  Nothing here warns: out-of-range
@@ -452,22 +453,151 @@ def fully_hardened_case_hrc(carbon_pct, comp_core: Composition, temper_temp_c=No
     return hv_to_hrc(hv)
 
 
-def case_hardness_profile_hrc(depth_mm, temp_c, hours, surface_carbon_pct, comp_core: Composition,
-                              temper_temp_c, temper_hours, core_hardness_hrc, quench_temp_c=25.0,
-                              method: str = "tibbetts", ms_method: str = CASE_MS_METHOD):
-    """Hardness against depth of a carburized, quenched and low-tempered part, HRC.
+def case_as_quenched_hrc(carbon_pct, comp_core: Composition, jominy_mm=None, grain_size_astm=7.0):
+    """As-quenched hardness (HRC) at a depth of a carburized case, from that depth's
+    OWN carbon and hardenability (ASTM A255 calculation at the local carbon).
 
     ::
 
-        C(x)  = carbon_profile_pct(x, ...)                              (Crank erf, Tibbetts D)
-        Hf(C) = fully_hardened_case_hrc(C, ...)                         (martensite + temper + KM RA)
-        H(x)  = H_core + [Hf(C(x)) - Hf(C0)] (Hf(Cs) - H_core) / (Hf(Cs) - Hf(C0)),  H >= H_core
+        HRC(x) = IH(C_x) / DF(DI(C_x, alloy), J_x)
 
-    The surface reaches the fully hardened value of its carbon (the case hardens
-    through: carbon raises its hardenability); the profile falls to the core
-    hardness at the section (from the through-hardening model) in proportion to the
-    carbon's martensite-hardness increment, so a slack-quenched core does not show
-    the hardness of full martensite at the core carbon.
+    where C_x is the local carbon, the alloy is the core's (carburizing adds only
+    carbon), DI is the Grossmann ideal critical diameter of that local composition
+    (:func:`selector.models.hardenability.di_mm`), IH the A255 initial hardness and DF
+    the A255 dividing factor at the Jominy distance J_x that cools like the depth
+    (:func:`selector.models.hardenability.jominy_hardness_hrc`).  The route layer
+    uses the same A255 chain through
+    :func:`selector.routes.quench_response.as_quenched_profile`, which also finds
+    J_x from the quench and the section.
+
+    Parameters
+    ----------
+    carbon_pct : array_like
+        Local carbon, wt %.
+    comp_core : mapping
+        Core composition, wt % (its ``C`` is replaced by ``carbon_pct``).
+    jominy_mm : array_like, optional
+        Equivalent Jominy distance of the depth, mm; default J1 = 1.59 mm (the
+        quenched end: a fully hardening quench).
+    grain_size_astm : array_like
+        ASTM austenite grain size (A255 basis 7).
+
+    Returns
+    -------
+    ndarray, HRC.
+
+    Validity
+    --------
+    ``astm_a255`` (C 0.10–0.70 %: a case above 0.70 %C keeps the 0.70 % initial
+    hardness, as :func:`selector.models.martensite.ih_hrc`).
+
+    References
+    ----------
+    ASTM A255-10 (calculation of hardenability from composition); M.A. Grossmann,
+    Trans. AIME 150 (1942) 227.  The use of each depth's own carbon and
+    hardenability for a carburized case follows the practice of case-hardenability
+    (Jominy bars carburized before the end quench; ASTM A255 / SAE J406 appendix on
+    case hardenability, from memory).
+
+    Examples
+    --------
+    8620 alloy (0.80 Mn, 0.55 Ni, 0.50 Cr, 0.20 Mo) at 0.35 %C, J = 5 mm: about
+    52 HRC (this code: IH(0.35) = 53.3 HRC, DI 83 mm, DF 1.02).
+    """
+    from .hardenability import J1_MM, jominy_hardness_hrc
+
+    c = _nonneg("carbon_pct", carbon_pct, "case_as_quenched_hrc")
+    j = J1_MM if jominy_mm is None else _nonneg("jominy_mm", jominy_mm, "case_as_quenched_hrc")
+    return jominy_hardness_hrc(_local_comp(comp_core, c), j, grain_size_astm)
+
+
+def case_hardness_hv(as_quenched_hv, carbon_pct, comp_core: Composition, temper_temp_c=None, temper_hours=2.0,
+                     quench_temp_c=25.0, ms_method: str = CASE_MS_METHOD):
+    """Hardness (HV) at a depth of a carburized case after tempering, from the local
+    as-quenched hardness and the local carbon.
+
+    ::
+
+        HV_T  = tempered_hv(HV_AQ, HV_M(C_x), alloy at C_x, T, t)   (NaN temper: HV_AQ)
+        HV    = min(HV_T, (1 - f_RA) HV_T + f_RA * 300)
+
+    The tempering is the project's quench-and-temper rule
+    (:func:`selector.models.tempering.tempered_hv`: Hollomon–Jaffe on the martensite,
+    the non-martensitic part keeping its hardness) at the local carbon; f_RA is the
+    Koistinen–Marburger retained austenite of the local carbon
+    (:func:`retained_austenite_pct`, Andrews Ms) at 300 HV
+    (:data:`RETAINED_AUSTENITE_HV`), mixed by volume; the mixture never raises the
+    hardness (a soft, non-martensitic location holds no retained austenite).
+
+    Parameters
+    ----------
+    as_quenched_hv : array_like
+        As-quenched hardness at the depth (from the local carbon's A255 curve), HV.
+    carbon_pct : array_like
+        Local carbon, wt %.
+    comp_core : mapping
+        Core composition (its ``C`` is replaced by ``carbon_pct``).
+    temper_temp_c : array_like or None
+        Tempering temperature, °C (None, or NaN entries: as quenched).
+    temper_hours : array_like
+        Tempering time, h.
+    quench_temp_c : array_like
+        Temperature the quench reaches, °C.
+    ms_method : str
+        Ms form (:func:`martensite_start_c`).
+
+    Returns
+    -------
+    ndarray, HV.
+
+    Validity
+    --------
+    ``carburized_case_hardness`` (temper 120–230 °C); Andrews Ms above 0.6 %C is
+    extrapolated (``andrews_ms_product``).
+
+    References
+    ----------
+    J.H. Hollomon & L.D. Jaffe, Trans. AIME 162 (1945) 223; D.P. Koistinen &
+    R.E. Marburger, Acta Metall. 7 (1959) 59; K.W. Andrews, JISI 203 (1965) 721.
+    """
+    from .conversions import hrc_to_hv
+    from .martensite import martensite_hardness_hrc
+    from .tempering import tempered_hv
+
+    ctx = "case_hardness_hv"
+    c = _nonneg("carbon_pct", carbon_pct, ctx)
+    hv_aq = np.asarray(as_quenched_hv, float)
+    local = _local_comp(comp_core, c)
+    hv = hv_aq
+    if temper_temp_c is not None:
+        t = np.asarray(temper_temp_c, float)
+        h = np.asarray(temper_hours, float)
+        on = np.isfinite(t)
+        if np.any(on):
+            _nonneg("temper_hours", np.where(on, h, 1.0), ctx)
+            hv_m = hrc_to_hv(martensite_hardness_hrc(c, 99.9))
+            tt = tempered_hv(hv_aq, hv_m, local, np.where(on, t, 200.0), np.where(on, h, 1.0))
+            hv = np.where(on, np.minimum(tt, hv_aq), hv_aq)
+    f_ra = retained_austenite_pct(c, comp_core, quench_temp_c, ms_method) / 100.0
+    return np.minimum(hv, (1.0 - f_ra) * hv + f_ra * RETAINED_AUSTENITE_HV)
+
+
+def case_hardness_profile_hrc(depth_mm, temp_c, hours, surface_carbon_pct, comp_core: Composition,
+                              temper_temp_c, temper_hours, core_hardness_hrc, quench_temp_c=25.0,
+                              method: str = "tibbetts", ms_method: str = CASE_MS_METHOD, jominy_mm=None):
+    """Hardness against depth of a carburized, quenched and low-tempered part, HRC,
+    each depth with its own carbon and hardenability.
+
+    ::
+
+        C(x)  = carbon_profile_pct(x, ...)                       (Crank erf, Tibbetts D)
+        HRC_AQ(x) = IH(C(x)) / DF(DI(C(x), alloy), J(x))          (ASTM A255 at the local carbon)
+        HV(x) = case_hardness_hv(HV_AQ(x), C(x), ...)            (temper + retained austenite)
+        H(x)  = max(HRC(HV(x)), H_core)
+
+    Unlike a profile scaled between the surface and the core hardness, the 50 HRC
+    point falls where the local carbon, at the local cooling, hardens to 50 HRC
+    (about 0.30–0.35 %C for a fully hardening quench of 8620-class steels).
 
     Parameters
     ----------
@@ -484,12 +614,15 @@ def case_hardness_profile_hrc(depth_mm, temp_c, hours, surface_carbon_pct, comp_
     temper_hours : array_like
         Tempering time, h.
     core_hardness_hrc : array_like
-        Core hardness at the section after quench and temper, HRC.
+        Core hardness at the section after quench and temper, HRC (a floor).
     quench_temp_c : array_like
         Temperature the quench reaches, °C.
     method, ms_method : str
         Diffusivity (:func:`carbon_diffusivity_m2_s`) and Ms
         (:func:`martensite_start_c`) forms.
+    jominy_mm : array_like, optional
+        Equivalent Jominy distance at each depth, mm (default J1: fully hardening
+        quench).  The route layer finds it from the quench and the section.
 
     Returns
     -------
@@ -503,9 +636,11 @@ def case_hardness_profile_hrc(depth_mm, temp_c, hours, surface_carbon_pct, comp_
 
     References
     ----------
-    Crank (1975); Tibbetts (1980); ASTM A255 (IH); Koistinen & Marburger (1959);
-    Andrews (1965); ASTM E140 (HV-HRC).
+    Crank (1975); Tibbetts (1980); ASTM A255 (IH, DI, DF); Hollomon & Jaffe (1945);
+    Koistinen & Marburger (1959); Andrews (1965); ASTM E140 (HV-HRC).
     """
+    from .conversions import hrc_to_hv, hv_to_hrc
+
     ctx = "case_hardness_profile_hrc"
     c0 = el(comp_core, "C")
     cs, c0 = _check_carbon(surface_carbon_pct, c0, ctx)
@@ -513,27 +648,51 @@ def case_hardness_profile_hrc(depth_mm, temp_c, hours, surface_carbon_pct, comp_
     if np.any(~np.isfinite(core)):
         raise InputError("core_hardness_hrc", float(np.atleast_1d(core)[0]), "a finite HRC value", ctx)
     c = carbon_profile_pct(depth_mm, temp_c, hours, cs, c0, method)
+    aq = case_as_quenched_hrc(c, comp_core, jominy_mm)
+    hv = case_hardness_hv(hrc_to_hv(np.clip(aq, 20.0, 68.0)), c, comp_core, temper_temp_c, temper_hours,
+                          quench_temp_c, ms_method)
+    return np.maximum(hv_to_hrc(hv), core)
 
-    def hf(carbon):
-        return fully_hardened_case_hrc(carbon, comp_core, temper_temp_c, temper_hours, quench_temp_c, ms_method)
 
-    h_s, h_0, h_x = hf(cs), hf(c0), hf(c)
-    span = h_s - h_0
+def depth_at_hardness_mm(depth_mm, hardness, threshold):
+    """Depth where a hardness profile first falls below ``threshold`` (last axis), mm.
+
+    Linear interpolation between the grid points that bracket the first crossing;
+    0 where the surface value is already below the threshold, ``inf`` where the
+    profile never falls below it (the core itself is at or above the threshold).
+    ``depth_mm`` and ``hardness`` broadcast; ``threshold`` broadcasts with their
+    leading axes.  Units of ``hardness`` and ``threshold`` must agree (HRC or HV).
+    """
+    prof = np.asarray(hardness, float)
+    depth = np.broadcast_to(np.asarray(depth_mm, float), prof.shape)
+    thr = np.broadcast_to(np.asarray(threshold, float), prof.shape[:-1])[..., None]
+    n = prof.shape[-1]
+    below = prof < thr
+    first = np.argmax(below, axis=-1)
+    any_below = below.any(axis=-1)
+    idx = np.clip(first, 1, n - 1)
+    take = lambda a, i: np.take_along_axis(a, i[..., None], axis=-1)[..., 0]  # noqa: E731
+    h1, h0 = take(prof, idx), take(prof, idx - 1)
+    x1, x0 = take(depth, idx), take(depth, idx - 1)
     with np.errstate(divide="ignore", invalid="ignore"):
-        scaled = core + (h_x - h_0) * (h_s - core) / np.where(np.abs(span) > 1e-9, span, 1.0)
-    prof = np.where(np.abs(span) > 1e-9, scaled, np.maximum(h_x, core))
-    return np.maximum(prof, core)
+        frac = np.where(h0 != h1, (h0 - thr[..., 0]) / (h0 - h1), 0.0)
+    x = x0 + np.clip(frac, 0.0, 1.0) * (x1 - x0)
+    surface_soft = prof[..., 0] < thr[..., 0]
+    return np.where(surface_soft, 0.0, np.where(any_below, x, np.inf))
 
 
 def effective_case_depth_mm(temp_c, hours, surface_carbon_pct, comp_core: Composition, temper_temp_c,
                             temper_hours, core_hardness_hrc, threshold_hrc=50.0, quench_temp_c=25.0,
-                            method: str = "tibbetts", ms_method: str = CASE_MS_METHOD, n_grid: int = 241):
+                            method: str = "tibbetts", ms_method: str = CASE_MS_METHOD, n_grid: int = 241,
+                            jominy_mm=None):
     """Effective case depth: depth where the hardness falls to 50 HRC (SAE J423 / ISO 2639).
 
-    The profile of :func:`case_hardness_profile_hrc` is evaluated on a grid of
-    ``n_grid`` depths from 0 to 6 sqrt(D t) (beyond which the carbon is within
-    0.01 % of the core's) for every element of the broadcast inputs, and the first
-    crossing of ``threshold_hrc`` is interpolated linearly.
+    The profile of :func:`case_hardness_profile_hrc` (each depth with its own carbon
+    and hardenability, at the Jominy distance ``jominy_mm``: default J1, a fully
+    hardening quench) is evaluated on a grid of ``n_grid`` depths from 0 to
+    6 sqrt(D t) (beyond which the carbon is within 0.01 % of the core's) for every
+    element of the broadcast inputs, and the first crossing of ``threshold_hrc`` is
+    interpolated linearly (:func:`depth_at_hardness_mm`).
 
     Returns
     -------
@@ -552,10 +711,12 @@ def effective_case_depth_mm(temp_c, hours, surface_carbon_pct, comp_core: Compos
     d_s = carbon_diffusivity_m2_s(temp_c, 0.5 * (cs + c0), method)
     thr = np.asarray(threshold_hrc, float)
     core = np.asarray(core_hardness_hrc, float)
+    jmm = None if jominy_mm is None else np.asarray(jominy_mm, float)
     shape = np.broadcast(np.asarray(temp_c, float), h, cs, c0, core, thr,
                          *(np.asarray(v, float) for v in comp_core.values()),
                          np.asarray(temper_temp_c if temper_temp_c is not None else 0.0, float),
-                         np.asarray(temper_hours, float), np.asarray(quench_temp_c, float)).shape
+                         np.asarray(temper_hours, float), np.asarray(quench_temp_c, float),
+                         np.asarray(0.0 if jmm is None else jmm)).shape
     x_max = np.broadcast_to(6.0 * np.sqrt(d_s * h * 3600.0) * 1e3, shape)
     u = np.linspace(0.0, 1.0, n_grid)
     depth = x_max[..., None] * u                                     # shape + (n,)
@@ -566,19 +727,7 @@ def effective_case_depth_mm(temp_c, hours, surface_carbon_pct, comp_core: Compos
     comp_g = {k: ex(v) for k, v in comp_core.items()}
     prof = case_hardness_profile_hrc(depth, ex(temp_c), ex(h), ex(cs), comp_g,
                                      None if temper_temp_c is None else ex(temper_temp_c),
-                                     ex(temper_hours), ex(core), ex(quench_temp_c), method, ms_method)
+                                     ex(temper_hours), ex(core), ex(quench_temp_c), method, ms_method,
+                                     None if jmm is None else ex(jmm))
     prof = np.broadcast_to(prof, shape + (n_grid,))
-    thr_b = np.broadcast_to(thr, shape)[..., None]
-    below = prof < thr_b
-    first = np.argmax(below, axis=-1)                                # first index below the threshold
-    any_below = below.any(axis=-1)
-    idx = np.clip(first, 1, n_grid - 1)
-    take = lambda a, i: np.take_along_axis(a, i[..., None], axis=-1)[..., 0]  # noqa: E731
-    h1, h0 = take(prof, idx), take(prof, idx - 1)
-    x1, x0 = take(depth, idx), take(depth, idx - 1)
-    with np.errstate(divide="ignore", invalid="ignore"):
-        frac = np.where(h0 != h1, (h0 - thr_b[..., 0]) / (h0 - h1), 0.0)
-    x = x0 + frac * (x1 - x0)
-    surface_soft = prof[..., 0] < thr_b[..., 0]
-    out = np.where(surface_soft, 0.0, np.where(any_below, x, np.inf))
-    return out
+    return depth_at_hardness_mm(depth, prof, np.broadcast_to(thr, shape))

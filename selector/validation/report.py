@@ -77,6 +77,10 @@ PLOTS = {
 QT_FILE = "reference/qt_steels.csv"
 TEMPERS_FILE = "reference/tempers_nonferrous.csv"
 BANDS_FILE = "reference/hardenability_bands.csv"
+PH_FILE = "reference/ph_typical.csv"
+#: conditions whose treatment the route families do not model (listed as not modelled, never recomputed
+#: as a neighbouring condition)
+NOT_MODELLED_CONDITIONS = {"H1150M": "double aging (760 °C, then 621 °C) is not modelled"}
 KINDS = ("typical", "minimum", "band")
 #: families whose anneal route gives the catalogue's annealed baseline properties
 BASELINE_FAMILIES = ("stainless_austenitic", "aluminium", "copper_alloy", "titanium")
@@ -104,6 +108,10 @@ TEMPERS_SCHEMA = Schema((Column("grade"), Column("condition"),
                         + _num("uts_mpa", "uts_max_mpa", "yield_mpa", "elongation_pct",
                                "reduction_area_pct", "hardness_hb", "hardness_hrc", "hardness_hv")
                         + _COMMON)
+
+PH_SCHEMA = Schema((Column("grade"), Column("condition"))
+                   + _num("solution_temp_c", "age_temp_c", "age_hours", "uts_mpa", "yield_mpa",
+                          "elongation_pct", "hardness_hrc") + _COMMON)
 
 BANDS_SCHEMA = Schema((Column("grade"),) + _num("j_sixteenths", "distance_mm", "hrc_min", "hrc_max")
                       + (Column("kind"), Column("source"), Column("table"),
@@ -293,7 +301,8 @@ def _tag_calibration(cases: list, root: Path) -> None:
         c.calibration = why
 
 
-def load_cases(files: Iterable[str] = (QT_FILE, TEMPERS_FILE, BANDS_FILE), root: Path | None = None) -> list[Case]:
+def load_cases(files: Iterable[str] = (QT_FILE, TEMPERS_FILE, PH_FILE, BANDS_FILE),
+               root: Path | None = None) -> list[Case]:
     """Every reference row of ``files`` (paths under ``data/``), mapped to a case."""
     root = Path(root) if root is not None else data_dir()
     out: list[Case] = []
@@ -304,6 +313,13 @@ def load_cases(files: Iterable[str] = (QT_FILE, TEMPERS_FILE, BANDS_FILE), root:
         elif name == TEMPERS_FILE:
             recs = read_file(root / name, TEMPERS_SCHEMA).to_dict("records")
             out += [temper_case(r, name) for r in recs]
+        elif name == PH_FILE:
+            recs = read_file(root / name, PH_SCHEMA).to_dict("records")
+            for r in recs:
+                c = temper_case({**r, "route": "age"}, name)
+                if str(r["condition"]).strip().upper() in NOT_MODELLED_CONDITIONS:
+                    c.skip_reason = NOT_MODELLED_CONDITIONS[str(r["condition"]).strip().upper()]
+                out.append(c)
         elif name == BANDS_FILE:
             recs = []
             out += band_cases(read_file(root / name, BANDS_SCHEMA), name)
@@ -434,7 +450,8 @@ HEADLINE = {
                                  False),
     "Jominy H-bands, nominal vs band mid": (None, "jominy", "band", "jominy_mid_hrc", False),
     "Jominy H-bands, lean corner vs band minimum": (None, "jominy", "band", "jominy_min_hrc", False),
-    "PH stainless aged, tensile strength": (("stainless_ph",), "age", None, "uts_mpa", True),
+    "PH stainless aged, tensile strength vs typical": (("stainless_ph",), "age", "typical", "uts_mpa", True),
+    "PH stainless aged, yield strength vs typical": (("stainless_ph",), "age", "typical", "yield_mpa", True),
 }
 
 

@@ -8,7 +8,8 @@ An ``age`` step takes ``temp_c`` and ``hours``, or a temper ``designation``
 aging.  Two-step schedules (7075-T73) add their temperature-compensated times.
 
 Model: Shercliff & Ashby (1990) process model, calibrated per alloy
-(:mod:`selector.models.aging`, ``data/aging_calibration.csv``); the over-aging ratio
+(:mod:`selector.models.aging`, ``data/aging_calibration.csv``; 17-4PH / 15-5PH from the
+offline fit ``data/fits/aging_ph_coefficients.csv``); the over-aging ratio
 P/P_p is returned as ``peak_ratio`` and past the peak a note warns.
 """
 from __future__ import annotations
@@ -68,8 +69,9 @@ class Age(RouteFamily):
     families = ("aluminium", "stainless_ph", "copper_alloy")
     references = (
         "H.R. Shercliff & M.F. Ashby, Acta Metall. Mater. 38 (1990) 1789-1802 and 1803-1812 (aging process model)",
-        "calibration: Aluminum Association typical tempers, ASTM A564 (17-4PH, 15-5PH), ASTM B196 (C17200); "
-        "data/aging_calibration.csv",
+        "calibration: Aluminum Association typical tempers, ASTM B196 (C17200): data/aging_calibration.csv; "
+        "17-4PH / 15-5PH: typical values (Aerospace Structural Metals Handbook, from memory) fitted offline by "
+        "scripts/fit_aging_ph.py (data/fits/aging_ph_coefficients.csv); ASTM A564 minimums checked",
         "ANSI H35.1 (T tempers); AMS 2770 / ASTM B918 (aluminium schedules); AMS 5622 (17-4PH schedules)",
     )
 

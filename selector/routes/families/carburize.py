@@ -10,9 +10,12 @@ Chain of models:
    (:func:`selector.routes.families.quench_temper.through_harden`: Grossmann H,
    conduction cooling, ASTM A255 Jominy curve, Hollomon–Jaffe tempering), quenched
    from the carburizing temperature (direct) or the reheat temperature;
-2. case: carbon profile (Tibbetts 1980 D, Crank erf solution), local martensite
-   hardness, low temper, Koistinen–Marburger retained austenite
-   (:mod:`selector.models.carburizing`), riding on the local core hardness;
+2. case: carbon profile (Tibbetts 1980 D, Crank erf solution); each depth hardens
+   with its own carbon and hardenability at its own cooling: the quench chain
+   (:func:`selector.routes.quench_response.as_quenched_profile`, ASTM A255 at the
+   local composition) is run at every carbon level of :data:`CARBON_FRACTIONS` and
+   read at the depth's r/R (:func:`case_table`, :func:`case_hv_at`); low temper and
+   Koistinen–Marburger retained austenite (:mod:`selector.models.carburizing`);
 3. effective case depth to 50 HRC (SAE J423 / ISO 2639);
 4. tensile properties: those of the core at the ASTM A370 location (the case is not
    included).
@@ -25,6 +28,7 @@ from ...errors import RouteError
 from ...models import carburizing, conversions, validity
 from ...models.composition import el
 from .base import Batch, RouteFamily, at_position, product_grid
+from .. import quench_response
 from .quench_temper import default_austenitize_c, through_harden
 
 ROUTE = "carburize"
@@ -34,6 +38,17 @@ HRC_FLOOR = 20.0
 #: extra r/R positions near the surface so the profile resolves the case
 CASE_POSITIONS = (0.995, 0.99, 0.98, 0.97, 0.96, 0.95, 0.94, 0.92, 0.90)
 HARDENING = ("direct", "reheat")
+#: carbon levels of the case table, as fractions (C - C0)/(Cs - C0); denser at low
+#: fractions, where the 50 HRC point of a carburized case falls
+CARBON_FRACTIONS = (0.0, 0.05, 0.10, 0.15, 0.20, 0.25, 0.30, 0.40, 0.50, 0.70, 1.0)
+#: r/R positions of the case table (dense near the surface, where the case lies).  With
+#: these 11 x 12 nodes and :data:`ECD_GRID` the effective case depth is within about 1 %
+#: of a 41 x 41-node table with 401 depths (8620/4320/9310/1018, 10-100 mm, oil/water)
+TABLE_POSITIONS = (1.0, 0.995, 0.99, 0.98, 0.97, 0.95, 0.92, 0.88, 0.80, 0.60, 0.30, 0.0)
+#: depths of the effective-case search, from the surface to 6 sqrt(D t)
+ECD_GRID = 101
+#: effective case criterion, HRC (SAE J423; ISO 2639 uses 550 HV)
+ECD_THRESHOLD_HRC = 50.0
 
 
 def _hrc(hv):
@@ -156,49 +171,36 @@ class Carburize(RouteFamily):
         t_t = np.asarray(p["temper_temp_c"], float)
         t_h = np.asarray(p["temper_hours"], float)
         tempered = np.isfinite(t_t)
-        res = through_harden(batch, p["quench"], p["agitation"], np.asarray(p["austenitize_c"], float),
-                             t_t, t_h)
+        aust = np.asarray(p["austenitize_c"], float)
+        res = through_harden(batch, p["quench"], p["agitation"], aust, t_t, t_h)
         core_pos = np.asarray(res["profile_positions"], float)
         pos = merged_positions(core_pos)
         core_hv = resample(res["profile_hv"], core_pos, pos)              # (n, m)
         section = batch.section_mm
-        depth = (1.0 - pos)[None, :] * section[:, None] / 2.0             # (n, m) mm
-
         comp = batch.comp
-        comp2 = {k: np.asarray(v, float)[:, None] for k, v in comp.items()}
         c0 = el(comp, "C")
         cs_eff = np.maximum(cs, c0 + 1e-6)
-        # temper None-handling per state: untempered states use as-quenched hardness
-        t_use = np.where(tempered, t_t, 150.0)
-        h_use = np.where(tempered, t_h, 1.0)
 
-        core_hrc = _hrc(core_hv)
-        args = (depth, _col(temp), _col(hours), _col(cs_eff), comp2)
-        case_hrc = np.where(_col(tempered),
-                            carburizing.case_hardness_profile_hrc(*args, _col(t_use), _col(h_use), core_hrc),
-                            carburizing.case_hardness_profile_hrc(*args, None, 1.0, core_hrc))
-        case_hv = conversions.hrc_to_hv(case_hrc)
-        at_floor = case_hrc <= HRC_FLOOR + 1e-9
-        prof_hv = np.where(at_floor | ~np.isfinite(case_hv), core_hv, np.maximum(case_hv, core_hv))
+        table = case_table(batch, p["quench"], p["agitation"], aust, cs_eff, t_t, t_h)
 
-        # effective case depth, with the core hardness just beneath the total case
-        tcd = carburizing.total_case_depth_mm(temp, hours, cs_eff, c0)
-        r_under = np.clip(1.0 - 2.0 * np.nan_to_num(tcd) / section, 0.0, 1.0)
-        core_under_hrc = _hrc(at_position(core_hv, pos, r_under))
-        ecd_t = carburizing.effective_case_depth_mm(temp, hours, cs_eff, comp, t_use, h_use, core_under_hrc)
-        ecd_q = carburizing.effective_case_depth_mm(temp, hours, cs_eff, comp, None, 1.0, core_under_hrc)
-        ecd = np.where(tempered, ecd_t, ecd_q)
+        # hardness profile at the reported positions: each depth its own carbon and cooling
+        depth = (1.0 - pos)[None, :] * section[:, None] / 2.0             # (n, m) mm
+        case_hv = case_hv_at(table, depth, pos[None, :], temp, hours, cs_eff, c0)
+        prof_hv = np.maximum(case_hv, core_hv)
+
+        # effective case depth on a fine depth grid through the case
+        d_rep = carburizing.representative_diffusivity_m2_s(temp, cs_eff, c0)
+        x_max = np.minimum(6.0 * np.sqrt(d_rep * hours * 3600.0) * 1e3, section / 2.0)
+        x = x_max[:, None] * np.linspace(0.0, 1.0, ECD_GRID)[None, :]
+        r = 1.0 - 2.0 * x / section[:, None]
+        hv_x = case_hv_at(table, x, r, temp, hours, cs_eff, c0)
+        ecd = carburizing.depth_at_hardness_mm(x, hv_x, conversions.hrc_to_hv(ECD_THRESHOLD_HRC))
         ecd = np.minimum(ecd, section / 2.0)
-
-        surf_core_hrc = _hrc(core_hv[:, 0])
-        surf_hq = carburizing.case_hardness_profile_hrc(0.0, temp, hours, cs_eff, comp, None, 1.0, surf_core_hrc)
-        surf_ht = carburizing.case_hardness_profile_hrc(0.0, temp, hours, cs_eff, comp, t_use, h_use,
-                                                        surf_core_hrc)
-        surf_hv = conversions.hrc_to_hv(np.where(tempered, surf_ht, surf_hq))
+        tcd = carburizing.total_case_depth_mm(temp, hours, cs_eff, c0)
 
         res["profile_hv"] = prof_hv
         res["profile_positions"] = pos
-        res["surface_hardness_hv"] = np.maximum(surf_hv, core_hv[:, 0])
+        res["surface_hardness_hv"] = np.maximum(table["hv"][:, -1, 0], core_hv[:, 0])
         res["case_depth_mm"] = ecd
         res["total_case_depth_mm"] = tcd
         res["surface_retained_austenite_pct"] = carburizing.retained_austenite_pct(cs_eff, comp)
@@ -213,8 +215,12 @@ class Carburize(RouteFamily):
                       carburizing.high_surface_carbon_mask(cs)))
         plain = np.isin(batch.attr("family").astype(str), ("carbon_steel",))
         slow = np.isin(np.asarray(p["quench"]).astype(str), ("oil", "polymer", "air"))
-        notes.append(("plain-carbon grade quenched in oil/polymer: the case may not harden fully; the model "
-                      "assumes it does (common practice: water or brine for plain-carbon cases)", plain & slow))
+        notes.append(("plain-carbon grade quenched in oil/polymer: the case hardens only where its own "
+                      "carbon and the local cooling allow (estimated here); common practice is water or brine "
+                      "for plain-carbon cases", plain & slow))
+        surface_soft = table["hv"][:, -1, 0] < conversions.hrc_to_hv(ECD_THRESHOLD_HRC)
+        notes.append(("the carburized surface does not reach 50 HRC at this section and quench: no effective "
+                      "case (SAE J423); a faster quench or a more hardenable grade is needed", surface_soft))
         direct = np.asarray(p["hardening"]).astype(str) == "direct"
         notes.append(("direct quench from above 930 °C: grain growth in coarse-grained heats; prefer "
                       "fine-grained steel or a reheat quench (common practice)", direct & (temp > 930.0)))
@@ -232,6 +238,67 @@ class Carburize(RouteFamily):
             notes += [(w, np.ones(1, bool)) for w in qw]
         res["notes"] = notes
         return res
+
+
+def case_table(batch: Batch, quench, agitation, austenitize_c, surface_carbon_pct, temper_temp_c,
+               temper_hours) -> dict:
+    """Tempered hardness of the section at each carbon level of the case, HV.
+
+    For every carbon level C_k = C0 + f_k (Cs - C0) (:data:`CARBON_FRACTIONS`) the
+    state's composition with that carbon runs through the quench chain of the
+    quench-and-temper route (:func:`selector.routes.quench_response.as_quenched_profile`:
+    Grossmann H → conduction cooling at each r/R of :data:`TABLE_POSITIONS` →
+    Jominy-equivalent distance → ASTM A255 hardness of that composition), so each
+    depth hardens with its own carbon and hardenability at its own cooling; the
+    result is tempered and mixed with retained austenite by
+    :func:`selector.models.carburizing.case_hardness_hv`.
+
+    Returns dict ``hv`` (n, n_levels, n_positions), ``fractions`` and ``positions``.
+    """
+    comp = batch.comp
+    c0 = el(comp, "C")
+    cs = np.asarray(surface_carbon_pct, float)
+    size = ({"diameter_mm": batch.diameter_mm} if not np.all(np.isnan(batch.diameter_mm))
+            else {"thickness_mm": batch.thickness_mm})
+    frac = np.asarray(CARBON_FRACTIONS, float)
+    n, k = batch.n, len(frac)
+    # one call of the chain for every (state, carbon level): states stacked level by level
+    tile = lambda a: np.tile(np.broadcast_to(np.asarray(a), (n,)), k)  # noqa: E731
+    local = {e: tile(v) for e, v in comp.items()}
+    local["C"] = (c0[None, :] + frac[:, None] * (cs - c0)[None, :]).reshape(-1)
+    prof = quench_response.as_quenched_profile(local, tile(quench), tile(agitation),
+                                               austenitize_c=tile(austenitize_c), positions=TABLE_POSITIONS,
+                                               **{key: tile(v) for key, v in size.items()})
+    aq_hv = np.asarray(prof["hardness_hv"], float).reshape(k, n, -1).transpose(1, 0, 2)   # (n, k, p)
+    c_k = (c0[:, None] + frac[None, :] * (cs - c0)[:, None])[:, :, None]
+    comp3 = {k: np.asarray(v, float)[:, None, None] for k, v in comp.items()}
+    t = np.asarray(temper_temp_c, float)[:, None, None]
+    h = np.asarray(temper_hours, float)[:, None, None]
+    hv = carburizing.case_hardness_hv(aq_hv, c_k, comp3, t, np.where(np.isfinite(h), h, 1.0))
+    return {"hv": hv, "fractions": frac, "positions": np.asarray(TABLE_POSITIONS, float)}
+
+
+def case_hv_at(table: dict, depth_mm, positions, temp_c, hours, surface_carbon_pct, core_carbon_pct):
+    """Hardness (HV) at ``depth_mm`` / r/R ``positions`` (arrays (n, k)) read from
+    :func:`case_table`: the local carbon from the erf profile
+    (:func:`selector.models.carburizing.carbon_profile_pct`), then bilinear
+    interpolation in carbon fraction and position."""
+    col = lambda a: np.asarray(a, float)[:, None]  # noqa: E731
+    c = carburizing.carbon_profile_pct(depth_mm, col(temp_c), col(hours), col(surface_carbon_pct),
+                                       col(core_carbon_pct))
+    span = col(surface_carbon_pct) - col(core_carbon_pct)
+    f = np.clip((c - col(core_carbon_pct)) / np.where(span > 0, span, 1.0), 0.0, 1.0)
+    hv = table["hv"]
+    fr = table["fractions"]
+    s_nodes = 1.0 - table["positions"]                                    # depth fraction, increasing
+    s = np.clip(1.0 - np.broadcast_to(np.asarray(positions, float), f.shape), 0.0, 1.0)
+    jf = np.clip(np.searchsorted(fr, f, side="right") - 1, 0, len(fr) - 2)
+    wf = np.clip((f - fr[jf]) / (fr[jf + 1] - fr[jf]), 0.0, 1.0)
+    jp = np.clip(np.searchsorted(s_nodes, s, side="right") - 1, 0, len(s_nodes) - 2)
+    wp = np.clip((s - s_nodes[jp]) / (s_nodes[jp + 1] - s_nodes[jp]), 0.0, 1.0)
+    i = np.arange(hv.shape[0])[:, None]
+    return ((1 - wf) * (1 - wp) * hv[i, jf, jp] + wf * (1 - wp) * hv[i, jf + 1, jp]
+            + (1 - wf) * wp * hv[i, jf, jp + 1] + wf * wp * hv[i, jf + 1, jp + 1])
 
 
 def _col(a):
