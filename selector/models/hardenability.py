@@ -57,9 +57,9 @@ import numpy as np
 
 from ..catalogue.loader import Column, Schema, read_table
 from ..errors import DataFileError, InputError
+from . import cooling, validity
 from .composition import el
-from .martensite import ih_hrc
-from . import validity
+from .martensite import ih_hrc, martensite_hardness_hrc
 
 A255 = "ASTM A255-10 §1.3 (calculation method composition limits)"
 
@@ -73,6 +73,16 @@ validity.register("a255_dividing_factors", {"di_mm": (10.0, 160.0, "mm"), "dista
 validity.register("a255_grain_size", {"grain_size_astm": (5.0, 9.0, "")},
                   "Grossmann chart ratios (grain size 4-8), fit 1.08^(7-G)")
 
+validity.register("high_carbon_fallback", {"C": (0.70, 1.10, "wt%")},
+                  "fallback above the A255 range: carbon in austenite from the Fe-Fe3C Acm line, "
+                  "A255 carbon-factor fit to 0.90 % C, IH held at its 0.70 % C value (docs/methods/hardenability.md)")
+
+#: Fe–Fe3C diagram: eutectoid (0.77 % C, 727 °C) and austenite at the eutectic (2.11 % C, 1148 °C)
+EUTECTOID_PCT, EUTECTOID_C = 0.77, 727.0
+AUSTENITE_MAX_PCT, EUTECTIC_C = 2.11, 1148.0
+#: upper end of the A255 composition range for carbon, wt %
+A255_C_MAX = 0.70
+
 #: Jominy distance of the first reading (J1 = 1/16 in), mm
 J1_MM = 1.5875
 #: boron content above which a steel counts as boron-treated, wt % (A255)
@@ -84,6 +94,49 @@ _DI_GRID = np.arange(_DI_LO_MM, _DI_HI_MM + 0.5, 1.0)
 
 
 # ----------------------------------------------------------------------------- DI
+def austenite_carbon_pct(c_pct, austenitize_c):
+    """Carbon dissolved in austenite at the austenitizing temperature (fallback for C > 0.70 %).
+
+    A hypereutectoid steel hardened from between Ac1 and Acm keeps proeutectoid carbide; only
+    the carbon the austenite can hold hardens and sets the hardenability.  Straight-line Acm of
+    the Fe–Fe3C diagram between (0.77 %, 727 °C) and (2.11 %, 1148 °C):
+
+        C_γ = min(C, 0.77 + (T − 727)·(2.11 − 0.77)/(1148 − 727))   (T ≥ 727 °C)
+
+    Hypoeutectoid steels are returned unchanged.  Alloy carbides (Cr in 52100) dissolve less
+    than the binary line says, so C_γ is an upper estimate for them.
+
+    Parameters
+    ----------
+    c_pct : array_like
+        Carbon of the steel, wt %.
+    austenitize_c : array_like
+        Austenitizing temperature, °C.
+
+    Returns
+    -------
+    ndarray, wt %.
+
+    Validity
+    --------
+    ``high_carbon_fallback``: C 0.70–1.10 % (plain carbon and low-alloy bearing steels).
+
+    References
+    ----------
+    Fe–Fe3C phase diagram, eutectoid 0.77 % C / 727 °C and 2.11 % C / 1148 °C (e.g. Callister,
+    Materials Science and Engineering, Fig. 9.24; common practice).
+
+    Examples
+    --------
+    1095 (0.95 % C) at 780 °C: C_γ = 0.77 + 53 × 0.00318 = 0.94 %.
+    """
+    c = np.asarray(c_pct, float)
+    t = np.asarray(austenitize_c, float)
+    acm = EUTECTOID_PCT + (np.maximum(t, EUTECTOID_C) - EUTECTOID_C) * (
+        (AUSTENITE_MAX_PCT - EUTECTOID_PCT) / (EUTECTIC_C - EUTECTOID_C))
+    return np.where(c > EUTECTOID_PCT, np.minimum(c, acm), c)
+
+
 def carbon_factor_in(c_pct, grain_size_astm=7.0):
     """Carbon base DI (inches) for ASTM grain size G (A255 carbon factor, fitted form).
 
@@ -228,16 +281,97 @@ def dividing_factor(di_mm_value, distance_mm):
             + (1 - wi) * wj * df[i, j + 1] + wi * wj * df[i + 1, j + 1])
 
 
+#: limits of the DI-consistency distance scale
+DI_SCALE_LIMITS = (0.5, 1.5)
+_J_GRID_MM = np.geomspace(J1_MM, 50.0, 96)
+
+
+def j50_mm(c_pct, di_mm_value):
+    """Distance (mm) at which the raw fallback curve IH(C)/DF(DI, d) falls to the 50 %-martensite
+    hardness of the carbon (Hodge & Orehoski); NaN where it stays above it out to 50 mm.
+
+    Parameters
+    ----------
+    c_pct, di_mm_value : array (n,)
+        Carbon (wt %) and ideal critical diameter (mm).
+
+    Returns
+    -------
+    ndarray (n,), mm.
+    """
+    c = np.asarray(c_pct, float).reshape(-1)
+    di = np.asarray(di_mm_value, float).reshape(-1)
+    curve = ih_hrc(c)[:, None] / dividing_factor(di[:, None], _J_GRID_MM[None, :])
+    h50 = martensite_hardness_hrc(c, 50.0)[:, None]
+    below = curve <= h50
+    has = below.any(axis=1)
+    k = np.clip(np.where(has, np.argmax(below, axis=1), 1), 1, len(_J_GRID_MM) - 1)
+    rows = np.arange(len(c))
+    y0, y1 = curve[rows, k - 1], curve[rows, k]
+    x0, x1 = _J_GRID_MM[k - 1], _J_GRID_MM[k]
+    t = np.clip((y0 - h50[:, 0]) / np.maximum(y0 - y1, 1e-9), 0.0, 1.0)
+    return np.where(has, x0 + t * (x1 - x0), np.nan)
+
+
+def di_distance_scale(c_pct, di_mm_value):
+    """Distance scale s that makes the fallback Jominy curve honour the definition of DI.
+
+    Definition (Grossmann 1952; ASTM A255): the centre of a round of diameter DI quenched
+    ideally (H → ∞) is 50 % martensite.  That centre cools like the Jominy distance
+    J_ideal(DI) (:func:`selector.models.cooling.ideal_centre_jominy_mm`, the chart-anchored
+    cooling), so the steel's Jominy curve must reach the 50 %-martensite hardness of its carbon
+    there.  The polynomial dividing-factor fallback does not (its 50 % point J50 lies 0.8–1.3 ×
+    J_ideal(DI) for catalogue steels), so the curve is read at a scaled distance:
+
+        HRC(d) = IH(C) / DF(DI, s·d),   s = J50 / J_ideal(DI)
+
+    which puts its 50 % point at J_ideal(DI) and leaves J1 (DF = 1) unchanged.  s is clipped to
+    :data:`DI_SCALE_LIMITS` and is 1 where the raw curve never falls to the 50 % hardness by 50 mm.
+    Computed once per distinct (C, DI) pair.
+
+    Parameters
+    ----------
+    c_pct, di_mm_value : array_like (broadcast together)
+        Carbon (wt %) and ideal critical diameter (mm).
+
+    Returns
+    -------
+    ndarray, dimensionless, the broadcast shape.
+
+    References
+    ----------
+    Grossmann, Elements of Hardenability (ASM 1952); ASTM A255-10 (definition of DI);
+    Hodge & Orehoski, Trans. AIME 167 (1946) 627 (50 % martensite hardness).
+    """
+    c, di = np.broadcast_arrays(np.asarray(c_pct, float), np.asarray(di_mm_value, float))
+    shape = c.shape
+    pairs, inverse = np.unique(np.stack([c.reshape(-1), di.reshape(-1)], axis=1), axis=0, return_inverse=True)
+    j50 = j50_mm(pairs[:, 0], pairs[:, 1])
+    ji = cooling.ideal_centre_jominy_mm(pairs[:, 1])
+    with np.errstate(divide="ignore", invalid="ignore"):
+        s = (j50 - J1_MM) / (ji - J1_MM)
+    s = np.clip(np.where(np.isfinite(s) & (ji > J1_MM + 1e-6), s, 1.0), *DI_SCALE_LIMITS)
+    return s[inverse.reshape(-1)].reshape(shape)
+
+
 def jominy_hardness_hrc(comp, distance_mm, grain_size_astm=7):
     """Jominy hardness (HRC) at ``distance_mm``, broadcast elementwise with ``comp`` (ASTM A255).
 
-    HRC = IH(C) / DF(DI, d).  See :func:`jominy_curve_hrc` for the curve form.
+    HRC = IH(C) / DF(DI, J1 + s·(d − J1)), s = :func:`di_distance_scale` (the DI definition).  See
+    :func:`jominy_curve_hrc` for the curve form.
     """
     d = np.asarray(distance_mm, float)
     if np.any(np.isnan(d)) or np.any(d < 0):
         raise InputError("distances_mm", distance_mm, "distances >= 0 mm from the quenched end")
-    di = di_mm(comp, grain_size_astm)
-    return ih_hrc(el(comp, "C")) / dividing_factor(di, d)
+    di = np.asarray(di_mm(comp, grain_size_astm), float)
+    c = el(comp, "C") * np.ones(di.shape)
+    return ih_hrc(c) / dividing_factor(di, scaled_distance_mm(d, di_distance_scale(c, di)))
+
+
+def scaled_distance_mm(distance_mm, scale):
+    """J1 + s·(d − J1), never below 0: the distance at which the fallback dividing factors are read."""
+    d = np.asarray(distance_mm, float)
+    return np.maximum(J1_MM + np.asarray(scale, float) * (d - J1_MM), 0.0)
 
 
 def jominy_curve_hrc(comp, distances_mm, grain_size_astm=7):
