@@ -66,6 +66,9 @@ GEOMETRIES = ("cylinder", "plate")
 
 REFERENCE = "Carslaw & Jaeger (1959) series; constant k = 27 W/mK, rho c = 4.6 MJ/m3K (from memory)"
 validity.register("quench_cooling", {"biot": (1e-3, 100.0, ""), "theta": (0.50, 0.98, "")}, REFERENCE)
+validity.register("jominy_rate_factor", {"biot": (0.05, 100.0, "")},
+                  "rate factor fitted on bar centres at Bi = H*D 0.6 to ideal (data/reference/"
+                  "jominy_equivalence_charts.csv), checked on a 12.5 mm oil probe (Bi 0.14)")
 validity.register("jominy_equivalence", {"cooling_rate_c_s": (1.9, 270.0, "C/s")},
                   "Jominy cooling rates at 705 C, data/jominy_cooling_rates.csv (J1-J32)")
 

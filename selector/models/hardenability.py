@@ -283,34 +283,65 @@ def dividing_factor(di_mm_value, distance_mm):
 
 #: limits of the DI-consistency distance scale
 DI_SCALE_LIMITS = (0.5, 1.5)
-_J_GRID_MM = np.geomspace(J1_MM, 50.0, 96)
+
+
+#: grid of the ratio IH / H50 of the J50 table (IH(C)/H50(C) lies 1.25-1.45 over C 0.1-0.7 %)
+_R_GRID = np.linspace(1.0, 3.0, 201)
+_J_FINE_MM = np.geomspace(J1_MM, 50.0, 400)
+
+
+def j50_table():
+    """J50 (mm) on the (DI grid, R grid): the distance at which DF(DI, d) first reaches R.
+
+    The raw fallback curve IH(C)/DF(DI, d) falls to the 50 %-martensite hardness H50(C) where
+    DF = R = IH(C)/H50(C), so J50 depends on (DI, R) only.  A pure function of the data file
+    (a disk cache may wrap it); NaN where DF stays below R out to 50 mm.
+
+    Returns
+    -------
+    (di_grid_mm, r_grid, j50_mm) with shapes (151,), (201,), (151, 201).
+    """
+    df = dividing_factor(_DI_GRID[:, None], _J_FINE_MM[None, :])            # (nDI, nd), non-decreasing in d
+    out = np.full((len(_DI_GRID), len(_R_GRID)), np.nan)
+    ramp = np.arange(len(_J_FINE_MM)) * 1e-12                                 # strictly increasing for interp
+    for i in range(len(_DI_GRID)):                                            # 151 rows, once per process
+        row = df[i] + ramp
+        j = np.interp(_R_GRID, row, _J_FINE_MM)
+        out[i] = np.where(_R_GRID <= row[-1], j, np.nan)
+    return _DI_GRID, _R_GRID, out
+
+
+@functools.cache
+def _j50_cached():
+    return j50_table()
 
 
 def j50_mm(c_pct, di_mm_value):
     """Distance (mm) at which the raw fallback curve IH(C)/DF(DI, d) falls to the 50 %-martensite
     hardness of the carbon (Hodge & Orehoski); NaN where it stays above it out to 50 mm.
 
+    Bilinear interpolation of :func:`j50_table` in (DI, R = IH/H50); DI held within 10–160 mm.
+
     Parameters
     ----------
-    c_pct, di_mm_value : array (n,)
+    c_pct, di_mm_value : array_like (broadcast together)
         Carbon (wt %) and ideal critical diameter (mm).
 
     Returns
     -------
-    ndarray (n,), mm.
+    ndarray, mm, the broadcast shape.
     """
-    c = np.asarray(c_pct, float).reshape(-1)
-    di = np.asarray(di_mm_value, float).reshape(-1)
-    curve = ih_hrc(c)[:, None] / dividing_factor(di[:, None], _J_GRID_MM[None, :])
-    h50 = martensite_hardness_hrc(c, 50.0)[:, None]
-    below = curve <= h50
-    has = below.any(axis=1)
-    k = np.clip(np.where(has, np.argmax(below, axis=1), 1), 1, len(_J_GRID_MM) - 1)
-    rows = np.arange(len(c))
-    y0, y1 = curve[rows, k - 1], curve[rows, k]
-    x0, x1 = _J_GRID_MM[k - 1], _J_GRID_MM[k]
-    t = np.clip((y0 - h50[:, 0]) / np.maximum(y0 - y1, 1e-9), 0.0, 1.0)
-    return np.where(has, x0 + t * (x1 - x0), np.nan)
+    gd, gr, tab = _j50_cached()
+    c, di = np.broadcast_arrays(np.asarray(c_pct, float), np.asarray(di_mm_value, float))
+    r = np.clip(ih_hrc(c) / martensite_hardness_hrc(c, 50.0), gr[0], gr[-1])
+    fd = (np.clip(di, gd[0], gd[-1]) - gd[0]) / (gd[1] - gd[0])
+    i = np.clip(np.floor(fd).astype(int), 0, len(gd) - 2)
+    wi = fd - i
+    fr = (r - gr[0]) / (gr[1] - gr[0])
+    k = np.clip(np.floor(fr).astype(int), 0, len(gr) - 2)
+    wk = fr - k
+    return ((1 - wi) * (1 - wk) * tab[i, k] + wi * (1 - wk) * tab[i + 1, k]
+            + (1 - wi) * wk * tab[i, k + 1] + wi * wk * tab[i + 1, k + 1])
 
 
 def di_distance_scale(c_pct, di_mm_value):
@@ -327,7 +358,7 @@ def di_distance_scale(c_pct, di_mm_value):
 
     which puts its 50 % point at J_ideal(DI) and leaves J1 (DF = 1) unchanged.  s is clipped to
     :data:`DI_SCALE_LIMITS` and is 1 where the raw curve never falls to the 50 % hardness by 50 mm.
-    Computed once per distinct (C, DI) pair.
+    Vectorised: table look-ups only (:func:`j50_table`, :func:`cooling.ideal_centre_rate_table`).
 
     Parameters
     ----------
@@ -344,14 +375,11 @@ def di_distance_scale(c_pct, di_mm_value):
     Hodge & Orehoski, Trans. AIME 167 (1946) 627 (50 % martensite hardness).
     """
     c, di = np.broadcast_arrays(np.asarray(c_pct, float), np.asarray(di_mm_value, float))
-    shape = c.shape
-    pairs, inverse = np.unique(np.stack([c.reshape(-1), di.reshape(-1)], axis=1), axis=0, return_inverse=True)
-    j50 = j50_mm(pairs[:, 0], pairs[:, 1])
-    ji = cooling.ideal_centre_jominy_mm(pairs[:, 1])
+    j50 = j50_mm(c, di)
+    ji = cooling.ideal_centre_jominy_mm(di)
     with np.errstate(divide="ignore", invalid="ignore"):
         s = (j50 - J1_MM) / (ji - J1_MM)
-    s = np.clip(np.where(np.isfinite(s) & (ji > J1_MM + 1e-6), s, 1.0), *DI_SCALE_LIMITS)
-    return s[inverse.reshape(-1)].reshape(shape)
+    return np.clip(np.where(np.isfinite(s) & (ji > J1_MM + 1e-6), s, 1.0), *DI_SCALE_LIMITS)
 
 
 def jominy_hardness_hrc(comp, distance_mm, grain_size_astm=7):

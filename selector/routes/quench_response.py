@@ -190,6 +190,10 @@ def as_quenched_profile(comp, quench, agitation="moderate", diameter_mm=None, th
     bi = cooling.biot_number(h_w, **kw)
     warn(bi > 100.0, "Biot number above 100: surface cooling rate taken at Bi = 100",
          lambda i: f"{q[i]}/{a[i]}, {size[i]:g} mm")
+    bi_lo = validity.get("jominy_rate_factor").ranges["biot"][0]
+    warn(bi < bi_lo, f"jominy_rate_factor: Biot number below {bi_lo:g} "
+                     f"({validity.get('jominy_rate_factor').reference}): effective cooling rate extrapolated",
+         lambda i: f"{q[i]}/{a[i]}, {size_name} = {size[i]:g}, Bi = {bi[i]:.3f}")
 
     # Jominy equivalence and A255 hardness
     # carbon in austenite: the steel's carbon, or for hypereutectoid steels what the Acm line lets
@@ -224,6 +228,9 @@ def as_quenched_profile(comp, quench, agitation="moderate", diameter_mm=None, th
          "Fe-Fe3C Acm line at the austenitizing temperature, A255 carbon factor fitted to 0.90 % C, "
          "initial hardness held at its 0.70 % C value; docs/methods/hardenability.md)",
          lambda i: f"C = {c_steel[i]:.2f} wt%, in austenite {c[i]:.2f} wt% at {t0[i]:.0f} C")
+    hc_hi = validity.get("high_carbon_fallback").ranges["C"][1]
+    warn(c_steel > hc_hi + 1e-9, f"high_carbon_fallback: C above {hc_hi:g} wt%, beyond the range the fallback "
+                                 "is stated for; hardenability extrapolated", lambda i: f"C = {c_steel[i]:.2f} wt%")
     centre = int(np.argmin(pos))
     warn(mart[:, centre] < 50.0, "as-quenched centre below 50 % martensite (not through-hardened)",
          lambda i: f"{q[i]}/{a[i]}, {size_name} = {size[i]:g}, centre {mart[i, centre]:.0f} % martensite")
