@@ -107,3 +107,51 @@ def test_mid_range_jominy_curve_inside_h_band(grade):
 def test_validity_registration():
     assert validity.check("astm_a255", **_mid("4340H"))           # Ni 1.78 > 1.50 (A255 §1.3)
     assert not validity.check("astm_a255", **_mid("4140H"))
+
+
+# --------------------------------------------------------------------------- residual elements (item: real heats)
+CARBON = ("1018", "1020", "1035", "1040", "1045", "1050", "1060", "1080", "1095", "1144")
+# SAE J403 / ASTM A29 note on incidental elements of carbon steels (from memory, as tagged in
+# data/compositions.csv): maxima when not specified
+J403_RESIDUAL_MAX = {"Cu": 0.20, "Ni": 0.20, "Cr": 0.15, "Mo": 0.06}
+
+
+def test_carbon_steels_carry_residual_limits():
+    import selector
+    for gid in CARBON:
+        g = selector.grade(gid)
+        for e, mx in J403_RESIDUAL_MAX.items():
+            assert g.comp_min[e] == 0.0 and g.comp_max[e] == pytest.approx(mx), (gid, e)
+        assert g.composition("lean")["Cu"] == 0.0
+        assert g.composition("nominal")["Cr"] == pytest.approx(0.075)
+
+
+def test_residuals_raise_di_by_the_a255_factors():
+    # A255 multiplying factors at half the J403 maxima: Cu 1 + 0.365*0.10, Ni 1 + 0.363*0.10,
+    # Cr 1 + 2.16*0.075, Mo 1 + 3.00*0.03 -> product 1.3595 (computed from the published factor forms)
+    import selector
+    nominal = selector.grade("1045").composition("nominal")
+    bare = {k: v for k, v in nominal.items() if k not in J403_RESIDUAL_MAX}
+    ratio = hd.ideal_critical_diameter_in(nominal) / hd.ideal_critical_diameter_in(bare)
+    assert ratio == pytest.approx(1.0365 * 1.0363 * 1.162 * 1.09, rel=1e-3)
+    # a heat analysis is just a composition dict: its values override the catalogue's
+    heat = dict(nominal, Cu=0.30, Cr=0.02)
+    assert hd.alloy_factors(heat)["Cu"] == pytest.approx(1.1095)
+    assert hd.ideal_critical_diameter_in(heat) < hd.ideal_critical_diameter_in(nominal)
+
+
+def test_jominy_curve_honours_the_di_definition_and_keeps_j1():
+    # Grossmann 1952 / ASTM A255: the curve reaches the 50 %-martensite hardness at the Jominy
+    # distance of the centre of an ideally quenched DI round; J1 stays the initial hardness IH.
+    from selector.models import cooling
+    from selector.models.martensite import martensite_hardness_hrc
+    comp = {"C": np.array([0.40, 0.20, 0.60]), "Mn": np.array([0.85, 0.80, 0.90]), "Si": 0.25,
+            "Cr": np.array([0.95, 0.50, 0.80]), "Mo": np.array([0.20, 0.20, 0.0]), "Ni": np.array([0.0, 0.55, 0.0])}
+    di = hd.di_mm(comp)
+    s = hd.di_distance_scale(comp["C"], di)
+    j = cooling.ideal_centre_jominy_mm(di)
+    h = hd.jominy_hardness_hrc(comp, j)
+    ok = (s > hd.DI_SCALE_LIMITS[0]) & (s < hd.DI_SCALE_LIMITS[1])
+    assert ok.sum() >= 2
+    assert np.allclose(h[ok], martensite_hardness_hrc(comp["C"], 50.0)[ok], atol=0.6)
+    assert np.allclose(hd.jominy_hardness_hrc(comp, hd.J1_MM), ih_hrc(comp["C"]))

@@ -63,3 +63,27 @@ def test_every_row_has_source_and_confidence():
     assert len(t) == len(qs.MEDIA) * len(qs.AGITATIONS)
     assert (t["source"].str.len() > 0).all()
     assert set(t["confidence"]) <= {"verified", "partial", "from memory", "common practice"}
+
+
+def test_agitated_values_inside_the_classic_ranges():
+    # Grossmann 1952 H table as reproduced in ASM Handbook Vol. 4 (models reference sheet §2, from
+    # memory): oil mild 0.30-0.35, moderate 0.35-0.40, strong 0.50-0.80; water mild 1.0-1.1,
+    # moderate 1.2-1.3, strong 1.6-2.0; brine mild 2.0-2.2. Polymer (PAG) is not in Grossmann's table:
+    # typical 0.3-1.2 (sheet §2, low confidence).
+    ranges = {("oil", "mild"): (0.30, 0.35), ("oil", "moderate"): (0.35, 0.40), ("oil", "strong"): (0.50, 0.80),
+              ("water", "mild"): (1.0, 1.1), ("water", "moderate"): (1.2, 1.3), ("water", "strong"): (1.6, 2.0),
+              ("brine", "mild"): (2.0, 2.2)}
+    for (m, a), (lo, hi) in ranges.items():
+        assert lo <= qs.grossmann_h_per_in(m, a) <= hi, (m, a)
+    for a in qs.AGITATIONS:
+        assert 0.3 <= qs.grossmann_h_per_in("polymer", a) <= 1.2
+    # unagitated modern additive oils lie at H 0.25-0.85 (thermalprocessing.com, "The effect of
+    # agitation on oil quenchants"): the table's still oil is at the conservative end
+    assert 0.25 <= qs.grossmann_h_per_in("oil", "none") <= 0.85
+
+
+def test_still_media_agree_with_the_chart_curves_the_cooling_is_anchored_on():
+    # the bar-centre chart of data/reference/jominy_equivalence_charts.csv labels its curves
+    # "still water (H = 1)" and "still oil (H = 0.3)": the table's unagitated rows are within 10 %
+    assert qs.grossmann_h_per_in("water", "none") == pytest.approx(1.0, rel=0.10)
+    assert qs.grossmann_h_per_in("oil", "none") == pytest.approx(0.3, rel=0.10)

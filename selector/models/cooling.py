@@ -66,6 +66,9 @@ GEOMETRIES = ("cylinder", "plate")
 
 REFERENCE = "Carslaw & Jaeger (1959) series; constant k = 27 W/mK, rho c = 4.6 MJ/m3K (from memory)"
 validity.register("quench_cooling", {"biot": (1e-3, 100.0, ""), "theta": (0.50, 0.98, "")}, REFERENCE)
+validity.register("jominy_rate_factor", {"biot": (0.05, 100.0, "")},
+                  "rate factor fitted on bar centres at Bi = H*D 0.6 to ideal (data/reference/"
+                  "jominy_equivalence_charts.csv), checked on a 12.5 mm oil probe (Bi 0.14)")
 validity.register("jominy_equivalence", {"cooling_rate_c_s": (1.9, 270.0, "C/s")},
                   "Jominy cooling rates at 705 C, data/jominy_cooling_rates.csv (J1-J32)")
 
@@ -364,6 +367,99 @@ def _jominy_table():
         raise DataFileError("jominy_cooling_rates.csv", None, "rate_c_s",
                             "distances must increase and rates decrease down the file")
     return np.log(d), np.log(r)
+
+
+#: the fitted bar-to-Jominy rate factor (scripts/fit_jominy_equivalence.py)
+RATE_FACTOR_FILE = "fits/jominy_equivalence_coefficients.csv"
+
+
+@functools.cache
+def jominy_rate_factor() -> float:
+    """Effective factor F on the conduction cooling rate before the Jominy table is read.
+
+    The constant-property series (k = 27 W m⁻¹ K⁻¹, ρc = 4.6 MJ m⁻³ K⁻¹) puts bar centres
+    20–28 % farther along the Jominy bar than the published bar-diameter / Jominy-position
+    charts, by the same ratio for H = 0.3, 1 and ∞; a real bar's conductivity rises as its
+    outer shell cools and transforms, which a constant-property series cannot carry.  One
+    factor F (≈ 1.45, an effective diffusivity F·α at fixed Biot number) is fitted offline by
+    ``scripts/fit_jominy_equivalence.py`` on the chart readings of
+    ``data/reference/jominy_equivalence_charts.csv`` (role ``fit``) and read here from
+    ``data/fits/jominy_equivalence_coefficients.csv``; the package never fits it.
+
+    Returns
+    -------
+    float, dimensionless (> 0).
+
+    References
+    ----------
+    Textbook chart of equivalent Jominy positions against bar diameter (bar centres, H = ∞,
+    1.0, 0.3), see the chart file for the copies read; Lamont, Iron Age 152 (1943) for the
+    method of equivalence.
+    """
+    from ..errors import DataFileError
+
+    schema = Schema((Column("fit"), Column("coefficient"), Column("value", "float", lo=0.1, hi=10.0),
+                     Column("unit", allow_blank=True), Column("source"),
+                     Column("confidence", "choice", choices=("fitted",))))
+    t = read_table(RATE_FACTOR_FILE, schema=schema)
+    v = t.loc[t["coefficient"] == "rate_factor", "value"]
+    if len(v) != 1:
+        raise DataFileError(RATE_FACTOR_FILE, None, "coefficient", "needs exactly one row 'rate_factor'")
+    return float(v.iloc[0])
+
+
+#: diameters of the ideal-quench centre table, mm
+_IDEAL_D_GRID_MM = np.geomspace(1.0, 1000.0, 121)
+
+
+def ideal_centre_rate_table():
+    """Conduction cooling rate at 700 °C (°C/s, F = 1) of the centre of an ideally quenched round
+    (H → ∞, exact series, 850 °C into 40 °C) on the diameter grid ``_IDEAL_D_GRID_MM``.
+
+    A pure function of module constants (no data file): the route layer and a disk cache may
+    wrap it.  The centre passes 700 °C in the regular regime, so the austenitizing temperature
+    does not matter.
+
+    Returns
+    -------
+    (diameters_mm, rates_c_s) : two ndarrays of shape (121,).
+    """
+    d = _IDEAL_D_GRID_MM
+    rate = cooling_rate_at_c_s(np.inf, diameter_mm=d, positions=(0.0,), exact=True)
+    return d, np.asarray(rate, float).reshape(len(d))
+
+
+@functools.cache
+def _ideal_centre_cached():
+    d, r = ideal_centre_rate_table()
+    return np.log(d), np.log(r)
+
+
+def ideal_centre_jominy_mm(diameter_mm):
+    """Jominy-equivalent distance (mm) of the centre of a round of ``diameter_mm`` quenched ideally
+    (H → ∞): the conduction rate (log–log interpolation of :func:`ideal_centre_rate_table`) times
+    :func:`jominy_rate_factor`, read on the Jominy cooling-rate table.
+
+    This is the relation between the ideal critical diameter DI and the Jominy distance of
+    50 % martensite that the definition of DI implies (Grossmann 1952; ASTM A255).
+
+    Parameters
+    ----------
+    diameter_mm : array_like
+        Round diameter, mm (1–1000; held at the ends).
+
+    Returns
+    -------
+    ndarray, mm, shape of ``diameter_mm``.
+
+    Examples
+    --------
+    A 75 mm round: about 12.5 mm (the chart reading the rate factor is fitted on).
+    """
+    ld, lr = _ideal_centre_cached()
+    x = np.log(np.clip(np.asarray(diameter_mm, float), _IDEAL_D_GRID_MM[0], _IDEAL_D_GRID_MM[-1]))
+    rate = np.exp(np.interp(x, ld, lr))
+    return np.asarray(jominy_equivalent_mm(rate * jominy_rate_factor()), float)
 
 
 #: farthest Jominy-equivalent distance returned (log-log extrapolation beyond J32), mm

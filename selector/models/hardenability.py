@@ -57,9 +57,9 @@ import numpy as np
 
 from ..catalogue.loader import Column, Schema, read_table
 from ..errors import DataFileError, InputError
+from . import cooling, validity
 from .composition import el
-from .martensite import ih_hrc
-from . import validity
+from .martensite import ih_hrc, martensite_hardness_hrc
 
 A255 = "ASTM A255-10 §1.3 (calculation method composition limits)"
 
@@ -73,6 +73,16 @@ validity.register("a255_dividing_factors", {"di_mm": (10.0, 160.0, "mm"), "dista
 validity.register("a255_grain_size", {"grain_size_astm": (5.0, 9.0, "")},
                   "Grossmann chart ratios (grain size 4-8), fit 1.08^(7-G)")
 
+validity.register("high_carbon_fallback", {"C": (0.70, 1.10, "wt%")},
+                  "fallback above the A255 range: carbon in austenite from the Fe-Fe3C Acm line, "
+                  "A255 carbon-factor fit to 0.90 % C, IH held at its 0.70 % C value (docs/methods/hardenability.md)")
+
+#: Fe–Fe3C diagram: eutectoid (0.77 % C, 727 °C) and austenite at the eutectic (2.11 % C, 1148 °C)
+EUTECTOID_PCT, EUTECTOID_C = 0.77, 727.0
+AUSTENITE_MAX_PCT, EUTECTIC_C = 2.11, 1148.0
+#: upper end of the A255 composition range for carbon, wt %
+A255_C_MAX = 0.70
+
 #: Jominy distance of the first reading (J1 = 1/16 in), mm
 J1_MM = 1.5875
 #: boron content above which a steel counts as boron-treated, wt % (A255)
@@ -84,6 +94,49 @@ _DI_GRID = np.arange(_DI_LO_MM, _DI_HI_MM + 0.5, 1.0)
 
 
 # ----------------------------------------------------------------------------- DI
+def austenite_carbon_pct(c_pct, austenitize_c):
+    """Carbon dissolved in austenite at the austenitizing temperature (fallback for C > 0.70 %).
+
+    A hypereutectoid steel hardened from between Ac1 and Acm keeps proeutectoid carbide; only
+    the carbon the austenite can hold hardens and sets the hardenability.  Straight-line Acm of
+    the Fe–Fe3C diagram between (0.77 %, 727 °C) and (2.11 %, 1148 °C):
+
+        C_γ = min(C, 0.77 + (T − 727)·(2.11 − 0.77)/(1148 − 727))   (T ≥ 727 °C)
+
+    Hypoeutectoid steels are returned unchanged.  Alloy carbides (Cr in 52100) dissolve less
+    than the binary line says, so C_γ is an upper estimate for them.
+
+    Parameters
+    ----------
+    c_pct : array_like
+        Carbon of the steel, wt %.
+    austenitize_c : array_like
+        Austenitizing temperature, °C.
+
+    Returns
+    -------
+    ndarray, wt %.
+
+    Validity
+    --------
+    ``high_carbon_fallback``: C 0.70–1.10 % (plain carbon and low-alloy bearing steels).
+
+    References
+    ----------
+    Fe–Fe3C phase diagram, eutectoid 0.77 % C / 727 °C and 2.11 % C / 1148 °C (e.g. Callister,
+    Materials Science and Engineering, Fig. 9.24; common practice).
+
+    Examples
+    --------
+    1095 (0.95 % C) at 780 °C: C_γ = 0.77 + 53 × 0.00318 = 0.94 %.
+    """
+    c = np.asarray(c_pct, float)
+    t = np.asarray(austenitize_c, float)
+    acm = EUTECTOID_PCT + (np.maximum(t, EUTECTOID_C) - EUTECTOID_C) * (
+        (AUSTENITE_MAX_PCT - EUTECTOID_PCT) / (EUTECTIC_C - EUTECTOID_C))
+    return np.where(c > EUTECTOID_PCT, np.minimum(c, acm), c)
+
+
 def carbon_factor_in(c_pct, grain_size_astm=7.0):
     """Carbon base DI (inches) for ASTM grain size G (A255 carbon factor, fitted form).
 
@@ -228,16 +281,125 @@ def dividing_factor(di_mm_value, distance_mm):
             + (1 - wi) * wj * df[i, j + 1] + wi * wj * df[i + 1, j + 1])
 
 
+#: limits of the DI-consistency distance scale
+DI_SCALE_LIMITS = (0.5, 1.5)
+
+
+#: grid of the ratio IH / H50 of the J50 table (IH(C)/H50(C) lies 1.25-1.45 over C 0.1-0.7 %)
+_R_GRID = np.linspace(1.0, 3.0, 201)
+_J_FINE_MM = np.geomspace(J1_MM, 50.0, 400)
+
+
+def j50_table():
+    """J50 (mm) on the (DI grid, R grid): the distance at which DF(DI, d) first reaches R.
+
+    The raw fallback curve IH(C)/DF(DI, d) falls to the 50 %-martensite hardness H50(C) where
+    DF = R = IH(C)/H50(C), so J50 depends on (DI, R) only.  A pure function of the data file
+    (a disk cache may wrap it); NaN where DF stays below R out to 50 mm.
+
+    Returns
+    -------
+    (di_grid_mm, r_grid, j50_mm) with shapes (151,), (201,), (151, 201).
+    """
+    df = dividing_factor(_DI_GRID[:, None], _J_FINE_MM[None, :])            # (nDI, nd), non-decreasing in d
+    out = np.full((len(_DI_GRID), len(_R_GRID)), np.nan)
+    ramp = np.arange(len(_J_FINE_MM)) * 1e-12                                 # strictly increasing for interp
+    for i in range(len(_DI_GRID)):                                            # 151 rows, once per process
+        row = df[i] + ramp
+        j = np.interp(_R_GRID, row, _J_FINE_MM)
+        out[i] = np.where(_R_GRID <= row[-1], j, np.nan)
+    return _DI_GRID, _R_GRID, out
+
+
+@functools.cache
+def _j50_cached():
+    return j50_table()
+
+
+def j50_mm(c_pct, di_mm_value):
+    """Distance (mm) at which the raw fallback curve IH(C)/DF(DI, d) falls to the 50 %-martensite
+    hardness of the carbon (Hodge & Orehoski); NaN where it stays above it out to 50 mm.
+
+    Bilinear interpolation of :func:`j50_table` in (DI, R = IH/H50); DI held within 10–160 mm.
+
+    Parameters
+    ----------
+    c_pct, di_mm_value : array_like (broadcast together)
+        Carbon (wt %) and ideal critical diameter (mm).
+
+    Returns
+    -------
+    ndarray, mm, the broadcast shape.
+    """
+    gd, gr, tab = _j50_cached()
+    c, di = np.broadcast_arrays(np.asarray(c_pct, float), np.asarray(di_mm_value, float))
+    r = np.clip(ih_hrc(c) / martensite_hardness_hrc(c, 50.0), gr[0], gr[-1])
+    fd = (np.clip(di, gd[0], gd[-1]) - gd[0]) / (gd[1] - gd[0])
+    i = np.clip(np.floor(fd).astype(int), 0, len(gd) - 2)
+    wi = fd - i
+    fr = (r - gr[0]) / (gr[1] - gr[0])
+    k = np.clip(np.floor(fr).astype(int), 0, len(gr) - 2)
+    wk = fr - k
+    return ((1 - wi) * (1 - wk) * tab[i, k] + wi * (1 - wk) * tab[i + 1, k]
+            + (1 - wi) * wk * tab[i, k + 1] + wi * wk * tab[i + 1, k + 1])
+
+
+def di_distance_scale(c_pct, di_mm_value):
+    """Distance scale s that makes the fallback Jominy curve honour the definition of DI.
+
+    Definition (Grossmann 1952; ASTM A255): the centre of a round of diameter DI quenched
+    ideally (H → ∞) is 50 % martensite.  That centre cools like the Jominy distance
+    J_ideal(DI) (:func:`selector.models.cooling.ideal_centre_jominy_mm`, the chart-anchored
+    cooling), so the steel's Jominy curve must reach the 50 %-martensite hardness of its carbon
+    there.  The polynomial dividing-factor fallback does not (its 50 % point J50 lies 0.8–1.3 ×
+    J_ideal(DI) for catalogue steels), so the curve is read at a scaled distance:
+
+        HRC(d) = IH(C) / DF(DI, s·d),   s = J50 / J_ideal(DI)
+
+    which puts its 50 % point at J_ideal(DI) and leaves J1 (DF = 1) unchanged.  s is clipped to
+    :data:`DI_SCALE_LIMITS` and is 1 where the raw curve never falls to the 50 % hardness by 50 mm.
+    Vectorised: table look-ups only (:func:`j50_table`, :func:`cooling.ideal_centre_rate_table`).
+
+    Parameters
+    ----------
+    c_pct, di_mm_value : array_like (broadcast together)
+        Carbon (wt %) and ideal critical diameter (mm).
+
+    Returns
+    -------
+    ndarray, dimensionless, the broadcast shape.
+
+    References
+    ----------
+    Grossmann, Elements of Hardenability (ASM 1952); ASTM A255-10 (definition of DI);
+    Hodge & Orehoski, Trans. AIME 167 (1946) 627 (50 % martensite hardness).
+    """
+    c, di = np.broadcast_arrays(np.asarray(c_pct, float), np.asarray(di_mm_value, float))
+    j50 = j50_mm(c, di)
+    ji = cooling.ideal_centre_jominy_mm(di)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        s = (j50 - J1_MM) / (ji - J1_MM)
+    return np.clip(np.where(np.isfinite(s) & (ji > J1_MM + 1e-6), s, 1.0), *DI_SCALE_LIMITS)
+
+
 def jominy_hardness_hrc(comp, distance_mm, grain_size_astm=7):
     """Jominy hardness (HRC) at ``distance_mm``, broadcast elementwise with ``comp`` (ASTM A255).
 
-    HRC = IH(C) / DF(DI, d).  See :func:`jominy_curve_hrc` for the curve form.
+    HRC = IH(C) / DF(DI, J1 + s·(d − J1)), s = :func:`di_distance_scale` (the DI definition).  See
+    :func:`jominy_curve_hrc` for the curve form.
     """
     d = np.asarray(distance_mm, float)
     if np.any(np.isnan(d)) or np.any(d < 0):
         raise InputError("distances_mm", distance_mm, "distances >= 0 mm from the quenched end")
-    di = di_mm(comp, grain_size_astm)
-    return ih_hrc(el(comp, "C")) / dividing_factor(di, d)
+    di = np.asarray(di_mm(comp, grain_size_astm), float)
+    c = el(comp, "C") * np.ones(di.shape)
+    return ih_hrc(c) / dividing_factor(di, scaled_distance_mm(d, di_distance_scale(c, di)))
+
+
+def scaled_distance_mm(distance_mm, scale):
+    """J1 + s·(d − J1), never below 0: the distance at which the fallback dividing factors are read."""
+    d = np.asarray(distance_mm, float)
+    return np.maximum(J1_MM + np.asarray(scale, float) * (d - J1_MM), 0.0)
 
 
 def jominy_curve_hrc(comp, distances_mm, grain_size_astm=7):

@@ -76,10 +76,15 @@ def table_rows():
     return read_table("quench_severity.csv", schema=_SCHEMA)
 
 
-def _check_strings(field: str, values: np.ndarray, allowed) -> None:
-    bad = [v for v in np.unique(values) if v not in allowed]
-    if bad:
-        check_choice(field, str(bad[0]), allowed)
+def _lookup_index(field: str, values: np.ndarray, allowed) -> np.ndarray:
+    """Index of each value in ``sorted(allowed)``; InputError naming the first value not allowed."""
+    keys = np.array(sorted(allowed))
+    v = values.astype(str)
+    idx = np.clip(np.searchsorted(keys, v), 0, len(keys) - 1)
+    bad = keys[idx] != v
+    if bad.any():
+        check_choice(field, str(v[np.argmax(bad)]), allowed)
+    return idx
 
 
 def grossmann_h_per_in(quench, agitation="moderate"):
@@ -122,11 +127,9 @@ def grossmann_h_per_in(quench, agitation="moderate"):
     q = np.asarray(quench, dtype=object)
     a = np.asarray(agitation, dtype=object)
     q, a = np.broadcast_arrays(q, a)
-    _check_strings("quench", q, MEDIA)
-    _check_strings("agitation", a, AGITATIONS)
-    # map each (medium, agitation) pair through a small lookup grid: no loop over states
-    qi = np.searchsorted(np.array(sorted(MEDIA)), q.astype(str))
-    ai = np.searchsorted(np.array(sorted(AGITATIONS)), a.astype(str))
+    # one sorted look-up per array (no np.unique over the states): index, then check the match
+    qi = _lookup_index("quench", q, MEDIA)
+    ai = _lookup_index("agitation", a, AGITATIONS)
     grid = np.array([[tab[(m, g)] for g in sorted(AGITATIONS)] for m in sorted(MEDIA)])
     return grid[qi, ai]
 

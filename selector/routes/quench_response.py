@@ -45,61 +45,13 @@ def _as_1d(name, value, n=None):
     return a
 
 
-#: limits of the per-steel distance scale that enforces the DI definition
-DI_SCALE_LIMITS = (0.5, 1.5)
-_J_GRID_MM = np.geomspace(1.59, DF_MAX_MM, 96)
-
-
 def di_consistency_scale(c_pct, di_mm):
-    """Scale s of the Jominy-equivalent distance that makes the chain honour the
-    definition of the ideal critical diameter (Grossmann 1952; ASTM A255): the centre
-    of a round of diameter DI under an ideal quench (H → ∞) is 50 % martensite.
-
-    ``s = J50 / J_ideal(DI)``, where J50 is the distance at which the steel's own
-    A255 Jominy curve (IH / DF) falls to the 50 % martensite hardness of its carbon
-    (Hodge & Orehoski), and J_ideal(DI) is the Jominy distance whose end-quench
-    cooling rate at 700 °C equals the conduction-model centre rate of that round at
-    Bi = 100.  Real-bar distances are multiplied by ``s`` before the curve is read.
-    Without the scale the fallback dividing factors and the conduction model
-    disagree by up to ~60 % in distance (docs/methods/hardenability.md); ``s`` is
-    clipped to :data:`DI_SCALE_LIMITS`, and is 1 where the curve stays above the
-    50 % hardness out to 50 mm.
-
-    Parameters
-    ----------
-    c_pct : array (n,)
-        Carbon, wt %.
-    di_mm : array (n,)
-        Ideal critical diameter, mm.
-
-    Returns
-    -------
-    ndarray (n,), dimensionless.
-    """
-    c_all = np.asarray(c_pct, float).reshape(-1)
-    di_all = np.asarray(di_mm, float).reshape(-1)
-    # states of one grade and composition corner share (C, DI): compute each pair once
-    pairs, inverse = np.unique(np.stack([c_all, di_all], axis=1), axis=0, return_inverse=True)
-    return _di_scale_unique(pairs[:, 0], pairs[:, 1])[inverse.reshape(-1)]
-
-
-def _di_scale_unique(c, di):
-    curve = ih_hrc(c)[:, None] / hardenability.dividing_factor(di[:, None], _J_GRID_MM[None, :])
-    h50 = martensite_hardness_hrc(c, 50.0)[:, None]
-    below = curve <= h50
-    has = below.any(axis=1)
-    k = np.where(has, np.argmax(below, axis=1), 1)
-    k = np.clip(k, 1, len(_J_GRID_MM) - 1)
-    rows = np.arange(len(c))
-    y0, y1 = curve[rows, k - 1], curve[rows, k]
-    x0, x1 = _J_GRID_MM[k - 1], _J_GRID_MM[k]
-    t = np.clip((y0 - h50[:, 0]) / np.maximum(y0 - y1, 1e-9), 0.0, 1.0)
-    j50 = np.where(has, x0 + t * (x1 - x0), np.nan)
-    h_ideal = 100.0 * cooling.K_STEEL_W_MK / (np.maximum(di, 1.0) / 2000.0)   # Bi = 100
-    rate = cooling.cooling_rate_at_c_s(h_ideal, diameter_mm=np.maximum(di, 1.0), positions=(0.0,))
-    j_ideal = np.asarray(cooling.jominy_equivalent_mm(rate), float).reshape(len(c))
-    s = np.where(np.isfinite(j50) & (j_ideal > 0), j50 / j_ideal, 1.0)
-    return np.clip(s, *DI_SCALE_LIMITS)
+    """Distance scale of the A255 fallback curve that enforces the definition of DI
+    (:func:`selector.models.hardenability.di_distance_scale`; kept here for callers of the
+    earlier route-layer version).  The chain no longer scales the cooling distances: the
+    Jominy curve itself is read at the scaled distance."""
+    return hardenability.di_distance_scale(np.asarray(c_pct, float).reshape(-1),
+                                           np.asarray(di_mm, float).reshape(-1))
 
 
 def _first(mask):
@@ -162,7 +114,10 @@ def as_quenched_profile(comp, quench, agitation="moderate", diameter_mm=None, th
     -------
     dict
         ``positions`` (n_pos,); ``hardness_hrc``, ``hardness_hv``, ``martensite_pct``,
-        ``jominy_mm``, ``cooling_rate_c_s`` (n, n_pos); ``di_mm``, ``ms_c``, ``ac1_c``,
+        ``jominy_mm``, ``cooling_rate_c_s`` (n, n_pos: the effective rate at 700 °C, conduction
+        rate × the chart-anchored factor of :func:`cooling.jominy_rate_factor`, the rate the Jominy
+        table is read with), ``conduction_rate_c_s`` (n, n_pos: the constant-property series alone);
+        ``di_mm``, ``ms_c``, ``ac1_c``,
         ``ac3_c``, ``austenitize_c`` (n,); ``warnings`` (list of str naming the states).
 
     Raises
@@ -231,16 +186,28 @@ def as_quenched_profile(comp, quench, agitation="moderate", diameter_mm=None, th
     h_in = np.asarray(quench_severity.grossmann_h_per_in(q, a), float)
     h_w = quench_severity.heat_transfer_coefficient_w_m2k(h_in, cooling.K_STEEL_W_MK)
     kw = {size_name: size}
-    rate = cooling.cooling_rate_at_c_s(h_w, positions=tuple(pos), austenitize_c=t0, **kw)
+    rate_conduction = cooling.cooling_rate_at_c_s(h_w, positions=tuple(pos), austenitize_c=t0, **kw)
     bi = cooling.biot_number(h_w, **kw)
     warn(bi > 100.0, "Biot number above 100: surface cooling rate taken at Bi = 100",
          lambda i: f"{q[i]}/{a[i]}, {size[i]:g} mm")
+    bi_lo = validity.get("jominy_rate_factor").ranges["biot"][0]
+    warn(bi < bi_lo, f"jominy_rate_factor: Biot number below {bi_lo:g} "
+                     f"({validity.get('jominy_rate_factor').reference}): effective cooling rate extrapolated",
+         lambda i: f"{q[i]}/{a[i]}, {size_name} = {size[i]:g}, Bi = {bi[i]:.3f}")
 
     # Jominy equivalence and A255 hardness
-    c = el(comp1, "C") * np.ones(n)
-    di = np.asarray(hardenability.di_mm(comp1, g), float) * np.ones(n)
-    jmm = cooling.jominy_equivalent_mm(rate) * di_consistency_scale(c, di)[:, None]
-    hrc = ih_hrc(c)[:, None] / hardenability.dividing_factor(di[:, None], jmm)
+    # carbon in austenite: the steel's carbon, or for hypereutectoid steels what the Acm line lets
+    # the austenite hold at t0 (hardenability.austenite_carbon_pct; the fallback above 0.70 % C)
+    c_steel = el(comp1, "C") * np.ones(n)
+    c = hardenability.austenite_carbon_pct(c_steel, t0)
+    comp_aus = dict(comp1, C=c)
+    di = np.asarray(hardenability.di_mm(comp_aus, g), float) * np.ones(n)
+    # bar-to-Jominy equivalence on the chart-anchored effective rate (cooling.jominy_rate_factor)
+    rate = rate_conduction * cooling.jominy_rate_factor()
+    jmm = cooling.jominy_equivalent_mm(rate)
+    # A255 curve read at the DI-consistent distance (hardenability.di_distance_scale)
+    hrc = ih_hrc(c)[:, None] / hardenability.dividing_factor(
+        di[:, None], hardenability.scaled_distance_mm(jmm, hardenability.di_distance_scale(c, di)[:, None]))
     mart = martensite_pct_from_hardness(c[:, None], hrc)
     hv = _hrc_to_hv(hrc)
 
@@ -248,7 +215,7 @@ def as_quenched_profile(comp, quench, agitation="moderate", diameter_mm=None, th
     ranges = validity.get("astm_a255").ranges
     for e, (lo, hi, unit) in ranges.items():
         x = el(comp1, e) * np.ones(n)
-        bad = (x < lo - 1e-9) | (x > hi + 1e-9)
+        bad = (x < lo - 1e-9) | ((x > hi + 1e-9) & (e != "C"))     # high C: the fallback warning below
         warn(bad, f"astm_a255: {e} outside {lo:g}-{hi:g} {unit} ({validity.get('astm_a255').reference}); "
                   "DI and Jominy curve extrapolated", lambda i, x=x, e=e: f"{e} = {x[i]:.3g} {unit}")
     warn((di < 10.0) | (di > 160.0), "DI outside 10-160 mm of the dividing-factor fit; end value held",
@@ -256,6 +223,14 @@ def as_quenched_profile(comp, quench, agitation="moderate", diameter_mm=None, th
     warn(np.any(jmm > DF_MAX_MM, axis=1),
          "Jominy-equivalent distance beyond 50 mm (slow cooling, e.g. air): hardness is the 50 mm value, "
          "an upper estimate", lambda i: f"{q[i]}/{a[i]}, {size[i]:g} mm, J = {jmm[i].max():.0f} mm")
+    warn(c_steel > hardenability.A255_C_MAX + 1e-9,
+         "C above 0.70 wt%, outside the ASTM A255 calculation: fallback (carbon in austenite from the "
+         "Fe-Fe3C Acm line at the austenitizing temperature, A255 carbon factor fitted to 0.90 % C, "
+         "initial hardness held at its 0.70 % C value; docs/methods/hardenability.md)",
+         lambda i: f"C = {c_steel[i]:.2f} wt%, in austenite {c[i]:.2f} wt% at {t0[i]:.0f} C")
+    hc_hi = validity.get("high_carbon_fallback").ranges["C"][1]
+    warn(c_steel > hc_hi + 1e-9, f"high_carbon_fallback: C above {hc_hi:g} wt%, beyond the range the fallback "
+                                 "is stated for; hardenability extrapolated", lambda i: f"C = {c_steel[i]:.2f} wt%")
     centre = int(np.argmin(pos))
     warn(mart[:, centre] < 50.0, "as-quenched centre below 50 % martensite (not through-hardened)",
          lambda i: f"{q[i]}/{a[i]}, {size_name} = {size[i]:g}, centre {mart[i, centre]:.0f} % martensite")
@@ -273,6 +248,7 @@ def as_quenched_profile(comp, quench, agitation="moderate", diameter_mm=None, th
         "martensite_pct": mart,
         "jominy_mm": jmm,
         "cooling_rate_c_s": rate,
+        "conduction_rate_c_s": rate_conduction,
         "di_mm": di,
         "ms_c": ms,
         "ac1_c": ac1,
