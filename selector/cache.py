@@ -64,6 +64,16 @@ def disk_enabled() -> bool:
 
 @functools.cache
 def _package_version() -> str:
+    """The version in the checkout's pyproject.toml, else the installed metadata
+    (``importlib.metadata`` costs ~0.1 s, so it is the fallback)."""
+    import re
+    pyproject = Path(__file__).resolve().parents[1] / "pyproject.toml"
+    try:
+        m = re.search(r'^version\s*=\s*"([^"]+)"', pyproject.read_text(encoding="utf-8"), re.M)
+        if m:
+            return m.group(1)
+    except OSError:
+        pass
     try:
         from importlib.metadata import version
         return version("selector")
@@ -83,11 +93,8 @@ def _source_hash(module_name: str) -> str:
 
 def _library_versions() -> str:
     import numpy
-    parts = [f"numpy={numpy.__version__}"]
-    scipy = sys.modules.get("scipy")
-    if scipy is not None:
-        parts.append(f"scipy={scipy.__version__}")
-    return ";".join(parts)
+    import scipy          # the tables are built with scipy.special; its version is part of the key
+    return f"numpy={numpy.__version__};scipy={scipy.__version__}"
 
 
 def table_key(func, args: tuple, kwargs: dict) -> str:
@@ -224,3 +231,173 @@ def _cached_build(func, args, kwargs):
     was_tuple = isinstance(value, tuple)
     _save(path, key, arrays, was_tuple)
     return _from_dict(arrays, was_tuple)
+
+
+# --------------------------------------------------------------------------- tables of states
+#: most frame files kept in the cache directory (the oldest are removed beyond it)
+MAX_FRAME_FILES = 48
+
+
+@functools.cache
+def code_and_data_hash() -> str:
+    """SHA-256 over every source file of the package and every file under ``data/``
+    (relative path and bytes): a key part for results that depend on all the models
+    and the whole catalogue."""
+    pkg = Path(__file__).resolve().parent
+    h = hashlib.sha256()
+    roots = [pkg]
+    try:
+        from .catalogue.loader import data_dir
+        roots.append(Path(data_dir()).resolve())
+    except Exception:                                  # pragma: no cover - data dir always present
+        pass
+    for root in roots:
+        for p in sorted(root.rglob("*")):
+            if p.is_file() and p.suffix in (".py", ".csv", ".json", ".toml", ".txt", ".md") \
+                    and "__pycache__" not in p.parts:
+                h.update(str(p.relative_to(root)).encode())
+                h.update(b"\0")
+                h.update(p.read_bytes())
+    return h.hexdigest()
+
+
+def frame_key(func, args: tuple, kwargs: dict) -> str:
+    import pandas
+    text = "\n".join([
+        f"format={FORMAT}",
+        f"builder={func.__module__}.{func.__qualname__}",
+        f"args={args!r}",
+        f"kwargs={sorted(kwargs.items())!r}",
+        f"package={_package_version()}",
+        _library_versions(),
+        f"pandas={pandas.__version__}",
+        f"code_and_data={code_and_data_hash()}",
+    ])
+    return hashlib.sha256(text.encode()).hexdigest()
+
+
+def frame_to_arrays(df) -> dict | None:
+    """Arrays that rebuild ``df`` exactly (RangeIndex, numeric, bool and text columns),
+    or None for a frame this layout cannot hold (it is then not cached)."""
+    import json
+
+    import pandas as pd
+
+    if not isinstance(df.index, pd.RangeIndex) or df.index.start != 0 or df.index.step != 1:
+        return None
+    if not all(isinstance(c, str) for c in df.columns) or df.columns.has_duplicates:
+        return None
+    try:
+        attrs = json.dumps(df.attrs, sort_keys=True)
+    except (TypeError, ValueError):
+        return None
+    out = {"__columns__": np.array(list(df.columns), dtype=str), "__attrs__": np.array(attrs),
+           "__nrows__": np.array(len(df), np.int64)}
+    dtypes = []
+    for i, c in enumerate(df.columns):
+        s = df[c]
+        dt = s.dtype
+        if isinstance(dt, np.dtype) and dt.kind in "biuf":
+            out[f"c{i}"] = s.to_numpy()
+            dtypes.append(dt.str)
+        elif str(dt) in ("str", "object") or isinstance(dt, pd.StringDtype):
+            vals = s.to_numpy(dtype=object)
+            na = pd.isna(vals)
+            if not all(isinstance(v, str) for v in vals[~na]):
+                return None
+            codes, uniques = pd.factorize(vals, use_na_sentinel=True)
+            out[f"c{i}"] = codes.astype(np.int32)
+            out[f"u{i}"] = np.array(list(uniques), dtype=str) if len(uniques) else np.array([], dtype=str)
+            dtypes.append("text:" + str(dt))
+        else:
+            return None
+    out["__dtypes__"] = np.array(dtypes, dtype=str)
+    return out
+
+
+def arrays_to_frame(arrays: dict):
+    import json
+
+    import pandas as pd
+
+    cols = [str(c) for c in arrays["__columns__"]]
+    dtypes = [str(d) for d in arrays["__dtypes__"]]
+    n = int(arrays["__nrows__"])
+    data = {}
+    for i, (c, dt) in enumerate(zip(cols, dtypes)):
+        a = arrays[f"c{i}"]
+        if len(a) != n:
+            raise ValueError(f"column {c} has {len(a)} rows, expected {n}")
+        if dt.startswith("text:"):
+            uniq = np.asarray(arrays[f"u{i}"]).astype(object)
+            vals = np.empty(n, dtype=object)
+            ok = a >= 0
+            vals[ok] = uniq[a[ok]]
+            vals[~ok] = np.nan
+            kind = dt[5:]
+            data[c] = pd.Series(vals, dtype=object if kind == "object" else kind)
+        else:
+            data[c] = pd.Series(np.asarray(a, dtype=np.dtype(dt)), copy=False)
+    df = pd.DataFrame(data, columns=cols)
+    df.attrs.update(json.loads(str(arrays["__attrs__"])))
+    return df
+
+
+def _prune(directory: Path, pattern: str, keep: int) -> None:
+    try:
+        files = sorted(directory.glob(pattern), key=lambda p: p.stat().st_mtime, reverse=True)
+        for p in files[keep:]:
+            p.unlink()
+    except OSError:
+        pass
+
+
+def disk_frame(func):
+    """Decorator for a pure builder of a pandas DataFrame that depends on its
+    arguments, the package code and the data files only (the prepared states table
+    of one section).  Like :func:`disk_table`, but keyed by a hash of **every** source
+    and data file of the package (:func:`code_and_data_hash`), since such a table
+    depends on all the models and the whole catalogue.  No in-memory copy is kept
+    (the caller keeps its own); at most :data:`MAX_FRAME_FILES` files are kept.
+    ``wrapper.build`` builds from scratch; a frame whose columns this layout cannot
+    hold exactly is returned but not written."""
+
+    @functools.wraps(func)
+    def wrapper(*args, **kwargs):
+        if not disk_enabled():
+            return func(*args, **kwargs)
+        key = frame_key(func, args, kwargs)
+        path = cache_dir() / f"{func.__module__}.{func.__qualname__}-{key[:32]}.npz"
+        loaded = _load(path, key)
+        if loaded is not None:
+            try:
+                return arrays_to_frame(_unflatten(loaded[0]))
+            except (KeyError, ValueError, TypeError):
+                pass
+        df = func(*args, **kwargs)
+        arrays = frame_to_arrays(df)
+        if arrays is not None:
+            flat = {f"arr_{i}": v for i, v in enumerate(_flatten(arrays))}
+            if _save(path, key, flat, True):
+                try:
+                    os.utime(path)
+                except OSError:
+                    pass
+                _prune(path.parent, f"{func.__module__}.{func.__qualname__}-*.npz", MAX_FRAME_FILES)
+        return df
+
+    wrapper.build = func
+    return wrapper
+
+
+def _flatten(arrays: dict) -> list:
+    """Named arrays as a list (names first, as one text array) for the arr_i layout of the cache files."""
+    names = sorted(arrays)
+    return [np.array(names, dtype=str)] + [arrays[n] for n in names]
+
+
+def _unflatten(data: dict) -> dict:
+    names = [str(n) for n in data["arr_0"]]
+    if len(names) != len(data) - 1:
+        raise ValueError("frame file: names and arrays differ in number")
+    return {n: data[f"arr_{i + 1}"] for i, n in enumerate(names)}

@@ -26,6 +26,7 @@ import functools
 import numpy as np
 import pandas as pd
 
+from ..cache import disk_frame
 from ..catalogue.grades import FAMILIES, default_catalogue
 from ..errors import InputError
 from ..routes import families as fam_registry
@@ -88,6 +89,11 @@ def costed(states: pd.DataFrame, length_mm: float = 100.0, price_sheet: dict | N
 
 @functools.lru_cache(maxsize=8)
 def _prepare_cached(diameter_mm, thickness_mm, length_mm, prices: tuple) -> pd.DataFrame:
+    return _prepare_table(diameter_mm, thickness_mm, length_mm, prices)
+
+
+@disk_frame      # kept in the user's cache directory, keyed by the arguments and all code and data
+def _prepare_table(diameter_mm, thickness_mm, length_mm, prices: tuple) -> pd.DataFrame:
     st = expand(diameter_mm, thickness_mm)
     d = None if thickness_mm is not None else float(diameter_mm)
     df = costed(st, float(length_mm), dict(prices) or None, d, thickness_mm)
