@@ -143,7 +143,7 @@ def table_path(func, key: str) -> Path:
 def _load(path: Path, key: str):
     """The arrays stored at ``path`` if the file is whole, has ``key`` and its checksum; else None."""
     try:
-        with np.load(path, allow_pickle=False) as z:
+        with open(path, "rb") as f, np.load(f, allow_pickle=False) as z:
             data = {n: z[n] for n in z.files}
     except (OSError, ValueError, EOFError, zipfile.BadZipFile, KeyError):
         return None
@@ -204,7 +204,7 @@ def disk_table(func):
             hit = memo.get(mkey)
             if hit is not None:
                 return hit
-            value = _cached_build(func, args, kwargs)
+            value = _cached_build(func, wrapper.build, args, kwargs)
             memo[mkey] = value
             return value
 
@@ -217,16 +217,17 @@ def disk_table(func):
     return wrapper
 
 
-def _cached_build(func, args, kwargs):
+def _cached_build(func, build, args, kwargs):
+    """The table of ``func`` (which names the file and the key) from disk, else from ``build``."""
     if not disk_enabled():
-        value = func(*args, **kwargs)
+        value = build(*args, **kwargs)
         return _from_dict(_as_dict(value), isinstance(value, tuple))
     key = table_key(func, args, kwargs)
     path = table_path(func, key)
     loaded = _load(path, key)
     if loaded is not None:
         return _from_dict(*loaded)
-    value = func(*args, **kwargs)
+    value = build(*args, **kwargs)
     arrays = _as_dict(value)
     was_tuple = isinstance(value, tuple)
     _save(path, key, arrays, was_tuple)
@@ -365,7 +366,7 @@ def disk_frame(func):
     @functools.wraps(func)
     def wrapper(*args, **kwargs):
         if not disk_enabled():
-            return func(*args, **kwargs)
+            return wrapper.build(*args, **kwargs)
         key = frame_key(func, args, kwargs)
         path = cache_dir() / f"{func.__module__}.{func.__qualname__}-{key[:32]}.npz"
         loaded = _load(path, key)
@@ -374,7 +375,7 @@ def disk_frame(func):
                 return arrays_to_frame(_unflatten(loaded[0]))
             except (KeyError, ValueError, TypeError):
                 pass
-        df = func(*args, **kwargs)
+        df = wrapper.build(*args, **kwargs)
         arrays = frame_to_arrays(df)
         if arrays is not None:
             flat = {f"arr_{i}": v for i, v in enumerate(_flatten(arrays))}
