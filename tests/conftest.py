@@ -4,5 +4,4 @@ import tempfile
 
 # The suite writes its on-disk tables (selector/cache.py) to a directory of its own, so a
 # test that patches a model can never leave a table in the user's cache directory.
-if "SELECTOR_CACHE_DIR" not in os.environ:
-    os.environ["SELECTOR_CACHE_DIR"] = tempfile.mkdtemp(prefix="selector-test-cache-")
+os.environ["SELECTOR_CACHE_DIR"] = tempfile.mkdtemp(prefix="selector-test-cache-")
