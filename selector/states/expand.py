@@ -29,10 +29,11 @@ RESULT_COLUMNS = ("uts_mpa", "yield_mpa", "elongation_pct", "hardness_hv", "hard
                   "center_martensite_pct", "peak_ratio", "di_mm")
 
 
-def _family_batch(fam, grades, diameter_mm, thickness_mm, corners):
-    """One :class:`Batch` of every grade × grid point × corner of ``fam``.  Built per
-    block (a grade at a corner) with ``np.repeat``, not per state: at 10^6 states the
-    per-element ``np.full`` calls were a third of the expansion's time."""
+def _family_blocks(fam, grades, corners):
+    """The section-independent part of a family's batch: grades, composition and
+    parameter arrays, state numbers and corners, built per block (a grade at a corner)
+    with ``np.repeat``, not per state (at 10^6 states per-element ``np.full`` calls were
+    a third of the expansion's time)."""
     glist, grids, comps, sizes, block_grade, block_corner = [], [], [], [], [], []
     for g in grades:
         try:
@@ -68,20 +69,46 @@ def _family_batch(fam, grades, diameter_mm, thickness_mm, corners):
         for name in grid:
             if name not in par:
                 raise KeyError(f"{fam.name}: grid parameter {name!r} missing for some grades")
-    d = np.full(n, np.nan if diameter_mm is None else diameter_mm)
-    t = np.full(n, np.nan if thickness_mm is None else thickness_mm)
-    batch = Batch(glist, gidx, comp_arr, par, d, t)
     state_no = np.arange(n, dtype=np.int64) - np.repeat(starts, sizes)
     corner_col = np.repeat(np.asarray(corners, dtype=object)[np.asarray(block_corner)], sizes)
-    return batch, state_no, corner_col
+    return tuple(glist), gidx, comp_arr, par, state_no, corner_col
+
+
+@functools.lru_cache(maxsize=32)
+def _catalogue_blocks(family_name: str, corners: tuple):
+    """:func:`_family_blocks` over the whole catalogue, kept per family: the grid and the
+    compositions do not depend on the section, so a new section reuses them."""
+    fam = fam_registry.get(family_name)
+    cat = default_catalogue()
+    grades = [g for g in cat.grades.values()
+              if fam.name in g.routes and (not fam.families or g.family in fam.families)]
+    return _family_blocks(fam, grades, corners)
+
+
+def _family_batch(fam, grades, diameter_mm, thickness_mm, corners):
+    """One :class:`Batch` of every grade × grid point × corner of ``fam`` (``grades``
+    None: the catalogue, from :func:`_catalogue_blocks`)."""
+    if grades is None and fam_registry.get(fam.name) is fam:
+        blocks = _catalogue_blocks(fam.name, tuple(corners))
+    else:
+        cat_grades = default_catalogue().grades.values() if grades is None else grades
+        blocks = _family_blocks(fam, [g for g in cat_grades if fam.name in g.routes and
+                                      (not fam.families or g.family in fam.families)], corners)
+    if blocks is None:
+        return None
+    glist, gidx, comp_arr, par, state_no, corner_col = blocks
+    n = len(gidx)
+    d = np.full(n, np.nan if diameter_mm is None else diameter_mm)
+    t = np.full(n, np.nan if thickness_mm is None else thickness_mm)
+    # copies: a family's compute gets arrays of its own, the kept blocks stay as built
+    batch = Batch(list(glist), gidx.copy(), {e: a.copy() for e, a in comp_arr.items()},
+                  {k: a.copy() for k, a in par.items()}, d, t)
+    return batch, state_no.copy(), corner_col.copy()
 
 
 def expand_family(fam, diameter_mm=25.0, thickness_mm=None, grades=None, corners=CORNERS) -> pd.DataFrame:
     """States table of one route family over ``grades`` (default: the catalogue)."""
-    cat = default_catalogue()
-    grades = [g for g in (grades or cat.grades.values())
-              if fam.name in g.routes and (not fam.families or g.family in fam.families)]
-    built = _family_batch(fam, grades, diameter_mm, thickness_mm, corners)
+    built = _family_batch(fam, grades or None, diameter_mm, thickness_mm, corners)
     if built is None:
         return pd.DataFrame()
     batch, state_no, corner = built
