@@ -106,28 +106,59 @@ def _family_batch(fam, grades, diameter_mm, thickness_mm, corners):
     return batch, state_no.copy(), corner_col.copy()
 
 
+#: most states of one family computed in one vectorised call; a larger family is computed in
+#: chunks of this many states, so the models' intermediate arrays (profiles over 5-11 positions,
+#: several per state) stay bounded while the table grows (each state's row depends on that state
+#: only: tests/test_scale.py checks a chunked expansion against an unchunked one)
+CHUNK_STATES = 65_536
+
+
+def _computed(fam, batch):
+    """``(rows, result)`` of ``fam.compute`` + :func:`finish` over ``batch``, in chunks."""
+    n = batch.n
+    if n <= CHUNK_STATES:
+        yield slice(0, n), finish(fam.compute(batch), batch)
+        return
+    for a in range(0, n, CHUNK_STATES):
+        b = min(n, a + CHUNK_STATES)
+        mask = np.zeros(n, bool)
+        mask[a:b] = True
+        sub = batch.subset(mask)
+        yield slice(a, b), finish(fam.compute(sub), sub)
+
+
 def expand_family(fam, diameter_mm=25.0, thickness_mm=None, grades=None, corners=CORNERS) -> pd.DataFrame:
     """States table of one route family over ``grades`` (default: the catalogue)."""
     built = _family_batch(fam, grades or None, diameter_mm, thickness_mm, corners)
     if built is None:
         return pd.DataFrame()
     batch, state_no, corner = built
-    res = finish(fam.compute(batch), batch)
+    n = batch.n
+    results: dict = {}
+    cautions = np.full(n, "", dtype=object)
+    for rows, res in _computed(fam, batch):
+        for col in RESULT_COLUMNS:
+            if col in res:
+                if col not in results:
+                    results[col] = np.full(n, np.nan)
+                results[col][rows] = np.asarray(res[col], float)
+        part = cautions[rows]
+        k = rows.stop - rows.start
+        for msg, mask in res.get("notes", []):
+            m = np.broadcast_to(np.asarray(mask, bool), (k,))
+            if m.any():
+                part[m] = np.where(part[m] == "", msg, part[m] + " | " + msg)
+        del res
     cols = {"grade": batch.attr("id"), "family": batch.attr("family"),
-            "route": np.full(batch.n, fam.name, dtype=object), "corner": corner, "state": state_no}
+            "route": np.full(n, fam.name, dtype=object), "corner": corner, "state": state_no}
     for name in fam.parameters:
         if name in batch.params:
             cols[name] = batch.params[name]
     for col in RESULT_COLUMNS:
-        if col in res:
-            cols[col] = np.asarray(res[col], float)
-    cautions = np.full(batch.n, "", dtype=object)
-    for msg, mask in res.get("notes", []):
-        m = np.broadcast_to(np.asarray(mask, bool), (batch.n,))
-        if m.any():
-            cautions[m] = np.where(cautions[m] == "", msg, cautions[m] + " | " + msg)
+        if col in results:
+            cols[col] = results[col]
     cols["notes"] = cautions
-    cols["c_pct"] = batch.comp.get("C", np.zeros(batch.n))
+    cols["c_pct"] = batch.comp.get("C", np.zeros(n))
     cols["corrosion_resistant"] = batch.attr("corrosion_resistant").astype(bool)
     cols["relative_price"] = batch.attr("relative_price")
     cols["density_g_cm3"] = batch.attr("density_g_cm3")
