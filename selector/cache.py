@@ -1,9 +1,12 @@
-"""Build-once numeric tables kept on disk between processes.
+"""Build-once tables kept on disk between processes.
 
 Some tables depend only on constants of the code (the quench-cooling rate table of
 :mod:`selector.models.cooling` takes about 2 s to build from the exact series).  The
 :func:`disk_table` decorator builds such a table once, saves it as an ``.npz`` file
-under the user's cache directory and loads it in later processes.
+under the user's cache directory and loads it in later processes.  :func:`disk_frame`
+does the same for a DataFrame that depends on all the code and data (the prepared
+states table of one section, :mod:`selector.selection.engine`), keyed by a hash of
+every source and data file.
 
 A cache file is never trusted:
 
