@@ -160,9 +160,10 @@ notice("top")
 # ----------------------------------------------------------------------------- validation
 errors = []
 round_bar = ss["shape"] == "round bar"
-d_si = pg.to_si(ss.get("diameter"), "length", system) if round_bar else None
-t_si = None if round_bar else pg.to_si(ss.get("thickness"), "length", system)
-len_si = pg.to_si(ss.get("length"), "length", system)
+# SI values rounded for the cache keys (pg.si_key): a unit switch recomputes nothing
+d_si = pg.si_key(pg.to_si(ss.get("diameter"), "length", system), "length") if round_bar else None
+t_si = None if round_bar else pg.si_key(pg.to_si(ss.get("thickness"), "length", system), "length")
+len_si = pg.si_key(pg.to_si(ss.get("length"), "length", system), "length")
 if round_bar and d_si is None:
     errors.append(f"Diameter: blank; allowed: a diameter in {lu}")
 if not round_bar and t_si is None:
@@ -173,15 +174,15 @@ if len_si is None:
 fam_msg = pg.check_families(ss["families"])
 if fam_msg:
     errors.append(fam_msg)
-targets = pg.targets_from_inputs({k: ss.get(k) for k in [w for w, _, _ in pg.TARGET_FIELDS.values()]},
-                                 system, ss["families"] or None, bool(ss.get("corrosion")))
+targets = pg.si_targets(pg.targets_from_inputs({k: ss.get(k) for k in [w for w, _, _ in pg.TARGET_FIELDS.values()]},
+                                               system, ss["families"] or None, bool(ss.get("corrosion"))))
 try:
     targets = validate_targets(targets, FAMILIES)
 except SelectorError as exc:
     errors.append(pg.explain(exc, system))
 
 service = pg.service_context(ss.get("plated"), ss.get("plating"), ss.get("mating"), ss.get("environment", "normal"),
-                             pg.to_si(ss.get("service_temp"), "temperature", system))
+                             pg.si_key(pg.to_si(ss.get("service_temp"), "temperature", system), "temperature"))
 svc_msg = pg.check_service(service)
 if svc_msg:
     errors.append(svc_msg)

@@ -4,20 +4,55 @@ and hardness targets at the part's real section, at the lowest cost.
 Results are estimates for preliminary selection.  The final choice needs certified
 material test reports, the applicable design code and review by a qualified
 engineer.
+
+The public functions are imported on first use (PEP 562), so ``import selector``
+costs no pandas or scipy import until one of them is called.
 """
-from .catalogue.grades import catalogue, grade
+from __future__ import annotations
+
+import importlib
+
 from .errors import (DataFileError, InputError, NotModelledError, RouteError, SelectorError,
                      SelectorWarning, UnknownGradeError)
-from .routes.evaluate import evaluate
 
 CAUTION = ("Estimates for preliminary selection only. The final choice needs certified material "
            "test reports, the applicable design code and review by a qualified engineer.")
 
-from .selection.engine import alternatives, nearest_misses, select
-from .design.pins import pin_targets
-from .design.sweep import diameter_sweep
+#: public name -> module that defines it (imported on first access)
+_LAZY = {
+    "grade": ".catalogue.grades",
+    "evaluate": ".routes.evaluate",
+    "select": ".selection.engine", "nearest_misses": ".selection.engine", "alternatives": ".selection.engine",
+    "pin_targets": ".design.pins",
+    "diameter_sweep": ".design.sweep",
+}
 
 __all__ = ["catalogue", "grade", "evaluate", "select", "nearest_misses", "alternatives", "pin_targets",
            "diameter_sweep", "CAUTION",
            "SelectorError", "InputError", "RouteError", "NotModelledError", "UnknownGradeError",
            "DataFileError", "SelectorWarning"]
+
+
+# the subpackage ``selector.catalogue`` (its __init__ is empty) is loaded first, so that the
+# name ``catalogue`` below stays the function when the subpackage's modules are imported later
+from . import catalogue as _catalogue_package  # noqa: E402,F401
+
+
+def catalogue():
+    """The catalogue as a DataFrame, one row per grade
+    (:func:`selector.catalogue.grades.catalogue`)."""
+    from .catalogue.grades import catalogue as table
+    return table()
+
+
+def __getattr__(name: str):
+    mod = _LAZY.get(name)
+    if mod is None:
+        raise AttributeError(f"module 'selector' has no attribute {name!r}")
+    value = getattr(importlib.import_module(mod, __name__), name)
+    globals()[name] = value
+    return value
+
+
+def __dir__():
+    return sorted(set(globals()) | set(__all__))

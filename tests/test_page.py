@@ -210,8 +210,9 @@ def test_us_units_convert_inputs_and_table(at):
     # the library got the inputs back in SI, and the table shows its result in US units
     keys = ["diameter", "length"] + [w for w, _, _ in pg.TARGET_FIELDS.values()]
     vals = {k: at.number_input(key=k).value for k in keys}
-    t = pg.targets_from_inputs(vals, pg.US)
-    ref = rank(prepare(pg.to_si(vals["diameter"], "length", pg.US), None, pg.to_si(vals["length"], "length", pg.US)),
+    t = pg.si_targets(pg.targets_from_inputs(vals, pg.US))
+    ref = rank(prepare(pg.si_key(pg.to_si(vals["diameter"], "length", pg.US), "length"), None,
+                       pg.si_key(pg.to_si(vals["length"], "length", pg.US), "length")),
                t, robust_only=pg.DEMO["robust_only"])
     assert list(us["route"]) == [pg.route_json(r) for r in ref["route"]]
     # the route text in °F: 540 °C reads 1004 °F
@@ -227,6 +228,43 @@ def test_us_units_convert_inputs_and_table(at):
     at.radio(key="units").set_value(pg.SI)
     _run(at)
     assert at.number_input(key="min_yield").value == pytest.approx(d["targets"]["min_yield_mpa"], abs=0.1)
+
+
+def test_unit_switch_recomputes_nothing(at, monkeypatch):
+    """Units are display only: switching to US units and back calls no library function
+    (every result comes from the page's cache), while a target change does re-rank."""
+    import selector.selection.engine as engine
+
+    calls = []
+    for mod, name in ((engine, "prepare"), (engine, "rank"), (engine, "nearest_misses"), (selector, "evaluate")):
+        real = getattr(mod, name)
+
+        def counted(*a, _real=real, _name=name, **k):
+            calls.append(_name)
+            return _real(*a, **k)
+
+        monkeypatch.setattr(mod, name, counted)
+    at.radio(key="units").set_value(pg.US)
+    _run(at)
+    at.radio(key="units").set_value(pg.SI)
+    _run(at)
+    at.radio(key="units").set_value(pg.US)
+    _run(at)
+    assert calls == []
+    at.number_input(key="min_yield").set_value(at.number_input(key="min_yield").value + 1.0)
+    _run(at)
+    assert "rank" in calls and "prepare" not in calls
+
+
+def test_si_keys_survive_a_round_trip_through_us_units():
+    for v in (30.0, 12.5, 47.63, 101.6):
+        us = pg.convert_inputs({"diameter": v}, pg.SI, pg.US)["diameter"]
+        assert pg.si_key(pg.to_si(us, "length", pg.US), "length") == pg.si_key(v, "length")
+    for v in (700.0, 612.3, 1034.2):
+        us = pg.convert_inputs({"min_yield": v}, pg.SI, pg.US)["min_yield"]
+        assert pg.si_targets({"min_yield_mpa": pg.to_si(us, "stress", pg.US)}) == {"min_yield_mpa": v}
+    assert pg.si_targets({"min_elongation_pct": 12.345, "families": ["alloy_steel"]}) == \
+        {"min_elongation_pct": 12.345, "families": ["alloy_steel"]}
 
 
 def test_candidate_view_shows_route_window_profile_sources(at):

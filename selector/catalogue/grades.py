@@ -201,16 +201,23 @@ class Catalogue:
         raise UnknownGradeError(name, nearest(name, names, n=5))
 
 
-def _windows(windows: pd.DataFrame, grade_id: str, family: str, routes) -> dict:
+def _windows(rows_by_scope: Mapping[str, list], grade_id: str, family: str, routes) -> dict:
     out = {}
     for scope in (family, grade_id):          # grade rows override family rows
-        sub = windows[windows["scope"] == scope]
-        for r in sub.itertuples(index=False):
+        for r in rows_by_scope.get(scope, ()):
             vals = tuple(v.strip() for v in str(r.values).split(";") if v.strip())
             out.setdefault(r.route, {})[r.parameter] = Window(
                 r.parameter, float(r.min), float(r.max), float(r.default), vals, str(r.unit),
                 r.source, r.confidence)
     return {k: MappingProxyType(v) for k, v in out.items() if k in routes}
+
+
+def _rows_by(frame: pd.DataFrame, key: str) -> dict:
+    """Rows (named tuples, file order) grouped by ``key``: one pass instead of a filter per grade."""
+    out: dict = {}
+    for r in frame.itertuples(index=False):
+        out.setdefault(getattr(r, key), []).append(r)
+    return out
 
 
 def build_catalogue(grades_path=None, comp_path=None, windows_path=None) -> Catalogue:
@@ -254,8 +261,9 @@ def build_catalogue(grades_path=None, comp_path=None, windows_path=None) -> Cata
             raise DataFileError(str(cp), line, "max_pct", f"maximums of {gid} add up to {s:.2f} % (> 100 %)")
 
     out, index = {}, {}
+    comps_by, windows_by = _rows_by(comps, "grade"), _rows_by(windows, "scope")
     for r in grades.itertuples(index=False):
-        sub = comps[comps["grade"] == r.id]
+        sub = comps_by.get(r.id, [])
         routes = tuple(x.strip() for x in r.routes.split(";") if x.strip())
         des = {"uns": r.uns, "en_name": r.en_name, "en_number": r.en_number, "jis": r.jis}
         aliases = tuple(a.strip() for a in str(r.aliases).split(";") if a.strip())
@@ -266,11 +274,11 @@ def build_catalogue(grades_path=None, comp_path=None, windows_path=None) -> Cata
             base_elongation_pct=r.base_elongation_pct, base_hardness_hb=r.base_hardness_hb,
             relative_price=r.relative_price, corrosion_resistant=bool(r.corrosion_resistant),
             austenitize_c=r.austenitize_c, routes=routes,
-            comp_min=MappingProxyType(dict(zip(sub["element"], sub["min_pct"]))),
-            comp_max=MappingProxyType(dict(zip(sub["element"], sub["max_pct"]))),
-            windows=MappingProxyType(_windows(windows, r.id, r.family, routes)),
+            comp_min=MappingProxyType({c.element: c.min_pct for c in sub}),
+            comp_max=MappingProxyType({c.element: c.max_pct for c in sub}),
+            windows=MappingProxyType(_windows(windows_by, r.id, r.family, routes)),
             source=r.source, confidence=r.confidence,
-            comp_sources=tuple(sorted(set(sub["source"]))),
+            comp_sources=tuple(sorted({c.source for c in sub})),
         )
         out[r.id] = g
         for nm in (r.id, r.name, *aliases, *[v for v in des.values() if v]):

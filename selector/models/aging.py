@@ -35,8 +35,8 @@ import functools
 from dataclasses import dataclass, fields
 
 import numpy as np
-from scipy.optimize import minimize_scalar
 
+from ..cache import disk_table
 from ..errors import InputError, check_choice
 from . import validity
 
@@ -171,10 +171,18 @@ def _shape(x):
 
 @functools.cache
 def _shape_peak() -> tuple[float, float]:
+    x_star, peak = _shape_peak_table()
+    return float(x_star), float(peak)
+
+
+@disk_table       # a constant of the model: solved once, then read from the user's cache directory
+def _shape_peak_table() -> np.ndarray:
+    from scipy.optimize import minimize_scalar     # lazy: scipy.optimize costs ~0.3 s to import
+
     res = minimize_scalar(lambda lx: -_shape(np.exp(lx)), bounds=(-5.0, 5.0), method="bounded",
                           options={"xatol": 1e-10})
     x_star = float(np.exp(res.x))
-    return x_star, float(_shape(x_star))
+    return np.array([x_star, float(_shape(x_star))])
 
 
 def precipitate_shape(peak_ratio):

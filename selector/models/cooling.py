@@ -45,6 +45,7 @@ import functools
 import numpy as np
 from scipy import special
 
+from ..cache import disk_table
 from ..catalogue.loader import Column, Schema, read_table
 from ..errors import InputError
 from . import validity
@@ -179,7 +180,7 @@ def _crossing(kind, bi, xi, theta_star, n_terms=N_TERMS):
     return fo, rate
 
 
-@functools.cache
+@disk_table      # built once, then read from the user's cache directory (selector/cache.py)
 def _rate_table(kind: str, positions: tuple):
     """Dimensionless −dθ/dFo at θ* on the (Bi, θ*, position) grid, from the exact series."""
     xi = np.asarray(positions, float)

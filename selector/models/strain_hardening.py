@@ -274,6 +274,13 @@ def temper_alias_table():
 
 
 def hollomon_constants(grade_id: str, family: str, base_uts_mpa: float) -> dict:
+    """K, n, post-uniform elongation and yield ratio for a grade (a new dict per call,
+    looked up once per argument set: the expansion asks once per grade and section)."""
+    return dict(_hollomon_constants(grade_id, family, float(base_uts_mpa)))
+
+
+@functools.lru_cache(maxsize=1024)
+def _hollomon_constants(grade_id: str, family: str, base_uts_mpa: float) -> dict:
     """K, n, post-uniform elongation and yield ratio for a grade.
 
     A row whose ``scope`` is the grade id wins; else the row of its family.  Where

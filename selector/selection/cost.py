@@ -66,7 +66,8 @@ def part_mass_kg(density_g_cm3, diameter_mm=None, thickness_mm=None, length_mm=1
 
 def relative_cost_per_kg(price_per_kg: np.ndarray, routes: np.ndarray) -> np.ndarray:
     add = route_adders()
-    adders = np.array([add.get(r, np.nan) for r in routes], float)
+    codes, uniq = pd.factorize(np.asarray(routes, dtype=object))     # a few routes, many states
+    adders = np.array([add.get(r, np.nan) for r in uniq], float)[codes]
     if np.isnan(adders).any():
         missing = sorted({r for r, a in zip(routes, adders) if a != a})
         raise InputError("route", missing[0], f"a route with a cost adder in data/route_costs.csv ({', '.join(add)})")

@@ -174,6 +174,30 @@ def convert_inputs(state: Mapping, old: str, new: str) -> dict:
     return out
 
 
+#: decimals of the SI values the page passes to the library (and so of its cache keys): the
+#: precision of the SI inputs (0.01 mm, 0.1 MPa, 0.1 °C), coarser than the US inputs' (0.0001 in,
+#: 0.001 ksi, 0.1 °F).  A unit switch converts the inputs to the other system and back with
+#: rounding (30 mm -> 1.1811 in -> 29.99994 mm); keyed on the rounded SI value, the switch finds
+#: every result in the cache and recomputes nothing (units are display only).
+SI_KEY_DIGITS = {"length": 2, "stress": 1, "temperature": 1, "force": 3}
+
+
+def si_key(value, quantity: str):
+    """An SI input rounded to :data:`SI_KEY_DIGITS` (None stays None)."""
+    if value is None:
+        return None
+    return round(float(value), SI_KEY_DIGITS[quantity])
+
+
+def si_targets(targets: Mapping) -> dict:
+    """SI targets with the unit-bearing values rounded by :func:`si_key` (the others unchanged)."""
+    out = dict(targets)
+    for key, (_w, q, _label) in TARGET_FIELDS.items():
+        if q and out.get(key) is not None:
+            out[key] = si_key(out[key], q)
+    return out
+
+
 #: target key -> (page widget key, quantity or None, label)
 TARGET_FIELDS = {
     "min_yield_mpa": ("min_yield", "stress", "Minimum yield strength"),

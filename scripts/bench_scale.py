@@ -1,0 +1,136 @@
+"""Scale of the state expansion: the catalogue replicated ×k (synthetic copies, for
+this benchmark only) and every route family's process-window grid refined ×r along
+its main parameter.  Prints states, time, peak memory and states per second.
+
+Each case runs in a fresh process (``python scripts/bench_scale.py --case k r``) so
+its peak resident memory is its own; the figure reported is the peak RSS growth over
+the process after imports and the cooling tables (``resource.getrusage``), beside the
+tracemalloc peak of the expansion (numpy and Python objects).
+
+Usage: python scripts/bench_scale.py [--quick]
+"""
+from __future__ import annotations
+
+import dataclasses
+import json
+import os
+import subprocess
+import sys
+import time
+from pathlib import Path
+from types import MappingProxyType
+
+sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
+
+
+def synthetic_grades(copies: int):
+    """The catalogue's grades ×``copies``: copy k > 0 has id ``<id>~k`` and every
+    composition limit scaled by (1 + 0.002 k), so the copies are not identical
+    (synthetic, benchmark only)."""
+    from selector.catalogue.grades import default_catalogue
+
+    out = []
+    for g in default_catalogue().grades.values():
+        out.append(g)
+        for k in range(1, copies):
+            f = 1.0 + 0.002 * k
+            out.append(dataclasses.replace(
+                g, id=f"{g.id}~{k}",
+                comp_min=MappingProxyType({e: v * f for e, v in g.comp_min.items()}),
+                comp_max=MappingProxyType({e: v * f for e, v in g.comp_max.items()})))
+    return out
+
+
+def refine_grid(grid: dict, main: str | None, factor: int) -> dict:
+    """The grid with ``factor``× as many points along ``main`` between its extremes,
+    for each combination of the other parameters (other parameters copied from the
+    first point of that combination)."""
+    import numpy as np
+
+    if factor <= 1 or not main or main not in grid or len(grid[main]) == 0:
+        return grid
+    vals = np.asarray(grid[main], float)
+    others = [k for k in grid if k != main]
+    keys = [tuple(str(grid[k][i]) for k in others) for i in range(len(vals))]
+    groups: dict = {}
+    for i, key in enumerate(keys):
+        groups.setdefault(key, []).append(i)
+    parts = {k: [] for k in grid}
+    for idx in groups.values():
+        v = vals[idx]
+        lo, hi = np.nanmin(v), np.nanmax(v)
+        n = max(1, (len(idx) - 1) * factor + 1) if hi > lo else 1
+        new = np.linspace(lo, hi, n) if n > 1 else v[:1]
+        for k in grid:
+            if k == main:
+                parts[k].append(new)
+            else:
+                parts[k].append(np.repeat(np.asarray(grid[k])[idx[:1]], len(new)))
+    return {k: np.concatenate(v) for k, v in parts.items()}
+
+
+class RefinedFamily:
+    """A route family whose grid is refined ×``factor`` (delegates everything else)."""
+
+    def __init__(self, fam, factor: int):
+        self._fam = fam
+        self._factor = factor
+
+    def __getattr__(self, name):
+        return getattr(self._fam, name)
+
+    def grid(self, grade):
+        return refine_grid(self._fam.grid(grade), self._fam.main_parameter, self._factor)
+
+
+def run_case(copies: int, factor: int, diameter_mm: float = 40.0) -> dict:
+    import resource
+    import tracemalloc
+
+    import numpy as np  # noqa: F401
+    from selector.routes import families as fam_registry
+    from selector.states.expand import expand, expand_states
+
+    expand(diameter_mm)          # imports, catalogue and the cooling tables: not the expansion's cost
+    grades = synthetic_grades(copies)
+    fams = [RefinedFamily(f, factor) for f in fam_registry.available()]
+    rss0 = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss
+    tracemalloc.start()
+    t0 = time.perf_counter()
+    c0 = time.process_time()
+    df = expand_states(diameter_mm, None, grades=grades, families=fams)
+    cpu = time.process_time() - c0
+    wall = time.perf_counter() - t0
+    _cur, peak = tracemalloc.get_traced_memory()
+    tracemalloc.stop()
+    rss1 = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss
+    return {"copies": copies, "refine": factor, "states": int(len(df)), "wall_s": wall, "cpu_s": cpu,
+            "tracemalloc_peak_mb": peak / 2**20, "rss_growth_mb": (rss1 - rss0) / 1024.0,
+            "frame_mb": float(df.memory_usage(deep=True).sum()) / 2**20}
+
+
+def run(cases=((1, 1), (10, 1), (1, 10), (10, 10))) -> list:
+    rows = []
+    for copies, factor in cases:
+        out = subprocess.run([sys.executable, __file__, "--case", str(copies), str(factor)],
+                             capture_output=True, text=True, env={**os.environ})
+        if out.returncode != 0:
+            print(out.stderr[-2000:])
+            raise SystemExit(f"scale case {copies}x{factor} failed")
+        rows.append(json.loads(out.stdout.strip().splitlines()[-1]))
+    print(f"{'catalogue':>9s} {'window':>6s} {'states':>9s} {'wall s':>7s} {'cpu s':>7s} {'states/s':>10s} "
+          f"{'RSS +MB':>8s} {'tracemalloc MB':>14s} {'table MB':>8s} {'B/state':>8s}")
+    for r in rows:
+        print(f"{'x' + str(r['copies']):>9s} {'x' + str(r['refine']):>6s} {r['states']:9d} {r['wall_s']:7.2f} "
+              f"{r['cpu_s']:7.2f} {r['states'] / r['cpu_s']:10.0f} {r['rss_growth_mb']:8.0f} "
+              f"{r['tracemalloc_peak_mb']:14.0f} {r['frame_mb']:8.0f} "
+              f"{r['frame_mb'] * 2**20 / r['states']:8.0f}")
+    return rows
+
+
+if __name__ == "__main__":
+    if "--case" in sys.argv:
+        i = sys.argv.index("--case")
+        print(json.dumps(run_case(int(sys.argv[i + 1]), int(sys.argv[i + 2]))))
+    else:
+        run(((1, 1), (10, 1), (1, 10)) if "--quick" in sys.argv else ((1, 1), (10, 1), (1, 10), (10, 10)))

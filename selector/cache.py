@@ -1,0 +1,407 @@
+"""Build-once tables kept on disk between processes.
+
+Some tables depend only on constants of the code (the quench-cooling rate table of
+:mod:`selector.models.cooling` takes about 2 s to build from the exact series).  The
+:func:`disk_table` decorator builds such a table once, saves it as an ``.npz`` file
+under the user's cache directory and loads it in later processes.  :func:`disk_frame`
+does the same for a DataFrame that depends on all the code and data (the prepared
+states table of one section, :mod:`selector.selection.engine`), keyed by a hash of
+every source and data file.
+
+A cache file is never trusted:
+
+* its name and its stored key are a SHA-256 of the builder's qualified name, its
+  arguments, the package version, the numpy and scipy versions and the **source
+  text of the builder's module** (a change of the model code gives a new key, so a
+  stale table is never read);
+* it carries a SHA-256 checksum of every stored array (dtype, shape and bytes),
+  verified on load; a file that fails to load, has the wrong key or the wrong
+  checksum is rebuilt from scratch and rewritten;
+* it is written atomically (a temporary file in the same directory, then
+  ``os.replace``), so a reader never sees half a file.
+
+The result is bit-identical to a fresh build (``.npz`` stores float64 exactly;
+``tests/test_cache.py`` checks it).  Within one process the table is also kept in
+memory.  Returned arrays are read-only.
+
+Cache directory: ``$SELECTOR_CACHE_DIR`` if set, else ``$XDG_CACHE_HOME/selector``,
+else ``~/.cache/selector`` (the XDG base-directory convention).  Set
+``SELECTOR_DISK_CACHE=0`` to build in every process without touching the disk.
+An unwritable directory only costs the rebuild; it is never an error.
+"""
+from __future__ import annotations
+
+import functools
+import hashlib
+import inspect
+import io
+import os
+import sys
+import tempfile
+import threading
+import zipfile
+from pathlib import Path
+
+import numpy as np
+
+#: bump to invalidate every cache file written by an older layout of this module
+FORMAT = 1
+_KEY_NAME = "__key__"
+_SUM_NAME = "__checksum__"
+_TUPLE_NAME = "__tuple__"
+
+
+def cache_dir() -> Path:
+    """Directory of the table cache (resolved at each call, so the environment can change it)."""
+    env = os.environ.get("SELECTOR_CACHE_DIR")
+    if env:
+        return Path(env).expanduser()
+    xdg = os.environ.get("XDG_CACHE_HOME")
+    base = Path(xdg).expanduser() if xdg else Path.home() / ".cache"
+    return base / "selector"
+
+
+def disk_enabled() -> bool:
+    return os.environ.get("SELECTOR_DISK_CACHE", "1").strip().lower() not in ("0", "off", "false", "no")
+
+
+@functools.cache
+def _package_version() -> str:
+    """The version in the checkout's pyproject.toml, else the installed metadata
+    (``importlib.metadata`` costs ~0.1 s, so it is the fallback)."""
+    import re
+    pyproject = Path(__file__).resolve().parents[1] / "pyproject.toml"
+    try:
+        m = re.search(r'^version\s*=\s*"([^"]+)"', pyproject.read_text(encoding="utf-8"), re.M)
+        if m:
+            return m.group(1)
+    except OSError:
+        pass
+    try:
+        from importlib.metadata import version
+        return version("selector")
+    except Exception:                      # not installed: the source hash still keys the file
+        return "unknown"
+
+
+@functools.cache
+def _source_hash(module_name: str) -> str:
+    mod = sys.modules[module_name]
+    try:
+        text = Path(inspect.getsourcefile(mod)).read_bytes()
+    except (TypeError, OSError):
+        text = repr(module_name).encode()
+    return hashlib.sha256(text).hexdigest()
+
+
+def _library_versions() -> str:
+    import numpy
+    import scipy          # the tables are built with scipy.special; its version is part of the key
+    return f"numpy={numpy.__version__};scipy={scipy.__version__}"
+
+
+def table_key(func, args: tuple, kwargs: dict) -> str:
+    """SHA-256 key of one table: builder, arguments, versions and the module's source text."""
+    text = "\n".join([
+        f"format={FORMAT}",
+        f"builder={func.__module__}.{func.__qualname__}",
+        f"args={args!r}",
+        f"kwargs={sorted(kwargs.items())!r}",
+        f"package={_package_version()}",
+        _library_versions(),
+        f"source={_source_hash(func.__module__)}",
+    ])
+    return hashlib.sha256(text.encode()).hexdigest()
+
+
+def _as_dict(value) -> dict:
+    if isinstance(value, np.ndarray):
+        return {"arr_0": value}
+    if isinstance(value, tuple) and all(isinstance(v, np.ndarray) for v in value):
+        return {f"arr_{i}": v for i, v in enumerate(value)}
+    raise TypeError(f"disk_table builders return an ndarray or a tuple of ndarrays, not {type(value).__name__}")
+
+
+def _from_dict(arrays: dict, was_tuple: bool):
+    vals = [arrays[f"arr_{i}"] for i in range(len(arrays))]
+    for v in vals:
+        v.setflags(write=False)
+    return tuple(vals) if was_tuple else vals[0]
+
+
+def checksum(arrays: dict) -> str:
+    """SHA-256 over the names, dtypes, shapes and bytes of ``arrays``."""
+    h = hashlib.sha256()
+    for name in sorted(arrays):
+        a = np.ascontiguousarray(arrays[name])
+        h.update(f"{name}|{a.dtype.str}|{a.shape}|".encode())
+        h.update(a.tobytes())
+    return h.hexdigest()
+
+
+def table_path(func, key: str) -> Path:
+    return cache_dir() / f"{func.__module__}.{func.__qualname__}-{key[:32]}.npz"
+
+
+def _load(path: Path, key: str):
+    """The arrays stored at ``path`` if the file is whole, has ``key`` and its checksum; else None."""
+    try:
+        with open(path, "rb") as f, np.load(f, allow_pickle=False) as z:
+            data = {n: z[n] for n in z.files}
+    except (OSError, ValueError, EOFError, zipfile.BadZipFile, KeyError):
+        return None
+    stored_key = data.pop(_KEY_NAME, None)
+    stored_sum = data.pop(_SUM_NAME, None)
+    was_tuple = data.pop(_TUPLE_NAME, None)
+    if stored_key is None or stored_sum is None or was_tuple is None or str(stored_key) != key:
+        return None
+    if not data or set(data) != {f"arr_{i}" for i in range(len(data))} or str(stored_sum) != checksum(data):
+        return None
+    return data, bool(was_tuple)
+
+
+def _save(path: Path, key: str, arrays: dict, was_tuple: bool) -> bool:
+    try:
+        path.parent.mkdir(parents=True, exist_ok=True)
+        buf = io.BytesIO()
+        np.savez(buf, **arrays, **{_KEY_NAME: np.array(key), _SUM_NAME: np.array(checksum(arrays)),
+                                   _TUPLE_NAME: np.array(was_tuple)})
+        fd, tmp = tempfile.mkstemp(prefix=path.name + ".", suffix=".tmp", dir=path.parent)
+        try:
+            with os.fdopen(fd, "wb") as f:
+                f.write(buf.getvalue())
+                f.flush()
+                os.fsync(f.fileno())
+            os.replace(tmp, path)
+        except BaseException:
+            try:
+                os.unlink(tmp)
+            except OSError:
+                pass
+            raise
+        return True
+    except OSError:
+        return False
+
+
+def disk_table(func):
+    """Decorator for a pure builder of a constant numeric table (an ndarray or a tuple
+    of ndarrays) whose arguments are plain hashable values (str, float, int, tuples).
+
+    The first call in a process loads the table from the cache directory if a valid
+    file exists, otherwise builds it and writes the file; later calls return the same
+    (read-only) arrays from memory.  ``wrapper.build(*args)`` always builds from
+    scratch (no cache of any kind); ``wrapper.cache_clear()`` empties the in-memory
+    copy; ``wrapper.cache_path(*args)`` is the file it uses.
+    """
+    memo: dict = {}
+    lock = threading.Lock()
+
+    @functools.wraps(func)
+    def wrapper(*args, **kwargs):
+        mkey = (args, tuple(sorted(kwargs.items())))
+        hit = memo.get(mkey)
+        if hit is not None:
+            return hit
+        with lock:
+            hit = memo.get(mkey)
+            if hit is not None:
+                return hit
+            value = _cached_build(func, wrapper.build, args, kwargs)
+            memo[mkey] = value
+            return value
+
+    def cache_path(*args, **kwargs) -> Path:
+        return table_path(func, table_key(func, args, kwargs))
+
+    wrapper.build = func
+    wrapper.cache_clear = memo.clear
+    wrapper.cache_path = cache_path
+    return wrapper
+
+
+def _cached_build(func, build, args, kwargs):
+    """The table of ``func`` (which names the file and the key) from disk, else from ``build``."""
+    if not disk_enabled():
+        value = build(*args, **kwargs)
+        return _from_dict(_as_dict(value), isinstance(value, tuple))
+    key = table_key(func, args, kwargs)
+    path = table_path(func, key)
+    loaded = _load(path, key)
+    if loaded is not None:
+        return _from_dict(*loaded)
+    value = build(*args, **kwargs)
+    arrays = _as_dict(value)
+    was_tuple = isinstance(value, tuple)
+    _save(path, key, arrays, was_tuple)
+    return _from_dict(arrays, was_tuple)
+
+
+# --------------------------------------------------------------------------- tables of states
+#: most frame files kept in the cache directory (the oldest are removed beyond it)
+MAX_FRAME_FILES = 48
+
+
+@functools.cache
+def code_and_data_hash() -> str:
+    """SHA-256 over every source file of the package and every file under ``data/``
+    (relative path and bytes): a key part for results that depend on all the models
+    and the whole catalogue."""
+    pkg = Path(__file__).resolve().parent
+    h = hashlib.sha256()
+    roots = [pkg]
+    try:
+        from .catalogue.loader import data_dir
+        roots.append(Path(data_dir()).resolve())
+    except Exception:                                  # pragma: no cover - data dir always present
+        pass
+    for root in roots:
+        for p in sorted(root.rglob("*")):
+            if p.is_file() and p.suffix in (".py", ".csv", ".json", ".toml", ".txt", ".md") \
+                    and "__pycache__" not in p.parts:
+                h.update(str(p.relative_to(root)).encode())
+                h.update(b"\0")
+                h.update(p.read_bytes())
+    return h.hexdigest()
+
+
+def frame_key(func, args: tuple, kwargs: dict) -> str:
+    import pandas
+    text = "\n".join([
+        f"format={FORMAT}",
+        f"builder={func.__module__}.{func.__qualname__}",
+        f"args={args!r}",
+        f"kwargs={sorted(kwargs.items())!r}",
+        f"package={_package_version()}",
+        _library_versions(),
+        f"pandas={pandas.__version__}",
+        f"code_and_data={code_and_data_hash()}",
+    ])
+    return hashlib.sha256(text.encode()).hexdigest()
+
+
+def frame_to_arrays(df) -> dict | None:
+    """Arrays that rebuild ``df`` exactly (RangeIndex, numeric, bool and text columns),
+    or None for a frame this layout cannot hold (it is then not cached)."""
+    import json
+
+    import pandas as pd
+
+    if not isinstance(df.index, pd.RangeIndex) or df.index.start != 0 or df.index.step != 1:
+        return None
+    if not all(isinstance(c, str) for c in df.columns) or df.columns.has_duplicates:
+        return None
+    try:
+        attrs = json.dumps(df.attrs, sort_keys=True)
+    except (TypeError, ValueError):
+        return None
+    out = {"__columns__": np.array(list(df.columns), dtype=str), "__attrs__": np.array(attrs),
+           "__nrows__": np.array(len(df), np.int64)}
+    dtypes = []
+    for i, c in enumerate(df.columns):
+        s = df[c]
+        dt = s.dtype
+        if isinstance(dt, np.dtype) and dt.kind in "biuf":
+            out[f"c{i}"] = s.to_numpy()
+            dtypes.append(dt.str)
+        elif str(dt) in ("str", "object") or isinstance(dt, pd.StringDtype):
+            vals = s.to_numpy(dtype=object)
+            na = pd.isna(vals)
+            if not all(isinstance(v, str) for v in vals[~na]):
+                return None
+            codes, uniques = pd.factorize(vals, use_na_sentinel=True)
+            out[f"c{i}"] = codes.astype(np.int32)
+            out[f"u{i}"] = np.array(list(uniques), dtype=str) if len(uniques) else np.array([], dtype=str)
+            dtypes.append("text:" + str(dt))
+        else:
+            return None
+    out["__dtypes__"] = np.array(dtypes, dtype=str)
+    return out
+
+
+def arrays_to_frame(arrays: dict):
+    import json
+
+    import pandas as pd
+
+    cols = [str(c) for c in arrays["__columns__"]]
+    dtypes = [str(d) for d in arrays["__dtypes__"]]
+    n = int(arrays["__nrows__"])
+    data = {}
+    for i, (c, dt) in enumerate(zip(cols, dtypes)):
+        a = arrays[f"c{i}"]
+        if len(a) != n:
+            raise ValueError(f"column {c} has {len(a)} rows, expected {n}")
+        if dt.startswith("text:"):
+            uniq = np.asarray(arrays[f"u{i}"]).astype(object)
+            vals = np.empty(n, dtype=object)
+            ok = a >= 0
+            vals[ok] = uniq[a[ok]]
+            vals[~ok] = np.nan
+            kind = dt[5:]
+            data[c] = pd.Series(vals, dtype=object if kind == "object" else kind)
+        else:
+            data[c] = pd.Series(np.asarray(a, dtype=np.dtype(dt)), copy=False)
+    df = pd.DataFrame(data, columns=cols)
+    df.attrs.update(json.loads(str(arrays["__attrs__"])))
+    return df
+
+
+def _prune(directory: Path, pattern: str, keep: int) -> None:
+    try:
+        files = sorted(directory.glob(pattern), key=lambda p: p.stat().st_mtime, reverse=True)
+        for p in files[keep:]:
+            p.unlink()
+    except OSError:
+        pass
+
+
+def disk_frame(func):
+    """Decorator for a pure builder of a pandas DataFrame that depends on its
+    arguments, the package code and the data files only (the prepared states table
+    of one section).  Like :func:`disk_table`, but keyed by a hash of **every** source
+    and data file of the package (:func:`code_and_data_hash`), since such a table
+    depends on all the models and the whole catalogue.  No in-memory copy is kept
+    (the caller keeps its own); at most :data:`MAX_FRAME_FILES` files are kept.
+    ``wrapper.build`` builds from scratch; a frame whose columns this layout cannot
+    hold exactly is returned but not written."""
+
+    @functools.wraps(func)
+    def wrapper(*args, **kwargs):
+        if not disk_enabled():
+            return wrapper.build(*args, **kwargs)
+        key = frame_key(func, args, kwargs)
+        path = cache_dir() / f"{func.__module__}.{func.__qualname__}-{key[:32]}.npz"
+        loaded = _load(path, key)
+        if loaded is not None:
+            try:
+                return arrays_to_frame(_unflatten(loaded[0]))
+            except (KeyError, ValueError, TypeError):
+                pass
+        df = wrapper.build(*args, **kwargs)
+        arrays = frame_to_arrays(df)
+        if arrays is not None:
+            flat = {f"arr_{i}": v for i, v in enumerate(_flatten(arrays))}
+            if _save(path, key, flat, True):
+                try:
+                    os.utime(path)
+                except OSError:
+                    pass
+                _prune(path.parent, f"{func.__module__}.{func.__qualname__}-*.npz", MAX_FRAME_FILES)
+        return df
+
+    wrapper.build = func
+    return wrapper
+
+
+def _flatten(arrays: dict) -> list:
+    """Named arrays as a list (names first, as one text array) for the arr_i layout of the cache files."""
+    names = sorted(arrays)
+    return [np.array(names, dtype=str)] + [arrays[n] for n in names]
+
+
+def _unflatten(data: dict) -> dict:
+    names = [str(n) for n in data["arr_0"]]
+    if len(names) != len(data) - 1:
+        raise ValueError("frame file: names and arrays differ in number")
+    return {n: data[f"arr_{i + 1}"] for i, n in enumerate(names)}

@@ -1,0 +1,192 @@
+"""The on-disk table cache (selector/cache.py): cached runs equal from-scratch runs bit
+for bit, and a corrupt, stale or foreign cache file is detected and rebuilt."""
+from __future__ import annotations
+
+import zipfile
+
+import numpy as np
+import pandas as pd
+import pytest
+
+from selector import cache
+from selector.models import aging, cooling
+from selector.routes import quench_response as qr
+from selector.selection import engine
+
+
+@pytest.fixture
+def cache_dir(tmp_path, monkeypatch):
+    monkeypatch.setenv("SELECTOR_CACHE_DIR", str(tmp_path))
+    monkeypatch.delenv("SELECTOR_DISK_CACHE", raising=False)
+    cooling._rate_table.cache_clear()
+    yield tmp_path
+    cooling._rate_table.cache_clear()
+
+
+def _counting(monkeypatch):
+    """Count calls of the cooling table's builder (the function behind the cache)."""
+    calls = []
+    real = cooling._rate_table.build
+
+    def counted(*args):
+        calls.append(args)
+        return real(*args)
+
+    monkeypatch.setattr(cooling._rate_table, "build", counted)
+    return calls
+
+
+def test_cache_dir_follows_the_environment(tmp_path, monkeypatch):
+    monkeypatch.setenv("SELECTOR_CACHE_DIR", str(tmp_path / "a"))
+    assert cache.cache_dir() == tmp_path / "a"
+    monkeypatch.delenv("SELECTOR_CACHE_DIR")
+    monkeypatch.setenv("XDG_CACHE_HOME", str(tmp_path / "xdg"))
+    assert cache.cache_dir() == tmp_path / "xdg" / "selector"
+
+
+def test_rate_table_from_disk_is_bit_identical_to_a_fresh_build(cache_dir):
+    fresh = cooling._rate_table.build("cylinder", qr.POSITIONS)          # no cache of any kind
+    first = cooling._rate_table("cylinder", qr.POSITIONS)                # builds and writes
+    path = cooling._rate_table.cache_path("cylinder", qr.POSITIONS)
+    assert path.exists() and path.parent == cache_dir
+    cooling._rate_table.cache_clear()
+    loaded = cooling._rate_table("cylinder", qr.POSITIONS)               # read from disk
+    assert loaded is not first
+    assert loaded.dtype == fresh.dtype and loaded.shape == fresh.shape
+    assert loaded.tobytes() == fresh.tobytes() and first.tobytes() == fresh.tobytes()
+    assert not loaded.flags.writeable
+
+
+def test_cooling_rates_through_the_cache_equal_the_uncached_chain(cache_dir, monkeypatch):
+    h = np.array([300.0, 1500.0, 6000.0])
+    d = np.array([12.0, 40.0, 95.0])
+    with_disk = cooling.cooling_rate_at_c_s(h, diameter_mm=d)
+    cooling._rate_table.cache_clear()
+    with_disk_again = cooling.cooling_rate_at_c_s(h, diameter_mm=d)      # second process: from the file
+    monkeypatch.setenv("SELECTOR_DISK_CACHE", "0")
+    cooling._rate_table.cache_clear()
+    no_disk = cooling.cooling_rate_at_c_s(h, diameter_mm=d)
+    assert with_disk.tobytes() == no_disk.tobytes() == with_disk_again.tobytes()
+
+
+@pytest.mark.parametrize("damage", ["truncate", "flip", "garbage", "foreign_key"])
+def test_corrupt_cache_file_is_detected_and_rebuilt(cache_dir, monkeypatch, damage):
+    good = cooling._rate_table("cylinder", (0.0,)).copy()
+    path = cooling._rate_table.cache_path("cylinder", (0.0,))
+    raw = path.read_bytes()
+    if damage == "truncate":
+        path.write_bytes(raw[: len(raw) // 2])
+    elif damage == "flip":
+        # change one float of the table inside the archive, keep the archive itself valid
+        with np.load(path) as z:
+            data = {k: z[k] for k in z.files}
+        arr = data["arr_0"].copy()
+        arr.flat[7] = arr.flat[7] + 1.0
+        data["arr_0"] = arr
+        np.savez(path, **data)
+    elif damage == "garbage":
+        path.write_bytes(b"not a cache file" * 10)
+    else:
+        # a whole, self-consistent file written for other arguments
+        other = cooling._rate_table.cache_path("cylinder", (0.5,))
+        cooling._rate_table("cylinder", (0.5,))
+        path.write_bytes(other.read_bytes())
+    if damage != "garbage":
+        assert zipfile.is_zipfile(path) or damage == "truncate"
+    calls = _counting(monkeypatch)
+    cooling._rate_table.cache_clear()
+    again = cooling._rate_table("cylinder", (0.0,))
+    assert calls == [("cylinder", (0.0,))]                    # rebuilt, not read
+    assert again.tobytes() == good.tobytes()
+    # and the file is whole again: the next process reads it without building
+    calls.clear()
+    cooling._rate_table.cache_clear()
+    cooling._rate_table("cylinder", (0.0,))
+    assert calls == []
+
+
+def test_changed_builder_source_gives_a_new_key(cache_dir, monkeypatch):
+    key = cache.table_key(cooling._rate_table.build, ("cylinder", (0.0,)), {})
+    monkeypatch.setattr(cache, "_source_hash", lambda module: "edited source")
+    assert cache.table_key(cooling._rate_table.build, ("cylinder", (0.0,)), {}) != key
+
+
+def test_unwritable_cache_directory_only_costs_the_rebuild(tmp_path, monkeypatch):
+    blocker = tmp_path / "file"
+    blocker.write_text("a file where the cache directory should be")
+    monkeypatch.setenv("SELECTOR_CACHE_DIR", str(blocker / "sub"))
+    cooling._rate_table.cache_clear()
+    try:
+        tab = cooling._rate_table("cylinder", (0.0,))
+    finally:
+        cooling._rate_table.cache_clear()
+    assert tab.tobytes() == cooling._rate_table.build("cylinder", (0.0,)).tobytes()
+
+
+def test_aging_constant_from_the_cache_equals_the_solved_value(cache_dir):
+    solved = aging._shape_peak_table.build()
+    aging._shape_peak_table.cache_clear()
+    aging._shape_peak_table()
+    aging._shape_peak_table.cache_clear()
+    loaded = aging._shape_peak_table()
+    assert loaded.tobytes() == solved.tobytes()
+    aging._shape_peak_table.cache_clear()
+
+
+def test_prepared_table_from_disk_equals_a_fresh_computation(cache_dir):
+    args = (47.0, None, 120.0, (("4140", 2.5),))
+    fresh = engine._prepare_table.build(*args)
+    engine._prepare_table(*args)                                # builds and writes
+    files = list(cache_dir.glob("selector.selection.engine._prepare_table-*.npz"))
+    assert len(files) == 1
+    loaded = engine._prepare_table(*args)                       # read from disk
+    pd.testing.assert_frame_equal(loaded, fresh, check_exact=True)
+    assert list(loaded.dtypes) == list(fresh.dtypes)
+    assert loaded.attrs == fresh.attrs
+    # the selection on the loaded table is the same as on the fresh one
+    t = {"min_yield_mpa": 700, "min_elongation_pct": 12}
+    pd.testing.assert_frame_equal(engine.rank(loaded, t), engine.rank(fresh, t), check_exact=True)
+
+
+def test_corrupt_prepared_table_is_rebuilt(cache_dir, monkeypatch):
+    args = (52.0, None, 100.0, ())
+    first = engine._prepare_table(*args)
+    (path,) = cache_dir.glob("selector.selection.engine._prepare_table-*.npz")
+    with np.load(path) as z:
+        data = {k: z[k] for k in z.files}
+    # damage one float column of the stored table, keep the archive valid
+    names = [str(n) for n in data["arr_0"]]
+    i = next(i for i, n in enumerate(names) if n.startswith("c") and data[f"arr_{i + 1}"].dtype == np.float64)
+    arr = data[f"arr_{i + 1}"].copy()
+    arr[0] = -1.0
+    data[f"arr_{i + 1}"] = arr
+    np.savez(path, **data)
+    calls = []
+    real = engine._prepare_table.build
+
+    def counted(*a):
+        calls.append(a)
+        return real(*a)
+
+    monkeypatch.setattr(engine._prepare_table, "build", counted)
+    again = engine._prepare_table(*args)
+    assert calls == [args]                                      # checksum failed: rebuilt, not read
+    pd.testing.assert_frame_equal(again, first, check_exact=True)
+    calls.clear()
+    pd.testing.assert_frame_equal(engine._prepare_table(*args), first, check_exact=True)
+    assert calls == []                                          # the rewritten file is whole
+
+
+def test_frame_layout_round_trip_keeps_text_missing_values_and_dtypes():
+    df = pd.DataFrame({"a": [1.5, np.nan, -0.0], "b": ["x", None, "x"], "c": [1, 2, 3],
+                       "d": [True, False, True]})
+    df.attrs["section"] = {"diameter_mm": 30.0, "thickness_mm": None}
+    back = cache.arrays_to_frame(cache.frame_to_arrays(df))
+    pd.testing.assert_frame_equal(back, df, check_exact=True)
+    assert np.signbit(back["a"].to_numpy()[2])
+    assert back.attrs == df.attrs
+
+
+def test_frame_layout_refuses_what_it_cannot_hold():
+    assert cache.frame_to_arrays(pd.DataFrame({"a": [1.0]}, index=[5])) is None
+    assert cache.frame_to_arrays(pd.DataFrame({"a": [[1, 2]]})) is None
