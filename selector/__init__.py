@@ -16,8 +16,11 @@ CAUTION = ("Estimates for preliminary selection only. The final choice needs cer
 from .selection.engine import alternatives, nearest_misses, select
 from .design.pins import pin_targets
 from .design.sweep import diameter_sweep
+from .design.batch import batch
+from .design.parts_list import PartsListError, read_parts
+from .design.stock import rationalise
 
 __all__ = ["catalogue", "grade", "evaluate", "select", "nearest_misses", "alternatives", "pin_targets",
-           "diameter_sweep", "CAUTION",
+           "diameter_sweep", "batch", "rationalise", "read_parts", "PartsListError", "CAUTION",
            "SelectorError", "InputError", "RouteError", "NotModelledError", "UnknownGradeError",
            "DataFileError", "SelectorWarning"]
