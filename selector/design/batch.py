@@ -81,7 +81,8 @@ def _misses_text(row: dict) -> str:
 
 
 def section_candidates(diameter_mm, thickness_mm, parts: list[dict], top: int | None,
-                       price_sheet: dict | None = None, robust_only: bool = False) -> pd.DataFrame:
+                       price_sheet: dict | None = None, robust_only: bool = False,
+                       per_grade: bool = False) -> pd.DataFrame:
     """The candidates of every part cut from one section (one Dask task).
 
     Parameters
@@ -97,6 +98,9 @@ def section_candidates(diameter_mm, thickness_mm, parts: list[dict], top: int | 
         ``{grade id: relative price per kg}``.
     robust_only : bool
         Keep only candidates that meet the targets at every composition corner.
+    per_grade : bool
+        One candidate per grade (its cheapest route for the part, robust first),
+        cheapest grade first, instead of the engine's order.
 
     Returns
     -------
@@ -115,6 +119,9 @@ def section_candidates(diameter_mm, thickness_mm, parts: list[dict], top: int | 
         cand = select(first["targets"], d, thickness_mm=thickness_mm, length_mm=REFERENCE_LENGTH_MM,
                       price_sheet=price_sheet, robust_only=robust_only, **first["service"])
         if len(cand):
+            if per_grade:
+                cand = cand.assign(_r=~cand["robust"].astype(bool)).sort_values(
+                    ["part_cost", "_r", "grade"], kind="stable").drop_duplicates("grade").drop(columns="_r")
             rows = cand if top is None else cand.head(top)
             rows = rows.assign(status="candidate", miss_score=0.0, misses="")
         else:
@@ -203,7 +210,8 @@ def _tasks(parts: pd.DataFrame):
 
 
 def batch(parts, top: int | None = 5, scheduler: str | None = None, *, price_sheet: dict | None = None,
-          robust_only: bool = False, progress: Callable[[int, int], None] | None = None) -> pd.DataFrame:
+          robust_only: bool = False, per_grade: bool = False,
+          progress: Callable[[int, int], None] | None = None) -> pd.DataFrame:
     """The best candidates of every part of a parts list.
 
     Parameters
@@ -221,6 +229,10 @@ def batch(parts, top: int | None = 5, scheduler: str | None = None, *, price_she
         ``{grade id: relative price per kg}`` (see :func:`selector.studies.load_price_sheet`).
     robust_only : bool
         Keep only candidates that meet the targets at every composition corner.
+    per_grade : bool
+        Keep one candidate per grade (its cheapest route for the part), cheapest
+        first: the candidate set :func:`selector.rationalise` needs to consolidate
+        grades.  Default False: the engine's own order.
     progress : callable, optional
         Called as ``progress(parts_done, parts_total)`` as sections finish.
 
@@ -253,11 +265,11 @@ def batch(parts, top: int | None = 5, scheduler: str | None = None, *, price_she
     client = connect(addr) if addr else None
     work = _tasks(table)
     total = len(table)
-    names = [f"selector-section-{i}-{dask.base.tokenize(sec, recs, top, price_sheet, robust_only)}"
+    names = [f"selector-section-{i}-{dask.base.tokenize(sec, recs, top, price_sheet, robust_only, per_grade)}"
              for i, (sec, recs) in enumerate(work)]
     sizes = {n: len(recs) for n, (_, recs) in zip(names, work)}
     delayed = [dask.delayed(section_candidates, pure=True)(sec[0], sec[1], recs, None if top is None else int(top),
-                                                           price_sheet, robust_only, dask_key_name=n)
+                                                           price_sheet, robust_only, per_grade, dask_key_name=n)
                for n, (sec, recs) in zip(names, work)]
     done = [0]
 
@@ -280,10 +292,11 @@ def batch(parts, top: int | None = 5, scheduler: str | None = None, *, price_she
         else:
             from distributed import as_completed
 
-            futures = client.compute(delayed)
-            for fut in as_completed(futures):
-                tick(sizes.get(fut.key, 0))
-            results = client.gather(futures)
+            with client.as_current():
+                futures = client.compute(delayed)
+                for fut in as_completed(futures):
+                    tick(sizes.get(fut.key, 0))
+                results = client.gather(futures)
     finally:
         if client is not None:
             client.close()
