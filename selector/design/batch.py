@@ -136,22 +136,22 @@ def section_candidates(diameter_mm, thickness_mm, parts: list[dict], top: int | 
         keep = [c for c in RESULT_COLUMNS + list(PASS_THROUGH) if c in rows.columns]
         base = rows[keep].reset_index(drop=True)
         base["rank"] = np.arange(1, len(base) + 1)
-        for p in members:
-            f = base.copy()
-            scale = p["length_mm"] / REFERENCE_LENGTH_MM
-            for c in ("mass_kg", "part_cost"):
-                if c in f:
-                    f[c] = f[c].astype(float) * scale
-            f["part_id"] = p["part_id"]
-            f["order"] = p["order"]
-            f["quantity_per_year"] = p["quantity_per_year"]
-            f["annual_cost"] = f["part_cost"].astype(float) * p["quantity_per_year"] if "part_cost" in f \
-                else np.nan
-            f["diameter_mm"] = np.nan if d is None else float(d)
-            f["thickness_mm"] = np.nan if thickness_mm is None else float(thickness_mm)
-            f["length_mm"] = p["length_mm"]
-            f["description"] = p.get("description", "")
-            frames.append(f)
+        k, m = len(base), len(members)
+        f = base.iloc[np.tile(np.arange(k), m)].reset_index(drop=True)
+        length = np.repeat(np.array([p["length_mm"] for p in members], float), k)
+        qty = np.repeat(np.array([p["quantity_per_year"] for p in members], np.int64), k)
+        for c in ("mass_kg", "part_cost"):
+            if c in f:
+                f[c] = f[c].astype(float).to_numpy() * (length / REFERENCE_LENGTH_MM)
+        f["part_id"] = np.repeat(np.array([p["part_id"] for p in members], dtype=object), k)
+        f["order"] = np.repeat(np.array([p["order"] for p in members], np.int64), k)
+        f["quantity_per_year"] = qty
+        f["annual_cost"] = f["part_cost"].astype(float).to_numpy() * qty if "part_cost" in f else np.nan
+        f["diameter_mm"] = np.nan if d is None else float(d)
+        f["thickness_mm"] = np.nan if thickness_mm is None else float(thickness_mm)
+        f["length_mm"] = length
+        f["description"] = np.repeat(np.array([p.get("description", "") for p in members], dtype=object), k)
+        frames.append(f)
     return _tidy(pd.concat(frames, ignore_index=True))
 
 
