@@ -182,11 +182,12 @@ def resolve_scheduler(scheduler: str | None) -> str | None:
     return addr.strip()
 
 
-def connect(address: str, timeout_s: float = CONNECT_TIMEOUT_S):
+def connect(address: str, timeout_s: float | None = None):
     """A ``dask.distributed.Client`` on ``address``, or :class:`InputError` naming the
     address when nothing answers within ``timeout_s`` seconds."""
     from distributed import Client
 
+    timeout_s = CONNECT_TIMEOUT_S if timeout_s is None else float(timeout_s)
     try:
         return Client(address, timeout=f"{timeout_s}s", set_as_default=False)
     except (OSError, TimeoutError, ValueError) as exc:
