@@ -66,10 +66,16 @@ def test_every_bad_cell_is_listed_with_line_column_and_allowed():
 
 
 def test_unknown_target_key_names_the_column_and_the_nearest():
-    err = _problems("part_id,diameter_mm,length_mm,quantity_per_year,min_yeild_mpa\nC-1,25,100,1,600\n")
-    (p,) = err.problems
+    err = _problems("part_id,diameter_mm,length_mm,quantity_per_year,min_yeild_mpa\nC-1,25,100,-1,600\n")
+    p, q = err.problems
     assert p["line"] == 1 and p["column"] == "min_yeild_mpa"
     assert "did you mean min_yield_mpa" in p["allowed"]
+    assert (q["line"], q["column"]) == (2, "quantity_per_year")       # the rows are still checked
+
+
+def test_missing_required_column():
+    err = _problems("part_id,diameter_mm,quantity_per_year\nC-1,25,1\n")
+    assert [(p["line"], p["column"]) for p in err.problems] == [(1, "length_mm")]
 
 
 @pytest.mark.parametrize("cells,column,fragment", [

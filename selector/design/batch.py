@@ -119,6 +119,8 @@ def section_candidates(diameter_mm, thickness_mm, parts: list[dict], top: int | 
         cand = select(first["targets"], d, thickness_mm=thickness_mm, length_mm=REFERENCE_LENGTH_MM,
                       price_sheet=price_sheet, robust_only=robust_only, **first["service"])
         if len(cand):
+            if "rank" in cand.columns:          # the engine's own rank, when it provides one
+                cand = cand.sort_values("rank", kind="stable")
             if per_grade:
                 cand = cand.assign(_r=~cand["robust"].astype(bool)).sort_values(
                     ["part_cost", "_r", "grade"], kind="stable").drop_duplicates("grade").drop(columns="_r")
@@ -133,7 +135,7 @@ def section_candidates(diameter_mm, thickness_mm, parts: list[dict], top: int | 
             else:
                 rows = pd.DataFrame({"status": ["no candidate"], "misses": [
                     "no grade passes the part's hard filters (families, exclude_families, corrosion_resistant)"]})
-        keep = [c for c in RESULT_COLUMNS + list(PASS_THROUGH) if c in rows.columns]
+        keep = [c for c in rows.columns if c in RESULT_COLUMNS or c.startswith(PASS_THROUGH)]
         base = rows[keep].reset_index(drop=True)
         base["rank"] = np.arange(1, len(base) + 1)
         k, m = len(base), len(members)
@@ -167,7 +169,7 @@ def _tidy(df: pd.DataFrame) -> pd.DataFrame:
     df["robust"] = df["robust"].map(lambda v: bool(v) if isinstance(v, (bool, np.bool_)) else False)
     df["rank"] = df["rank"].astype(int)
     df["quantity_per_year"] = df["quantity_per_year"].astype(int)
-    extra = [c for c in PASS_THROUGH if c in df.columns]
+    extra = [c for c in df.columns if c.startswith(PASS_THROUGH) and c not in RESULT_COLUMNS]
     return df[RESULT_COLUMNS + extra + ["order"]]
 
 

@@ -418,12 +418,12 @@ def read_parts(source, name: str | None = None) -> pd.DataFrame:
         return source
     header, hline, rows, nums, bad, path = _raw_table(source, name, _Collector)
     _check_header(header, hline, bad)
-    if bad.items and any(p["line"] == hline for p in bad.items):
-        raise PartsListError(path, bad.items)
+    if any(p["value"] == "(missing)" for p in bad.items):
+        raise PartsListError(path, bad.items)     # rows cannot be read without these columns
     out = []
     seen: dict[str, int] = {}
     for raw, line in zip(rows, nums):
-        rec = dict(zip(header, raw))
+        rec = {h: v for h, v in zip(header, raw) if h in ALLOWED_COLUMNS}
         r = _row(rec, line, bad)
         pid = rec.get("part_id")
         pid = None if _blank(pid) else _text(pid)
