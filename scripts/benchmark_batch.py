@@ -106,19 +106,22 @@ def _floor(parts_path: str) -> dict:
     groups = [(sec, {_key({"t": p["targets"], "s": p["service"]}): p for p in recs}) for sec, recs in work]
     n_groups = sum(len(g) for _, g in groups)
     sample = groups[:2]
-    t_prep, t_sel, n_sel = [], [], 0
+    t_prep, t_sel, c_prep, c_sel = [], [], [], []
+    selector.select({}, 33.0)        # imports and tables built once (a section not in the list)
     for (d, t), g in sample:
-        t0 = time.perf_counter()
+        t0, c0 = time.perf_counter(), _cpu_s()
         prepare(d, t, REFERENCE_LENGTH_MM)
         t_prep.append(time.perf_counter() - t0)
+        c_prep.append(_cpu_s() - c0)
         for p in list(g.values())[:6]:
-            t0 = time.perf_counter()
+            t0, c0 = time.perf_counter(), _cpu_s()
             selector.select(p["targets"], d, thickness_mm=t, length_mm=REFERENCE_LENGTH_MM, **p["service"])
             t_sel.append(time.perf_counter() - t0)
-            n_sel += 1
-    prep, sel = float(np.median(t_prep)), float(np.median(t_sel))
-    return {"sections": len(work), "groups": n_groups, "prepare_s": prep, "select_s": sel,
-            "floor_s": len(work) * prep + n_groups * sel}
+            c_sel.append(_cpu_s() - c0)
+    med = lambda x: float(np.median(x))  # noqa: E731
+    return {"sections": len(work), "groups": n_groups, "prepare_s": med(t_prep), "select_s": med(t_sel),
+            "floor_s": len(work) * med(t_prep) + n_groups * med(t_sel),
+            "floor_cpu_s": len(work) * med(c_prep) + n_groups * med(c_sel)}
 
 
 def run_mode(mode: str, parts_path: str) -> dict:
@@ -187,13 +190,15 @@ def main(argv=None) -> int:
     if fl:
         print(f"sections {fl['sections']}, distinct (section, targets, service) groups {fl['groups']}")
         print(f"floor (serial engine work, no Dask): {fl['sections']} x prepare {fl['prepare_s']:.2f} s + "
-              f"{fl['groups']} x select {fl['select_s']:.3f} s = {fl['floor_s']:.1f} s")
+              f"{fl['groups']} x select {fl['select_s']:.3f} s = {fl['floor_s']:.1f} s wall "
+              f"({fl['floor_cpu_s']:.1f} s CPU)")
     for mode in ("local", "cluster"):
         r = results.get(mode)
         if not r:
             continue
         label = "local (threads, in-process)" if mode == "local" else "LocalCluster, 2 worker processes"
-        ratio = f", {r['wall_s'] / fl['floor_s']:.2f} x floor" if fl else ""
+        ratio = (f", {r['wall_s'] / fl['floor_s']:.2f} x floor (wall), {r['cpu_s'] / fl['floor_cpu_s']:.2f} x floor "
+                 "(CPU)") if fl else ""
         peaks = ", ".join(f"{k} {v:.0f} MB" for k, v in r["peak_mb"].items())
         print(f"{label}: {r['wall_s']:.1f} s wall ({r['cpu_s']:.1f} s CPU), {args.parts / r['wall_s']:.0f} parts/s"
               f"{ratio}; "
