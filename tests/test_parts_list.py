@@ -1,5 +1,4 @@
 """Parts-list validation (selector.design.parts_list): every bad cell listed, nothing computed."""
-import io
 
 import pandas as pd
 import pytest

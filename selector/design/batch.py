@@ -36,7 +36,6 @@ from __future__ import annotations
 
 import json
 import os
-import time
 from typing import Callable
 
 import numpy as np
