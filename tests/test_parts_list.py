@@ -154,3 +154,13 @@ def test_demo_parts_list_is_valid_and_invented():
     t = read_parts(path)
     assert 35 <= len(t) <= 45
     assert t["part_id"].is_unique
+
+
+def test_parquet_nullable_missing_cells_are_blank(tmp_path):
+    df = pd.DataFrame({"part_id": ["G-1", "G-2"], "diameter_mm": [25.0, 25.0], "length_mm": [100.0, 100.0],
+                       "quantity_per_year": pd.array([3, 4], dtype="Int64"),
+                       "min_uts_mpa": pd.array([None, 700.0], dtype="Float64"),
+                       "description": pd.array([None, "x"], dtype="string")})
+    t = read_parts(df.to_parquet())
+    assert t.loc[0, "targets"] == {} and t.loc[1, "targets"] == {"min_uts_mpa": 700.0}
+    assert list(t["description"]) == ["", "x"]

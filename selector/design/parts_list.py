@@ -115,7 +115,7 @@ class _Collector:
 
 
 def _blank(v) -> bool:
-    if v is None:
+    if v is None or v is pd.NA or v is pd.NaT:
         return True
     if isinstance(v, float) and math.isnan(v):
         return True
@@ -328,7 +328,7 @@ def _row(rec: dict, line: int, bad: _Collector) -> dict | None:
                     continue
                 case[col] = int(f) if col == "shear_planes" and f == int(f) else f
     if case:
-        if t is not None or (d is None and "diameter_mm" not in given):
+        if t is not None:
             bad.add(line, "thickness_mm", rec.get("thickness_mm"), "a diameter_mm for a row with a pin load case")
         elif d is not None and len(bad.items) == n0:
             try:
