@@ -115,3 +115,26 @@ def test_batch_result_from_other_parts_is_refused():
     other = res.assign(part_id="ZZ-9")
     with pytest.raises(InputError, match="ZZ-9"):
         rationalise(other, parts, holding_cost_per_grade=1.0)
+
+
+def test_parts_with_proportional_costs_are_merged_without_changing_the_optimum():
+    parts, res = _instance(2, n_parts=5, n_grades=5)
+    # copies of P0 and P1 at other lengths and quantities: costs scaled by a factor per part
+    extra_parts, extra_rows = [], []
+    for i, (src, f) in enumerate([("P0", 1.7), ("P0", 0.4), ("P1", 2.5)]):
+        pid = f"C{i}"
+        extra_parts.append({"part_id": pid, "diameter_mm": 20.0, "length_mm": 100.0 * f,
+                            "quantity_per_year": 50 + 100 * i, "min_yield_mpa": 300.0})
+        rows = res[res["part_id"] == src].assign(part_id=pid)
+        extra_rows.append(rows.assign(part_cost=rows["part_cost"] * f))
+    parts2 = pd.concat([parts, pd.DataFrame(extra_parts)], ignore_index=True)
+    res2 = pd.concat([res] + extra_rows, ignore_index=True)
+    from selector.design.stock import _problem, _units
+    qty = dict(zip(parts2["part_id"], parts2["quantity_per_year"].astype(float)))
+    unit, merged = _units(_problem(res2, qty, False))
+    assert merged["unit"].nunique() < parts2["part_id"].nunique()
+    for holding in (0.0, 300.0):
+        out = rationalise(res2, parts2, holding_cost_per_grade=holding)
+        assert out["total_cost"] == pytest.approx(_brute(parts2, res2, holding), rel=1e-9)
+        a = out["assignment"].set_index("part_id")
+        assert a.loc["C0", "grade"] == a.loc["P0", "grade"] == a.loc["C1", "grade"]

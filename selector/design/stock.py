@@ -16,7 +16,12 @@ cheapest route of that item for that part).  Binary variables: ``x_j`` (part
 with ``q_p`` the part's ``quantity_per_year``, ``c_j`` its ``part_cost`` and ``H``
 the holding cost of one stocked item a year (same cost unit as ``part_cost``).
 The disaggregated linking ``x_j <= y_i`` gives a tighter LP relaxation than the
-aggregated ``sum_j x_j <= n y_i`` (Cornuéjols, Nemhauser & Wolsey 1990).
+aggregated ``sum_j x_j <= n y_i`` (Cornuéjols, Nemhauser & Wolsey 1990).  Parts whose
+candidate costs are proportional (the same items at the same cost ratios, as parts
+of one section and targets that differ only in length and quantity) choose the same
+item for any stocked set, so they are merged into one unit of summed weight before
+the solve (same optimum, far fewer variables on a long parts list); the reported
+costs are summed from the parts' own rows.
 
 Solver: ``scipy.optimize.milp`` (HiGHS branch and cut: Huangfu & Hall, "Parallelizing
 the dual revised simplex method", Math. Prog. Comp. 10 (2018) 119-142); ``gap`` is
@@ -80,14 +85,36 @@ def _problem(batch_result: pd.DataFrame, qty: dict, robust_only: bool) -> pd.Dat
     return c.drop_duplicates(["part_id", "stock_item"]).reset_index(drop=True)
 
 
-def _solve(cand: pd.DataFrame, holding: float, k: int | None, time_limit_s: float):
+def _units(cand: pd.DataFrame) -> tuple[np.ndarray, pd.DataFrame]:
+    """Merge parts whose candidate costs are proportional (same items, same cost
+    ratios: e.g. parts of one section and targets that differ only in length and
+    quantity).  For any set of stocked items such parts pick the same item, so the
+    program over the merged units, with weight ``sum q_p min_j c_j``, has the same
+    optimum.  Returns the unit of each candidate row and the merged rows (``unit``,
+    ``stock_item``, ``annual_cost``)."""
+    pc = cand["part_cost"].to_numpy(float)
+    pmin = cand.groupby("part_id", sort=False)["part_cost"].transform("min").to_numpy(float)
+    ratio = pc / pmin
+    tag = cand["stock_item"].astype(str) + "=" + pd.Series([f"{r:.12g}" for r in ratio], index=cand.index)
+    key = tag.groupby(cand["part_id"], sort=False).transform(lambda t: "|".join(sorted(t)))
+    unit = pd.factorize(key)[0]
+    weight = pd.Series(cand["quantity_per_year"].to_numpy(float) * pmin).groupby(
+        [unit, cand["part_id"].to_numpy()]).first().groupby(level=0).sum()
+    merged = pd.DataFrame({"unit": unit, "stock_item": cand["stock_item"].to_numpy(), "ratio": ratio})
+    merged = merged.drop_duplicates(["unit", "stock_item"]).reset_index(drop=True)
+    merged["annual_cost"] = merged["ratio"].to_numpy() * weight.loc[merged["unit"]].to_numpy()
+    return unit, merged
+
+
+def _solve(cand: pd.DataFrame, holding: float, k: int | None, time_limit_s: float, units=None):
     from scipy.optimize import LinearConstraint, milp
     from scipy.sparse import coo_matrix, csr_matrix, hstack, vstack
 
-    items, item_idx = np.unique(cand["stock_item"].to_numpy(), return_inverse=True)
-    parts, part_idx = np.unique(cand["part_id"].to_numpy(), return_inverse=True)
-    nj, ni, npart = len(cand), len(items), len(parts)
-    cost = np.r_[cand["annual_cost"].to_numpy(float), np.full(ni, holding)]
+    unit_of_row, merged = units if units is not None else _units(cand)
+    items, item_idx = np.unique(merged["stock_item"].to_numpy(), return_inverse=True)
+    part_idx = merged["unit"].to_numpy()
+    nj, ni, npart = len(merged), len(items), int(part_idx.max()) + 1
+    cost = np.r_[merged["annual_cost"].to_numpy(float), np.full(ni, holding)]
     jj = np.arange(nj)
     assign = coo_matrix((np.ones(nj), (part_idx, jj)), shape=(npart, nj + ni))
     link = hstack([coo_matrix((np.ones(nj), (jj, jj)), shape=(nj, nj)),
@@ -104,13 +131,16 @@ def _solve(cand: pd.DataFrame, holding: float, k: int | None, time_limit_s: floa
                options={"time_limit": float(time_limit_s), "mip_rel_gap": 0.0})
     if res.x is None:
         return None
-    x = res.x[:nj] > 0.5
+    pick = merged[res.x[:nj] > 0.5]
+    chosen = set(zip(pick["unit"], pick["stock_item"]))
+    x = np.array([(u, it) in chosen for u, it in zip(unit_of_row, cand["stock_item"])], bool)
     y = res.x[nj:] > 0.5
+    material = float(cand["annual_cost"].to_numpy(float)[x].sum())
     gap = getattr(res, "mip_gap", None)
-    return {"x": x, "items": [str(s) for s in items[y]], "objective": float(res.fun),
-            "material": float(cand["annual_cost"].to_numpy(float)[x].sum()), "holding": holding * int(y.sum()),
+    return {"x": x, "items": [str(s) for s in items[y]], "objective": material + holding * int(y.sum()),
+            "material": material, "holding": holding * int(y.sum()),
             "gap": 0.0 if gap is None or not math.isfinite(gap) else float(gap), "status": int(res.status),
-            "message": str(res.message)}
+            "message": str(res.message), "units": npart}
 
 
 def rationalise(batch_result: pd.DataFrame, parts, holding_cost_per_grade: float, max_grades: int | None = None,
@@ -172,10 +202,11 @@ def rationalise(batch_result: pd.DataFrame, parts, holding_cost_per_grade: float
 
     curve, free = [], None
     if len(cand):
-        free = _solve(cand, holding, None, time_limit_s)
+        units = _units(cand)
+        free = _solve(cand, holding, None, time_limit_s, units)
         k_star = len(free["items"])
         for k in range(1, k_star + 1):
-            sol = free if k == k_star else _solve(cand, holding, k, time_limit_s)
+            sol = free if k == k_star else _solve(cand, holding, k, time_limit_s, units)
             curve.append({"max_grades": k, "n_grades": len(sol["items"]) if sol else 0,
                           "total_cost": sol["objective"] if sol else np.nan,
                           "material_cost": sol["material"] if sol else np.nan,
@@ -186,7 +217,7 @@ def rationalise(batch_result: pd.DataFrame, parts, holding_cost_per_grade: float
 
     sol = free
     if len(cand) and max_grades is not None and max_grades < len(free["items"]):
-        sol = _solve(cand, holding, int(max_grades), time_limit_s)
+        sol = _solve(cand, holding, int(max_grades), time_limit_s, units)
         if sol is None:
             ok = cost_by_count[cost_by_count["feasible"]]
             fewest = int(ok["max_grades"].min()) if len(ok) else len(free["items"])
