@@ -268,7 +268,16 @@ def _num_cell(rec, col, line, bad, lo, hi, allowed, whole=False):
     return f
 
 
-def _row(rec: dict, line: int, bad: _Collector) -> dict | None:
+def _memo(memo: dict | None, key, fn):
+    """``fn()`` once per key within one file (many rows share a load case or targets)."""
+    if memo is None:
+        return fn()
+    if key not in memo:
+        memo[key] = fn()
+    return memo[key]
+
+
+def _row(rec: dict, line: int, bad: _Collector, memo: dict | None = None) -> dict | None:
     n0 = len(bad.items)
     pid = rec.get("part_id")
     pid = "" if _blank(pid) else _text(pid)
@@ -332,7 +341,8 @@ def _row(rec: dict, line: int, bad: _Collector) -> dict | None:
             bad.add(line, "thickness_mm", rec.get("thickness_mm"), "a diameter_mm for a row with a pin load case")
         elif d is not None and len(bad.items) == n0:
             try:
-                pt = pins.pin_targets(diameter_mm=d, **case)
+                pt = dict(_memo(memo, ("pin", d, tuple(sorted(case.items()))),
+                                lambda: pins.pin_targets(diameter_mm=d, **case)))
             except InputError as exc:
                 col = exc.field if exc.field in PIN_COLUMNS else ("load_kn" if "load" in exc.field else exc.field)
                 bad.add(line, col, exc.value, exc.allowed)
@@ -374,7 +384,8 @@ def _row(rec: dict, line: int, bad: _Collector) -> dict | None:
 
     if len(bad.items) == n0:
         try:
-            targets = validate_targets(targets, FAMILIES)
+            tk = ("targets", repr(sorted((k, tuple(v) if isinstance(v, list) else v) for k, v in targets.items())))
+            targets = dict(_memo(memo, tk, lambda: validate_targets(targets, FAMILIES)))
         except InputError as exc:
             bad.add(line, exc.field, exc.value, exc.allowed)
     if len(bad.items) != n0:
@@ -422,9 +433,10 @@ def read_parts(source, name: str | None = None) -> pd.DataFrame:
         raise PartsListError(path, bad.items)     # rows cannot be read without these columns
     out = []
     seen: dict[str, int] = {}
+    memo: dict = {}
     for raw, line in zip(rows, nums):
         rec = {h: v for h, v in zip(header, raw) if h in ALLOWED_COLUMNS}
-        r = _row(rec, line, bad)
+        r = _row(rec, line, bad, memo)
         pid = rec.get("part_id")
         pid = None if _blank(pid) else _text(pid)
         if pid:
