@@ -62,6 +62,6 @@ def test_page_runs_the_demo_parts_list():
     at.number_input(key="parts_top").set_value(3)
     at.button(key="parts_run").click().run(timeout=600)
     assert not at.exception, [e.value for e in at.exception]
-    summary = [m.value for m in at.markdown if "least annual cost" in m.value]
+    summary = [m.value for m in at.markdown if "optimality gap" in m.value]
     assert len(summary) == 1 and "40 parts in" in summary[0]
     assert len(at.dataframe) >= 3
