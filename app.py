@@ -473,7 +473,77 @@ def pin_view():
                f"{pg.to_display(sw.attrs.get('length_mm', float('nan')), 'length', system):.4g} {lu} (grip length).")
 
 
-TAB_LABELS = ["Map and list", "One candidate", "Side by side", "Clevis pin and sizes"]
+def parts_view():
+    """A parts list: candidates per part, the rationalised stock list and its cost curve."""
+    from selector.views import page_parts as pp
+
+    st.markdown("**Parts list.** One row per part (CSV or Parquet: `part_id`, `diameter_mm` or `thickness_mm`, "
+                "`length_mm`, `quantity_per_year`, and targets or a pin load case; docs/batch.md).  Each part is "
+                "ranked at its own section; then the fewest grades that cover the list at the least annual cost "
+                "are chosen (a mixed-integer program, HiGHS).  The example is an invented maker's list "
+                "(docs/demo_parts_list.csv, demo data only).")
+    up = st.file_uploader("Parts list (CSV or Parquet)", type=["csv", "parquet"], key="parts_file")
+    data, name = (up.getvalue(), up.name) if up is not None else (pp.demo_bytes(), "demo_parts_list.csv (invented)")
+    parts, problems = pp.load_parts(data, name)
+    if problems:
+        st.error(f"The parts list has {len(problems)} problem(s); nothing was computed:\n\n"
+                 + "\n".join(f"- {m}" for m in problems[:50]))
+        return
+    st.caption(f"{name}: {len(parts)} parts at {parts[['diameter_mm', 'thickness_mm']].drop_duplicates().shape[0]} "
+               "sections.")
+    c = st.columns(3)
+    c[0].number_input("Grades considered per part", key="parts_top", min_value=1, max_value=100, value=10,
+                      help="The cheapest route of each of the part's N cheapest grades is offered to the stock choice.")
+    c[1].number_input("Holding cost per grade a year (relative units)", key="parts_holding", min_value=0.0,
+                      value=pp.DEMO_HOLDING_COST, help="Same unit as the part cost (1018 bar = 1 per kg, or your "
+                      "price sheet's currency).  The default is an invented demo value.")
+    c[2].number_input("At most this many grades (0: no limit)", key="parts_max", min_value=0, max_value=50, value=0)
+    args = (name, len(data), hash(data), int(ss["parts_top"]), float(ss["parts_holding"]), int(ss["parts_max"]),
+            price_items)
+    if st.button(f"Run the parts list ({len(parts)} parts)", key="parts_run", type="primary"):
+        bar = st.progress(0.0, text="starting")
+
+        def tick(done, total):
+            bar.progress(done / total, text=f"parts {done}/{total}")
+
+        t = time.perf_counter()
+        try:
+            out = pp.run(data, name, int(ss["parts_top"]), float(ss["parts_holding"]),
+                         int(ss["parts_max"]) or None, progress=tick, price_sheet=dict(price_items) or None)
+            ss["_parts"] = {"args": args, **out, "seconds": time.perf_counter() - t}
+        except SelectorError as exc:
+            ss.pop("_parts", None)
+            st.error(str(exc))
+    res = ss.get("_parts")
+    if res is None:
+        st.info("Press **Run the parts list** (each distinct section is expanded once).")
+        return
+    if res["args"] != args:
+        st.info("The inputs have changed since this run; press **Run the parts list** to update it.")
+    stock = res["stock"]
+    st.subheader("Rationalised stock list")
+    st.markdown(f"**{len(stock['grades'])} grades** ({', '.join(stock['grades'])}): least annual cost "
+                f"**{stock['total_cost']:,.0f}** = parts {stock['material_cost']:,.0f} + holding "
+                f"{stock['holding_cost']:,.0f} (optimality gap {stock['gap']:.2g}).  "
+                f"{res['batch']['part_id'].nunique()} parts in {res['seconds']:.1f} s.")
+    if stock["unassigned"]:
+        st.warning("No candidate meets the targets of: " + ", ".join(stock["unassigned"])
+                   + " (their nearest misses are in the per-part table).")
+    left, right = st.columns([2, 3])
+    left.dataframe(pp.stock_table(stock), hide_index=True, width="stretch", key="parts_stock")
+    right.altair_chart(pp.cost_by_count_chart(stock["cost_by_count"], len(stock["grades"])), width="stretch")
+    st.dataframe(stock["assignment"], hide_index=True, width="stretch", key="parts_assignment")
+    st.download_button("Download the assignment (CSV)", pg.to_csv(stock["assignment"]), file_name="stock_list.csv",
+                       mime="text/csv", key="parts_stock_download")
+    st.subheader("Candidates per part")
+    table = pp.part_table(res["batch"])
+    st.dataframe(table, hide_index=True, width="stretch", key="parts_table")
+    st.download_button("Download the candidates (CSV)", pg.to_csv(table), file_name="parts_candidates.csv",
+                       mime="text/csv", key="parts_download")
+    st.caption(selector.CAUTION)
+
+
+TAB_LABELS = ["Map and list", "One candidate", "Side by side", "Clevis pin and sizes", "Parts list"]
 cand = None
 if prepared_ok:
     try:
@@ -496,7 +566,7 @@ if cand is not None and len(cand):
     st.markdown(f"**{len(cand)}** candidates meet the targets: **{int(cand['pareto'].sum())}** in the "
                 f"Pareto set (max yield, max elongation, min cost), **{int(cand['robust'].sum())}** hold at "
                 f"every composition corner.")
-tab_map, tab_one, tab_two, tab_pin = st.tabs(TAB_LABELS)
+tab_map, tab_one, tab_two, tab_pin, tab_parts = st.tabs(TAB_LABELS)
 no_table = "No candidate table: see the messages above."
 if cand is not None and len(cand) == 0:
     with tab_map:
@@ -545,6 +615,8 @@ t = time.perf_counter()
 with tab_pin:
     pin_view()
 timings["pin"] = time.perf_counter() - t
+with tab_parts:
+    parts_view()
 
 # ----------------------------------------------------------------------------- footer
 st.divider()

@@ -25,10 +25,13 @@ _LAZY = {
     "select": ".selection.engine", "nearest_misses": ".selection.engine", "alternatives": ".selection.engine",
     "pin_targets": ".design.pins",
     "diameter_sweep": ".design.sweep",
+    "batch": ".design.batch",
+    "read_parts": ".design.parts_list", "PartsListError": ".design.parts_list",
+    "rationalise": ".design.stock",
 }
 
 __all__ = ["catalogue", "grade", "evaluate", "select", "nearest_misses", "alternatives", "pin_targets",
-           "diameter_sweep", "CAUTION",
+           "diameter_sweep", "batch", "rationalise", "read_parts", "PartsListError", "CAUTION",
            "SelectorError", "InputError", "RouteError", "NotModelledError", "UnknownGradeError",
            "DataFileError", "SelectorWarning"]
 

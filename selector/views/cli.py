@@ -154,6 +154,8 @@ def build_parser() -> argparse.ArgumentParser:
 
     from . import cli_more
     cli_more.add_commands(sub)
+    from . import cli_batch
+    cli_batch.add_commands(sub)
     return ap
 
 
