@@ -219,13 +219,16 @@ def _hydrogen(f: _Frame, ctx: dict) -> np.ndarray:
 
 
 def _severe(quench: np.ndarray) -> np.ndarray:
-    return np.array([q.split("_")[0].split(" ")[0] in SEVERE_QUENCHES for q in quench], bool)
+    u, inv = np.unique(np.asarray(quench).astype(str), return_inverse=True)
+    sev = np.array([q.split("_")[0].split(" ")[0] in SEVERE_QUENCHES for q in u], bool)
+    return sev[inv].reshape(np.shape(quench))
 
 
 def _quench_cracking(f: _Frame, ctx: dict) -> np.ndarray:
     # the route's own quench, or the prior through-hardening quench of an induction route
     severe = _severe(f.quench) | _severe(f.prior_quench)
-    limit = np.array([QUENCH_CRACK_C_PCT.get(fam, np.inf) for fam in f.family], float)
+    u, inv = np.unique(f.family.astype(str), return_inverse=True)
+    limit = np.array([QUENCH_CRACK_C_PCT.get(fam, np.inf) for fam in u], float)[inv]
     return severe & _ge(f.c_pct - limit, -1e-9)
 
 
@@ -597,14 +600,22 @@ def check_allow(allow) -> tuple:
 AVOID_CODES = tuple(code for code, c in CAUTIONS.items() if c.severity == "avoid")
 
 
-def avoid_masks(frame: pd.DataFrame, allow=(), **context) -> pd.DataFrame:
-    """One boolean column per ``avoid`` rule not in ``allow`` (same index as ``frame``):
-    only those triggers run, so this is cheap enough for the whole states table."""
+def read_frame(frame: pd.DataFrame) -> _Frame:
+    """The column arrays the triggers read, from a states or candidates table: build
+    it once and pass it to :func:`avoid_masks` to evaluate several contexts cheaply."""
+    return _Frame(frame)
+
+
+def avoid_masks(frame, allow=(), **context) -> dict:
+    """``{code: bool mask}`` for every ``avoid`` rule not in ``allow``: only those
+    triggers run.  ``frame`` is a states/candidates table or the result of
+    :func:`read_frame` (reuse it over calls: reading the string columns is the
+    costly part)."""
     allowed = set(check_allow(allow))
-    f = _Frame(frame)
+    f = frame if isinstance(frame, _Frame) else _Frame(frame)
     ctx = _context(f, **context)
-    return pd.DataFrame({code: np.asarray(CAUTIONS[code].trigger(f, ctx), bool)
-                         for code in AVOID_CODES if code not in allowed}, index=frame.index)
+    return {code: np.asarray(CAUTIONS[code].trigger(f, ctx), bool)
+            for code in AVOID_CODES if code not in allowed}
 
 
 def severity_columns(frame: pd.DataFrame, allow=(), **context) -> pd.DataFrame:

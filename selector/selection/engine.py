@@ -192,6 +192,23 @@ def p_meet(prepared: pd.DataFrame, targets: dict | None) -> np.ndarray:
     return p
 
 
+_VIEWS: dict = {}
+
+
+def _caution_view(prepared: pd.DataFrame):
+    """The caution rules' column arrays of the nominal block of ``prepared``, kept per
+    prepared table (a few recent ones) so that re-ranking does not re-read them."""
+    key = id(prepared)
+    hit = _VIEWS.get(key)
+    if hit is not None and hit[0] is prepared:
+        return hit[1]
+    view = cautions_mod.read_frame(prepared.iloc[:len(prepared) // 3])
+    if len(_VIEWS) >= 8:
+        _VIEWS.pop(next(iter(_VIEWS)))
+    _VIEWS[key] = (prepared, view)
+    return view
+
+
 def _check_min_p(min_p_meet) -> float:
     import math
     if isinstance(min_p_meet, bool) or not isinstance(min_p_meet, (int, float, np.integer, np.floating)) \
@@ -271,8 +288,8 @@ def rank(prepared: pd.DataFrame, targets: dict | None = None, objectives=DEFAULT
     # a candidate state meets every target at its estimate; p_meet grades how surely
     likely = (p >= min_p - 1e-12) & nominal
     nom = prepared.iloc[:m]
-    am = cautions_mod.avoid_masks(nom, allowed, **ctx)
-    clean = ~am.to_numpy(bool).any(axis=1) if am.shape[1] else np.ones(m, bool)
+    am = cautions_mod.avoid_masks(_caution_view(prepared), allowed, **ctx)
+    clean = ~np.any(list(am.values()), axis=0) if am else np.ones(m, bool)
     vcode = nom["variant_code"].to_numpy()
     main = nom["main_value"].to_numpy(float)
     same = np.r_[False, vcode[1:] == vcode[:-1]]
