@@ -146,3 +146,32 @@ def test_min_p_meet_one_is_accepted_and_stricter():
     loose = rank(p, SHAFT, min_p_meet=0.5)
     assert strict["robust"].sum() <= loose["robust"].sum()
     assert (strict.loc[strict["robust"], "p_meet"] == 1.0).all()
+
+
+def test_miss_analysis_reachable_and_frontier():
+    from selector.selection.engine import miss_analysis
+    t = {"min_yield_mpa": 1400, "min_elongation_pct": 14, "max_relative_cost": 3}
+    rep = miss_analysis(t, 40)
+    assert selector.select(t, diameter_mm=40).empty
+    reach = rep["reachable"].set_index("target")
+    p = prepare(40)
+    nom = p.iloc[:len(p) // 3]
+    # brute force: the highest yield among the states meeting the two other targets
+    others = meets(nom, {"min_elongation_pct": 14, "max_relative_cost": 3})
+    assert reach.loc["min_yield_mpa", "best"] == pytest.approx(nom.loc[others, "yield_mpa"].max())
+    assert reach.loc["min_yield_mpa", "move"] == pytest.approx(1400 - nom.loc[others, "yield_mpa"].max())
+    assert not reach["met"].any()
+    # the frontier: the two most binding targets, non-dominated among the states meeting the rest
+    assert set(rep["axes"]) == {"min_yield_mpa", "min_elongation_pct"}
+    fr = rep["frontier"]
+    assert len(fr) >= 3
+    pool = nom[meets(nom, {"max_relative_cost": 3})][["yield_mpa", "elongation_pct"]].to_numpy(float)
+    for y, e in fr[["yield_mpa", "elongation_pct"]].to_numpy(float):
+        dom = (pool[:, 0] >= y) & (pool[:, 1] >= e) & ((pool[:, 0] > y) | (pool[:, 1] > e))
+        assert not dom.any()
+    assert (fr["relative_cost"] <= 3 + 1e-9).all()
+    # a miss opens like a candidate: evaluate reproduces it
+    miss = rep["misses"].iloc[0]
+    ev = selector.evaluate(miss["grade"], miss["route"], diameter_mm=40)
+    assert ev["yield_mpa"] == pytest.approx(miss["yield_mpa"], rel=1e-6)
+    assert 0.0 <= miss["p_meet"] <= 1.0

@@ -529,7 +529,8 @@ def nearest_misses(targets: dict, diameter_mm: float = 25.0, *, thickness_mm: fl
     ``miss_score`` (the sum of the relative moves)."""
     t = validate_targets(targets, FAMILIES)
     prepared = prepare(diameter_mm, thickness_mm, length_mm, price_sheet)
-    nom = prepared[prepared["corner"] == "nominal"]
+    m = len(prepared) // 3
+    nom = prepared.iloc[:m].assign(p_meet=p_meet(prepared, t))
     hard = _hard_filters(nom, t)
     nom = nom[hard]
     if nom.empty:
@@ -542,6 +543,110 @@ def nearest_misses(targets: dict, diameter_mm: float = 25.0, *, thickness_mm: fl
     out = out.sort_values("miss_score", kind="stable").reset_index(drop=True)
     lead = ["grade", "family", "route_text", "miss_score"] + list(sf.columns.drop("miss_score"))
     return out[lead + [c for c in out.columns if c not in lead]]
+
+
+def _routes(frame: pd.DataFrame) -> tuple[list, list]:
+    """The steps and the route text of each row of a states table."""
+    routes, texts = [], []
+    params = sorted({p_ for f in fam_registry.available() for p_ in f.parameters})
+    cols = ["route"] + [c for c in params if c in frame.columns]
+    for r in frame[cols].to_dict("records"):
+        fam = fam_registry.get(r["route"])
+        steps = fam.to_steps({p_: r[p_] for p_ in fam.parameters if p_ in r})
+        routes.append(steps)
+        texts.append(describe(steps))
+    return routes, texts
+
+
+_MISS_COLUMNS = ["grade", "family", "route_family", "route_text", "route", "variant", "yield_mpa", "uts_mpa",
+                 "elongation_pct", "hardness_hrc", "surface_hardness_hrc", "case_depth_mm", "relative_cost",
+                 "part_cost", "p_meet"]
+
+
+def miss_analysis(targets: dict, diameter_mm: float = 25.0, *, thickness_mm: float | None = None,
+                  length_mm: float = 100.0, price_sheet: dict | None = None, n: int = 10) -> dict:
+    """What can be reached when nothing meets every target.
+
+    Parameters
+    ----------
+    targets, diameter_mm, thickness_mm, length_mm, price_sheet, n
+        As :func:`nearest_misses`.
+
+    Returns
+    -------
+    dict
+        ``misses``: the table of :func:`nearest_misses` (each row a state with its
+        ``route``, which can be evaluated and opened like a candidate).
+        ``reachable``: one row per numeric target: the best value of its property
+        (``best``) over the states, at the nominal composition, that meet every
+        *other* target (and the hard filters), the state that reaches it, and how far
+        the limit would have to move (``move``, ``relative_move``; 0 when met, inf when
+        no state meets the others).
+        ``frontier``: the trade-off between the two most binding targets (the two
+        whose limits the nearest misses need to move most, in total relative moves;
+        ``axes`` names them): the non-dominated states
+        (Pareto front of the two properties, each in its target's direction) among
+        those that meet every other target, sorted along the first axis; e.g. the
+        highest yield reachable at each elongation.  Empty with fewer than two
+        numeric targets.
+    """
+    t = validate_targets(targets, FAMILIES)
+    misses = nearest_misses(t, diameter_mm, thickness_mm=thickness_mm, length_mm=length_mm,
+                            price_sheet=price_sheet, n=n)
+    prepared = prepare(diameter_mm, thickness_mm, length_mm, price_sheet)
+    m = len(prepared) // 3
+    nom = prepared.iloc[:m].assign(p_meet=p_meet(prepared, t))
+    nom = nom[_hard_filters(nom, t)]
+    keys = [k for k in NUMERIC_TARGETS if k in t]
+    mg = margins(nom, t)
+    met = mg.to_numpy() >= 0 if keys else np.ones((len(nom), 0), bool)
+    rows = []
+    for j, k in enumerate(keys):
+        col, side = NUMERIC_TARGETS[k]
+        others = np.delete(met, j, axis=1).all(axis=1)
+        v = nom[col].to_numpy(float)
+        ok = others & np.isfinite(v)
+        rec = {"target": k, "column": col, "limit": t[k], "best": np.nan, "move": np.inf,
+               "relative_move": np.inf, "met": False, "grade": "", "route_text": "", "route": None,
+               "variant": ""}
+        if ok.any():
+            idx = np.flatnonzero(ok)
+            i = idx[np.argmax(v[idx])] if side == "min" else idx[np.argmin(v[idx])]
+            best = float(v[i])
+            move = max(0.0, t[k] - best) if side == "min" else max(0.0, best - t[k])
+            steps, texts = _routes(nom.iloc[[i]])
+            rec.update(best=best, move=move, met=move == 0.0,
+                       relative_move=(move / abs(t[k]) if t[k] else (0.0 if move == 0 else np.inf)),
+                       grade=nom["grade"].iloc[i], route_text=texts[0], route=steps[0],
+                       variant=nom["variant"].iloc[i])
+        rows.append(rec)
+    reach = pd.DataFrame(rows, columns=["target", "column", "limit", "best", "move", "relative_move", "met",
+                                        "grade", "route_text", "route", "variant"])
+    frontier, axes = pd.DataFrame(columns=_MISS_COLUMNS), ()
+    if len(keys) >= 2:
+        # binding: the total relative move the nearest misses need on each target
+        bind = []
+        for k in keys:
+            mv = misses.get(f"move_{k}")
+            mv = np.zeros(1) if mv is None else np.nan_to_num(mv.to_numpy(float), posinf=1e9)
+            bind.append(float(mv.sum()) / (abs(t[k]) or 1.0))
+        order = np.argsort(-np.asarray(bind), kind="stable")
+        a, b = keys[order[0]], keys[order[1]]
+        axes = (a, b)
+        ja, jb = keys.index(a), keys.index(b)
+        others = np.delete(met, [ja, jb], axis=1).all(axis=1)
+        (ca, sa), (cb, sb) = NUMERIC_TARGETS[a], NUMERIC_TARGETS[b]
+        va, vb = nom[ca].to_numpy(float), nom[cb].to_numpy(float)
+        pool = others & np.isfinite(va) & np.isfinite(vb)
+        if pool.any():
+            pts = np.column_stack([va[pool], vb[pool]])
+            front = pareto_mask(pts, [sa == "min", sb == "min"])
+            sel = nom[pool][front].drop_duplicates([ca, cb])
+            steps, texts = _routes(sel)
+            sel = sel.assign(route_family=sel["route"], route=steps, route_text=texts)
+            frontier = sel[[c for c in _MISS_COLUMNS if c in sel.columns]].sort_values(ca, kind="stable")
+            frontier = frontier.reset_index(drop=True)
+    return {"misses": misses, "reachable": reach, "frontier": frontier, "axes": axes}
 
 
 def _hard_filters(frame: pd.DataFrame, t: dict) -> np.ndarray:
