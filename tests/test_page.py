@@ -124,6 +124,12 @@ def test_no_candidate_gives_the_nearest_miss_report(at):
     assert misses is not None and len(misses) > 0
     assert (misses["move_min_yield_mpa"] > 0).all()
     assert misses["miss_score"].is_monotonic_increasing
+    # what can be reached: the table of best values and the frontier chart of the two binding targets
+    assert any("best reachable" in df.value.columns for df in at.dataframe)
+    assert any("What can be reached" in c.proto.spec for c in at.get("vega_lite_chart"))
+    # a near miss opens like a candidate, with its probability of meeting the targets in %
+    assert at.selectbox(key="miss_pick") is not None
+    assert any(m.label == "Meets the targets" and m.value.endswith("%") for m in at.metric)
     # the cautions stay visible on this view too
     assert sum(selector.CAUTION in w.value for w in at.warning) >= 2
 
