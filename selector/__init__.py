@@ -13,11 +13,12 @@ from .routes.evaluate import evaluate
 CAUTION = ("Estimates for preliminary selection only. The final choice needs certified material "
            "test reports, the applicable design code and review by a qualified engineer.")
 
-from .selection.engine import alternatives, nearest_misses, select
+from .selection.engine import alternatives, miss_analysis, nearest_misses, select
 from .design.pins import pin_targets
 from .design.sweep import diameter_sweep
 
-__all__ = ["catalogue", "grade", "evaluate", "select", "nearest_misses", "alternatives", "pin_targets",
+__all__ = ["catalogue", "grade", "evaluate", "select", "nearest_misses", "miss_analysis", "alternatives",
+           "pin_targets",
            "diameter_sweep", "CAUTION",
            "SelectorError", "InputError", "RouteError", "NotModelledError", "UnknownGradeError",
            "DataFileError", "SelectorWarning"]

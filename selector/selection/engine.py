@@ -142,21 +142,24 @@ def _prepare_cached(diameter_mm, thickness_mm, length_mm, prices: tuple) -> pd.D
     return out
 
 
-@functools.lru_cache(maxsize=4)
-def _samples_cached(diameter_mm, thickness_mm, keys: tuple) -> dict:
+@functools.lru_cache(maxsize=32)
+def _samples_cached(diameter_mm, thickness_mm, keys: tuple, column: str) -> np.ndarray:
     st = expand(diameter_mm, thickness_mm)
     nom = st[st["corner"] == "nominal"].set_index("state_key", drop=False).loc[list(keys)]
     section = diameter_mm if thickness_mm is None else thickness_mm
-    return scatter.sample(nom, float(section), diameter_mm, thickness_mm)
+    return scatter.sample(nom, float(section), diameter_mm, thickness_mm, columns=[column])[column]
 
 
-def samples(prepared: pd.DataFrame) -> dict:
+def samples(prepared: pd.DataFrame, columns=None) -> dict:
     """Monte Carlo draws (:func:`selector.states.scatter.sample`) of the nominal block
-    of ``prepared``, row-aligned with it (cached per section and state order)."""
+    of ``prepared``, row-aligned with it: ``{column: (m, N_DRAWS) array}`` for
+    ``columns`` (default every drawable column), each drawn on first use and cached
+    per section and state order."""
     sec = prepared.attrs.get("section") or {}
     m = len(prepared) // 3
     keys = tuple(prepared["state_key"].to_numpy()[:m].tolist())
-    return _samples_cached(sec.get("diameter_mm"), sec.get("thickness_mm"), keys)
+    cols = list(scatter.DRAWABLE) if columns is None else list(columns)
+    return {c: _samples_cached(sec.get("diameter_mm"), sec.get("thickness_mm"), keys, c) for c in cols}
 
 
 def p_meet(prepared: pd.DataFrame, targets: dict | None) -> np.ndarray:
@@ -167,9 +170,8 @@ def p_meet(prepared: pd.DataFrame, targets: dict | None) -> np.ndarray:
     t = validate_targets(targets, FAMILIES)
     m = len(prepared) // 3
     nom = prepared.iloc[:m]
-    sm = samples(prepared) if any(NUMERIC_TARGETS[k][0] in scatter.SAMPLED or
-                                  NUMERIC_TARGETS[k][0] in ("hardness_hrc", "surface_hardness_hrc")
-                                  for k in t if k in NUMERIC_TARGETS) else {}
+    sm = samples(prepared, sorted({NUMERIC_TARGETS[k][0] for k in t if k in NUMERIC_TARGETS}
+                                  & set(scatter.DRAWABLE)))
     ok = None
     for key in NUMERIC_TARGETS:
         if key not in t:

@@ -22,7 +22,8 @@ The property of a drawn heat is linearised about the nominal composition::
 The sensitivities ``a_e`` come from one extra vectorised ``compute`` per route family
 over the nominal states with one element moved to its maximum (one block per
 element: the same family ``compute`` the expansion uses, so they follow any model
-change).  Full Monte Carlo through ``compute`` (200 compositions per state) costs about
+change), at every :data:`THIN`-th value of the route's main parameter (and its last),
+interpolated linearly in between.  Full Monte Carlo through ``compute`` (200 compositions per state) costs about
 200 expansions and is out of the speed budget; the linearisation costs one expansion
 of the nominal block per element of the grade.  Its error is checked against the
 rich corner (every element at its maximum at once, computed exactly by the
@@ -77,7 +78,7 @@ from ..catalogue.grades import default_catalogue
 from ..models import conversions
 from ..routes import bands
 from ..routes import families as fam_registry
-from ..routes.evaluate import STEEL_SCALE_FAMILIES, finish
+from ..routes.evaluate import STEEL_SCALE_FAMILIES
 from ..routes.families.base import Batch
 from .expand import _family_batch, expand
 
@@ -133,7 +134,46 @@ def _half_ranges(batch: Batch, element: str) -> np.ndarray:
     return out[batch.gidx]
 
 
-def _family_effects(fam, d, t):
+#: sensitivities are computed at every THIN-th value of a route's main parameter (and its
+#: last value) and interpolated linearly in between (they vary smoothly along it)
+THIN = 3
+
+
+def _thinned(batch: Batch, main: str | None) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    """Rows at which to compute the sensitivities, and for every row its left and right
+    computed neighbours along the main parameter (same grade and other parameters) with
+    the weight of the left one."""
+    n = batch.n
+    idx = np.arange(n)
+    if not main or main not in batch.params or THIN <= 1:
+        return idx, idx, idx, np.ones(n)
+    mv = np.asarray(batch.params[main], float)
+    cols = {"g": batch.gidx}
+    for k, v in batch.params.items():
+        if k != main:
+            cols[k] = np.asarray(v).astype(str)
+    group = pd.DataFrame(cols).groupby(list(cols), sort=False).ngroup().to_numpy()
+    order = np.lexsort((mv, group))
+    g_s, m_s = group[order], mv[order]
+    first = np.r_[True, g_s[1:] != g_s[:-1]]
+    last = np.r_[g_s[1:] != g_s[:-1], True]
+    start = np.maximum.accumulate(np.where(first, np.arange(n), 0))
+    pos = np.arange(n) - start
+    keep_s = (pos % THIN == 0) | last
+    at = np.where(keep_s, np.arange(n), -1)
+    left_s = np.maximum.accumulate(at)                                   # last kept at or before
+    right_s = np.minimum.accumulate(np.where(keep_s, np.arange(n), n)[::-1])[::-1]  # next kept
+    span = m_s[right_s] - m_s[left_s]
+    with np.errstate(invalid="ignore", divide="ignore"):
+        w_s = np.where(span > 0, (m_s[right_s] - m_s) / span, 1.0)
+    left, right, w = np.empty(n, int), np.empty(n, int), np.empty(n)
+    left[order], right[order], w[order] = order[left_s], order[right_s], w_s
+    return np.sort(order[keep_s]), left, right, w
+
+
+def _family_effects(fam, d, t, nominal: dict):
+    """(state keys, elements, {prop: (n, K) change of prop when the element moves from
+    mid-range to its maximum}) for the nominal states of one route family."""
     cat = default_catalogue()
     grades = [g for g in cat.grades.values()
               if fam.name in g.routes and (not fam.families or g.family in fam.families)]
@@ -145,23 +185,35 @@ def _family_effects(fam, d, t):
     elements = sorted(e for e in batch.comp if e not in FIXED_RESIDUALS)
     h = {e: _half_ranges(batch, e) for e in elements}
     elements = [e for e in elements if (h[e] > 0).any()]
+    n, k = batch.n, len(elements)
+    if not elements:
+        return keys, elements, {}
+    sub, left, right, w = _thinned(batch, fam.main_parameter)
+    on_sub = np.zeros(n, bool)
+    on_sub[sub] = True
     idx, col = [], []
     for j, e in enumerate(elements):
-        rows = np.flatnonzero(h[e] > 0)
+        rows = np.flatnonzero(on_sub & (h[e] > 0))
         idx.append(rows)
         col.append(np.full(len(rows), j))
-    if not idx:
-        return keys, elements, {}
     idx, col = np.concatenate(idx), np.concatenate(col)
     comp = {e: np.asarray(v, float)[idx].copy() for e, v in batch.comp.items()}
     for j, e in enumerate(elements):
         m = col == j
         comp[e][m] += h[e][idx[m]]
-    pert = Batch(batch.grades, batch.gidx[idx], comp, {k: np.asarray(v)[idx] for k, v in batch.params.items()},
+    pert = Batch(batch.grades, batch.gidx[idx], comp, {p: np.asarray(v)[idx] for p, v in batch.params.items()},
                  batch.diameter_mm[idx], batch.thickness_mm[idx])
-    res = finish(fam.compute(pert), pert, fam.name)
-    return keys, elements, {"rows": idx, "col": col,
-                            **{p: np.asarray(res[p], float) for p in SAMPLED if p in res}}
+    res = fam.compute(pert)       # the sampled properties come from compute itself (no band, no HRC)
+    out = {}
+    for p in SAMPLED:
+        if p not in res:
+            continue
+        base = nominal[p].reindex(keys[idx]).to_numpy(float)
+        delta = np.asarray(res[p], float) - base
+        full = np.zeros((n, k))
+        full[idx, col] = np.where(np.isfinite(delta), delta, 0.0)
+        out[p] = w[:, None] * full[left] + (1.0 - w)[:, None] * full[right]
+    return keys, elements, out
 
 
 @functools.lru_cache(maxsize=8)
@@ -172,34 +224,28 @@ def effects(diameter_mm: float | None, thickness_mm: float | None) -> dict:
     where ``a[prop][i, k]`` is the change of ``prop`` when element ``k`` moves from its
     mid-range to its maximum (0 where the grade does not specify it; 0 where the moved
     state's value is undefined, e.g. off the hardness table, so such a state keeps its
-    nominal value).  Cached per section (treat as read-only)."""
+    nominal value).  Computed at every :data:`THIN`-th value of the route's main
+    parameter and interpolated linearly in between.  Cached per section (treat as
+    read-only)."""
     states = expand(diameter_mm, thickness_mm)
     nom = states[states["corner"] == "nominal"]
     nominal = {p: pd.Series(nom[p].to_numpy(float), index=nom["state_key"].to_numpy()) for p in SAMPLED}
     parts = []
     for fam in fam_registry.available():
-        out = _family_effects(fam, diameter_mm, thickness_mm)
+        out = _family_effects(fam, diameter_mm, thickness_mm, nominal)
         if out is not None:
             parts.append(out)
     elements = tuple(sorted({e for _, els, _ in parts for e in els}))
     kpos = {e: i for i, e in enumerate(elements)}
     keys = np.concatenate([k for k, _, _ in parts])
-    pos = pd.Index(keys)
     a = {p: np.zeros((len(keys), len(elements))) for p in SAMPLED}
     start = 0
     for k, els, res in parts:
-        if res:
-            rows = res["rows"]
-            cols = np.array([kpos[els[c]] for c in res["col"]], int)
-            for p in SAMPLED:
-                if p not in res:
-                    continue
-                base = nominal[p].reindex(k[rows]).to_numpy(float)
-                delta = res[p] - base
-                delta = np.where(np.isfinite(delta), delta, 0.0)
-                a[p][start + rows, cols] = delta
+        cols = np.array([kpos[e] for e in els], int)
+        for p, delta in res.items():
+            a[p][start:start + len(k), cols] = delta
         start += len(k)
-    return {"state_key": keys, "index": pos, "elements": elements, "a": a}
+    return {"state_key": keys, "index": pd.Index(keys), "elements": elements, "a": a}
 
 
 def _band_quantiles(frame: pd.DataFrame, section_mm: float) -> dict:
@@ -218,8 +264,12 @@ def _band_quantiles(frame: pd.DataFrame, section_mm: float) -> dict:
     return out
 
 
+#: columns :func:`sample` can draw, and the drawn property each needs
+DRAWABLE = {**{p: p for p in SAMPLED}, "hardness_hrc": "hardness_hv", "surface_hardness_hrc": "surface_hardness_hv"}
+
+
 def sample(nominal: pd.DataFrame, section_mm: float, diameter_mm, thickness_mm,
-           n_draws: int = N_DRAWS, seed: int = SEED, dtype=np.float32) -> dict:
+           n_draws: int = N_DRAWS, seed: int = SEED, dtype=np.float32, columns=None) -> dict:
     """Monte Carlo draws of every state of ``nominal`` (rows of the nominal corner of
     :func:`expand`, in any order).
 
@@ -236,6 +286,10 @@ def sample(nominal: pd.DataFrame, section_mm: float, diameter_mm, thickness_mm,
         Draws per state (default :data:`N_DRAWS`).
     seed : int
         Seed of the draws (default :data:`SEED`).
+    dtype : numpy dtype
+        Of the returned arrays (default float32: 200 draws of 5 000 states are 4 MB).
+    columns : sequence of str, optional
+        Only these columns (out of :data:`DRAWABLE`); default all.
 
     Returns
     -------
@@ -265,8 +319,12 @@ def sample(nominal: pd.DataFrame, section_mm: float, diameter_mm, thickness_mm,
     dr = draws(eff["elements"], n_draws, seed)
     zt = dr["z"].T                                         # (K, D)
     q = _band_quantiles(nominal, section_mm)
+    want = list(DRAWABLE) if columns is None else [c for c in columns if c in DRAWABLE]
+    need = {DRAWABLE[c] for c in want}
     out = {}
     for p in SAMPLED:
+        if p not in need:
+            continue
         base = nominal[p].to_numpy(float)[:, None]
         y = base + eff["a"][p][rows] @ zt                  # (m, D)
         if p in BANDED:
@@ -282,10 +340,12 @@ def sample(nominal: pd.DataFrame, section_mm: float, diameter_mm, thickness_mm,
         out[p] = y.astype(dtype)
     steel = np.isin(nominal["family"].to_numpy(object).astype(str), STEEL_SCALE_FAMILIES)[:, None]
     for key in ("hardness", "surface_hardness"):
+        if key + "_hrc" not in want:
+            continue
         hv = out[key + "_hv"]
         hrc = np.full(hv.shape, np.nan, dtype)
         if steel.any():
             rows_s = np.flatnonzero(steel[:, 0])
             hrc[rows_s] = conversions.hv_to_hrc(hv[rows_s].astype(float)).astype(dtype)
         out[key + "_hrc"] = hrc
-    return out
+    return {c: out[c] for c in want}
