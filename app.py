@@ -131,7 +131,16 @@ with st.sidebar:
     st.markdown("### Scope")
     st.multiselect("Families", list(FAMILIES), key="families", format_func=lambda f: f.replace("_", " "))
     st.checkbox("Corrosion-resistant grades only", key="corrosion")
-    st.checkbox("Only candidates that hold over the whole composition range", key="robust_only")
+    st.checkbox("Only candidates that meet the targets with the required probability", key="robust_only")
+    st.number_input("Required probability of meeting the targets (%)", min_value=1.0, max_value=100.0,
+                    value=90.0, step=5.0, format="%.0f", key="min_p_pct",
+                    help="Share of heats within the grade's specification, processed by the route, that meet "
+                         "every target, counting the model's 90 % band (Monte Carlo, 200 draws: standard "
+                         "error at most 3.5 points).")
+    st.multiselect("Do not rank these cautions last", pg.avoid_rules(), key="allow",
+                   format_func=pg.avoid_rule_label,
+                   help="Cautions of severity 'avoid' put a route after every route without one; "
+                        "allow a rule here when your process controls it.")
 
     with st.expander("Service conditions (for the cautions)"):
         st.checkbox("Electroplated", key="plated")
@@ -232,7 +241,10 @@ def candidate_view(cand, states):
     hrc = row["hardness_hrc"]
     m[3].metric("Hardness (HRC)", "—" if hrc != hrc else f"{hrc:.3g}")
     m[4].metric("Rel. cost / kg", f"{row['relative_cost']:.3g}")
-    m[5].metric("Holds at every corner", "yes" if row["robust"] else "nominal only")
+    m[5].metric("Meets the targets", pg.percent(row.get("p_meet")),
+                help="Probability that a heat within the specification meets every target (model band "
+                     "included); every composition corner at once: "
+                     + ("yes" if row.get("corners_meet") else "no"))
     st.caption(pg.band_text(ev, system))
     heat_text = st.text_input("Heat analysis from the mill certificate (wt %)", key="heat_text",
                               placeholder="e.g. C=0.41 Mn=0.86 Cr=0.95 Mo=0.18 (other elements: nominal)",
@@ -267,10 +279,11 @@ def candidate_view(cand, states):
         st.markdown("\n".join(pg.route_steps(row["route"], system)))
         param = row["window_parameter"]
         if param:
-            st.markdown(f"**Process window** (nominal composition): "
-                        f"{pg._fmt_window(row['window_min'], row['window_max'], param, system) or '—'}")
+            win = pg._fmt_window(row['window_min'], row['window_max'], param, system)
+            st.markdown(f"**Process window** (clear of avoid cautions): "
+                        f"{win or 'none clear of avoid cautions: ' + str(row.get('avoid') or '')}")
             rw = pg._fmt_window(row["robust_window_min"], row["robust_window_max"], param, system)
-            st.markdown(f"**Window at every composition corner**: {rw or 'none: holds at the nominal only'}")
+            st.markdown(f"**Window at the required probability**: {rw or 'none: meets at the estimate only'}")
     with right:
         st.markdown("**Cautions**")
         cautions = pg.candidate_cautions(row, ev.get("warnings", []), service)
@@ -549,7 +562,8 @@ if prepared_ok:
     try:
         t = time.perf_counter()
         cand = pg.cached_rank(d_si, t_si, len_si, price_items, pg.targets_key(targets),
-                              bool(ss.get("robust_only")))
+                              bool(ss.get("robust_only")), float(ss.get("min_p_pct") or 90.0) / 100.0,
+                              tuple(ss.get("allow") or ()), pg.targets_key(service))
         timings["ranking"] = time.perf_counter() - t
     except SelectorError as exc:
         st.error(pg.explain(exc, system))
@@ -563,9 +577,7 @@ if cand is not None and len(cand):
     states = pg.cached_variant_states(d_si, t_si, len_si, price_items,
                                       tuple(sorted(set(top["variant"]) | {pick})))
     timings["regions"] = time.perf_counter() - t
-    st.markdown(f"**{len(cand)}** candidates meet the targets: **{int(cand['pareto'].sum())}** in the "
-                f"Pareto set (max yield, max elongation, min cost), **{int(cand['robust'].sum())}** hold at "
-                f"every composition corner.")
+    st.markdown(pg.ranking_summary(cand))
 tab_map, tab_one, tab_two, tab_pin, tab_parts = st.tabs(TAB_LABELS)
 no_table = "No candidate table: see the messages above."
 if cand is not None and len(cand) == 0:
@@ -577,6 +589,35 @@ if cand is not None and len(cand) == 0:
             misses = pg.cached_nearest_misses(d_si, t_si, len_si, price_items, pg.targets_key(targets))
             st.dataframe(pg.miss_table(misses, system), width="stretch", hide_index=True,
                          key="misses")
+            report = pg.cached_miss_analysis(d_si, t_si, len_si, price_items, pg.targets_key(targets))
+            st.markdown("**What can be reached**: the best value of each target with the other targets met "
+                        "(at the nominal composition).")
+            st.dataframe(pg.reachable_table(report["reachable"], system), width="stretch", hide_index=True,
+                         key="reachable")
+            fchart = pg.frontier_chart(report["frontier"], report["axes"], targets, system)
+            if fchart is not None:
+                st.altair_chart(fchart, width="stretch")
+            if len(misses):
+                labels = {i: f"{r['grade']} · {pg.route_line(r['route'], system, r['route_text'])}"
+                          for i, r in misses.iterrows()}
+                i = st.selectbox("Open a near miss", list(labels), key="miss_pick", format_func=labels.get)
+                r = misses.loc[i]
+                ev = pg.cached_evaluate(r["grade"], pg.route_json(r["route"]), d_si, t_si)
+                mm = st.columns(5)
+                mm[0].metric(f"Yield ({su})", f"{pg.to_display(ev['yield_mpa'], 'stress', system):.4g}"
+                             if ev.get("yield_mpa") is not None else "—")
+                mm[1].metric(f"Tensile ({su})", f"{pg.to_display(ev['uts_mpa'], 'stress', system):.4g}"
+                             if ev.get("uts_mpa") is not None else "—")
+                mm[2].metric("Elongation (%)", f"{ev['elongation_pct']:.3g}"
+                             if ev.get("elongation_pct") is not None else "—")
+                mm[3].metric("Hardness (HRC)", f"{ev['hardness_hrc']:.3g}"
+                             if ev.get("hardness_hrc") is not None else "—")
+                mm[4].metric("Meets the targets", pg.percent(r.get("p_meet")))
+                st.caption(pg.band_text(ev, system))
+                st.markdown("\n".join(pg.route_steps(r["route"], system)))
+                mc = pg.candidate_cautions(r, ev.get("warnings", []), service)
+                if mc:
+                    st.warning("\n".join(f"- {c}" for c in mc))
         except SelectorError as exc:
             st.error(pg.explain(exc, system))
     for tab in (tab_one, tab_two):

@@ -23,6 +23,7 @@ _LAZY = {
     "grade": ".catalogue.grades",
     "evaluate": ".routes.evaluate",
     "select": ".selection.engine", "nearest_misses": ".selection.engine", "alternatives": ".selection.engine",
+    "miss_analysis": ".selection.engine",
     "pin_targets": ".design.pins",
     "diameter_sweep": ".design.sweep",
     "batch": ".design.batch",
@@ -30,7 +31,8 @@ _LAZY = {
     "rationalise": ".design.stock",
 }
 
-__all__ = ["catalogue", "grade", "evaluate", "select", "nearest_misses", "alternatives", "pin_targets",
+__all__ = ["catalogue", "grade", "evaluate", "select", "nearest_misses", "miss_analysis", "alternatives",
+           "pin_targets",
            "diameter_sweep", "batch", "rationalise", "read_parts", "PartsListError", "CAUTION",
            "SelectorError", "InputError", "RouteError", "NotModelledError", "UnknownGradeError",
            "DataFileError", "SelectorWarning"]

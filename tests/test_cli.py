@@ -90,3 +90,20 @@ def test_module_entry_point_and_console_script():
         pytest.skip("console script not installed (run pip install -e .)")
     r = subprocess.run([exe, "grades", "G41400", "--json"], capture_output=True, text=True, timeout=120)
     assert r.returncode == 0 and json.loads(r.stdout)["id"] == "4140"
+
+
+def test_select_min_p_meet_and_allow_flags():
+    code, out, _ = run("select", "--min-yield-mpa", "800", "--min-elongation-pct", "12", "--diameter", "60",
+                       "--min-p-meet", "0.8", "--allow", "quench_cracking,shallow_hardening", "--format", "json")
+    assert code == 0
+    rows = json.loads(out)["rows"]
+    ref = selector.select({"min_yield_mpa": 800, "min_elongation_pct": 12}, diameter_mm=60, min_p_meet=0.8,
+                          allow=["quench_cracking", "shallow_hardening"])
+    assert [r["grade"] for r in rows] == ref["grade"].tolist()
+    assert all(r["min_p_meet"] == 0.8 for r in rows)
+    code, out, _ = run("select", "--min-yield-mpa", "800", "--diameter", "60", "--top", "3")
+    assert code == 0 and "p_meet_pct" in out and "CAUTION" in out
+    code, _, err = run("select", "--min-yield-mpa", "800", "--min-p-meet", "0")
+    assert code == 2 and "min_p_meet" in err and "(0, 1]" in err
+    code, _, err = run("select", "--min-yield-mpa", "800", "--allow", "nosuchrule")
+    assert code == 2 and "allow" in err and "quench_cracking" in err

@@ -39,7 +39,28 @@ galvanic                 anodic-index difference to the named mating material
                          controlled), MIL-DTL-14072 Table VI groups
 service_temperature      service temperature >= tempering, aging or nitriding
                          temperature - 50 °C
+shallow_hardening        through-hardening route (Q&T, the Q&T core of nitride
+                         or induction) with centre martensite < 50 %, when a
+                         minimum strength or hardness is a target
 =======================  =====================================================
+
+Severity
+--------
+Every rule has a severity (``data/cautions.csv``, column ``severity``, with its
+reason and source in ``severity_reason``):
+
+* ``note``: for information (decarburization);
+* ``caution``: needs attention in the process or the design (hydrogen
+  embrittlement, over-aging, SCC of 7xxx-T6, galvanic couple);
+* ``avoid``: the selection ranks a route with it after every route without one,
+  and keeps process windows clear of it (tempered-martensite embrittlement range,
+  water/brine quench cracking, service near the tempering temperature, centre below
+  50 % martensite under a strength target).
+
+A user can switch a rule off by its code, ``allow=["quench_cracking"]``
+(:func:`check_allow`; ``water_quench_alloy`` is accepted as another name of
+``quench_cracking``).  The severities and their reasons are listed in
+``docs/methods/selection.md``.
 
 Results are estimates for preliminary selection.  The final choice needs
 certified material test reports, the applicable design code and review by a
@@ -47,6 +68,9 @@ qualified engineer.
 
 References
 ----------
+Grossmann, M. A. (1952) *Elements of Hardenability*, ASM (the 50 % martensite
+criterion; from memory).  Krauss, G. (2005) *Steels: Processing, Structure and
+Performance*, ASM International (tempered-martensite embrittlement; from memory).
 ISO 4042:1999, Fasteners — Electroplated coatings, §6 and Annex A (hydrogen
 embrittlement relief).  MIL-DTL-14072F, Finishes for ground based electronic
 equipment, §3.13 and Table VI (intermetallic couples).  ASTM G64, Classification
@@ -90,6 +114,16 @@ QUENCH_CRACK_C_PCT = {"alloy_steel": 0.35, "nitriding_steel": 0.35, "carbon_stee
 SEVERE_QUENCHES = ("water", "brine")
 #: carbon from which decarburization matters, wt % (common practice)
 DECARB_C_PCT = 0.30
+#: centre martensite below which a through-hardened part is slack-quenched, % (Grossmann's 50 %
+#: martensite criterion of the critical diameter, ASTM A255; common practice)
+CENTRE_MARTENSITE_MIN_PCT = 50.0
+#: route families that through-harden the section (the centre of a nitride route is its Q&T core;
+#: an induction route's core is its prior quench-and-temper)
+THROUGH_HARDENING_ROUTES = ("quench_temper", "nitride")
+#: severities, mildest first
+SEVERITIES = ("note", "caution", "avoid")
+#: other accepted names of a rule in ``allow=[...]``
+ALLOW_ALIASES = MappingProxyType({"water_quench_alloy": "quench_cracking"})
 #: margin between service and tempering/aging temperature, °C (common practice)
 SERVICE_MARGIN_C = 50.0
 #: largest anodic-index difference by environment, V (common practice, see data/cautions.csv)
@@ -131,7 +165,8 @@ class _Frame:
         self.prior = self._str(frame, "prior")
         self.designation = self._str(frame, "designation")
         for col in ("temper_temp_c", "age_temp_c", "peak_ratio", "c_pct", "hardness_hrc",
-                    "surface_hardness_hrc", "uts_mpa", "prior_temper_temp_c", "temp_c"):
+                    "surface_hardness_hrc", "uts_mpa", "prior_temper_temp_c", "temp_c",
+                    "center_martensite_pct"):
             setattr(self, col, self._num(frame, col))
         # an aging route may carry its temperature as temp_c (the step's parameter name)
         self.age_temp_c = np.where(np.isnan(self.age_temp_c) & (self.route == "age"), self.temp_c,
@@ -184,13 +219,16 @@ def _hydrogen(f: _Frame, ctx: dict) -> np.ndarray:
 
 
 def _severe(quench: np.ndarray) -> np.ndarray:
-    return np.array([q.split("_")[0].split(" ")[0] in SEVERE_QUENCHES for q in quench], bool)
+    u, inv = np.unique(np.asarray(quench).astype(str), return_inverse=True)
+    sev = np.array([q.split("_")[0].split(" ")[0] in SEVERE_QUENCHES for q in u], bool)
+    return sev[inv].reshape(np.shape(quench))
 
 
 def _quench_cracking(f: _Frame, ctx: dict) -> np.ndarray:
     # the route's own quench, or the prior through-hardening quench of an induction route
     severe = _severe(f.quench) | _severe(f.prior_quench)
-    limit = np.array([QUENCH_CRACK_C_PCT.get(fam, np.inf) for fam in f.family], float)
+    u, inv = np.unique(f.family.astype(str), return_inverse=True)
+    limit = np.array([QUENCH_CRACK_C_PCT.get(fam, np.inf) for fam in u], float)[inv]
     return severe & _ge(f.c_pct - limit, -1e-9)
 
 
@@ -242,6 +280,15 @@ def _service_temperature(f: _Frame, ctx: dict) -> np.ndarray:
     return near[0] | near[1] | near[2]
 
 
+def _shallow_hardening(f: _Frame, ctx: dict) -> np.ndarray:
+    if not ctx.get("strength_target"):
+        return np.zeros(f.n, bool)
+    through = f.isin("route", THROUGH_HARDENING_ROUTES) | ((f.route == "induction") & (f.prior == "quench_temper"))
+    with np.errstate(invalid="ignore"):
+        slack = np.nan_to_num(f.center_martensite_pct, nan=np.inf) < CENTRE_MARTENSITE_MIN_PCT - 1e-9
+    return f.isin("family", HARDENED_STEELS) & through & slack
+
+
 # --- per-row detail appended to a reason (optional) ----------------------------------------
 
 def _galvanic_detail(f: _Frame, ctx: dict, i: int) -> str:
@@ -250,6 +297,10 @@ def _galvanic_detail(f: _Frame, ctx: dict, i: int) -> str:
     return (f" Anodic index {own:.2f} V ({ctx['own_category'][i]}) against {mate['anodic_index_v']:.2f} V "
             f"({mate['category']}): difference {abs(own - mate['anodic_index_v']):.2f} V > "
             f"{ctx['galvanic_limit_v']:.2f} V ({ctx['environment']} environment); {anode} is the anode.")
+
+
+def _shallow_detail(f: _Frame, ctx: dict, i: int) -> str:
+    return f" Centre martensite {f.center_martensite_pct[i]:.0f} % (at least {CENTRE_MARTENSITE_MIN_PCT:g} % wanted)."
 
 
 def _service_detail(f: _Frame, ctx: dict, i: int) -> str:
@@ -268,10 +319,12 @@ TRIGGERS: Mapping[str, Callable] = MappingProxyType({
     "scc_7xxx_t6": _scc_7xxx,
     "galvanic": _galvanic,
     "service_temperature": _service_temperature,
+    "shallow_hardening": _shallow_hardening,
 })
 _DETAILS: Mapping[str, Callable] = MappingProxyType({
     "galvanic": _galvanic_detail,
     "service_temperature": _service_detail,
+    "shallow_hardening": _shallow_detail,
 })
 
 
@@ -289,6 +342,8 @@ class Caution:
     source: str
     confidence: str
     trigger: Callable
+    severity: str = "caution"
+    severity_reason: str = ""
 
     def mask(self, frame: pd.DataFrame, **context) -> np.ndarray:
         """Boolean mask of the rows of ``frame`` where this caution fires."""
@@ -298,7 +353,8 @@ class Caution:
 
 _CAUTION_SCHEMA = Schema((
     Column("code"), Column("title"), Column("rule"), Column("reason"), Column("trigger"),
-    Column("source"), Column("confidence", "choice", choices=CONFIDENCE),
+    Column("source"), Column("severity", "choice", choices=SEVERITIES), Column("severity_reason"),
+    Column("confidence", "choice", choices=CONFIDENCE),
 ))
 
 _GALVANIC_SCHEMA = Schema((
@@ -317,7 +373,7 @@ def _load_cautions() -> Mapping[str, Caution]:
             raise DataFileError(CAUTIONS_FILE, r.line, "code",
                                 f"{r.code!r} has no trigger; triggers exist for: {', '.join(TRIGGERS)}")
         out[r.code] = Caution(r.code, r.title, r.rule, r.reason, r.trigger, r.source, r.confidence,
-                              TRIGGERS[r.code])
+                              TRIGGERS[r.code], r.severity, r.severity_reason)
     lacking = [c for c in TRIGGERS if c not in out]
     if lacking:
         raise DataFileError(CAUTIONS_FILE, None, "code", f"no row for the trigger(s): {', '.join(lacking)}")
@@ -327,7 +383,8 @@ def _load_cautions() -> Mapping[str, Caution]:
 #: the columns the triggers read (a view that builds a frame for cautions_for should keep them)
 COLUMNS_READ = ("grade", "family", "route", "route_family", "quench", "prior", "prior_quench",
                 "prior_temper_temp_c", "temper_temp_c", "age_temp_c", "temp_c", "peak_ratio",
-                "designation", "c_pct", "hardness_hrc", "surface_hardness_hrc", "uts_mpa")
+                "designation", "c_pct", "hardness_hrc", "surface_hardness_hrc", "uts_mpa",
+                "center_martensite_pct")
 
 #: every caution, by code (loaded once from data/cautions.csv)
 CAUTIONS: Mapping[str, Caution] = _load_cautions()
@@ -426,12 +483,14 @@ def anodic_index(material: str) -> dict:
 
 
 def _context(f: _Frame, plated=False, mating_material=None, service_temp_c=None,
-             environment: str = "normal", plating: str | None = None) -> dict:
+             environment: str = "normal", plating: str | None = None, strength_target: bool = False) -> dict:
     if not isinstance(plated, (bool, np.bool_)):
         raise InputError("plated", plated, "True or False")
+    if not isinstance(strength_target, (bool, np.bool_)):
+        raise InputError("strength_target", strength_target, "True or False")
     env = check_choice("environment", environment, tuple(GALVANIC_LIMITS_V))
     ctx = {"plated": bool(plated), "environment": env, "galvanic_limit_v": GALVANIC_LIMITS_V[env],
-           "service_temp_c": None, "mating": None}
+           "service_temp_c": None, "mating": None, "strength_target": bool(strength_target)}
     if service_temp_c is not None:
         ctx["service_temp_c"] = check_number("service_temp_c", service_temp_c, -273.15, 1500.0)
     if plating is not None and not plated:
@@ -460,7 +519,7 @@ def caution_masks(frame: pd.DataFrame, **context) -> pd.DataFrame:
 
 def cautions_for(frame: pd.DataFrame, plated: bool = False, mating_material: str | None = None,
                  service_temp_c: float | None = None, environment: str = "normal",
-                 plating: str | None = None) -> list[list[dict]]:
+                 plating: str | None = None, strength_target: bool = False) -> list[list[dict]]:
     """The cautions that apply to each row of ``frame``.
 
     Parameters
@@ -479,12 +538,15 @@ def cautions_for(frame: pd.DataFrame, plated: bool = False, mating_material: str
         ``harsh``, ``normal`` (default) or ``controlled``: the galvanic limit.
     plating : str, optional
         The plating metal (``"zinc plated"``, ``"nickel plated"`` ...), with ``plated=True``.
+    strength_target : bool
+        The targets include a minimum strength or hardness (the centre-martensite
+        rule ``shallow_hardening`` applies only then).
 
     Returns
     -------
     list of list of dict
-        One list per row, each caution as ``{"code", "title", "reason"}`` in the
-        order of ``data/cautions.csv``.
+        One list per row, each caution as ``{"code", "title", "reason", "severity"}``
+        in the order of ``data/cautions.csv``.
 
     References
     ----------
@@ -493,14 +555,14 @@ def cautions_for(frame: pd.DataFrame, plated: bool = False, mating_material: str
     """
     f = _Frame(frame)
     ctx = _context(f, plated=plated, mating_material=mating_material, service_temp_c=service_temp_c,
-                   environment=environment, plating=plating)
+                   environment=environment, plating=plating, strength_target=strength_target)
     out: list[list[dict]] = [[] for _ in range(f.n)]
     for code, c in CAUTIONS.items():
         mask = np.asarray(c.trigger(f, ctx), bool)
         detail = _DETAILS.get(code)
         for i in np.flatnonzero(mask):
             reason = c.reason + (detail(f, ctx, int(i)) if detail else "")
-            out[int(i)].append({"code": code, "title": c.title, "reason": reason})
+            out[int(i)].append({"code": code, "title": c.title, "reason": reason, "severity": c.severity})
     return out
 
 
@@ -510,3 +572,62 @@ def caution_column(frame: pd.DataFrame, **context) -> pd.Series:
     lists = cautions_for(frame, **context)
     return pd.Series(["; ".join(d["title"] for d in row) for row in lists], index=frame.index,
                      name="cautions", dtype=object)
+
+
+def check_allow(allow) -> tuple:
+    """Validate ``allow`` (rule codes the user switches off) and return the codes.
+
+    ``None`` or an empty sequence gives ``()``; a single code may be given as a
+    string.  :data:`ALLOW_ALIASES` maps other accepted names to their code.  An
+    unknown name raises :class:`InputError` naming the field ``allow``, the value and
+    the accepted codes (with the nearest)."""
+    if allow is None:
+        return ()
+    if isinstance(allow, str):
+        allow = [allow]
+    if not isinstance(allow, (list, tuple, set, frozenset)):
+        raise InputError("allow", allow, "a list of caution codes: " + ", ".join(CAUTIONS))
+    names = tuple(CAUTIONS) + tuple(ALLOW_ALIASES)
+    out = []
+    for name in allow:
+        if not isinstance(name, str):
+            raise InputError("allow", name, "a caution code: " + ", ".join(names))
+        code = check_choice("allow", name.strip(), names)
+        out.append(ALLOW_ALIASES.get(code, code))
+    return tuple(dict.fromkeys(out))
+
+
+AVOID_CODES = tuple(code for code, c in CAUTIONS.items() if c.severity == "avoid")
+
+
+def read_frame(frame: pd.DataFrame) -> _Frame:
+    """The column arrays the triggers read, from a states or candidates table: build
+    it once and pass it to :func:`avoid_masks` to evaluate several contexts cheaply."""
+    return _Frame(frame)
+
+
+def avoid_masks(frame, allow=(), **context) -> dict:
+    """``{code: bool mask}`` for every ``avoid`` rule not in ``allow``: only those
+    triggers run.  ``frame`` is a states/candidates table or the result of
+    :func:`read_frame` (reuse it over calls: reading the string columns is the
+    costly part)."""
+    allowed = set(check_allow(allow))
+    f = frame if isinstance(frame, _Frame) else _Frame(frame)
+    ctx = _context(f, **context)
+    return {code: np.asarray(CAUTIONS[code].trigger(f, ctx), bool)
+            for code in AVOID_CODES if code not in allowed}
+
+
+def severity_columns(frame: pd.DataFrame, allow=(), **context) -> pd.DataFrame:
+    """Per row: ``severity`` (the worst severity among the rules that fire and are not
+    allowed: ``avoid``, ``caution``, ``note`` or ``""``) and ``avoid`` (the codes of
+    the ``avoid`` rules that fire, ``;``-joined, ``""`` for none)."""
+    allowed = set(check_allow(allow))
+    lists = cautions_for(frame, **context)
+    rank_of = {s: i for i, s in enumerate(SEVERITIES)}
+    worst, avoid = [], []
+    for row in lists:
+        live = [d for d in row if d["code"] not in allowed]
+        worst.append(max((d["severity"] for d in live), key=rank_of.get, default=""))
+        avoid.append(";".join(d["code"] for d in live if d["severity"] == "avoid"))
+    return pd.DataFrame({"severity": worst, "avoid": avoid}, index=frame.index)

@@ -9,11 +9,15 @@ needs less strength but hardens less deeply, so the cheapest robust choice need
 not change monotonically with diameter; the ``changed`` column marks each
 diameter where the pick (grade or route family) differs from the one before.
 
+Among the robust candidates, those without an ``avoid`` caution (e.g. a water quench of a
+0.35 % C alloy steel; :mod:`selector.design.cautions`) are preferred: one with an avoid
+caution is picked only where every robust candidate has one.
 "Cheapest" is the lowest ``part_cost`` (relative cost per kg x the pin's mass) by
 default, or the lowest ``relative_cost`` (per kg) with ``cost_column``; ties go
 to the higher yield strength, then the grade id, so the answer is deterministic.
-"Robust" is the engine's definition: the targets are met at every composition
-corner of the grade's specification.
+"Robust" is the engine's definition: the probability that a heat within the
+grade's specification meets the targets (``p_meet``) is at least ``min_p_meet``
+(0.9 by default).
 
 No physics and no selection logic live here: the module only loops over
 diameters and picks a row of the engine's result.
@@ -87,6 +91,10 @@ def _pick(cand: pd.DataFrame, cost_column: str) -> pd.Series | None:
         c = c[c["robust"].astype(bool)]
         if len(c) == 0:
             return None
+    if "avoid" in c.columns:     # a route with an 'avoid' caution only when every robust one has one
+        clean = c[c["avoid"].fillna("").astype(str) == ""]
+        if len(clean):
+            c = clean
     order = [cost_column, "relative_cost", "yield_mpa", "grade"]
     asc = [True, True, False, True]
     keep = [(k, a) for k, a in zip(order, asc) if k in c.columns]

@@ -7,17 +7,36 @@ Definitions (documented in docs/methods/selection.md):
   row of :func:`selector.states.expand.expand`).
 * A *variant* groups the states of one grade and route that differ only in the
   route's main parameter (e.g. the tempering temperature of an oil-quenched 4140).
+* ``p_meet`` of a state is the probability that a heat drawn within the grade's
+  specification, processed by this route at this section, meets every target,
+  counting composition scatter and the model's 90 % band (Monte Carlo over
+  :data:`selector.states.scatter.N_DRAWS` draws, :mod:`selector.states.scatter`).
+* A state is *clean* when no ``avoid`` caution fires on it (tempered-martensite
+  embrittlement range, water/brine quench cracking, centre below 50 % martensite
+  under a strength target, service near the tempering temperature), except the
+  rules the user allows (``allow=[...]``).
 * A variant is a *candidate* when some value of its main parameter meets every
-  target at the nominal composition; it is *robust* when some value meets every
-  target at every composition corner (lean, nominal and rich).
-* The candidate's *window* is the contiguous range of the main parameter around
-  the chosen point over which the targets hold (at every corner for a robust
-  candidate, at the nominal composition otherwise); the chosen point is the middle
-  of the widest such range (the value most tolerant of furnace scatter), moved to
-  the nearest state with the fewest model notes where the middle carries one (for
-  example a temper inside the tempered-martensite-embrittlement range).
-* The Pareto set is taken over the candidates on the chosen objectives (default:
-  maximise yield strength, maximise elongation, minimise relative cost).
+  target at the nominal composition; it is *robust* when its chosen state also
+  reaches ``p_meet >= min_p_meet``.  The chosen run
+  is, in this order of preference: the widest run of clean states with
+  ``p_meet >= min_p_meet``; of clean states meeting at the nominal composition; of
+  any states with ``p_meet >= min_p_meet``; of any states meeting at the nominal
+  composition (the last two carry an ``avoid`` caution and rank after the others).
+* The candidate's *window* is that run (the largest continuous range of the main
+  parameter where every target is met at the required probability, or at the
+  nominal composition, and no avoid caution fires); a feasible range split by a
+  warned range gives the usable sub-windows (``sub_windows``), never one that
+  straddles it.  A candidate with an avoid caution has no window.  The chosen
+  point is the middle of the run, moved to the nearest state with the fewest model
+  notes where the middle carries one.
+* ``corners_meet``: the chosen state meets every target at every composition
+  corner (lean, nominal and rich together: the worst case, kept for those who want
+  it; no heat has every element at a limit at once).
+* The Pareto set is taken over the candidates without an avoid caution (over all
+  when every one has one) on the chosen objectives (default: minimise part cost,
+  maximise ``p_meet``, maximise elongation).
+* Order (``rank``, 1 = first): candidates without an avoid caution first, then
+  robust first, then Pareto first, then part cost (lowest first), then ``p_meet``.
 """
 from __future__ import annotations
 
@@ -34,20 +53,27 @@ from ..routes.evaluate import section_args
 from ..routes.steps import describe
 from ..states.expand import expand
 from . import cost as cost_mod
-from ..design.cautions import caution_column
+from ..design import cautions as cautions_mod
+from ..errors import check_choice
+from ..states import scatter
 from .pareto import pareto_mask
-from .targets import margins, meets, shortfalls, validate_targets
+from .targets import NUMERIC_TARGETS, _NAN_PASSES_MAX, margins, meets, shortfalls, validate_targets
 
-DEFAULT_OBJECTIVES = (("yield_mpa", "max"), ("elongation_pct", "max"), ("relative_cost", "min"))
+DEFAULT_OBJECTIVES = (("part_cost", "min"), ("p_meet", "max"), ("elongation_pct", "max"))
 OBJECTIVE_COLUMNS = ("yield_mpa", "uts_mpa", "elongation_pct", "hardness_hrc", "surface_hardness_hrc",
-                     "case_depth_mm", "relative_cost", "part_cost")
+                     "case_depth_mm", "relative_cost", "part_cost", "p_meet", "margin_bands")
+#: default required probability of meeting every target
+MIN_P_MEET = 0.9
+#: targets that make the centre-martensite rule apply (a strength or hardness minimum)
+STRENGTH_TARGETS = ("min_yield_mpa", "min_uts_mpa", "min_hardness_hrc")
 
 OUTPUT_COLUMNS = ["grade", "family", "route_family", "route_text", "route", "uts_mpa", "yield_mpa",
                   "elongation_pct", "hardness_hv", "hardness_hrc", "surface_hardness_hv",
                   "surface_hardness_hrc", "center_hardness_hv", "case_depth_mm", "relative_cost",
                   "part_cost", "mass_kg", "robust", "nominal", "pareto", "window", "window_parameter",
                   "window_min", "window_max", "robust_window_min", "robust_window_max", "main_value",
-                  "cautions", "notes", "price_source"]
+                  "cautions", "notes", "price_source", "p_meet", "min_p_meet", "rank", "corners_meet",
+                  "severity", "avoid", "sub_windows", "margin_bands", "center_martensite_pct"]
 
 
 def _main_param(route: str):
@@ -151,6 +177,83 @@ def _prepare_table(diameter_mm, thickness_mm, length_mm, prices: tuple) -> pd.Da
     return out
 
 
+@functools.lru_cache(maxsize=32)
+def _samples_cached(diameter_mm, thickness_mm, keys: tuple, column: str) -> np.ndarray:
+    st = expand(diameter_mm, thickness_mm)
+    nom = st[st["corner"] == "nominal"].set_index("state_key", drop=False).loc[list(keys)]
+    section = diameter_mm if thickness_mm is None else thickness_mm
+    return scatter.sample(nom, float(section), diameter_mm, thickness_mm, columns=[column])[column]
+
+
+def samples(prepared: pd.DataFrame, columns=None) -> dict:
+    """Monte Carlo draws (:func:`selector.states.scatter.sample`) of the nominal block
+    of ``prepared``, row-aligned with it: ``{column: (m, N_DRAWS) array}`` for
+    ``columns`` (default every drawable column), each drawn on first use and cached
+    per section and state order."""
+    sec = prepared.attrs.get("section") or {}
+    m = len(prepared) // 3
+    keys = tuple(prepared["state_key"].to_numpy()[:m].tolist())
+    cols = list(scatter.DRAWABLE) if columns is None else list(columns)
+    return {c: _samples_cached(sec.get("diameter_mm"), sec.get("thickness_mm"), keys, c) for c in cols}
+
+
+def p_meet(prepared: pd.DataFrame, targets: dict | None) -> np.ndarray:
+    """Probability that each nominal state of ``prepared`` meets every target: the
+    share of the Monte Carlo draws (composition scatter and model band) that meet
+    every numeric target (NaN rules of :mod:`selector.selection.targets`), times the
+    hard filters (family, corrosion resistance), shape (len(prepared) // 3,)."""
+    t = validate_targets(targets, FAMILIES)
+    m = len(prepared) // 3
+    nom = prepared.iloc[:m]
+    sm = samples(prepared, sorted({NUMERIC_TARGETS[k][0] for k in t if k in NUMERIC_TARGETS}
+                                  & set(scatter.DRAWABLE)))
+    ok = None
+    for key in NUMERIC_TARGETS:
+        if key not in t:
+            continue
+        col, side = NUMERIC_TARGETS[key]
+        v = sm[col] if col in sm else nom[col].to_numpy(float)[:, None]
+        lim = t[key]
+        with np.errstate(invalid="ignore"):
+            if side == "min":
+                r = v >= lim
+            elif col in _NAN_PASSES_MAX:
+                r = ~(v > lim)
+            else:
+                r = v <= lim
+        ok = r if ok is None else ok & r
+    p = np.ones(m) if ok is None else np.broadcast_to(ok, (m, ok.shape[1])).mean(axis=1)
+    hard = {k: v for k, v in t.items() if k not in NUMERIC_TARGETS}
+    if hard:
+        p = p * meets(nom, hard)
+    return p
+
+
+_VIEWS: dict = {}
+
+
+def _caution_view(prepared: pd.DataFrame):
+    """The caution rules' column arrays of the nominal block of ``prepared``, kept per
+    prepared table (a few recent ones) so that re-ranking does not re-read them."""
+    key = id(prepared)
+    hit = _VIEWS.get(key)
+    if hit is not None and hit[0] is prepared:
+        return hit[1]
+    view = cautions_mod.read_frame(prepared.iloc[:len(prepared) // 3])
+    if len(_VIEWS) >= 8:
+        _VIEWS.pop(next(iter(_VIEWS)))
+    _VIEWS[key] = (prepared, view)
+    return view
+
+
+def _check_min_p(min_p_meet) -> float:
+    import math
+    if isinstance(min_p_meet, bool) or not isinstance(min_p_meet, (int, float, np.integer, np.floating)) \
+            or not math.isfinite(float(min_p_meet)) or not (0.0 < float(min_p_meet) <= 1.0):
+        raise InputError("min_p_meet", min_p_meet, "a probability in (0, 1], e.g. 0.9")
+    return float(min_p_meet)
+
+
 def prepare(diameter_mm=25.0, thickness_mm=None, length_mm=100.0, price_sheet=None) -> pd.DataFrame:
     """The expanded, costed states table with variant keys: everything that does
     not depend on the targets (cached; the page caches it too).  Rows are laid out
@@ -201,18 +304,29 @@ def _representative(starts: np.ndarray, ends: np.ndarray, n_notes: np.ndarray) -
 
 
 def rank(prepared: pd.DataFrame, targets: dict | None = None, objectives=DEFAULT_OBJECTIVES,
-         robust_only: bool = False, service: dict | None = None) -> pd.DataFrame:
+         robust_only: bool = False, service: dict | None = None, min_p_meet: float = MIN_P_MEET,
+         allow=None) -> pd.DataFrame:
     """Candidates of ``prepared`` (from :func:`prepare`) for ``targets``: the fast
     step that the page re-runs when only the targets change.  ``service`` holds the
     context of the cautions (``plated``, ``plating``, ``mating_material``,
-    ``service_temp_c``, ``environment``; see :func:`selector.design.cautions.cautions_for`)."""
+    ``service_temp_c``, ``environment``; see :func:`selector.design.cautions.cautions_for`);
+    ``min_p_meet`` and ``allow`` as in :func:`select`."""
     t = validate_targets(targets, FAMILIES)
     objectives = _check_objectives(objectives)
+    min_p = _check_min_p(min_p_meet)
+    allowed = cautions_mod.check_allow(allow)
+    ctx = dict(service or {})
+    ctx["strength_target"] = any(k in t for k in STRENGTH_TARGETS)
     m = len(prepared) // 3
     ok = np.asarray(meets(prepared, t), bool)
     nominal = ok[:m]
-    robust = ok.reshape(3, m).all(axis=0)
+    corners = ok.reshape(3, m).all(axis=0)
+    p = p_meet(prepared, t)
+    # a candidate state meets every target at its estimate; p_meet grades how surely
+    likely = (p >= min_p - 1e-12) & nominal
     nom = prepared.iloc[:m]
+    am = cautions_mod.avoid_masks(_caution_view(prepared), allowed, **ctx)
+    clean = ~np.any(list(am.values()), axis=0) if am else np.ones(m, bool)
     vcode = nom["variant_code"].to_numpy()
     main = nom["main_value"].to_numpy(float)
     same = np.r_[False, vcode[1:] == vcode[:-1]]
@@ -221,30 +335,53 @@ def rank(prepared: pd.DataFrame, targets: dict | None = None, objectives=DEFAULT
     step = pd.Series(np.where(diff > 0, diff, np.nan)).groupby(vcode).transform("min").to_numpy()
     gap = np.nan_to_num(diff > 1.5 * step, nan=False).astype(bool)
     brk = ~same | gap
-    rs, re_ = _best_runs(*_true_runs(robust, brk), vcode, main)
-    ns_all, ne_all = _true_runs(nominal, brk)
-    ns, ne = _best_runs(ns_all, ne_all, vcode, main)
-    robust_v = set(vcode[rs].tolist())
-    keep_n = np.array([v not in robust_v for v in vcode[ns]], bool) if len(ns) else np.zeros(0, bool)
+    tiers = [(likely & clean, True), (nominal & clean, True), (likely, False), (nominal, False)]
     if robust_only:
-        starts, ends = rs, re_
-    else:
-        starts, ends = np.r_[rs, ns[keep_n]], np.r_[re_, ne[keep_n]]
+        tiers = [tiers[0], tiers[2]]
+    taken = np.zeros(int(vcode.max()) + 1 if m else 1, bool)
+    starts, ends, tier_no, all_runs = [], [], [], []
+    for k, (mask, _) in enumerate(tiers):
+        s_all, e_all = _true_runs(mask, brk)
+        s_b, e_b = _best_runs(s_all, e_all, vcode, main)
+        keep = ~taken[vcode[s_b]] if len(s_b) else np.zeros(0, bool)
+        taken[vcode[s_b[keep]]] = True
+        starts.append(s_b[keep])
+        ends.append(e_b[keep])
+        tier_no.append(np.full(int(keep.sum()), k))
+        all_runs.append((s_all, e_all))
+    starts, ends, tier_no = np.concatenate(starts), np.concatenate(ends), np.concatenate(tier_no)
     if len(starts) == 0:
         return _empty(t)
     pick = _representative(starts, ends, nom["n_notes"].to_numpy())
     cand = nom.iloc[pick].copy()
     cand.attrs = {}      # pandas deep-copies attrs on every operation: ~30 % of a re-rank
-    cand["nominal"] = True
-    cand["robust"] = robust[pick]
-    run_lo, run_hi = main[starts], main[ends]
-    # the nominal window that contains the chosen point
-    j = np.searchsorted(ns_all, pick, side="right") - 1
-    cand["window_min"] = main[ns_all[j]]
-    cand["window_max"] = main[ne_all[j]]
-    cand["robust_window_min"] = np.where(cand["robust"], run_lo, np.nan)
-    cand["robust_window_max"] = np.where(cand["robust"], run_hi, np.nan)
-    return _finish(cand, t, objectives, service)
+    cand["nominal"] = nominal[pick]
+    cand["p_meet"] = p[pick]
+    cand["min_p_meet"] = min_p
+    cand["robust"] = likely[pick]
+    cand["corners_meet"] = corners[pick]
+    has_window = np.array([tiers[k][1] for k in tier_no], bool)
+    cand["window_min"] = np.where(has_window, main[starts], np.nan)
+    cand["window_max"] = np.where(has_window, main[ends], np.nan)
+    cand["robust_window_min"] = np.where(has_window & likely[pick], main[starts], np.nan)
+    cand["robust_window_max"] = np.where(has_window & likely[pick], main[ends], np.nan)
+    cand["feasible_min"], cand["feasible_max"] = main[starts], main[ends]
+    subs = []
+    for v, k, ok_w in zip(vcode[starts], tier_no, has_window):
+        if not ok_w:
+            subs.append("")
+            continue
+        s_all, e_all = all_runs[k]
+        mine = vcode[s_all] == v
+        subs.append("; ".join(_range_text(main[a], main[b]) for a, b in zip(s_all[mine], e_all[mine])))
+    cand["sub_windows"] = subs
+    return _finish(cand, t, objectives, ctx, allowed)
+
+
+def _range_text(lo, hi) -> str:
+    if lo != lo:
+        return ""
+    return f"{lo:g}–{hi:g}" if hi > lo else f"{lo:g}"
 
 
 def _check_objectives(objectives):
@@ -266,23 +403,34 @@ def _check_objectives(objectives):
 def _window_text(row) -> str:
     fam = fam_registry.get(row["route"])
     mp = fam.main_parameter
-    if not mp or row["window_min"] != row["window_min"]:
+    if not mp:
         return ""
     unit = "°C" if mp.endswith("_c") else "%" if mp.endswith("_pct") else "h" if mp.endswith("hours") \
         else "mm" if mp.endswith("_mm") else ""
     lo, hi = row["window_min"], row["window_max"]
+    if lo != lo:
+        flo, fhi = row.get("feasible_min", np.nan), row.get("feasible_max", np.nan)
+        if flo != flo:
+            return ""
+        return (f"none clear of avoid cautions (targets met at {mp} {_range_text(flo, fhi)} {unit})").strip()
     txt = f"{mp} {lo:g}–{hi:g} {unit}".strip() if hi > lo else f"{mp} {lo:g} {unit} only".strip()
-    if row["robust"] and row["robust_window_min"] == row["robust_window_min"] and \
-            (row["robust_window_min"], row["robust_window_max"]) != (lo, hi):
-        txt += f" (all corners: {row['robust_window_min']:g}–{row['robust_window_max']:g} {unit})"
+    subs = [w for w in str(row.get("sub_windows") or "").split("; ") if w and w != _range_text(lo, hi)]
+    if subs:
+        txt += f" (also {', '.join(subs)} {unit})".replace("  ", " ")
     return txt
 
 
-def _finish(cand: pd.DataFrame, t: dict, objectives, service: dict | None = None) -> pd.DataFrame:
+def _finish(cand: pd.DataFrame, t: dict, objectives, service: dict | None = None, allowed=()) -> pd.DataFrame:
     cand = cand.reset_index(drop=True)
-    cand["cautions"] = caution_column(cand, **(service or {})).to_numpy()
+    lists = cautions_mod.cautions_for(cand, **(service or {}))
+    cand["cautions"] = ["; ".join(d["title"] for d in row) for row in lists]
+    order = {s_: i for i, s_ in enumerate(cautions_mod.SEVERITIES)}
+    live = [[d for d in row if d["code"] not in allowed] for row in lists]
+    cand["severity"] = [max((d["severity"] for d in row), key=order.get, default="") for row in live]
+    cand["avoid"] = [";".join(d["code"] for d in row if d["severity"] == "avoid") for row in live]
     routes, texts, wparam, wtext = [], [], [], []
-    need = {"route", "window_min", "window_max", "robust", "robust_window_min", "robust_window_max"}
+    need = {"route", "window_min", "window_max", "robust", "robust_window_min", "robust_window_max",
+            "feasible_min", "feasible_max", "sub_windows"}
     for f in fam_registry.available():
         need.update(f.parameters)
     cols = [c for c in cand.columns if c in need]
@@ -299,16 +447,51 @@ def _finish(cand: pd.DataFrame, t: dict, objectives, service: dict | None = None
     cand["route_text"] = texts
     cand["window_parameter"] = wparam
     cand["window"] = wtext
+    for col in ("p_meet", "corners_meet"):
+        if col not in cand:
+            cand[col] = np.nan
+    cand["margin_bands"] = _margin_bands(cand, t)
     vals = np.column_stack([cand[c].to_numpy(float) for c, _ in objectives])
-    cand["pareto"] = pareto_mask(vals, [s == "max" for _, s in objectives])
+    clean = (cand["avoid"] == "").to_numpy()
+    pool = clean if clean.any() else np.ones(len(cand), bool)
+    par = np.zeros(len(cand), bool)
+    if pool.any():
+        par[pool] = pareto_mask(vals[pool], [s_ == "max" for _, s_ in objectives])
+    cand["pareto"] = par
     m = margins(cand, t)
     for c in m.columns:
         cand[c] = m[c].to_numpy()
-    cand = cand.sort_values(["pareto", "robust", "relative_cost", "yield_mpa"],
-                            ascending=[False, False, True, False], kind="stable").reset_index(drop=True)
+    cand["_avoid"] = ~clean
+    cand = cand.sort_values(["_avoid", "robust", "pareto", "part_cost", "p_meet", "yield_mpa"],
+                            ascending=[True, False, False, True, False, False], kind="stable").reset_index(drop=True)
+    cand = cand.drop(columns="_avoid")
+    cand["rank"] = np.arange(1, len(cand) + 1)
     cols = OUTPUT_COLUMNS + list(m.columns) + [c for c in cand.columns
                                                if c not in OUTPUT_COLUMNS and c not in m.columns]
     return cand[[c for c in cols if c in cand.columns]]
+
+
+#: banded columns a target can test -> band columns (selector.routes.bands)
+_BANDED_TARGET_COLUMNS = ("yield_mpa", "uts_mpa", "elongation_pct", "hardness_hrc")
+
+
+def _margin_bands(cand: pd.DataFrame, t: dict) -> np.ndarray:
+    """The smallest margin over the numeric targets on banded properties, in widths
+    of the 90 % band (``margin / (hi − lo)``); NaN when no such target is given."""
+    out = np.full(len(cand), np.inf)
+    any_t = False
+    for key, (col, side) in NUMERIC_TARGETS.items():
+        if key not in t or col not in _BANDED_TARGET_COLUMNS or f"{col}_lo" not in cand:
+            continue
+        any_t = True
+        v = cand[col].to_numpy(float)
+        width = cand[f"{col}_hi"].to_numpy(float) - cand[f"{col}_lo"].to_numpy(float)
+        mg = v - t[key] if side == "min" else t[key] - v
+        with np.errstate(invalid="ignore", divide="ignore"):
+            r = np.where(width > 0, mg / width, np.where(mg >= 0, np.inf, -np.inf))
+        nan_r = np.inf if (side == "max" and col in _NAN_PASSES_MAX) else -np.inf
+        out = np.minimum(out, np.where(np.isnan(v), nan_r, r))
+    return out if any_t else np.full(len(cand), np.nan)
 
 
 def _empty(t) -> pd.DataFrame:
@@ -321,7 +504,7 @@ def select(targets: dict | None = None, diameter_mm: float = 25.0, *, thickness_
            length_mm: float = 100.0, price_sheet: dict | None = None, objectives=DEFAULT_OBJECTIVES,
            robust_only: bool = False, plated: bool = False, plating: str | None = None,
            mating_material: str | None = None, service_temp_c: float | None = None,
-           environment: str = "normal") -> pd.DataFrame:
+           environment: str = "normal", min_p_meet: float = MIN_P_MEET, allow=None) -> pd.DataFrame:
     """Grade-and-route candidates that meet ``targets`` at the given section.
 
     Parameters
@@ -339,24 +522,43 @@ def select(targets: dict | None = None, diameter_mm: float = 25.0, *, thickness_
         ``{grade id: relative price per kg}`` overriding the catalogue
         (see :func:`selector.selection.cost.parse_price_sheet`).
     objectives : sequence of (column, "max" | "min")
-        Pareto objectives; default maximise yield, maximise elongation, minimise cost.
+        Pareto objectives out of :data:`OBJECTIVE_COLUMNS`; default minimise part
+        cost, maximise ``p_meet``, maximise elongation.  ``margin_bands`` (the
+        smallest margin in widths of the 90 % band) is an alternative to ``p_meet``.
     robust_only : bool
-        Keep only candidates that meet the targets at every composition corner.
+        Keep only candidates with ``p_meet >= min_p_meet``.
     plated, plating, mating_material, service_temp_c, environment
         Service context for the ``cautions`` column (hydrogen embrittlement of
         plated high-strength steel, galvanic pairs, service temperature near the
         tempering or aging temperature); see :mod:`selector.design.cautions`.
+    min_p_meet : float
+        Required probability, in (0, 1], that a heat within the specification meets
+        every target (default 0.9); ``robust = p_meet >= min_p_meet``.
+    allow : list of str, optional
+        Caution codes whose ``avoid`` severity the user switches off (e.g.
+        ``["quench_cracking"]``, also accepted as ``"water_quench_alloy"``); see
+        :func:`selector.design.cautions.check_allow`.
 
     Returns
     -------
     pandas.DataFrame
-        One row per candidate, Pareto rows first; see the module docstring.  Empty
-        when nothing qualifies (then see :func:`nearest_misses`).
+        One row per candidate in ``rank`` order (see the module docstring), with
+        ``p_meet``, ``min_p_meet``, ``robust``, ``corners_meet``, ``pareto``,
+        ``rank``, ``severity``, ``avoid``, ``window``/``sub_windows``.  Empty when
+        nothing qualifies (then see :func:`nearest_misses`).
+
+    Raises
+    ------
+    InputError
+        A bad target, section, ``min_p_meet`` outside (0, 1] or an unknown rule in
+        ``allow`` (naming the field, the value and what is allowed).
     """
+    _check_min_p(min_p_meet)
+    cautions_mod.check_allow(allow)
     prepared = prepare(diameter_mm, thickness_mm, length_mm, price_sheet)
     service = dict(plated=plated, plating=plating, mating_material=mating_material,
                    service_temp_c=service_temp_c, environment=environment)
-    return rank(prepared, targets, objectives, robust_only, service)
+    return rank(prepared, targets, objectives, robust_only, service, min_p_meet, allow)
 
 
 def nearest_misses(targets: dict, diameter_mm: float = 25.0, *, thickness_mm: float | None = None,
@@ -367,7 +569,8 @@ def nearest_misses(targets: dict, diameter_mm: float = 25.0, *, thickness_mm: fl
     ``miss_score`` (the sum of the relative moves)."""
     t = validate_targets(targets, FAMILIES)
     prepared = prepare(diameter_mm, thickness_mm, length_mm, price_sheet)
-    nom = prepared[prepared["corner"] == "nominal"]
+    m = len(prepared) // 3
+    nom = prepared.iloc[:m].assign(p_meet=p_meet(prepared, t))
     hard = _hard_filters(nom, t)
     nom = nom[hard]
     if nom.empty:
@@ -380,6 +583,110 @@ def nearest_misses(targets: dict, diameter_mm: float = 25.0, *, thickness_mm: fl
     out = out.sort_values("miss_score", kind="stable").reset_index(drop=True)
     lead = ["grade", "family", "route_text", "miss_score"] + list(sf.columns.drop("miss_score"))
     return out[lead + [c for c in out.columns if c not in lead]]
+
+
+def _routes(frame: pd.DataFrame) -> tuple[list, list]:
+    """The steps and the route text of each row of a states table."""
+    routes, texts = [], []
+    params = sorted({p_ for f in fam_registry.available() for p_ in f.parameters})
+    cols = ["route"] + [c for c in params if c in frame.columns]
+    for r in frame[cols].to_dict("records"):
+        fam = fam_registry.get(r["route"])
+        steps = fam.to_steps({p_: r[p_] for p_ in fam.parameters if p_ in r})
+        routes.append(steps)
+        texts.append(describe(steps))
+    return routes, texts
+
+
+_MISS_COLUMNS = ["grade", "family", "route_family", "route_text", "route", "variant", "yield_mpa", "uts_mpa",
+                 "elongation_pct", "hardness_hrc", "surface_hardness_hrc", "case_depth_mm", "relative_cost",
+                 "part_cost", "p_meet"]
+
+
+def miss_analysis(targets: dict, diameter_mm: float = 25.0, *, thickness_mm: float | None = None,
+                  length_mm: float = 100.0, price_sheet: dict | None = None, n: int = 10) -> dict:
+    """What can be reached when nothing meets every target.
+
+    Parameters
+    ----------
+    targets, diameter_mm, thickness_mm, length_mm, price_sheet, n
+        As :func:`nearest_misses`.
+
+    Returns
+    -------
+    dict
+        ``misses``: the table of :func:`nearest_misses` (each row a state with its
+        ``route``, which can be evaluated and opened like a candidate).
+        ``reachable``: one row per numeric target: the best value of its property
+        (``best``) over the states, at the nominal composition, that meet every
+        *other* target (and the hard filters), the state that reaches it, and how far
+        the limit would have to move (``move``, ``relative_move``; 0 when met, inf when
+        no state meets the others).
+        ``frontier``: the trade-off between the two most binding targets (the two
+        whose limits the nearest misses need to move most, in total relative moves;
+        ``axes`` names them): the non-dominated states
+        (Pareto front of the two properties, each in its target's direction) among
+        those that meet every other target, sorted along the first axis; e.g. the
+        highest yield reachable at each elongation.  Empty with fewer than two
+        numeric targets.
+    """
+    t = validate_targets(targets, FAMILIES)
+    misses = nearest_misses(t, diameter_mm, thickness_mm=thickness_mm, length_mm=length_mm,
+                            price_sheet=price_sheet, n=n)
+    prepared = prepare(diameter_mm, thickness_mm, length_mm, price_sheet)
+    m = len(prepared) // 3
+    nom = prepared.iloc[:m].assign(p_meet=p_meet(prepared, t))
+    nom = nom[_hard_filters(nom, t)]
+    keys = [k for k in NUMERIC_TARGETS if k in t]
+    mg = margins(nom, t)
+    met = mg.to_numpy() >= 0 if keys else np.ones((len(nom), 0), bool)
+    rows = []
+    for j, k in enumerate(keys):
+        col, side = NUMERIC_TARGETS[k]
+        others = np.delete(met, j, axis=1).all(axis=1)
+        v = nom[col].to_numpy(float)
+        ok = others & np.isfinite(v)
+        rec = {"target": k, "column": col, "limit": t[k], "best": np.nan, "move": np.inf,
+               "relative_move": np.inf, "met": False, "grade": "", "route_text": "", "route": None,
+               "variant": ""}
+        if ok.any():
+            idx = np.flatnonzero(ok)
+            i = idx[np.argmax(v[idx])] if side == "min" else idx[np.argmin(v[idx])]
+            best = float(v[i])
+            move = max(0.0, t[k] - best) if side == "min" else max(0.0, best - t[k])
+            steps, texts = _routes(nom.iloc[[i]])
+            rec.update(best=best, move=move, met=move == 0.0,
+                       relative_move=(move / abs(t[k]) if t[k] else (0.0 if move == 0 else np.inf)),
+                       grade=nom["grade"].iloc[i], route_text=texts[0], route=steps[0],
+                       variant=nom["variant"].iloc[i])
+        rows.append(rec)
+    reach = pd.DataFrame(rows, columns=["target", "column", "limit", "best", "move", "relative_move", "met",
+                                        "grade", "route_text", "route", "variant"])
+    frontier, axes = pd.DataFrame(columns=_MISS_COLUMNS), ()
+    if len(keys) >= 2:
+        # binding: the total relative move the nearest misses need on each target
+        bind = []
+        for k in keys:
+            mv = misses.get(f"move_{k}")
+            mv = np.zeros(1) if mv is None else np.nan_to_num(mv.to_numpy(float), posinf=1e9)
+            bind.append(float(mv.sum()) / (abs(t[k]) or 1.0))
+        order = np.argsort(-np.asarray(bind), kind="stable")
+        a, b = keys[order[0]], keys[order[1]]
+        axes = (a, b)
+        ja, jb = keys.index(a), keys.index(b)
+        others = np.delete(met, [ja, jb], axis=1).all(axis=1)
+        (ca, sa), (cb, sb) = NUMERIC_TARGETS[a], NUMERIC_TARGETS[b]
+        va, vb = nom[ca].to_numpy(float), nom[cb].to_numpy(float)
+        pool = others & np.isfinite(va) & np.isfinite(vb)
+        if pool.any():
+            pts = np.column_stack([va[pool], vb[pool]])
+            front = pareto_mask(pts, [sa == "min", sb == "min"])
+            sel = nom[pool][front].drop_duplicates([ca, cb])
+            steps, texts = _routes(sel)
+            sel = sel.assign(route_family=sel["route"], route=steps, route_text=texts)
+            frontier = sel[[c for c in _MISS_COLUMNS if c in sel.columns]].sort_values(ca, kind="stable")
+            frontier = frontier.reset_index(drop=True)
+    return {"misses": misses, "reachable": reach, "frontier": frontier, "axes": axes}
 
 
 def _hard_filters(frame: pd.DataFrame, t: dict) -> np.ndarray:

@@ -82,9 +82,9 @@ def fit(res: pd.DataFrame, min_rows: int = bands.MIN_ROWS) -> pd.DataFrame:
     5th/95th percentile; its rows are then described.  So a wider group is fitted on
     the rows its narrower groups leave (the states that will fall back to it), and
     each row is described by exactly one group — the one :mod:`selector.routes.bands`
-    looks up for it.  The widest group takes the rows left (at least
-    ``MIN_ROWS_POOLED``; else every row of the property), so every property has a
-    band; its ``n`` column says how thin it is."""
+    looks up for it.  The widest group pools every residual of the property
+    (it serves routes and families with no group of their own), so every property
+    has a band; its ``n`` column says how thin it is."""
     A = bands.ANY
     out = []
     levels = (("family", "route", "section_band"), ("family", "route"), ("route",), ())
@@ -94,8 +94,9 @@ def fit(res: pd.DataFrame, min_rows: int = bands.MIN_ROWS) -> pd.DataFrame:
         for cols in levels:
             sub = gp[left]
             if not cols:
-                g = sub if len(sub) >= MIN_ROWS_POOLED else gp
-                groups = [((), g)] if len(g) >= 1 else []
+                # the widest group serves the routes and families that have no group of their own:
+                # it pools every residual of the property, not only the rows the others left
+                groups = [((), gp)] if len(gp) >= 1 else []
             else:
                 groups = list(sub.groupby(list(cols)))
             for key, g in groups:

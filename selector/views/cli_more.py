@@ -18,6 +18,17 @@ TARGET_FLAGS = (
 )
 TABLE_COLUMNS = ["grade", "route_text", "yield_mpa", "uts_mpa", "elongation_pct", "hardness_hrc",
                  "surface_hardness_hrc", "case_depth_mm", "relative_cost", "robust", "pareto", "window"]
+#: the select table: rank, the probability of meeting the targets, and the avoid rules first
+SELECT_COLUMNS = ["rank", "grade", "route_text", "yield_mpa", "uts_mpa", "elongation_pct", "hardness_hrc",
+                  "surface_hardness_hrc", "case_depth_mm", "relative_cost", "p_meet_pct", "robust", "pareto",
+                  "avoid", "window"]
+
+
+def _allow_list(values) -> list | None:
+    """``--allow a,b --allow c`` -> ``["a", "b", "c"]`` (None when not given)."""
+    if not values:
+        return None
+    return [v.strip() for item in values for v in str(item).split(",") if v.strip()]
 
 
 def _targets_from_args(args) -> dict:
@@ -72,7 +83,8 @@ def cmd_select(args) -> int:
 
     t = _targets_from_args(args)
     kw = dict(thickness_mm=args.thickness, length_mm=args.length, price_sheet=_price_sheet(args))
-    res = select(t, args.diameter, robust_only=args.robust_only, **kw)
+    res = select(t, args.diameter, robust_only=args.robust_only, min_p_meet=args.min_p_meet,
+                 allow=_allow_list(args.allow), **kw)
     if res.empty:
         miss = nearest_misses(t, args.diameter, **kw)
         moves = [c for c in miss.columns if c.startswith("move_")]
@@ -81,8 +93,12 @@ def cmd_select(args) -> int:
         return 1
     if args.top:
         res = res.head(args.top)
-    emit(res, args.format, TABLE_COLUMNS + [c for c in res.columns if c.startswith("margin_")],
-         f"{len(res)} candidates (Pareto first; robust = holds at every composition corner):")
+    if args.format == "table":
+        res = res.assign(p_meet_pct=(100.0 * res["p_meet"]).round(1))
+    emit(res, args.format, SELECT_COLUMNS + [c for c in res.columns if c.startswith("margin_")],
+         f"{len(res)} candidates in rank order (p_meet_pct = % of heats within the specification that meet "
+         f"every target, counting the model's 90 % band; robust = p_meet >= {args.min_p_meet:g}; "
+         "candidates with an 'avoid' caution come last):")
     return 0
 
 
@@ -120,7 +136,13 @@ def add_commands(sub) -> None:
     s.add_argument("--exclude-family", action="append", help="not this grade family (repeatable)")
     s.add_argument("--corrosion-resistant", action="store_true")
     s.add_argument("--targets", help="TOML file with a [targets] table (flags override it)")
-    s.add_argument("--robust-only", action="store_true", help="only candidates that hold at every corner")
+    s.add_argument("--robust-only", action="store_true",
+                   help="only candidates whose probability of meeting the targets is at least --min-p-meet")
+    s.add_argument("--min-p-meet", type=float, default=0.9,
+                   help="required probability (0-1] that a heat within the specification meets every target "
+                        "(default 0.9)")
+    s.add_argument("--allow", action="append", metavar="RULE[,RULE]",
+                   help="caution rule(s) not to rank as 'avoid', e.g. quench_cracking (repeatable)")
     s.add_argument("--top", type=int, default=0, help="show only the first N rows")
     _common(s)
     s.set_defaults(func=cmd_select)

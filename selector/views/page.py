@@ -298,12 +298,24 @@ def cached_prepare(diameter_mm, thickness_mm, length_mm, price_items=()) -> pd.D
 
 
 @st.cache_data(show_spinner="Ranking…", max_entries=64)
-def cached_rank(diameter_mm, thickness_mm, length_mm, price_items, targets_json, robust_only=False):
+def cached_rank(diameter_mm, thickness_mm, length_mm, price_items, targets_json, robust_only=False,
+                min_p_meet=0.9, allow=(), service_json="{}"):
     """:func:`~selector.selection.engine.rank` on the cached prepared table
-    (``targets_json``: the SI targets as sorted JSON, so the cache key is stable)."""
+    (``targets_json``: the SI targets as sorted JSON, so the cache key is stable;
+    ``allow``: a tuple of caution codes; ``service_json``: the caution context as
+    JSON, see :func:`service_context`)."""
     from selector.selection.engine import rank
     prepared = cached_prepare(diameter_mm, thickness_mm, length_mm, price_items)
-    return rank(prepared, json.loads(targets_json), robust_only=robust_only)
+    return rank(prepared, json.loads(targets_json), robust_only=robust_only, min_p_meet=min_p_meet,
+                allow=list(allow), service=json.loads(service_json) or None)
+
+
+@st.cache_data(show_spinner="Looking for what can be reached…", max_entries=16)
+def cached_miss_analysis(diameter_mm, thickness_mm, length_mm, price_items, targets_json, n=10) -> dict:
+    """:func:`~selector.selection.engine.miss_analysis`, cached."""
+    from selector.selection.engine import miss_analysis
+    return miss_analysis(json.loads(targets_json), diameter_mm, thickness_mm=thickness_mm,
+                         length_mm=length_mm, price_sheet=_prices(price_items), n=n)
 
 
 @st.cache_data(show_spinner="Looking for the nearest misses…", max_entries=16)
@@ -496,6 +508,18 @@ def _fmt_window(lo, hi, param, system) -> str:
     return f"{param_label(param)} {lo:.4g} {u} only".strip()
 
 
+def _convert_ranges(text, param, system) -> str:
+    """``"200–250; 380–560"`` of a parameter in SI -> the same ranges in display units."""
+    q = quantity_of(param) if param else None
+    if not isinstance(text, str) or not text or not q:
+        return text if isinstance(text, str) else ""
+    out = []
+    for part in text.split("; "):
+        nums = [f"{float(to_display(float(v), q, system)):.4g}" for v in part.split("–")]
+        out.append("–".join(nums))
+    return "; ".join(out) + f" {param_unit(param, system)}"
+
+
 def display_table(cand: pd.DataFrame, system: str) -> pd.DataFrame:
     """The candidates with the columns of ``select`` in the display units (headers
     renamed, e.g. ``yield_ksi``); the route as JSON text; the window columns
@@ -509,10 +533,19 @@ def display_table(cand: pd.DataFrame, system: str) -> pd.DataFrame:
     if system == US and "window_parameter" in df:
         params = df["window_parameter"].astype(str).tolist()
         if "window_min" in df and "window_max" in df:
-            df["window"] = [_fmt_window(lo, hi, p, system)
-                            for lo, hi, p in zip(df["window_min"], df["window_max"], params)]
+            df["window"] = [_fmt_window(lo, hi, p, system) for lo, hi, p in zip(df["window_min"], df["window_max"],
+                                                                                   params)]
+            if "feasible_min" in df:
+                none = (df["window_min"].isna() & df["feasible_min"].notna()).to_numpy()
+                for i in np.flatnonzero(none):
+                    feas = _fmt_window(df["feasible_min"].iloc[i], df["feasible_max"].iloc[i], params[i], system)
+                    df.iloc[i, df.columns.get_loc("window")] = (
+                        f"none clear of avoid cautions (targets met at {feas})")
         df["window_unit"] = [param_unit(p, system) for p in params]
-        for col in ("main_value", "window_min", "window_max", "robust_window_min", "robust_window_max"):
+        if "sub_windows" in df:
+            df["sub_windows"] = [_convert_ranges(txt, p, system) for txt, p in zip(df["sub_windows"], params)]
+        for col in ("main_value", "window_min", "window_max", "robust_window_min", "robust_window_max",
+                    "feasible_min", "feasible_max"):
             if col not in df:
                 continue
             vals = df[col].to_numpy(float).copy()
@@ -521,6 +554,9 @@ def display_table(cand: pd.DataFrame, system: str) -> pd.DataFrame:
                 if q and vals[i] == vals[i]:
                     vals[i] = to_display(vals[i], q, system)
             df[col] = vals
+    if "p_meet" in df:
+        pos = list(df.columns).index("p_meet")
+        df.insert(pos + 1, "p_meet_pct", (100.0 * df["p_meet"].to_numpy(float)).round(1))
     rename = {}
     for col in df.columns:
         q = quantity_of(col)
@@ -528,6 +564,41 @@ def display_table(cand: pd.DataFrame, system: str) -> pd.DataFrame:
             df[col] = to_display(df[col].to_numpy(float), q, system)
             rename[col] = display_name(col, system)
     return df.rename(columns=rename)
+
+
+def avoid_rules() -> list[str]:
+    """Codes of the caution rules of severity ``avoid`` (for the page's allow list)."""
+    from selector.design.cautions import AVOID_CODES
+    return list(AVOID_CODES)
+
+
+def avoid_rule_label(code: str) -> str:
+    """The title of a caution rule (its code when unknown)."""
+    from selector.design.cautions import CAUTIONS
+    c = CAUTIONS.get(code)
+    return c.title if c is not None else code
+
+
+def percent(p) -> str:
+    """A probability as a percentage for display (``0.905`` -> ``"90.5 %"``, NaN -> ``"—"``)."""
+    try:
+        v = float(p)
+    except (TypeError, ValueError):
+        return "—"
+    return "—" if v != v else f"{100.0 * v:.1f} %"
+
+
+def ranking_summary(cand: pd.DataFrame) -> str:
+    """One line on the candidates table: how many, the Pareto set and its objectives,
+    how many reach the required probability, how many carry an avoid caution."""
+    n = len(cand)
+    p_req = float(cand["min_p_meet"].iloc[0]) if n and "min_p_meet" in cand else 0.9
+    n_avoid = int((cand["avoid"] != "").sum()) if "avoid" in cand else 0
+    return (f"**{n}** candidates meet the targets: **{int(cand['pareto'].sum())}** in the Pareto set "
+            f"(min part cost, max probability of meeting the targets, max elongation), "
+            f"**{int(cand['robust'].sum())}** meet them with a probability of at least {percent(p_req)} "
+            f"(heats within the specification and the model's 90 % band), **{n_avoid}** carry an avoid "
+            f"caution and are listed last.")
 
 
 def to_csv(df: pd.DataFrame) -> bytes:
@@ -979,6 +1050,9 @@ def miss_table(misses: pd.DataFrame, system: str) -> pd.DataFrame:
         df["route_text"] = [route_line(r, system) for r in df["route"]]
     keep = [c for c in df.columns if c in ("grade", "family", "route_text", "miss_score") or c.startswith("move_")]
     keep += [c for c in ("yield_mpa", "uts_mpa", "elongation_pct", "hardness_hrc", "relative_cost") if c in df]
+    if "p_meet" in df:
+        df["p_meet_pct"] = (100.0 * df["p_meet"].to_numpy(float)).round(1)
+        keep.append("p_meet_pct")
     df = df[keep]
     rename = {}
     for c in df.columns:
@@ -1273,3 +1347,62 @@ def sweep_chart(sw: pd.DataFrame, system: str, height: int = 340) -> alt.LayerCh
     left = alt.layer(rules, cost, marks, *labels, none)
     return alt.layer(left, target).resolve_scale(y="independent").properties(
         height=height, title="Cheapest robust pick per diameter (◆ where the grade or route changes)")
+
+
+# --------------------------------------------------------------------------- nearest misses: what can be reached
+
+def reachable_table(reach: pd.DataFrame, system: str) -> pd.DataFrame:
+    """The best value of each target's property with the other targets met
+    (:func:`~selector.selection.engine.miss_analysis`), in display units."""
+    rows = []
+    for r in reach.to_dict("records"):
+        q = quantity_of(r["column"])
+
+        def conv(v, q=q):
+            if v is None or v != v or v == float("inf"):
+                return None
+            return float(to_display(v, q, system)) if q else float(v)
+        label = FIELD_LABELS.get(r["target"], (r["target"], None))[0]
+        rows.append({"target": label, "limit": conv(r["limit"]), "best reachable": conv(r["best"]),
+                     "met": bool(r["met"]), "move": conv(r["move"]),
+                     "by": (f"{r['grade']}, {route_line(r['route'], system, r['route_text'])}" if r["grade"]
+                            else "no state meets the other targets")})
+    return pd.DataFrame(rows)
+
+
+def frontier_chart(frontier: pd.DataFrame, axes: Sequence[str], targets: Mapping, system: str,
+                   height: int = 340):
+    """The trade-off between the two most binding targets: the non-dominated states
+    (:func:`~selector.selection.engine.miss_analysis`) as a step line with points, and the
+    two target limits as dashed rules.  None when there is no frontier."""
+    from selector.selection.targets import NUMERIC_TARGETS
+    if frontier is None or len(frontier) == 0 or len(axes) != 2:
+        return None
+    (cx, _), (cy, _) = NUMERIC_TARGETS[axes[0]], NUMERIC_TARGETS[axes[1]]
+    qx, qy = quantity_of(cx), quantity_of(cy)
+
+    def conv(v, q):
+        return to_display(np.asarray(v, float), q, system) if q else np.asarray(v, float)
+    nx, ny = display_name(cx, system), display_name(cy, system)
+    pm = frontier["p_meet"].to_numpy(float) if "p_meet" in frontier else np.full(len(frontier), np.nan)
+    df = pd.DataFrame({"x": conv(frontier[cx], qx), "y": conv(frontier[cy], qy),
+                       "grade": frontier["grade"].to_numpy(),
+                       "route": [route_line(r, system, t) for r, t in zip(frontier["route"], frontier["route_text"])],
+                       "p_meet": [percent(p) for p in pm]})
+    enc_x = alt.X("x:Q", title=nx, scale=alt.Scale(zero=False))
+    enc_y = alt.Y("y:Q", title=ny, scale=alt.Scale(zero=False))
+    tips = [alt.Tooltip("grade:N"), alt.Tooltip("route:N"), alt.Tooltip("x:Q", title=nx, format=".4g"),
+            alt.Tooltip("y:Q", title=ny, format=".4g"), alt.Tooltip("p_meet:N", title="p_meet")]
+    line = alt.Chart(df).mark_line(interpolate="step-after", strokeWidth=1.5).encode(x=enc_x, y=enc_y)
+    pts = alt.Chart(df).mark_point(filled=True, size=30).encode(x=enc_x, y=enc_y, tooltip=tips)
+    layers = [line, pts]
+    lx, ly = targets.get(axes[0]), targets.get(axes[1])
+    if lx is not None:
+        layers.append(alt.Chart(pd.DataFrame({"x": [float(conv(lx, qx))]}))
+                      .mark_rule(strokeDash=[6, 3], color="firebrick").encode(x="x:Q"))
+    if ly is not None:
+        layers.append(alt.Chart(pd.DataFrame({"y": [float(conv(ly, qy))]}))
+                      .mark_rule(strokeDash=[6, 3], color="firebrick").encode(y="y:Q"))
+    return alt.layer(*layers).properties(
+        height=height, title=f"What can be reached: {ny} against {nx} with the other targets met "
+                             "(dashed: the targets)")

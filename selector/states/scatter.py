@@ -1,0 +1,351 @@
+"""Scatter of a state's properties: heat-to-heat composition within the grade's
+specification, and the model's own error (the 90 % prediction band).
+
+For every nominal state of the expansion this module gives ``N_DRAWS`` Monte Carlo
+draws of each property a target can test, so that the selection can count, for any
+targets, the share of heats that meet them (``p_meet``).
+
+Composition (linearised Monte Carlo)
+------------------------------------
+A heat is a composition drawn inside the specification.  Each alloying element's
+standardised position ``z_e = (x_e − mid_e) / half-range_e`` is drawn independently
+from a **normal distribution centred on the mid-range with σ = half the half-range,
+truncated at the specification limits** (z in [−1, 1]; the limits sit at ±2σ, so a
+heat is most often near the aim and rarely at a limit; common practice for heats made
+to an aim analysis, chosen here).  Residuals with only a maximum (P, S) stay at half
+the maximum, as in the corners.
+
+The property of a drawn heat is linearised about the nominal composition::
+
+    y(z) = y_nom + Σ_e a_e · z_e,      a_e = y(e at its maximum, others nominal) − y_nom
+
+The sensitivities ``a_e`` come from one extra vectorised ``compute`` per route family
+over the nominal states with one element moved to its maximum (one block per
+element: the same family ``compute`` the expansion uses, so they follow any model
+change), at every :data:`THIN`-th value of the route's main parameter (and its last),
+interpolated linearly in between.  Full Monte Carlo through ``compute`` (200 compositions per state) costs about
+200 expansions and is out of the speed budget; the linearisation costs one expansion
+of the nominal block per element of the grade.  Its error is checked against the
+rich corner (every element at its maximum at once, computed exactly by the
+expansion): see ``docs/methods/selection.md``.
+
+Model error
+-----------
+The 90 % band of :mod:`selector.routes.bands` holds 90 % of published values around
+the estimate: its residual quantiles ``q05``, ``q95`` (from ``data/fits/bands.csv``)
+define a normal residual with mean ``(q05 + q95)/2`` and ``σ = (q95 − q05)/(2·1.645)``
+(1.645 = the 95 % point of the standard normal), i.e.
+
+* strength and hardness: **lognormal** ``y = y_comp · exp(μ + σ·ε_s)``;
+* elongation: **normal** in percentage points, ``y = max(0, y_comp + μ + σ·ε_e)``.
+
+Tensile strength, yield strength and hardness share one score ``ε_s`` per draw (they
+are estimated from the same hardness, so their errors move together); elongation has
+its own score ``ε_e``, correlated with ``ε_s`` by :data:`ELONGATION_STRENGTH_RHO`
+(a stronger-than-estimated heat is less ductile; value chosen, common practice, see the
+docs).  Surface hardness and case depth have no band yet: composition scatter only.
+Both scatters are counted, which double-counts part of the heat-to-heat scatter
+already inside the band (published values come from real heats): p_meet errs on
+the cautious side for states that meet the targets at their estimate.
+
+Draws are shared by every state (common random numbers): the same standardised heat
+and the same error scores for all states, so ``p_meet`` of a tighter target is never
+higher, and a state better than another in every draw has the higher ``p_meet``.
+Fixed seed :data:`SEED`: results are reproducible.
+
+Monte Carlo error: ``p_meet`` is a proportion of ``N_DRAWS`` draws; its standard error
+is ``sqrt(p (1 − p) / N_DRAWS)``, at most 0.035 at N_DRAWS = 200 (p = 0.5) and about
+0.021 at p = 0.9 (:func:`standard_error`; tested in ``tests/test_scatter.py``).
+
+References
+----------
+Monte Carlo propagation of input distributions through a model: JCGM 101:2008,
+*Evaluation of measurement data — Supplement 1 to the GUM: propagation of
+distributions using a Monte Carlo method*, §5–7 (linearised propagation vs Monte
+Carlo; the standard error of a proportion).  Truncated normal: Johnson, Kotz &
+Balakrishnan, *Continuous Univariate Distributions* vol. 1, 2nd ed. (Wiley 1994),
+ch. 13 (from memory).
+"""
+from __future__ import annotations
+
+import functools
+
+import numpy as np
+import pandas as pd
+from scipy import stats
+
+from ..catalogue.grades import default_catalogue
+from ..models import conversions
+from ..routes import bands
+from ..routes import families as fam_registry
+from ..routes.evaluate import STEEL_SCALE_FAMILIES
+from ..routes.families.base import Batch
+from .expand import _family_batch, expand
+
+#: draws per state (at least 200: standard error of p_meet <= 0.035)
+N_DRAWS = 200
+#: fixed seed of the draws (reproducible results)
+SEED = 20261203
+#: σ of the composition draw in units of the half-range (limits at ±2σ)
+SIGMA_HALF_RANGES = 0.5
+#: the 95 % point of the standard normal (a 90 % two-sided band spans ±1.645 σ)
+Z95 = float(stats.norm.ppf(0.95))
+#: correlation of the elongation error score with the strength error score (chosen: a
+#: heat stronger than estimated is usually less ductile; common practice)
+ELONGATION_STRENGTH_RHO = -0.5
+#: properties drawn from the linearised composition model
+SAMPLED = ("uts_mpa", "yield_mpa", "elongation_pct", "hardness_hv", "surface_hardness_hv", "case_depth_mm")
+#: band mode of the properties that carry a band (the others: composition only)
+BANDED = {"uts_mpa": "relative", "yield_mpa": "relative", "hardness_hv": "relative",
+          "elongation_pct": "absolute"}
+#: residual elements fixed at half their maximum in every heat (as the corners)
+FIXED_RESIDUALS = ("P", "S")
+
+
+def standard_error(p, n_draws: int = N_DRAWS):
+    """Monte Carlo standard error of a proportion ``p`` estimated from ``n_draws``
+    independent draws: ``sqrt(p (1 − p) / n_draws)`` (binomial; JCGM 101:2008 §7)."""
+    p = np.asarray(p, float)
+    return np.sqrt(p * (1.0 - p) / n_draws)
+
+
+def draws(elements, n_draws: int = N_DRAWS, seed: int = SEED) -> dict:
+    """The shared random numbers: ``z`` (n_draws, len(elements)) standardised element
+    positions (truncated normal, σ = :data:`SIGMA_HALF_RANGES`, on [−1, 1]),
+    ``eps_s`` and ``eps_e`` (n_draws,) standard normal error scores of strength and
+    elongation (correlation :data:`ELONGATION_STRENGTH_RHO`)."""
+    rng = np.random.default_rng(seed)
+    b = 1.0 / SIGMA_HALF_RANGES
+    z = stats.truncnorm.rvs(-b, b, scale=SIGMA_HALF_RANGES, size=(n_draws, len(elements)), random_state=rng)
+    e1 = rng.standard_normal(n_draws)
+    e2 = rng.standard_normal(n_draws)
+    rho = ELONGATION_STRENGTH_RHO
+    return {"z": np.atleast_2d(z).reshape(n_draws, len(elements)), "eps_s": e1,
+            "eps_e": rho * e1 + np.sqrt(1.0 - rho * rho) * e2}
+
+
+def _half_ranges(batch: Batch, element: str) -> np.ndarray:
+    out = np.zeros(len(batch.grades))
+    if element in FIXED_RESIDUALS:
+        return out[batch.gidx]
+    for k, g in enumerate(batch.grades):
+        if element in g.comp_min:
+            out[k] = 0.5 * (g.comp_max[element] - g.comp_min[element])
+    return out[batch.gidx]
+
+
+#: sensitivities are computed at every THIN-th value of a route's main parameter (and its
+#: last value) and interpolated linearly in between (they vary smoothly along it)
+THIN = 3
+
+
+def _thinned(batch: Batch, main: str | None) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    """Rows at which to compute the sensitivities, and for every row its left and right
+    computed neighbours along the main parameter (same grade and other parameters) with
+    the weight of the left one."""
+    n = batch.n
+    idx = np.arange(n)
+    if not main or main not in batch.params or THIN <= 1:
+        return idx, idx, idx, np.ones(n)
+    mv = np.asarray(batch.params[main], float)
+    cols = {"g": batch.gidx}
+    for k, v in batch.params.items():
+        if k != main:
+            cols[k] = np.asarray(v).astype(str)
+    group = pd.DataFrame(cols).groupby(list(cols), sort=False).ngroup().to_numpy()
+    order = np.lexsort((mv, group))
+    g_s, m_s = group[order], mv[order]
+    first = np.r_[True, g_s[1:] != g_s[:-1]]
+    last = np.r_[g_s[1:] != g_s[:-1], True]
+    start = np.maximum.accumulate(np.where(first, np.arange(n), 0))
+    pos = np.arange(n) - start
+    keep_s = (pos % THIN == 0) | last
+    at = np.where(keep_s, np.arange(n), -1)
+    left_s = np.maximum.accumulate(at)                                   # last kept at or before
+    right_s = np.minimum.accumulate(np.where(keep_s, np.arange(n), n)[::-1])[::-1]  # next kept
+    span = m_s[right_s] - m_s[left_s]
+    with np.errstate(invalid="ignore", divide="ignore"):
+        w_s = np.where(span > 0, (m_s[right_s] - m_s) / span, 1.0)
+    left, right, w = np.empty(n, int), np.empty(n, int), np.empty(n)
+    left[order], right[order], w[order] = order[left_s], order[right_s], w_s
+    return np.sort(order[keep_s]), left, right, w
+
+
+def _family_effects(fam, d, t, nominal: dict):
+    """(state keys, elements, {prop: (n, K) change of prop when the element moves from
+    mid-range to its maximum}) for the nominal states of one route family."""
+    cat = default_catalogue()
+    grades = [g for g in cat.grades.values()
+              if fam.name in g.routes and (not fam.families or g.family in fam.families)]
+    built = _family_batch(fam, grades, d, t, ("nominal",))
+    if built is None:
+        return None
+    batch, state_no, _ = built
+    keys = (batch.attr("id").astype(str).astype(object) + "|" + fam.name + "|" + state_no.astype(str).astype(object))
+    elements = sorted(e for e in batch.comp if e not in FIXED_RESIDUALS)
+    h = {e: _half_ranges(batch, e) for e in elements}
+    elements = [e for e in elements if (h[e] > 0).any()]
+    n, k = batch.n, len(elements)
+    if not elements:
+        return keys, elements, {}
+    sub, left, right, w = _thinned(batch, fam.main_parameter)
+    on_sub = np.zeros(n, bool)
+    on_sub[sub] = True
+    idx, col = [], []
+    for j, e in enumerate(elements):
+        rows = np.flatnonzero(on_sub & (h[e] > 0))
+        idx.append(rows)
+        col.append(np.full(len(rows), j))
+    idx, col = np.concatenate(idx), np.concatenate(col)
+    comp = {e: np.asarray(v, float)[idx].copy() for e, v in batch.comp.items()}
+    for j, e in enumerate(elements):
+        m = col == j
+        comp[e][m] += h[e][idx[m]]
+    pert = Batch(batch.grades, batch.gidx[idx], comp, {p: np.asarray(v)[idx] for p, v in batch.params.items()},
+                 batch.diameter_mm[idx], batch.thickness_mm[idx])
+    res = fam.compute(pert)       # the sampled properties come from compute itself (no band, no HRC)
+    out = {}
+    for p in SAMPLED:
+        if p not in res:
+            continue
+        base = nominal[p].reindex(keys[idx]).to_numpy(float)
+        delta = np.asarray(res[p], float) - base
+        full = np.zeros((n, k))
+        full[idx, col] = np.where(np.isfinite(delta), delta, 0.0)
+        out[p] = w[:, None] * full[left] + (1.0 - w)[:, None] * full[right]
+    return keys, elements, out
+
+
+@functools.lru_cache(maxsize=8)
+def effects(diameter_mm: float | None, thickness_mm: float | None) -> dict:
+    """Sensitivities of the nominal states of :func:`expand` at one section.
+
+    Returns ``{"state_key": (m,) keys, "elements": tuple, "a": {prop: (m, K) array}}``
+    where ``a[prop][i, k]`` is the change of ``prop`` when element ``k`` moves from its
+    mid-range to its maximum (0 where the grade does not specify it; 0 where the moved
+    state's value is undefined, e.g. off the hardness table, so such a state keeps its
+    nominal value).  Computed at every :data:`THIN`-th value of the route's main
+    parameter and interpolated linearly in between.  Cached per section (treat as
+    read-only)."""
+    states = expand(diameter_mm, thickness_mm)
+    nom = states[states["corner"] == "nominal"]
+    nominal = {p: pd.Series(nom[p].to_numpy(float), index=nom["state_key"].to_numpy()) for p in SAMPLED}
+    parts = []
+    for fam in fam_registry.available():
+        out = _family_effects(fam, diameter_mm, thickness_mm, nominal)
+        if out is not None:
+            parts.append(out)
+    elements = tuple(sorted({e for _, els, _ in parts for e in els}))
+    kpos = {e: i for i, e in enumerate(elements)}
+    keys = np.concatenate([k for k, _, _ in parts])
+    a = {p: np.zeros((len(keys), len(elements))) for p in SAMPLED}
+    start = 0
+    for k, els, res in parts:
+        cols = np.array([kpos[e] for e in els], int)
+        for p, delta in res.items():
+            a[p][start:start + len(k), cols] = delta
+        start += len(k)
+    return {"state_key": keys, "index": pd.Index(keys), "elements": elements, "a": a}
+
+
+def _band_quantiles(frame: pd.DataFrame, section_mm: float) -> dict:
+    """(q05, q95) per row and banded property (0, 0 where the band table has none)."""
+    out = {}
+    fams = frame["family"].to_numpy(object)
+    routes = frame["route"].to_numpy(object)
+    for prop in BANDED:
+        lo, hi = np.zeros(len(frame)), np.zeros(len(frame))
+        for r in pd.unique(routes):
+            m = routes == r
+            ql, qh, _ = bands.quantiles(fams[m], r, np.full(int(m.sum()), section_mm), prop)
+            lo[m], hi[m] = ql, qh
+        ok = np.isfinite(lo) & np.isfinite(hi)
+        out[prop] = (np.where(ok, lo, 0.0), np.where(ok, hi, 0.0))
+    return out
+
+
+#: columns :func:`sample` can draw, and the drawn property each needs
+DRAWABLE = {**{p: p for p in SAMPLED}, "hardness_hrc": "hardness_hv", "surface_hardness_hrc": "surface_hardness_hv"}
+
+
+def sample(nominal: pd.DataFrame, section_mm: float, diameter_mm, thickness_mm,
+           n_draws: int = N_DRAWS, seed: int = SEED, dtype=np.float32, columns=None) -> dict:
+    """Monte Carlo draws of every state of ``nominal`` (rows of the nominal corner of
+    :func:`expand`, in any order).
+
+    Parameters
+    ----------
+    nominal : pandas.DataFrame
+        Nominal states with ``state_key``, ``family``, ``route`` and the columns of
+        :data:`SAMPLED`.
+    section_mm : float
+        The section (diameter or thickness), mm, for the band lookup.
+    diameter_mm, thickness_mm : float or None
+        The section as given to :func:`expand` (for the sensitivities).
+    n_draws : int
+        Draws per state (default :data:`N_DRAWS`).
+    seed : int
+        Seed of the draws (default :data:`SEED`).
+    dtype : numpy dtype
+        Of the returned arrays (default float32: 200 draws of 5 000 states are 4 MB).
+    columns : sequence of str, optional
+        Only these columns (out of :data:`DRAWABLE`); default all.
+
+    Returns
+    -------
+    dict
+        Column name → array (len(nominal), n_draws): ``uts_mpa``, ``yield_mpa``,
+        ``elongation_pct``, ``hardness_hv``, ``hardness_hrc`` (ASTM E140 on steels, NaN
+        below the scale and for non-steels), ``surface_hardness_hv``,
+        ``surface_hardness_hrc``, ``case_depth_mm``.  NaN where the nominal value is NaN.
+
+    Validity
+    --------
+    The linearisation holds while properties change smoothly over the specification
+    range; the rich-corner check in ``docs/methods/selection.md`` measures it.
+
+    Example
+    -------
+    >>> from selector.states.expand import expand                 # doctest: +SKIP
+    >>> st = expand(60.0); nom = st[st.corner == "nominal"]
+    >>> s = sample(nom, 60.0, 60.0, None); s["yield_mpa"].shape
+    (5007, 200)
+    """
+    eff = effects(diameter_mm, thickness_mm)
+    rows = eff["index"].get_indexer(nominal["state_key"].to_numpy())
+    if (rows < 0).any():
+        raise KeyError("states missing from the sensitivities: " + ", ".join(
+            nominal["state_key"].to_numpy()[rows < 0][:3]))
+    dr = draws(eff["elements"], n_draws, seed)
+    zt = dr["z"].T                                         # (K, D)
+    q = _band_quantiles(nominal, section_mm)
+    want = list(DRAWABLE) if columns is None else [c for c in columns if c in DRAWABLE]
+    need = {DRAWABLE[c] for c in want}
+    out = {}
+    for p in SAMPLED:
+        if p not in need:
+            continue
+        base = nominal[p].to_numpy(float)[:, None]
+        y = base + eff["a"][p][rows] @ zt                  # (m, D)
+        if p in BANDED:
+            lo, hi = q[p]
+            mu, sig = 0.5 * (lo + hi), (hi - lo) / (2.0 * Z95)
+            eps = dr["eps_e"] if p == "elongation_pct" else dr["eps_s"]
+            if BANDED[p] == "relative":
+                y = y * np.exp(mu[:, None] + sig[:, None] * eps[None, :])
+            else:
+                y = np.maximum(y + mu[:, None] + sig[:, None] * eps[None, :], 0.0)
+        elif p == "case_depth_mm":
+            y = np.maximum(y, 0.0)
+        out[p] = y.astype(dtype)
+    steel = np.isin(nominal["family"].to_numpy(object).astype(str), STEEL_SCALE_FAMILIES)[:, None]
+    for key in ("hardness", "surface_hardness"):
+        if key + "_hrc" not in want:
+            continue
+        hv = out[key + "_hv"]
+        hrc = np.full(hv.shape, np.nan, dtype)
+        if steel.any():
+            rows_s = np.flatnonzero(steel[:, 0])
+            hrc[rows_s] = conversions.hv_to_hrc(hv[rows_s].astype(float)).astype(dtype)
+        out[key + "_hrc"] = hrc
+    return {c: out[c] for c in want}

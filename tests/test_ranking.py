@@ -1,0 +1,179 @@
+"""Risk-aware ranking: p_meet, avoid cautions ranked last, windows clear of warned
+ranges, a Pareto set that discriminates, and bad input."""
+import numpy as np
+import pytest
+
+import selector
+from selector.design import cautions as ca
+from selector.errors import InputError
+from selector.selection.engine import p_meet, prepare, rank
+from selector.selection.targets import meets
+
+SHAFT = {"min_yield_mpa": 800, "min_elongation_pct": 12}
+#: tempered-martensite embrittlement range, °C: Krauss, Steels: Processing, Structure and
+#: Performance (ASM International 2005), tempering chapter; ASM Handbook Vol. 1 (1990)
+#: (both from memory; the range of data/cautions.csv, tme row)
+TME_C = (260.0, 370.0)
+
+
+@pytest.fixture(scope="module")
+def shaft():
+    return selector.select(SHAFT, diameter_mm=60)
+
+
+def test_shaft_first_candidate_is_a_through_hardened_oil_or_polymer_alloy_steel(shaft):
+    # common practice (ASM Handbook Vol. 4, 1991, quenching of steel; from memory): a 60 mm
+    # medium-carbon shaft at 800 MPa yield is an oil- or polymer-quenched alloy steel hardened
+    # to at least 50 % martensite at the centre (Grossmann's criterion), not a water-quenched
+    # steel of 0.35 % C or more (quench cracking)
+    first = shaft.iloc[0]
+    assert first["rank"] == 1
+    assert first["family"] == "alloy_steel"
+    assert first["route_family"] == "quench_temper"
+    assert first["quench"] in ("oil", "polymer")
+    assert first["center_martensite_pct"] >= 50.0
+    assert first["avoid"] == ""
+    # robust ones come first: the first candidate is robust whenever any clean one is
+    clean = shaft[shaft["avoid"] == ""]
+    assert bool(first["robust"]) == bool(clean["robust"].any())
+
+
+def test_avoid_candidates_rank_after_every_clean_one(shaft):
+    has = (shaft["avoid"] != "").to_numpy()
+    assert has.any() and (~has).any()
+    assert np.flatnonzero(has).min() > np.flatnonzero(~has).max()
+    assert shaft["rank"].tolist() == list(range(1, len(shaft) + 1))
+    # water-quenched 0.35 %+ C alloy steels carry the quench-cracking avoid rule
+    wq = shaft[(shaft["quench"] == "water") & (shaft["family"] == "alloy_steel") & (shaft["c_pct"] >= 0.35)]
+    assert len(wq) and wq["avoid"].str.contains("quench_cracking").all()
+
+
+def test_robust_is_p_meet_at_least_min_p_meet(shaft):
+    assert (shaft["robust"] == (shaft["p_meet"] >= shaft["min_p_meet"] - 1e-12)).all()
+    assert (shaft["min_p_meet"] == 0.9).all()
+    assert shaft["p_meet"].between(0, 1).all()
+    assert "corners_meet" in shaft
+
+
+@pytest.mark.parametrize("d, targets", [(60, SHAFT), (30, {"min_yield_mpa": 700, "min_uts_mpa": 850}),
+                                        (25, {"min_hardness_hrc": 40}), (40, {"max_hardness_hrc": 35})])
+def test_no_window_overlaps_the_embrittlement_range(d, targets):
+    res = selector.select(targets, diameter_mm=d)
+    qt = res[(res["route_family"] == "quench_temper") & res["family"].isin(ca.HARDENED_STEELS)]
+    assert len(qt)
+    win = qt.dropna(subset=["window_min"])
+    assert len(win)
+    lo, hi = TME_C
+    assert ((win["window_max"] < lo) | (win["window_min"] > hi)).all()
+    for text in win["sub_windows"]:
+        for part in filter(None, text.split("; ")):
+            a, _, b = part.partition("–")
+            a, b = float(a), float(b or a)
+            assert b < lo or a > hi, text
+    # the chosen point lies in its window
+    assert ((win["main_value"] >= win["window_min"]) & (win["main_value"] <= win["window_max"])).all()
+
+
+def test_allow_switches_a_rule_off():
+    base = selector.select(SHAFT, diameter_mm=60)
+    allowed = selector.select(SHAFT, diameter_mm=60, allow=["water_quench_alloy", "shallow_hardening"])
+    assert not allowed["avoid"].str.contains("quench_cracking|shallow_hardening").any()
+    assert base["avoid"].str.contains("quench_cracking").any()
+    # the caution still shows in the cautions column: allowing changes the order, not the words
+    assert allowed["cautions"].str.contains("Quench-cracking").any()
+
+
+@pytest.mark.parametrize("loose, tight", [
+    ({"min_yield_mpa": 700}, {"min_yield_mpa": 760}),
+    ({"min_yield_mpa": 700}, {"min_yield_mpa": 700, "min_elongation_pct": 14}),
+    ({"max_hardness_hrc": 40}, {"max_hardness_hrc": 32}),
+    ({"min_uts_mpa": 900, "min_elongation_pct": 10}, {"min_uts_mpa": 950, "min_elongation_pct": 12}),
+    ({"min_surface_hardness_hrc": 50}, {"min_surface_hardness_hrc": 55, "min_case_depth_mm": 0.8}),
+])
+def test_p_meet_is_monotonic_in_the_targets(loose, tight):
+    p = prepare(30)
+    a, b = p_meet(p, loose), p_meet(p, tight)
+    assert np.all(b <= a + 1e-12)
+    assert (b < a).any()
+
+
+@pytest.mark.parametrize("targets", [{"min_yield_mpa": 700}, {"min_uts_mpa": 900}, {"min_hardness_hrc": 30},
+                                     {"min_elongation_pct": 15}])
+def test_corners_all_meet_scores_at_least_a_lean_corner_failure(targets):
+    """Within a variant (one grade and route, the main parameter varying), a state that
+    meets the target at every composition corner has p_meet at least that of a state
+    whose lean corner fails."""
+    p = prepare(60)
+    m = len(p) // 3
+    ok = np.asarray(meets(p, targets), bool).reshape(3, m)     # blocks: nominal, lean, rich
+    pm = p_meet(p, targets)
+    allc, lean_fails = ok.all(axis=0), ~ok[1]
+    v = p.iloc[:m]["variant_code"].to_numpy()
+    pairs = 0
+    for code in np.unique(v[allc]):
+        s = v == code
+        if (s & lean_fails).any():
+            pairs += 1
+            assert pm[s & allc].min() >= pm[s & lean_fails].max(), code
+    assert pairs >= 10
+
+
+def test_demo_pareto_set_is_a_minority():
+    from selector.views.page import DEMO
+    res = selector.select(DEMO["targets"], DEMO["diameter_mm"], length_mm=DEMO["length_mm"], **DEMO["service"])
+    assert len(res) >= 10
+    assert res["pareto"].sum() < 0.5 * len(res)
+    assert res["pareto"].sum() >= 1
+
+
+@pytest.mark.parametrize("value", [0, 0.0, -0.1, 1.5, float("nan"), "0.9", True, None])
+def test_bad_min_p_meet(value):
+    with pytest.raises(InputError) as e:
+        selector.select(SHAFT, diameter_mm=60, min_p_meet=value)
+    msg = str(e.value)
+    assert "min_p_meet" in msg and "(0, 1]" in msg
+
+
+@pytest.mark.parametrize("value", [["water_quench"], ["tme", "nope"], [3], "bogus", 5])
+def test_bad_allow(value):
+    with pytest.raises(InputError) as e:
+        selector.select(SHAFT, diameter_mm=60, allow=value)
+    msg = str(e.value)
+    assert "allow" in msg and "quench_cracking" in msg
+
+
+def test_min_p_meet_one_is_accepted_and_stricter():
+    p = prepare(60)
+    strict = rank(p, SHAFT, min_p_meet=1.0)
+    loose = rank(p, SHAFT, min_p_meet=0.5)
+    assert strict["robust"].sum() <= loose["robust"].sum()
+    assert (strict.loc[strict["robust"], "p_meet"] == 1.0).all()
+
+
+def test_miss_analysis_reachable_and_frontier():
+    from selector.selection.engine import miss_analysis
+    t = {"min_yield_mpa": 1400, "min_elongation_pct": 14, "max_relative_cost": 3}
+    rep = miss_analysis(t, 40)
+    assert selector.select(t, diameter_mm=40).empty
+    reach = rep["reachable"].set_index("target")
+    p = prepare(40)
+    nom = p.iloc[:len(p) // 3]
+    # brute force: the highest yield among the states meeting the two other targets
+    others = meets(nom, {"min_elongation_pct": 14, "max_relative_cost": 3})
+    assert reach.loc["min_yield_mpa", "best"] == pytest.approx(nom.loc[others, "yield_mpa"].max())
+    assert reach.loc["min_yield_mpa", "move"] == pytest.approx(1400 - nom.loc[others, "yield_mpa"].max())
+    assert not reach["met"].any()
+    # the frontier: the two most binding targets, non-dominated among the states meeting the rest
+    assert set(rep["axes"]) == {"min_yield_mpa", "min_elongation_pct"}
+    fr = rep["frontier"]
+    assert len(fr) >= 3
+    pool = nom[meets(nom, {"max_relative_cost": 3})][["yield_mpa", "elongation_pct"]].to_numpy(float)
+    for y, e in fr[["yield_mpa", "elongation_pct"]].to_numpy(float):
+        dom = (pool[:, 0] >= y) & (pool[:, 1] >= e) & ((pool[:, 0] > y) | (pool[:, 1] > e))
+        assert not dom.any()
+    assert (fr["relative_cost"] <= 3 + 1e-9).all()
+    # a miss opens like a candidate: evaluate reproduces it
+    miss = rep["misses"].iloc[0]
+    ev = selector.evaluate(miss["grade"], miss["route"], diameter_mm=40)
+    assert ev["yield_mpa"] == pytest.approx(miss["yield_mpa"], rel=1e-6)
+    assert 0.0 <= miss["p_meet"] <= 1.0
