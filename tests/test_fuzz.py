@@ -281,11 +281,13 @@ def test_fuzz_select(kw):
 
 
 @cfg("alternatives")
-@given(some_bad({"grade": st.sampled_from(["4140", "1045", "52100", "440C", "8620", "17-4PH", "6061"]),
-                 "route": VALID_ROUTES, "diameter_mm": GRID_D, "price_sheet": VALID_PRICES,
+@given(some_bad({"state": valid_states(), "diameter_mm": GRID_D, "price_sheet": VALID_PRICES,
                  "elongation_tolerance_pct": st.floats(0, 5)},
-                {"route": ROUTES, "price_sheet": ODD_PRICES}))
+                {"state": st.tuples(st.one_of(st.sampled_from(["4140", "52100", "440C"]), JUNK), st.none(),
+                                    ROUTES), "price_sheet": ODD_PRICES}))
 def test_fuzz_alternatives(kw):
+    state = kw.pop("state")
+    kw["grade"], kw["route"] = (state[0], state[2]) if isinstance(state, tuple) else (state, state)
     try:
         res = selector.alternatives(kw.pop("grade"), kw.pop("route"), kw.pop("diameter_mm"), **kw)
     except SelectorError as exc:
@@ -479,15 +481,30 @@ GRADE_TEXT = st.one_of(st.sampled_from(["4140", "42CrMo4", "52100", "440C", "101
                                         "x" * 500]), st.text(max_size=10))
 
 
+@st.composite
+def cli_evaluate_argv(draw):
+    """A valid command line (a point of some family's process window, as steps or as
+    --route-json), then none, one or two of its parts replaced by odd text."""
+    gid, _, steps, d, t = draw(valid_states())
+    parts = {"grade": [gid], "route": ["--route-json", json.dumps(steps)] if draw(st.booleans()) else
+             [" ".join([s["op"]] + [f"{k}={v}" for k, v in s.items() if k != "op"]) for s in steps],
+             "section": ["--diameter", repr(d)] if d is not None else ["--thickness", repr(t)],
+             "json": draw(st.sampled_from([[], ["--json"]])), "extra": []}
+    odd = {"grade": GRADE_TEXT.map(lambda g: [g]), "route": st.one_of(
+               st.lists(STEP_TEXT, max_size=3), ROUTE_JSON.map(lambda r: ["--route-json", r])),
+           "section": st.tuples(st.sampled_from(["--diameter", "--thickness"]), NUM_TEXT).map(list),
+           "extra": st.lists(ARG_TEXT, min_size=1, max_size=2)}
+    for name in draw(st.permutations(sorted(odd)))[:draw(st.sampled_from([0, 0, 1, 1, 2]))]:
+        parts[name] = draw(odd[name])
+    return ["evaluate", *parts["grade"], *parts["route"], *parts["section"], *parts["json"], *parts["extra"]]
+
+
 @cfg("cli_evaluate")
-@given(GRADE_TEXT, st.lists(STEP_TEXT, max_size=3), opt("--route-json", ROUTE_JSON),
-       opt("--diameter", st.one_of(st.sampled_from(["25", "10", "40"]), NUM_TEXT)),
-       opt("--thickness", NUM_TEXT), st.sampled_from([[], ["--json"]]), st.lists(ARG_TEXT, max_size=1))
-def test_fuzz_cli_evaluate(grade, steps, rj, d, t, js, extra):
-    code, out, _ = run_cli(["evaluate", grade, *steps, *rj, *d, *t, *js, *extra])
-    if code == 0 and js and not extra:
-        r = json.loads(out)
-        evaluate_ok(r)
+@given(cli_evaluate_argv())
+def test_fuzz_cli_evaluate(argv):
+    code, out, _ = run_cli(argv)
+    if code == 0 and argv[-1] == "--json":
+        evaluate_ok(json.loads(out))
 
 
 @cfg("cli_grades")
@@ -524,10 +541,13 @@ def test_fuzz_cli_select(targets, section, top, fmt, extra):
 
 
 @cfg("cli_alternatives")
-@given(st.sampled_from(["4140", "440C", "1045", "52100", "nosuch"]),
-       st.lists(STEP_TEXT, min_size=0, max_size=2), opt("--route-json", ROUTE_JSON), SECTION_ARGS, FORMATS)
-def test_fuzz_cli_alternatives(grade, steps, rj, section, fmt):
-    run_cli(["alternatives", grade, *steps, *rj, *section, *fmt])
+@given(valid_states(), st.sampled_from([[], ["--diameter", "20"], ["--diameter", "25"]]),
+       st.one_of(st.just([]), st.just([]), SECTION_ARGS, st.lists(STEP_TEXT, min_size=1, max_size=2),
+                 ROUTE_JSON.map(lambda r: ["--route-json", r])), FORMATS)
+def test_fuzz_cli_alternatives(state, section, odd, fmt):
+    gid, _, steps, _, _ = state
+    route = ["--route-json", json.dumps(steps)] if not (odd and odd[0] == "--route-json") else []
+    run_cli(["alternatives", gid, *route, *section, *odd, *fmt])
 
 
 PIN_ARGS = st.tuples(
@@ -539,24 +559,44 @@ PIN_ARGS = st.tuples(
     opt("--material-class", st.sampled_from(["steel", "aluminium", "wood", ""])),
     opt("--mating", st.sampled_from(["brass", "kryptonite"])), opt("--service-temp", NUM_TEXT),
 ).map(lambda parts: [x for p in parts for x in p])
+VALID_PIN_ARGS = st.tuples(
+    st.sampled_from(["--load-kn", "--load-lbf"]), st.floats(0.1, 500.0), st.floats(1.0, 100.0),
+    st.floats(1.0, 100.0), st.floats(0.0, 5.0), st.floats(1.0, 5.0), st.sampled_from(["1", "2"]),
+    st.one_of(st.none(), st.floats(20.0, 70.0))).map(
+    lambda v: [v[0], repr(v[1]), "--lug", repr(v[2]), "--clevis", repr(v[3]), "--gap", repr(v[4]),
+               "--safety-factor", repr(v[5]), "--shear-planes", v[6]] + ([] if v[7] is None else ["--wear-hrc",
+                                                                                              repr(v[7])]))
 
 
 @cfg("cli_pin")
-@given(PIN_ARGS, opt("--diameter", st.one_of(st.sampled_from(["25", "10"]), NUM_TEXT)),
-       st.sampled_from([[], ["--format", "json"], ["--format", "table"]]), st.lists(ARG_TEXT, max_size=1))
+@given(st.one_of(VALID_PIN_ARGS, VALID_PIN_ARGS, PIN_ARGS),
+       st.one_of(st.floats(1.0, 100.0).map(repr), st.sampled_from(["25", "10"]), NUM_TEXT),
+       st.sampled_from([[], ["--format", "json"], ["--format", "table"]]),
+       st.one_of(st.just([]), st.just([]), st.lists(ARG_TEXT, max_size=1)))
 def test_fuzz_cli_pin(args, d, fmt, extra):
-    code, out, _ = run_cli(["pin", *args, *d, *fmt, *extra])
+    code, out, _ = run_cli(["pin", *args, "--diameter", d, *fmt, *extra])
     if code == 0:
         assert "Infinity" not in out and "NaN" not in out and " inf" not in out and " nan" not in out
+        if fmt == ["--format", "json"] and not extra:
+            rep = json.loads(out)
+            for k, v in rep["targets"].items():
+                physical(v, k, nan_ok=False, positive=True)
 
 
 @cfg("cli_sweep")
-@given(PIN_ARGS, opt("--diameters", st.one_of(st.sampled_from(["20,25", "20", "20:25:5"]),
-                                              st.sampled_from(["20:40:1e-9", "20:inf:1", "1:1e9:1", ",", "a",
-                                                               "20:10:1", "0,20", "-5"]), st.text(max_size=8))),
-       st.sampled_from([["--length", "100"], ["--length", "nan"], ["--length", "-1"]]), FORMATS)
+@given(st.one_of(VALID_PIN_ARGS, VALID_PIN_ARGS, PIN_ARGS),
+       st.one_of(st.sampled_from(["20,25", "20", "20:25:5"]),
+                 st.sampled_from(["20:40:1e-9", "20:inf:1", "1:1e9:1", ",", "a", "20:10:1", "0,20", "-5", "20:40"]),
+                 st.text(max_size=8)),
+       st.sampled_from([["--length", "100"], ["--length", "100"], ["--length", "nan"], ["--length", "-1"]]),
+       FORMATS)
 def test_fuzz_cli_sweep(args, ds, length, fmt):
-    run_cli(["sweep", *args, *ds, *length, *fmt])
+    code, out, _ = run_cli(["sweep", *args, "--diameters", ds, *length, *fmt])
+    if code == 0 and fmt == ["--format", "json"]:
+        frame_physical(pd.DataFrame(json.loads(out)["rows"]),
+                       nan_ok=("yield_mpa", "uts_mpa", "hardness_hrc", "surface_hardness_hrc", "relative_cost",
+                               "part_cost", "min_surface_hardness_hrc"),
+                       positive=("diameter_mm", "min_yield_mpa", "min_uts_mpa"))
 
 
 @cfg("cli_validate")
