@@ -495,3 +495,20 @@ def test_usage_errors_through_the_console_entry(tmp_path):
 
 def test_not_modelled_error_is_documented():
     assert issubclass(NotModelledError, SelectorError)
+
+
+def test_defect_06_page_pin_report_gives_a_message():
+    from selector.views import page as pg
+
+    case = dict(load_kn=1e308, diameter_mm=25.0, shear_planes=2, safety_factor=2.0, gap_mm=1.0,
+                lug_thickness_mm=30.0, clevis_thickness_mm=12.0, wear_surface_hardness_hrc=None)
+    rep, msg = pg.pin_report_for(case, pg.SI)
+    assert rep is None and "load_kn" in msg and "allowed" in msg
+
+
+def test_defect_11_page_service_check_names_the_option():
+    from selector.views import page as pg
+
+    assert "environment" in pg.check_service({"plated": False, "environment": "martian"})
+    assert "mating_material" in pg.check_service(pg.service_context(False, None, "x" * 300, "normal", None))
+    assert pg.check_service(pg.service_context(True, "zinc plated", "brass", "harsh", 60.0)) is None
