@@ -208,15 +208,18 @@ def test_defect_05_nesting_scan_ignores_strings_and_comments():
 
 @pytest.mark.parametrize("kw, field", [
     (dict(load_kn=1e308, diameter_mm=10.0), "load_kn"), (dict(load_lbf=1e308, diameter_mm=10.0), "load_lbf"),
-    (dict(load_kn=10.0, diameter_mm=1e-300), "diameter_mm"), (dict(load_kn=10.0, diameter_mm=0.0), "diameter_mm")])
+    (dict(load_kn=10.0, diameter_mm=1e-300), "diameter_mm"), (dict(load_kn=10.0, diameter_mm=0.0), "diameter_mm"),
+    (dict(load_kn=10.0, diameter_mm=10.0, lug_thickness_mm=5e-324), "lug_thickness_mm"),
+    (dict(load_kn=10.0, diameter_mm=10.0, clevis_thickness_mm=5e-324), "clevis_thickness_mm")])
 def test_defect_06_pin_targets_stay_finite(kw, field):
     with pytest.raises(InputError) as ei:
-        selector.pin_targets(lug_thickness_mm=10.0, clevis_thickness_mm=5.0, **kw)
+        selector.pin_targets(**{"lug_thickness_mm": 10.0, "clevis_thickness_mm": 5.0, **kw})
     assert ei.value.field == field
     # at the caps themselves every target is finite and positive
-    t = selector.pin_targets(load_kn=pins.MAX_LOAD_KN, diameter_mm=pins.MIN_DIAMETER_MM, lug_thickness_mm=2000.0,
-                             clevis_thickness_mm=2000.0, gap_mm=2000.0, safety_factor=10.0)
-    assert all(math.isfinite(v) and v > 0 for v in t.values())
+    for lug, clevis, gap in ((2000.0, 2000.0, 2000.0), (pins.MIN_THICKNESS_MM, pins.MIN_THICKNESS_MM, 0.0)):
+        t = selector.pin_targets(load_kn=pins.MAX_LOAD_KN, diameter_mm=pins.MIN_DIAMETER_MM, lug_thickness_mm=lug,
+                                 clevis_thickness_mm=clevis, gap_mm=gap, safety_factor=10.0)
+        assert all(math.isfinite(v) and v > 0 for v in t.values())
 
 
 def test_defect_06_pin_cli():

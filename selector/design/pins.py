@@ -139,8 +139,9 @@ _CONTEXT = "clevis pin"
 
 #: largest load accepted, kN (1 GN: far beyond any pin; keeps every stress finite)
 MAX_LOAD_KN = 1e6
-#: smallest pin diameter accepted, mm (keeps every stress finite)
+#: smallest pin diameter and member thickness accepted, mm (keeps every stress finite)
 MIN_DIAMETER_MM = 0.1
+MIN_THICKNESS_MM = 0.1
 
 
 def _positive(field: str, value, allow_zero: bool = False, hi: float | None = None,
@@ -246,8 +247,8 @@ def pin_stresses(load_kn=None, diameter_mm=None, shear_planes: int = 2, gap_mm=0
     d = _positive("diameter_mm", diameter_mm, hi=2000.0, lo=MIN_DIAMETER_MM)
     n = _shear_planes(shear_planes)
     g = _positive("gap_mm", gap_mm, allow_zero=True, hi=2000.0)
-    tl = _positive("lug_thickness_mm", lug_thickness_mm, hi=2000.0)
-    tc = _positive("clevis_thickness_mm", clevis_thickness_mm, hi=2000.0)
+    tl = _positive("lug_thickness_mm", lug_thickness_mm, hi=2000.0, lo=MIN_THICKNESS_MM)
+    tc = _positive("clevis_thickness_mm", clevis_thickness_mm, hi=2000.0, lo=MIN_THICKNESS_MM)
     model = check_choice("load_model", load_model, LOAD_MODELS, _CONTEXT)
 
     area = math.pi * d ** 2 / 4.0
