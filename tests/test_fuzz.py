@@ -21,6 +21,7 @@ only: a valid one recomputes the whole validation report (tests/test_validation.
 """
 from __future__ import annotations
 
+import copy
 import io
 import json
 import math
@@ -145,7 +146,7 @@ VALID_ROUTES = st.sampled_from([
     [{"op": "carburize", "temp_c": 925, "hours": 6}, {"op": "harden", "quench": "oil"},
      {"op": "temper", "temp_c": 180}],
     [{"op": "harden", "quench": "oil"}, {"op": "temper", "temp_c": 600}, {"op": "nitride", "temp_c": 520,
-                                                                          "hours": 30}]])
+                                                                          "hours": 30}]]).map(copy.deepcopy)   # a fresh copy per draw
 ROUTES = st.one_of(VALID_ROUTES, VALID_ROUTES, st.lists(st.one_of(STEP, JUNK), max_size=4), STEP, JUNK)
 
 
@@ -175,6 +176,8 @@ def evaluate_args(draw):
            "composition": JUNK, "step": STEP_VALUES}
     for name in draw(st.permutations(sorted(odd)))[:draw(st.sampled_from([0, 0, 0, 1, 1, 2]))]:
         if name == "step":
+            if isinstance(kw["route"], list):   # change a copy, never a drawn object
+                kw["route"] = [dict(x) if isinstance(x, dict) else x for x in kw["route"]]
             i = draw(st.integers(0, len(kw["route"]) - 1)) if isinstance(kw["route"], list) and kw["route"] else None
             if i is not None and isinstance(kw["route"][i], dict):
                 kw["route"][i][draw(STEP_KEYS)] = draw(STEP_VALUES)
