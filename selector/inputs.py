@@ -40,7 +40,8 @@ MAX_NAME_CHARS = 200
 
 __all__ = ["MAX_FILE_BYTES", "MAX_TEXT_CHARS", "MAX_NESTING", "MAX_RANGE_VALUES", "MAX_NAME_CHARS",
            "is_number", "as_float", "number", "integer", "flag", "name", "mapping", "nesting_depth",
-           "text_nesting", "check_text", "read_file_bytes", "strip_bom", "decode_text", "byte_position", "parse_json", "parse_toml",
+           "text_nesting", "check_text", "read_file_bytes", "strip_bom", "decode_text", "byte_position",
+           "parse_json", "parse_toml",
            "range_count", "safe_repr"]
 
 
