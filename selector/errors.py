@@ -7,7 +7,36 @@ either.  Messages name the field, the value given and what is allowed.
 from __future__ import annotations
 
 import difflib
+import reprlib
 from typing import Iterable, Sequence
+
+#: longest value shown in an error message, characters
+MAX_SHOWN_CHARS = 120
+
+_REPR = reprlib.Repr()
+_REPR.maxlevel = 3
+_REPR.maxstring = 60
+_REPR.maxother = 60
+_REPR.maxlong = 40
+
+
+def safe_repr(value: object, limit: int = MAX_SHOWN_CHARS) -> str:
+    """A short ``repr`` of ``value`` for an error message: nested containers are shown
+    at most 3 levels deep (so a value nested 1 000 deep cannot exhaust the
+    recursion limit), long texts and huge integers are cut, and a value whose own
+    ``repr`` fails is shown by its type."""
+    try:
+        if isinstance(value, int) and not isinstance(value, bool) and value.bit_length() > 128:
+            text = f"<int of about {int(value.bit_length() * 0.30103) + 1} digits>"
+        else:
+            text = _REPR.repr(value)
+    except (RecursionError, ValueError, TypeError, AttributeError, OverflowError):
+        text = f"<{type(value).__name__}>"
+    except Exception:  # noqa: BLE001 - a caller's object with a broken __repr__
+        text = f"<{type(value).__name__}>"
+    if len(text) > limit:
+        text = text[:limit - 1] + "…"
+    return text
 
 
 class SelectorError(Exception):
@@ -30,7 +59,7 @@ class InputError(SelectorError, ValueError):
     def __init__(self, field: str, value: object, allowed: str, context: str = ""):
         self.field, self.value, self.allowed, self.context = field, value, allowed, context
         where = f"{context}: " if context else ""
-        super().__init__(f"{where}{field}={value!r} is not valid; allowed: {allowed}")
+        super().__init__(f"{where}{field}={safe_repr(value)} is not valid; allowed: {allowed}")
 
 
 class RouteError(InputError):
@@ -59,7 +88,7 @@ class UnknownGradeError(SelectorError, LookupError):
         self.name, self.suggestions, self.ambiguous = name, list(suggestions), ambiguous
         kind = "is ambiguous; it matches" if ambiguous else "is not in the catalogue; nearest"
         hint = ", ".join(self.suggestions) if self.suggestions else "(none)"
-        super().__init__(f"grade {name!r} {kind}: {hint}")
+        super().__init__(f"grade {safe_repr(name)} {kind}: {hint}")
 
 
 class DataFileError(SelectorError, ValueError):
@@ -104,7 +133,7 @@ def check_choice(field: str, value: object, allowed: Iterable[str], context: str
     allowed = list(allowed)
     if isinstance(value, str) and value in allowed:
         return value
-    near = nearest(str(value), allowed, n=3)
+    near = nearest(value, allowed, n=3) if isinstance(value, str) and len(value) <= 200 else []
     hint = ", ".join(allowed) + (f" (did you mean {', '.join(near)}?)" if near else "")
     raise error(field, value, hint, context)
 
@@ -114,11 +143,17 @@ def check_number(field: str, value: object, lo: float | None = None, hi: float |
     """Return ``value`` as float if it is a finite number within [lo, hi], else raise
     :class:`InputError`."""
     import math
+    from numbers import Real
 
-    if isinstance(value, bool) or not isinstance(value, (int, float)) or not math.isfinite(float(value)):
-        rng = f"a finite number in [{lo}, {hi}]" if lo is not None or hi is not None else "a finite number"
+    rng = f"a finite number in [{lo}, {hi}]" if lo is not None or hi is not None else "a finite number"
+    if isinstance(value, bool) or type(value).__name__ == "bool_" or not isinstance(value, Real):
         raise InputError(field, value, rng, context)
-    v = float(value)
+    try:
+        v = float(value)
+    except (OverflowError, TypeError, ValueError):
+        raise InputError(field, value, rng, context) from None
+    if not math.isfinite(v):
+        raise InputError(field, value, rng, context)
     if (lo is not None and v < lo) or (hi is not None and v > hi):
         raise InputError(field, value, f"a number in [{lo}, {hi}]", context)
     return v
@@ -130,7 +165,10 @@ def check_array(field: str, x, lo: float | None = None, hi: float | None = None,
     (lo, hi] with ``lo_open``), else :class:`InputError` naming the first bad value."""
     import numpy as np
 
-    a = np.asarray(x, float)
+    try:
+        a = np.asarray(x, float)
+    except (TypeError, ValueError, OverflowError, RecursionError):
+        raise InputError(field, x, "a finite number or an array of finite numbers", context) from None
     bad = ~np.isfinite(a)
     if lo is not None:
         bad |= (a <= lo) if lo_open else (a < lo)

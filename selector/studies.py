@@ -33,90 +33,43 @@ from pathlib import Path
 from types import MappingProxyType
 from typing import Mapping
 
+from . import inputs
 from .catalogue import loader
 from .catalogue.grades import FAMILIES, Catalogue, build_catalogue, default_catalogue
-from .errors import DataFileError, InputError
+from .errors import DataFileError, InputError, safe_repr
 
-#: largest user file accepted, bytes (the same cap as the catalogue loader)
-MAX_FILE_BYTES = loader.MAX_FILE_BYTES
+#: largest user file accepted, bytes (selector.inputs.MAX_FILE_BYTES, the catalogue loader's cap)
+MAX_FILE_BYTES = inputs.MAX_FILE_BYTES
 
 STUDY_FORMAT = "selector study"
 STUDY_VERSION = 1
 SECTION_KEYS = {"diameter_mm": (0.5, 500.0), "thickness_mm": (0.5, 500.0),
                 "length_mm": (0.5, 100000.0), "width_mm": (0.5, 100000.0)}
 
-_BOMS = ((b"\xff\xfe\x00\x00", "UTF-32"), (b"\x00\x00\xfe\xff", "UTF-32"),
-         (b"\xff\xfe", "UTF-16"), (b"\xfe\xff", "UTF-16"))
-
-
-# ----------------------------------------------------------------------------- bytes -> text
-
-def _where(data: bytes, offset: int) -> tuple[int, int]:
-    """1-based (line, column) of byte ``offset``; the column counts characters."""
-    start = data.rfind(b"\n", 0, offset) + 1
-    line = data.count(b"\n", 0, offset) + 1
-    col = len(data[start:offset].decode("utf-8", errors="replace")) + 1
-    return line, col
-
-
 def decode_user_bytes(data: bytes, name: str) -> str:
-    """Decode a user's file as UTF-8 (optional byte-order mark).
-
-    Raises :class:`DataFileError` with the line and column of the first problem:
-    file too large, a UTF-16/UTF-32 byte-order mark, a NUL byte, or a byte sequence
-    that is not UTF-8 (a Latin-1 / Windows-1252 file, a binary file).
-    """
-    if not isinstance(data, (bytes, bytearray)):
-        raise InputError("data", type(data).__name__, "the file's bytes")
-    data = bytes(data)
-    if len(data) > MAX_FILE_BYTES:
-        raise DataFileError(name, None, None, f"is {len(data)} bytes; the largest file accepted is "
-                            f"{MAX_FILE_BYTES} bytes")
-    for bom, enc in _BOMS:
-        if data.startswith(bom):
-            raise DataFileError(name, 1, "1", f"is {enc} text (byte-order mark at line 1, column 1); "
-                                "save it as UTF-8")
-    nul = data.find(b"\x00")
-    try:
-        text = data.decode("utf-8-sig")
-        bad = -1
-    except UnicodeDecodeError as exc:
-        bad = exc.start
-    if bad >= 0 and (nul < 0 or bad < nul):
-        line, col = _where(data, bad)
-        raise DataFileError(name, line, str(col), f"byte 0x{data[bad]:02x} at line {line}, column "
-                            f"{col} is not UTF-8 (a Latin-1 or Windows-1252 file?); save it as UTF-8")
-    if nul >= 0:
-        line, col = _where(data, nul)
-        raise DataFileError(name, line, str(col), f"contains a NUL byte at line {line}, column {col}: "
-                            "not a UTF-8 text file (a UTF-16 or binary file?); save it as UTF-8")
-    return text
+    """Decode a user's file as UTF-8 (optional byte-order mark); see
+    :func:`selector.inputs.decode_text`."""
+    return inputs.decode_text(data, name)
 
 
 def _too_large(name: str, head: bytes, size: int) -> DataFileError:
-    line, col = _where(head, MAX_FILE_BYTES)
+    line, col = inputs.byte_position(head, MAX_FILE_BYTES)
     return DataFileError(name, line, str(col), f"is {size} bytes; the largest file accepted is "
                          f"{MAX_FILE_BYTES} bytes (the limit is reached at line {line}, column {col})")
 
 
 def _read(src, what: str) -> tuple[str, str]:
     """(text, display name) of a user's file given as a path or as bytes.  At most
-    ``MAX_FILE_BYTES + 1`` bytes are read from disk."""
+    ``MAX_FILE_BYTES + 1`` bytes are read from disk, and only from a regular file
+    (:func:`selector.inputs.read_file_bytes`: a named pipe or a device is refused
+    without blocking)."""
     if isinstance(src, (bytes, bytearray)):
         name = what
         data = bytes(src)
         if len(data) > MAX_FILE_BYTES:
             raise _too_large(name, data[:MAX_FILE_BYTES + 1], len(data))
     elif isinstance(src, (str, os.PathLike)):
-        p = Path(src)
-        name = str(p)
-        try:
-            with open(p, "rb") as f:
-                data = f.read(MAX_FILE_BYTES + 1)
-                if len(data) > MAX_FILE_BYTES:
-                    raise _too_large(name, data, os.fstat(f.fileno()).st_size)
-        except OSError as exc:
-            raise DataFileError(name, None, None, f"cannot be read ({exc.strerror or exc})") from None
+        data, name = inputs.read_file_bytes(src)
     else:
         raise InputError(what, type(src).__name__, "a path or the file's bytes")
     return decode_user_bytes(data, name), name
@@ -252,17 +205,35 @@ def _comp_schema():
 
 
 def _builtin_clash(builtin: Catalogue, r) -> tuple[str, str] | None:
-    for col in ("id", "name", "uns", "en_name", "en_number", "jis"):
-        v = str(getattr(r, col, "") or "").strip()
-        if not v:
-            continue
-        try:
-            g = builtin.lookup(v)
-        except LookupError:
-            continue
-        return col, (f"{v!r} is already the built-in grade {g.id}; give the custom grade its own id "
-                     "and designations")
+    """(column, problem) when the row's id, name, a designation or an alias names a
+    built-in grade (by any of its designations or aliases), else None."""
+    for col in ("id", "name", "uns", "en_name", "en_number", "jis", "aliases"):
+        raw = str(getattr(r, col, "") or "")
+        values = raw.split(";") if col == "aliases" else [raw]
+        for v in (x.strip() for x in values):
+            if not v:
+                continue
+            try:
+                g = builtin.lookup(v)
+            except LookupError:      # unknown, or ambiguous between built-in grades
+                if col == "aliases" and _names_builtin(builtin, v):
+                    return col, (f"alias {v!r} is already a designation of built-in grades; give the "
+                                 "custom grade its own aliases")
+                continue
+            what = "alias " if col == "aliases" else ""
+            return col, (f"{what}{v!r} is already the built-in grade {g.id}; give the custom grade its own id, "
+                         "designations and aliases")
     return None
+
+
+def _names_builtin(builtin: Catalogue, v: str) -> bool:
+    from .errors import UnknownGradeError
+
+    try:
+        builtin.lookup(v)
+    except UnknownGradeError as exc:
+        return exc.ambiguous
+    return True
 
 
 # ----------------------------------------------------------------------------- targets
@@ -278,9 +249,10 @@ def _key_line(text: str, key: str) -> int | None:
 
 def _as_file_error(exc: InputError, where: str, text: str, prefix: str = "") -> DataFileError:
     key = exc.value if exc.field == "target" and isinstance(exc.value, str) else exc.field
+    key = key if len(key) <= 200 else key[:199] + "…"
     line = _key_line(text, key)
     return DataFileError(where, line, prefix + key,
-                         f"{exc.field}={exc.value!r} is not valid; allowed: {exc.allowed}")
+                         f"{exc.field}={safe_repr(exc.value)} is not valid; allowed: {exc.allowed}")
 
 
 def load_targets(src, name: str = "targets") -> dict:
@@ -292,17 +264,10 @@ def load_targets(src, name: str = "targets") -> dict:
     the line and key of a bad value (unknown key, negative or non-numeric limit, a
     minimum above its maximum, an unknown family).
     """
-    import tomllib
-
     from .selection.targets import validate_targets
 
     text, where = _read(src, name)
-    try:
-        doc = tomllib.loads(text)
-    except tomllib.TOMLDecodeError as exc:
-        m = re.search(r"line (\d+), column (\d+)", str(exc))
-        raise DataFileError(where, int(m.group(1)) if m else None, m.group(2) if m else None,
-                            f"not valid TOML: {exc}") from None
+    doc = inputs.parse_toml(text, where)
     table = doc.get("targets", doc)
     if not isinstance(table, dict):
         raise DataFileError(where, _key_line(text, "targets"), "targets", "must be a [targets] table")
@@ -331,10 +296,9 @@ def _check_section(section) -> dict:
         if k not in SECTION_KEYS:
             raise InputError("section", k, f"keys out of: {', '.join(SECTION_KEYS)}")
         lo, hi = SECTION_KEYS[k]
-        if isinstance(v, bool) or not isinstance(v, (int, float)) or not math.isfinite(float(v)) \
-                or not lo <= float(v) <= hi:
+        if not inputs.is_number(v) or not lo <= inputs.as_float(v) <= hi:
             raise InputError(k, v, f"a number of mm in [{lo:g}, {hi:g}]")
-        out[k] = float(v)
+        out[k] = inputs.as_float(v)
     if ("diameter_mm" in out) == ("thickness_mm" in out):
         raise InputError("section", dict(section), "exactly one of diameter_mm (round) or thickness_mm (plate)")
     return out
@@ -343,7 +307,11 @@ def _check_section(section) -> dict:
 def _check_json_value(key: str, v):
     """Options must be JSON values that come back identical: str, bool, int,
     finite float, None, lists and str-keyed dicts of those."""
-    if v is None or isinstance(v, (str, bool, int)):
+    if v is None or isinstance(v, (str, bool)):
+        return v
+    if isinstance(v, int):
+        if v.bit_length() > 996:          # about 300 digits; JSON readers refuse far less
+            raise InputError(key, v, "an integer of at most 300 digits")
         return v
     if isinstance(v, float):
         if not math.isfinite(v):
@@ -371,17 +339,54 @@ def _study(targets, section, options) -> Study:
         options = {}
     if not isinstance(options, dict):
         raise InputError("options", options, "a mapping of text keys to JSON values")
+    inputs.check_nesting("options", options)      # before the recursive check below
     o = _check_json_value("options", options)
     return Study(t, s, o)
 
 
-def save_study(path, targets, section, options=None) -> Study:
+def study_path(path, folder=None) -> Path:
+    """The file ``path`` confined to ``folder`` (default: the current folder).
+
+    A relative ``path`` is taken inside ``folder``; the resolved file (symbolic
+    links followed) must lie inside the resolved ``folder``, so ``../../x.json`` or a
+    link out of the folder is refused.  An absolute ``path`` is accepted when no
+    ``folder`` is given (the caller chose the place explicitly) and must lie inside
+    ``folder`` when one is.  A NUL character, or a path that names a folder, is
+    refused.  Errors are :class:`InputError` naming ``path``.
+    """
+    if isinstance(path, (bytes, bytearray)) or not isinstance(path, (str, os.PathLike)):
+        raise InputError("path", path, "a file path (text)")
+    text = os.fspath(path)
+    if not isinstance(text, str) or not text.strip() or "\x00" in text or len(text) > 4096:
+        raise InputError("path", path, "a file name of at most 4096 characters, without NUL characters")
+    p = Path(text)
+    if folder is None and p.is_absolute():
+        base, target = None, p.resolve()
+    else:
+        if folder is not None and (isinstance(folder, (bytes, bytearray)) or
+                                   not isinstance(folder, (str, os.PathLike)) or "\x00" in os.fspath(folder)):
+            raise InputError("folder", folder, "a folder path (text) without NUL characters")
+        base = Path(folder if folder is not None else os.getcwd()).resolve()
+        target = (base / p).resolve()
+        if target != base and base not in target.parents:
+            raise InputError("path", path, f"a file inside the study folder {str(base)!r} (no '..' or links "
+                             "leading out of it)")
+    if target.is_dir() or target == base:
+        raise InputError("path", path, "a file name (this is a folder)")
+    return target
+
+
+def save_study(path, targets, section, options=None, *, folder=None) -> Study:
     """Validate and save a study as JSON, atomically.
 
     Parameters
     ----------
     path : str or os.PathLike
-        Destination file (its folder must exist).
+        Destination file (its folder must exist).  A relative path must stay inside
+        ``folder`` (see :func:`study_path`).
+    folder : str or os.PathLike, optional
+        The study folder the file must be in (default: the current folder for a
+        relative ``path``).
     targets : dict
         Design targets (:func:`selector.selection.targets.validate_targets`).
     section : dict
@@ -402,11 +407,11 @@ def save_study(path, targets, section, options=None) -> Study:
     DataFileError
         The file cannot be written (the previous file, if any, is left as it was).
     """
+    p = study_path(path, folder)
     study = _study(targets, section, options)
     doc = {"format": STUDY_FORMAT, "version": STUDY_VERSION, "targets": study.targets,
            "section": study.section, "options": study.options}
     text = json.dumps(doc, indent=2, ensure_ascii=False, allow_nan=False) + "\n"
-    p = Path(path)
     tmp = None
     try:
         fd, tmp = tempfile.mkstemp(prefix=f".{p.name}.", suffix=".tmp", dir=p.parent)
@@ -449,13 +454,9 @@ def load_study(path) -> Study:
         return d
 
     try:
-        doc = json.loads(text, object_pairs_hook=pairs, parse_constant=_no_constant)
-    except json.JSONDecodeError as exc:
-        raise DataFileError(where, exc.lineno, str(exc.colno), f"not valid JSON: {exc.msg}") from None
+        doc = inputs.parse_json(text, where, object_pairs_hook=pairs, parse_constant=_no_constant)
     except _Dup as exc:
         raise DataFileError(where, _key_line(text, exc.key), exc.key, "key appears twice") from None
-    except ValueError as exc:
-        raise DataFileError(where, None, None, f"not valid JSON: {exc}") from None
     if not isinstance(doc, dict):
         raise DataFileError(where, 1, None, "must hold a JSON object (a study saved by selector)")
     if doc.get("format") != STUDY_FORMAT:

@@ -184,8 +184,9 @@ class Catalogue:
     def lookup(self, name) -> Grade:
         if isinstance(name, Grade):
             return name
-        if not isinstance(name, str) or not name.strip():
-            raise UnknownGradeError(str(name), list(self.grades)[:5])
+        if not isinstance(name, str) or not name.strip() or len(name) > 200:
+            # the value itself is shown by UnknownGradeError (truncated, never recursive)
+            raise UnknownGradeError(name, list(self.grades)[:5])
         if name in self.grades:
             return self.grades[name]
         hits = set()

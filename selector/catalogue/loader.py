@@ -20,12 +20,13 @@ from typing import Callable, Iterable, Mapping
 import pandas as pd
 
 from ..errors import DataFileError
+from ..inputs import MAX_FILE_BYTES as _MAX_FILE_BYTES
 
 #: confidence tags accepted on a data row (see DEVELOPERS.md)
 CONFIDENCE = ("verified", "partial", "from memory", "common practice", "demo", "fitted")
 
-#: largest user file accepted, bytes
-MAX_FILE_BYTES = 5_000_000
+#: largest user file accepted, bytes (one constant for every reader: selector.inputs.MAX_FILE_BYTES)
+MAX_FILE_BYTES = _MAX_FILE_BYTES
 
 
 def data_dir() -> Path:

@@ -90,7 +90,7 @@ import numpy as np
 import pandas as pd
 
 from ..catalogue.loader import CONFIDENCE, Column, Schema, read_table
-from ..errors import DataFileError, InputError, UnknownGradeError, check_choice, check_number, nearest
+from ..errors import DataFileError, InputError, UnknownGradeError, check_choice, nearest
 from ..models import conversions
 
 CAUTIONS_FILE = "cautions.csv"
@@ -482,19 +482,49 @@ def anodic_index(material: str) -> dict:
     raise InputError("mating_material", material, hint)
 
 
+#: the keywords of the service context (:func:`cautions_for`, ``select``, ``diameter_sweep``)
+CONTEXT_KEYS = ("plated", "plating", "mating_material", "service_temp_c", "environment")
+
+
+def check_context(context, field: str = "caution_context") -> dict:
+    """Validate a service context (a mapping of :data:`CONTEXT_KEYS`) and return a
+    clean dict with every key: ``plated`` (bool), ``plating`` and
+    ``mating_material`` (names known to :func:`anodic_index`, or None),
+    ``service_temp_c`` (°C in [-273.15, 1500], or None), ``environment`` (one of
+    ``harsh``, ``normal``, ``controlled``).  Checked whether or not any row of a
+    table will use it; an unknown key or a bad value is an :class:`InputError`."""
+    from .. import inputs
+
+    ctx = inputs.mapping(field, context, "a mapping with keys out of: " + ", ".join(CONTEXT_KEYS))
+    for k in ctx:
+        check_choice(f"{field} key", k, CONTEXT_KEYS)
+    plated = inputs.flag("plated", ctx.get("plated", False))
+    env = check_choice("environment", ctx.get("environment", "normal"), tuple(GALVANIC_LIMITS_V))
+    temp = ctx.get("service_temp_c")
+    if temp is not None:
+        temp = inputs.number("service_temp_c", temp, -273.15, 1500.0, unit="°C")
+    plating, mating = ctx.get("plating"), ctx.get("mating_material")
+    if plating is not None:
+        if not plated:
+            raise InputError("plating", plating, "a plating name only together with plated=True")
+        plating = inputs.name("plating", plating, allowed="a plating name, e.g. 'zinc plated'")
+        anodic_index(plating)
+    if mating is not None:
+        mating = inputs.name("mating_material", mating, allowed="a material name, e.g. 'brass', '6061'")
+        anodic_index(mating)
+    return {"plated": plated, "plating": plating, "mating_material": mating, "service_temp_c": temp,
+            "environment": env}
+
+
 def _context(f: _Frame, plated=False, mating_material=None, service_temp_c=None,
              environment: str = "normal", plating: str | None = None, strength_target: bool = False) -> dict:
-    if not isinstance(plated, (bool, np.bool_)):
-        raise InputError("plated", plated, "True or False")
+    c = check_context(dict(plated=plated, mating_material=mating_material, service_temp_c=service_temp_c,
+                           environment=environment, plating=plating), "context")
     if not isinstance(strength_target, (bool, np.bool_)):
         raise InputError("strength_target", strength_target, "True or False")
-    env = check_choice("environment", environment, tuple(GALVANIC_LIMITS_V))
-    ctx = {"plated": bool(plated), "environment": env, "galvanic_limit_v": GALVANIC_LIMITS_V[env],
-           "service_temp_c": None, "mating": None, "strength_target": bool(strength_target)}
-    if service_temp_c is not None:
-        ctx["service_temp_c"] = check_number("service_temp_c", service_temp_c, -273.15, 1500.0)
-    if plating is not None and not plated:
-        raise InputError("plating", plating, "a plating name only together with plated=True")
+    plated, mating_material, plating, env = c["plated"], c["mating_material"], c["plating"], c["environment"]
+    ctx = {"plated": plated, "environment": env, "galvanic_limit_v": GALVANIC_LIMITS_V[env],
+           "service_temp_c": c["service_temp_c"], "mating": None, "strength_target": bool(strength_target)}
     if mating_material is not None:
         ctx["mating"] = anodic_index(mating_material)
         if plated and plating is not None:

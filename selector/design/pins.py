@@ -137,19 +137,30 @@ DEMO_PIN_KEYS = ("load_kn", "diameter_mm", "shear_planes", "safety_factor", "gap
 
 _CONTEXT = "clevis pin"
 
+#: largest load accepted, kN (1 GN: far beyond any pin; keeps every stress finite)
+MAX_LOAD_KN = 1e6
+#: smallest pin diameter and member thickness accepted, mm (keeps every stress finite)
+MIN_DIAMETER_MM = 0.1
+MIN_THICKNESS_MM = 0.1
 
-def _positive(field: str, value, allow_zero: bool = False, hi: float | None = None) -> np.ndarray:
+
+def _positive(field: str, value, allow_zero: bool = False, hi: float | None = None,
+              lo: float | None = None) -> np.ndarray:
     """``value`` as a float array if every element is finite and > 0 (>= 0 with
-    ``allow_zero``) and <= ``hi``; else :class:`InputError`."""
-    lo_txt = ">= 0" if allow_zero else "> 0"
+    ``allow_zero``; >= ``lo`` when given) and <= ``hi``; else :class:`InputError`."""
+    lo_txt = f">= {lo:g}" if lo is not None else ">= 0" if allow_zero else "> 0"
     allowed = f"a finite number {lo_txt}" + (f" and <= {hi:g}" if hi is not None else "")
-    if value is None or isinstance(value, (bool, np.bool_, str)):
+    if value is None or isinstance(value, (bool, np.bool_, str, bytes)):
         raise InputError(field, value, allowed, _CONTEXT)
     try:
         arr = np.asarray(value, dtype=float)
-    except (TypeError, ValueError):
+    except (TypeError, ValueError, OverflowError, RecursionError):
         raise InputError(field, value, allowed, _CONTEXT) from None
+    if arr.size == 0 or arr.ndim > 1:
+        raise InputError(field, value, allowed + " (a number, or a flat list of numbers)", _CONTEXT)
     ok = np.isfinite(arr) & ((arr >= 0) if allow_zero else (arr > 0))
+    if lo is not None:
+        ok &= arr >= lo
     if hi is not None:
         ok &= arr <= hi
     if not np.all(ok):
@@ -164,14 +175,16 @@ def _load_n(load_kn, load_lbf) -> np.ndarray:
         raise InputError("load_kn/load_lbf", {"load_kn": load_kn, "load_lbf": load_lbf},
                          "exactly one of load_kn or load_lbf", _CONTEXT)
     if load_kn is not None:
-        return _positive("load_kn", load_kn) * 1000.0
-    return _positive("load_lbf", load_lbf) * LBF_TO_N
+        return _positive("load_kn", load_kn, hi=MAX_LOAD_KN) * 1000.0
+    return _positive("load_lbf", load_lbf, hi=MAX_LOAD_KN * 1000.0 / LBF_TO_N) * LBF_TO_N
 
 
 def _shear_planes(n) -> int:
-    if isinstance(n, bool) or n not in (1, 2):
+    from .. import inputs
+
+    if not inputs.is_number(n) or inputs.as_float(n) not in (1.0, 2.0):
         raise InputError("shear_planes", n, "1 (single shear) or 2 (double shear)", _CONTEXT)
-    return int(n)
+    return int(inputs.as_float(n))
 
 
 def pin_stresses(load_kn=None, diameter_mm=None, shear_planes: int = 2, gap_mm=0.0,
@@ -231,11 +244,11 @@ def pin_stresses(load_kn=None, diameter_mm=None, shear_planes: int = 2, gap_mm=0
     ch. 3; Bruhn (1973) §D1 (both from memory for the clevis-pin distribution).
     """
     f = _load_n(load_kn, load_lbf)
-    d = _positive("diameter_mm", diameter_mm, hi=2000.0)
+    d = _positive("diameter_mm", diameter_mm, hi=2000.0, lo=MIN_DIAMETER_MM)
     n = _shear_planes(shear_planes)
     g = _positive("gap_mm", gap_mm, allow_zero=True, hi=2000.0)
-    tl = _positive("lug_thickness_mm", lug_thickness_mm, hi=2000.0)
-    tc = _positive("clevis_thickness_mm", clevis_thickness_mm, hi=2000.0)
+    tl = _positive("lug_thickness_mm", lug_thickness_mm, hi=2000.0, lo=MIN_THICKNESS_MM)
+    tc = _positive("clevis_thickness_mm", clevis_thickness_mm, hi=2000.0, lo=MIN_THICKNESS_MM)
     model = check_choice("load_model", load_model, LOAD_MODELS, _CONTEXT)
 
     area = math.pi * d ** 2 / 4.0
@@ -282,6 +295,13 @@ def pin_stresses(load_kn=None, diameter_mm=None, shear_planes: int = 2, gap_mm=0
                         "elastic elementary beam theory; static load",
                         "lug and clevis strength (net section, tear-out) not checked"],
     }
+
+
+def _ndim(v) -> int:
+    try:
+        return int(np.ndim(v))
+    except (TypeError, ValueError, OverflowError, RecursionError):
+        return -1
 
 
 def _material_class(material_class) -> str:
@@ -371,8 +391,9 @@ def pin_report(load_kn=None, diameter_mm=None, shear_planes: int = 2, safety_fac
     """
     for name, v in (("load_kn", load_kn), ("load_lbf", load_lbf), ("diameter_mm", diameter_mm),
                     ("gap_mm", gap_mm), ("lug_thickness_mm", lug_thickness_mm),
-                    ("clevis_thickness_mm", clevis_thickness_mm)):
-        if v is not None and np.ndim(v) != 0:
+                    ("clevis_thickness_mm", clevis_thickness_mm), ("safety_factor", safety_factor),
+                    ("bearing_factor", bearing_factor), ("wear_surface_hardness_hrc", wear_surface_hardness_hrc)):
+        if v is not None and not isinstance(v, (str, bytes)) and _ndim(v) != 0:
             raise InputError(name, v, "a single number (one load case; use pin_stresses for arrays)",
                              _CONTEXT)
     sf = _positive("safety_factor", safety_factor, hi=10.0)
@@ -394,6 +415,9 @@ def pin_report(load_kn=None, diameter_mm=None, shear_planes: int = 2, safety_fac
     governing = max(demands, key=demands.get)
     targets = {"min_yield_mpa": demands[governing],
                "min_uts_mpa": sf * s["shear_mpa"] / k_shear}
+    if not all(math.isfinite(v) and v >= 0 for v in targets.values()):   # guarded by the caps above
+        raise InputError("load_kn/diameter_mm", {"load_n": s["load_n"], "diameter_mm": diameter_mm},
+                         "a load case whose stresses are finite", _CONTEXT)
     if wear_surface_hardness_hrc is not None:
         h = _positive("wear_surface_hardness_hrc", wear_surface_hardness_hrc, hi=70.0)
         if np.ndim(h) != 0 or float(h) < 20.0:

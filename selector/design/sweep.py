@@ -28,12 +28,12 @@ qualified engineer.
 """
 from __future__ import annotations
 
-import math
 from typing import Callable
 
 import numpy as np
 import pandas as pd
 
+from .. import inputs
 from ..errors import InputError, check_choice
 from . import pins
 
@@ -46,27 +46,37 @@ SWEEP_COLUMNS = ["diameter_mm", "min_yield_mpa", "min_uts_mpa", "min_surface_har
                  "relative_cost", "part_cost", "changed", "cautions"]
 
 
+#: most diameters of one sweep (the same cap as a range, selector.inputs.MAX_RANGE_VALUES)
+MAX_DIAMETERS = inputs.MAX_RANGE_VALUES
+
+
 def _diameters(diameters_mm) -> np.ndarray:
+    allowed = f"a non-empty list of at most {MAX_DIAMETERS} finite diameters in mm (> 0)"
+    if isinstance(diameters_mm, (str, bytes, dict)) or diameters_mm is None:
+        raise InputError("diameters_mm", diameters_mm, allowed)
+    size = len(diameters_mm) if hasattr(diameters_mm, "__len__") else 1
+    if size > MAX_DIAMETERS:            # checked before the list is converted
+        raise InputError("diameters_mm", f"{size} values", f"at most {MAX_DIAMETERS} diameters")
     try:
         d = np.atleast_1d(np.asarray(diameters_mm, dtype=float))
-    except (TypeError, ValueError):
-        raise InputError("diameters_mm", diameters_mm, "a list of diameters in mm (> 0)") from None
+    except (TypeError, ValueError, OverflowError, RecursionError):
+        raise InputError("diameters_mm", diameters_mm, allowed) from None
     if d.ndim != 1 or d.size == 0 or not np.all(np.isfinite(d)) or np.any(d <= 0):
-        raise InputError("diameters_mm", diameters_mm, "a non-empty list of finite diameters in mm (> 0)")
-    if d.size > 200:
-        raise InputError("diameters_mm", f"{d.size} values", "at most 200 diameters")
+        raise InputError("diameters_mm", diameters_mm, allowed)
+    if d.size > MAX_DIAMETERS:
+        raise InputError("diameters_mm", f"{d.size} values", f"at most {MAX_DIAMETERS} diameters")
     return np.unique(d)
 
 
 def diameter_range(start_mm: float, stop_mm: float, step_mm: float) -> np.ndarray:
-    """Diameters from ``start_mm`` to ``stop_mm`` inclusive in steps of ``step_mm``."""
-    for name, v in (("start_mm", start_mm), ("stop_mm", stop_mm), ("step_mm", step_mm)):
-        if isinstance(v, bool) or not isinstance(v, (int, float)) or not math.isfinite(v) or v <= 0:
-            raise InputError(name, v, "a finite number > 0 (mm)")
-    if stop_mm < start_mm:
-        raise InputError("stop_mm", stop_mm, f"a diameter >= start_mm ({start_mm:g})")
-    n = int(math.floor((stop_mm - start_mm) / step_mm + 1e-9)) + 1
-    return np.round(start_mm + step_mm * np.arange(n), 6)
+    """Diameters from ``start_mm`` to ``stop_mm`` inclusive in steps of ``step_mm``.
+
+    Each must be a finite number > 0 (mm), ``stop_mm >= start_mm``, and the range
+    may hold at most :data:`MAX_DIAMETERS` values; this is checked before the range
+    is built (:func:`selector.inputs.range_count`)."""
+    n = inputs.range_count(start_mm, stop_mm, step_mm, ("start_mm", "stop_mm", "step_mm"),
+                           max_values=MAX_DIAMETERS)
+    return np.round(float(start_mm) + float(step_mm) * np.arange(n), 6)
 
 
 def pin_length_mm(shear_planes: int, lug_thickness_mm: float, clevis_thickness_mm: float,
@@ -148,19 +158,36 @@ def diameter_sweep(diameters_mm, *, load_kn=None, load_lbf=None, shear_planes: i
     Pin stresses and targets: :mod:`selector.design.pins` (docs/methods/pins.md).
     Candidates, robustness and cost: :func:`selector.select` (docs/methods/selection.md).
     """
+    from ..catalogue.grades import FAMILIES
+    from ..selection.cost import check_price_sheet
+    from ..selection.targets import validate_targets
+    from .cautions import check_context
+
+    # every input is checked before any selection is run
     d_all = _diameters(diameters_mm)
     cost_column = check_choice("cost_column", cost_column, COST_COLUMNS, "diameter sweep")
     if extra_targets is not None and not isinstance(extra_targets, dict):
         raise InputError("extra_targets", extra_targets, "a dict of targets or None", "diameter sweep")
+    extra_targets = validate_targets(extra_targets, FAMILIES) or None
+    price_sheet = check_price_sheet(price_sheet)
+    if caution_context is not None:
+        caution_context = check_context(caution_context, "caution_context")
+    if select is not None and not callable(select):
+        raise InputError("select", select, "a selection function or None", "diameter sweep")
     sel = select or _default_select()
     case = dict(load_kn=load_kn, load_lbf=load_lbf, shear_planes=shear_planes, safety_factor=safety_factor,
                 gap_mm=gap_mm, lug_thickness_mm=lug_thickness_mm, clevis_thickness_mm=clevis_thickness_mm,
                 wear_surface_hardness_hrc=wear_surface_hardness_hrc, material_class=material_class,
                 load_model=load_model)
+    first = pins.pin_report(diameter_mm=float(d_all[0]), **case)   # validates the load case
     if length_mm is None:
-        length = pin_length_mm(shear_planes, lug_thickness_mm, clevis_thickness_mm, gap_mm)
+        length = pin_length_mm(first["stresses"]["shear_planes"], float(lug_thickness_mm),
+                               float(clevis_thickness_mm), float(gap_mm))
+        if not 1.0 <= length <= 20000.0:
+            raise InputError("length_mm", length, "a grip length in [1, 20000] mm (give length_mm)",
+                             "diameter sweep")
     else:
-        length = float(length_mm)
+        length = inputs.number("length_mm", length_mm, 1.0, 20000.0, "diameter sweep", unit="pin length, mm")
     rows, picks = [], []
     for d in d_all:
         rep = pins.pin_report(diameter_mm=float(d), **case)   # validates the load case

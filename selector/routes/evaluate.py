@@ -31,12 +31,11 @@ def section_args(diameter_mm, thickness_mm) -> tuple:
 
 
 def _positive(name, v, lo=0.5, hi=500.0):
-    if isinstance(v, bool) or not isinstance(v, (int, float, np.floating, np.integer)) or not math.isfinite(float(v)):
+    from .. import inputs
+
+    if not inputs.is_number(v) or not (lo <= inputs.as_float(v) <= hi):
         raise InputError(name, v, f"a number of mm in [{lo}, {hi}]")
-    v = float(v)
-    if v < lo or v > hi:
-        raise InputError(name, v, f"a number of mm in [{lo}, {hi}]")
-    return v
+    return inputs.as_float(v)
 
 
 def resolve(grade, route) -> tuple[Grade, list, object]:
@@ -62,6 +61,10 @@ def scale_hardness(hv: np.ndarray, families_: np.ndarray) -> dict:
 
 OFF_TABLE_NOTE = ("hardness above the tensile-strength column of ASTM A370 Table 3 / E140 (about HRC 59): "
                   "tensile strength, yield and elongation are not estimated")
+
+
+BELOW_TABLE_NOTE = ("tensile strength below the lowest row of the tensile-strength column of ASTM A370 "
+                    "Table 3 / E140 (about 386 MPa, HB 116): the hardness is not estimated from it")
 
 
 def finish(res: dict, batch: Batch, route: str = bands.ANY) -> dict:
@@ -191,6 +194,9 @@ def evaluate(grade, route, diameter_mm: float | None = 25.0, thickness_mm: float
     out["diameter_mm"] = d
     out["thickness_mm"] = t
     notes = [m for m, mask in res.get("notes", []) if bool(np.asarray(mask).ravel()[0])]
+    if g.family in STEEL_SCALE_FAMILIES and out.get("uts_mpa") is not None \
+            and out["uts_mpa"] < 400.0 and out.get("hardness_hv") is None:
+        notes.append(BELOW_TABLE_NOTE)      # say why a steel's hardness is missing
     out["warnings"] = list(dict.fromkeys(warns + notes))
     srcs = [f"{g.id}: {g.source}"] + [f"composition: {s}" for s in g.comp_sources] + list(fam.references)
     if g.family in STEEL_SCALE_FAMILIES:

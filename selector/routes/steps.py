@@ -17,6 +17,10 @@ from dataclasses import dataclass
 from typing import Mapping, Sequence
 
 from ..errors import RouteError, check_choice, nearest
+from .. import inputs
+
+#: most steps a route may hold (the longest route of any family has 5)
+MAX_STEPS = 12
 
 QUENCH_MEDIA = ("water", "brine", "oil", "polymer", "air")
 AGITATION = ("none", "mild", "moderate", "strong")
@@ -70,6 +74,8 @@ def parse_steps(route) -> list[dict]:
     if isinstance(route, str) or not isinstance(route, Sequence) or len(route) == 0:
         raise RouteError("route", route, "a non-empty list of steps such as "
                          "[{'op': 'harden', 'quench': 'oil'}, {'op': 'temper', 'temp_c': 540}]")
+    if len(route) > MAX_STEPS:
+        raise RouteError("route", f"{len(route)} steps", f"at most {MAX_STEPS} steps")
     out = []
     for i, step in enumerate(route):
         where = f"step {i + 1}"
@@ -84,7 +90,7 @@ def parse_steps(route) -> list[dict]:
             if key == "op":
                 continue
             if key not in spec:
-                near = nearest(str(key), list(spec), 2)
+                near = nearest(key, list(spec), 2) if isinstance(key, str) and len(key) <= 200 else []
                 allowed = ", ".join(spec) or "(no parameters)"
                 raise RouteError(key, val, f"parameters of '{op}': {allowed}"
                                  + (f" (did you mean {', '.join(near)}?)" if near else ""), where)
@@ -92,16 +98,15 @@ def parse_steps(route) -> list[dict]:
             if p.kind == "choice":
                 clean[key] = check_choice(key, val, p.choices, f"{where} ({op})", RouteError)
             elif p.kind == "str":
-                if not isinstance(val, str) or not val.strip():
-                    raise RouteError(key, val, "a non-empty text", f"{where} ({op})")
+                if not isinstance(val, str) or not val.strip() or len(val) > inputs.MAX_NAME_CHARS:
+                    raise RouteError(key, val, f"a non-empty text of at most {inputs.MAX_NAME_CHARS} characters",
+                                     f"{where} ({op})")
                 clean[key] = val.strip()
             else:
-                import math
-                if isinstance(val, bool) or not isinstance(val, (int, float)) or not math.isfinite(float(val)):
-                    raise RouteError(key, val, f"a number in [{p.lo:g}, {p.hi:g}] {p.unit}".strip(), f"{where} ({op})")
-                v = float(val)
-                if v < p.lo or v > p.hi:
-                    raise RouteError(key, val, f"a number in [{p.lo:g}, {p.hi:g}] {p.unit}".strip(), f"{where} ({op})")
+                allowed = f"a number in [{p.lo:g}, {p.hi:g}] {p.unit}".strip()
+                v = inputs.as_float(val) if inputs.is_number(val) else float("nan")
+                if not (p.lo <= v <= p.hi):      # NaN fails too
+                    raise RouteError(key, val, allowed, f"{where} ({op})")
                 clean[key] = v
         for key, p in spec.items():
             if p.required and key not in clean:

@@ -55,6 +55,46 @@ def parse_price_sheet(data: bytes | str, name: str = "price sheet") -> dict:
     return out
 
 
+#: the range of a relative price per kg, in a price sheet file or dict (the schema's range)
+PRICE_RANGE = (0.001, 1e5)
+#: most rows a price sheet may hold
+MAX_PRICE_ROWS = 10_000
+
+
+def check_price_sheet(price_sheet, field: str = "price_sheet") -> dict | None:
+    """Validate a price sheet given as a dict and return ``{catalogue id: price}``
+    (``None`` for ``None`` or ``{}``).
+
+    Keys are any designation of a catalogue grade (``"AISI 4140"``, ``"42CrMo4"``)
+    and are resolved to the catalogue id; values are relative prices per kg in
+    :data:`PRICE_RANGE` (finite, positive).  A key that is no grade, a grade priced
+    twice under two names, or a bad price is an :class:`InputError` naming it.
+    """
+    from .. import inputs
+
+    if price_sheet is None:
+        return None
+    from collections.abc import Mapping
+
+    if not isinstance(price_sheet, Mapping):
+        raise InputError(field, price_sheet, "a mapping {grade: relative price per kg}, e.g. {'4140': 1.6}")
+    items = list(price_sheet.items())
+    if len(items) > MAX_PRICE_ROWS:
+        raise InputError(field, f"{len(items)} entries", f"at most {MAX_PRICE_ROWS} grades")
+    cat = default_catalogue()
+    out: dict = {}
+    lo, hi = PRICE_RANGE
+    for key, value in items:
+        try:
+            g = cat.lookup(key)
+        except LookupError as exc:
+            raise InputError(f"{field} grade", key, f"a catalogue grade ({exc})") from None
+        if g.id in out:
+            raise InputError(f"{field} grade", key, f"each grade once ({g.id} is already priced)")
+        out[g.id] = inputs.number(f"{field}[{g.id}]", value, lo, hi, unit="relative price per kg")
+    return out or None
+
+
 def part_mass_kg(density_g_cm3, diameter_mm=None, thickness_mm=None, length_mm=100.0, width_mm=None):
     """Mass of a round bar (diameter × length) or a plate (thickness × width × length), kg."""
     dens = np.asarray(density_g_cm3, float) * 1e-6  # kg/mm^3

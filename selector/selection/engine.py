@@ -113,6 +113,7 @@ def costed(states: pd.DataFrame, length_mm: float = 100.0, price_sheet: dict | N
     df = states.copy()
     price = df["relative_price"].to_numpy(float).copy()
     src = np.full(len(df), "catalogue (indicative)", dtype=object)
+    price_sheet = cost_mod.check_price_sheet(price_sheet)
     if price_sheet:
         for gid, p in price_sheet.items():
             m = (df["grade"] == gid).to_numpy()
@@ -259,11 +260,11 @@ def prepare(diameter_mm=25.0, thickness_mm=None, length_mm=100.0, price_sheet=No
     not depend on the targets (cached; the page caches it too).  Rows are laid out
     as three aligned blocks (nominal, lean, rich), the nominal block sorted by
     variant and main parameter; treat the frame as read-only."""
-    if isinstance(length_mm, bool) or not isinstance(length_mm, (int, float)) or \
-            not (1.0 <= float(length_mm) <= 20000.0):
-        raise InputError("length_mm", length_mm, "a part length in [1, 20000] mm")
+    from .. import inputs
+
+    length_mm = inputs.number("length_mm", length_mm, 1.0, 20000.0, unit="part length, mm")
     d, t = section_args(diameter_mm, thickness_mm)
-    prices = tuple(sorted((price_sheet or {}).items()))
+    prices = tuple(sorted((cost_mod.check_price_sheet(price_sheet) or {}).items()))
     return _prepare_cached(d, t, float(length_mm), prices)
 
 
@@ -311,11 +312,15 @@ def rank(prepared: pd.DataFrame, targets: dict | None = None, objectives=DEFAULT
     context of the cautions (``plated``, ``plating``, ``mating_material``,
     ``service_temp_c``, ``environment``; see :func:`selector.design.cautions.cautions_for`);
     ``min_p_meet`` and ``allow`` as in :func:`select`."""
+    from ..design.cautions import check_context
+    from .. import inputs
+
     t = validate_targets(targets, FAMILIES)
     objectives = _check_objectives(objectives)
+    robust_only = inputs.flag("robust_only", robust_only)
     min_p = _check_min_p(min_p_meet)
     allowed = cautions_mod.check_allow(allow)
-    ctx = dict(service or {})
+    ctx = check_context(service, "service")
     ctx["strength_target"] = any(k in t for k in STRENGTH_TARGETS)
     m = len(prepared) // 3
     ok = np.asarray(meets(prepared, t), bool)
@@ -385,15 +390,26 @@ def _range_text(lo, hi) -> str:
 
 
 def _check_objectives(objectives):
+    """``None`` means the default objectives; otherwise a list or tuple of
+    (column, "max" | "min") pairs, each column once."""
+    if objectives is None:
+        return DEFAULT_OBJECTIVES
+    if isinstance(objectives, (str, bytes)) or not isinstance(objectives, (list, tuple)):
+        raise InputError("objectives", objectives, "a list of (column, 'max' | 'min') pairs, e.g. "
+                         "[('yield_mpa', 'max'), ('relative_cost', 'min')]")
+    if len(objectives) > len(OBJECTIVE_COLUMNS):
+        raise InputError("objectives", objectives, f"at most {len(OBJECTIVE_COLUMNS)} pairs (each column once)")
     out = []
     for item in objectives:
         if not isinstance(item, (tuple, list)) or len(item) != 2:
             raise InputError("objectives", item, "pairs (column, 'max' | 'min')")
         col, sense = item
-        if col not in OBJECTIVE_COLUMNS:
+        if not isinstance(col, str) or col not in OBJECTIVE_COLUMNS:
             raise InputError("objectives", col, ", ".join(OBJECTIVE_COLUMNS))
-        if sense not in ("max", "min"):
+        if not isinstance(sense, str) or sense not in ("max", "min"):
             raise InputError("objectives", sense, "'max' or 'min'")
+        if any(c == col for c, _ in out):
+            raise InputError("objectives", col, "each column once")
         out.append((col, sense))
     if not out:
         raise InputError("objectives", objectives, "at least one (column, sense) pair")
@@ -553,12 +569,19 @@ def select(targets: dict | None = None, diameter_mm: float = 25.0, *, thickness_
         A bad target, section, ``min_p_meet`` outside (0, 1] or an unknown rule in
         ``allow`` (naming the field, the value and what is allowed).
     """
+    from ..design.cautions import check_context
+    from .. import inputs
+
+    # every argument is checked before the (expensive) expansion
+    t = validate_targets(targets, FAMILIES)
+    objectives = _check_objectives(objectives)
+    robust_only = inputs.flag("robust_only", robust_only)
     _check_min_p(min_p_meet)
     cautions_mod.check_allow(allow)
+    service = check_context(dict(plated=plated, plating=plating, mating_material=mating_material,
+                                 service_temp_c=service_temp_c, environment=environment), "service")
     prepared = prepare(diameter_mm, thickness_mm, length_mm, price_sheet)
-    service = dict(plated=plated, plating=plating, mating_material=mating_material,
-                   service_temp_c=service_temp_c, environment=environment)
-    return rank(prepared, targets, objectives, robust_only, service, min_p_meet, allow)
+    return rank(prepared, t, objectives, robust_only, service, min_p_meet, allow)
 
 
 def nearest_misses(targets: dict, diameter_mm: float = 25.0, *, thickness_mm: float | None = None,
@@ -567,7 +590,10 @@ def nearest_misses(targets: dict, diameter_mm: float = 25.0, *, thickness_mm: fl
     it would have to move (``move_<key>``) for that candidate to qualify at the
     nominal composition.  One row per variant (its best parameter point), sorted by
     ``miss_score`` (the sum of the relative moves)."""
+    from .. import inputs
+
     t = validate_targets(targets, FAMILIES)
+    n = inputs.integer("n", n, 1, 10_000)
     prepared = prepare(diameter_mm, thickness_mm, length_mm, price_sheet)
     m = len(prepared) // 3
     nom = prepared.iloc[:m].assign(p_meet=p_meet(prepared, t))
@@ -717,15 +743,36 @@ def alternatives(grade, route, diameter_mm: float = 25.0, *, thickness_mm: float
     error of 1.2 points, docs/methods/correlations.md).  The result lists the
     candidates whose relative cost per kg is lower, cheapest first, with
     ``saving_per_kg``; ``attrs["reference"]`` holds the given choice.
+
+    When the given choice's strength is not estimated (its hardness is above the
+    tensile-strength column of ASTM A370 Table 3, about HRC 59), its HRC hardness
+    becomes the minimum target instead; ``attrs["reference"]["basis"]`` says which
+    (``"strength"`` or ``"hardness"``).
     """
+    from .. import inputs
+    from ..errors import NotModelledError
     from ..routes.evaluate import evaluate
 
+    tol = inputs.number("elongation_tolerance_pct", elongation_tolerance_pct, 0.0, 50.0, unit="percentage points")
+    prices = cost_mod.check_price_sheet(price_sheet) or {}
+    length_mm = inputs.number("length_mm", length_mm, 1.0, 20000.0, unit="part length, mm")
     ref = evaluate(grade, route, diameter_mm=diameter_mm, thickness_mm=thickness_mm)
     g = default_catalogue().lookup(grade)
-    price = (price_sheet or {}).get(g.id, g.relative_price)
+    price = prices.get(g.id, g.relative_price)
     ref_cost = float(cost_mod.relative_cost_per_kg(np.array([price]), np.array([ref["route_family"]]))[0])
-    t = {"min_yield_mpa": ref["yield_mpa"], "min_uts_mpa": ref["uts_mpa"],
-         "min_elongation_pct": max(ref["elongation_pct"] - float(elongation_tolerance_pct), 0.0)}
+    if ref.get("yield_mpa") is not None and ref.get("uts_mpa") is not None:
+        basis = "strength"
+        t = {"min_yield_mpa": ref["yield_mpa"], "min_uts_mpa": ref["uts_mpa"]}
+        if ref.get("elongation_pct") is not None:
+            t["min_elongation_pct"] = max(ref["elongation_pct"] - tol, 0.0)
+    elif ref.get("hardness_hrc") is not None:
+        # strength not estimated (hardness above the A370 tensile column): the
+        # reference's hardness is the property to reach
+        basis = "hardness"
+        t = {"min_hardness_hrc": ref["hardness_hrc"]}
+    else:
+        raise NotModelledError(f"alternatives to {g.id} {ref['route_text']}: neither its strength nor its "
+                               "HRC hardness is estimated, so there is no property to match")
     if ref.get("case_depth_mm"):
         t["min_case_depth_mm"] = ref["case_depth_mm"]
         if ref.get("surface_hardness_hrc") is not None:
@@ -733,9 +780,9 @@ def alternatives(grade, route, diameter_mm: float = 25.0, *, thickness_mm: float
     if g.corrosion_resistant:
         t["corrosion_resistant"] = True
     t = {k: v for k, v in t.items() if v is not None}
-    cand = select(t, diameter_mm, thickness_mm=thickness_mm, length_mm=length_mm, price_sheet=price_sheet)
+    cand = select(t, diameter_mm, thickness_mm=thickness_mm, length_mm=length_mm, price_sheet=prices or None)
     cand = cand[cand["relative_cost"] < ref_cost - 1e-9].copy()
     cand["saving_per_kg"] = ref_cost - cand["relative_cost"]
     cand = cand.sort_values(["relative_cost", "robust"], ascending=[True, False], kind="stable")
-    cand.attrs["reference"] = {**ref, "relative_cost": ref_cost, "targets": t}
+    cand.attrs["reference"] = {**ref, "relative_cost": ref_cost, "targets": t, "basis": basis}
     return cand.reset_index(drop=True)

@@ -32,8 +32,6 @@ distance, chosen here; see ``docs/methods/selection.md``.
 from __future__ import annotations
 
 import os
-import re
-from pathlib import Path
 from typing import Mapping, Sequence
 
 import numpy as np
@@ -156,12 +154,6 @@ def validate_targets(targets: dict | None, families_known: Sequence[str]) -> dic
     return _validate(targets, families_known)
 
 
-def _toml_problem(exc: Exception) -> tuple[int | None, str]:
-    msg = str(exc)
-    m = re.search(r"line (\d+)", msg)
-    return (int(m.group(1)) if m else None), msg
-
-
 def targets_from_toml(text_or_path, families_known: Sequence[str] | None = None) -> dict:
     """Read and validate targets from TOML: the ``[targets]`` table if there is one,
     else the top-level keys.
@@ -188,10 +180,7 @@ def targets_from_toml(text_or_path, families_known: Sequence[str] | None = None)
     DataFileError
         TOML syntax error, with the file and line.
     """
-    try:
-        import tomllib
-    except ModuleNotFoundError:  # Python 3.10
-        import tomli as tomllib
+    from .. import inputs
 
     if families_known is None:
         from ..catalogue.grades import FAMILIES as families_known
@@ -200,19 +189,16 @@ def targets_from_toml(text_or_path, families_known: Sequence[str] | None = None)
     if is_path:
         where = str(text_or_path)
         try:
-            text = Path(text_or_path).read_text(encoding="utf-8")
-        except (OSError, UnicodeDecodeError) as exc:
-            reason = getattr(exc, "strerror", None) or str(exc)
-            raise InputError("targets file", where, f"a readable UTF-8 TOML file ({reason})") from None
+            data, _ = inputs.read_file_bytes(text_or_path)
+            text = inputs.decode_text(data, where)
+        except DataFileError as exc:
+            raise InputError("targets file", where, f"a readable UTF-8 TOML file ({exc.problem})") from None
     elif isinstance(text_or_path, str):
-        where, text = "<targets TOML text>", text_or_path
+        where = "<targets TOML text>"
+        text = inputs.check_text("targets TOML text", text_or_path, max_chars=inputs.MAX_FILE_BYTES)
     else:
         raise InputError("text_or_path", text_or_path, "TOML text or a path to a TOML file")
-    try:
-        doc = tomllib.loads(text)
-    except tomllib.TOMLDecodeError as exc:
-        line, msg = _toml_problem(exc)
-        raise DataFileError(where, line, None, f"not valid TOML: {msg}") from None
+    doc = inputs.parse_toml(text, where)     # a UTF-8 byte-order mark is accepted, as by every reader
     table = doc["targets"] if "targets" in doc else doc
     if not isinstance(table, dict):
         raise InputError("targets", table, "a [targets] table", where)

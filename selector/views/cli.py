@@ -18,6 +18,9 @@ BANNER = f"CAUTION: {CAUTION}"
 
 def parse_step_text(text: str) -> dict:
     """``"temper temp_c=540 hours=2"`` → ``{"op": "temper", "temp_c": 540.0, "hours": 2.0}``."""
+    from .. import inputs
+
+    inputs.check_text("step", text, max_chars=1000)
     parts = text.replace(",", " ").split()
     if not parts:
         raise InputError("step", text, "'op key=value ...', e.g. 'temper temp_c=540 hours=2'")
@@ -35,10 +38,9 @@ def parse_step_text(text: str) -> dict:
 
 def _route_from_args(args) -> list:
     if args.route_json:
-        try:
-            return json.loads(args.route_json)
-        except json.JSONDecodeError as exc:
-            raise InputError("--route-json", args.route_json, f"valid JSON ({exc.msg})") from None
+        from .. import inputs
+
+        return inputs.parse_json(args.route_json, "", field="--route-json")
     if not args.steps:
         raise InputError("steps", None, "at least one step, e.g. \"harden quench=oil\" \"temper temp_c=540\"")
     return [parse_step_text(s) for s in args.steps]
@@ -130,10 +132,33 @@ def cmd_grades(args) -> int:
     return 0
 
 
+class UsageError(SelectorError, ValueError):
+    """A command line that argparse refuses (unknown option, missing or malformed value)."""
+
+
+class _Parser(argparse.ArgumentParser):
+    """argparse, but a usage error raises :class:`UsageError` (one line, exit 2 from
+    :func:`main`) instead of printing the usage and exiting."""
+
+    def error(self, message):
+        raise UsageError(f"{self.prog}: {message} (see '{self.prog} --help')")
+
+
+def positive_int(text: str) -> int:
+    """argparse type: a whole number >= 1 (``--top``)."""
+    try:
+        v = int(text)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"{text!r} is not a whole number") from None
+    if v < 1:
+        raise argparse.ArgumentTypeError(f"{v} is not allowed; give a whole number >= 1")
+    return v
+
+
 def build_parser() -> argparse.ArgumentParser:
-    ap = argparse.ArgumentParser(prog="selector", description="Grade and process-route selection for "
-                                 "load-bearing metal parts. " + CAUTION)
-    sub = ap.add_subparsers(dest="command", required=True)
+    ap = _Parser(prog="selector", description="Grade and process-route selection for "
+                 "load-bearing metal parts. " + CAUTION)
+    sub = ap.add_subparsers(dest="command", required=True, parser_class=_Parser)
 
     ev = sub.add_parser("evaluate", help="properties of one grade and route at a section")
     ev.add_argument("grade")
@@ -159,11 +184,25 @@ def build_parser() -> argparse.ArgumentParser:
     return ap
 
 
+def one_line(exc: BaseException, limit: int = 2000) -> str:
+    """The error's message on one line (newlines folded), at most ``limit`` characters."""
+    text = " ".join(str(exc).split())
+    return text if len(text) <= limit else text[:limit - 1] + "…"
+
+
 def main(argv=None) -> int:
+    """Run one command; return its exit code (0 done, 1 nothing found, 2 bad input:
+    a one-line ``error: ...`` message on stderr)."""
     ap = build_parser()
-    args = ap.parse_args(argv)
+    try:
+        args = ap.parse_args(argv)
+    except SelectorError as exc:
+        print(f"error: {one_line(exc)}", file=sys.stderr)
+        return 2
+    except SystemExit as exc:         # --help / --version: argparse has printed it
+        return int(exc.code or 0) if not isinstance(exc.code, str) else 2
     try:
         return args.func(args)
     except SelectorError as exc:
-        print(f"error: {exc}", file=sys.stderr)
+        print(f"error: {one_line(exc)}", file=sys.stderr)
         return 2

@@ -59,16 +59,27 @@ def cmd_pin(args) -> int:
 
 
 def _diameters(text: str) -> list:
+    """``"20,25,30"`` or ``"from:to:step"`` (mm) as a list; the size of a range is
+    checked before it is built (:func:`selector.design.sweep.diameter_range`)."""
+    from .. import inputs
+    from ..design.sweep import MAX_DIAMETERS, diameter_range
+
+    allowed = (f"a list '20,25,30' or a range 'from:to:step' in mm (finite, > 0, at most "
+               f"{MAX_DIAMETERS} values)")
+    inputs.check_text("--diameters", text, max_chars=10_000)
     try:
         if ":" in text:
             a, b, step = (float(x) for x in text.split(":"))
-            if step <= 0 or b < a:
-                raise ValueError
-            n = int(round((b - a) / step)) + 1
-            return [a + i * step for i in range(n)]
-        return [float(x) for x in text.split(",") if x.strip()]
+            try:
+                return [float(x) for x in diameter_range(a, b, step)]
+            except InputError as exc:
+                raise InputError("--diameters", text, f"{exc.field}={exc.value!s}: {exc.allowed}") from None
+        parts = [x for x in text.split(",") if x.strip()]
+        if len(parts) > MAX_DIAMETERS:
+            raise InputError("--diameters", f"{len(parts)} values", allowed)
+        return [float(x) for x in parts]
     except ValueError:
-        raise InputError("--diameters", text, "a list '20,25,30' or a range 'from:to:step' in mm") from None
+        raise InputError("--diameters", text, allowed) from None
 
 
 def cmd_sweep(args) -> int:
@@ -112,7 +123,9 @@ def add_commands(sub) -> None:
     p.add_argument("--diameter", type=float, required=True, help="pin diameter, mm")
     p.add_argument("--length", type=float, default=100.0, help="pin length, mm (mass and part cost)")
     p.add_argument("--select", action="store_true", help="also list the candidates for the targets")
-    p.add_argument("--top", type=int, default=15)
+    from .cli import positive_int
+
+    p.add_argument("--top", type=positive_int, default=15, help="show at most N candidates (N >= 1)")
     p.set_defaults(func=cmd_pin)
 
     s = sub.add_parser("sweep", help="cheapest robust candidate at each pin diameter")

@@ -68,7 +68,9 @@ def emit(df: pd.DataFrame, fmt: str, columns=TABLE_COLUMNS, title: str = "") -> 
         out = df.copy()
         if "route" in out:
             out["route"] = out["route"].apply(json.dumps)
-        out.to_csv(sys.stdout, index=False)
+        from .export import to_csv_text
+
+        sys.stdout.write(to_csv_text(out))
         return
     if title:
         print(title)
@@ -91,7 +93,7 @@ def cmd_select(args) -> int:
         emit(miss, args.format, ["grade", "route_text", "miss_score"] + moves,
              "No candidate meets every target. Nearest misses (how far each target would have to move):")
         return 1
-    if args.top:
+    if args.top is not None:
         res = res.head(args.top)
     if args.format == "table":
         res = res.assign(p_meet_pct=(100.0 * res["p_meet"]).round(1))
@@ -108,10 +110,15 @@ def cmd_alternatives(args) -> int:
 
     res = alternatives(args.grade, _route_from_args(args), args.diameter, thickness_mm=args.thickness,
                        length_mm=args.length, price_sheet=_price_sheet(args))
+    from .cli import _fmt
+
     ref = res.attrs["reference"]
-    title = (f"Reference: {ref['grade']} {ref['route_text']}: yield {ref['yield_mpa']:.0f} MPa, "
-             f"UTS {ref['uts_mpa']:.0f} MPa, elongation {ref['elongation_pct']:.1f} %, "
-             f"relative cost {ref['relative_cost']:.2f}/kg.\nCheaper candidates that reach at least that:")
+    basis = ("" if ref.get("basis", "strength") == "strength" else
+             f" (strength not estimated above the ASTM A370 tensile column; matched on hardness "
+             f"{_fmt(ref.get('hardness_hrc'), 1)} HRC)")
+    title = (f"Reference: {ref['grade']} {ref['route_text']}: yield {_fmt(ref.get('yield_mpa'))} MPa, "
+             f"UTS {_fmt(ref.get('uts_mpa'))} MPa, elongation {_fmt(ref.get('elongation_pct'), 1)} %, "
+             f"relative cost {ref['relative_cost']:.2f}/kg{basis}.\nCheaper candidates that reach at least that:")
     if res.empty:
         print(title + "\n  (none in the catalogue)\n\nCAUTION: " + CAUTION)
         return 1
@@ -143,7 +150,9 @@ def add_commands(sub) -> None:
                         "(default 0.9)")
     s.add_argument("--allow", action="append", metavar="RULE[,RULE]",
                    help="caution rule(s) not to rank as 'avoid', e.g. quench_cracking (repeatable)")
-    s.add_argument("--top", type=int, default=0, help="show only the first N rows")
+    from .cli import positive_int
+
+    s.add_argument("--top", type=positive_int, default=None, help="show only the first N rows (N >= 1)")
     _common(s)
     s.set_defaults(func=cmd_select)
 

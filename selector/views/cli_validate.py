@@ -8,10 +8,40 @@ import sys
 from .. import CAUTION
 
 
+def _writable_target(field: str, path: str | None, folder: bool = False) -> None:
+    """A clear error before any work when ``path`` cannot be written: its parent
+    (or, for a folder, an existing ancestor) must be a folder."""
+    from pathlib import Path
+
+    from ..errors import InputError
+
+    if path is None:
+        return
+    if "\x00" in path:
+        raise InputError(field, path, "a path without NUL characters")
+    p = Path(path)
+    if not folder and p.is_dir():
+        raise InputError(field, path, "a file path (this is a folder)")
+    if folder and p.exists() and not p.is_dir():
+        raise InputError(field, path, "a folder (this is a file)")
+    anc = p.parent
+    while not anc.exists() and anc != anc.parent:
+        anc = anc.parent
+    if not anc.is_dir():
+        raise InputError(field, path, f"a path inside a folder ({anc} is a file, not a folder)")
+
+
 def cmd_validate(args) -> int:
+    from ..errors import DataFileError
     from ..validation import report
 
-    res = report.run(args.out, args.figures)
+    _writable_target("--out", args.out)
+    _writable_target("--figures", args.figures, folder=True)
+    try:
+        res = report.run(args.out, args.figures)
+    except OSError as exc:
+        raise DataFileError(getattr(exc, "filename", None) or args.out, None, None,
+                            f"cannot be written ({exc.strerror or exc})") from None
     comp = res["comparisons"]
     n_cmp = int((comp["status"] == "compared").sum())
     n_not = int(comp.loc[comp["status"] != "compared", "case"].nunique())

@@ -28,7 +28,7 @@ import streamlit as st
 
 import selector
 from selector.catalogue.grades import FAMILIES
-from selector.errors import DataFileError, InputError, SelectorError
+from selector.errors import DataFileError, InputError, SelectorError, safe_repr
 
 # --------------------------------------------------------------------------- demo
 
@@ -250,7 +250,7 @@ def explain(exc: Exception, system: str, labels: Mapping | None = None) -> str:
         elif q and isinstance(v, (int, float)) and not isinstance(v, bool):
             shown = f"{v:.4g} {unit(q, SI)}"
         else:
-            shown = repr(v)
+            shown = safe_repr(v)
         return f"{label} = {shown}: {msg}"
     return msg
 
@@ -403,13 +403,10 @@ def service_context(plated: bool, plating: str | None, mating_material: str | No
 def check_service(context: Mapping) -> str | None:
     """The library's message when the service conditions are not valid (an unknown
     mating material, say), else None."""
+    from selector.design.cautions import check_context
+
     try:
-        from selector.design.cautions import cautions_for
-    except ImportError:
-        return None
-    probe = pd.DataFrame([{"grade": "4140", "family": "alloy_steel", "route_family": "quench_temper"}])
-    try:
-        cautions_for(probe, **context)
+        check_context(context, "service")
     except SelectorError as exc:
         return f"Service conditions: {exc}"
     return None
@@ -602,7 +599,11 @@ def ranking_summary(cand: pd.DataFrame) -> str:
 
 
 def to_csv(df: pd.DataFrame) -> bytes:
-    return df.to_csv(index=False).encode("utf-8")
+    """The table as UTF-8 CSV, text cells that could start a spreadsheet formula
+    neutralised (:func:`selector.views.export.neutralise`)."""
+    from selector.views.export import to_csv_text
+
+    return to_csv_text(df).encode("utf-8")
 
 
 # --------------------------------------------------------------------------- region geometry (display)
@@ -1189,9 +1190,15 @@ def parse_lengths(text: str | None, system: str) -> tuple[list | None, str | Non
     or ``(None, message)``."""
     allowed = f"diameters in {unit('length', system)} separated by commas, e.g. " + (
         "0.75, 1, 1.25" if system == US else "20, 25, 30")
+    from selector.inputs import MAX_RANGE_VALUES
+
+    if len(text or "") > 20 * MAX_RANGE_VALUES:
+        return None, f"Sweep diameters: {len(text)} characters; allowed: {allowed} (at most {MAX_RANGE_VALUES})"
     parts = [p.strip() for p in (text or "").replace(";", ",").split(",") if p.strip()]
     if not parts:
         return None, f"Sweep diameters: blank; allowed: {allowed}"
+    if len(parts) > MAX_RANGE_VALUES:
+        return None, f"Sweep diameters: {len(parts)} values; allowed: {allowed} (at most {MAX_RANGE_VALUES})"
     out = []
     for p in parts:
         try:
