@@ -1,0 +1,129 @@
+"""Hardness of a quenched (and tempered) structure of martensite, bainite and
+ferrite–pearlite: the linear mixture rule of Maynier, Jungmann & Dollet (1978).
+
+    HV = X_M·HV_M' + X_B·HV_B' + X_FP·HV_FP'
+
+with, at each position of the section:
+
+* X_M = martensite fraction of the hardenability chain
+  (``as_quenched_profile``'s ``martensite_pct`` / 100: the one martensite figure the
+  tool reports and uses);
+* X_B = (1 − X_M)·s_B and X_FP = (1 − X_M)·(1 − s_B), s_B the bainite share of the
+  non-martensitic products at the local cooling rate
+  (:func:`selector.models.transformation.bainite_share`, Li et al. 1998 kinetics);
+* as quenched: HV_B and HV_FP from composition and the local cooling rate at 700 °C
+  (:func:`selector.models.phase_hardness.phase_hardness_hv`, Maynier et al. 1978);
+  HV_M the fresh-martensite hardness of the carbon (ASTM A255 IH, via E140);
+* tempered, each constituent by its own behaviour:
+
+  - martensite along the Hollomon–Jaffe master surface,
+    HV_M' = HV_TM(P) (:func:`selector.models.tempering.tempered_martensite_hv`);
+  - bainite softens much less: HV_B' = min(HV_B, HV_TB(Pa), HV_TM) with HV_TB
+    Maynier's tempered-bainite equation (:func:`phase_hardness.tempered_bainite_hv`);
+  - ferrite–pearlite barely softens at tempering temperatures:
+    HV_FP' = min(HV_FP, HV_TM) (it keeps its as-quenched hardness until the tempered
+    martensite of the same steel falls to it; common practice, from memory).
+
+No constituent ends harder than it was quenched or than the tempered martensite of
+the same steel at the same temper, so tempering never hardens the mixture.
+
+References
+----------
+Ph. Maynier, B. Jungmann, J. Dollet, "Creusot-Loire system for the prediction of the
+mechanical properties of low alloy steels", in *Hardenability Concepts with
+Applications to Steel*, TMS-AIME 1978, pp. 518–545 (mixture rule, phase and tempered
+hardness equations; coefficients from memory).
+J.H. Hollomon, L.D. Jaffe, Trans. AIME 162 (1945) 223.
+M.V. Li et al., Metall. Mater. Trans. B 29B (1998) 661.
+"""
+from __future__ import annotations
+
+import numpy as np
+
+from ..errors import InputError
+from . import conversions, phase_hardness, tempering, transformation
+from .martensite import martensite_hardness_hrc
+
+
+def constituents(comp, martensite_pct, cooling_rate_c_s) -> dict:
+    """Fractions and as-quenched hardness of the constituents at each position.
+
+    Parameters
+    ----------
+    comp : mapping
+        Element → wt %, arrays broadcasting with the other inputs (e.g. shape (n, 1)).
+    martensite_pct : array_like
+        Martensite of the hardenability chain, % (e.g. shape (n, n_pos)).
+    cooling_rate_c_s : array_like
+        Cooling rate at 700 °C at the same positions, °C/s (> 0).
+
+    Returns
+    -------
+    dict of ndarray
+        ``x_m``, ``x_b``, ``x_fp`` (fractions, sum 1); ``hv_m``, ``hv_b``, ``hv_fp`` (HV).
+
+    References
+    ----------
+    Maynier, Jungmann & Dollet (1978); Li et al. (1998) for the bainite share.
+    """
+    m = np.asarray(martensite_pct, float)
+    if np.any(m < -1e-9) or np.any(m > 100 + 1e-9):
+        raise InputError("martensite_pct", martensite_pct, "percentages 0-100")
+    x_m = np.clip(m / 100.0, 0.0, 1.0)
+    rate = np.asarray(cooling_rate_c_s, float)
+    share = transformation.bainite_share(comp, rate)
+    _, hv_b, hv_fp = phase_hardness.phase_hardness_hv(comp, rate)
+    c = np.asarray(comp["C"], float)
+    hv_m = conversions.hrc_to_hv(martensite_hardness_hrc(c, 99.9))
+    shape = np.broadcast_shapes(x_m.shape, np.shape(share), np.shape(hv_b), np.shape(hv_m))
+    b = lambda a: np.broadcast_to(a, shape)  # noqa: E731
+    x_m = b(x_m)
+    rest = 1.0 - x_m
+    return {"x_m": x_m, "x_b": rest * b(share), "x_fp": rest * (1.0 - b(share)),
+            "hv_m": b(hv_m), "hv_b": b(np.minimum(hv_b, hv_m)), "hv_fp": b(np.minimum(hv_fp, hv_m))}
+
+
+def mixture_hv(parts: dict, temp_c=None, hours=None, comp=None) -> np.ndarray:
+    """Hardness of the structure ``parts`` (from :func:`constituents`), as quenched
+    (``temp_c`` None) or after tempering ``temp_c`` °C for ``hours`` h.
+
+    HV = X_M·HV_M' + X_B·HV_B' + X_FP·HV_FP'  (Maynier et al. 1978), the tempered
+    constituent hardnesses as in the module docstring.
+
+    Parameters
+    ----------
+    parts : dict
+        Output of :func:`constituents`.
+    temp_c : array_like, optional
+        Tempering temperature, °C (NaN: not tempered at that state).
+    hours : array_like, optional
+        Time at temperature, h (> 0; ignored where ``temp_c`` is NaN).
+    comp : mapping, optional
+        Composition (required when tempering).
+
+    Returns
+    -------
+    ndarray
+        HV, shape of the fractions.
+
+    References
+    ----------
+    Maynier, Jungmann & Dollet (1978); Hollomon & Jaffe (1945).
+    """
+    x_m, x_b, x_fp = parts["x_m"], parts["x_b"], parts["x_fp"]
+    hv_m, hv_b, hv_fp = parts["hv_m"], parts["hv_b"], parts["hv_fp"]
+    aq = x_m * hv_m + x_b * hv_b + x_fp * hv_fp
+    if temp_c is None:
+        return aq
+    if comp is None:
+        raise InputError("comp", None, "a composition when tempering")
+    t = np.asarray(temp_c, float)
+    h = np.asarray(hours, float)
+    ok = np.isfinite(t)
+    t1 = np.where(ok, t, 200.0)
+    h1 = np.where(ok & np.isfinite(h), h, 1.0)
+    hv_tm = np.minimum(tempering.tempered_martensite_hv(comp, t1, h1), hv_m)
+    hv_tb = np.minimum(np.minimum(hv_b, phase_hardness.tempered_bainite_hv(comp, t1, h1)), hv_tm)
+    hv_tfp = np.minimum(hv_fp, hv_tm)
+    tempered = x_m * hv_tm + x_b * hv_tb + x_fp * hv_tfp
+    return np.where(ok, np.minimum(tempered, aq), aq)
