@@ -32,7 +32,7 @@ from selector.models import conversions, tempering as tp  # noqa: E402
 NAME = "tempering"
 SOURCE_FILE = "data/tempering_points.csv"
 OUT = ROOT / "data" / "fits"
-UNITS = {"1": "HV", "C": "HV/wt%", "s": "HV", "C*a": "HV/wt%", "Mo*a": "HV/wt%", "V*a": "HV/wt%"}
+UNITS = {"1": "HV", "C": "HV/wt%", "s": "HV", "C*s": "HV/wt%", "Mo*a": "HV/wt%", "V*a": "HV/wt%"}
 RANGE_UNITS = {"temp_c": "degC", "hours": "h", "P_1000": "K/1000"}
 CV_SOURCE = "leave-one-grade-out refit by scripts/fit_tempering.py"
 SOURCE = "least squares on the fully hardened rows of data/tempering_points.csv (scripts/fit_tempering.py)"

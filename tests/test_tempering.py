@@ -125,14 +125,17 @@ def test_calibration_1030_carbon_steel_rows(temp_c, hb_pub):
     assert hrc(C1030, temp_c, 2.0) == pytest.approx(float(cv.hv_to_hrc(cv.hb_to_hv(hb_pub))), abs=5.5)
 
 
-def test_calibration_52100_producer_table():
+def test_52100_producer_table_outside_the_fit():
     # 52100 oil quenched from 815 C, tempered 205/315 C: 60-62 / 56-58 HRC (producer
     # heat-treatment table, reproduction bladeforums.com thread 323095; grade identification
-    # partial, see data/tempering_points.csv).  In-sample.  Tolerance 5 HRC: the grade's
-    # leave-one-grade-out error is 5.0 HRC (data/fits/tempering_cv.csv).
+    # partial).  NOT fitted (data/tempering_points.csv: austenitized below Acm, so the
+    # martensite holds less than the nominal carbon), and outside the fitted carbon range:
+    # the route warns.  The surface at the nominal 1.04 % C must not fall below these
+    # values (its martensite would hold more carbon than the real one).
     c52100 = {"C": 1.04, "Mn": 0.35, "Si": 0.25, "Cr": 1.45}
-    assert hrc(c52100, 205.0, 2.0) == pytest.approx(61.0, abs=5.0)
-    assert hrc(c52100, 315.0, 2.0) == pytest.approx(57.0, abs=5.0)
+    assert hrc(c52100, 205.0, 2.0) >= 60.0
+    assert hrc(c52100, 315.0, 2.0) >= 56.0
+    assert tp.check_validity(c52100, 205.0, 2.0)
 
 
 # --- the shipped coefficients are what the offline fit script produces ---------------
@@ -175,12 +178,12 @@ def test_cross_validation_figures_and_form():
     # scripts/fit_tempering.py); this guards them against regression
     res = _script("fit_tempering").fit()
     assert res["pooled_logo_median_hrc"] < 2.5 and res["pooled_logo_p90_hrc"] < 7.0
-    assert set(res["cv"]["grade"]) >= {"4140", "4340", "52100", "1030"}
+    assert set(res["cv"]["grade"]) >= {"4140", "4340", "1030"}
     k = dict(zip(tp.FEATURES, tp.coefficients()))
     # the surface softens with P, carbon's effect weakens at high P, and Mo / V resist
     # softening (Grange, Hribal & Porter 1977: the effect of carbon decreases and the alloy
     # effects grow with tempering temperature)
-    assert k["s"] < 0 and k["C*a"] < 0 and k["Mo*a"] > 0 and k["V*a"] > 0
+    assert k["s"] < 0 and k["C*s"] < 0 and k["Mo*a"] > 0 and k["V*a"] > 0
 
 
 def test_package_does_not_fit_at_import():
@@ -200,9 +203,9 @@ def test_validity_ranges_registered_from_the_fit():
     rng = tp.fitted_range()
     v = validity.get("tempering_hv")
     assert v.ranges["C"][:2] == (pytest.approx(rng["C"][0]), pytest.approx(rng["C"][1]))
-    assert rng["C"][0] == pytest.approx(0.30) and rng["C"][1] == pytest.approx(1.04)
+    assert rng["C"][0] == pytest.approx(0.30) and rng["C"][1] == pytest.approx(0.60)
     assert validity.check("tempering_hv", Mo=0.5)
-    assert validity.check("tempering_hv", C=1.2)
+    assert validity.check("tempering_hv", C=0.8)   # high-carbon martensite: extrapolated, warned
     assert not validity.check("tempering_hv", C=0.4, Mo=0.2, P_1000=15.0)
     assert validity.get("hollomon_jaffe").ranges["temp_c"][:2] == (150.0, 705.0)
     # the route's check: a 704 C temper of a 0.4 % C steel lies beyond the fitted P

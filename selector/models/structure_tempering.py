@@ -42,7 +42,11 @@ import numpy as np
 
 from ..errors import InputError
 from . import conversions, phase_hardness, tempering, transformation
+from .composition import el
 from .martensite import martensite_hardness_hrc
+
+#: elements the constituent models use (Maynier 1978; Li et al. 1998)
+ELEMENTS = ("C", "Mn", "Si", "Ni", "Cr", "Mo", "V")
 
 
 def constituents(comp, martensite_pct, cooling_rate_c_s) -> dict:
@@ -69,18 +73,28 @@ def constituents(comp, martensite_pct, cooling_rate_c_s) -> dict:
     m = np.asarray(martensite_pct, float)
     if np.any(m < -1e-9) or np.any(m > 100 + 1e-9):
         raise InputError("martensite_pct", martensite_pct, "percentages 0-100")
-    x_m = np.clip(m / 100.0, 0.0, 1.0)
     rate = np.asarray(cooling_rate_c_s, float)
-    share = transformation.bainite_share(comp, rate)
-    _, hv_b, hv_fp = phase_hardness.phase_hardness_hv(comp, rate)
-    c = np.asarray(comp["C"], float)
-    hv_m = conversions.hrc_to_hv(martensite_hardness_hrc(c, 99.9))
-    shape = np.broadcast_shapes(x_m.shape, np.shape(share), np.shape(hv_b), np.shape(hv_m))
-    b = lambda a: np.broadcast_to(a, shape)  # noqa: E731
-    x_m = b(x_m)
+    shape = np.broadcast_shapes(m.shape, rate.shape, *[np.shape(comp[e]) for e in ELEMENTS if e in comp])
+    shape2 = (int(np.prod(shape[:-1])) if len(shape) > 1 else 1, shape[-1] if shape else 1)
+    # the structure does not depend on the temper: evaluate each distinct state (composition,
+    # rates and martensite across the section) once -- the catalogue's tempers share a few hundred
+    cols = [np.broadcast_to(np.asarray(el(comp, e), float), shape).reshape(shape2) for e in ELEMENTS]
+    m2 = np.broadcast_to(m, shape).reshape(shape2)
+    r2 = np.broadcast_to(rate, shape).reshape(shape2)
+    uniq, inverse = transformation.unique_rows(np.concatenate(cols + [r2, m2], axis=1))
+    npos = shape2[1]
+    k = len(ELEMENTS) * npos
+    u_comp = {e: uniq[:, i * npos:(i + 1) * npos] for i, e in enumerate(ELEMENTS)}
+    u_rate = uniq[:, k:k + npos]
+    u_m = uniq[:, k + npos:]
+    share = transformation.bainite_share(u_comp, u_rate)
+    _, hv_b, hv_fp = phase_hardness.phase_hardness_hv(u_comp, u_rate)
+    hv_m = np.broadcast_to(conversions.hrc_to_hv(martensite_hardness_hrc(u_comp["C"], 99.9)), u_rate.shape)
+    x_m = np.clip(u_m / 100.0, 0.0, 1.0)
     rest = 1.0 - x_m
-    return {"x_m": x_m, "x_b": rest * b(share), "x_fp": rest * (1.0 - b(share)),
-            "hv_m": b(hv_m), "hv_b": b(np.minimum(hv_b, hv_m)), "hv_fp": b(np.minimum(hv_fp, hv_m))}
+    out = {"x_m": x_m, "x_b": rest * share, "x_fp": rest * (1.0 - share),
+           "hv_m": hv_m, "hv_b": np.minimum(hv_b, hv_m), "hv_fp": np.minimum(hv_fp, hv_m)}
+    return {key: np.asarray(v)[inverse].reshape(shape) for key, v in out.items()}
 
 
 def mixture_hv(parts: dict, temp_c=None, hours=None, comp=None) -> np.ndarray:
