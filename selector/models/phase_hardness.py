@@ -115,7 +115,9 @@ def tempered_bainite_hv(comp, temp_c, hours):
     HV = 262 + 162C − 349Si − 64Mn − 6Ni − 186Cr − 458Mo − 857V
          + (1000/Pa)·(−149 + 43C + 336Si + 79Mn + 16Ni + 196Cr + 498Mo + 1094V)
 
-    with Pa the tempering parameter of :func:`maynier_tempering_parameter_k`.  Bainite
+    with Pa the tempering parameter of :func:`maynier_tempering_parameter_k`; where the
+    bracket is negative (lean C–Mn steels) it is held at 0, so the hardness never rises
+    with the tempering parameter.  Bainite
     softens much less than martensite: the route takes the smaller of this value and
     the as-quenched bainite hardness of :func:`phase_hardness_hv` (tempering never
     hardens a bainite of these steels), see :mod:`selector.models.structure_tempering`.
@@ -152,4 +154,6 @@ def tempered_bainite_hv(comp, temp_c, hours):
     c, si, mn, ni, cr, mo, v = (el(comp, e) for e in ("C", "Si", "Mn", "Ni", "Cr", "Mo", "V"))
     a = 262 + 162 * c - 349 * si - 64 * mn - 6 * ni - 186 * cr - 458 * mo - 857 * v
     b = -149 + 43 * c + 336 * si + 79 * mn + 16 * ni + 196 * cr + 498 * mo + 1094 * v
-    return a + (1000.0 / pa) * b
+    # a negative slope (lean C-Mn steels without Si, Cr, Mo) would harden the bainite as the
+    # temper rises: held at 0 there, so the result never rises with the tempering parameter
+    return a + (1000.0 / pa) * np.maximum(b, 0.0)

@@ -226,7 +226,9 @@ def bainite_share(comp, cooling_rate_c_s, grain_size_astm=8.0, step_c=SHARE_STEP
     (:func:`selector.routes.quench_response.as_quenched_profile`).  Where the kinetics
     give less than 2 % non-martensitic product at the local rate (they then say
     nothing about its nature), the split at a 4× and then a 16× slower rate is used,
-    and where those too are empty, 0 (ferrite–pearlite).
+    and where those too are empty, 1 (bainite: a steel that forms nothing at 1/16 of the
+    rate forms bainite before ferrite–pearlite, and a faster quench must not give a
+    softer product than a slower one).
 
     Evaluated once per distinct (composition, rate) pair: the states of one grade and
     section share them, so the whole catalogue costs a few hundred kinetics runs.
@@ -276,5 +278,8 @@ def bainite_share(comp, cooling_rate_c_s, grain_size_astm=8.0, step_c=SHARE_STEP
         ok = non_m > SHARE_MIN_FRACTION
         out[todo[ok]] = fr["bainite"][ok] / non_m[ok]
         todo = todo[~ok]
-    out[todo] = 0.0
+    # nothing forms even at the slowest rate tried: a steel that hardenable forms bainite
+    # before ferrite-pearlite, and the share must not fall as the rate rises (a faster quench
+    # must not give a softer product)
+    out[todo] = 1.0
     return np.clip(out, 0.0, 1.0)[inverse.reshape(-1)].reshape(shape)
