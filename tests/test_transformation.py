@@ -90,3 +90,14 @@ def test_unique_rows_round_trip():
     t = np.array([[1.0, 2.0], [3.0, 4.0], [1.0, 2.0]])
     u, inv = tr.unique_rows(t)
     assert len(u) == 2 and np.array_equal(u[inv], t)
+
+
+def test_bainite_share_never_falls_as_the_rate_rises():
+    # faster cooling suppresses ferrite and pearlite before bainite (common practice): the share
+    # is non-decreasing in the rate, so a faster quench never gives a softer product
+    import selector
+    rates = np.geomspace(0.01, 5000.0, 300)
+    for g in ("4140", "5140", "4130", "1045", "1144", "41CrAlMo7-10"):
+        s = tr.bainite_share(selector.grade(g).composition(), rates)
+        assert np.all(np.diff(s) >= -1e-12), g
+        assert np.all((s >= 0) & (s <= 1))

@@ -194,9 +194,8 @@ def continuous_cooling_fractions(comp, cooling_rate_c_s, austenitize_c=845.0, ba
             "retained_austenite": aust_at_ms - fM}
 
 
-#: rate divisors tried in turn: the local rate, then slower ones where the kinetics give no
-#: non-martensitic product at the faster rate
-SHARE_SLOWER = (1.0, 4.0, 16.0)
+#: log-spaced cooling rates (at 700 °C, °C/s) on which the share is tabulated per composition
+SHARE_GRID_C_S = np.geomspace(0.05, 2000.0, 25)
 #: non-martensitic fraction below which the split at a rate is taken as undefined
 SHARE_MIN_FRACTION = 0.02
 SHARE_ELEMENTS = ("C", "Mn", "Si", "Ni", "Cr", "Mo")
@@ -219,26 +218,28 @@ def unique_rows(table):
 
 def bainite_share(comp, cooling_rate_c_s, grain_size_astm=8.0, step_c=SHARE_STEP_C):
     """Share of bainite in the non-martensitic products of a quench,
-    B / (B + F + P), from the Li et al. (1998) kinetics at the local cooling rate.
+    B / (B + F + P), from the Li et al. (1998) kinetics, as a function of the cooling rate.
 
     Only the *split* of the non-martensitic part is taken from these kinetics; the
     martensite fraction itself comes from the hardenability chain
-    (:func:`selector.routes.quench_response.as_quenched_profile`).  Where the kinetics
-    give less than 2 % non-martensitic product at the local rate (they then say
-    nothing about its nature), the split at a 4× and then a 16× slower rate is used,
-    and where those too are empty, 1 (bainite: a steel that forms nothing at 1/16 of the
-    rate forms bainite before ferrite–pearlite, and a faster quench must not give a
-    softer product than a slower one).
+    (:func:`selector.routes.quench_response.as_quenched_profile`).
 
-    Evaluated once per distinct (composition, rate) pair: the states of one grade and
-    section share them, so the whole catalogue costs a few hundred kinetics runs.
+    For each distinct composition the kinetics run on a fixed log-spaced grid of rates
+    (:data:`SHARE_GRID_C_S`, 0.05–2000 °C/s).  Where they form less than 2 % of
+    non-martensitic products at a grid rate (they then say nothing about their nature),
+    the share at the next slower rate that forms some is carried up; where none forms
+    even at the slowest rate, the share is 1.  The share is then made non-decreasing in
+    the rate (a running maximum from slow to fast: faster cooling suppresses the
+    ferrite and pearlite reactions before the bainite one, common practice; it also
+    keeps a faster quench from giving a softer product) and interpolated linearly in
+    log rate.
 
     Parameters
     ----------
     comp : mapping
         Element → wt %, arrays broadcasting with ``cooling_rate_c_s``.
     cooling_rate_c_s : array_like
-        Cooling rate at 700 °C, °C/s (> 0).
+        Cooling rate at 700 °C, °C/s (> 0; held inside the grid).
     grain_size_astm : float
         ASTM austenite grain size.
     step_c : float
@@ -262,24 +263,26 @@ def bainite_share(comp, cooling_rate_c_s, grain_size_astm=8.0, step_c=SHARE_STEP
     if np.any(np.isnan(rate)) or np.any(rate <= 0):
         raise InputError("cooling_rate_c_s", cooling_rate_c_s, "rates > 0 C/s")
     shape = np.broadcast_shapes(rate.shape, *[np.shape(comp[e]) for e in SHARE_ELEMENTS if e in comp])
-    cols = [np.broadcast_to(np.asarray(el(comp, e), float), shape).ravel() for e in SHARE_ELEMENTS]
-    table = np.stack(cols + [np.broadcast_to(rate, shape).ravel()], axis=1)
-    uniq, inverse = unique_rows(table)
-    u_comp = {e: uniq[:, i] for i, e in enumerate(SHARE_ELEMENTS)}
-    u_rate = uniq[:, -1]
-    out = np.full(len(u_rate), np.nan)
-    todo = np.arange(len(u_rate))
-    for f in SHARE_SLOWER:          # the fastest rate with a defined split wins
-        if todo.size == 0:
-            break
-        fr = continuous_cooling_fractions({e: v[todo] for e, v in u_comp.items()}, u_rate[todo] / f,
-                                          grain_size_astm=grain_size_astm, step_c=step_c)
-        non_m = fr["bainite"] + fr["ferrite"] + fr["pearlite"]
-        ok = non_m > SHARE_MIN_FRACTION
-        out[todo[ok]] = fr["bainite"][ok] / non_m[ok]
-        todo = todo[~ok]
-    # nothing forms even at the slowest rate tried: a steel that hardenable forms bainite
-    # before ferrite-pearlite, and the share must not fall as the rate rises (a faster quench
-    # must not give a softer product)
-    out[todo] = 1.0
-    return np.clip(out, 0.0, 1.0)[inverse.reshape(-1)].reshape(shape)
+    cols = np.stack([np.broadcast_to(np.asarray(el(comp, e), float), shape).ravel() for e in SHARE_ELEMENTS],
+                    axis=1)
+    uniq, inverse = unique_rows(cols)
+    grid = SHARE_GRID_C_S
+    k, g = len(uniq), len(grid)
+    fr = continuous_cooling_fractions({e: np.repeat(uniq[:, i], g) for i, e in enumerate(SHARE_ELEMENTS)},
+                                      np.tile(grid, k), grain_size_astm=grain_size_astm, step_c=step_c)
+    non_m = (fr["bainite"] + fr["ferrite"] + fr["pearlite"]).reshape(k, g)
+    raw = np.where(non_m > SHARE_MIN_FRACTION, fr["bainite"].reshape(k, g) / np.maximum(non_m, 1e-12), np.nan)
+    table = np.empty((k, g))
+    last = np.full(k, np.nan)
+    for j in range(g):                      # carry the last defined (slower) share up
+        last = np.where(np.isfinite(raw[:, j]), raw[:, j], last)
+        table[:, j] = last
+    table = np.where(np.isfinite(table), table, 1.0)
+    table = np.maximum.accumulate(np.clip(table, 0.0, 1.0), axis=1)
+    x = (np.log(np.clip(rate, grid[0], grid[-1])) - np.log(grid[0])) / (np.log(grid[-1]) - np.log(grid[0])) * (g - 1)
+    x = np.broadcast_to(x, shape).ravel()
+    j0 = np.clip(np.floor(x).astype(int), 0, g - 2)
+    w = x - j0
+    rows = inverse.reshape(-1)
+    out = table[rows, j0] * (1.0 - w) + table[rows, j0 + 1] * w
+    return out.reshape(shape)
