@@ -216,6 +216,39 @@ def unique_rows(table):
     return t[first], inverse.reshape(-1)
 
 
+#: share tables already computed, keyed by (composition row bytes, grain size, step): the
+#: table depends on the composition only, so every section and route reuses it
+_SHARE_CACHE: dict = {}
+_SHARE_CACHE_MAX = 20_000
+
+
+def _share_tables(uniq, grain_size_astm, step_c):
+    """Non-decreasing share tables (rows of ``uniq`` × :data:`SHARE_GRID_C_S`), cached."""
+    keys = [(row.tobytes(), grain_size_astm, step_c) for row in uniq]
+    todo = [i for i, k in enumerate(keys) if k not in _SHARE_CACHE]
+    if todo:
+        if len(_SHARE_CACHE) + len(todo) > _SHARE_CACHE_MAX:
+            _SHARE_CACHE.clear()
+        new = uniq[todo]
+        grid = SHARE_GRID_C_S
+        k, g = len(new), len(grid)
+        fr = continuous_cooling_fractions({e: np.repeat(new[:, i], g) for i, e in enumerate(SHARE_ELEMENTS)},
+                                          np.tile(grid, k), grain_size_astm=grain_size_astm, step_c=step_c)
+        non_m = (fr["bainite"] + fr["ferrite"] + fr["pearlite"]).reshape(k, g)
+        raw = np.where(non_m > SHARE_MIN_FRACTION, fr["bainite"].reshape(k, g) / np.maximum(non_m, 1e-12),
+                       np.nan)
+        table = np.empty((k, g))
+        last = np.full(k, np.nan)
+        for j in range(g):                      # carry the last defined (slower) share up
+            last = np.where(np.isfinite(raw[:, j]), raw[:, j], last)
+            table[:, j] = last
+        table = np.where(np.isfinite(table), table, 1.0)
+        table = np.maximum.accumulate(np.clip(table, 0.0, 1.0), axis=1)
+        for i, row in zip(todo, table):
+            _SHARE_CACHE[keys[i]] = row
+    return np.stack([_SHARE_CACHE[k] for k in keys]) if keys else np.zeros((0, len(SHARE_GRID_C_S)))
+
+
 def bainite_share(comp, cooling_rate_c_s, grain_size_astm=8.0, step_c=SHARE_STEP_C):
     """Share of bainite in the non-martensitic products of a quench,
     B / (B + F + P), from the Li et al. (1998) kinetics, as a function of the cooling rate.
@@ -267,18 +300,8 @@ def bainite_share(comp, cooling_rate_c_s, grain_size_astm=8.0, step_c=SHARE_STEP
                     axis=1)
     uniq, inverse = unique_rows(cols)
     grid = SHARE_GRID_C_S
-    k, g = len(uniq), len(grid)
-    fr = continuous_cooling_fractions({e: np.repeat(uniq[:, i], g) for i, e in enumerate(SHARE_ELEMENTS)},
-                                      np.tile(grid, k), grain_size_astm=grain_size_astm, step_c=step_c)
-    non_m = (fr["bainite"] + fr["ferrite"] + fr["pearlite"]).reshape(k, g)
-    raw = np.where(non_m > SHARE_MIN_FRACTION, fr["bainite"].reshape(k, g) / np.maximum(non_m, 1e-12), np.nan)
-    table = np.empty((k, g))
-    last = np.full(k, np.nan)
-    for j in range(g):                      # carry the last defined (slower) share up
-        last = np.where(np.isfinite(raw[:, j]), raw[:, j], last)
-        table[:, j] = last
-    table = np.where(np.isfinite(table), table, 1.0)
-    table = np.maximum.accumulate(np.clip(table, 0.0, 1.0), axis=1)
+    g = len(grid)
+    table = _share_tables(uniq, float(grain_size_astm), float(step_c))
     x = (np.log(np.clip(rate, grid[0], grid[-1])) - np.log(grid[0])) / (np.log(grid[-1]) - np.log(grid[0])) * (g - 1)
     x = np.broadcast_to(x, shape).ravel()
     j0 = np.clip(np.floor(x).astype(int), 0, g - 2)
