@@ -18,11 +18,12 @@ with, at each position of the section:
 
   - martensite along the Hollomon–Jaffe master surface,
     HV_M' = HV_TM(P) (:func:`selector.models.tempering.tempered_martensite_hv`);
-  - bainite softens much less: HV_B' = min(HV_B, HV_TM, max(HV_TB(Pa), HV_B − (HV_M − HV_TM)))
+  - bainite softens much less: HV_B' = min(HV_B, HV_TM, max(HV_TB(Pa), HV_B − (HV_M − HV_TM), HV_FP'))
     with HV_TB Maynier's tempered-bainite equation (:func:`phase_hardness.tempered_bainite_hv`):
     it never loses more hardness than the martensite of the same steel at the same
-    temper (the recalled equation alone would soften the bainite of lean C–Mn steels
-    by 40 % at 150 °C; bound: common practice, from memory);
+    temper, nor end softer than the ferrite–pearlite of the same steel (the recalled
+    equation alone would soften the bainite of lean C–Mn steels by 40 % at 150 °C, and
+    below ferrite–pearlite at 626 °C for 4320; bounds: common practice, from memory);
   - ferrite–pearlite barely softens at tempering temperatures:
     HV_FP' = min(HV_FP, HV_TM) (it keeps its as-quenched hardness until the tempered
     martensite of the same steel falls to it; common practice, from memory).
@@ -140,9 +141,11 @@ def mixture_hv(parts: dict, temp_c=None, hours=None, comp=None) -> np.ndarray:
     t1 = np.where(ok, t, 200.0)
     h1 = np.where(ok & np.isfinite(h), h, 1.0)
     hv_tm = np.minimum(tempering.tempered_martensite_hv(comp, t1, h1), hv_m)
-    # bainite never loses more than the martensite of the same steel at the same temper
-    hv_tb = np.maximum(phase_hardness.tempered_bainite_hv(comp, t1, h1), hv_b - (hv_m - hv_tm))
-    hv_tb = np.minimum(np.minimum(hv_b, hv_tb), hv_tm)
     hv_tfp = np.minimum(hv_fp, hv_tm)
+    # bainite never loses more than the martensite of the same steel at the same temper, and
+    # never ends softer than its ferrite-pearlite at the same temper
+    hv_tb = np.maximum(np.maximum(phase_hardness.tempered_bainite_hv(comp, t1, h1), hv_b - (hv_m - hv_tm)),
+                       hv_tfp)
+    hv_tb = np.minimum(np.minimum(hv_b, hv_tb), hv_tm)
     tempered = x_m * hv_tm + x_b * hv_tb + x_fp * hv_tfp
     return np.where(ok, np.minimum(tempered, aq), aq)
