@@ -63,3 +63,41 @@ def test_comparison_with_h_bands_is_measured():
         ok += int(((hrc <= hi + 1) & (hrc >= lo - 1)).sum())
         n += len(d)
     assert ok / n >= 0.85
+
+
+def test_bainite_share_alloy_against_plain_carbon():
+    # common practice: in oil-quenched alloy steels (4140, 4340) the non-martensitic product
+    # at bar-centre rates is bainite; in plain-carbon steels (1045) it is ferrite-pearlite
+    import selector
+    share = {g: tr.bainite_share(selector.grade(g).composition(), np.array([16.0, 3.0]))
+             for g in ("4140", "4340", "1045")}
+    assert np.all(share["4140"] > 0.8) and np.all(share["4340"] > 0.8)
+    assert np.all(share["1045"] < 0.1)
+
+
+def test_bainite_share_step_is_fine_enough():
+    # SHARE_STEP_C (10 C) against a 2 C integration, over the quench-and-temper steels
+    import selector
+    rates = np.geomspace(0.3, 200.0, 15)
+    for g in ("4140", "4340", "5140", "4130", "8640", "1045", "1144", "8620", "4320"):
+        comp = selector.grade(g).composition()
+        a = tr.bainite_share(comp, rates, step_c=2.0)
+        b = tr.bainite_share(comp, rates)
+        assert np.max(np.abs(a - b)) < 0.03, g
+
+
+def test_unique_rows_round_trip():
+    t = np.array([[1.0, 2.0], [3.0, 4.0], [1.0, 2.0]])
+    u, inv = tr.unique_rows(t)
+    assert len(u) == 2 and np.array_equal(u[inv], t)
+
+
+def test_bainite_share_never_falls_as_the_rate_rises():
+    # faster cooling suppresses ferrite and pearlite before bainite (common practice): the share
+    # is non-decreasing in the rate, so a faster quench never gives a softer product
+    import selector
+    rates = np.geomspace(0.01, 5000.0, 300)
+    for g in ("4140", "5140", "4130", "1045", "1144", "41CrAlMo7-10"):
+        s = tr.bainite_share(selector.grade(g).composition(), rates)
+        assert np.all(np.diff(s) >= -1e-12), g
+        assert np.all((s >= 0) & (s <= 1))

@@ -2,8 +2,8 @@
 
 Given the tensile strength of a quenched-and-tempered (tempered-martensite) steel,
 estimate its yield strength, elongation and reduction of area.  The correlations are
-fitted by least squares, per family, to the fully hardened rows of
-``data/tempering_points.csv`` (ASM Metals Handbook Vol. 1 (1990) table of typical
+fitted OFFLINE by ``scripts/fit_correlations.py`` (least squares, per family) to the
+fully hardened rows of ``data/tempering_points.csv`` (ASM Metals Handbook Vol. 1 (1990) table of typical
 properties of quenched and tempered 25 mm bars, plus a 4340 vendor sheet):
 
     yield        YS  = UTS · clip(r0 + r1·T/100, 0.50, 0.98)           (T = tempering °C)
@@ -17,6 +17,9 @@ doi 10.1177/02670836251331815; coefficients there not obtained, so fitted here).
 SAE J413 (1990) states that at equal hardness alloy steels show a higher reduction
 of area than plain-carbon steels; the carbon-steel RA is capped at the alloy-steel
 line to respect that where the carbon data (586–1120 MPa) would cross it.
+
+The package reads the coefficients from ``data/fits/correlations_coefficients.csv``; it
+never fits at import or first call.
 
 Families: ``carbon_steel``, ``alloy_steel``; ``carburizing_steel`` and
 ``nitriding_steel`` (their cores) use the alloy-steel coefficients, and so does
@@ -41,9 +44,8 @@ import functools
 
 import numpy as np
 
-from ..errors import InputError, check_choice
-from . import validity
-from .tempering import _points
+from ..errors import DataFileError, InputError, check_choice
+from . import fitted, validity
 
 FAMILIES = ("carbon_steel", "alloy_steel", "carburizing_steel", "nitriding_steel", "stainless_martensitic")
 #: which fitted family each family uses
@@ -54,9 +56,14 @@ RATIO_RANGE = (0.50, 0.98)
 RA_RANGE = (2.0, 80.0)
 
 
-@functools.cache
-def _rows(fit_family: str):
-    t = _points()
+FIT_NAME = "correlations"
+FIT_FAMILIES = ("carbon_steel", "alloy_steel")
+
+
+def fit_rows(points, fit_family: str):
+    """The rows of the tempering table (``tempering.load_points()``) that the
+    ``fit_family`` correlations are fitted on: fully hardened, that family, with UTS."""
+    t = points
     return t[t["fully_hardened"] & (t["family"] == fit_family) & t["uts_mpa"].notna()]
 
 
@@ -65,12 +72,9 @@ def _lstsq(a, y):
     return tuple(float(c) for c in coef)
 
 
-@functools.cache
-def coefficients(fit_family: str) -> dict:
-    """Fitted coefficients of ``fit_family`` (``carbon_steel`` or ``alloy_steel``):
-    ``ratio`` (r0, r1), ``elongation`` (e0, e1), ``reduction_area`` (q0, q1), and the
-    UTS and tempering-temperature spans of the rows fitted."""
-    d = _rows(fit_family)
+def solve(d, fit_family: str) -> dict:
+    """Least-squares coefficients of the three correlations on the rows ``d`` (used by
+    ``scripts/fit_correlations.py``; the package reads the shipped values)."""
     u = d["uts_mpa"].to_numpy(float) / 1000.0
     tt = d["temp_c"].to_numpy(float) / 100.0
     ratio = _lstsq(np.c_[np.ones_like(u), tt], d["yield_mpa"].to_numpy(float) / d["uts_mpa"].to_numpy(float))
@@ -82,6 +86,24 @@ def coefficients(fit_family: str) -> dict:
     return {"ratio": ratio, "elongation": el, "reduction_area": ra, "n_rows": int(len(d)),
             "uts_mpa": (float(d["uts_mpa"].min()), float(d["uts_mpa"].max())),
             "temp_c": (float(d["temp_c"].min()), float(d["temp_c"].max()))}
+
+
+#: coefficient names in data/fits/correlations_coefficients.csv
+COEFFICIENT_NAMES = {"ratio": ("r0", "r1"), "elongation": ("e0", "e1"), "reduction_area": ("q0", "q1"),
+                     "uts_mpa": ("uts_min", "uts_max"), "temp_c": ("temp_min", "temp_max")}
+
+
+@functools.cache
+def coefficients(fit_family: str) -> dict:
+    """Shipped coefficients of ``fit_family`` (``carbon_steel`` or ``alloy_steel``), read
+    from ``data/fits/correlations_coefficients.csv``: ``ratio`` (r0, r1),
+    ``elongation`` (e0, e1), ``reduction_area`` (q0, q1), and the UTS and
+    tempering-temperature spans of the rows fitted."""
+    check_choice("fit_family", fit_family, FIT_FAMILIES)
+    k = fitted.coefficients(FIT_NAME)
+    out = {key: tuple(k[(fit_family, n)] for n in names) for key, names in COEFFICIENT_NAMES.items()}
+    out["n_rows"] = int(k[(fit_family, "n_rows")])
+    return out
 
 
 def _family(family):
@@ -232,13 +254,14 @@ def reduction_of_area_from_uts(uts_mpa, family):
     return _by_family(family, u, f)
 
 
-def fit_report() -> dict:
-    """Per-family errors of the three correlations on the fitted rows:
-    yield (median and max relative error), elongation and RA (median and max
-    absolute error, percentage points)."""
+def fit_report(points) -> dict:
+    """Per-family errors of the three correlations (shipped coefficients) on their
+    fitted rows of ``points`` (``tempering.load_points()``): yield (median and max
+    relative error), elongation and RA (median and max absolute error, percentage
+    points).  In-sample (calibration) figures."""
     out = {}
-    for fit in ("carbon_steel", "alloy_steel"):
-        d = _rows(fit)
+    for fit in FIT_FAMILIES:
+        d = fit_rows(points, fit)
         u, tt = d["uts_mpa"].to_numpy(float), d["temp_c"].to_numpy(float)
         ys = d["yield_mpa"].to_numpy(float)
         e_ys = np.abs(yield_from_uts(u, tt, fit) - ys) / ys
@@ -253,7 +276,10 @@ def fit_report() -> dict:
 
 
 def _register():
-    c, a = coefficients("carbon_steel"), coefficients("alloy_steel")
+    try:
+        c, a = coefficients("carbon_steel"), coefficients("alloy_steel")
+    except DataFileError:
+        return   # no coefficient file yet: only scripts/fit_correlations.py may run (it writes it)
     ref = ("fitted to data/tempering_points.csv (ASM Metals Handbook Vol. 1 Q&T table); "
            "carbon steel UTS {:.0f}–{:.0f} MPa".format(*c["uts_mpa"]))
     validity.register("qt_correlations", {

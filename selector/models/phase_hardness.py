@@ -71,3 +71,89 @@ def mixture_hv(fractions, hardnesses):
     f = [np.asarray(x, float) for x in fractions]
     tot = sum(f)
     return sum(x * h for x, h in zip(f, hardnesses)) / np.where(tot > 0, tot, 1.0)
+
+
+#: activation enthalpy of Maynier's tempering parameter, J/mol (about 100 kcal/mol; from memory)
+MAYNIER_DH_J_MOL = 418_000.0
+R_J_MOLK = 8.314
+
+
+def maynier_tempering_parameter_k(temp_c, hours):
+    """Maynier et al. (1978) tempering parameter, K.
+
+    Pa = [1/T − (R/ΔH)·ln(t/t0)]⁻¹,   T in K, t in h, t0 = 1 h, ΔH ≈ 418 kJ/mol
+
+    so that Pa equals T for a 1 h temper.
+
+    Parameters
+    ----------
+    temp_c : array_like
+        Tempering temperature, °C.
+    hours : array_like
+        Time at temperature, h (> 0).
+
+    Returns
+    -------
+    ndarray
+        Pa, K.
+
+    References
+    ----------
+    Maynier, Jungmann & Dollet, TMS-AIME 1978, pp. 518–545 (form and ΔH from memory,
+    models reference sheet §4, tag M-low).
+    """
+    t = np.asarray(temp_c, float) + 273.15
+    h = np.asarray(hours, float)
+    if np.any(h <= 0) or np.any(np.isinf(h)):
+        raise InputError("hours", hours, "finite times > 0 h (NaN for none)")
+    return 1.0 / (1.0 / t - (R_J_MOLK / MAYNIER_DH_J_MOL) * np.log(h))
+
+
+def tempered_bainite_hv(comp, temp_c, hours):
+    """Hardness of tempered bainite (Maynier et al. 1978).
+
+    HV = 262 + 162C − 349Si − 64Mn − 6Ni − 186Cr − 458Mo − 857V
+         + (1000/Pa)·(−149 + 43C + 336Si + 79Mn + 16Ni + 196Cr + 498Mo + 1094V)
+
+    with Pa the tempering parameter of :func:`maynier_tempering_parameter_k`; where the
+    bracket is negative (lean C–Mn steels) it is held at 0, so the hardness never rises
+    with the tempering parameter.  Bainite
+    softens much less than martensite: the route takes the smaller of this value and
+    the as-quenched bainite hardness of :func:`phase_hardness_hv` (tempering never
+    hardens a bainite of these steels), see :mod:`selector.models.structure_tempering`.
+
+    Parameters
+    ----------
+    comp : mapping
+        Element → wt % (uses C, Si, Mn, Ni, Cr, Mo, V).
+    temp_c : array_like
+        Tempering temperature, °C.
+    hours : array_like
+        Time at temperature, h (> 0).
+
+    Returns
+    -------
+    ndarray
+        HV.
+
+    Validity
+    --------
+    ``maynier_1978`` (low-alloy steels, C ≤ 0.5 %).
+
+    References
+    ----------
+    Maynier, Jungmann & Dollet, TMS-AIME 1978, pp. 518–545 (coefficients from memory,
+    models reference sheet §4, tag M-low).
+
+    Examples
+    --------
+    0.40C-0.25Si-0.85Mn-1.0Cr-0.20Mo, 1 h at 540 °C: about 290 HV (derived from the
+    equation; the as-quenched bainite of the same steel at 10⁴ °C/h is about 350 HV).
+    """
+    pa = maynier_tempering_parameter_k(temp_c, hours)
+    c, si, mn, ni, cr, mo, v = (el(comp, e) for e in ("C", "Si", "Mn", "Ni", "Cr", "Mo", "V"))
+    a = 262 + 162 * c - 349 * si - 64 * mn - 6 * ni - 186 * cr - 458 * mo - 857 * v
+    b = -149 + 43 * c + 336 * si + 79 * mn + 16 * ni + 196 * cr + 498 * mo + 1094 * v
+    # a negative slope (lean C-Mn steels without Si, Cr, Mo) would harden the bainite as the
+    # temper rises: held at 0 there, so the result never rises with the tempering parameter
+    return a + (1000.0 / pa) * np.maximum(b, 0.0)

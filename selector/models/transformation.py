@@ -192,3 +192,120 @@ def continuous_cooling_fractions(comp, cooling_rate_c_s, austenitize_c=845.0, ba
     fM = aust_at_ms * km
     return {"ferrite": fF, "pearlite": fP, "bainite": fB, "martensite": fM,
             "retained_austenite": aust_at_ms - fM}
+
+
+#: log-spaced cooling rates (at 700 °C, °C/s) on which the share is tabulated per composition
+SHARE_GRID_C_S = np.geomspace(0.05, 2000.0, 25)
+#: non-martensitic fraction below which the split at a rate is taken as undefined
+SHARE_MIN_FRACTION = 0.02
+SHARE_ELEMENTS = ("C", "Mn", "Si", "Ni", "Cr", "Mo")
+#: temperature step of the kinetics integration for the split, °C (the share changes by less
+#: than 0.02 from a 2 °C step over the catalogue's steels: tests/test_transformation.py)
+SHARE_STEP_C = 10.0
+
+
+def unique_rows(table):
+    """Distinct rows of a 2-D float array and the index of each row's distinct row:
+    ``(unique_rows, inverse)`` with ``unique_rows[inverse] == table`` (bytewise
+    comparison of the rows: much faster than ``numpy.unique(axis=0)``)."""
+    t = np.ascontiguousarray(np.asarray(table, float))
+    if t.shape[0] == 0:
+        return t, np.zeros(0, int)
+    v = t.view(np.dtype((np.void, t.dtype.itemsize * t.shape[1]))).ravel()
+    _, first, inverse = np.unique(v, return_index=True, return_inverse=True)
+    return t[first], inverse.reshape(-1)
+
+
+#: share tables already computed, keyed by (composition row bytes, grain size, step): the
+#: table depends on the composition only, so every section and route reuses it
+_SHARE_CACHE: dict = {}
+_SHARE_CACHE_MAX = 20_000
+
+
+def _share_tables(uniq, grain_size_astm, step_c):
+    """Non-decreasing share tables (rows of ``uniq`` × :data:`SHARE_GRID_C_S`), cached."""
+    keys = [(row.tobytes(), grain_size_astm, step_c) for row in uniq]
+    todo = [i for i, k in enumerate(keys) if k not in _SHARE_CACHE]
+    if todo:
+        if len(_SHARE_CACHE) + len(todo) > _SHARE_CACHE_MAX:
+            _SHARE_CACHE.clear()
+        new = uniq[todo]
+        grid = SHARE_GRID_C_S
+        k, g = len(new), len(grid)
+        fr = continuous_cooling_fractions({e: np.repeat(new[:, i], g) for i, e in enumerate(SHARE_ELEMENTS)},
+                                          np.tile(grid, k), grain_size_astm=grain_size_astm, step_c=step_c)
+        non_m = (fr["bainite"] + fr["ferrite"] + fr["pearlite"]).reshape(k, g)
+        raw = np.where(non_m > SHARE_MIN_FRACTION, fr["bainite"].reshape(k, g) / np.maximum(non_m, 1e-12),
+                       np.nan)
+        table = np.empty((k, g))
+        last = np.full(k, np.nan)
+        for j in range(g):                      # carry the last defined (slower) share up
+            last = np.where(np.isfinite(raw[:, j]), raw[:, j], last)
+            table[:, j] = last
+        table = np.where(np.isfinite(table), table, 1.0)
+        table = np.maximum.accumulate(np.clip(table, 0.0, 1.0), axis=1)
+        for i, row in zip(todo, table):
+            _SHARE_CACHE[keys[i]] = row
+    return np.stack([_SHARE_CACHE[k] for k in keys]) if keys else np.zeros((0, len(SHARE_GRID_C_S)))
+
+
+def bainite_share(comp, cooling_rate_c_s, grain_size_astm=8.0, step_c=SHARE_STEP_C):
+    """Share of bainite in the non-martensitic products of a quench,
+    B / (B + F + P), from the Li et al. (1998) kinetics, as a function of the cooling rate.
+
+    Only the *split* of the non-martensitic part is taken from these kinetics; the
+    martensite fraction itself comes from the hardenability chain
+    (:func:`selector.routes.quench_response.as_quenched_profile`).
+
+    For each distinct composition the kinetics run on a fixed log-spaced grid of rates
+    (:data:`SHARE_GRID_C_S`, 0.05–2000 °C/s).  Where they form less than 2 % of
+    non-martensitic products at a grid rate (they then say nothing about their nature),
+    the share at the next slower rate that forms some is carried up; where none forms
+    even at the slowest rate, the share is 1.  The share is then made non-decreasing in
+    the rate (a running maximum from slow to fast: faster cooling suppresses the
+    ferrite and pearlite reactions before the bainite one, common practice; it also
+    keeps a faster quench from giving a softer product) and interpolated linearly in
+    log rate.
+
+    Parameters
+    ----------
+    comp : mapping
+        Element → wt %, arrays broadcasting with ``cooling_rate_c_s``.
+    cooling_rate_c_s : array_like
+        Cooling rate at 700 °C, °C/s (> 0; held inside the grid).
+    grain_size_astm : float
+        ASTM austenite grain size.
+    step_c : float
+        Temperature step of the kinetics integration, °C.
+
+    Returns
+    -------
+    ndarray
+        Bainite share 0–1 (broadcast of the inputs).
+
+    Validity
+    --------
+    ``li_1998`` (low-alloy steels, 0.1–0.6 % C).
+
+    References
+    ----------
+    Li, Niebuhr, Meekisho & Atteridge, Metall. Mater. Trans. B 29B (1998) 661
+    (equations from memory); Scheil (1935) additivity.
+    """
+    rate = np.asarray(cooling_rate_c_s, float)
+    if np.any(np.isnan(rate)) or np.any(rate <= 0):
+        raise InputError("cooling_rate_c_s", cooling_rate_c_s, "rates > 0 C/s")
+    shape = np.broadcast_shapes(rate.shape, *[np.shape(comp[e]) for e in SHARE_ELEMENTS if e in comp])
+    cols = np.stack([np.broadcast_to(np.asarray(el(comp, e), float), shape).ravel() for e in SHARE_ELEMENTS],
+                    axis=1)
+    uniq, inverse = unique_rows(cols)
+    grid = SHARE_GRID_C_S
+    g = len(grid)
+    table = _share_tables(uniq, float(grain_size_astm), float(step_c))
+    x = (np.log(np.clip(rate, grid[0], grid[-1])) - np.log(grid[0])) / (np.log(grid[-1]) - np.log(grid[0])) * (g - 1)
+    x = np.broadcast_to(x, shape).ravel()
+    j0 = np.clip(np.floor(x).astype(int), 0, g - 2)
+    w = x - j0
+    rows = inverse.reshape(-1)
+    out = table[rows, j0] * (1.0 - w) + table[rows, j0 + 1] * w
+    return out.reshape(shape)

@@ -6,8 +6,10 @@ Chain of models, each in its own module:
 1. as-quenched hardness across the real section (``selector.routes.quench_response``:
    Grossmann H of the medium → conduction cooling of the bar or plate → equivalent
    Jominy distance → ASTM A255 Jominy curve of the composition → martensite %);
-2. tempering of that structure (``selector.models.tempering``: Hollomon–Jaffe
-   parameter and fitted master curves);
+2. tempering of that structure (``selector.models.structure_tempering``: the chain's
+   martensite fraction, bainite and ferrite–pearlite by Maynier et al. 1978 at the local
+   cooling rate, each tempered by its own law; the martensite on the Hollomon–Jaffe
+   master surface of ``selector.models.tempering``);
 3. tensile strength from hardness (``selector.models.conversions``: ASTM E140 /
    A370 Table 3) at the ASTM A370 test location, then yield strength, elongation and
    reduction of area from strength (``selector.models.correlations``).
@@ -18,9 +20,9 @@ from __future__ import annotations
 import numpy as np
 
 from ...catalogue.grades import Grade
-from ...models import conversions, correlations, critical_temperatures, tempering, validity
+from ...models import (conversions, correlations, critical_temperatures, structure_tempering, tempering,
+                       validity)
 from ...models.composition import el
-from ...models.martensite import martensite_hardness_hrc
 from .. import quench_response
 from .base import Batch, RouteFamily, at_position, product_grid, test_position
 
@@ -45,27 +47,33 @@ def through_harden(batch: Batch, quench, agitation, austenitize_c, temper_temp_c
         austenitize_c=austenitize_c)
     pos = np.asarray(prof["positions"], float)
     hv_aq = np.asarray(prof["hardness_hv"], float)
-    c2 = {k: np.asarray(v, float)[:, None] for k, v in comp.items()}
-    hv_m = conversions.hrc_to_hv(martensite_hardness_hrc(el(comp, "C"), 99.9))[:, None]
-    t = np.asarray(temper_temp_c, float)[:, None]
-    h = np.asarray(temper_hours, float)[:, None]
-    tempered = np.isfinite(t[:, 0])
+    mart = np.asarray(prof["martensite_pct"], float)
+    t = np.asarray(temper_temp_c, float)
+    h = np.asarray(temper_hours, float)
+    tempered = np.isfinite(t)
     hv_t = hv_aq.copy()
     if tempered.any():
-        tt = tempering.tempered_hv(hv_aq, hv_m, c2, np.where(np.isfinite(t), t, 200.0),
-                                   np.where(np.isfinite(h), h, 1.0))
-        hv_t = np.where(np.isfinite(t), np.minimum(tt, hv_aq), hv_aq)
+        # structure-aware tempering (models/structure_tempering.py): the chain's martensite
+        # fraction, Maynier bainite / ferrite-pearlite at the local cooling rate, each
+        # constituent tempered by its own law; never above the as-quenched hardness reported
+        c2 = {k: np.asarray(v, float)[:, None] for k, v in comp.items()}
+        parts = structure_tempering.constituents(c2, mart, np.asarray(prof["cooling_rate_c_s"], float))
+        tt = structure_tempering.mixture_hv(parts, t[:, None], np.where(np.isfinite(h), h, 1.0)[:, None], c2)
+        hv_t = np.where(tempered[:, None], np.minimum(tt, hv_aq), hv_aq)
     where = test_position(batch.section_mm)
+    non_m = 100.0 - at_position(mart, pos, where)
     cls = correlation_class(batch.attr("family"))
     hv_test = at_position(hv_t, pos, where)
     hv_center = at_position(hv_t, pos, np.zeros(batch.n))
     out = {"profile_hv": hv_t, "profile_positions": pos, "profile_as_quenched_hv": hv_aq,
            "hardness_hv": hv_test, "surface_hardness_hv": at_position(hv_t, pos, np.ones(batch.n)),
            "center_hardness_hv": hv_center,
-           "center_martensite_pct": at_position(np.asarray(prof["martensite_pct"], float), pos, np.zeros(batch.n)),
+           "center_martensite_pct": at_position(mart, pos, np.zeros(batch.n)),
+           "martensite_pct": at_position(mart, pos, where),
            "di_mm": np.asarray(prof["di_mm"], float), "ac1_c": np.asarray(prof["ac1_c"], float),
            "ac3_c": np.asarray(prof["ac3_c"], float), "ms_c": np.asarray(prof["ms_c"], float),
-           "quench_warnings": list(prof.get("warnings", []))}
+           "quench_warnings": list(prof.get("warnings", [])),
+           "validity_notes": validity_notes(comp, t, h, non_m)}
     t1 = np.asarray(temper_temp_c, float)
     for key, hv in (("", hv_test), ("center_", hv_center)):
         uts = conversions.hv_to_uts_mpa(hv)
@@ -74,6 +82,53 @@ def through_harden(batch: Batch, quench, agitation, austenitize_c, temper_temp_c
         out[key + "elongation_pct"] = _by_class(correlations.elongation_from_uts, uts, cls)
     out["reduction_area_pct"] = _by_class(correlations.reduction_of_area_from_uts, out["uts_mpa"], cls)
     return out
+
+
+#: non-martensitic % at the test location above which the Maynier and Li models matter
+NON_MARTENSITE_PCT = 5.0
+
+
+def _range_notes(model: str, values: dict, mask_on: np.ndarray, what: str) -> list:
+    """(message, per-state mask) for every variable of ``model`` outside its registered
+    range (:mod:`selector.models.validity`), restricted to the states ``mask_on``."""
+    v = validity.get(model)
+    out = []
+    for name, x in values.items():
+        if name not in v.ranges:
+            continue
+        lo, hi, unit = v.ranges[name]
+        x = np.asarray(x, float)
+        bad = np.zeros(x.shape, bool)
+        if lo is not None:
+            bad |= x < lo - 1e-9
+        if hi is not None:
+            bad |= x > hi + 1e-9
+        bad &= mask_on
+        if bad.any():
+            u = f" {unit}" if unit else ""
+            out.append((f"{model}: {name} outside {lo:.4g}–{hi:.4g}{u} ({v.reference}); {what} extrapolated", bad))
+    return out
+
+
+def validity_notes(comp, temper_temp_c, temper_hours, non_martensite_pct) -> list:
+    """Visible warnings, per state, for the tempering and constituent models used
+    outside their registered ranges: ``hollomon_jaffe`` and ``tempering_hv`` (tempered
+    states), ``maynier_1978`` and ``li_1998`` (states with more than 5 % non-martensitic
+    products at the test location)."""
+    t = np.asarray(temper_temp_c, float)
+    n = t.shape[0]
+    h = np.where(np.isfinite(np.asarray(temper_hours, float)), temper_hours, 1.0)
+    vals = {e: np.broadcast_to(np.asarray(el(comp, e), float), (n,)) for e in tempering.ALLOY_CHECKED}
+    tempered = np.isfinite(t)
+    t1 = np.where(tempered, t, 200.0)
+    p = tempering.hollomon_jaffe_parameter(t1, h, tempering.hollomon_jaffe_constant(vals["C"])) / 1000.0
+    notes = _range_notes("hollomon_jaffe", {"temp_c": t1, "hours": h, "C": vals["C"]}, tempered,
+                         "tempering parameter")
+    notes += _range_notes("tempering_hv", {**vals, "P_1000": p}, tempered, "tempered-martensite hardness")
+    mixed = np.asarray(non_martensite_pct, float) > NON_MARTENSITE_PCT
+    notes += _range_notes("maynier_1978", vals, mixed & tempered, "bainite / ferrite-pearlite hardness")
+    notes += _range_notes("li_1998", vals, mixed & tempered, "bainite share of the non-martensitic products")
+    return notes
 
 
 def _by_class(fn, uts, cls):
@@ -130,6 +185,8 @@ class QuenchTemper(RouteFamily):
     families = ("carbon_steel", "alloy_steel", "carburizing_steel", "nitriding_steel", "stainless_martensitic")
     references = (
         "J.H. Hollomon & L.D. Jaffe, Trans. AIME 162 (1945) 223 (tempering parameter)",
+        "Ph. Maynier, B. Jungmann & J. Dollet, Hardenability Concepts with Applications to Steel, "
+        "TMS-AIME (1978) 518 (constituent hardness and mixture rule)",
         "ASTM A255 (hardenability from composition; Jominy curve)",
         "M.A. Grossmann, Elements of Hardenability, ASM (1952) (quench severity H)",
         "ASTM A370 (tension-test location)",
@@ -207,6 +264,7 @@ class QuenchTemper(RouteFamily):
             if mask.any():
                 notes.append((f"composition outside the validity range of {model} ({msgs.reference}): "
                               "hardenability extrapolated", mask))
+        notes += res.pop("validity_notes")
         qw = res.pop("quench_warnings")
         if batch.n == 1:   # batch-level messages only make sense for a single state
             notes += [(w, np.ones(1, bool)) for w in qw]

@@ -1,0 +1,123 @@
+"""Fit the tempered-martensite master surface OFFLINE and write its files.
+
+Reads the fully hardened rows of ``data/tempering_points.csv`` and fits, by linear
+least squares (``numpy.linalg.lstsq``), the surface of
+:func:`selector.models.tempering.tempered_martensite_hv` (form and features in
+:func:`selector.models.tempering.tempering_features`).  Writes, per the fit convention:
+
+* ``data/fits/tempering_coefficients.csv``: the coefficients (fit ``tempering_hv``)
+  and the span of the fitted data (fit ``tempering_hv_range``: the validity range the
+  package registers and the route checks);
+* ``data/fits/tempering_rows.csv``: every data row used (grade, quench, section,
+  tempering temperature and time; with the row's own source and confidence), for the
+  calibration join;
+* ``data/fits/tempering_cv.csv``: leave-one-grade-out cross-validation (refit without
+  each grade, predict that grade), error in HRC (values below HRC 20 counted at 20).
+
+Usage: ``PYTHONPATH=. python scripts/fit_tempering.py`` (prints the pooled LOGO error).
+"""
+from __future__ import annotations
+
+import sys
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+
+ROOT = Path(__file__).resolve().parents[1]
+sys.path.insert(0, str(ROOT))
+
+from selector.models import conversions, tempering as tp  # noqa: E402
+
+NAME = "tempering"
+SOURCE_FILE = "data/tempering_points.csv"
+OUT = ROOT / "data" / "fits"
+UNITS = {"1": "HV", "C": "HV/wt%", "s": "HV", "C*s": "HV/wt%", "Mo*a": "HV/wt%", "V*a": "HV/wt%"}
+RANGE_UNITS = {"temp_c": "degC", "hours": "h", "P_1000": "K/1000"}
+CV_SOURCE = "leave-one-grade-out refit by scripts/fit_tempering.py"
+SOURCE = "least squares on the fully hardened rows of data/tempering_points.csv (scripts/fit_tempering.py)"
+
+
+def fit_points(points: pd.DataFrame) -> pd.DataFrame:
+    """The rows the fit uses: ``fully_hardened`` rows of the tempering table."""
+    return points[points["fully_hardened"]].reset_index(drop=True)
+
+
+def solve(rows: pd.DataFrame) -> np.ndarray:
+    x = tp.tempering_features(rows["c_pct"].to_numpy(float), rows["mo_pct"].to_numpy(float),
+                              rows["v_pct"].to_numpy(float), rows["P"].to_numpy(float))
+    coef, *_ = np.linalg.lstsq(x, rows["hardness_hv"].to_numpy(float), rcond=None)
+    return coef
+
+
+def predict(coef, rows: pd.DataFrame) -> np.ndarray:
+    return tp.surface_hv(coef, rows["c_pct"].to_numpy(float), rows["mo_pct"].to_numpy(float),
+                         rows["v_pct"].to_numpy(float), rows["P"].to_numpy(float))
+
+
+def hrc_error(pred_hv, obs_hv) -> np.ndarray:
+    """Signed error in HRC with both values floored at HRC 20 (the scale's lower limit)."""
+    a = conversions.hv_to_hrc(np.maximum(pred_hv, 238.0))
+    b = conversions.hv_to_hrc(np.maximum(obs_hv, 238.0))
+    return a - b
+
+
+def fit(points: pd.DataFrame | None = None) -> dict:
+    """Fit and return the three tables ``coefficients``, ``rows``, ``cv`` (DataFrames)
+    and ``pooled_logo_median_hrc``.  ``points`` defaults to :func:`tempering.load_points`."""
+    pts = tp.load_points() if points is None else points
+    rows = fit_points(pts)
+    coef = solve(rows)
+    recs = [{"fit": "tempering_hv", "coefficient": n, "value": float(v), "unit": UNITS[n],
+             "source": SOURCE, "confidence": "fitted"} for n, v in zip(tp.FEATURES, coef)]
+    spans = {e: rows[f"{e.lower()}_pct"] for e in tp.ALLOY_CHECKED}
+    spans.update(temp_c=rows["temp_c"], hours=rows["hours"], P_1000=rows["P"] / 1000.0)
+    for var, col in spans.items():
+        for side, val in (("min", col.min()), ("max", col.max())):
+            recs.append({"fit": "tempering_hv_range", "coefficient": f"{var}_{side}", "value": float(val),
+                         "unit": RANGE_UNITS.get(var, "wt%"), "source": "span of the fitted rows",
+                         "confidence": "fitted"})
+    coefficients = pd.DataFrame(recs)
+    used = pd.DataFrame({"fit": "tempering_hv", "source_file": SOURCE_FILE, "grade": rows["grade"].astype(str),
+                         "quench": rows["quench"], "section_mm": rows["section_mm"], "temp_c": rows["temp_c"],
+                         "hours": rows["hours"], "condition": "", "source": rows["source"],
+                         "confidence": rows["confidence"]})
+    obs = rows["hardness_hv"].to_numpy(float)
+    logo = np.empty_like(obs)
+    for g in rows["grade"].unique():
+        m = (rows["grade"] == g).to_numpy()
+        logo[m] = predict(solve(rows[~m]), rows[m])
+    err = hrc_error(logo, obs)
+    cv = []
+    for g in rows["grade"].unique():
+        m = (rows["grade"] == g).to_numpy()
+        cv.append({"fit": "tempering_hv", "grade": str(g), "n": int(m.sum()), "property": "hardness_hrc",
+                   "median_abs_error": float(np.median(np.abs(err[m]))), "median_error": float(np.median(err[m])),
+                   "unit": "HRC", "source": CV_SOURCE, "confidence": "fitted"})
+    return {"coefficients": coefficients, "rows": used, "cv": pd.DataFrame(cv),
+            "pooled_logo_median_hrc": float(np.median(np.abs(err))),
+            "pooled_logo_p90_hrc": float(np.percentile(np.abs(err), 90)),
+            "in_sample_median_hrc": float(np.median(np.abs(hrc_error(predict(coef, rows), obs))))}
+
+
+def write(result: dict, out: Path = OUT) -> None:
+    out.mkdir(parents=True, exist_ok=True)
+    header = f"# written by scripts/fit_{NAME}.py from {SOURCE_FILE} (fully_hardened rows); do not edit by hand\n"
+    for key in ("coefficients", "rows", "cv"):
+        with open(out / f"{NAME}_{key}.csv", "w", encoding="utf-8", newline="") as fh:
+            fh.write(header)
+            result[key].to_csv(fh, index=False, float_format="%.12g", lineterminator="\n")
+
+
+def main() -> int:
+    r = fit()
+    write(r)
+    print(f"tempering_hv: {len(r['rows'])} rows, {r['rows']['grade'].nunique()} grades; in-sample median "
+          f"{r['in_sample_median_hrc']:.2f} HRC; pooled LOGO median {r['pooled_logo_median_hrc']:.2f} HRC, "
+          f"p90 {r['pooled_logo_p90_hrc']:.2f} HRC")
+    print(r["cv"].round(2).to_string(index=False))
+    return 0
+
+
+if __name__ == "__main__":
+    raise SystemExit(main())

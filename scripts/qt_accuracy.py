@@ -1,0 +1,168 @@
+"""Accuracy of the quench-and-temper route on INDEPENDENT reference rows.
+
+A row of ``data/reference/qt_steels.csv`` is *calibration* when it joins any row a fit
+used (every ``data/fits/*_rows.csv``), on the keys of the fit convention: same grade;
+same quench or one of them blank; |section difference| <= 2 mm; |temper temperature
+difference| <= 6 C.  A blank section on either side is taken as joining (the
+conservative reading: an unknown section cannot prove the row independent).  Only the
+other rows (independent) are measured here, through ``selector.evaluate`` with the
+row's grade, quench (blank: the grade's usual medium, first in
+data/route_windows.csv), section (blank: 25.4 mm round), tempering
+temperature and time (blank: 2 h) -- the same defaults as the validation report.
+
+Prints, per family and carbon class and over all rows: n, median absolute % error,
+90th percentile of the absolute % error and median signed % error (bias) of tensile
+and yield strength and of HB; for HRC the same in HRC points.
+
+Usage: ``PYTHONPATH=. python scripts/qt_accuracy.py [--rows]`` (``--rows`` lists every
+independent row with its prediction).
+"""
+from __future__ import annotations
+
+import argparse
+import glob
+import math
+import sys
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+
+ROOT = Path(__file__).resolve().parents[1]
+sys.path.insert(0, str(ROOT))
+
+import selector  # noqa: E402
+from selector.errors import SelectorError, UnknownGradeError  # noqa: E402
+from selector.routes.families.base import RouteFamily  # noqa: E402
+
+SECTION_TOL_MM = 2.0
+TEMP_TOL_C = 6.0
+DEFAULT_HOURS = 2.0
+DEFAULT_SECTION_MM = 25.4
+PROPS = (("uts_mpa", "%"), ("yield_mpa", "%"), ("hardness_hb", "%"), ("hardness_hrc", "HRC"))
+TARGETS = {"uts_mpa": "median <= 5 %, p90 <= 12 %, |bias| <= 2 %", "yield_mpa": "median <= 6 %",
+           "hardness_hb": "median <= 5 %", "hardness_hrc": "median <= 2 HRC"}
+
+
+def _read(path) -> pd.DataFrame:
+    return pd.read_csv(path, comment="#", dtype={"grade": str, "quench": str})
+
+
+def fit_rows(fits_dir: Path = ROOT / "data" / "fits") -> pd.DataFrame:
+    """Every row any fit used (the union of ``data/fits/*_rows.csv``)."""
+    frames = [_read(p) for p in sorted(glob.glob(str(fits_dir / "*_rows.csv")))]
+    if not frames:
+        return pd.DataFrame(columns=["fit", "grade", "quench", "section_mm", "temp_c"])
+    return pd.concat(frames, ignore_index=True)
+
+
+def _blank(x) -> bool:
+    return x is None or (isinstance(x, float) and math.isnan(x)) or str(x).strip() in ("", "nan")
+
+
+def joins(ref: dict, fit: pd.DataFrame) -> bool:
+    """True when the reference row joins a fit row (fit convention keys)."""
+    f = fit[fit["grade"].astype(str).str.strip() == str(ref["grade"]).strip()]
+    for r in f.to_dict("records"):
+        q1, q2 = ref.get("quench"), r.get("quench")
+        if not (_blank(q1) or _blank(q2) or str(q1).strip() == str(q2).strip()):
+            continue
+        s1, s2 = ref.get("section_mm"), r.get("section_mm")
+        if not (_blank(s1) or _blank(s2) or abs(float(s1) - float(s2)) <= SECTION_TOL_MM):
+            continue
+        t1, t2 = ref.get("temper_temp_c"), r.get("temp_c")
+        if _blank(t1) or _blank(t2) or abs(float(t1) - float(t2)) <= TEMP_TOL_C:
+            return True
+    return False
+
+
+def independent_rows(ref_path: Path = ROOT / "data" / "reference" / "qt_steels.csv",
+                     fits_dir: Path = ROOT / "data" / "fits") -> pd.DataFrame:
+    ref = _read(ref_path)
+    fit = fit_rows(fits_dir)
+    mask = np.array([not joins(r, fit) for r in ref.to_dict("records")], bool)
+    return ref[mask].reset_index(drop=True)
+
+
+def _known(grade) -> bool:
+    try:
+        selector.grade(str(grade))
+    except UnknownGradeError:
+        return False
+    return True
+
+
+def predict(rows: pd.DataFrame) -> pd.DataFrame:
+    out = []
+    for r in rows.to_dict("records"):
+        if _blank(r.get("quench")):   # the grade's usual medium, as the validation report assumes
+            quench = RouteFamily.choices(selector.grade(str(r["grade"])), "quench_temper", "quench", ("oil",))[0] \
+                if _known(r["grade"]) else "oil"
+        else:
+            quench = str(r["quench"]).strip()
+        hours = DEFAULT_HOURS if _blank(r.get("temper_hours")) else float(r["temper_hours"])
+        d = DEFAULT_SECTION_MM if _blank(r.get("section_mm")) else float(r["section_mm"])
+        harden = {"op": "harden", "quench": quench}
+        if not _blank(r.get("austenitize_c")):
+            harden["austenitize_c"] = float(r["austenitize_c"])
+        try:
+            g = selector.grade(str(r["grade"]))
+            res = selector.evaluate(g.id, [harden, {"op": "temper", "temp_c": float(r["temper_temp_c"]),
+                                                    "hours": hours}], diameter_mm=d)
+        except SelectorError as exc:
+            print(f"skipped {r['grade']} {r['temper_temp_c']} C: {exc}", file=sys.stderr)
+            continue
+        c = float(g.composition()["C"])
+        rec = {"grade": g.id, "family": g.family, "carbon": "C < 0.55" if c < 0.55 else "C >= 0.55",
+               "quench": quench, "section_mm": d, "temp_c": float(r["temper_temp_c"]), "hours": hours,
+               "source": str(r.get("source", ""))[:40]}
+        for p, _ in PROPS:
+            rec[p + "_pub"] = r.get(p)
+            rec[p + "_pred"] = res.get(p)
+        out.append(rec)
+    return pd.DataFrame(out)
+
+
+def stats(pred: pd.DataFrame, prop: str, unit: str) -> dict | None:
+    pub = pd.to_numeric(pred[prop + "_pub"], errors="coerce").to_numpy(float)
+    est = pd.to_numeric(pred[prop + "_pred"], errors="coerce").to_numpy(float)
+    m = np.isfinite(pub) & np.isfinite(est)
+    if not m.any():
+        return None
+    e = est[m] - pub[m] if unit == "HRC" else 100.0 * (est[m] - pub[m]) / pub[m]
+    return {"n": int(m.sum()), "median_abs": float(np.median(np.abs(e))),
+            "p90_abs": float(np.percentile(np.abs(e), 90)), "bias": float(np.median(e))}
+
+
+def report(pred: pd.DataFrame) -> list[str]:
+    lines = []
+    groups = [("all", pred)] + [(f"{f}, {c}", g) for (f, c), g in pred.groupby(["family", "carbon"])]
+    for prop, unit in PROPS:
+        lines.append(f"{prop} ({'abs % error' if unit == '%' else 'HRC points'}; target {TARGETS[prop]})")
+        for name, g in groups:
+            s = stats(g, prop, unit)
+            if s:
+                lines.append(f"  {name:30s} n={s['n']:3d}  median {s['median_abs']:5.1f}  "
+                             f"p90 {s['p90_abs']:5.1f}  bias {s['bias']:+5.1f}")
+    return lines
+
+
+def main(argv=None) -> int:
+    ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    ap.add_argument("--rows", action="store_true", help="list every independent row with its prediction")
+    a = ap.parse_args(argv)
+    ref = _read(ROOT / "data" / "reference" / "qt_steels.csv")
+    rows = independent_rows()
+    fits = sorted(Path(p).name for p in glob.glob(str(ROOT / "data" / "fits" / "*_rows.csv")))
+    print(f"reference rows {len(ref)}, independent of {', '.join(fits) or 'no fit files'}: {len(rows)}")
+    pred = predict(rows)
+    if a.rows:
+        with pd.option_context("display.width", 220, "display.max_rows", 500):
+            cols = ["grade", "quench", "section_mm", "temp_c"] + [p + s for p, _ in PROPS for s in ("_pub", "_pred")]
+            print(pred[cols].round(1).to_string())
+    print("\n".join(report(pred)))
+    return 0
+
+
+if __name__ == "__main__":
+    raise SystemExit(main())

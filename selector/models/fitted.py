@@ -1,0 +1,30 @@
+"""Reading the coefficients of surfaces fitted offline (``data/fits/<name>_coefficients.csv``).
+
+Every fitted surface of the package is fitted by ``scripts/fit_<name>.py``, which
+writes ``data/fits/<name>_coefficients.csv`` (columns ``fit, coefficient, value, unit,
+source, confidence``; a ``# `` header line names the script and the data it used),
+``<name>_rows.csv`` (the data rows the fit used, for the calibration join of the
+validation report) and ``<name>_cv.csv`` (leave-one-grade-out cross-validation).
+The package only reads the coefficients: it never fits at import or first call.
+"""
+from __future__ import annotations
+
+import functools
+
+from ..catalogue.loader import CONFIDENCE, Column, Schema, read_table
+
+FOLDER = "fits"
+
+COEFFICIENT_SCHEMA = Schema((
+    Column("fit"), Column("coefficient"), Column("value", "float"), Column("unit", allow_blank=True),
+    Column("source"), Column("confidence", "choice", choices=CONFIDENCE),
+))
+
+
+@functools.cache
+def coefficients(name: str) -> dict:
+    """``{(fit, coefficient): value}`` from ``data/fits/<name>_coefficients.csv``
+    (validated by :mod:`selector.catalogue.loader`; a bad file raises
+    ``DataFileError`` naming its line and column)."""
+    t = read_table(f"{FOLDER}/{name}_coefficients.csv", COEFFICIENT_SCHEMA)
+    return {(str(f), str(c)): float(v) for f, c, v in zip(t["fit"], t["coefficient"], t["value"])}

@@ -1,0 +1,47 @@
+"""Tests of scripts/qt_accuracy.py: the calibration join of the fit convention and the statistics."""
+import importlib.util
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+import pytest
+
+_path = Path(__file__).resolve().parents[1] / "scripts" / "qt_accuracy.py"
+_spec = importlib.util.spec_from_file_location("qt_accuracy", _path)
+qa = importlib.util.module_from_spec(_spec)
+_spec.loader.exec_module(qa)
+
+FIT = pd.DataFrame({"fit": ["t", "t"], "grade": ["4340", "1050"], "quench": ["oil", ""],
+                    "section_mm": [25.4, np.nan], "temp_c": [538.0, 316.0]})
+
+
+@pytest.mark.parametrize("row,joined", [
+    ({"grade": "4340", "quench": "oil", "section_mm": 25.4, "temper_temp_c": 538.0}, True),
+    ({"grade": "4340", "quench": "", "section_mm": 27.0, "temper_temp_c": 543.0}, True),     # within 2 mm, 6 C
+    ({"grade": "4340", "quench": "oil", "section_mm": 101.6, "temper_temp_c": 538.0}, False),  # other section
+    ({"grade": "4340", "quench": "water", "section_mm": 25.4, "temper_temp_c": 538.0}, False),  # other quench
+    ({"grade": "4340", "quench": "oil", "section_mm": 25.4, "temper_temp_c": 545.0}, False),   # 7 C away
+    ({"grade": "1050", "quench": "water", "section_mm": 60.0, "temper_temp_c": 316.0}, True),  # blank section
+    ({"grade": "4140", "quench": "oil", "section_mm": 25.4, "temper_temp_c": 538.0}, False),   # other grade
+])
+def test_join_on_the_fit_convention_keys(row, joined):
+    # the calibration join of the fit convention (scripts/qt_accuracy.py docstring): same grade;
+    # same quench or one blank;
+    # |section diff| <= 2 mm (a blank section joins); |temper diff| <= 6 C
+    assert qa.joins(row, FIT) is joined
+
+
+def test_no_independent_row_joins_a_shipped_fit_row():
+    rows = qa.independent_rows()
+    fit = qa.fit_rows()
+    assert len(rows) > 0 and len(fit) > 0
+    assert not any(qa.joins(r, fit) for r in rows.to_dict("records"))
+
+
+def test_statistics_in_percent_and_hrc_points():
+    pred = pd.DataFrame({"uts_mpa_pub": [1000.0, 1000.0, 800.0], "uts_mpa_pred": [1100.0, 950.0, np.nan],
+                         "hardness_hrc_pub": [40.0, np.nan, 30.0], "hardness_hrc_pred": [42.0, 50.0, 29.0]})
+    s = qa.stats(pred, "uts_mpa", "%")
+    assert s["n"] == 2 and s["median_abs"] == pytest.approx(7.5) and s["bias"] == pytest.approx(2.5)
+    h = qa.stats(pred, "hardness_hrc", "HRC")
+    assert h["n"] == 2 and h["median_abs"] == pytest.approx(1.5) and h["bias"] == pytest.approx(0.5)
