@@ -17,15 +17,17 @@ from .loader import CONFIDENCE, Column, Schema, data_dir, read_table
 
 FAMILIES = ("carbon_steel", "alloy_steel", "carburizing_steel", "nitriding_steel",
             "stainless_austenitic", "stainless_martensitic", "stainless_ph",
-            "aluminium", "copper_alloy", "titanium")
+            "aluminium", "copper_alloy", "titanium",
+            "tool_steel", "maraging_steel", "stainless_duplex", "nickel_alloy")
 STEEL_FAMILIES = ("carbon_steel", "alloy_steel", "carburizing_steel", "nitriding_steel",
-                  "stainless_martensitic", "stainless_ph", "stainless_austenitic")
+                  "stainless_martensitic", "stainless_ph", "stainless_austenitic",
+                  "tool_steel", "maraging_steel", "stainless_duplex")
 ROUTES = ("anneal", "normalize", "quench_temper", "carburize", "nitride", "induction",
           "cold_work", "age")
 #: route families of bar bought in a supply condition (data/supply_conditions.csv); a grade
 #: admits them from its supply rows (and its annealed baseline), not from its ``routes`` cell
 SUPPLY_ROUTES = ("supply", "supply_induction", "supply_nitride")
-BALANCE = {"aluminium": "Al", "copper_alloy": "Cu", "titanium": "Ti"}  # else Fe
+BALANCE = {"aluminium": "Al", "copper_alloy": "Cu", "titanium": "Ti", "nickel_alloy": "Ni"}  # else Fe
 
 
 def _check_grade_row(r):

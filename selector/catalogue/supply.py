@@ -31,6 +31,7 @@ CONDITIONS = {
     "annealed": "annealed",
     "normalized": "normalized",
     "peeled": "peeled or turned (bright, not cold worked)",
+    "aged": "solution treated and aged (temper as bought)",
 }
 BASES = ("minimum", "typical")
 #: conditions a bar leaves with residual cold work (stress relieving applies to them)

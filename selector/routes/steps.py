@@ -21,7 +21,7 @@ from ..errors import RouteError, check_choice, nearest
 QUENCH_MEDIA = ("water", "brine", "oil", "polymer", "air")
 #: supply conditions of bar as ordered (selector.catalogue.supply.CONDITIONS gives them in words)
 SUPPLY_CONDITIONS = ("hot_rolled", "cold_drawn", "cold_drawn_stress_relieved", "quenched_tempered",
-                     "annealed", "normalized", "peeled")
+                     "annealed", "normalized", "peeled", "aged")
 AGITATION = ("none", "mild", "moderate", "strong")
 
 

@@ -36,6 +36,7 @@ import dataclasses
 import numpy as np
 
 from ...catalogue import supply as sup
+from ...catalogue.grades import FAMILIES as FAMILIES_ALL
 from ...errors import NotModelledError, RouteError
 from ...models import conversions, stress_relief, validity
 from .base import Batch, RouteFamily
@@ -136,6 +137,8 @@ class Supply(RouteFamily):
     patterns = (("supply",), ("supply", "stress_relieve"))
     main_parameter = None
     parameters = ("condition", "designation", "stress_relieve_temp_c", "stress_relieve_hours")
+    #: every grade family: a grade admits the route from its supply rows (catalogue/supply.py)
+    families = FAMILIES_ALL
     references = REFERENCES + (stress_relief.REFERENCE,)
 
     def parse(self, steps, grade):

@@ -1,0 +1,105 @@
+"""Composition limits of catalogue grades checked against the standards' own tables, as
+reproduced in public copies that were read for this check (min and max per element).
+
+Each expected value below is typed from the named reproduction, not from data/compositions.csv.
+A maximum-only limit is written (0, max).
+"""
+import pytest
+
+from selector.catalogue.grades import grade
+
+# SAE J403 / AISI heat-analysis table of carbon steels, reproduced at turretsteel.com
+# (product_specs/carbon_steels.html): C, Mn, P max, S max
+TURRET_CARBON = {
+    "1010": {"C": (.08, .13), "Mn": (.30, .60), "P": (0, .040), "S": (0, .050)},
+    "1018": {"C": (.15, .20), "Mn": (.60, .90), "P": (0, .040), "S": (0, .050)},
+    "1030": {"C": (.28, .34), "Mn": (.60, .90), "P": (0, .040), "S": (0, .050)},
+    "1035": {"C": (.32, .38), "Mn": (.60, .90), "P": (0, .040), "S": (0, .050)},
+    "1040": {"C": (.37, .44), "Mn": (.60, .90), "P": (0, .040), "S": (0, .050)},
+    "1045": {"C": (.43, .50), "Mn": (.60, .90), "P": (0, .040), "S": (0, .050)},
+    "1050": {"C": (.48, .55), "Mn": (.60, .90), "P": (0, .040), "S": (0, .050)},
+    "1055": {"C": (.50, .60), "Mn": (.60, .90), "P": (0, .040), "S": (0, .050)},
+    "1060": {"C": (.55, .65), "Mn": (.60, .90), "P": (0, .040), "S": (0, .050)},
+    "1070": {"C": (.65, .75), "Mn": (.60, .90), "P": (0, .040), "S": (0, .050)},
+    "1095": {"C": (.90, 1.03), "Mn": (.30, .50), "P": (0, .040), "S": (0, .050)},
+}
+# AISI-SAE resulfurized grades, reproduced at engineersedge.com (carbon-steel-free-machining)
+ENGINEERSEDGE_RESULFURIZED = {
+    "1117": {"C": (.14, .20), "Mn": (1.00, 1.30), "P": (0, .040), "S": (.08, .13)},
+    "1137": {"C": (.32, .39), "Mn": (1.35, 1.65), "P": (0, .040), "S": (.08, .13)},
+    "1141": {"C": (.37, .45), "Mn": (1.35, 1.65), "P": (0, .040), "S": (.08, .13)},
+    "1144": {"C": (.40, .48), "Mn": (1.35, 1.65), "P": (0, .040), "S": (.24, .33)},
+}
+# SAE J403 free-machining grades as reproduced at chicagotube.com (cold-finished carbon bars)
+CHICAGOTUBE = {
+    "1215": {"C": (0, .09), "Mn": (.75, 1.05), "P": (.04, .09), "S": (.26, .35)},
+    "12L14": {"C": (0, .15), "Mn": (.85, 1.15), "P": (.04, .09), "S": (.26, .35), "Pb": (.15, .35)},
+}
+# ASTM A311 Table 1 reproduced at metalsteels.sell.everychina.com
+A311_TABLE1 = {"1541": {"C": (.36, .44), "Mn": (1.35, 1.65), "P": (0, .040), "S": (0, .050)}}
+# SAE J404 / AISI alloy-steel heat-analysis table reproduced at turretsteel.com (alloy_steels.html)
+TURRET_ALLOY = {
+    "1340": {"C": (.38, .43), "Mn": (1.60, 1.90), "P": (0, .035), "S": (0, .040), "Si": (.15, .35)},
+    "4037": {"C": (.35, .40), "Mn": (.70, .90), "P": (0, .035), "S": (0, .040), "Si": (.15, .35), "Mo": (.20, .30)},
+    "4130": {"C": (.28, .33), "Mn": (.40, .60), "Si": (.15, .35), "Cr": (.80, 1.10), "Mo": (.15, .25)},
+    "4137": {"C": (.35, .40), "Mn": (.70, .90), "Si": (.15, .35), "Cr": (.80, 1.10), "Mo": (.15, .25)},
+    "4140": {"C": (.38, .43), "Mn": (.75, 1.00), "Si": (.15, .35), "Cr": (.80, 1.10), "Mo": (.15, .25)},
+    "4142": {"C": (.40, .45), "Mn": (.75, 1.00), "Si": (.15, .35), "Cr": (.80, 1.10), "Mo": (.15, .25)},
+    "4145": {"C": (.43, .48), "Mn": (.75, 1.00), "Si": (.15, .35), "Cr": (.80, 1.10), "Mo": (.15, .25)},
+}
+# AISI alloy-steel chart reproduced at tubingchina.com (C, Mn, Ni, Cr, Mo; its Si range is not SAE's)
+TUBINGCHINA = {
+    "4320": {"C": (.17, .22), "Mn": (.45, .65), "Ni": (1.65, 2.00), "Cr": (.40, .60), "Mo": (.20, .30)},
+    "4340": {"C": (.38, .43), "Mn": (.60, .80), "Ni": (1.65, 2.00), "Cr": (.70, .90), "Mo": (.20, .30)},
+    "4620": {"C": (.17, .22), "Mn": (.45, .65), "Ni": (1.65, 2.00), "Mo": (.20, .30)},
+    "4820": {"C": (.18, .23), "Mn": (.50, .70), "Ni": (3.25, 3.75), "Mo": (.20, .30)},
+}
+# ASTM A276 Table 1 as reproduced in ASME SA-276 (2001) and the gsalloy.com A276 chemistry table
+A276_TABLE1 = {
+    "304L": {"C": (0, .030), "Mn": (0, 2.00), "P": (0, .045), "S": (0, .030), "Si": (0, 1.00), "Cr": (18.0, 20.0),
+             "Ni": (8.0, 12.0)},
+    "316L": {"C": (0, .030), "Mn": (0, 2.00), "P": (0, .045), "S": (0, .030), "Si": (0, 1.00), "Cr": (16.0, 18.0),
+             "Ni": (10.0, 14.0), "Mo": (2.00, 3.00)},
+    "431": {"C": (0, .20), "Mn": (0, 1.00), "P": (0, .040), "S": (0, .030), "Si": (0, 1.00), "Cr": (15.0, 17.0),
+            "Ni": (1.25, 2.50)},
+    "2205": {"C": (0, .030), "Mn": (0, 2.00), "P": (0, .030), "S": (0, .020), "Si": (0, 1.00), "Cr": (22.0, 23.0),
+             "Ni": (4.5, 6.5), "Mo": (3.0, 3.5), "N": (.14, .20)},
+    "XM-19": {"C": (0, .06), "Mn": (4.00, 6.00), "Cr": (20.5, 23.5), "Ni": (11.5, 13.5), "Mo": (1.50, 3.00),
+              "N": (.20, .40), "Nb": (.10, .30)},
+}
+# Aluminum Association limits as reproduced in ASTM B221M-12a Table 1 (normdocs.ru) and the
+# 'Chemical Composition Limits Table 2.1' reproduction
+AA_TABLE = {
+    "2014": {"Si": (.50, 1.2), "Fe": (0, .7), "Cu": (3.9, 5.0), "Mn": (.40, 1.2), "Mg": (.20, .8), "Cr": (0, .10),
+             "Zn": (0, .25), "Ti": (0, .15)},
+    "6063": {"Si": (.20, .6), "Fe": (0, .35), "Cu": (0, .10), "Mn": (0, .10), "Mg": (.45, .9), "Cr": (0, .10),
+             "Zn": (0, .10), "Ti": (0, .10)},
+    "6061": {"Si": (.40, .8), "Fe": (0, .7), "Cu": (.15, .40), "Mn": (0, .15), "Mg": (.8, 1.2), "Cr": (.04, .35),
+             "Zn": (0, .25), "Ti": (0, .15)},
+    "7075": {"Si": (0, .40), "Fe": (0, .50), "Cu": (1.2, 2.0), "Mn": (0, .30), "Mg": (2.1, 2.9), "Cr": (.18, .28),
+             "Zn": (5.1, 6.1), "Ti": (0, .20)},
+    "5052": {"Si": (0, .25), "Fe": (0, .40), "Cu": (0, .10), "Mn": (0, .10), "Mg": (2.2, 2.8), "Cr": (.15, .35),
+             "Zn": (0, .10)},
+}
+
+TABLES = {"turretsteel carbon": TURRET_CARBON, "engineersedge resulfurized": ENGINEERSEDGE_RESULFURIZED,
+          "chicagotube free-machining": CHICAGOTUBE, "ASTM A311 Table 1": A311_TABLE1,
+          "turretsteel alloy": TURRET_ALLOY, "tubingchina alloy": TUBINGCHINA, "ASTM A276 Table 1": A276_TABLE1,
+          "Aluminum Association": AA_TABLE}
+CASES = [(src, gid, el, lim) for src, table in TABLES.items() for gid, els in table.items()
+         for el, lim in els.items()]
+
+
+def test_at_least_twenty_grades_are_checked():
+    assert len({gid for _, gid, _, _ in CASES}) >= 20
+
+
+@pytest.mark.parametrize("source,grade_id,element,limits", CASES,
+                         ids=[f"{g}-{e}" for _, g, e, _ in CASES])
+def test_composition_matches_the_standard_table(source, grade_id, element, limits):
+    g = grade(grade_id)
+    assert element in g.comp_min, f"{grade_id}: {element} missing (expected from {source})"
+    lo, hi = limits
+    # the tables give two or three decimals: 0.0005 wt % tolerance
+    assert g.comp_min[element] == pytest.approx(lo, abs=5e-4), source
+    assert g.comp_max[element] == pytest.approx(hi, abs=5e-4), source
