@@ -67,6 +67,11 @@ A276_TABLE1 = {
     "XM-19": {"C": (0, .06), "Mn": (4.00, 6.00), "Cr": (20.5, 23.5), "Ni": (11.5, 13.5), "Mo": (1.50, 3.00),
               "N": (.20, .40), "Nb": (.10, .30)},
 }
+# martensitic stainless analysis table reproduced at rolledmetalproducts.com (A276 / A582 types)
+ROLLEDMETAL_MARTENSITIC = {
+    "416": {"C": (0, .15), "Mn": (0, 1.25), "P": (0, .060), "Si": (0, 1.00), "Cr": (12.0, 14.0)},
+    "440C": {"C": (.95, 1.20), "Mn": (0, 1.00), "P": (0, .040), "S": (0, .030), "Si": (0, 1.00), "Cr": (16.0, 18.0)},
+}
 # Aluminum Association limits as reproduced in ASTM B221M-12a Table 1 (normdocs.ru) and the
 # 'Chemical Composition Limits Table 2.1' reproduction
 AA_TABLE = {
@@ -85,6 +90,7 @@ AA_TABLE = {
 TABLES = {"turretsteel carbon": TURRET_CARBON, "engineersedge resulfurized": ENGINEERSEDGE_RESULFURIZED,
           "chicagotube free-machining": CHICAGOTUBE, "ASTM A311 Table 1": A311_TABLE1,
           "turretsteel alloy": TURRET_ALLOY, "tubingchina alloy": TUBINGCHINA, "ASTM A276 Table 1": A276_TABLE1,
+          "rolledmetalproducts martensitic": ROLLEDMETAL_MARTENSITIC,
           "Aluminum Association": AA_TABLE}
 CASES = [(src, gid, el, lim) for src, table in TABLES.items() for gid, els in table.items()
          for el, lim in els.items()]
@@ -103,3 +109,22 @@ def test_composition_matches_the_standard_table(source, grade_id, element, limit
     # the tables give two or three decimals: 0.0005 wt % tolerance
     assert g.comp_min[element] == pytest.approx(lo, abs=5e-4), source
     assert g.comp_max[element] == pytest.approx(hi, abs=5e-4), source
+
+
+def test_416_sulphur_is_a_free_machining_minimum():
+    # ASTM A582 (rolledmetalproducts.com reproduction): S 0.15 min for type 416
+    assert grade("416").comp_min["S"] == pytest.approx(0.15)
+
+
+def test_grade_table_in_docs_lists_every_grade_and_is_current():
+    import importlib.util
+    from pathlib import Path
+    from selector.catalogue.grades import default_catalogue
+    path = Path(__file__).resolve().parents[1] / "scripts" / "grade_table.py"
+    spec = importlib.util.spec_from_file_location("grade_table", path)
+    mod = importlib.util.module_from_spec(spec)
+    spec.loader.exec_module(mod)
+    text = mod.OUT.read_text(encoding="utf-8")
+    assert text == mod.render(), "docs/grades.md is out of date: run python scripts/grade_table.py"
+    for gid in default_catalogue().grades:
+        assert f"| {gid} |" in text
