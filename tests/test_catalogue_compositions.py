@@ -87,10 +87,32 @@ AA_TABLE = {
              "Zn": (0, .10)},
 }
 
+# ASTM B348 Table 1 (titanium bar) as reproduced at titanium.net/standard/astm/b348
+B348_TABLE1 = {
+    "Ti-Gr2": {"N": (0, .03), "C": (0, .08), "H": (0, .015), "Fe": (0, .30), "O": (0, .25)},
+    "Ti-6Al-4V": {"N": (0, .05), "C": (0, .08), "H": (0, .015), "Fe": (0, .40), "O": (0, .20), "Al": (5.5, 6.75),
+                  "V": (3.5, 4.5)},
+}
+
+# EN 10084 case-hardening steels as reproduced at fuhongspecialsteel.com / round-steel.com
+EN10084_REPRO = {
+    "16MnCr5": {"C": (.14, .19), "Si": (0, .40), "Mn": (1.00, 1.30), "P": (0, .025), "S": (0, .035), "Cr": (.80, 1.10)},
+    "20MnCr5": {"C": (.17, .22), "Si": (0, .40), "Mn": (1.10, 1.40), "P": (0, .025), "S": (0, .035), "Cr": (1.00, 1.30)},
+}
+# ASTM A681 H13 (T20813) as reproduced at otaisteel.com and ascforgings.com
+A681_H13 = {"H13": {"C": (.32, .45), "Si": (.80, 1.20), "Mn": (.20, .50), "Cr": (4.75, 5.50), "Mo": (1.10, 1.75),
+                    "V": (.80, 1.20)},
+            # A2 (T30102) as reproduced at theworldmaterial.com (ASTM A681 row)
+            "A2": {"C": (.95, 1.05), "Si": (.10, .50), "Mn": (.40, 1.00), "Cr": (4.75, 5.50), "Mo": (.90, 1.40),
+                   "V": (.15, .50)},
+            # O1 (T31501) as reproduced at kmac-distribution.com
+            "O1": {"C": (.85, 1.00), "Mn": (1.00, 1.40), "W": (.40, .60), "V": (0, .30)}}
+
 TABLES = {"turretsteel carbon": TURRET_CARBON, "engineersedge resulfurized": ENGINEERSEDGE_RESULFURIZED,
           "chicagotube free-machining": CHICAGOTUBE, "ASTM A311 Table 1": A311_TABLE1,
           "turretsteel alloy": TURRET_ALLOY, "tubingchina alloy": TUBINGCHINA, "ASTM A276 Table 1": A276_TABLE1,
-          "rolledmetalproducts martensitic": ROLLEDMETAL_MARTENSITIC,
+          "rolledmetalproducts martensitic": ROLLEDMETAL_MARTENSITIC, "ASTM B348 Table 1": B348_TABLE1,
+          "EN 10084 reproductions": EN10084_REPRO, "ASTM A681 H13": A681_H13,
           "Aluminum Association": AA_TABLE}
 CASES = [(src, gid, el, lim) for src, table in TABLES.items() for gid, els in table.items()
          for el, lim in els.items()]
