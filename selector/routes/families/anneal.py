@@ -22,7 +22,7 @@ from .base import Batch, RouteFamily
 MODELLED = ("carbon_steel", "alloy_steel", "carburizing_steel")
 ANCHORED = ("alloy_steel", "carburizing_steel")
 STEEL_SCALE = ("carbon_steel", "alloy_steel", "carburizing_steel", "nitriding_steel", "stainless_martensitic",
-               "tool_steel", "maraging_steel")
+               "tool_steel", "maraging_steel", "stainless_ph")
 
 REFERENCES = (
     "C.M. Sellars & J.A. Whiteman, Metal Science 13 (1979) 187 (austenite grain growth)",
