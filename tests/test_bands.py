@@ -86,3 +86,13 @@ def test_band_covers_85_to_95_percent_of_independent_published_values():
     assert len(checked) >= 1, f"no family has 20 independent rows of a property:\n{cov}"
     bad = checked[(checked["coverage"] < 0.85) | (checked["coverage"] > 0.95)]
     assert bad.empty, bad
+
+
+def test_bought_bar_values_are_data_rows_without_a_model_band():
+    # a bar bought to ASTM A311 class B is delivered to the standard's minimum for its size: the value
+    # comes from data/supply_conditions.csv, not a model, so its band has zero width
+    r = selector.evaluate("1144", [{"op": "supply", "condition": "cold_drawn_stress_relieved"}], diameter_mm=25)
+    assert r["yield_mpa_lo"] == r["yield_mpa"] == r["yield_mpa_hi"]
+    q = selector.evaluate("1144", [{"op": "harden", "quench": "oil"}, {"op": "temper", "temp_c": 540}],
+                          diameter_mm=25)
+    assert q["yield_mpa_lo"] < q["yield_mpa"] < q["yield_mpa_hi"]

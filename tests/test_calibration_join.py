@@ -38,7 +38,7 @@ def test_condition_join_by_grade_or_family():
 def test_every_fit_row_list_is_read_and_joins_reference_rows():
     rows = calibration.fit_rows(str(report.data_dir()))
     fits = {r.fit for r in rows}
-    assert "tempering" in fits and "aging constants" in fits
+    assert "tempering_hv" in fits and "aging_ph" in fits and "jominy_equivalence" in fits
     cases = report.load_cases((report.QT_FILE,))
     cal = [c for c in cases if c.calibration]
     ind = [c for c in cases if not c.calibration]

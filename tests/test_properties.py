@@ -56,8 +56,9 @@ def _grid_rows(gid: str, fam_name: str) -> list[dict]:
     return [{k: (v[i].item() if hasattr(v[i], "item") else v[i]) for k, v in grid.items()} for i in range(n)]
 
 
+# (a grade whose route has no states, e.g. aging of an uncalibrated alloy, has nothing to sample)
 PAIRS = [(gid, name) for gid in GRADES for name in CAT.grades[gid].routes if name in FAMILY_OBJECTS
-         and CAT.grades[gid].family in FAMILY_OBJECTS[name].families]
+         and CAT.grades[gid].family in FAMILY_OBJECTS[name].families and _grid_rows(gid, name)]
 
 
 @st.composite

@@ -90,7 +90,8 @@ def test_tighter_target_never_adds_candidates():
 def test_family_and_corrosion_filters():
     r = selector.select({"min_yield_mpa": 200, "corrosion_resistant": True}, diameter_mm=20)
     assert len(r) and r["family"].isin(["stainless_austenitic", "stainless_martensitic", "stainless_ph",
-                                        "aluminium", "copper_alloy", "titanium"]).all()
+                                        "stainless_duplex", "aluminium", "copper_alloy", "titanium",
+                                        "nickel_alloy"]).all()
     r2 = selector.select({"min_yield_mpa": 200, "families": ["alloy_steel"]}, diameter_mm=20)
     assert len(r2) and (r2["family"] == "alloy_steel").all()
 

@@ -148,7 +148,7 @@ def test_two_section_4340_subset():
 
 
 def test_report_text_and_plots(tmp_path):
-    cases = [c for c in report.load_cases() if c.grade in ("4340", "1340", "4140H")][:40]
+    cases = [c for c in report.load_cases() if c.grade in ("4340", "301", "4140H")][:40]
     comp = report.recompute(cases)
     stats = report.statistics(comp)
     plots = report.parity_plots(comp, tmp_path / "validation")
@@ -156,7 +156,7 @@ def test_report_text_and_plots(tmp_path):
     text = report.render(comp, stats, plots, tmp_path / "validation.md", ["a source — a table"])
     assert "## Error statistics and thresholds" in text and "| alloy_steel |" in text
     assert "(validation/parity_uts.png)" in text
-    assert "grade not in the catalogue" in text          # 1340 is listed, not dropped
+    assert "grade not in the catalogue" in text          # 301 is listed, not dropped
     assert "* a source — a table" in text
 
 

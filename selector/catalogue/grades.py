@@ -17,12 +17,17 @@ from .loader import CONFIDENCE, Column, Schema, data_dir, read_table
 
 FAMILIES = ("carbon_steel", "alloy_steel", "carburizing_steel", "nitriding_steel",
             "stainless_austenitic", "stainless_martensitic", "stainless_ph",
-            "aluminium", "copper_alloy", "titanium")
+            "aluminium", "copper_alloy", "titanium",
+            "tool_steel", "maraging_steel", "stainless_duplex", "nickel_alloy")
 STEEL_FAMILIES = ("carbon_steel", "alloy_steel", "carburizing_steel", "nitriding_steel",
-                  "stainless_martensitic", "stainless_ph", "stainless_austenitic")
+                  "stainless_martensitic", "stainless_ph", "stainless_austenitic",
+                  "tool_steel", "maraging_steel", "stainless_duplex")
 ROUTES = ("anneal", "normalize", "quench_temper", "carburize", "nitride", "induction",
           "cold_work", "age")
-BALANCE = {"aluminium": "Al", "copper_alloy": "Cu", "titanium": "Ti"}  # else Fe
+#: route families of bar bought in a supply condition (data/supply_conditions.csv); a grade
+#: admits them from its supply rows (and its annealed baseline), not from its ``routes`` cell
+SUPPLY_ROUTES = ("supply", "supply_induction", "supply_nitride")
+BALANCE = {"aluminium": "Al", "copper_alloy": "Cu", "titanium": "Ti", "nickel_alloy": "Ni"}  # else Fe
 
 
 def _check_grade_row(r):
@@ -73,8 +78,8 @@ def _check_window_row(r):
         return ("default", f"{d} is outside [{lo}, {hi}]")
     if all(v != v for v in (lo, hi, d)) and not r["values"].strip():
         return ("values", "a window row needs min/max, a default or a list of values")
-    if r["route"] not in ROUTES:
-        return ("route", f"{r['route']!r} is not one of: {', '.join(ROUTES)}")
+    if r["route"] not in ROUTES + SUPPLY_ROUTES:
+        return ("route", f"{r['route']!r} is not one of: {', '.join(ROUTES + SUPPLY_ROUTES)}")
     return None
 
 
@@ -221,10 +226,31 @@ def _rows_by(frame: pd.DataFrame, key: str) -> dict:
     return out
 
 
-def build_catalogue(grades_path=None, comp_path=None, windows_path=None) -> Catalogue:
-    """Load, validate and join the three catalogue tables (paths default to
-    ``data/``).  Raises :class:`DataFileError` on the first problem."""
+def _supply_routes(r, routes: tuple, supply_rows: dict) -> tuple:
+    """The supply route families a grade admits: ``supply`` where it has supply rows or
+    an annealed steel baseline; ``supply_induction`` / ``supply_nitride`` where it also
+    admits induction / nitride and can be bought hardened or cold drawn."""
+    rows = supply_rows.get(r.id, [])
+    annealed = r.family in STEEL_FAMILIES and str(r.base_condition).strip().lower().startswith("annealed")
+    out = []
+    if rows or annealed:
+        out.append("supply")
+    conds = {x.condition for x in rows}
+    if "induction" in routes and conds & {"cold_drawn", "cold_drawn_stress_relieved", "quenched_tempered",
+                                          "normalized", "hot_rolled"}:
+        out.append("supply_induction")
+    if "nitride" in routes and "quenched_tempered" in conds:
+        out.append("supply_nitride")
+    return tuple(out)
+
+
+def build_catalogue(grades_path=None, comp_path=None, windows_path=None, supply_path=None) -> Catalogue:
+    """Load, validate and join the catalogue tables (paths default to ``data/``):
+    grades, compositions, route windows and supply conditions.  Raises
+    :class:`DataFileError` on the first problem.  With custom grade tables and no
+    ``supply_path``, the built-in supply rows of the grades present are used."""
     from .loader import read_file
+    from .supply import read_supply
 
     d = data_dir()
     gp, cp, wp = (grades_path or d / "grades.csv", comp_path or d / "compositions.csv",
@@ -261,11 +287,17 @@ def build_catalogue(grades_path=None, comp_path=None, windows_path=None) -> Cata
             line = int(comps[comps["grade"] == gid]["line"].max())
             raise DataFileError(str(cp), line, "max_pct", f"maximums of {gid} add up to {s:.2f} % (> 100 %)")
 
+    strict = supply_path is not None or (grades_path is None and comp_path is None)
+    supply_rows = read_supply(supply_path, set(ids) if strict else None)
+    if not strict:
+        supply_rows = {k: v for k, v in supply_rows.items() if k in ids}
+
     out, index = {}, {}
     comps_by, windows_by = _rows_by(comps, "grade"), _rows_by(windows, "scope")
     for r in grades.itertuples(index=False):
         sub = comps_by.get(r.id, [])
         routes = tuple(x.strip() for x in r.routes.split(";") if x.strip())
+        routes = routes + _supply_routes(r, routes, supply_rows)
         des = {"uns": r.uns, "en_name": r.en_name, "en_number": r.en_number, "jis": r.jis}
         aliases = tuple(a.strip() for a in str(r.aliases).split(";") if a.strip())
         g = Grade(

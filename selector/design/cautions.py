@@ -132,9 +132,9 @@ GALVANIC_LIMITS_V = MappingProxyType({"harsh": 0.15, "normal": 0.25, "controlled
 HARDENED_STEELS = ("carbon_steel", "alloy_steel", "carburizing_steel", "nitriding_steel")
 HARDENING_ROUTES = ("quench_temper", "induction", "carburize")
 HE_FAMILIES = ("carbon_steel", "alloy_steel", "carburizing_steel", "nitriding_steel",
-               "stainless_martensitic", "stainless_ph")
+               "stainless_martensitic", "stainless_ph", "tool_steel", "maraging_steel")
 DECARB_FAMILIES = ("carbon_steel", "alloy_steel", "carburizing_steel", "nitriding_steel",
-                   "stainless_martensitic")
+                   "stainless_martensitic", "tool_steel")
 DECARB_ROUTES = ("quench_temper", "normalize", "anneal")
 
 _OVERAGED_AL = re.compile(r"^T7\d*", re.I)           # T73, T7351, T76, T74 ...

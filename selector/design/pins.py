@@ -92,6 +92,8 @@ SHEAR_TO_TENSILE = {
                            "about 0.6-0.7; the low end is used", "from memory"),
     "titanium": (0.60, "MMPDS Fsu/Ftu for annealed Ti-6Al-4V about 0.6-0.65; the low end "
                        "is used", "from memory"),
+    "nickel_alloy": (0.60, "handbook shear/tensile ratios of wrought nickel alloys about 0.6-0.65; "
+                           "the low end is used", "from memory"),
 }
 
 #: material classes accepted by :func:`pin_targets`; a catalogue family maps to its class
@@ -101,6 +103,8 @@ _FAMILY_CLASS = {
     "nitriding_steel": "steel", "stainless_austenitic": "steel",
     "stainless_martensitic": "steel", "stainless_ph": "steel",
     "aluminium": "aluminium", "copper_alloy": "copper_alloy", "titanium": "titanium",
+    "tool_steel": "steel", "maraging_steel": "steel", "stainless_duplex": "steel",
+    "nickel_alloy": "nickel_alloy",
 }
 
 LOAD_MODELS = ("uniform", "concentrated")

@@ -59,10 +59,12 @@ def phase_hardness_hv(comp, cooling_rate_c_s):
     lv = np.log10(3600.0 * r)
     c, si, mn, ni, cr, mo, v = (el(comp, e) for e in ("C", "Si", "Mn", "Ni", "Cr", "Mo", "V"))
     hv_m = 127 + 949 * c + 27 * si + 11 * mn + 8 * ni + 16 * cr + 21 * lv
+    # the cooling-rate coefficients are held at >= 0: outside the fitted range (e.g. Si ~2 % of 9255) they
+    # turn negative and slower cooling would harden the constituent, which no steel does (common practice)
     hv_b = (-323 + 185 * c + 330 * si + 153 * mn + 65 * ni + 144 * cr + 191 * mo
-            + (89 + 53 * c - 55 * si - 22 * mn - 10 * ni - 20 * cr - 33 * mo) * lv)
+            + np.maximum(89 + 53 * c - 55 * si - 22 * mn - 10 * ni - 20 * cr - 33 * mo, 0.0) * lv)
     hv_fp = (42 + 223 * c + 53 * si + 30 * mn + 12.6 * ni + 7 * cr + 19 * mo
-             + (10 - 19 * si + 4 * ni + 8 * cr + 130 * v) * lv)
+             + np.maximum(10 - 19 * si + 4 * ni + 8 * cr + 130 * v, 0.0) * lv)
     return hv_m, hv_b, hv_fp
 
 

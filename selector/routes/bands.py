@@ -54,6 +54,12 @@ _SCHEMA = Schema((Column("family"), Column("route"), Column("section_band"), Col
                   Column("source"), Column("confidence")))
 
 
+#: result key (1.0 / 0.0 per state) set by a family whose values are a standard's guaranteed minimum read
+#: from a sourced row (a bar bought to ASTM A311 class B, A434, EN 10083 +QT at its size), not a model
+#: estimate: such a state has no model band (zero width) -- the mill certificate of the bar governs
+BAND_FREE = "band_free"
+
+
 def section_band(section_mm) -> np.ndarray:
     """Section band label of each section (mm)."""
     s = np.asarray(section_mm, float)
@@ -75,8 +81,8 @@ def quantiles(families, route: str, section_mm, prop: str) -> tuple[np.ndarray, 
     fam = np.asarray(families, dtype=object)
     sb = section_band(section_mm)
     n = fam.shape[0]
-    lo, hi = np.full(n, np.nan), np.full(n, np.nan)
     mode = PROPERTIES[prop]
+    lo, hi = np.full(n, np.nan), np.full(n, np.nan)
     for f in np.unique(fam):
         for b in np.unique(sb):
             m = (fam == f) & (sb == b)
@@ -98,12 +104,19 @@ def apply(value, q_lo, q_hi, mode: str) -> tuple[np.ndarray, np.ndarray]:
 
 
 def band_columns(res: dict, families, route: str, section_mm) -> dict:
-    """``<key>_lo`` and ``<key>_hi`` for every banded property present in ``res``."""
+    """``<key>_lo`` and ``<key>_hi`` for every banded property present in ``res``.
+
+    Where ``res[BAND_FREE]`` is set (a standard's guaranteed minimum read from a
+    sourced row, e.g. ``data/supply_conditions.csv``) the band has zero width: the mill
+    certificate of the bar, not a model, governs what is delivered.  Typical values
+    of a supply row keep the model band."""
     out = {}
+    free = np.asarray(res.get(BAND_FREE, 0.0), float) > 0.5
     for prop in PROPERTIES:
         if prop not in res:
             continue
         q_lo, q_hi, mode = quantiles(families, route, section_mm, prop)
+        q_lo, q_hi = np.where(free, 0.0, q_lo), np.where(free, 0.0, q_hi)
         out[prop + "_lo"], out[prop + "_hi"] = apply(res[prop], q_lo, q_hi, mode)
     return out
 

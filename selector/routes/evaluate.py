@@ -15,7 +15,7 @@ from . import bands, families, steps as steps_mod
 from .families.base import Batch, test_position
 
 STEEL_SCALE_FAMILIES = ("carbon_steel", "alloy_steel", "carburizing_steel", "nitriding_steel",
-                        "stainless_martensitic", "stainless_ph")
+                        "stainless_martensitic", "stainless_ph", "tool_steel", "maraging_steel")
 
 E140_SOURCE = "ASTM E140-12b Table 1 / ASTM A370 Table 3 (hardness conversions, non-austenitic steels)"
 

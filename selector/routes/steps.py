@@ -23,6 +23,9 @@ from .. import inputs
 MAX_STEPS = 12
 
 QUENCH_MEDIA = ("water", "brine", "oil", "polymer", "air")
+#: supply conditions of bar as ordered (selector.catalogue.supply.CONDITIONS gives them in words)
+SUPPLY_CONDITIONS = ("hot_rolled", "cold_drawn", "cold_drawn_stress_relieved", "quenched_tempered",
+                     "annealed", "normalized", "peeled", "aged")
 AGITATION = ("none", "mild", "moderate", "strong")
 
 
@@ -59,6 +62,10 @@ OPS: Mapping[str, Mapping[str, Param]] = {
     "induction_harden": {"case_depth_mm": Param("float", 0.1, 25, required=True, unit="mm"),
                          "frequency_hz": Param("float", 50, 2e6, unit="Hz"),
                          "quench": Param("choice", choices=QUENCH_MEDIA)},
+    "supply": {"condition": Param("choice", choices=SUPPLY_CONDITIONS, required=True),
+               "designation": Param("str")},
+    "stress_relieve": {"temp_c": Param("float", 150, 720, required=True, unit="°C"),
+                       "hours": Param("float", 0.05, 50, unit="h")},
 }
 
 
@@ -137,9 +144,17 @@ def describe(steps: Sequence[Mapping]) -> str:
             label = {"quench": "", "temp_c": "", "hours": "", "reduction_pct": "reduction ",
                      "designation": "", "austenitize_c": "from ", "agitation": "agitation ",
                      "surface_carbon_pct": "surface C ", "case_depth_mm": "depth ",
-                     "frequency_hz": ""}.get(k, f"{k} ")
+                     "frequency_hz": "", "condition": ""}.get(k, f"{k} ")
             if k == "quench":
                 txt = f"{v} quench"
+            if k == "condition":
+                from ..catalogue.supply import CONDITIONS
+                txt = CONDITIONS.get(str(v), str(v))
+            if k == "designation" and s["op"] == "supply":
+                txt = f"({v})"
             bits.append(label + txt)
+        if s["op"] == "supply":
+            parts.append("bar bought " + " ".join(bits))
+            continue
         parts.append(op + (" " + ", ".join(bits) if bits else ""))
     return " → ".join(parts)

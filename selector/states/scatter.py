@@ -260,6 +260,8 @@ def _band_quantiles(frame: pd.DataFrame, section_mm: float) -> dict:
             ql, qh, _ = bands.quantiles(fams[m], r, np.full(int(m.sum()), section_mm), prop)
             lo[m], hi[m] = ql, qh
         ok = np.isfinite(lo) & np.isfinite(hi)
+        if bands.BAND_FREE in frame:      # a standard's guaranteed minimum: no model error
+            ok &= ~(frame[bands.BAND_FREE].to_numpy(float) > 0.5)
         out[prop] = (np.where(ok, lo, 0.0), np.where(ok, hi, 0.0))
     return out
 

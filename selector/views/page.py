@@ -446,7 +446,8 @@ def route_json(route) -> str:
 
 ROUTE_SHORT = {"quench_temper": "harden+temper", "carburize": "carburize", "nitride": "nitride",
                "induction": "induction", "cold_work": "cold work", "age": "solution+age",
-               "anneal": "anneal", "normalize": "normalize"}
+               "anneal": "anneal", "normalize": "normalize", "supply": "bar as supplied",
+               "supply_induction": "bought bar + induction", "supply_nitride": "bought bar + nitride"}
 
 PARAM_LABELS = {"temper_temp_c": "tempering temperature", "hours": "time at temperature",
                 "reduction_pct": "cold reduction", "age_temp_c": "aging temperature",
@@ -995,7 +996,8 @@ def _cell(v):
 OP_TITLES = {"harden": "Austenitize and quench", "temper": "Temper", "normalize": "Normalize",
              "anneal": "Anneal", "carburize": "Carburize", "nitride": "Nitride (gas)",
              "induction_harden": "Induction harden", "cold_work": "Cold work",
-             "solution_treat": "Solution treat", "age": "Age"}
+             "solution_treat": "Solution treat", "age": "Age", "supply": "Buy bar",
+             "stress_relieve": "Stress relieve"}
 
 
 #: how a step parameter reads in a sentence: name -> (words before the value, kind)
@@ -1017,6 +1019,10 @@ def route_steps(route: Sequence[Mapping], system: str) -> list[str]:
             if k == "op":
                 continue
             words, kind = STEP_WORDS.get(k, (k.replace("_", " "), "number"))
+            if op == "supply":
+                from selector.catalogue.supply import CONDITIONS
+                bits.append(CONDITIONS.get(str(v), str(v)) if k == "condition" else f"({v})")
+                continue
             if isinstance(v, bool) or not isinstance(v, (int, float)):
                 bits.append(f"{words} {v}")
             elif kind == "temperature":

@@ -19,6 +19,7 @@ MODULES = {
     "anneal": "anneal", "normalize": "anneal", "quench_temper": "quench_temper",
     "carburize": "carburize", "nitride": "nitride", "induction": "induction",
     "cold_work": "cold_work", "age": "age",
+    "supply": "supply", "supply_induction": "supply", "supply_nitride": "supply",
 }
 
 #: family name -> accepted op sequences
@@ -34,8 +35,12 @@ PATTERNS = {
                   ("normalize", "induction_harden"), ("normalize", "induction_harden", "temper"),
                   ("harden", "temper", "induction_harden"),
                   ("harden", "temper", "induction_harden", "temper")),
-    "cold_work": (("cold_work",), ("anneal", "cold_work")),
+    "cold_work": (("cold_work",), ("anneal", "cold_work"), ("cold_work", "stress_relieve"),
+                  ("anneal", "cold_work", "stress_relieve")),
     "age": (("solution_treat",), ("age",), ("solution_treat", "age")),
+    "supply": (("supply",), ("supply", "stress_relieve")),
+    "supply_induction": (("supply", "induction_harden"), ("supply", "induction_harden", "temper")),
+    "supply_nitride": (("supply", "nitride"),),
 }
 
 

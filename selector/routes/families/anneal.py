@@ -21,7 +21,8 @@ from .base import Batch, RouteFamily
 
 MODELLED = ("carbon_steel", "alloy_steel", "carburizing_steel")
 ANCHORED = ("alloy_steel", "carburizing_steel")
-STEEL_SCALE = ("carbon_steel", "alloy_steel", "carburizing_steel", "nitriding_steel", "stainless_martensitic")
+STEEL_SCALE = ("carbon_steel", "alloy_steel", "carburizing_steel", "nitriding_steel", "stainless_martensitic",
+               "tool_steel", "maraging_steel", "stainless_ph")
 
 REFERENCES = (
     "C.M. Sellars & J.A. Whiteman, Metal Science 13 (1979) 187 (austenite grain growth)",
@@ -130,7 +131,8 @@ class Anneal(_Soften):
     cooling = "furnace"
     patterns = (("anneal",),)
     families = ("carbon_steel", "alloy_steel", "carburizing_steel", "nitriding_steel", "stainless_austenitic",
-                "stainless_martensitic", "aluminium", "copper_alloy", "titanium")
+                "stainless_martensitic", "aluminium", "copper_alloy", "titanium", "tool_steel", "maraging_steel",
+                "stainless_duplex", "nickel_alloy", "stainless_ph")
 
 
 class Normalize(_Soften):

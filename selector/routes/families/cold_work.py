@@ -6,6 +6,11 @@ is given as ``reduction_pct`` (area reduction) or as a temper ``designation`` th
 the standards define (copper alloys H01…H10, aluminium H32…H38, austenitic stainless
 1/4…full hard; ``data/temper_aliases.csv``).
 
+``→ stress_relieve`` may follow the cold work (``{"op": "stress_relieve", "temp_c": 400,
+"hours": 1}``): the recovery of ductility with the small gain (low temperature) or the loss
+(above about 480 °C) of yield of :mod:`selector.models.stress_relief` (ASM Handbook
+cold-finished bar practice, from memory; Hollomon-Jaffe time-temperature parameter).
+
 Model: Hollomon strain hardening from the grade's annealed constants
 (:func:`selector.models.strain_hardening.cold_worked_properties`,
 ``data/hollomon_constants.csv``), starting from the catalogue's annealed yield and
@@ -16,7 +21,7 @@ from __future__ import annotations
 import numpy as np
 
 from ...errors import InputError, RouteError
-from ...models import conversions, strain_hardening as sh, validity
+from ...models import conversions, strain_hardening as sh, stress_relief, validity
 from .base import Batch, RouteFamily
 
 ROUTE = "cold_work"
@@ -44,11 +49,13 @@ def _reduction_from_step(step, grade) -> tuple[float, str]:
 class ColdWork(RouteFamily):
     name = "cold_work"
     label = "cold work"
-    patterns = (("cold_work",), ("anneal", "cold_work"))
+    patterns = (("cold_work",), ("anneal", "cold_work"), ("cold_work", "stress_relieve"),
+                ("anneal", "cold_work", "stress_relieve"))
     main_parameter = "reduction_pct"
-    parameters = ("reduction_pct", "designation", "prior_anneal")
+    parameters = ("reduction_pct", "designation", "prior_anneal", "stress_relieve_temp_c", "stress_relieve_hours")
     families = ("carbon_steel", "stainless_austenitic", "aluminium", "copper_alloy")
     references = (
+        stress_relief.REFERENCE,
         "J.H. Hollomon, Trans. AIME 162 (1945) 268 (power-law strain hardening)",
         "G.E. Dieter, Mechanical Metallurgy (Considère necking; properties after prestrain)",
         "Kalpakjian & Schmid and Callister tables of K and n; fits to ASTM B36 (C26000) and AA 5052 tempers",
@@ -65,6 +72,17 @@ class ColdWork(RouteFamily):
                   "prior_anneal": "anneal" if steps[0]["op"] == "anneal" else "none"}
         warns = self.window_warnings(grade, ROUTE, {"reduction_pct": params["reduction_pct"]})
         warns += validity.check("strain_hardening", reduction_pct=params["reduction_pct"])
+        sr = next((s for s in steps if s["op"] == "stress_relieve"), None)
+        params["stress_relieve_temp_c"] = float(sr["temp_c"]) if sr else float("nan")
+        params["stress_relieve_hours"] = float(sr.get("hours", 1.0)) if sr else float("nan")
+        if sr:
+            if grade.family not in STEEL_SCALE:
+                from ...errors import NotModelledError
+                raise NotModelledError(f"stress relieving after cold work is modelled for carbon steels only "
+                                       f"(ASM Handbook cold-finished bar practice); {grade.id} is {grade.family}")
+            warns += self.window_warnings(grade, ROUTE, {"stress_relieve_temp_c": params["stress_relieve_temp_c"]})
+            warns += validity.check("stress_relief", temp_c=params["stress_relieve_temp_c"],
+                                    hours=params["stress_relieve_hours"])
         return params, warns
 
     def to_steps(self, params):
@@ -72,7 +90,12 @@ class ColdWork(RouteFamily):
         step = {"op": ROUTE, "reduction_pct": round(float(params["reduction_pct"]), 4)}
         if params.get("designation"):
             step["designation"] = str(params["designation"])
-        return steps + [step]
+        steps = steps + [step]
+        t = params.get("stress_relieve_temp_c", float("nan"))
+        if t is not None and t == t:
+            steps.append({"op": "stress_relieve", "temp_c": float(t),
+                          "hours": float(params.get("stress_relieve_hours", 1.0))})
+        return steps
 
     def grid(self, grade):
         r = self.span(grade, ROUTE, "reduction_pct", 7, (0.0, 40.0))
@@ -83,7 +106,8 @@ class ColdWork(RouteFamily):
             r = np.array([self.span(grade, ROUTE, "reduction_pct", 2, (0.0, 40.0)).max()])
         n = len(r)
         return {"reduction_pct": r, "designation": np.array([""] * n, dtype=object),
-                "prior_anneal": np.array(["none"] * n, dtype=object)}
+                "prior_anneal": np.array(["none"] * n, dtype=object),
+                "stress_relieve_temp_c": np.full(n, np.nan), "stress_relieve_hours": np.full(n, np.nan)}
 
     def compute(self, batch: Batch):
         n = batch.n
@@ -93,6 +117,17 @@ class ColdWork(RouteFamily):
         res = sh.cold_worked_properties(red, pick("k_mpa"), pick("n"), batch.attr("base_yield_mpa"),
                                         batch.attr("base_elongation_pct"), pick("post_uniform_pct"),
                                         pick("yield_ratio"))
+        sr_t = np.asarray(batch.params.get("stress_relieve_temp_c", np.full(n, np.nan)), float)
+        sr_h = np.asarray(batch.params.get("stress_relieve_hours", np.full(n, np.nan)), float)
+        relieved = np.isfinite(sr_t)
+        if relieved.any():
+            r = stress_relief.stress_relieved_properties(
+                np.where(relieved, sr_t, 400.0), np.where(relieved, sr_h, 1.0), res["uts_mpa"], res["yield_mpa"],
+                res["elongation_pct"], batch.attr("base_uts_mpa"), batch.attr("base_yield_mpa"),
+                batch.attr("base_elongation_pct"))
+            res = dict(res)
+            for k in ("uts_mpa", "yield_mpa", "elongation_pct"):
+                res[k] = np.where(relieved, r[k], res[k])
         fam = batch.attr("family").astype(str)
         steel = np.isin(fam, STEEL_SCALE)
         hv = np.where(steel, conversions.uts_to_hv(np.where(steel, res["uts_mpa"], 500.0)), np.nan)
@@ -114,6 +149,11 @@ class ColdWork(RouteFamily):
              "(Considère fallback, data/hollomon_constants.csv)",
              np.array([c["key"].endswith("_family") for c in consts], bool)[batch.gidx]),
         ]
+        notes.append(("stress relieved after cold work: ASM Handbook cold-finished bar practice (from memory) on "
+                      "the Hollomon-Jaffe time-temperature parameter", relieved))
+        notes.append(("stress relieving outside the registered range of the stress_relief model: extrapolated",
+                      relieved & validity.out_of_range_mask("stress_relief", temp_c=np.where(relieved, sr_t, 400.0),
+                                                            hours=np.where(relieved, sr_h, 1.0))))
         out["notes"] = notes
         return out
 

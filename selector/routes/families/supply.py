@@ -1,0 +1,330 @@
+"""Bar bought in a supply condition, alone or followed by a surface treatment.
+
+Families and accepted sequences:
+
+* ``supply``: ``supply`` (buy as supplied: no processing adder) and
+  ``supply → stress_relieve`` (a cold-drawn bar stress relieved by the buyer);
+* ``supply_induction``: ``supply → induction_harden [→ temper]`` (for example a cold-drawn
+  or pre-hardened bar induction hardened);
+* ``supply_nitride``: ``supply → nitride`` (a pre-hardened, quenched-and-tempered bar nitrided).
+
+What is modelled:
+
+* the supply condition's properties are those of ``data/supply_conditions.csv`` for the
+  grade, condition, designation and size (the standard's minimum or a typical value, as
+  the row's ``basis`` says); the ``annealed`` condition is the catalogue baseline;
+* hardness: the row's published HRC band (its middle) where it gives one, else from the
+  tensile strength on ASTM A370 Table 3 / E140;
+* stress relieving of a cold-drawn bar: :mod:`selector.models.stress_relief` between the
+  cold-drawn row and the annealed baseline;
+* induction hardening and nitriding after supply: the induction and nitride families'
+  own case models, on a core equal to the supply condition (the core is left as it
+  was: induction heats only the case; nitriding below the prior temper leaves a
+  quenched-and-tempered core unchanged, common practice).
+
+What is not modelled (``NotModelledError``): stress relieving anything but a cold-drawn
+bar (``cold_drawn_stress_relieved`` is already relieved; a quenched-and-tempered bar is
+tempered), nitriding a bar that is not quenched and tempered (a cold-drawn bar would
+recover and distort during a nitriding cycle of tens of hours, and the handbook practice is
+to harden and temper first), and through-hardening a supplied bar (that is the
+``quench_temper`` route from the annealed bar: the supply condition is then irrelevant).
+"""
+from __future__ import annotations
+
+import dataclasses
+
+import numpy as np
+
+from ...catalogue import supply as sup
+from ...catalogue.grades import FAMILIES as FAMILIES_ALL
+from ...errors import NotModelledError, RouteError
+from ...models import conversions, stress_relief, validity
+from .. import bands
+from .base import Batch, RouteFamily
+
+STEEL_SCALE = ("carbon_steel", "alloy_steel", "carburizing_steel", "nitriding_steel", "stainless_martensitic",
+               "stainless_ph", "tool_steel", "maraging_steel")
+
+REFERENCES = (
+    "data/supply_conditions.csv (properties by size: ASTM A108 / SAE J1397 estimated values, ASTM A311, "
+    "ASTM A434, EN 10083 +QT, EN 10277; each row names its table and confidence)",
+    "ASTM E140-12b Table 1 / ASTM A370 Table 3 (hardness from tensile strength)",
+)
+
+
+def _designation(grade, condition: str, given):
+    names = sup.designations(grade, condition)
+    if not names:
+        offered = ", ".join(sorted({c for c, _ in sup.conditions_for(grade)})) or "none"
+        raise RouteError("condition", condition, f"a supply condition listed for {grade.id} "
+                         f"(data/supply_conditions.csv: {offered})", "supply")
+    if given is None:
+        return names[0]
+    if given not in names:
+        raise RouteError("designation", given, f"one of: {', '.join(names)} ({grade.id}, {condition})", "supply")
+    return given
+
+
+def supply_properties(batch: Batch) -> dict:
+    """Properties of the supplied bar of each state of ``batch`` (parameters
+    ``condition`` and ``designation``) at its section: arrays ``uts_mpa``,
+    ``yield_mpa``, ``elongation_pct``, ``hardness_hv`` and the masks ``outside``
+    (section outside every row's sizes), ``minimum`` (row basis is the standard's
+    minimum) and ``confidence`` (object array)."""
+    n = batch.n
+    cond = np.asarray(batch.params["condition"]).astype(str)
+    des = np.asarray(batch.params["designation"]).astype(str)
+    section = batch.section_mm
+    uts, ys, el, hv = (np.full(n, np.nan) for _ in range(4))
+    outside, minimum = np.zeros(n, bool), np.zeros(n, bool)
+    conf = np.full(n, "", dtype=object)
+    cache = {}
+    for i in range(n):
+        g = batch.grades[batch.gidx[i]]
+        key = (g.id, cond[i], des[i], float(section[i]))
+        if key not in cache:
+            cache[key] = sup.pick_row(g, cond[i], des[i], float(section[i]))
+        row, out = cache[key]
+        if row is None:
+            uts[i], ys[i], el[i] = g.base_uts_mpa, g.base_yield_mpa, g.base_elongation_pct
+            hb = g.base_hardness_hb
+            hv[i] = conversions.hb_to_hv(hb) if hb == hb else np.nan
+            conf[i] = g.confidence
+            outside[i] = out
+            continue
+        uts[i], ys[i], el[i] = row.uts_mpa, row.yield_mpa, row.elongation_pct
+        if row.hardness_hrc_min == row.hardness_hrc_min:
+            hv[i] = conversions.hrc_to_hv(0.5 * (row.hardness_hrc_min + row.hardness_hrc_max))
+        else:
+            hv[i] = np.nan
+        outside[i], minimum[i], conf[i] = out, row.basis == "minimum", row.confidence
+    need = ~np.isfinite(hv) & np.isfinite(uts)
+    if need.any():
+        hv[need] = conversions.uts_to_hv(uts[need])
+    return {"uts_mpa": uts, "yield_mpa": ys, "elongation_pct": el, "hardness_hv": hv, "outside": outside,
+            "minimum": minimum, "confidence": conf}
+
+
+def _supply_notes(props: dict, batch: Batch) -> list:
+    cond = np.asarray(batch.params["condition"]).astype(str)
+    return [
+        ("section outside the sizes of the supply-condition source row: the nearest size's values are "
+         "given (data/supply_conditions.csv)", props["outside"]),
+        ("supply condition values are the standard's guaranteed minimums (the bar as delivered is usually "
+         "stronger; certified test reports govern)", props["minimum"]),
+        ("supply condition values are recalled, not verified (from memory): check the product standard",
+         props["confidence"] == "from memory"),
+        ("annealed bar: the catalogue's annealed baseline (data/grades.csv)", cond == "annealed"),
+    ]
+
+
+def _with_core(batch: Batch, props: dict) -> Batch:
+    """A batch whose per-state grade records carry the supplied bar's properties as
+    their baseline, so that a downstream family's 'supplied core' is the bar's."""
+    grades = []
+    for i in range(batch.n):
+        g = batch.grades[batch.gidx[i]]
+        hb = float(conversions.hv_to_hb(props["hardness_hv"][i])) if np.isfinite(props["hardness_hv"][i]) \
+            else g.base_hardness_hb
+        grades.append(dataclasses.replace(
+            g, base_uts_mpa=float(props["uts_mpa"][i]), base_yield_mpa=float(props["yield_mpa"][i]),
+            base_elongation_pct=float(props["elongation_pct"][i]), base_hardness_hb=hb))
+    return Batch(grades, np.arange(batch.n), batch.comp, batch.params, batch.diameter_mm, batch.thickness_mm)
+
+
+class Supply(RouteFamily):
+    name = "supply"
+    label = "bar as supplied"
+    patterns = (("supply",), ("supply", "stress_relieve"))
+    main_parameter = None
+    parameters = ("condition", "designation", "stress_relieve_temp_c", "stress_relieve_hours")
+    #: every grade family: a grade admits the route from its supply rows (catalogue/supply.py)
+    families = FAMILIES_ALL
+    references = REFERENCES + (stress_relief.REFERENCE,)
+
+    def parse(self, steps, grade):
+        s = steps[0]
+        cond = str(s["condition"])
+        if cond == "annealed" and not sup.is_annealed_baseline(grade):
+            raise RouteError("condition", cond, f"a supply condition listed for {grade.id}: its baseline is "
+                             f"{grade.base_condition!r}, not an annealed steel bar", "supply")
+        des = "catalogue baseline" if cond == "annealed" else _designation(grade, cond, s.get("designation"))
+        params = {"condition": cond, "designation": des, "stress_relieve_temp_c": float("nan"),
+                  "stress_relieve_hours": float("nan")}
+        warns = []
+        if len(steps) > 1:
+            if cond not in sup.COLD_WORKED:
+                raise NotModelledError(
+                    f"stress relieving a bar supplied {sup.CONDITIONS[cond]!r} is not modelled: only a cold-drawn "
+                    "bar carries the cold work that stress relieving recovers (cold_drawn_stress_relieved is "
+                    "already relieved; a quenched-and-tempered bar is tempered)")
+            sr = steps[1]
+            params["stress_relieve_temp_c"] = float(sr["temp_c"])
+            params["stress_relieve_hours"] = float(sr.get("hours", 1.0))
+            warns += validity.check("stress_relief", temp_c=params["stress_relieve_temp_c"],
+                                    hours=params["stress_relieve_hours"])
+        return params, warns
+
+    def to_steps(self, params):
+        step = {"op": "supply", "condition": str(params["condition"])}
+        if str(params.get("condition")) != "annealed":
+            step["designation"] = str(params["designation"])
+        steps = [step]
+        t = params.get("stress_relieve_temp_c", float("nan"))
+        if t is not None and t == t:
+            steps.append({"op": "stress_relieve", "temp_c": float(t),
+                          "hours": float(params.get("stress_relieve_hours", 1.0))})
+        return steps
+
+    def grid(self, grade):
+        pairs = sup.conditions_for(grade)
+        n = len(pairs)
+        return {"condition": np.array([c for c, _ in pairs], dtype=object),
+                "designation": np.array([d for _, d in pairs], dtype=object),
+                "stress_relieve_temp_c": np.full(n, np.nan), "stress_relieve_hours": np.full(n, np.nan)}
+
+    def compute(self, batch: Batch):
+        n = batch.n
+        props = supply_properties(batch)
+        uts, ys, el, hv = (props[k].copy() for k in ("uts_mpa", "yield_mpa", "elongation_pct", "hardness_hv"))
+        sr_t = np.asarray(batch.params.get("stress_relieve_temp_c", np.full(n, np.nan)), float)
+        sr_h = np.asarray(batch.params.get("stress_relieve_hours", np.full(n, np.nan)), float)
+        relieved = np.isfinite(sr_t)
+        if relieved.any():
+            r = stress_relief.stress_relieved_properties(
+                np.where(relieved, sr_t, 400.0), np.where(relieved, sr_h, 1.0), uts, ys, el,
+                batch.attr("base_uts_mpa"), batch.attr("base_yield_mpa"), batch.attr("base_elongation_pct"))
+            uts = np.where(relieved, r["uts_mpa"], uts)
+            ys = np.where(relieved, r["yield_mpa"], ys)
+            el = np.where(relieved, r["elongation_pct"], el)
+            hv = np.where(relieved, conversions.uts_to_hv(np.where(relieved, uts, 500.0)), hv)
+        fam = batch.attr("family").astype(str)
+        hv = np.where(np.isin(fam, STEEL_SCALE) | np.isin(fam, ("stainless_austenitic",)), hv, np.nan)
+        out = {"uts_mpa": uts, "yield_mpa": ys, "elongation_pct": el, "center_uts_mpa": uts,
+               "center_yield_mpa": ys, "center_elongation_pct": el, "hardness_hv": hv,
+               "surface_hardness_hv": hv, "center_hardness_hv": hv, "case_depth_mm": np.zeros(n),
+               # a standard's guaranteed minimum at a size the row covers, not relieved here: no model band
+               bands.BAND_FREE: (np.asarray(props["minimum"], bool) & ~np.asarray(props["outside"], bool)
+                                 & ~relieved).astype(float)}
+        notes = _supply_notes(props, batch)
+        notes.append(("stress relieving model: ASM Handbook cold-finished bar practice (from memory) on the "
+                      "Hollomon-Jaffe time-temperature parameter", relieved))
+        notes.append(("stress relieving outside the registered range of the stress_relief model: extrapolated",
+                      relieved & validity.out_of_range_mask("stress_relief", temp_c=np.where(relieved, sr_t, 400.0),
+                                                            hours=np.where(relieved, sr_h, 1.0))))
+        out["notes"] = notes
+        return out
+
+
+class _SupplyThen(RouteFamily):
+    """A supply condition followed by a surface treatment of another family."""
+
+    inner_name = ""
+    conditions: tuple = ()
+
+    def _inner(self):
+        from . import get
+        return get(self.inner_name)
+
+    @property
+    def families(self):  # noqa: D401 - the grade families of the inner route
+        return self._inner().families
+
+    def _split(self, steps, grade):
+        self.require_family(grade)
+        s = steps[0]
+        cond = str(s["condition"])
+        if cond not in self.conditions:
+            raise NotModelledError(
+                f"{self.label.replace('supply + ', '')} after a bar supplied {sup.CONDITIONS.get(cond, cond)!r} is "
+                f"not modelled (modelled supply conditions: {', '.join(self.conditions)})")
+        des = "catalogue baseline" if cond == "annealed" else _designation(grade, cond, s.get("designation"))
+        inner_params, warns = self._inner().parse(steps[1:], grade)
+        return {"condition": cond, "designation": des, **inner_params}, warns
+
+    def parse(self, steps, grade):
+        return self._split(steps, grade)
+
+    def to_steps(self, params):
+        step = {"op": "supply", "condition": str(params["condition"])}
+        if str(params["condition"]) != "annealed":
+            step["designation"] = str(params["designation"])
+        return [step] + self._inner().to_steps(params)
+
+    def _pairs(self, grade):
+        return [(c, d) for c, d in sup.conditions_for(grade) if c in self.conditions]
+
+    #: inner parameters that describe a prior cycle of ours (none: the bar is bought)
+    prior_numeric: tuple = ()
+
+    def grid(self, grade):
+        pairs = self._pairs(grade)
+        inner = dict(self._inner().grid(grade))
+        m = len(next(iter(inner.values()))) if inner else 0
+        inner["prior"] = np.array(["none"] * m, dtype=object)
+        for k in self.prior_numeric:
+            inner[k] = np.full(m, np.nan)
+        # one state per remaining parameter point (the inner grid repeats them over prior cycles)
+        names = list(inner)
+        seen, keep = set(), []
+        for i in range(m):
+            key = tuple(str(inner[k][i]) for k in names)
+            keep.append(key not in seen)
+            seen.add(key)
+        keep = np.array(keep, bool)
+        inner = {k: np.asarray(v)[keep] for k, v in inner.items()}
+        m = int(keep.sum())
+        out = {"condition": np.array([c for c, _ in pairs for _ in range(m)], dtype=object),
+               "designation": np.array([d for _, d in pairs for _ in range(m)], dtype=object)}
+        for k, v in inner.items():
+            out[k] = np.concatenate([v] * len(pairs)) if pairs else v[:0]
+        return out
+
+    def compute(self, batch: Batch):
+        props = supply_properties(batch)
+        res = self._inner().compute(_with_core(batch, props))
+        res["notes"] = [(m, k) for m, k in res.get("notes", []) if not m.startswith(self.drop_note)]
+        res["notes"] += _supply_notes(props, batch)
+        res["notes"].append((f"core: the supplied bar ({self.core_note})", np.ones(batch.n, bool)))
+        return res
+
+
+class SupplyInduction(_SupplyThen):
+    name = "supply_induction"
+    label = "supply + induction harden"
+    inner_name = "induction"
+    patterns = (("supply", "induction_harden"), ("supply", "induction_harden", "temper"))
+    conditions = ("hot_rolled", "cold_drawn", "cold_drawn_stress_relieved", "quenched_tempered", "normalized",
+                  "annealed", "peeled")
+    main_parameter = "case_depth_mm"
+    parameters = ("condition", "designation", "case_depth_mm", "frequency_hz", "quench", "temper_temp_c",
+                  "temper_hours", "prior", "prior_quench", "prior_agitation", "prior_austenitize_c",
+                  "prior_temper_temp_c", "prior_temper_hours")
+    references = REFERENCES + ("induction family references (selector.routes.families.induction)",)
+    drop_note = "\u0000"   # no induction note refers to the annealed core
+    prior_numeric = ("prior_austenitize_c", "prior_temper_temp_c", "prior_temper_hours")
+    core_note = "induction heats only the hardened layer; the core keeps the supply condition's properties"
+
+    def _pairs(self, grade):
+        # the annealed bar is the induction family's own 'supplied core' route
+        return [(c, d) for c, d in sup.conditions_for(grade) if c in self.conditions and c != "annealed"]
+
+
+class SupplyNitride(_SupplyThen):
+    name = "supply_nitride"
+    label = "supply + nitride"
+    inner_name = "nitride"
+    patterns = (("supply", "nitride"),)
+    conditions = ("quenched_tempered",)
+    main_parameter = "hours"
+    parameters = ("condition", "designation", "temp_c", "hours", "prior", "quench", "agitation",
+                  "austenitize_c", "temper_temp_c", "temper_hours")
+    references = REFERENCES + ("nitride family references (selector.routes.families.nitride)",)
+    drop_note = "nitrided without a prior harden and temper"
+    prior_numeric = ("austenitize_c", "temper_temp_c", "temper_hours")
+    core_note = ("quenched and tempered by the bar maker; nitriding below its tempering temperature leaves it "
+                 "unchanged (common practice); the tempering temperature of a bought bar is not known, so check "
+                 "it with the supplier")
+
+
+FAMILIES = [Supply(), SupplyInduction(), SupplyNitride()]
