@@ -15,9 +15,10 @@ CAUTION = ("Estimates for preliminary selection only. The final choice needs cer
 
 from .selection.engine import alternatives, nearest_misses, select
 from .design.pins import pin_targets
+from .design.capacity import pin_capacity
 from .design.sweep import diameter_sweep
 
-__all__ = ["catalogue", "grade", "evaluate", "select", "nearest_misses", "alternatives", "pin_targets",
+__all__ = ["catalogue", "grade", "evaluate", "select", "nearest_misses", "alternatives", "pin_targets", "pin_capacity",
            "diameter_sweep", "CAUTION",
            "SelectorError", "InputError", "RouteError", "NotModelledError", "UnknownGradeError",
            "DataFileError", "SelectorWarning"]
