@@ -161,3 +161,31 @@ def test_columns_agree_with_evaluate():
                                "uts_mpa_hi": [r["uts_mpa_hi"]]}, ["alloy_steel"], ["quench_temper"], [40.0],
                               reliability=0.9)
     assert float(cols["fatigue_limit_mpa"][0]) == pytest.approx(r["fatigue_limit_mpa"], rel=1e-5)
+
+
+# ---------------------------------------------------------------- select(min_fatigue_mpa=...)
+
+def test_select_min_fatigue_meets_target_and_agrees_with_evaluate():
+    t = {"min_yield_mpa": 700.0, "min_fatigue_mpa": 420.0}
+    cand = selector.select(t, 25.0, finish="ground", reliability=0.9)
+    assert len(cand) > 0
+    assert (cand["fatigue_limit_mpa"] >= 420.0).all()
+    assert (cand["margin_min_fatigue_mpa"] >= 0).all()
+    row = cand.iloc[0]
+    r = selector.evaluate(row["grade"], row["route"], 25.0, finish="ground", reliability=0.9)
+    assert r["fatigue_limit_mpa"] == pytest.approx(row["fatigue_limit_mpa"], rel=1e-6)
+
+
+def test_select_fatigue_target_removes_candidates():
+    loose = selector.select({"min_yield_mpa": 700.0}, 25.0)
+    tight = selector.select({"min_yield_mpa": 700.0, "min_fatigue_mpa": 420.0}, 25.0, finish="hot_rolled")
+    assert len(tight) < len(loose)
+    assert "fatigue_limit_mpa" in loose.columns       # reported even without the target
+
+
+@pytest.mark.parametrize("kwargs, field", [(dict(finish="mirror"), "finish"), (dict(load_type="bend"), "load_type"),
+                                           (dict(reliability=1.0), "reliability")])
+def test_select_bad_options(kwargs, field):
+    with pytest.raises(InputError) as e:
+        selector.select({"min_fatigue_mpa": 300.0}, 25.0, **kwargs)
+    assert e.value.field == field
