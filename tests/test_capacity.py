@@ -3,6 +3,8 @@ from __future__ import annotations
 
 import math
 
+import numpy as np
+
 import pytest
 
 import selector
@@ -82,3 +84,48 @@ def test_hardness_on_a_non_steel_is_refused():
     with pytest.raises(InputError) as e:
         selector.pin_capacity("6061", None, 25.0, 0.0, 25.0, 12.0, hardness_hrc=30.0)
     assert e.value.field == "hardness_hrc" and "6061" in str(e.value)
+
+
+def test_cli_pin_capacity(capsys):
+    from selector.views.cli import main
+
+    rc = main(["pin", "--capacity", "--grade", "4130", "--hardness-hrc", "26.5", "--diameter", "25.4",
+               "--lug", "25.4", "--clevis", "12.7", "--safety-factor", "1", "--format", "json"])
+    assert rc == 0
+    import json
+    out = json.loads(capsys.readouterr().out)
+    assert out["shear_lbf"] >= REQUIRED_LBF and out["governing"] in ("shear", "bending", "bearing")
+    assert "caution" in out
+
+
+def test_cli_pin_without_load_or_capacity_is_an_input_error(capsys):
+    from selector.views.cli import main
+
+    assert main(["pin", "--diameter", "25", "--lug", "38", "--clevis", "16"]) == 2
+    assert "--load-kn" in capsys.readouterr().err
+
+
+def test_page_capacity_helpers():
+    from selector.views import page as pg
+
+    case = {"diameter_mm": 25.4, "gap_mm": 0.0, "lug_thickness_mm": 25.4, "clevis_thickness_mm": 12.7,
+            "shear_planes": 2, "safety_factor": 1.0, "load_model": "uniform", "load_kn": 1.0}
+    cap, msg = pg.capacity_for(case, "4130", "", 26.5, pg.US)
+    assert msg is None
+    t = pg.capacity_table(cap, pg.US)
+    assert t.loc[t["mode"] == "shear", "allowable load (lbf)"].iloc[0] >= REQUIRED_LBF
+    assert t["governing"].sum() == 1
+    cap, msg = pg.capacity_for(case, "4130", "", 80.0, pg.SI)
+    assert cap is None and "hardness_hrc" in msg
+
+
+def test_page_fatigue_depth_frame():
+    from selector.views import page as pg
+
+    ev = selector.evaluate("8620", [{"op": "carburize", "temp_c": 925, "hours": 6}, {"op": "harden", "quench": "oil"},
+                                    {"op": "temper", "temp_c": 180}], 25.0)
+    fr = pg.fatigue_depth_frame(ev, pg.SI)
+    assert set(fr["curve"]) == {"local fatigue strength", "applied stress at the allowable surface stress"}
+    s = fr[fr["curve"] == "local fatigue strength"]["stress"].to_numpy()
+    a = fr[fr["curve"] != "local fatigue strength"]["stress"].to_numpy()
+    assert (a <= s + 1e-6).all() and np.isclose(a, s).any()     # the curves touch at the governing depth

@@ -85,6 +85,12 @@ def format_evaluation(r: dict) -> str:
              f"case depth           {_fmt(r.get('case_depth_mm'), 2)} mm"]
     if r.get("center_martensite_pct") is not None:
         lines.append(f"centre martensite    {_fmt(r['center_martensite_pct'])} %")
+    if r.get("fatigue_limit_mpa") is not None:
+        f = r["fatigue"]
+        at = "endurance limit" if f["cycles"] is None else f"at {f['cycles']:.0e} cycles (no endurance limit)"
+        lines.append(f"fatigue limit        {_banded(r, 'fatigue_limit_mpa', 'MPa')} {at}; {f['finish']}, "
+                     f"{f['load_type']}, reliability {f['reliability']:g}; governing: {f['governing']} "
+                     f"({_fmt(f['governing_depth_mm'], 2)} mm)")
     if r.get("profile"):
         lines += ["", "hardness across the section (depth from surface):"]
         for p in r["profile"]:

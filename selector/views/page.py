@@ -1249,3 +1249,69 @@ def sweep_chart(sw: pd.DataFrame, system: str, height: int = 340) -> alt.LayerCh
     left = alt.layer(rules, cost, marks, *labels, none)
     return alt.layer(left, target).resolve_scale(y="independent").properties(
         height=height, title="Cheapest robust pick per diameter (◆ where the grade or route changes)")
+
+
+# --------------------------------------------------------------------------- pin capacity, fatigue through the depth
+
+#: page label of each field of :func:`selector.design.capacity.pin_capacity`
+CAPACITY_LABELS = {"hardness_hrc": ("Specified hardness (HRC)", None), "route": ("Route steps", None),
+                   "route/hardness_hrc": ("Route or hardness", None), "grade": ("Pin grade", None)}
+
+
+def capacity_for(case: Mapping, grade: str, steps_text: str | None, hardness_hrc, system: str
+                 ) -> tuple[dict | None, str | None]:
+    """:func:`selector.pin_capacity` for the pin tab's geometry (``case`` as from
+    :func:`pin_case_from_inputs`; its load is not used), a grade and either route
+    steps (``"harden quench=oil; temper temp_c=540"``) or a specified hardness.
+    Returns ``(capacity, None)`` or ``(None, message)``."""
+    from selector.views.cli import parse_step_text
+
+    try:
+        route = None
+        if steps_text and steps_text.strip():
+            route = [parse_step_text(s) for s in steps_text.split(";") if s.strip()]
+        cap = selector.pin_capacity(grade, route, case["diameter_mm"], case.get("gap_mm", 0.0),
+                                    case["lug_thickness_mm"], case["clevis_thickness_mm"],
+                                    shear_planes=case.get("shear_planes", 2),
+                                    safety_factor=case.get("safety_factor", 2.0), hardness_hrc=hardness_hrc,
+                                    load_model=case.get("load_model", "uniform"))
+        return cap, None
+    except SelectorError as exc:
+        return None, explain(exc, system, {**PIN_LABELS, **CAPACITY_LABELS})
+
+
+def capacity_table(cap: Mapping, system: str) -> pd.DataFrame:
+    """One row per mode: allowable load (display force unit) and whether it governs."""
+    fu = unit("force", system)
+    key = "lbf" if fu == "lbf" else "kn"
+    return pd.DataFrame({"mode": ["shear", "bending", "bearing"],
+                         f"allowable load ({fu})": [cap[f"{m}_{key}"] for m in ("shear", "bending", "bearing")],
+                         "governing": [m == cap["governing"] for m in ("shear", "bending", "bearing")]})
+
+
+def fatigue_depth_frame(ev: Mapping, system: str) -> pd.DataFrame:
+    """Long frame of ``evaluate()["fatigue"]["through_depth"]`` for the chart: columns
+    ``depth, curve, stress`` (``curve``: local fatigue strength, or the applied stress
+    scaled so that it touches the strength at the governing depth)."""
+    td = (ev.get("fatigue") or {}).get("through_depth")
+    if not td:
+        return pd.DataFrame(columns=["depth", "curve", "stress"])
+    depth = to_display(np.asarray(td["depth_mm"], float), "length", system)
+    strength = to_display(np.asarray(td["strength_mpa"], float), "stress", system)
+    applied = to_display(np.asarray(td["stress_per_surface"], float) * td["allowable_surface_mpa"], "stress", system)
+    return pd.concat([pd.DataFrame({"depth": depth, "curve": "local fatigue strength", "stress": strength}),
+                      pd.DataFrame({"depth": depth, "curve": "applied stress at the allowable surface stress",
+                                    "stress": applied})], ignore_index=True)
+
+
+def fatigue_depth_chart(frame: pd.DataFrame, system: str, height: int = 300) -> alt.Chart:
+    """Local fatigue strength and the applied (bending) stress against depth; they touch
+    at the governing depth."""
+    su, lu = unit("stress", system), unit("length", system)
+    return alt.Chart(frame).mark_line(point=alt.OverlayMarkDef(size=18), strokeWidth=2).encode(
+        x=alt.X("depth:Q", title=f"Depth below the surface ({lu})"),
+        y=alt.Y("stress:Q", title=f"Stress amplitude ({su})"),
+        color=alt.Color("curve:N", title=None, legend=alt.Legend(orient="top", labelLimit=400)),
+        tooltip=[alt.Tooltip("curve:N"), alt.Tooltip("depth:Q", format=".3g", title=lu),
+                 alt.Tooltip("stress:Q", format=".4g", title=su)],
+    ).properties(height=height, title="Fatigue strength against the applied stress through the section")
