@@ -131,7 +131,7 @@ class _Frame:
         self.prior = self._str(frame, "prior")
         self.designation = self._str(frame, "designation")
         for col in ("temper_temp_c", "age_temp_c", "peak_ratio", "c_pct", "hardness_hrc",
-                    "surface_hardness_hrc", "uts_mpa", "prior_temper_temp_c", "temp_c"):
+                    "surface_hardness_hrc", "uts_mpa", "prior_temper_temp_c", "temp_c", "case_depth_mm"):
             setattr(self, col, self._num(frame, col))
         # an aging route may carry its temperature as temp_c (the step's parameter name)
         self.age_temp_c = np.where(np.isnan(self.age_temp_c) & (self.route == "age"), self.temp_c,
@@ -233,6 +233,23 @@ def _galvanic(f: _Frame, ctx: dict) -> np.ndarray:
         return np.nan_to_num(np.abs(own - mate["anodic_index_v"]), nan=0.0) > ctx["galvanic_limit_v"] + 1e-9
 
 
+#: impact caution: surface hardness of a case, and hardness of a through-hardened part, above which
+#: shock loading needs care (HRC; common practice, data/cautions.csv row "impact")
+IMPACT_CASE_HRC = 55.0
+IMPACT_THROUGH_HRC = 50.0
+IMPACT_CASE_ROUTES = ("carburize", "nitride", "induction")
+
+
+def _impact(f: _Frame, ctx: dict) -> np.ndarray:
+    if not ctx.get("impact"):
+        return np.zeros(f.n, bool)
+    steel = f.isin("family", HE_FAMILIES)
+    case = f.isin("route", IMPACT_CASE_ROUTES) & _ge(f.case_depth_mm, 1e-9)
+    return steel & ((case & _ge(f.surface_hardness_hrc, IMPACT_CASE_HRC))
+                    | (~case & (_ge(f.hardness_hrc, IMPACT_THROUGH_HRC)
+                                | _ge(f.surface_hardness_hrc, IMPACT_THROUGH_HRC))))
+
+
 def _service_temperature(f: _Frame, ctx: dict) -> np.ndarray:
     ts = ctx.get("service_temp_c")
     if ts is None:
@@ -268,6 +285,7 @@ TRIGGERS: Mapping[str, Callable] = MappingProxyType({
     "scc_7xxx_t6": _scc_7xxx,
     "galvanic": _galvanic,
     "service_temperature": _service_temperature,
+    "impact": _impact,
 })
 _DETAILS: Mapping[str, Callable] = MappingProxyType({
     "galvanic": _galvanic_detail,
@@ -327,7 +345,7 @@ def _load_cautions() -> Mapping[str, Caution]:
 #: the columns the triggers read (a view that builds a frame for cautions_for should keep them)
 COLUMNS_READ = ("grade", "family", "route", "route_family", "quench", "prior", "prior_quench",
                 "prior_temper_temp_c", "temper_temp_c", "age_temp_c", "temp_c", "peak_ratio",
-                "designation", "c_pct", "hardness_hrc", "surface_hardness_hrc", "uts_mpa")
+                "designation", "c_pct", "hardness_hrc", "surface_hardness_hrc", "uts_mpa", "case_depth_mm")
 
 #: every caution, by code (loaded once from data/cautions.csv)
 CAUTIONS: Mapping[str, Caution] = _load_cautions()
@@ -426,12 +444,14 @@ def anodic_index(material: str) -> dict:
 
 
 def _context(f: _Frame, plated=False, mating_material=None, service_temp_c=None,
-             environment: str = "normal", plating: str | None = None) -> dict:
+             environment: str = "normal", plating: str | None = None, impact: bool = False) -> dict:
     if not isinstance(plated, (bool, np.bool_)):
         raise InputError("plated", plated, "True or False")
     env = check_choice("environment", environment, tuple(GALVANIC_LIMITS_V))
+    if not isinstance(impact, (bool, np.bool_)):
+        raise InputError("impact", impact, "True or False (impact or shock loading in service)")
     ctx = {"plated": bool(plated), "environment": env, "galvanic_limit_v": GALVANIC_LIMITS_V[env],
-           "service_temp_c": None, "mating": None}
+           "service_temp_c": None, "mating": None, "impact": bool(impact)}
     if service_temp_c is not None:
         ctx["service_temp_c"] = check_number("service_temp_c", service_temp_c, -273.15, 1500.0)
     if plating is not None and not plated:
@@ -460,7 +480,7 @@ def caution_masks(frame: pd.DataFrame, **context) -> pd.DataFrame:
 
 def cautions_for(frame: pd.DataFrame, plated: bool = False, mating_material: str | None = None,
                  service_temp_c: float | None = None, environment: str = "normal",
-                 plating: str | None = None) -> list[list[dict]]:
+                 plating: str | None = None, impact: bool = False) -> list[list[dict]]:
     """The cautions that apply to each row of ``frame``.
 
     Parameters
@@ -479,6 +499,9 @@ def cautions_for(frame: pd.DataFrame, plated: bool = False, mating_material: str
         ``harsh``, ``normal`` (default) or ``controlled``: the galvanic limit.
     plating : str, optional
         The plating metal (``"zinc plated"``, ``"nickel plated"`` ...), with ``plated=True``.
+    impact : bool
+        Impact or shock loading in service (the ``impact`` rule: a case of 55 HRC and
+        above, or a through-hardened part of 50 HRC and above).
 
     Returns
     -------
@@ -493,7 +516,7 @@ def cautions_for(frame: pd.DataFrame, plated: bool = False, mating_material: str
     """
     f = _Frame(frame)
     ctx = _context(f, plated=plated, mating_material=mating_material, service_temp_c=service_temp_c,
-                   environment=environment, plating=plating)
+                   environment=environment, plating=plating, impact=impact)
     out: list[list[dict]] = [[] for _ in range(f.n)]
     for code, c in CAUTIONS.items():
         mask = np.asarray(c.trigger(f, ctx), bool)

@@ -285,7 +285,7 @@ def select(targets: dict | None = None, diameter_mm: float = 25.0, *, thickness_
            robust_only: bool = False, plated: bool = False, plating: str | None = None,
            mating_material: str | None = None, service_temp_c: float | None = None,
            environment: str = "normal", finish: str = "machined", load_type: str = "bending",
-           reliability: float = 0.5) -> pd.DataFrame:
+           reliability: float = 0.5, impact: bool = False) -> pd.DataFrame:
     """Grade-and-route candidates that meet ``targets`` at the given section.
 
     Parameters
@@ -312,6 +312,9 @@ def select(targets: dict | None = None, diameter_mm: float = 25.0, *, thickness_
         plated high-strength steel, galvanic pairs, service temperature near the
         tempering or aging temperature); see :mod:`selector.design.cautions`.
         ``service_temp_c`` also sets the fatigue temperature factor.
+    impact : bool
+        Impact or shock loading in service: a caution on hard cases (>= 55 HRC) and
+        through-hardened parts (>= 50 HRC).
     finish, load_type, reliability
         Surface finish (``ground``, ``machined``, ``hot_rolled``, ``as_forged``), load
         type (``bending``, ``axial``, ``torsion``) and reliability (0.5 to 0.9999) of the
@@ -330,6 +333,8 @@ def select(targets: dict | None = None, diameter_mm: float = 25.0, *, thickness_
         prepared = with_fatigue(prepared, **fat)
     service = dict(plated=plated, plating=plating, mating_material=mating_material,
                    service_temp_c=service_temp_c, environment=environment)
+    if impact:
+        service["impact"] = impact
     out = rank(prepared, targets, objectives, robust_only, service)
     if "fatigue_limit_mpa" not in out.columns and len(out):
         d, t = section_args(diameter_mm, thickness_mm)
