@@ -21,7 +21,14 @@ FAMILIES = ("carbon_steel", "alloy_steel", "carburizing_steel", "nitriding_steel
 STEEL_FAMILIES = ("carbon_steel", "alloy_steel", "carburizing_steel", "nitriding_steel",
                   "stainless_martensitic", "stainless_ph", "stainless_austenitic")
 ROUTES = ("anneal", "normalize", "quench_temper", "carburize", "nitride", "induction",
-          "cold_work", "age")
+          "cold_work", "age", "austemper", "martemper")
+#: routes a grade admits without listing them in grades.csv: the salt-bath (bainite) routes of a
+#: hardenable carbon or low-alloy steel with at least this nominal carbon (wt %); austempering and
+#: martempering apply to medium- and high-carbon steels (ASM Handbook Vol. 4 (1991), austempering and
+#: martempering of steel; from memory)
+BATH_ROUTES = ("austemper", "martemper")
+BATH_ROUTE_FAMILIES = ("carbon_steel", "alloy_steel")
+BATH_ROUTE_MIN_C = 0.30
 BALANCE = {"aluminium": "Al", "copper_alloy": "Cu", "titanium": "Ti"}  # else Fe
 
 
@@ -257,6 +264,10 @@ def build_catalogue(grades_path=None, comp_path=None, windows_path=None) -> Cata
     for r in grades.itertuples(index=False):
         sub = comps[comps["grade"] == r.id]
         routes = tuple(x.strip() for x in r.routes.split(";") if x.strip())
+        c_rows = sub[sub["element"] == "C"]
+        c_nom = float((c_rows["min_pct"] + c_rows["max_pct"]).iloc[0] / 2) if len(c_rows) else 0.0
+        if "quench_temper" in routes and r.family in BATH_ROUTE_FAMILIES and c_nom >= BATH_ROUTE_MIN_C:
+            routes = routes + tuple(x for x in BATH_ROUTES if x not in routes)
         des = {"uns": r.uns, "en_name": r.en_name, "en_number": r.en_number, "jis": r.jis}
         aliases = tuple(a.strip() for a in str(r.aliases).split(";") if a.strip())
         g = Grade(

@@ -18,7 +18,7 @@ from ...errors import NotModelledError, RouteError
 MODULES = {
     "anneal": "anneal", "normalize": "anneal", "quench_temper": "quench_temper",
     "carburize": "carburize", "nitride": "nitride", "induction": "induction",
-    "cold_work": "cold_work", "age": "age",
+    "cold_work": "cold_work", "age": "age", "austemper": "austemper", "martemper": "austemper",
 }
 
 #: family name -> accepted op sequences
@@ -36,6 +36,8 @@ PATTERNS = {
                   ("harden", "temper", "induction_harden", "temper")),
     "cold_work": (("cold_work",), ("anneal", "cold_work")),
     "age": (("solution_treat",), ("age",), ("solution_treat", "age")),
+    "austemper": (("austemper",),),
+    "martemper": (("martemper",), ("martemper", "temper")),
 }
 
 
