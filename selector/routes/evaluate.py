@@ -238,6 +238,11 @@ def _add_fatigue(out: dict, res: dict, batch: Batch, route: str, section: float,
         rec["through_depth"] = {k: (v.round(4).tolist() if isinstance(v, np.ndarray) else round(v, 4))
                                 for k, v in td.items()}
     out["fatigue"] = rec
+    from ..models import validity
+    msgs = validity.check("marin_size", diameter_mm=section)
+    if temp_c is not None:
+        msgs += validity.check("marin_temperature", temp_c=temp_c)
+    out["warnings"] = list(dict.fromkeys(out["warnings"] + msgs))
     out["sources"].append("fatigue: Marin (1962) factors as tabulated in Budynas & Nisbett, Shigley's "
                           "Mechanical Engineering Design, 10th ed. (2015), sec. 6-7 to 6-9 (data/fatigue_surface.csv); "
                           "non-ferrous ratios data/fatigue_nonferrous.csv; case residual stress "
