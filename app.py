@@ -301,6 +301,9 @@ def candidate_view(cand, states):
             st.altair_chart(pg.fatigue_depth_chart(ffr, system), width="stretch")
             st.caption("Rotating bending, machined surface, 50 % reliability; compressive residual stress of a "
                        "hardened case credited (data/residual_stress.csv).  The curves touch at the governing depth.")
+        tfr = pg.transformation_frame(ev, system)
+        if len(tfr):
+            st.altair_chart(pg.transformation_chart(tfr, system), width="stretch")
     st.markdown("**Sources**")
     st.markdown("\n".join(f"- {s}" for s in ev.get("sources", [])))
 

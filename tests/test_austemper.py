@@ -71,3 +71,19 @@ def test_austempered_1095_hardness_against_published_data():
     # about 52 HRC (table comparing austempering with quench and temper; values from memory)
     r = selector.evaluate("1095", [{"op": "austemper", "bath_c": 315, "hours": 1}], 4.6)
     assert r["hardness_hrc"] == pytest.approx(52.0, abs=4.0)
+
+
+def test_transformation_chart_frame():
+    from selector.views import page as pg
+
+    ev = selector.evaluate("4340", AUST, 25.0)
+    fr = pg.transformation_frame(ev, pg.SI)
+    curves = set(fr["curve"])
+    assert {"bainite start", "bainite finish", "centre cooling path", "surface cooling path"} <= curves
+    b = fr[fr["curve"] == "bainite start"].set_index("temp")["time_s"]
+    f = fr[fr["curve"] == "bainite finish"].set_index("temp")["time_s"]
+    assert (f.loc[b.index] > b).all()              # finish after start at every temperature
+    centre = fr[fr["curve"] == "centre cooling path"]["temp"].to_numpy()
+    assert centre[0] > centre[-1] and abs(centre[-1] - 340.0) < 1.0   # ends at the bath
+    qt = selector.evaluate("4340", [{"op": "harden", "quench": "oil"}, {"op": "temper", "temp_c": 540}], 25.0)
+    assert pg.transformation_frame(qt, pg.SI).empty

@@ -1315,3 +1315,48 @@ def fatigue_depth_chart(frame: pd.DataFrame, system: str, height: int = 300) -> 
         tooltip=[alt.Tooltip("curve:N"), alt.Tooltip("depth:Q", format=".3g", title=lu),
                  alt.Tooltip("stress:Q", format=".4g", title=su)],
     ).properties(height=height, title="Fatigue strength against the applied stress through the section")
+
+
+def transformation_frame(ev: Mapping, system: str) -> pd.DataFrame:
+    """Long frame for the time–temperature chart of a bath route (austemper, martemper) of
+    one ``evaluate()`` result: the transformation start and finish curves of its
+    composition (Li et al. 1998) and the surface and centre cooling paths into the bath.
+    Columns ``time_s, temp, curve, kind`` (temp in display units; kind ``reaction`` or
+    ``path``).  Empty for other routes."""
+    from selector.catalogue.grades import default_catalogue
+    from selector.routes.families import austemper as bath
+
+    if ev.get("route_family") not in ("austemper", "martemper") or not ev.get("diameter_mm"):
+        return pd.DataFrame(columns=["time_s", "temp", "curve", "kind"])
+    g = default_catalogue().lookup(ev["grade"])
+    comp = ev.get("heat_composition") or g.composition(ev.get("composition", "nominal")
+                                                       if ev.get("composition") != "heat" else "nominal")
+    p = ev["params"]
+    tc = bath.transformation_curves(comp)
+    rows = []
+    for r in ("ferrite", "pearlite", "bainite"):
+        for key in ("start", "finish"):
+            t = tc[f"{r}_{key}_s"]
+            ok = np.isfinite(t)
+            rows.append(pd.DataFrame({"time_s": t[ok], "temp": to_display(tc["temp_c"][ok], "temperature", system),
+                                      "curve": f"{r} {key}", "kind": "reaction"}))
+    path = bath.cooling_path(comp, p["austenitize_c"], p["bath_c"], ev["diameter_mm"], p.get("hold_hours"))
+    for where in ("surface", "centre"):
+        rows.append(pd.DataFrame({"time_s": path["time_s"], "temp": to_display(path[f"{where}_c"], "temperature",
+                                                                               system),
+                                  "curve": f"{where} cooling path", "kind": "path"}))
+    return pd.concat(rows, ignore_index=True)
+
+
+def transformation_chart(frame: pd.DataFrame, system: str, height: int = 320) -> alt.Chart:
+    """Transformation start/finish curves (solid) and the cooling paths (dashed) on a
+    logarithmic time axis."""
+    tu = unit("temperature", system)
+    return alt.Chart(frame).mark_line(strokeWidth=2).encode(
+        x=alt.X("time_s:Q", title="Time (s, log scale)", scale=alt.Scale(type="log")),
+        y=alt.Y("temp:Q", title=f"Temperature ({tu})"),
+        color=alt.Color("curve:N", title=None, legend=alt.Legend(orient="top", labelLimit=300)),
+        strokeDash=alt.StrokeDash("kind:N", title=None, legend=None),
+        tooltip=[alt.Tooltip("curve:N"), alt.Tooltip("time_s:Q", format=".3g", title="s"),
+                 alt.Tooltip("temp:Q", format=".0f", title=tu)],
+    ).properties(height=height, title="Transformation start and finish (Li et al. 1998) with the cooling path")

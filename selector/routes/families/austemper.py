@@ -312,3 +312,50 @@ class Martemper(_BathRoute):
 
 
 FAMILIES = [Austemper(), Martemper()]
+
+
+def transformation_curves(comp, temps_c=None, start=0.01, finish=0.99) -> dict:
+    """Isothermal transformation start and finish times of ferrite, pearlite and bainite
+    (Li et al. 1998, :func:`selector.models.transformation.isothermal_time_s`) for one
+    composition, for a time–temperature chart.
+
+    Returns
+    -------
+    dict
+        ``temp_c`` (array), ``<reaction>_start_s`` / ``<reaction>_finish_s`` (s; NaN where
+        the reaction does not run: above Ae3 / Ae1 / Bs, or below Ms), ``ms_c``, ``bs_c``.
+    """
+    c = {k: float(np.asarray(v).ravel()[0]) for k, v in comp.items()}
+    ms, bs = float(transformation.ms_li_c(c)), float(transformation.bs_li_c(c))
+    ae1 = float(transformation.ac1_c(c))
+    ae3 = float(transformation.ac3_c(c))
+    temps = np.arange(np.floor(ms / 10) * 10 + 10, ae3, 10.0) if temps_c is None else np.asarray(temps_c, float)
+    out = {"temp_c": temps, "ms_c": ms, "bs_c": bs}
+    tops = {"ferrite": ae3, "pearlite": ae1, "bainite": bs}
+    for r, top in tops.items():
+        ok = (temps < top - 1.0) & (temps > ms)
+        if r == "ferrite" and c.get("C", 0.0) >= transformation.EUTECTOID_C:
+            ok &= False
+        for key, frac in (("start", start), ("finish", finish)):
+            with np.errstate(over="ignore", divide="ignore", invalid="ignore"):
+                t = transformation.isothermal_time_s(c, temps, frac, r)
+            out[f"{r}_{key}_s"] = np.where(ok & np.isfinite(t), t, np.nan)
+    return out
+
+
+def cooling_path(comp, austenitize_c, bath_c, diameter_mm, hold_hours=None, positions=(1.0, 0.0)) -> dict:
+    """Temperature against time at the surface and centre of a round quenched into the bath
+    (the salt bath of this module, :mod:`selector.models.cooling`), to draw over
+    :func:`transformation_curves`; the hold at the bath follows to ``hold_hours``.
+
+    Returns
+    -------
+    dict
+        ``time_s`` (array) and ``surface_c``, ``centre_c`` (arrays, °C).
+    """
+    end = max(3600.0 * float(hold_hours or 0.05), TIMES_S[-1])
+    t = np.geomspace(0.05, end, 150)
+    temp = cooling.temperature_c(_h_w_m2k(), t, np.array([float(diameter_mm)])[:, None], None,
+                                 positions=positions, austenitize_c=float(austenitize_c),
+                                 bath_c=float(bath_c))[0]
+    return {"time_s": t, "surface_c": temp[:, 0], "centre_c": temp[:, -1]}
