@@ -189,3 +189,13 @@ def test_select_bad_options(kwargs, field):
     with pytest.raises(InputError) as e:
         selector.select({"min_fatigue_mpa": 300.0}, 25.0, **kwargs)
     assert e.value.field == field
+
+
+def test_cli_evaluate_fatigue_options(capsys):
+    from selector.views.cli import main
+
+    assert main(["evaluate", "4140", "harden quench=oil", "temper temp_c=540", "--finish", "ground",
+                 "--reliability", "0.99"]) == 0
+    assert "fatigue limit" in capsys.readouterr().out
+    assert main(["evaluate", "4140", "harden quench=oil", "--load-type", "twist"]) == 2
+    assert "load_type" in capsys.readouterr().err

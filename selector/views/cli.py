@@ -106,7 +106,8 @@ def cmd_evaluate(args) -> int:
 
     heat = parse_heat_text(args.heat) if args.heat is not None else None
     r = evaluate(args.grade, _route_from_args(args), diameter_mm=args.diameter, thickness_mm=args.thickness,
-                 heat_composition=heat)
+                 heat_composition=heat, finish=args.finish, load_type=args.load_type,
+                 reliability=args.reliability)
     if args.json:
         print(json.dumps({**r, "caution": CAUTION}, indent=2, ensure_ascii=False))
     else:
@@ -150,6 +151,10 @@ def build_parser() -> argparse.ArgumentParser:
     ev.add_argument("--thickness", type=float, default=None, help="plate thickness, mm (instead of a diameter)")
     ev.add_argument("--heat", default=None, help="the heat's analysis from its mill certificate, wt %%, e.g. "
                     "\"C=0.41 Mn=0.86 Cr=0.95 Mo=0.18\" (other elements: the grade's nominal)")
+    ev.add_argument("--finish", default="machined",
+                    help="surface finish for the fatigue limit: ground, machined, hot_rolled, as_forged")
+    ev.add_argument("--load-type", default="bending", help="fatigue load type: bending, axial, torsion")
+    ev.add_argument("--reliability", type=float, default=0.5, help="fatigue reliability, 0.5 to 0.9999")
     ev.add_argument("--json", action="store_true", help="machine-readable output")
     ev.set_defaults(func=cmd_evaluate)
 
