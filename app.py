@@ -310,6 +310,14 @@ def candidate_view(cand, states):
             st.altair_chart(pg.profile_chart(pfr, system, [row["label"]]), width="stretch")
         else:
             st.info("This route family reports no hardness profile across the section.")
+        ffr = pg.fatigue_depth_frame(ev, system)
+        if len(ffr):
+            st.altair_chart(pg.fatigue_depth_chart(ffr, system), width="stretch")
+            st.caption("Rotating bending, machined surface, 50 % reliability; compressive residual stress of a "
+                       "hardened case credited (data/residual_stress.csv).  The curves touch at the governing depth.")
+        tfr = pg.transformation_frame(ev, system)
+        if len(tfr):
+            st.altair_chart(pg.transformation_chart(tfr, system), width="stretch")
     st.markdown("**Sources**")
     st.markdown("\n".join(f"- {s}" for s in ev.get("sources", [])))
 
@@ -355,6 +363,25 @@ def comparison_view(cand):
         cautions = pg.candidate_cautions(r, ev.get("warnings", []), service)
         if cautions:
             st.warning(f"**{r['label']}**\n" + "\n".join(f"- {c}" for c in cautions))
+
+
+def capacity_view(case):
+    """What a given pin (grade and route, or a specified hardness) can carry, at the pin tab's geometry."""
+    with st.expander("Capacity of a given pin (grade and route, or the drawing's hardness)"):
+        c = st.columns(3)
+        c[0].text_input("Pin grade", key="cap_grade", value="4140")
+        c[1].text_input("Route steps (';'-separated)", key="cap_steps",
+                        value="harden quench=oil; temper temp_c=540",
+                        help="Leave blank and give a hardness when the drawing specifies one.")
+        c[2].number_input("Specified hardness (HRC)", key="cap_hrc", value=None, format="%.1f",
+                          help="The bottom of the drawing's range; only with blank route steps.")
+        cap, msg = pg.capacity_for(case, ss.get("cap_grade", ""), ss.get("cap_steps"), ss.get("cap_hrc"), system)
+        if msg:
+            st.error(msg)
+        else:
+            st.dataframe(pg.capacity_table(cap, system), hide_index=True, key="cap_table")
+            st.caption(f"Allowable load governed by **{cap['governing']}**; strength: {cap['strength_basis']}.  "
+                       "Lug and clevis (net section, tear-out) are not checked.")
 
 
 def pin_view():
@@ -421,6 +448,8 @@ def pin_view():
                            "diameter, the grip length.  Other targets stay.")
             if ss.pop("_pin_applied", False):
                 st.success("The sidebar now holds the pin's targets and section; the other tabs are ranked on them.")
+    if case is not None:
+        capacity_view(case)
 
     st.divider()
     st.subheader("Diameter sweep")

@@ -24,7 +24,7 @@ _LAZY = {
     "evaluate": ".routes.evaluate",
     "select": ".selection.engine", "nearest_misses": ".selection.engine", "alternatives": ".selection.engine",
     "miss_analysis": ".selection.engine",
-    "pin_targets": ".design.pins",
+    "pin_targets": ".design.pins", "pin_capacity": ".design.capacity",
     "diameter_sweep": ".design.sweep",
     "batch": ".design.batch",
     "read_parts": ".design.parts_list", "PartsListError": ".design.parts_list",
@@ -32,7 +32,7 @@ _LAZY = {
 }
 
 __all__ = ["catalogue", "grade", "evaluate", "select", "nearest_misses", "miss_analysis", "alternatives",
-           "pin_targets",
+           "pin_targets", "pin_capacity",
            "diameter_sweep", "batch", "rationalise", "read_parts", "PartsListError", "CAUTION",
            "SelectorError", "InputError", "RouteError", "NotModelledError", "UnknownGradeError",
            "DataFileError", "SelectorWarning"]

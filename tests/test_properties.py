@@ -27,7 +27,7 @@ from hypothesis import HealthCheck, assume, given, settings, strategies as st
 
 from selector import evaluate
 from selector.catalogue.grades import default_catalogue
-from selector.errors import SelectorError
+from selector.errors import NotModelledError, SelectorError
 from selector.models import conversions
 from selector.routes import families
 
@@ -56,9 +56,20 @@ def _grid_rows(gid: str, fam_name: str) -> list[dict]:
     return [{k: (v[i].item() if hasattr(v[i], "item") else v[i]) for k, v in grid.items()} for i in range(n)]
 
 
+def _expanded(gid: str, name: str) -> bool:
+    """False for a family that refuses to expand (NotModelledError from grid: the bath routes,
+    evaluated one state at a time, about 5 s each)."""
+    try:
+        FAMILY_OBJECTS[name].grid(CAT.grades[gid])
+    except NotModelledError:
+        return False
+    return True
+
+
 # (a grade whose route has no states, e.g. aging of an uncalibrated alloy, has nothing to sample)
 PAIRS = [(gid, name) for gid in GRADES for name in CAT.grades[gid].routes if name in FAMILY_OBJECTS
-         and CAT.grades[gid].family in FAMILY_OBJECTS[name].families and _grid_rows(gid, name)]
+         and CAT.grades[gid].family in FAMILY_OBJECTS[name].families and _expanded(gid, name)
+         and _grid_rows(gid, name)]
 
 
 @st.composite
@@ -146,7 +157,8 @@ def test_off_table_strength_is_reported():
 
 def test_every_available_family_is_sampled():
     # the strategy covers every family whose model exists (so a new family is tested at once)
-    assert {name for _, name in PAIRS} == {f.name for f in families.available()}
+    # (the bath routes refuse to expand, being slow per state; tests/test_austemper.py covers them)
+    assert {name for _, name in PAIRS} == {f.name for f in families.available()} - {"austemper", "martemper"}
 
 
 # ----------------------------------------------------------------------------- monotonic

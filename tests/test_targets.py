@@ -211,6 +211,7 @@ def random_frame(rng, n):
         "relative_cost": rng.uniform(0.8, 10, n),
         "family": np.array(FAMS)[rng.integers(0, len(FAMS), n)],
         "corrosion_resistant": rng.random(n) < 0.3,
+        "fatigue_limit_mpa": holes(rng.uniform(100, 800, n), 0.05),
     })
 
 
@@ -220,7 +221,8 @@ def random_targets(rng):
         if rng.random() < 0.5:
             lo, hi = {"yield_mpa": (200, 1500), "uts_mpa": (300, 1800), "elongation_pct": (2, 40),
                       "hardness_hrc": (20, 65), "surface_hardness_hrc": (40, 65),
-                      "case_depth_mm": (0, 2), "relative_cost": (0.8, 10)}[col]
+                      "case_depth_mm": (0, 2), "relative_cost": (0.8, 10),
+                      "fatigue_limit_mpa": (100, 800)}[col]
             t[key] = float(rng.uniform(lo, lo + 0.5 * (hi - lo)) if side == "min"
                            else rng.uniform(lo + 0.5 * (hi - lo), hi))
     if rng.random() < 0.4:

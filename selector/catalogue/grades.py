@@ -23,10 +23,17 @@ STEEL_FAMILIES = ("carbon_steel", "alloy_steel", "carburizing_steel", "nitriding
                   "stainless_martensitic", "stainless_ph", "stainless_austenitic",
                   "tool_steel", "maraging_steel", "stainless_duplex")
 ROUTES = ("anneal", "normalize", "quench_temper", "carburize", "nitride", "induction",
-          "cold_work", "age")
+          "cold_work", "age", "austemper", "martemper")
 #: route families of bar bought in a supply condition (data/supply_conditions.csv); a grade
 #: admits them from its supply rows (and its annealed baseline), not from its ``routes`` cell
 SUPPLY_ROUTES = ("supply", "supply_induction", "supply_nitride")
+#: routes a grade admits without listing them in grades.csv: the salt-bath (bainite) routes of a
+#: hardenable carbon or low-alloy steel with at least this nominal carbon (wt %); austempering and
+#: martempering apply to medium- and high-carbon steels (ASM Handbook Vol. 4 (1991), austempering and
+#: martempering of steel; from memory)
+BATH_ROUTES = ("austemper", "martemper")
+BATH_ROUTE_FAMILIES = ("carbon_steel", "alloy_steel")
+BATH_ROUTE_MIN_C = 0.30
 BALANCE = {"aluminium": "Al", "copper_alloy": "Cu", "titanium": "Ti", "nickel_alloy": "Ni"}  # else Fe
 
 
@@ -298,6 +305,10 @@ def build_catalogue(grades_path=None, comp_path=None, windows_path=None, supply_
         sub = comps_by.get(r.id, [])
         routes = tuple(x.strip() for x in r.routes.split(";") if x.strip())
         routes = routes + _supply_routes(r, routes, supply_rows)
+        c_rows = [x for x in sub if x.element == "C"]
+        c_nom = float(c_rows[0].min_pct + c_rows[0].max_pct) / 2 if c_rows else 0.0
+        if "quench_temper" in routes and r.family in BATH_ROUTE_FAMILIES and c_nom >= BATH_ROUTE_MIN_C:
+            routes = routes + tuple(x for x in BATH_ROUTES if x not in routes)
         des = {"uns": r.uns, "en_name": r.en_name, "en_number": r.en_number, "jis": r.jis}
         aliases = tuple(a.strip() for a in str(r.aliases).split(";") if a.strip())
         g = Grade(

@@ -166,7 +166,7 @@ class _Frame:
         self.designation = self._str(frame, "designation")
         for col in ("temper_temp_c", "age_temp_c", "peak_ratio", "c_pct", "hardness_hrc",
                     "surface_hardness_hrc", "uts_mpa", "prior_temper_temp_c", "temp_c",
-                    "center_martensite_pct"):
+                    "center_martensite_pct", "case_depth_mm"):
             setattr(self, col, self._num(frame, col))
         # an aging route may carry its temperature as temp_c (the step's parameter name)
         self.age_temp_c = np.where(np.isnan(self.age_temp_c) & (self.route == "age"), self.temp_c,
@@ -271,6 +271,23 @@ def _galvanic(f: _Frame, ctx: dict) -> np.ndarray:
         return np.nan_to_num(np.abs(own - mate["anodic_index_v"]), nan=0.0) > ctx["galvanic_limit_v"] + 1e-9
 
 
+#: impact caution: surface hardness of a case, and hardness of a through-hardened part, above which
+#: shock loading needs care (HRC; common practice, data/cautions.csv row "impact")
+IMPACT_CASE_HRC = 55.0
+IMPACT_THROUGH_HRC = 50.0
+IMPACT_CASE_ROUTES = ("carburize", "nitride", "induction")
+
+
+def _impact(f: _Frame, ctx: dict) -> np.ndarray:
+    if not ctx.get("impact"):
+        return np.zeros(f.n, bool)
+    steel = f.isin("family", HE_FAMILIES)
+    case = f.isin("route", IMPACT_CASE_ROUTES) & _ge(f.case_depth_mm, 1e-9)
+    return steel & ((case & _ge(f.surface_hardness_hrc, IMPACT_CASE_HRC))
+                    | (~case & (_ge(f.hardness_hrc, IMPACT_THROUGH_HRC)
+                                | _ge(f.surface_hardness_hrc, IMPACT_THROUGH_HRC))))
+
+
 def _service_temperature(f: _Frame, ctx: dict) -> np.ndarray:
     ts = ctx.get("service_temp_c")
     if ts is None:
@@ -320,6 +337,7 @@ TRIGGERS: Mapping[str, Callable] = MappingProxyType({
     "galvanic": _galvanic,
     "service_temperature": _service_temperature,
     "shallow_hardening": _shallow_hardening,
+    "impact": _impact,
 })
 _DETAILS: Mapping[str, Callable] = MappingProxyType({
     "galvanic": _galvanic_detail,
@@ -384,7 +402,7 @@ def _load_cautions() -> Mapping[str, Caution]:
 COLUMNS_READ = ("grade", "family", "route", "route_family", "quench", "prior", "prior_quench",
                 "prior_temper_temp_c", "temper_temp_c", "age_temp_c", "temp_c", "peak_ratio",
                 "designation", "c_pct", "hardness_hrc", "surface_hardness_hrc", "uts_mpa",
-                "center_martensite_pct")
+                "center_martensite_pct", "case_depth_mm")
 
 #: every caution, by code (loaded once from data/cautions.csv)
 CAUTIONS: Mapping[str, Caution] = _load_cautions()
@@ -483,7 +501,7 @@ def anodic_index(material: str) -> dict:
 
 
 #: the keywords of the service context (:func:`cautions_for`, ``select``, ``diameter_sweep``)
-CONTEXT_KEYS = ("plated", "plating", "mating_material", "service_temp_c", "environment")
+CONTEXT_KEYS = ("plated", "plating", "mating_material", "service_temp_c", "environment", "impact")
 
 
 def check_context(context, field: str = "caution_context") -> dict:
@@ -512,19 +530,23 @@ def check_context(context, field: str = "caution_context") -> dict:
     if mating is not None:
         mating = inputs.name("mating_material", mating, allowed="a material name, e.g. 'brass', '6061'")
         anodic_index(mating)
+    impact = inputs.flag("impact", ctx.get("impact", False))
     return {"plated": plated, "plating": plating, "mating_material": mating, "service_temp_c": temp,
+            "impact": impact,
             "environment": env}
 
 
 def _context(f: _Frame, plated=False, mating_material=None, service_temp_c=None,
-             environment: str = "normal", plating: str | None = None, strength_target: bool = False) -> dict:
+             environment: str = "normal", plating: str | None = None, strength_target: bool = False,
+             impact: bool = False) -> dict:
     c = check_context(dict(plated=plated, mating_material=mating_material, service_temp_c=service_temp_c,
-                           environment=environment, plating=plating), "context")
+                           environment=environment, plating=plating, impact=impact), "context")
     if not isinstance(strength_target, (bool, np.bool_)):
         raise InputError("strength_target", strength_target, "True or False")
     plated, mating_material, plating, env = c["plated"], c["mating_material"], c["plating"], c["environment"]
     ctx = {"plated": plated, "environment": env, "galvanic_limit_v": GALVANIC_LIMITS_V[env],
-           "service_temp_c": c["service_temp_c"], "mating": None, "strength_target": bool(strength_target)}
+           "service_temp_c": c["service_temp_c"], "mating": None, "strength_target": bool(strength_target),
+           "impact": c["impact"]}
     if mating_material is not None:
         ctx["mating"] = anodic_index(mating_material)
         if plated and plating is not None:
@@ -549,7 +571,8 @@ def caution_masks(frame: pd.DataFrame, **context) -> pd.DataFrame:
 
 def cautions_for(frame: pd.DataFrame, plated: bool = False, mating_material: str | None = None,
                  service_temp_c: float | None = None, environment: str = "normal",
-                 plating: str | None = None, strength_target: bool = False) -> list[list[dict]]:
+                 plating: str | None = None, strength_target: bool = False,
+                 impact: bool = False) -> list[list[dict]]:
     """The cautions that apply to each row of ``frame``.
 
     Parameters
@@ -571,6 +594,9 @@ def cautions_for(frame: pd.DataFrame, plated: bool = False, mating_material: str
     strength_target : bool
         The targets include a minimum strength or hardness (the centre-martensite
         rule ``shallow_hardening`` applies only then).
+    impact : bool
+        Impact or shock loading in service (the ``impact`` rule: a case of 55 HRC and
+        above, or a through-hardened part of 50 HRC and above).
 
     Returns
     -------
@@ -585,7 +611,8 @@ def cautions_for(frame: pd.DataFrame, plated: bool = False, mating_material: str
     """
     f = _Frame(frame)
     ctx = _context(f, plated=plated, mating_material=mating_material, service_temp_c=service_temp_c,
-                   environment=environment, plating=plating, strength_target=strength_target)
+                   environment=environment, plating=plating, strength_target=strength_target,
+                   impact=impact)
     out: list[list[dict]] = [[] for _ in range(f.n)]
     for code, c in CAUTIONS.items():
         mask = np.asarray(c.trigger(f, ctx), bool)

@@ -11,7 +11,7 @@ The pipeline, one published model per step:
 4. local hardness: each depth with its OWN carbon and hardenability, the ASTM A255
    Jominy hardness of the core alloy at the local carbon at the depth's equivalent
    Jominy distance (:func:`case_as_quenched_hrc`), tempered by the quench-and-temper
-   rule at the local carbon (:func:`_case_tempered_hv`), retained
+   rule at the local carbon (:func:`selector.models.tempering.tempered_hv`), retained
    austenite by Koistinen–Marburger (1959) with the Andrews (1965) Ms of the local
    composition, mixed by volume in Vickers hardness (:func:`case_hardness_hv`);
 5. effective case depth to 50 HRC (SAE J423 / ISO 2639 convention).
@@ -518,11 +518,11 @@ def case_hardness_hv(as_quenched_hv, carbon_pct, comp_core: Composition, temper_
 
     ::
 
-        HV_T  = _case_tempered_hv(HV_AQ, HV_M(C_x), alloy at C_x, T, t)   (NaN temper: HV_AQ)
+        HV_T  = tempered_hv(HV_AQ, HV_M(C_x), alloy at C_x, T, t)   (NaN temper: HV_AQ)
         HV    = min(HV_T, (1 - f_RA) HV_T + f_RA * 300)
 
     The tempering is the project's quench-and-temper rule
-    (:func:`_case_tempered_hv`: Hollomon–Jaffe on the martensite,
+    (:func:`selector.models.tempering.tempered_hv`: Hollomon–Jaffe on the martensite,
     the non-martensitic part keeping its hardness) at the local carbon; f_RA is the
     Koistinen–Marburger retained austenite of the local carbon
     (:func:`retained_austenite_pct`, Andrews Ms) at 300 HV
@@ -562,6 +562,8 @@ def case_hardness_hv(as_quenched_hv, carbon_pct, comp_core: Composition, temper_
     """
     from .conversions import hrc_to_hv
     from .martensite import martensite_hardness_hrc
+    from .tempering import tempered_hv
+
     ctx = "case_hardness_hv"
     c = _nonneg("carbon_pct", carbon_pct, ctx)
     hv_aq = np.asarray(as_quenched_hv, float)
@@ -574,44 +576,10 @@ def case_hardness_hv(as_quenched_hv, carbon_pct, comp_core: Composition, temper_
         if np.any(on):
             _nonneg("temper_hours", np.where(on, h, 1.0), ctx)
             hv_m = hrc_to_hv(martensite_hardness_hrc(c, 99.9))
-            tt = _case_tempered_hv(hv_aq, hv_m, local, np.where(on, t, 200.0), np.where(on, h, 1.0))
+            tt = tempered_hv(hv_aq, hv_m, local, np.where(on, t, 200.0), np.where(on, h, 1.0))
             hv = np.where(on, np.minimum(tt, hv_aq), hv_aq)
     f_ra = retained_austenite_pct(c, comp_core, quench_temp_c, ms_method) / 100.0
     return np.minimum(hv, (1.0 - f_ra) * hv + f_ra * RETAINED_AUSTENITE_HV)
-
-
-#: hardness of the non-martensitic products read in the case's as-quenched hardness, HV = A + B·%C
-#: (a rough ferrite-pearlite/bainite level; this project's, from memory)
-NP_A, NP_B = 130.0, 230.0
-
-
-def _case_tempered_hv(hv_aq, hv_m, comp, temp_c, hours):
-    """Tempered hardness of the case at one depth from its as-quenched hardness.
-
-    The case of a carburized part is martensite (plus retained austenite, applied
-    after this step) wherever it is harder than 50 HRC, so its tempering follows the
-    Hollomon–Jaffe surface of :func:`selector.models.tempering.tempered_martensite_hv`
-    at the local carbon; where the as-quenched hardness is below that of full
-    martensite, the share ``f = (HV_AQ − HV_NP)/(HV_M − HV_NP)`` tempers and the rest
-    (``HV_NP = 130 + 230·%C``, from memory) keeps its hardness until the tempered
-    martensite reaches it:
-
-        HV_T = f · min(HV_TM, HV_M) + (1 − f) · min(HV_NP, HV_TM),  never above HV_AQ.
-
-    This hardness-fraction reading is kept for the case only (low tempers, 120–230 °C,
-    near-martensitic structure); the through-hardened core uses the chain's own
-    martensite fraction (:mod:`selector.models.structure_tempering`).
-
-    References
-    ----------
-    Hollomon & Jaffe, Trans. AIME 162 (1945) 223.
-    """
-    from .tempering import tempered_martensite_hv
-
-    hv_tm = np.minimum(tempered_martensite_hv(comp, temp_c, hours), hv_m)
-    hv_np = np.minimum(NP_A + NP_B * np.asarray(el(comp, "C"), float), hv_aq)
-    f = np.clip((hv_aq - hv_np) / np.maximum(hv_m - hv_np, 1e-9), 0.0, 1.0)
-    return np.minimum(f * hv_tm + (1.0 - f) * np.minimum(hv_np, hv_tm), hv_aq)
 
 
 def case_hardness_profile_hrc(depth_mm, temp_c, hours, surface_carbon_pct, comp_core: Composition,

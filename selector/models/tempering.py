@@ -312,6 +312,50 @@ def tempered_martensite_hv(comp, temp_c, hours):
     return surface_hv(coefficients(), c, el(comp, "Mo"), el(comp, "V"), p)
 
 
+
+#: hardness of non-martensitic products read in an as-quenched hardness, HV = A + B·%C (from memory)
+NP_A, NP_B = 130.0, 230.0
+
+
+def tempered_hv(hardness_hv_as_quenched, hardness_hv_martensite, comp, temp_c, hours):
+    """Tempered hardness of a structure known only by its as-quenched hardness
+    (hardness-fraction reading on the Hollomon–Jaffe surface).
+
+    Used where no martensite fraction is tracked for the location: the carburized
+    case (near-martensitic, low tempers) and martempered parts.  Through-hardened
+    Q&T uses the chain's own martensite fraction instead
+    (:mod:`selector.models.structure_tempering`).
+
+        f    = (HV_AQ − HV_NP) / (HV_M − HV_NP), clipped to 0–1,   HV_NP = 130 + 230·%C
+        HV_T = f · min(HV_TM, HV_M) + (1 − f) · min(HV_NP, HV_TM),  never above HV_AQ
+
+    Parameters
+    ----------
+    hardness_hv_as_quenched, hardness_hv_martensite : array_like
+        As-quenched hardness at the location and that of full martensite, HV.
+    comp : mapping
+        Composition, element → wt %.
+    temp_c, hours : array_like
+        Tempering temperature (°C) and time (h).
+
+    Returns
+    -------
+    ndarray, HV.
+
+    References
+    ----------
+    Hollomon & Jaffe, Trans. AIME 162 (1945) 223; the reading of the as-quenched
+    hardness as a mixture is this project's (docs/methods/tempering.md).
+    """
+    hv_aq = _hardness("hardness_hv_as_quenched", hardness_hv_as_quenched)
+    hv_m = _hardness("hardness_hv_martensite", hardness_hv_martensite)
+    c = _carbon(el(comp, "C"))
+    hv_tm = np.minimum(tempered_martensite_hv(comp, temp_c, hours), hv_m)
+    hv_np = np.minimum(NP_A + NP_B * c, hv_aq)
+    f = np.clip((hv_aq - hv_np) / np.maximum(hv_m - hv_np, 1e-9), 0.0, 1.0)
+    return np.minimum(f * hv_tm + (1.0 - f) * np.minimum(hv_np, hv_tm), hv_aq)
+
+
 def check_validity(comp, temp_c, hours) -> list[str]:
     """Warnings (``selector.models.validity``) for the values outside the ranges of
     ``hollomon_jaffe`` and ``tempering_hv`` (NaN tempers are ignored)."""

@@ -11,7 +11,7 @@ from ..catalogue import heat
 from ..catalogue.grades import Grade, default_catalogue
 from ..errors import InputError, RouteError
 from ..models import conversions
-from . import bands, families, steps as steps_mod
+from . import bands, families, fatigue, steps as steps_mod
 from .families.base import Batch, test_position
 
 STEEL_SCALE_FAMILIES = ("carbon_steel", "alloy_steel", "carburizing_steel", "nitriding_steel",
@@ -95,6 +95,10 @@ def finish(res: dict, batch: Batch, route: str = bands.ANY) -> dict:
     return res
 
 
+#: alias of :func:`finish` (``evaluate`` has an argument of that name: the surface finish)
+_finish_states = finish
+
+
 def _scalar(v):
     if isinstance(v, np.ndarray):
         v = v.item() if v.size == 1 else v.tolist()
@@ -111,7 +115,8 @@ BAND_KEYS = tuple(f"{k}_{e}" for k in ("uts_mpa", "yield_mpa", "elongation_pct",
 
 
 def evaluate(grade, route, diameter_mm: float | None = 25.0, thickness_mm: float | None = None,
-             composition: str = "nominal", heat_composition=None) -> dict:
+             composition: str = "nominal", heat_composition=None, *, finish: str = "machined",
+             load_type: str = "bending", reliability: float = 0.5, service_temp_c: float | None = None) -> dict:
     """Properties that ``route`` gives ``grade`` at a real section.
 
     Parameters
@@ -134,6 +139,12 @@ def evaluate(grade, route, diameter_mm: float | None = 25.0, thickness_mm: float
         outside the grade's specification gives a warning naming it; a negative,
         non-finite or impossible value (total over 100 %) an ``InputError``.  Only
         with ``composition="nominal"``.
+    finish, load_type, reliability, service_temp_c
+        Surface finish (``ground``, ``machined`` (or cold drawn), ``hot_rolled``,
+        ``as_forged``), load type (``bending``, ``axial``, ``torsion``), reliability
+        (0.5 to 0.9999; 0.5 gives the typical value like the other properties) and
+        service temperature (°C, default 20) of the fatigue limit
+        (:mod:`selector.routes.fatigue`).
 
     Returns
     -------
@@ -143,7 +154,10 @@ def evaluate(grade, route, diameter_mm: float | None = 25.0, thickness_mm: float
         38 mm, mid-radius above); ``surface_hardness_hv``, ``center_hardness_hv``,
         ``case_depth_mm`` (0 when through-hardened); ``profile`` (r/R and hardness
         across the section) where the family computes one; ``warnings`` and
-        ``sources`` (lists of str); ``route_family``, ``route_text``, ``params``.
+        ``sources`` (lists of str); ``route_family``, ``route_text``, ``params``;
+        ``fatigue_limit_mpa`` (+ ``_lo``/``_hi``, fully reversed, MPa) and ``fatigue``
+        (the Marin factors used, the governing depth and, where a hardness profile
+        exists, ``through_depth``: local strength against the applied stress).
 
     Raises
     ------
@@ -153,6 +167,7 @@ def evaluate(grade, route, diameter_mm: float | None = 25.0, thickness_mm: float
 
     d, t = section_args(diameter_mm, thickness_mm)
     check_choice("composition", composition, CORNERS)
+    fat_opts = fatigue.check_options(finish, load_type, reliability)
     g, steps, fam = resolve(grade, route)
     comp, heat_warns = g.composition(composition), []
     if heat_composition is not None:
@@ -164,7 +179,7 @@ def evaluate(grade, route, diameter_mm: float | None = 25.0, thickness_mm: float
     params, warns = fam.parse(steps, g)
     warns = heat_warns + list(warns)
     batch = Batch.single(g, comp, params, d, t)
-    res = finish(fam.compute(batch), batch, fam.name)
+    res = _finish_states(fam.compute(batch), batch, fam.name)
     out = {}
     for key in ("uts_mpa", "yield_mpa", "elongation_pct", "hardness_hv", "hardness_hb", "hardness_hrc",
                 "surface_hardness_hv", "surface_hardness_hrc", "center_hardness_hv", "center_hardness_hrc",
@@ -203,4 +218,38 @@ def evaluate(grade, route, diameter_mm: float | None = 25.0, thickness_mm: float
         srcs.append(E140_SOURCE)
     srcs.append(bands.source_note())
     out["sources"] = list(dict.fromkeys(srcs))
+    _add_fatigue(out, res, batch, fam.name, d if d is not None else t, fat_opts, service_temp_c)
     return out
+
+
+def _add_fatigue(out: dict, res: dict, batch: Batch, route: str, section: float, opts: dict, temp_c) -> None:
+    """``fatigue_limit_mpa`` (+ band) and the ``fatigue`` record of one state (in place)."""
+    cols = fatigue.fatigue_columns(res, batch.attr("family"), np.array([route], dtype=object), [section],
+                                   temp_c=temp_c, **opts)
+    for key in ("fatigue_limit_mpa", "fatigue_limit_mpa_lo", "fatigue_limit_mpa_hi"):
+        out[key] = _scalar(cols[key])
+    cyc = _scalar(cols["fatigue_cycles"])
+    rec = {**opts, "temp_c": 20.0 if temp_c is None else float(temp_c),
+           **{k: _scalar(cols["fatigue_" + k]) for k in ("ka", "kb", "kc", "kd", "ke")},
+           "cycles": cyc, "governing": _scalar(cols["fatigue_governing"]),
+           "governing_depth_mm": _scalar(cols["fatigue_governing_depth_mm"]),
+           "basis": ("endurance limit (steel): Se' = 0.5 Sut capped at 700 MPa, Marin factors" if cyc is None
+                     else f"fatigue strength at {cyc:.0e} cycles (no endurance limit), Marin factors")}
+    hv = out.get("hardness_hv")
+    if out.get("family") in fatigue.STEEL_FAMILIES and hv is not None:
+        rec["murakami_polished_mpa"] = _scalar(fatigue.fm.murakami_fatigue_limit_mpa(hv))
+    if "profile" in out and out.get("family") in fatigue.STEEL_FAMILIES and out.get("diameter_mm"):
+        td = fatigue.through_depth(out["profile"], out["diameter_mm"], route, temp_c=temp_c,
+                                   case_depth_mm=float(out.get("case_depth_mm") or 0.0), **opts)
+        rec["through_depth"] = {k: (v.round(4).tolist() if isinstance(v, np.ndarray) else round(v, 4))
+                                for k, v in td.items()}
+    out["fatigue"] = rec
+    from ..models import validity
+    msgs = validity.check("marin_size", diameter_mm=section)
+    if temp_c is not None:
+        msgs += validity.check("marin_temperature", temp_c=temp_c)
+    out["warnings"] = list(dict.fromkeys(out["warnings"] + msgs))
+    out["sources"].append("fatigue: Marin (1962) factors as tabulated in Budynas & Nisbett, Shigley's "
+                          "Mechanical Engineering Design, 10th ed. (2015), sec. 6-7 to 6-9 (data/fatigue_surface.csv); "
+                          "non-ferrous ratios data/fatigue_nonferrous.csv; case residual stress "
+                          "data/residual_stress.csv with the FKM mean-stress sensitivity (Rennert et al. 2012)")

@@ -49,6 +49,7 @@ from ..cache import disk_frame
 from ..catalogue.grades import FAMILIES, default_catalogue
 from ..errors import InputError
 from ..routes import families as fam_registry
+from ..routes import fatigue as fatigue_mod
 from ..routes.evaluate import section_args
 from ..routes.steps import describe
 from ..states.expand import expand
@@ -520,7 +521,9 @@ def select(targets: dict | None = None, diameter_mm: float = 25.0, *, thickness_
            length_mm: float = 100.0, price_sheet: dict | None = None, objectives=DEFAULT_OBJECTIVES,
            robust_only: bool = False, plated: bool = False, plating: str | None = None,
            mating_material: str | None = None, service_temp_c: float | None = None,
-           environment: str = "normal", min_p_meet: float = MIN_P_MEET, allow=None) -> pd.DataFrame:
+           environment: str = "normal", min_p_meet: float = MIN_P_MEET, allow=None,
+           finish: str = "machined", load_type: str = "bending", reliability: float = 0.5,
+           impact: bool = False) -> pd.DataFrame:
     """Grade-and-route candidates that meet ``targets`` at the given section.
 
     Parameters
@@ -529,7 +532,8 @@ def select(targets: dict | None = None, diameter_mm: float = 25.0, *, thickness_
         Any of ``min_yield_mpa, max_yield_mpa, min_uts_mpa, max_uts_mpa,
         min_elongation_pct, min_hardness_hrc, max_hardness_hrc`` (at the tension-test
         location), ``min_surface_hardness_hrc, min_case_depth_mm, max_relative_cost,
-        families, exclude_families, corrosion_resistant``.
+        min_fatigue_mpa`` (fully reversed fatigue limit at the section, MPa),
+        ``families, exclude_families, corrosion_resistant``.
     diameter_mm : float
         Round section diameter, mm (or give ``thickness_mm`` for a plate).
     length_mm : float
@@ -554,6 +558,15 @@ def select(targets: dict | None = None, diameter_mm: float = 25.0, *, thickness_
         Caution codes whose ``avoid`` severity the user switches off (e.g.
         ``["quench_cracking"]``, also accepted as ``"water_quench_alloy"``); see
         :func:`selector.design.cautions.check_allow`.
+        ``service_temp_c`` also sets the fatigue temperature factor.
+    impact : bool
+        Impact or shock loading in service: a caution on hard cases (>= 55 HRC) and
+        through-hardened parts (>= 50 HRC).
+    finish, load_type, reliability
+        Surface finish (``ground``, ``machined``, ``hot_rolled``, ``as_forged``), load
+        type (``bending``, ``axial``, ``torsion``) and reliability (0.5 to 0.9999) of the
+        ``fatigue_limit_mpa`` column and the ``min_fatigue_mpa`` target
+        (:mod:`selector.routes.fatigue`).
 
     Returns
     -------
@@ -578,14 +591,42 @@ def select(targets: dict | None = None, diameter_mm: float = 25.0, *, thickness_
     robust_only = inputs.flag("robust_only", robust_only)
     _check_min_p(min_p_meet)
     cautions_mod.check_allow(allow)
+    fat = dict(fatigue_mod.check_options(finish, load_type, reliability), temp_c=service_temp_c)
     service = check_context(dict(plated=plated, plating=plating, mating_material=mating_material,
-                                 service_temp_c=service_temp_c, environment=environment), "service")
+                                 service_temp_c=service_temp_c, environment=environment, impact=impact),
+                            "service")
     prepared = prepare(diameter_mm, thickness_mm, length_mm, price_sheet)
-    return rank(prepared, t, objectives, robust_only, service, min_p_meet, allow)
+    if "min_fatigue_mpa" in t:
+        prepared = with_fatigue(prepared, **fat)
+    out = rank(prepared, t, objectives, robust_only, service, min_p_meet, allow)
+    if "fatigue_limit_mpa" not in out.columns and len(out):
+        d, th = section_args(diameter_mm, thickness_mm)
+        out = with_fatigue(out, section_mm=d or th, **fat)
+    return out
+
+
+def with_fatigue(frame: pd.DataFrame, finish: str = "machined", load_type: str = "bending",
+                 reliability: float = 0.5, temp_c=None, section_mm: float | None = None) -> pd.DataFrame:
+    """A copy of a states or candidates frame with the fatigue columns of
+    :func:`selector.routes.fatigue.fatigue_columns` (``fatigue_limit_mpa`` and its band,
+    cycles, governing depth) at the frame's section (``attrs["section"]``)."""
+    sec = frame.attrs.get("section", {})
+    section = section_mm or sec.get("diameter_mm") or sec.get("thickness_mm")
+    route = frame["route_family"] if "route_family" in frame.columns else frame["route"]
+    cols = fatigue_mod.fatigue_columns(frame, frame["family"].astype(str).to_numpy(),
+                                       route.astype(str).to_numpy(), float(section), finish=finish,
+                                       load_type=load_type, reliability=reliability, temp_c=temp_c)
+    keep = ("fatigue_limit_mpa", "fatigue_limit_mpa_lo", "fatigue_limit_mpa_hi", "fatigue_cycles",
+            "fatigue_governing", "fatigue_governing_depth_mm")
+    out = frame.assign(**{k: cols[k] for k in keep})
+    out.attrs = dict(frame.attrs)
+    return out
 
 
 def nearest_misses(targets: dict, diameter_mm: float = 25.0, *, thickness_mm: float | None = None,
-                   length_mm: float = 100.0, price_sheet: dict | None = None, n: int = 10) -> pd.DataFrame:
+                   length_mm: float = 100.0, price_sheet: dict | None = None, n: int = 10,
+                   finish: str = "machined", load_type: str = "bending", reliability: float = 0.5,
+                   service_temp_c: float | None = None) -> pd.DataFrame:
     """The closest candidates when nothing meets ``targets``: for each target, how far
     it would have to move (``move_<key>``) for that candidate to qualify at the
     nominal composition.  One row per variant (its best parameter point), sorted by
@@ -594,7 +635,10 @@ def nearest_misses(targets: dict, diameter_mm: float = 25.0, *, thickness_mm: fl
 
     t = validate_targets(targets, FAMILIES)
     n = inputs.integer("n", n, 1, 10_000)
+    fat = dict(fatigue_mod.check_options(finish, load_type, reliability), temp_c=service_temp_c)
     prepared = prepare(diameter_mm, thickness_mm, length_mm, price_sheet)
+    if "min_fatigue_mpa" in t:
+        prepared = with_fatigue(prepared, **fat)
     m = len(prepared) // 3
     nom = prepared.iloc[:m].assign(p_meet=p_meet(prepared, t))
     hard = _hard_filters(nom, t)

@@ -54,6 +54,8 @@ NUMERIC_TARGETS: Mapping[str, tuple[str, str]] = {
     "min_surface_hardness_hrc": ("surface_hardness_hrc", "min"),
     "min_case_depth_mm": ("case_depth_mm", "min"),
     "max_relative_cost": ("relative_cost", "max"),
+    # fully reversed fatigue limit at the section (selector.routes.fatigue); select() adds the column
+    "min_fatigue_mpa": ("fatigue_limit_mpa", "min"),
 }
 #: hard (not relaxable) filters -> frame column
 HARD_FILTERS: Mapping[str, str] = {

@@ -87,6 +87,12 @@ def format_evaluation(r: dict) -> str:
              f"case depth           {_fmt(r.get('case_depth_mm'), 2)} mm"]
     if r.get("center_martensite_pct") is not None:
         lines.append(f"centre martensite    {_fmt(r['center_martensite_pct'])} %")
+    if r.get("fatigue_limit_mpa") is not None:
+        f = r["fatigue"]
+        at = "endurance limit" if f["cycles"] is None else f"at {f['cycles']:.0e} cycles (no endurance limit)"
+        lines.append(f"fatigue limit        {_banded(r, 'fatigue_limit_mpa', 'MPa')} {at}; {f['finish']}, "
+                     f"{f['load_type']}, reliability {f['reliability']:g}; governing: {f['governing']} "
+                     f"({_fmt(f['governing_depth_mm'], 2)} mm)")
     if r.get("profile"):
         lines += ["", "hardness across the section (depth from surface):"]
         for p in r["profile"]:
@@ -102,7 +108,8 @@ def cmd_evaluate(args) -> int:
 
     heat = parse_heat_text(args.heat) if args.heat is not None else None
     r = evaluate(args.grade, _route_from_args(args), diameter_mm=args.diameter, thickness_mm=args.thickness,
-                 heat_composition=heat)
+                 heat_composition=heat, finish=args.finish, load_type=args.load_type,
+                 reliability=args.reliability)
     if args.json:
         print(json.dumps({**r, "caution": CAUTION}, indent=2, ensure_ascii=False))
     else:
@@ -169,6 +176,10 @@ def build_parser() -> argparse.ArgumentParser:
     ev.add_argument("--thickness", type=float, default=None, help="plate thickness, mm (instead of a diameter)")
     ev.add_argument("--heat", default=None, help="the heat's analysis from its mill certificate, wt %%, e.g. "
                     "\"C=0.41 Mn=0.86 Cr=0.95 Mo=0.18\" (other elements: the grade's nominal)")
+    ev.add_argument("--finish", default="machined",
+                    help="surface finish for the fatigue limit: ground, machined, hot_rolled, as_forged")
+    ev.add_argument("--load-type", default="bending", help="fatigue load type: bending, axial, torsion")
+    ev.add_argument("--reliability", type=float, default=0.5, help="fatigue reliability, 0.5 to 0.9999")
     ev.add_argument("--json", action="store_true", help="machine-readable output")
     ev.set_defaults(func=cmd_evaluate)
 

@@ -24,10 +24,53 @@ def _service(args) -> dict:
                 mating_material=args.mating, service_temp_c=args.service_temp)
 
 
+def format_capacity(cap: dict) -> str:
+    """The text of ``selector pin --capacity``: the allowable load per mode and the governing one."""
+    lines = [f"clevis pin capacity: {cap['grade']}, {cap['shear_planes']} shear plane(s), safety factor "
+             f"{cap['safety_factor']:g}",
+             f"  strength: {cap['strength_basis']}"]
+    for mode in ("shear", "bending", "bearing"):
+        mark = "  <- governing" if mode == cap["governing"] else ""
+        lines.append(f"  {mode:8s} {cap[mode + '_kn']:10.1f} kN  {cap[mode + '_lbf']:12,.0f} lbf{mark}")
+    lines.append(f"  allowable load {cap['load_kn']:.1f} kN ({cap['load_lbf']:,.0f} lbf), governed by "
+                 f"{cap['governing']}")
+    lines += [f"  ! {w}" for w in cap.get("warnings", [])]
+    return "\n".join(lines)
+
+
+def _capacity(args) -> int:
+    from ..design.capacity import pin_capacity
+    from .cli import parse_step_text
+
+    if args.grade is None:
+        raise InputError("--grade", None, "a grade with --capacity, e.g. --grade 4130")
+    route = None
+    if args.route_json:
+        try:
+            route = json.loads(args.route_json)
+        except json.JSONDecodeError as exc:
+            raise InputError("--route-json", args.route_json, f"valid JSON ({exc.msg})") from None
+    elif args.step:
+        route = [parse_step_text(s) for s in args.step]
+    cap = pin_capacity(args.grade, route, args.diameter, args.gap, args.lug, args.clevis,
+                       shear_planes=args.shear_planes, safety_factor=args.safety_factor,
+                       hardness_hrc=args.hardness_hrc)
+    if args.format == "json":
+        print(json.dumps({"caution": CAUTION, **cap}, indent=2, default=str, ensure_ascii=False))
+    else:
+        print(format_capacity(cap))
+        print(f"\nCAUTION: {CAUTION}")
+    return 0
+
+
 def cmd_pin(args) -> int:
     from ..design.pins import pin_report
     from .cli_more import TABLE_COLUMNS, _price_sheet, emit
 
+    if getattr(args, "capacity", False):
+        return _capacity(args)
+    if args.load_kn is None and args.load_lbf is None:
+        raise InputError("--load-kn/--load-lbf", None, "a pin load (or --capacity to compute the allowable load)")
     rep = pin_report(**_load_case(args, args.diameter))
     s = rep["stresses"]
     if args.format == "json" and not args.select:
@@ -97,8 +140,8 @@ def cmd_sweep(args) -> int:
     return 0
 
 
-def _load_args(p) -> None:
-    g = p.add_mutually_exclusive_group(required=True)
+def _load_args(p, load_required: bool = True) -> None:
+    g = p.add_mutually_exclusive_group(required=load_required)
     g.add_argument("--load-kn", type=float, help="pin load, kN")
     g.add_argument("--load-lbf", type=float, help="pin load, lbf")
     p.add_argument("--shear-planes", type=int, default=2, choices=(1, 2))
@@ -118,8 +161,17 @@ def _load_args(p) -> None:
 
 
 def add_commands(sub) -> None:
-    p = sub.add_parser("pin", help="clevis-pin load case → strength targets (and candidates with --select)")
-    _load_args(p)
+    p = sub.add_parser("pin", help="clevis-pin load case → strength targets (and candidates with --select); "
+                       "with --capacity: the load a given pin can carry")
+    _load_args(p, load_required=False)
+    p.add_argument("--capacity", action="store_true",
+                   help="allowable load of a given pin (needs --grade and a route, or --hardness-hrc)")
+    p.add_argument("--grade", default=None, help="pin grade for --capacity, e.g. 4130")
+    p.add_argument("--step", action="append", default=None,
+                   help="route step for --capacity as 'op key=value ...' (repeat the option per step)")
+    p.add_argument("--route-json", default=None, help="route for --capacity as a JSON list of steps")
+    p.add_argument("--hardness-hrc", type=float, default=None,
+                   help="the hardness the drawing specifies (bottom of its range), instead of a route")
     p.add_argument("--diameter", type=float, required=True, help="pin diameter, mm")
     p.add_argument("--length", type=float, default=100.0, help="pin length, mm (mass and part cost)")
     p.add_argument("--select", action="store_true", help="also list the candidates for the targets")

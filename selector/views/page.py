@@ -1419,3 +1419,114 @@ def frontier_chart(frontier: pd.DataFrame, axes: Sequence[str], targets: Mapping
     return alt.layer(*layers).properties(
         height=height, title=f"What can be reached: {ny} against {nx} with the other targets met "
                              "(dashed: the targets)")
+
+
+# --------------------------------------------------------------------------- pin capacity, fatigue through the depth
+
+#: page label of each field of :func:`selector.design.capacity.pin_capacity`
+CAPACITY_LABELS = {"hardness_hrc": ("Specified hardness (HRC)", None), "route": ("Route steps", None),
+                   "route/hardness_hrc": ("Route or hardness", None), "grade": ("Pin grade", None)}
+
+
+def capacity_for(case: Mapping, grade: str, steps_text: str | None, hardness_hrc, system: str
+                 ) -> tuple[dict | None, str | None]:
+    """:func:`selector.pin_capacity` for the pin tab's geometry (``case`` as from
+    :func:`pin_case_from_inputs`; its load is not used), a grade and either route
+    steps (``"harden quench=oil; temper temp_c=540"``) or a specified hardness.
+    Returns ``(capacity, None)`` or ``(None, message)``."""
+    from selector.views.cli import parse_step_text
+
+    try:
+        route = None
+        if steps_text and steps_text.strip():
+            route = [parse_step_text(s) for s in steps_text.split(";") if s.strip()]
+        cap = selector.pin_capacity(grade, route, case["diameter_mm"], case.get("gap_mm", 0.0),
+                                    case["lug_thickness_mm"], case["clevis_thickness_mm"],
+                                    shear_planes=case.get("shear_planes", 2),
+                                    safety_factor=case.get("safety_factor", 2.0), hardness_hrc=hardness_hrc,
+                                    load_model=case.get("load_model", "uniform"))
+        return cap, None
+    except SelectorError as exc:
+        return None, explain(exc, system, {**PIN_LABELS, **CAPACITY_LABELS})
+
+
+def capacity_table(cap: Mapping, system: str) -> pd.DataFrame:
+    """One row per mode: allowable load (display force unit) and whether it governs."""
+    fu = unit("force", system)
+    key = "lbf" if fu == "lbf" else "kn"
+    return pd.DataFrame({"mode": ["shear", "bending", "bearing"],
+                         f"allowable load ({fu})": [cap[f"{m}_{key}"] for m in ("shear", "bending", "bearing")],
+                         "governing": [m == cap["governing"] for m in ("shear", "bending", "bearing")]})
+
+
+def fatigue_depth_frame(ev: Mapping, system: str) -> pd.DataFrame:
+    """Long frame of ``evaluate()["fatigue"]["through_depth"]`` for the chart: columns
+    ``depth, curve, stress`` (``curve``: local fatigue strength, or the applied stress
+    scaled so that it touches the strength at the governing depth)."""
+    td = (ev.get("fatigue") or {}).get("through_depth")
+    if not td:
+        return pd.DataFrame(columns=["depth", "curve", "stress"])
+    depth = to_display(np.asarray(td["depth_mm"], float), "length", system)
+    strength = to_display(np.asarray(td["strength_mpa"], float), "stress", system)
+    applied = to_display(np.asarray(td["stress_per_surface"], float) * td["allowable_surface_mpa"], "stress", system)
+    return pd.concat([pd.DataFrame({"depth": depth, "curve": "local fatigue strength", "stress": strength}),
+                      pd.DataFrame({"depth": depth, "curve": "applied stress at the allowable surface stress",
+                                    "stress": applied})], ignore_index=True)
+
+
+def fatigue_depth_chart(frame: pd.DataFrame, system: str, height: int = 300) -> alt.Chart:
+    """Local fatigue strength and the applied (bending) stress against depth; they touch
+    at the governing depth."""
+    su, lu = unit("stress", system), unit("length", system)
+    return alt.Chart(frame).mark_line(point=alt.OverlayMarkDef(size=18), strokeWidth=2).encode(
+        x=alt.X("depth:Q", title=f"Depth below the surface ({lu})"),
+        y=alt.Y("stress:Q", title=f"Stress amplitude ({su})"),
+        color=alt.Color("curve:N", title=None, legend=alt.Legend(orient="top", labelLimit=400)),
+        tooltip=[alt.Tooltip("curve:N"), alt.Tooltip("depth:Q", format=".3g", title=lu),
+                 alt.Tooltip("stress:Q", format=".4g", title=su)],
+    ).properties(height=height, title="Fatigue strength against the applied stress through the section")
+
+
+def transformation_frame(ev: Mapping, system: str) -> pd.DataFrame:
+    """Long frame for the time–temperature chart of a bath route (austemper, martemper) of
+    one ``evaluate()`` result: the transformation start and finish curves of its
+    composition (Li et al. 1998) and the surface and centre cooling paths into the bath.
+    Columns ``time_s, temp, curve, kind`` (temp in display units; kind ``reaction`` or
+    ``path``).  Empty for other routes."""
+    from selector.catalogue.grades import default_catalogue
+    from selector.routes.families import austemper as bath
+
+    if ev.get("route_family") not in ("austemper", "martemper") or not ev.get("diameter_mm"):
+        return pd.DataFrame(columns=["time_s", "temp", "curve", "kind"])
+    g = default_catalogue().lookup(ev["grade"])
+    comp = ev.get("heat_composition") or g.composition(ev.get("composition", "nominal")
+                                                       if ev.get("composition") != "heat" else "nominal")
+    p = ev["params"]
+    tc = bath.transformation_curves(comp)
+    rows = []
+    for r in ("ferrite", "pearlite", "bainite"):
+        for key in ("start", "finish"):
+            t = tc[f"{r}_{key}_s"]
+            ok = np.isfinite(t)
+            rows.append(pd.DataFrame({"time_s": t[ok], "temp": to_display(tc["temp_c"][ok], "temperature", system),
+                                      "curve": f"{r} {key}", "kind": "reaction"}))
+    path = bath.cooling_path(comp, p["austenitize_c"], p["bath_c"], ev["diameter_mm"], p.get("hold_hours"))
+    for where in ("surface", "centre"):
+        rows.append(pd.DataFrame({"time_s": path["time_s"], "temp": to_display(path[f"{where}_c"], "temperature",
+                                                                               system),
+                                  "curve": f"{where} cooling path", "kind": "path"}))
+    return pd.concat(rows, ignore_index=True)
+
+
+def transformation_chart(frame: pd.DataFrame, system: str, height: int = 320) -> alt.Chart:
+    """Transformation start/finish curves (solid) and the cooling paths (dashed) on a
+    logarithmic time axis."""
+    tu = unit("temperature", system)
+    return alt.Chart(frame).mark_line(strokeWidth=2).encode(
+        x=alt.X("time_s:Q", title="Time (s, log scale)", scale=alt.Scale(type="log")),
+        y=alt.Y("temp:Q", title=f"Temperature ({tu})"),
+        color=alt.Color("curve:N", title=None, legend=alt.Legend(orient="top", labelLimit=300)),
+        strokeDash=alt.StrokeDash("kind:N", title=None, legend=None),
+        tooltip=[alt.Tooltip("curve:N"), alt.Tooltip("time_s:Q", format=".3g", title="s"),
+                 alt.Tooltip("temp:Q", format=".0f", title=tu)],
+    ).properties(height=height, title="Transformation start and finish (Li et al. 1998) with the cooling path")

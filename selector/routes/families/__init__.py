@@ -20,6 +20,7 @@ MODULES = {
     "carburize": "carburize", "nitride": "nitride", "induction": "induction",
     "cold_work": "cold_work", "age": "age",
     "supply": "supply", "supply_induction": "supply", "supply_nitride": "supply",
+    "austemper": "austemper", "martemper": "austemper",
 }
 
 #: family name -> accepted op sequences
@@ -41,6 +42,8 @@ PATTERNS = {
     "supply": (("supply",), ("supply", "stress_relieve")),
     "supply_induction": (("supply", "induction_harden"), ("supply", "induction_harden", "temper")),
     "supply_nitride": (("supply", "nitride"),),
+    "austemper": (("austemper",),),
+    "martemper": (("martemper",), ("martemper", "temper")),
 }
 
 
