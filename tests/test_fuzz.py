@@ -47,6 +47,7 @@ EXAMPLES = {
     "price_sheet": 1200, "targets_file": 1200, "study_file": 600, "user_state": 300,
     "cli_evaluate": 700, "cli_grades": 300, "cli_select": 120, "cli_alternatives": 50, "cli_pin": 700,
     "cli_sweep": 60, "cli_validate": 48, "cli_any": 400,   # cli_validate: its whole space is 48 lines
+    "heat_composition": 300, "pin_capacity": 300,
 }
 TOTAL_EXAMPLES = sum(EXAMPLES.values())
 
@@ -619,8 +620,8 @@ def test_fuzz_cli_validate_bad_command_lines(tmp_path_factory, data):
 
 
 @cfg("cli_any")
-@given(st.sampled_from(["evaluate", "grades", "select", "alternatives", "pin", "sweep", "validate", "nosuch",
-                        "", "-x", "--help"]), st.lists(ARG_TEXT, max_size=4))
+@given(st.sampled_from(["evaluate", "grades", "select", "alternatives", "pin", "sweep", "validate", "batch",
+                        "nosuch", "", "-x", "--help"]), st.lists(ARG_TEXT, max_size=4))
 def test_fuzz_cli_any_verb_with_odd_arguments(verb, args):
     argv = [verb, *args]
     if verb == "validate" and not any(a in ("-h", "--help") for a in args):
@@ -628,3 +629,44 @@ def test_fuzz_cli_any_verb_with_odd_arguments(verb, args):
     if verb in ("select",) and not any(a in ("-h", "--help") for a in args):
         argv.append("--min-yield-mpa=1e9")     # nothing qualifies: fast nearest misses only
     run_cli(argv)
+
+
+# ----------------------------------------------------------------------------- later entry points
+
+HEAT_KEYS = st.sampled_from(["C", "Mn", "Cr", "Mo", "Ni", "Si", "cu", "V", "B", "Xx", "", "Fe", " C "])
+HEAT_VALUES = st.one_of(st.floats(0.0, 2.0), st.floats(), ODD_NUMBERS, ODD_THINGS)
+
+
+@cfg("heat_composition")
+@given(st.one_of(st.dictionaries(HEAT_KEYS, HEAT_VALUES, max_size=6), ODD_THINGS))
+def test_fuzz_heat_composition(heat):
+    try:
+        r = selector.evaluate("4140", [{"op": "harden", "quench": "oil"}, {"op": "temper", "temp_c": 540}],
+                              diameter_mm=30, heat_composition=heat)
+    except SelectorError as exc:
+        assert str(exc)
+        event("refused")
+        return
+    event("accepted")
+    evaluate_ok(r)
+
+
+CAP_VALUES = st.one_of(st.floats(0.5, 100.0), st.floats(), ODD_NUMBERS, ODD_THINGS)
+
+
+@cfg("pin_capacity")
+@given(st.fixed_dictionaries({"diameter_mm": CAP_VALUES, "gap_mm": st.one_of(st.floats(0.0, 10.0), CAP_VALUES),
+                              "lug_thickness_mm": CAP_VALUES, "clevis_thickness_mm": CAP_VALUES,
+                              "safety_factor": st.one_of(st.floats(1.0, 5.0), CAP_VALUES),
+                              "hardness_hrc": st.one_of(st.floats(15.0, 65.0), CAP_VALUES)}))
+def test_fuzz_pin_capacity(kw):
+    try:
+        cap = selector.pin_capacity("4130", None, **kw)
+    except SelectorError as exc:
+        assert str(exc)
+        event("refused")
+        return
+    event("accepted")
+    for k in ("shear_kn", "bending_kn", "bearing_kn", "load_kn", "shear_lbf", "load_lbf"):
+        assert math.isfinite(cap[k]) and cap[k] >= 0.0, (k, cap[k])
+    assert cap["governing"] in ("shear", "bending", "bearing")

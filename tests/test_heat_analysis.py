@@ -54,6 +54,7 @@ def test_an_element_outside_the_specification_is_named_in_a_warning():
     ({"Mn": math.inf}, "heat_composition['Mn']", "finite"),
     ({"Cr": "0.9"}, "heat_composition['Cr']", "a number"),
     ({"Cr": True}, "heat_composition['Cr']", "a number"),
+    ({"C": 10 ** 400}, "heat_composition['C']", "finite"),      # found by the fuzz suite
     ({"Cr": 60.0, "Ni": 45.0}, "heat_composition['Cr']", "100 wt %"),
     ({"Unobtainium": 1.0}, "heat_composition", "element symbol"),
     ({"C": 0.4, "c": 0.41}, "heat_composition['C']", "each element once"),

@@ -86,7 +86,10 @@ def heat_composition(grade, analysis, known: tuple) -> tuple[dict, list]:
         field = f"heat_composition[{sym!r}]"
         if isinstance(value, bool) or not isinstance(value, Real):
             raise InputError(field, value, "a number of wt % in [0, 100]")
-        v = float(value)
+        try:
+            v = float(value)
+        except OverflowError:            # an integer too large for a float
+            v = math.inf
         if not math.isfinite(v) or v < 0.0 or v > 100.0:
             raise InputError(field, value, "a finite number of wt % in [0, 100]")
         given[sym] = v
