@@ -129,3 +129,10 @@ def test_page_fatigue_depth_frame():
     s = fr[fr["curve"] == "local fatigue strength"]["stress"].to_numpy()
     a = fr[fr["curve"] != "local fatigue strength"]["stress"].to_numpy()
     assert (a <= s + 1e-6).all() and np.isclose(a, s).any()     # the curves touch at the governing depth
+
+
+def test_safety_factor_must_be_one_number():
+    # found by the fuzz suite: a tuple reached float() of a 2-element array
+    with pytest.raises(InputError) as e:
+        selector.pin_capacity("4130", None, 25.4, 0.0, 25.4, 12.7, safety_factor=(1, 2), hardness_hrc=26.5)
+    assert e.value.field == "safety_factor"

@@ -40,7 +40,8 @@ from ..catalogue.grades import default_catalogue
 from ..errors import InputError
 from ..models import conversions
 from ..models.correlations import FAMILIES as QT_FAMILIES, yield_from_uts
-from .pins import LBF_TO_N, NOTICE, SHEAR_TO_TENSILE, _FAMILY_CLASS, _positive, pin_stresses
+from .. import inputs
+from .pins import LBF_TO_N, NOTICE, SHEAR_TO_TENSILE, _FAMILY_CLASS, pin_stresses
 
 _CONTEXT = "pin capacity"
 #: tempering range over which the hardness-only yield is taken at its lowest, °C (common practice)
@@ -128,12 +129,8 @@ def pin_capacity(grade, route, diameter_mm, gap_mm, lug_thickness_mm, clevis_thi
     if (route is None) == (hardness_hrc is None):
         raise InputError("route/hardness_hrc", {"route": route, "hardness_hrc": hardness_hrc},
                          "exactly one of a route or a specified hardness_hrc (with route=None)", _CONTEXT)
-    sf = float(_positive("safety_factor", safety_factor, hi=10.0))
-    if sf < 1.0:
-        raise InputError("safety_factor", safety_factor, "a number in [1, 10]", _CONTEXT)
-    kb = float(_positive("bearing_factor", bearing_factor, hi=3.0))
-    if kb < 0.5:
-        raise InputError("bearing_factor", bearing_factor, "a number in [0.5, 3]", _CONTEXT)
+    sf = inputs.number("safety_factor", safety_factor, 1.0, 10.0, _CONTEXT)     # one number, not an array
+    kb = inputs.number("bearing_factor", bearing_factor, 0.5, 3.0, _CONTEXT)
     unit = pin_stresses(load_kn=1.0, diameter_mm=diameter_mm, shear_planes=shear_planes, gap_mm=gap_mm,
                         lug_thickness_mm=lug_thickness_mm, clevis_thickness_mm=clevis_thickness_mm,
                         load_model=load_model)
