@@ -224,6 +224,21 @@ for e in errors:
 
 
 # ----------------------------------------------------------------------------- views
+def evaluation_metrics(cols, ev: dict, prefix: str = "") -> None:
+    """Yield, tensile, elongation and hardness of one ``evaluate()`` result in the first four
+    of ``cols`` (display units; "—" where the model gives none)."""
+    def shown(key, fmt):
+        return "—" if ev.get(key) is None else fmt(ev[key])
+    cols[0].metric(f"{prefix}{'yield' if prefix else 'Yield'} ({su})",
+                   shown("yield_mpa", lambda v: f"{pg.to_display(v, 'stress', system):.4g}"))
+    cols[1].metric(f"{prefix}{'tensile' if prefix else 'Tensile'} ({su})",
+                   shown("uts_mpa", lambda v: f"{pg.to_display(v, 'stress', system):.4g}"))
+    cols[2].metric(f"{prefix}{'elongation' if prefix else 'Elongation'} (%)",
+                   shown("elongation_pct", lambda v: f"{v:.3g}"))
+    cols[3].metric(f"{prefix}{'hardness' if prefix else 'Hardness'} (HRC)",
+                   shown("hardness_hrc", lambda v: f"{v:.3g}"))
+
+
 def candidate_view(cand, states):
     ids = list(cand["variant"])
     labels = dict(zip(cand["variant"], cand["label"]))
@@ -260,15 +275,7 @@ def candidate_view(cand, states):
         except SelectorError as exc:
             st.error(str(exc))
         else:
-            hm = st.columns(4)
-            hm[0].metric(f"Heat: yield ({su})", f"{pg.to_display(hv['yield_mpa'], 'stress', system):.4g}"
-                         if hv.get("yield_mpa") is not None else "—")
-            hm[1].metric(f"Heat: tensile ({su})", f"{pg.to_display(hv['uts_mpa'], 'stress', system):.4g}"
-                         if hv.get("uts_mpa") is not None else "—")
-            hm[2].metric("Heat: elongation (%)", f"{hv['elongation_pct']:.3g}"
-                         if hv.get("elongation_pct") is not None else "—")
-            hm[3].metric("Heat: hardness (HRC)", f"{hv['hardness_hrc']:.3g}"
-                         if hv.get("hardness_hrc") is not None else "—")
+            evaluation_metrics(st.columns(4), hv, "Heat: ")
             st.caption(pg.band_text(hv, system))
             heat_warn = [w for w in hv.get("warnings", []) if w.startswith("heat analysis")]
             if heat_warn:
@@ -633,14 +640,7 @@ if cand is not None and len(cand) == 0:
                 r = misses.loc[i]
                 ev = pg.cached_evaluate(r["grade"], pg.route_json(r["route"]), d_si, t_si)
                 mm = st.columns(5)
-                mm[0].metric(f"Yield ({su})", f"{pg.to_display(ev['yield_mpa'], 'stress', system):.4g}"
-                             if ev.get("yield_mpa") is not None else "—")
-                mm[1].metric(f"Tensile ({su})", f"{pg.to_display(ev['uts_mpa'], 'stress', system):.4g}"
-                             if ev.get("uts_mpa") is not None else "—")
-                mm[2].metric("Elongation (%)", f"{ev['elongation_pct']:.3g}"
-                             if ev.get("elongation_pct") is not None else "—")
-                mm[3].metric("Hardness (HRC)", f"{ev['hardness_hrc']:.3g}"
-                             if ev.get("hardness_hrc") is not None else "—")
+                evaluation_metrics(mm, ev)
                 mm[4].metric("Meets the targets", pg.percent(r.get("p_meet")))
                 st.caption(pg.band_text(ev, system))
                 st.markdown("\n".join(pg.route_steps(r["route"], system)))

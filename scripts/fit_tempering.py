@@ -27,6 +27,7 @@ import pandas as pd
 ROOT = Path(__file__).resolve().parents[1]
 sys.path.insert(0, str(ROOT))
 
+from selector.models import fitted  # noqa: E402
 from selector.models import conversions, tempering as tp  # noqa: E402
 
 NAME = "tempering"
@@ -101,12 +102,8 @@ def fit(points: pd.DataFrame | None = None) -> dict:
 
 
 def write(result: dict, out: Path = OUT) -> None:
-    out.mkdir(parents=True, exist_ok=True)
-    header = f"# written by scripts/fit_{NAME}.py from {SOURCE_FILE} (fully_hardened rows); do not edit by hand\n"
-    for key in ("coefficients", "rows", "cv"):
-        with open(out / f"{NAME}_{key}.csv", "w", encoding="utf-8", newline="") as fh:
-            fh.write(header)
-            result[key].to_csv(fh, index=False, float_format="%.12g", lineterminator="\n")
+    fitted.write_tables(NAME, result, f"# written by scripts/fit_{NAME}.py from {SOURCE_FILE} (fully_hardened rows); "
+                                      "do not edit by hand\n", out)
 
 
 def main() -> int:

@@ -100,8 +100,8 @@ def _library_versions() -> str:
     return f"numpy={numpy.__version__};scipy={scipy.__version__}"
 
 
-def table_key(func, args: tuple, kwargs: dict) -> str:
-    """SHA-256 key of one table: builder, arguments, versions and the module's source text."""
+def _key(func, args: tuple, kwargs: dict, *extra: str) -> str:
+    """SHA-256 of the builder, its arguments, the versions and ``extra`` lines."""
     text = "\n".join([
         f"format={FORMAT}",
         f"builder={func.__module__}.{func.__qualname__}",
@@ -109,9 +109,14 @@ def table_key(func, args: tuple, kwargs: dict) -> str:
         f"kwargs={sorted(kwargs.items())!r}",
         f"package={_package_version()}",
         _library_versions(),
-        f"source={_source_hash(func.__module__)}",
+        *extra,
     ])
     return hashlib.sha256(text.encode()).hexdigest()
+
+
+def table_key(func, args: tuple, kwargs: dict) -> str:
+    """SHA-256 key of one table: builder, arguments, versions and the module's source text."""
+    return _key(func, args, kwargs, f"source={_source_hash(func.__module__)}")
 
 
 def _as_dict(value) -> dict:
@@ -267,17 +272,7 @@ def code_and_data_hash() -> str:
 
 def frame_key(func, args: tuple, kwargs: dict) -> str:
     import pandas
-    text = "\n".join([
-        f"format={FORMAT}",
-        f"builder={func.__module__}.{func.__qualname__}",
-        f"args={args!r}",
-        f"kwargs={sorted(kwargs.items())!r}",
-        f"package={_package_version()}",
-        _library_versions(),
-        f"pandas={pandas.__version__}",
-        f"code_and_data={code_and_data_hash()}",
-    ])
-    return hashlib.sha256(text.encode()).hexdigest()
+    return _key(func, args, kwargs, f"pandas={pandas.__version__}", f"code_and_data={code_and_data_hash()}")
 
 
 def frame_to_arrays(df) -> dict | None:

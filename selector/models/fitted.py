@@ -28,3 +28,17 @@ def coefficients(name: str) -> dict:
     ``DataFileError`` naming its line and column)."""
     t = read_table(f"{FOLDER}/{name}_coefficients.csv", COEFFICIENT_SCHEMA)
     return {(str(f), str(c)): float(v) for f, c, v in zip(t["fit"], t["coefficient"], t["value"])}
+
+
+def write_tables(name: str, result: dict, header: str, out) -> None:
+    """Write ``<name>_coefficients.csv``, ``<name>_rows.csv`` and ``<name>_cv.csv`` of a fit
+    script (``result[key]`` DataFrames) under ``out``, each led by the ``# `` line
+    ``header``; the one writer the ``scripts/fit_*.py`` scripts share."""
+    from pathlib import Path
+
+    out = Path(out)
+    out.mkdir(parents=True, exist_ok=True)
+    for key in ("coefficients", "rows", "cv"):
+        with open(out / f"{name}_{key}.csv", "w", encoding="utf-8", newline="") as fh:
+            fh.write(header)
+            result[key].to_csv(fh, index=False, float_format="%.12g", lineterminator="\n")

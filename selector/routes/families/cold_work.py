@@ -46,6 +46,17 @@ def _reduction_from_step(step, grade) -> tuple[float, str]:
     return (float(red) if red is not None else None), ""
 
 
+
+def stress_relief_steps(params) -> list:
+    """``[{"op": "stress_relieve", "temp_c", "hours"}]`` when ``params`` carry a stress
+    relief (``stress_relieve_temp_c`` not NaN), else ``[]``; shared by every family that
+    admits the step after cold work (cold_work, supply)."""
+    t = params.get("stress_relieve_temp_c", float("nan"))
+    if t is None or t != t:
+        return []
+    return [{"op": "stress_relieve", "temp_c": float(t), "hours": float(params.get("stress_relieve_hours", 1.0))}]
+
+
 class ColdWork(RouteFamily):
     name = "cold_work"
     label = "cold work"
@@ -90,12 +101,7 @@ class ColdWork(RouteFamily):
         step = {"op": ROUTE, "reduction_pct": round(float(params["reduction_pct"]), 4)}
         if params.get("designation"):
             step["designation"] = str(params["designation"])
-        steps = steps + [step]
-        t = params.get("stress_relieve_temp_c", float("nan"))
-        if t is not None and t == t:
-            steps.append({"op": "stress_relieve", "temp_c": float(t),
-                          "hours": float(params.get("stress_relieve_hours", 1.0))})
-        return steps
+        return steps + [step] + stress_relief_steps(params)
 
     def grid(self, grade):
         r = self.span(grade, ROUTE, "reduction_pct", 7, (0.0, 40.0))

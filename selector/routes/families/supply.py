@@ -40,6 +40,7 @@ from ...catalogue.grades import FAMILIES as FAMILIES_ALL
 from ...errors import NotModelledError, RouteError
 from ...models import conversions, stress_relief, validity
 from .. import bands
+from .cold_work import stress_relief_steps
 from .base import Batch, RouteFamily
 
 STEEL_SCALE = ("carbon_steel", "alloy_steel", "carburizing_steel", "nitriding_steel", "stainless_martensitic",
@@ -169,12 +170,7 @@ class Supply(RouteFamily):
         step = {"op": "supply", "condition": str(params["condition"])}
         if str(params.get("condition")) != "annealed":
             step["designation"] = str(params["designation"])
-        steps = [step]
-        t = params.get("stress_relieve_temp_c", float("nan"))
-        if t is not None and t == t:
-            steps.append({"op": "stress_relieve", "temp_c": float(t),
-                          "hours": float(params.get("stress_relieve_hours", 1.0))})
-        return steps
+        return [step] + stress_relief_steps(params)
 
     def grid(self, grade):
         pairs = sup.conditions_for(grade)
