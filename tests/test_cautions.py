@@ -1,11 +1,11 @@
-"""Tests of selector.design.cautions: every caution fires where it should and
+"""Tests of selector.rules.cautions: every caution fires where it should and
 nowhere else (both sides of every threshold), the registry matches the data file,
 and bad input names the field."""
 import numpy as np
 import pandas as pd
 import pytest
 
-from selector.design import cautions as ca
+from selector.rules import cautions as ca
 from selector.errors import InputError
 from selector.models import conversions
 

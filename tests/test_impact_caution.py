@@ -5,7 +5,7 @@ import pandas as pd
 import pytest
 
 import selector
-from selector.design.cautions import CAUTIONS, cautions_for
+from selector.rules.cautions import CAUTIONS, cautions_for
 from selector.errors import InputError
 
 

@@ -4,7 +4,7 @@ import numpy as np
 import pytest
 
 import selector
-from selector.design import cautions as ca
+from selector.rules import cautions as ca
 from selector.errors import InputError
 from selector.selection.engine import p_meet, prepare, rank
 from selector.selection.targets import meets

@@ -19,7 +19,7 @@ pin load case              the arguments of :func:`selector.pin_targets`: ``load
                            the row's ``diameter_mm``
 service conditions         ``plated`` (true/false), ``plating``, ``mating_material``,
                            ``service_temp_c``, ``environment`` (the context of the
-                           cautions, :mod:`selector.design.cautions`)
+                           cautions, :mod:`selector.rules.cautions`)
 ``description``            free text, carried to the result
 =========================  ==========================================================
 
@@ -366,7 +366,7 @@ def _row(rec: dict, line: int, bad: _Collector, memo: dict | None = None) -> dic
         if col in service or not _blank(rec.get(col)):
             name = service.get(col) or _text(rec[col])
             try:
-                from .cautions import anodic_index
+                from ..rules.cautions import anodic_index
                 anodic_index(name)
                 service[col] = name
             except InputError as exc:
@@ -375,7 +375,7 @@ def _row(rec: dict, line: int, bad: _Collector, memo: dict | None = None) -> dic
     if st is not None:
         service["service_temp_c"] = st
     if not _blank(rec.get("environment")):
-        from .cautions import GALVANIC_LIMITS_V
+        from ..rules.cautions import GALVANIC_LIMITS_V
         env = _text(rec["environment"])
         if env not in GALVANIC_LIMITS_V:
             bad.add(line, "environment", env, ", ".join(GALVANIC_LIMITS_V))

@@ -10,7 +10,7 @@ not change monotonically with diameter; the ``changed`` column marks each
 diameter where the pick (grade or route family) differs from the one before.
 
 Among the robust candidates, those without an ``avoid`` caution (e.g. a water quench of a
-0.35 % C alloy steel; :mod:`selector.design.cautions`) are preferred: one with an avoid
+0.35 % C alloy steel; :mod:`selector.rules.cautions`) are preferred: one with an avoid
 caution is picked only where every robust candidate has one.
 "Cheapest" is the lowest ``part_cost`` (relative cost per kg x the pin's mass) by
 default, or the lowest ``relative_cost`` (per kg) with ``cost_column``; ties go
@@ -140,7 +140,7 @@ def diameter_sweep(diameters_mm, *, load_kn=None, load_lbf=None, shear_planes: i
         ``part_cost`` (default) or ``relative_cost``: what "cheapest" means.
     caution_context : dict, optional
         If given, the ``cautions`` column lists the cautions of each pick
-        (keywords of :func:`selector.design.cautions.cautions_for`: ``plated``,
+        (keywords of :func:`selector.rules.cautions.cautions_for`: ``plated``,
         ``mating_material``, ``service_temp_c``, ``environment``, ``plating``).
     select : callable, optional
         The selection function (default ``selector.select``); for tests.
@@ -161,7 +161,7 @@ def diameter_sweep(diameters_mm, *, load_kn=None, load_lbf=None, shear_planes: i
     from ..catalogue.grades import FAMILIES
     from ..selection.cost import check_price_sheet
     from ..selection.targets import validate_targets
-    from .cautions import check_context
+    from ..rules.cautions import check_context
 
     # every input is checked before any selection is run
     d_all = _diameters(diameters_mm)
@@ -212,7 +212,7 @@ def diameter_sweep(diameters_mm, *, load_kn=None, load_lbf=None, shear_planes: i
     out["changed"] = key.ne(key.shift()).to_numpy() & (np.arange(len(out)) > 0)
     out["cautions"] = ""
     if caution_context is not None:
-        from .cautions import caution_column
+        from ..rules.cautions import caution_column
         have = [i for i, p in enumerate(picks) if p is not None]
         if have:
             frame = pd.DataFrame([picks[i] for i in have]).reset_index(drop=True)

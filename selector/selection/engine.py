@@ -54,7 +54,7 @@ from ..routes.evaluate import section_args
 from ..routes.steps import describe
 from ..states.expand import expand
 from . import cost as cost_mod
-from ..design import cautions as cautions_mod
+from ..rules import cautions as cautions_mod
 from ..errors import check_choice
 from ..states import scatter
 from .pareto import pareto_mask
@@ -311,9 +311,9 @@ def rank(prepared: pd.DataFrame, targets: dict | None = None, objectives=DEFAULT
     """Candidates of ``prepared`` (from :func:`prepare`) for ``targets``: the fast
     step that the page re-runs when only the targets change.  ``service`` holds the
     context of the cautions (``plated``, ``plating``, ``mating_material``,
-    ``service_temp_c``, ``environment``; see :func:`selector.design.cautions.cautions_for`);
+    ``service_temp_c``, ``environment``; see :func:`selector.rules.cautions.cautions_for`);
     ``min_p_meet`` and ``allow`` as in :func:`select`."""
-    from ..design.cautions import check_context
+    from ..rules.cautions import check_context
     from .. import inputs
 
     t = validate_targets(targets, FAMILIES)
@@ -550,14 +550,14 @@ def select(targets: dict | None = None, diameter_mm: float = 25.0, *, thickness_
     plated, plating, mating_material, service_temp_c, environment
         Service context for the ``cautions`` column (hydrogen embrittlement of
         plated high-strength steel, galvanic pairs, service temperature near the
-        tempering or aging temperature); see :mod:`selector.design.cautions`.
+        tempering or aging temperature); see :mod:`selector.rules.cautions`.
     min_p_meet : float
         Required probability, in (0, 1], that a heat within the specification meets
         every target (default 0.9); ``robust = p_meet >= min_p_meet``.
     allow : list of str, optional
         Caution codes whose ``avoid`` severity the user switches off (e.g.
         ``["quench_cracking"]``, also accepted as ``"water_quench_alloy"``); see
-        :func:`selector.design.cautions.check_allow`.
+        :func:`selector.rules.cautions.check_allow`.
         ``service_temp_c`` also sets the fatigue temperature factor.
     impact : bool
         Impact or shock loading in service: a caution on hard cases (>= 55 HRC) and
@@ -582,7 +582,7 @@ def select(targets: dict | None = None, diameter_mm: float = 25.0, *, thickness_
         A bad target, section, ``min_p_meet`` outside (0, 1] or an unknown rule in
         ``allow`` (naming the field, the value and what is allowed).
     """
-    from ..design.cautions import check_context
+    from ..rules.cautions import check_context
     from .. import inputs
 
     # every argument is checked before the (expensive) expansion

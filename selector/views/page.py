@@ -379,7 +379,7 @@ def band_text(ev: Mapping, system: str) -> str:
             + "; ".join(parts)) if parts else ""
 
 
-#: columns the caution rules read (selector.design.cautions), when present
+#: columns the caution rules read (selector.rules.cautions), when present
 CAUTION_COLUMNS = ("grade", "family", "route_family", "quench", "temper_temp_c", "age_temp_c", "peak_ratio",
                    "designation", "c_pct", "hardness_hrc", "surface_hardness_hrc", "uts_mpa")
 
@@ -403,7 +403,7 @@ def service_context(plated: bool, plating: str | None, mating_material: str | No
 def check_service(context: Mapping) -> str | None:
     """The library's message when the service conditions are not valid (an unknown
     mating material, say), else None."""
-    from selector.design.cautions import check_context
+    from selector.rules.cautions import check_context
 
     try:
         check_context(context, "service")
@@ -414,14 +414,14 @@ def check_service(context: Mapping) -> str | None:
 
 def candidate_cautions(row: Mapping, warnings: Sequence[str] = (), context: Mapping | None = None) -> list[str]:
     """Every caution of one candidate, without repeats: the route model's notes and
-    ``evaluate`` warnings, then the rules of :mod:`selector.design.cautions` (when
+    ``evaluate`` warnings, then the rules of :mod:`selector.rules.cautions` (when
     that module is present) under the service ``context``, as ``title: reason``."""
     out = [w for w in warnings if w]
     notes = row.get("notes")
     if isinstance(notes, str) and notes:
         out += [n.strip() for n in notes.split(" | ") if n.strip()]
     try:
-        from selector.design.cautions import cautions_for
+        from selector.rules.cautions import cautions_for
     except ImportError:
         cautions_for = None
     if cautions_for is not None:
@@ -566,13 +566,13 @@ def display_table(cand: pd.DataFrame, system: str) -> pd.DataFrame:
 
 def avoid_rules() -> list[str]:
     """Codes of the caution rules of severity ``avoid`` (for the page's allow list)."""
-    from selector.design.cautions import AVOID_CODES
+    from selector.rules.cautions import AVOID_CODES
     return list(AVOID_CODES)
 
 
 def avoid_rule_label(code: str) -> str:
     """The title of a caution rule (its code when unknown)."""
-    from selector.design.cautions import CAUTIONS
+    from selector.rules.cautions import CAUTIONS
     c = CAUTIONS.get(code)
     return c.title if c is not None else code
 
