@@ -14,7 +14,8 @@ import pandas as pd
 import pytest
 
 import selector
-from selector import inputs, studies
+from selector import inputs
+from selector import user_files as studies
 from selector.design import pins
 from selector.design.sweep import MAX_DIAMETERS, diameter_range
 from selector.errors import (DataFileError, InputError, NotModelledError, SelectorError, UnknownGradeError,

@@ -34,7 +34,7 @@ import pytest
 from hypothesis import HealthCheck, event, given, settings, strategies as st
 
 import selector
-from selector import studies
+from selector import user_files as studies
 from selector.catalogue.grades import FAMILIES, default_catalogue
 from selector.errors import SelectorError
 from selector.views.cli import main

@@ -388,7 +388,7 @@ FILE_BYTES = st.one_of(st.binary(max_size=200), CSV_TEXT.map(lambda s: s.encode(
 @given(FILE_BYTES)
 def test_any_price_sheet_bytes_give_a_result_or_a_data_file_error(data):
     from selector.errors import DataFileError
-    from selector.studies import load_price_sheet
+    from selector.user_files import load_price_sheet
 
     try:
         prices = load_price_sheet(data, "prices.csv")
@@ -408,7 +408,7 @@ TOML_TEXT = st.lists(st.sampled_from(["[targets]", "min_yield_mpa = 800", "min_u
 @given(st.one_of(TOML_TEXT.map(str.encode), st.binary(max_size=60)))
 def test_any_targets_file_gives_targets_or_a_data_file_error(data):
     from selector.errors import DataFileError
-    from selector.studies import load_targets
+    from selector.user_files import load_targets
 
     try:
         t = load_targets(data, "t.toml")
@@ -433,7 +433,7 @@ def test_any_study_file_gives_a_study_or_a_data_file_error(doc, canonical, tmp_p
     import json
 
     from selector.errors import DataFileError
-    from selector.studies import STUDY_FORMAT, load_study
+    from selector.user_files import STUDY_FORMAT, load_study
 
     if canonical:
         doc = {**doc, "format": STUDY_FORMAT, "version": 1}

@@ -76,7 +76,7 @@ def _findings(path: Path) -> list[str]:
 
 def test_sources_are_found():
     names = {p.relative_to(ROOT).as_posix() for p in SOURCES}
-    assert {"selector/studies.py", "selector/catalogue/loader.py", "selector/selection/cost.py"} <= names
+    assert {"selector/user_files.py", "selector/catalogue/loader.py", "selector/selection/cost.py"} <= names
 
 
 @pytest.mark.parametrize("path", SOURCES, ids=lambda p: p.relative_to(ROOT).as_posix())

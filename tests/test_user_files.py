@@ -1,4 +1,4 @@
-"""The user's files (selector.studies): price sheets, custom catalogue rows, saved
+"""The user's files (selector.user_files): price sheets, custom catalogue rows, saved
 targets and saved studies.  Every bad file gives a DataFileError naming the line and
 the column (CSV) or key (TOML/JSON), and leaves the loaded state as it was.
 
@@ -14,7 +14,8 @@ import os
 import pytest
 from hypothesis import given, settings, strategies as st
 
-from selector import evaluate, studies
+from selector import evaluate
+from selector import user_files as studies
 from selector.catalogue.grades import default_catalogue
 from selector.errors import DataFileError, InputError, UnknownGradeError
 

@@ -228,7 +228,7 @@ def batch(parts, top: int | None = 5, scheduler: str | None = None, *, price_she
         the ``SELECTOR_DASK_SCHEDULER`` environment variable, else Dask's local
         scheduler in this process.
     price_sheet : dict, optional
-        ``{grade id: relative price per kg}`` (see :func:`selector.studies.load_price_sheet`).
+        ``{grade id: relative price per kg}`` (see :func:`selector.user_files.load_price_sheet`).
     robust_only : bool
         Keep only candidates that meet the targets at every composition corner.
     per_grade : bool

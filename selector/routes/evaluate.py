@@ -12,7 +12,7 @@ from ..catalogue.grades import Grade, default_catalogue
 from ..errors import InputError, RouteError
 from ..models import conversions
 from . import bands, families, fatigue, steps as steps_mod
-from .families.base import Batch, test_position
+from .families.base import Batch, tension_test_position
 
 STEEL_SCALE_FAMILIES = ("carbon_steel", "alloy_steel", "carburizing_steel", "nitriding_steel",
                         "stainless_martensitic", "stainless_ph", "tool_steel", "maraging_steel")
@@ -196,7 +196,7 @@ def evaluate(grade, route, diameter_mm: float | None = 25.0, thickness_mm: float
         out["profile"] = [{"r_over_R": float(p), "depth_mm": round(float((1 - p) * section / 2), 3),
                            "hardness_hv": _scalar(h), "hardness_hrc": _scalar(c)}
                           for p, h, c in zip(pos, hv, sc["hrc"])]
-    out["test_location"] = "centre" if float(test_position(np.array([d or t]))[0]) == 0 else "mid-radius"
+    out["test_location"] = "centre" if float(tension_test_position(np.array([d or t]))[0]) == 0 else "mid-radius"
     out["grade"] = g.id
     out["family"] = g.family
     out["route_family"] = fam.name

@@ -73,7 +73,7 @@ class Batch:
                    np.array([np.nan if thickness_mm is None else thickness_mm], float))
 
 
-def test_position(section_mm: np.ndarray) -> np.ndarray:
+def tension_test_position(section_mm: np.ndarray) -> np.ndarray:
     """r/R of the tension-test location per ASTM A370: 0 (centre) up to 38 mm,
     0.5 (mid-radius) above."""
     return np.where(np.asarray(section_mm) <= A370_CENTRE_LIMIT_MM, 0.0, 0.5)

@@ -24,7 +24,7 @@ from ...models import (conversions, correlations, critical_temperatures, structu
                        validity)
 from ...models.composition import el
 from .. import quench_response
-from .base import Batch, RouteFamily, at_position, product_grid, test_position
+from .base import Batch, RouteFamily, at_position, product_grid, tension_test_position
 
 TME_RANGE_C = (260.0, 370.0)
 CORRELATION_CLASS = {"carbon_steel": "carbon_steel", "alloy_steel": "alloy_steel",
@@ -60,7 +60,7 @@ def through_harden(batch: Batch, quench, agitation, austenitize_c, temper_temp_c
         parts = structure_tempering.constituents(c2, mart, np.asarray(prof["cooling_rate_c_s"], float))
         tt = structure_tempering.mixture_hv(parts, t[:, None], np.where(np.isfinite(h), h, 1.0)[:, None], c2)
         hv_t = np.where(tempered[:, None], np.minimum(tt, hv_aq), hv_aq)
-    where = test_position(batch.section_mm)
+    where = tension_test_position(batch.section_mm)
     non_m = 100.0 - at_position(mart, pos, where)
     cls = correlation_class(batch.attr("family"))
     hv_test = at_position(hv_t, pos, where)
