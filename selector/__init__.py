@@ -46,7 +46,7 @@ from . import catalogue as _catalogue_package  # noqa: E402,F401
 def catalogue():
     """The catalogue as a DataFrame, one row per grade
     (:func:`selector.catalogue.grades.catalogue`)."""
-    from .catalogue.grades import catalogue as table
+    from .catalogue.grades import catalogue as table   # lazy: keeps `import selector` free of pandas
     return table()
 
 

@@ -256,7 +256,7 @@ def code_and_data_hash() -> str:
     h = hashlib.sha256()
     roots = [pkg]
     try:
-        from .catalogue.loader import data_dir
+        from .catalogue.loader import data_dir   # lazy: the loader imports pandas, a numpy table needs none
         roots.append(Path(data_dir()).resolve())
     except Exception:                                  # pragma: no cover - data dir always present
         pass

@@ -35,8 +35,11 @@ from typing import Mapping
 
 from . import inputs
 from .catalogue import loader
-from .catalogue.grades import FAMILIES, Catalogue, build_catalogue, default_catalogue
-from .errors import DataFileError, InputError, safe_repr
+from .catalogue.grades import (COMPOSITION_SCHEMA, FAMILIES, GRADES_SCHEMA, WINDOW_SCHEMA, Catalogue,
+                               build_catalogue, default_catalogue)
+from .errors import DataFileError, InputError, UnknownGradeError, safe_repr
+from .selection.cost import parse_price_sheet
+from .selection.targets import validate_targets
 
 #: largest user file accepted, bytes (selector.inputs.MAX_FILE_BYTES, the catalogue loader's cap)
 MAX_FILE_BYTES = inputs.MAX_FILE_BYTES
@@ -128,8 +131,6 @@ def load_price_sheet(src, name: str = "price sheet") -> dict:
     unit in the column name); see :func:`selector.selection.cost.parse_price_sheet`.
     Raises :class:`DataFileError` naming the line and column.
     """
-    from .selection.cost import parse_price_sheet
-
     text, where = _read(src, name)
     try:
         return parse_price_sheet(text, where)
@@ -174,7 +175,6 @@ def load_custom_grades(grades_src, compositions_src, name: str = "custom grades"
             raise DataFileError(gname, r.line, clash[0], clash[1])
     # ... then join with the catalogue's own builder on private copies of the text; the
     # process windows are the built-in family rows (grade-scoped rows belong to built-in grades)
-    from .catalogue.grades import WINDOW_SCHEMA
 
     windows = loader.read_table("route_windows.csv", WINDOW_SCHEMA)
     windows = windows[windows["scope"].isin(FAMILIES)].drop(columns=["line"])
@@ -195,12 +195,10 @@ def load_custom_grades(grades_src, compositions_src, name: str = "custom grades"
 
 
 def _grades_schema():
-    from .catalogue.grades import GRADES_SCHEMA
     return GRADES_SCHEMA
 
 
 def _comp_schema():
-    from .catalogue.grades import COMPOSITION_SCHEMA
     return COMPOSITION_SCHEMA
 
 
@@ -227,8 +225,6 @@ def _builtin_clash(builtin: Catalogue, r) -> tuple[str, str] | None:
 
 
 def _names_builtin(builtin: Catalogue, v: str) -> bool:
-    from .errors import UnknownGradeError
-
     try:
         builtin.lookup(v)
     except UnknownGradeError as exc:
@@ -264,8 +260,6 @@ def load_targets(src, name: str = "targets") -> dict:
     the line and key of a bad value (unknown key, negative or non-numeric limit, a
     minimum above its maximum, an unknown family).
     """
-    from .selection.targets import validate_targets
-
     text, where = _read(src, name)
     doc = inputs.parse_toml(text, where)
     table = doc.get("targets", doc)
@@ -331,8 +325,6 @@ def _check_json_value(key: str, v):
 
 
 def _study(targets, section, options) -> Study:
-    from .selection.targets import validate_targets
-
     t = validate_targets(targets, FAMILIES)
     s = _check_section(section)
     if options is None:

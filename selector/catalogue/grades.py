@@ -13,7 +13,8 @@ import numpy as np
 import pandas as pd
 
 from ..errors import DataFileError, UnknownGradeError, nearest
-from .loader import CONFIDENCE, Column, Schema, data_dir, read_table
+from .loader import CONFIDENCE, Column, Schema, data_dir, read_file, read_table
+from .supply import read_supply
 
 FAMILIES = ("carbon_steel", "alloy_steel", "carburizing_steel", "nitriding_steel",
             "stainless_austenitic", "stainless_martensitic", "stainless_ph",
@@ -256,9 +257,6 @@ def build_catalogue(grades_path=None, comp_path=None, windows_path=None, supply_
     grades, compositions, route windows and supply conditions.  Raises
     :class:`DataFileError` on the first problem.  With custom grade tables and no
     ``supply_path``, the built-in supply rows of the grades present are used."""
-    from .loader import read_file
-    from .supply import read_supply
-
     d = data_dir()
     gp, cp, wp = (grades_path or d / "grades.csv", comp_path or d / "compositions.csv",
                   windows_path or d / "route_windows.csv")

@@ -117,20 +117,18 @@ def parse_heat_text(text: str, field: str = "heat") -> dict:
     """``"C=0.41 Mn=0.86, Cr=0.95"`` → ``{"C": 0.41, "Mn": 0.86, "Cr": 0.95}`` (wt %): the
     form the command line and the page take; :func:`heat_composition` checks the
     elements and values."""
-    from ..errors import InputError as _InputError
-
     text = str(text)
     if len(text) > 2000:
-        raise _InputError(field, text[:40] + "...", "at most 2000 characters")
+        raise InputError(field, text[:40] + "...", "at most 2000 characters")
     out = {}
     for p in text.replace(",", " ").replace(";", " ").split():
         k, sep, v = p.partition("=")
         if not sep or not k:
-            raise _InputError(field, text, "'C=0.41 Mn=0.86 ...': each element as symbol=wt%")
+            raise InputError(field, text, "'C=0.41 Mn=0.86 ...': each element as symbol=wt%")
         try:
             out[k] = float(v)
         except ValueError:
-            raise _InputError(f"{field} {k}", v, "a number of wt %") from None
+            raise InputError(f"{field} {k}", v, "a number of wt %") from None
     if not out:
-        raise _InputError(field, text, "'C=0.41 Mn=0.86 ...': at least one element")
+        raise InputError(field, text, "'C=0.41 Mn=0.86 ...': at least one element")
     return out

@@ -108,8 +108,10 @@ def read_supply(path=None, grade_ids=None) -> dict:
 
 @functools.cache
 def default_supply() -> dict:
-    from .grades import default_catalogue
-    return read_supply(grade_ids=set(default_catalogue().grades))
+    """The built-in supply rows, ``{grade id: [SupplyRow, ...]}``.  That every row names a
+    built-in grade is checked where the catalogue joins this file
+    (:func:`selector.catalogue.grades.build_catalogue`), so this module needs no grade table."""
+    return read_supply()
 
 
 def is_annealed_baseline(grade) -> bool:

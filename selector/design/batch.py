@@ -43,6 +43,8 @@ import pandas as pd
 
 from ..errors import InputError
 from .parts_list import read_parts
+from ..selection.engine import nearest_misses, select
+from .pins import NOTICE
 
 #: environment variable naming a dask.distributed scheduler address
 SCHEDULER_ENV = "SELECTOR_DASK_SCHEDULER"
@@ -106,8 +108,6 @@ def section_candidates(diameter_mm, thickness_mm, parts: list[dict], top: int | 
     pandas.DataFrame
         Columns :data:`RESULT_COLUMNS` plus ``order``.
     """
-    from ..selection.engine import nearest_misses, select
-
     d = None if thickness_mm is not None else diameter_mm
     groups: dict[str, list[dict]] = {}
     for p in parts:
@@ -304,6 +304,5 @@ def batch(parts, top: int | None = 5, scheduler: str | None = None, *, price_she
             client.close()
     out = pd.concat(results, ignore_index=True)
     out = out.sort_values(["order", "rank"], kind="stable").drop(columns="order").reset_index(drop=True)
-    from .pins import NOTICE
     out.attrs["notice"] = NOTICE
     return out

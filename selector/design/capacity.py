@@ -42,6 +42,7 @@ from ..models import conversions
 from ..models.correlations import FAMILIES as QT_FAMILIES, yield_from_uts
 from .. import inputs
 from .pins import LBF_TO_N, NOTICE, SHEAR_TO_TENSILE, _FAMILY_CLASS, pin_stresses
+from ..routes.evaluate import evaluate
 
 _CONTEXT = "pin capacity"
 #: tempering range over which the hardness-only yield is taken at its lowest, °C (common practice)
@@ -72,8 +73,6 @@ def _strength_from_hardness(g, hardness_hrc) -> dict:
 
 
 def _strength_from_route(g, route, diameter_mm) -> dict:
-    from ..routes.evaluate import evaluate
-
     r = evaluate(g.id, route, diameter_mm=float(diameter_mm))
     uts, ys = r.get("uts_mpa_lo"), r.get("yield_mpa_lo")
     if uts is None or ys is None:

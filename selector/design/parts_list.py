@@ -49,6 +49,7 @@ from ..catalogue.grades import FAMILIES
 from ..errors import DataFileError, InputError, nearest
 from ..selection.targets import HARD_FILTERS, NUMERIC_TARGETS, validate_targets
 from . import pins
+from ..rules.cautions import GALVANIC_LIMITS_V, anodic_index
 
 #: largest parts file accepted, bytes (50 MB)
 MAX_PARTS_FILE_BYTES = 50 * 1024 * 1024
@@ -366,7 +367,6 @@ def _row(rec: dict, line: int, bad: _Collector, memo: dict | None = None) -> dic
         if col in service or not _blank(rec.get(col)):
             name = service.get(col) or _text(rec[col])
             try:
-                from ..rules.cautions import anodic_index
                 anodic_index(name)
                 service[col] = name
             except InputError as exc:
@@ -375,7 +375,6 @@ def _row(rec: dict, line: int, bad: _Collector, memo: dict | None = None) -> dic
     if st is not None:
         service["service_temp_c"] = st
     if not _blank(rec.get("environment")):
-        from ..rules.cautions import GALVANIC_LIMITS_V
         env = _text(rec["environment"])
         if env not in GALVANIC_LIMITS_V:
             bad.add(line, "environment", env, ", ".join(GALVANIC_LIMITS_V))

@@ -79,6 +79,7 @@ import math
 import numpy as np
 
 from ..errors import InputError, check_choice
+from .. import inputs
 
 #: newtons per pound-force (NIST SP 811, 2008, App. B.9; exact by definition)
 LBF_TO_N = 4.4482216152605
@@ -184,8 +185,6 @@ def _load_n(load_kn, load_lbf) -> np.ndarray:
 
 
 def _shear_planes(n) -> int:
-    from .. import inputs
-
     if not inputs.is_number(n) or inputs.as_float(n) not in (1.0, 2.0):
         raise InputError("shear_planes", n, "1 (single shear) or 2 (double shear)", _CONTEXT)
     return int(inputs.as_float(n))

@@ -36,6 +36,11 @@ import pandas as pd
 from .. import inputs
 from ..errors import InputError, check_choice
 from . import pins
+from ..selection.engine import select
+from ..catalogue.grades import FAMILIES
+from ..selection.cost import check_price_sheet
+from ..selection.targets import validate_targets
+from ..rules.cautions import caution_column, check_context
 
 COST_COLUMNS = ("part_cost", "relative_cost")
 
@@ -89,7 +94,6 @@ def pin_length_mm(shear_planes: int, lug_thickness_mm: float, clevis_thickness_m
 
 
 def _default_select() -> Callable:
-    from ..selection.engine import select
     return select
 
 
@@ -158,11 +162,6 @@ def diameter_sweep(diameters_mm, *, load_kn=None, load_lbf=None, shear_planes: i
     Pin stresses and targets: :mod:`selector.design.pins` (docs/methods/pins.md).
     Candidates, robustness and cost: :func:`selector.select` (docs/methods/selection.md).
     """
-    from ..catalogue.grades import FAMILIES
-    from ..selection.cost import check_price_sheet
-    from ..selection.targets import validate_targets
-    from ..rules.cautions import check_context
-
     # every input is checked before any selection is run
     d_all = _diameters(diameters_mm)
     cost_column = check_choice("cost_column", cost_column, COST_COLUMNS, "diameter sweep")
@@ -212,7 +211,6 @@ def diameter_sweep(diameters_mm, *, load_kn=None, load_lbf=None, shear_planes: i
     out["changed"] = key.ne(key.shift()).to_numpy() & (np.arange(len(out)) > 0)
     out["cautions"] = ""
     if caution_context is not None:
-        from ..rules.cautions import caution_column
         have = [i for i, p in enumerate(picks) if p is not None]
         if have:
             frame = pd.DataFrame([picks[i] for i in have]).reset_index(drop=True)

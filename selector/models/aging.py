@@ -37,8 +37,9 @@ from dataclasses import dataclass, fields
 import numpy as np
 
 from ..cache import disk_table
-from ..errors import InputError, check_choice
+from ..errors import DataFileError, InputError, check_choice
 from . import validity
+from ..catalogue.loader import CONFIDENCE, Column, Schema, read_table
 
 R_J = 8.314  # J mol^-1 K^-1
 
@@ -321,8 +322,6 @@ def natural_aged_properties(c: AgingConstants, hours) -> dict:
 @functools.cache
 def calibration_table():
     """``data/aging_calibration.csv`` (constants and published temper points), validated."""
-    from ..catalogue.loader import CONFIDENCE, Column, Schema, read_table
-
     def check(r):
         if r["kind"] == "constant" and r["name"] not in CONSTANT_NAMES + ("model",):
             return ("name", f"{r['name']!r} is not a constant of the model ({', '.join(CONSTANT_NAMES)})")
@@ -352,9 +351,6 @@ PH_FIT_FILE = "fits/aging_ph_coefficients.csv"
 def ph_coefficients() -> dict:
     """Constants of the PH stainless steels from ``data/fits/aging_ph_coefficients.csv``
     (written by ``scripts/fit_aging_ph.py``; the package never fits), validated."""
-    from ..catalogue.loader import CONFIDENCE, Column, Schema, read_table
-    from ..errors import DataFileError
-
     schema = Schema((Column("fit", "choice", choices=("aging_ph",)), Column("coefficient"),
                      Column("value", "float"), Column("unit", allow_blank=True), Column("source"),
                      Column("confidence", "choice", choices=CONFIDENCE)),
@@ -375,13 +371,11 @@ def _alloy_constants() -> dict:
     out = {a: dict(ph_coefficients()) for a in PH_ALLOYS}
     for alloy, g in t[t["kind"] == "constant"].groupby("alloy"):
         if alloy in PH_ALLOYS:
-            from ..errors import DataFileError
             raise DataFileError("aging_calibration.csv", None, "alloy",
                                 f"{alloy} constants come from {PH_FIT_FILE} (scripts/fit_aging_ph.py), not here")
         d = dict(zip(g["name"], g["value"]))
         missing = [n for n in CONSTANT_NAMES + ("model",) if n not in d]
         if missing:
-            from ..errors import DataFileError
             raise DataFileError("aging_calibration.csv", None, "name",
                                 f"alloy {alloy} lacks constants {', '.join(missing)}")
         out[alloy] = d

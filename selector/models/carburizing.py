@@ -29,6 +29,10 @@ from ..errors import InputError, check_choice
 from . import validity
 from .composition import Composition, el
 from .critical_temperatures import ms_c as _ms_andrews_linear
+from .conversions import hrc_to_hv, hv_to_hrc
+from .tempering import tempered_hv, tempered_martensite_hv
+from .martensite import martensite_hardness_hrc
+from .hardenability import J1_MM, jominy_hardness_hrc
 
 #: gas constant, cal mol^-1 K^-1 (Tibbetts expresses Q in cal/mol)
 R_CAL = 1.987
@@ -418,8 +422,6 @@ def low_temper_hrc(as_quenched_hrc, comp: Composition, temper_temp_c, temper_hou
     aq = np.asarray(as_quenched_hrc, float)
     if temper_temp_c is None:
         return aq
-    from .conversions import hv_to_hrc
-    from .tempering import tempered_martensite_hv
 
     _nonneg("temper_hours", temper_hours, "low_temper_hrc")
     tempered = hv_to_hrc(tempered_martensite_hv(comp, temper_temp_c, temper_hours))
@@ -442,9 +444,6 @@ def fully_hardened_case_hrc(carbon_pct, comp_core: Composition, temper_temp_c=No
     curve is taken as fresh martensite: by the same KM estimate it holds less than
     8 % austenite up to 0.6 %C.
     """
-    from .conversions import hrc_to_hv, hv_to_hrc
-    from .martensite import martensite_hardness_hrc
-
     c = _nonneg("carbon_pct", carbon_pct, "fully_hardened_case_hrc")
     local = _local_comp(comp_core, c)
     hrc_m = low_temper_hrc(martensite_hardness_hrc(c, 99.9), local, temper_temp_c, temper_hours)
@@ -504,8 +503,6 @@ def case_as_quenched_hrc(carbon_pct, comp_core: Composition, jominy_mm=None, gra
     8620 alloy (0.80 Mn, 0.55 Ni, 0.50 Cr, 0.20 Mo) at 0.35 %C, J = 5 mm: about
     52 HRC (this code: IH(0.35) = 53.3 HRC, DI 83 mm, DF 1.02).
     """
-    from .hardenability import J1_MM, jominy_hardness_hrc
-
     c = _nonneg("carbon_pct", carbon_pct, "case_as_quenched_hrc")
     j = J1_MM if jominy_mm is None else _nonneg("jominy_mm", jominy_mm, "case_as_quenched_hrc")
     return jominy_hardness_hrc(_local_comp(comp_core, c), j, grain_size_astm)
@@ -560,10 +557,6 @@ def case_hardness_hv(as_quenched_hv, carbon_pct, comp_core: Composition, temper_
     J.H. Hollomon & L.D. Jaffe, Trans. AIME 162 (1945) 223; D.P. Koistinen &
     R.E. Marburger, Acta Metall. 7 (1959) 59; K.W. Andrews, JISI 203 (1965) 721.
     """
-    from .conversions import hrc_to_hv
-    from .martensite import martensite_hardness_hrc
-    from .tempering import tempered_hv
-
     ctx = "case_hardness_hv"
     c = _nonneg("carbon_pct", carbon_pct, ctx)
     hv_aq = np.asarray(as_quenched_hv, float)
@@ -639,8 +632,6 @@ def case_hardness_profile_hrc(depth_mm, temp_c, hours, surface_carbon_pct, comp_
     Crank (1975); Tibbetts (1980); ASTM A255 (IH, DI, DF); Hollomon & Jaffe (1945);
     Koistinen & Marburger (1959); Andrews (1965); ASTM E140 (HV-HRC).
     """
-    from .conversions import hrc_to_hv, hv_to_hrc
-
     ctx = "case_hardness_profile_hrc"
     c0 = el(comp_core, "C")
     cs, c0 = _check_carbon(surface_carbon_pct, c0, ctx)

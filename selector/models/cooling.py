@@ -47,7 +47,7 @@ from scipy import special
 
 from ..cache import disk_table
 from ..catalogue.loader import Column, Schema, read_table
-from ..errors import InputError
+from ..errors import DataFileError, InputError
 from . import validity
 
 #: thermal conductivity of steel in the austenite range, W/m·K (from memory)
@@ -364,7 +364,6 @@ def _jominy_table():
     d = t["distance_mm"].to_numpy(float)
     r = t["rate_c_s"].to_numpy(float)
     if np.any(np.diff(d) <= 0) or np.any(np.diff(r) >= 0):
-        from ..errors import DataFileError
         raise DataFileError("jominy_cooling_rates.csv", None, "rate_c_s",
                             "distances must increase and rates decrease down the file")
     return np.log(d), np.log(r)
@@ -397,8 +396,6 @@ def jominy_rate_factor() -> float:
     1.0, 0.3), see the chart file for the copies read; Lamont, Iron Age 152 (1943) for the
     method of equivalence.
     """
-    from ..errors import DataFileError
-
     schema = Schema((Column("fit"), Column("coefficient"), Column("value", "float", lo=0.1, hi=10.0),
                      Column("unit", allow_blank=True), Column("source"),
                      Column("confidence", "choice", choices=("fitted",))))

@@ -27,6 +27,7 @@ import numpy as np
 from ..errors import check_array
 from . import validity
 from .composition import Composition, el
+from .grain_size import austenite_grain_size_um
 
 #: lever rule ends (Fe-Fe3C diagram; common practice): ferrite 0.02 % C, eutectoid 0.77 % C
 FERRITE_C_PCT = 0.02
@@ -223,8 +224,6 @@ def anneal_microstructure(comp: Composition, temp_c, hours, cooling_rate_k_s, in
     law), ferrite grain (Hodgson & Gibbs), undercooling and pearlite spacing, pearlite
     fraction.  Returns dict ``austenite_grain_um, ferrite_grain_um, undercooling_k,
     pearlite_spacing_um, pearlite_fraction``."""
-    from .grain_size import austenite_grain_size_um
-
     dg = austenite_grain_size_um(temp_c, hours, initial_um)
     dt = transformation_undercooling_k(cooling_rate_k_s)
     return {"austenite_grain_um": dg, "ferrite_grain_um": ferrite_grain_size_um(comp, dg, cooling_rate_k_s),

@@ -22,6 +22,8 @@ import numpy as np
 from ..errors import InputError
 from . import validity
 from .martensite import martensite_hardness_hrc
+from ..catalogue.loader import read_table
+from .carburizing import low_temper_hrc
 
 #: resistivity of a 0.4 %C steel at 900 °C, µΩ·cm, with mu_r = 1 (holooly.com worked example, V)
 HOT_RESISTIVITY_UOHM_CM = 114.6
@@ -94,8 +96,6 @@ def reference_depth_mm(frequency_hz, resistivity_uohm_cm=HOT_RESISTIVITY_UOHM_CM
 
 @functools.cache
 def _practice():
-    from ..catalogue.loader import read_table
-
     t = read_table("induction_frequency.csv",
                    numeric=["depth_min_mm", "depth_max_mm", "freq_min_hz", "freq_max_hz", "min_diameter_mm"])
     alt = [float(v) if str(v).strip() else np.nan for v in t["alt_freq_min_hz"]]
@@ -190,7 +190,6 @@ def surface_hardness_hrc(c_pct, temper_temp_c=None, temper_hours=1.0, comp=None)
     hrc = martensite_hardness_hrc(c, 99.9)
     if temper_temp_c is None:
         return hrc
-    from .carburizing import low_temper_hrc
 
     local = dict(comp or {})
     local["C"] = c

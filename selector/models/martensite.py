@@ -19,6 +19,7 @@ import functools
 import numpy as np
 
 from . import validity
+from ..catalogue.loader import read_table
 
 REFERENCE = ("ASTM A255 (initial hardness polynomial); J.M. Hodge & M.A. Orehoski, "
              "Trans. AIME 167 (1946) 627")
@@ -54,8 +55,6 @@ def ih_hrc(c_pct):
 
 @functools.cache
 def _table():
-    from ..catalogue.loader import read_table
-
     t = read_table("martensite_hardness.csv", numeric=["carbon_pct", "hrc_99_9", "hrc_90", "hrc_50"])
     return (t["carbon_pct"].to_numpy(), t["hrc_90"].to_numpy(), t["hrc_50"].to_numpy())
 

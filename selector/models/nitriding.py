@@ -24,6 +24,7 @@ from scipy.special import erfc, erfcinv
 from ..errors import InputError
 from . import validity
 from .composition import Composition, el
+from ..catalogue.loader import read_table
 
 R_J = 8.314  # J mol^-1 K^-1
 
@@ -52,8 +53,6 @@ validity.register("nitrided_surface_hardness", {"Al": (0.0, 1.5, "wt%"), "Cr": (
 
 @functools.cache
 def _constants() -> dict:
-    from ..catalogue.loader import read_table
-
     t = read_table("nitriding_constants.csv", numeric=["value"])
     return dict(zip(t["name"], t["value"].astype(float)))
 

@@ -30,7 +30,7 @@ import functools
 import numpy as np
 
 from ..catalogue.loader import Column, Schema, read_table
-from ..errors import InputError, check_choice
+from ..errors import DataFileError, InputError, check_choice
 from . import validity
 
 MEDIA = ("water", "brine", "oil", "polymer", "air")
@@ -65,7 +65,6 @@ def _table() -> dict:
     out = {(m, a): float(h) for m, a, h in zip(t["medium"], t["agitation"], t["h_per_in"])}
     missing = [(m, a) for m in MEDIA for a in AGITATIONS if (m, a) not in out]
     if missing:
-        from ..errors import DataFileError
         raise DataFileError("quench_severity.csv", None, "medium",
                             f"no row for {missing[0][0]!r} with agitation {missing[0][1]!r}")
     return out

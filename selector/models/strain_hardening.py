@@ -24,8 +24,9 @@ import math
 
 import numpy as np
 
-from ..errors import InputError, check_array
+from ..errors import InputError, check_array, check_choice
 from . import validity
+from ..catalogue.loader import CONFIDENCE, Column, Schema, read_table
 
 #: Brown & Sharpe (AWG) gauge ratio per gauge number, 92^(1/39) (ASTM B258 definition)
 BS_GAUGE_RATIO = 92.0 ** (1.0 / 39.0)
@@ -248,8 +249,6 @@ def reduction_for_uts_mpa(target_uts_mpa, k_mpa, n, base_yield_mpa):
 @functools.cache
 def hollomon_table():
     """``data/hollomon_constants.csv`` as a DataFrame (validated, cached)."""
-    from ..catalogue.loader import CONFIDENCE, Column, Schema, read_table
-
     schema = Schema((Column("key"), Column("scope", allow_blank=True), Column("material"),
                      Column("k_mpa", "float", allow_blank=True, lo=1.0, hi=5000.0),
                      Column("n", "float", lo=0.001, hi=1.0),
@@ -262,8 +261,6 @@ def hollomon_table():
 @functools.cache
 def temper_alias_table():
     """``data/temper_aliases.csv`` as a DataFrame (validated, cached)."""
-    from ..catalogue.loader import CONFIDENCE, Column, Schema, read_table
-
     f = lambda name: Column(name, "float", allow_blank=True, lo=0.0, hi=5000.0)  # noqa: E731
     schema = Schema((Column("family"), Column("designation"),
                      Column("reduction_pct", "float", lo=0.0, hi=95.0), Column("basis"),
@@ -319,7 +316,6 @@ def temper_reduction_pct(designation: str, family: str) -> float:
     hit = fam[fam["designation"].str.upper().str.replace(" ", "") == key]
     if hit.empty:
         allowed = ", ".join(fam["designation"]) or f"(none: family {family} has no cold-work tempers)"
-        from ..errors import check_choice
         check_choice("designation", designation, list(fam["designation"]), f"cold-work tempers of {family}")
         raise InputError("designation", designation, allowed)  # pragma: no cover (check_choice raised)
     return float(hit.iloc[0]["reduction_pct"])

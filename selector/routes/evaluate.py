@@ -9,10 +9,11 @@ import numpy as np
 
 from ..catalogue import heat
 from ..catalogue.grades import Grade, default_catalogue
-from ..errors import InputError, RouteError
-from ..models import conversions
+from ..errors import InputError, RouteError, check_choice
+from ..models import conversions, validity
 from . import bands, families, fatigue, steps as steps_mod
 from .families.base import Batch, tension_test_position
+from .. import inputs
 
 STEEL_SCALE_FAMILIES = ("carbon_steel", "alloy_steel", "carburizing_steel", "nitriding_steel",
                         "stainless_martensitic", "stainless_ph", "tool_steel", "maraging_steel")
@@ -31,8 +32,6 @@ def section_args(diameter_mm, thickness_mm) -> tuple:
 
 
 def _positive(name, v, lo=0.5, hi=500.0):
-    from .. import inputs
-
     if not inputs.is_number(v) or not (lo <= inputs.as_float(v) <= hi):
         raise InputError(name, v, f"a number of mm in [{lo}, {hi}]")
     return inputs.as_float(v)
@@ -163,8 +162,6 @@ def evaluate(grade, route, diameter_mm: float | None = 25.0, thickness_mm: float
     ------
     UnknownGradeError, RouteError, InputError, NotModelledError
     """
-    from ..errors import check_choice
-
     d, t = section_args(diameter_mm, thickness_mm)
     check_choice("composition", composition, CORNERS)
     fat_opts = fatigue.check_options(finish, load_type, reliability)
@@ -244,7 +241,6 @@ def _add_fatigue(out: dict, res: dict, batch: Batch, route: str, section: float,
         rec["through_depth"] = {k: (v.round(4).tolist() if isinstance(v, np.ndarray) else round(v, 4))
                                 for k, v in td.items()}
     out["fatigue"] = rec
-    from ..models import validity
     msgs = validity.check("marin_size", diameter_mm=section)
     if temp_c is not None:
         msgs += validity.check("marin_temperature", temp_c=temp_c)

@@ -18,6 +18,7 @@ from typing import Mapping, Sequence
 
 from ..errors import RouteError, check_choice, nearest
 from .. import inputs
+from ..catalogue.supply import CONDITIONS
 
 #: most steps a route may hold (the longest route of any family has 5)
 MAX_STEPS = 12
@@ -153,7 +154,6 @@ def describe(steps: Sequence[Mapping]) -> str:
             if k == "quench":
                 txt = f"{v} quench"
             if k == "condition":
-                from ..catalogue.supply import CONDITIONS
                 txt = CONDITIONS.get(str(v), str(v))
             if k == "designation" and s["op"] == "supply":
                 txt = f"({v})"

@@ -92,6 +92,8 @@ import pandas as pd
 from ..catalogue.loader import CONFIDENCE, Column, Schema, read_table
 from ..errors import DataFileError, InputError, UnknownGradeError, check_choice, nearest
 from ..models import conversions
+from ..catalogue.grades import default_catalogue
+from .. import inputs
 
 CAUTIONS_FILE = "cautions.csv"
 GALVANIC_FILE = "galvanic_series.csv"
@@ -482,7 +484,6 @@ def anodic_index(material: str) -> dict:
     for t in tries:
         if t in idx:
             return {**idx[t], "name": material.strip()}
-    from ..catalogue.grades import default_catalogue   # the catalogue is optional here
     for t in dict.fromkeys([material.strip(), re.sub(r"[-\s]?(T\d+|H\d+|O)$", "", material.strip(), flags=re.I)]):
         try:
             g = default_catalogue().lookup(t)
@@ -511,8 +512,6 @@ def check_context(context, field: str = "caution_context") -> dict:
     ``service_temp_c`` (°C in [-273.15, 1500], or None), ``environment`` (one of
     ``harsh``, ``normal``, ``controlled``).  Checked whether or not any row of a
     table will use it; an unknown key or a bad value is an :class:`InputError`."""
-    from .. import inputs
-
     ctx = inputs.mapping(field, context, "a mapping with keys out of: " + ", ".join(CONTEXT_KEYS))
     for k in ctx:
         check_choice(f"{field} key", k, CONTEXT_KEYS)

@@ -15,6 +15,7 @@ import pandas as pd
 from ..catalogue.grades import default_catalogue
 from ..catalogue.loader import CONFIDENCE, Column, Schema, parse_text, decode_bytes, read_table
 from ..errors import DataFileError, InputError
+from .. import inputs
 
 ROUTE_COST_SCHEMA = Schema((Column("route"), Column("adder_per_kg", "float", lo=0, hi=1000),
                             Column("source"), Column("confidence", "choice", choices=CONFIDENCE)))
@@ -70,8 +71,6 @@ def check_price_sheet(price_sheet, field: str = "price_sheet") -> dict | None:
     :data:`PRICE_RANGE` (finite, positive).  A key that is no grade, a grade priced
     twice under two names, or a bad price is an :class:`InputError` naming it.
     """
-    from .. import inputs
-
     if price_sheet is None:
         return None
     from collections.abc import Mapping

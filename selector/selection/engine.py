@@ -50,15 +50,17 @@ from ..catalogue.grades import FAMILIES, default_catalogue
 from ..errors import InputError
 from ..routes import families as fam_registry
 from ..routes import fatigue as fatigue_mod
-from ..routes.evaluate import section_args
+from ..routes.evaluate import evaluate, section_args
 from ..routes.steps import describe
 from ..states.expand import expand
 from . import cost as cost_mod
 from ..rules import cautions as cautions_mod
-from ..errors import check_choice
+from ..errors import NotModelledError, check_choice
 from ..states import scatter
 from .pareto import pareto_mask
 from .targets import NUMERIC_TARGETS, _NAN_PASSES_MAX, margins, meets, shortfalls, validate_targets
+from .. import inputs
+from ..rules.cautions import check_context
 
 DEFAULT_OBJECTIVES = (("part_cost", "min"), ("p_meet", "max"), ("elongation_pct", "max"))
 OBJECTIVE_COLUMNS = ("yield_mpa", "uts_mpa", "elongation_pct", "hardness_hrc", "surface_hardness_hrc",
@@ -261,8 +263,6 @@ def prepare(diameter_mm=25.0, thickness_mm=None, length_mm=100.0, price_sheet=No
     not depend on the targets (cached; the page caches it too).  Rows are laid out
     as three aligned blocks (nominal, lean, rich), the nominal block sorted by
     variant and main parameter; treat the frame as read-only."""
-    from .. import inputs
-
     length_mm = inputs.number("length_mm", length_mm, 1.0, 20000.0, unit="part length, mm")
     d, t = section_args(diameter_mm, thickness_mm)
     prices = tuple(sorted((cost_mod.check_price_sheet(price_sheet) or {}).items()))
@@ -313,9 +313,6 @@ def rank(prepared: pd.DataFrame, targets: dict | None = None, objectives=DEFAULT
     context of the cautions (``plated``, ``plating``, ``mating_material``,
     ``service_temp_c``, ``environment``; see :func:`selector.rules.cautions.cautions_for`);
     ``min_p_meet`` and ``allow`` as in :func:`select`."""
-    from ..rules.cautions import check_context
-    from .. import inputs
-
     t = validate_targets(targets, FAMILIES)
     objectives = _check_objectives(objectives)
     robust_only = inputs.flag("robust_only", robust_only)
@@ -582,9 +579,6 @@ def select(targets: dict | None = None, diameter_mm: float = 25.0, *, thickness_
         A bad target, section, ``min_p_meet`` outside (0, 1] or an unknown rule in
         ``allow`` (naming the field, the value and what is allowed).
     """
-    from ..rules.cautions import check_context
-    from .. import inputs
-
     # every argument is checked before the (expensive) expansion
     t = validate_targets(targets, FAMILIES)
     objectives = _check_objectives(objectives)
@@ -631,8 +625,6 @@ def nearest_misses(targets: dict, diameter_mm: float = 25.0, *, thickness_mm: fl
     it would have to move (``move_<key>``) for that candidate to qualify at the
     nominal composition.  One row per variant (its best parameter point), sorted by
     ``miss_score`` (the sum of the relative moves)."""
-    from .. import inputs
-
     t = validate_targets(targets, FAMILIES)
     n = inputs.integer("n", n, 1, 10_000)
     fat = dict(fatigue_mod.check_options(finish, load_type, reliability), temp_c=service_temp_c)
@@ -793,10 +785,6 @@ def alternatives(grade, route, diameter_mm: float = 25.0, *, thickness_mm: float
     becomes the minimum target instead; ``attrs["reference"]["basis"]`` says which
     (``"strength"`` or ``"hardness"``).
     """
-    from .. import inputs
-    from ..errors import NotModelledError
-    from ..routes.evaluate import evaluate
-
     tol = inputs.number("elongation_tolerance_pct", elongation_tolerance_pct, 0.0, 50.0, unit="percentage points")
     prices = cost_mod.check_price_sheet(price_sheet) or {}
     length_mm = inputs.number("length_mm", length_mm, 1.0, 20000.0, unit="part length, mm")

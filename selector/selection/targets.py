@@ -37,7 +37,9 @@ from typing import Mapping, Sequence
 import numpy as np
 import pandas as pd
 
+from ..catalogue.grades import FAMILIES
 from ..errors import DataFileError, InputError, check_choice, check_number
+from .. import inputs
 
 __all__ = ["TARGET_KEYS", "NUMERIC_TARGETS", "HARD_FILTERS", "validate_targets", "targets_from_toml",
            "meets", "margins", "shortfalls"]
@@ -182,10 +184,8 @@ def targets_from_toml(text_or_path, families_known: Sequence[str] | None = None)
     DataFileError
         TOML syntax error, with the file and line.
     """
-    from .. import inputs
-
     if families_known is None:
-        from ..catalogue.grades import FAMILIES as families_known
+        families_known = FAMILIES
     is_path = isinstance(text_or_path, os.PathLike) or (
         isinstance(text_or_path, str) and not any(c in text_or_path for c in "=[\n"))
     if is_path:

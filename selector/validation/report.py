@@ -46,6 +46,10 @@ from ..catalogue.grades import default_catalogue
 from ..catalogue.loader import CONFIDENCE, Column, Schema, data_dir, read_file
 from ..errors import NotModelledError, SelectorError, UnknownGradeError
 from . import calibration
+from ..routes.families.base import RouteFamily
+from ..models.hardenability import jominy_curve_hrc
+from ..routes.evaluate import evaluate
+from .thresholds import HEADROOM_NOTE, THRESHOLDS
 
 #: defaults used where a reference row leaves a treatment condition blank
 DEFAULT_TEMPER_HOURS = 2.0     # common practice: 1 h per inch of section, 2 h as a usual shop minimum
@@ -183,7 +187,6 @@ def qt_case(rec: dict, file: str = QT_FILE) -> Case:
     assumptions = []
     quench = str(rec.get("quench") or "").strip()
     if not quench and gid:
-        from ..routes.families.base import RouteFamily
         quench = RouteFamily.choices(default_catalogue().lookup(gid), "quench_temper", "quench", ("oil",))[0]
         assumptions.append(f"quench not stated: {quench} (the grade's usual medium, data/route_windows.csv)")
     harden = {"op": "harden", "quench": quench or "oil"}
@@ -365,8 +368,6 @@ def _rows_for(case: Case, predicted: dict, status: str, reason: str = "") -> lis
 
 
 def _jominy_predictions(case: Case) -> dict:
-    from ..models.hardenability import jominy_curve_hrc
-
     g = default_catalogue().lookup(case.grade_id)  # type: ignore[attr-defined]
     d = np.array([case.diameter_mm])
     return {f"jominy_{k}_hrc": float(np.asarray(jominy_curve_hrc(g.composition(corner), d)).ravel()[0])
@@ -379,7 +380,6 @@ def recompute_case(case: Case) -> list[dict]:
         return _rows_for(case, {}, "not modelled", case.skip_reason)
     if case.route == "jominy":
         return _rows_for(case, _jominy_predictions(case), "compared")
-    from ..routes.evaluate import evaluate
 
     first = None
     for steps in [case.steps] + list(case.alternatives):
@@ -489,8 +489,6 @@ def check(stats: pd.DataFrame, thresholds=None) -> tuple[list[str], list[str]]:
     Returns ``(violations, undocumented)``: messages for every statistic above its
     threshold, and the groups compared that have no threshold.
     """
-    from .thresholds import THRESHOLDS
-
     thresholds = THRESHOLDS if thresholds is None else thresholds
     bad, missing = [], []
     for r in stats.itertuples(index=False):
@@ -574,8 +572,6 @@ def parity_plots(comparisons: pd.DataFrame, out_dir: Path) -> list[Path]:
 def render(comparisons: pd.DataFrame, stats: pd.DataFrame, plots: Sequence[Path], out_path: Path,
            sources: Sequence[str] = (), n_worst: int = 20) -> str:
     """The Markdown text of ``docs/validation.md``."""
-    from .thresholds import THRESHOLDS, HEADROOM_NOTE
-
     out_path = Path(out_path)
     violations, missing = check(stats)
     cases = comparisons.drop_duplicates("case")

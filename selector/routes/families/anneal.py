@@ -37,10 +37,6 @@ def _ac3(comp):
     return np.asarray(critical_temperatures.ac3_c(comp), float)
 
 
-def _default(grade, route, parameter, fallback):
-    return float(RouteFamily.window_value(grade, route, parameter, None, fallback))
-
-
 class _Soften(RouteFamily):
     route = ""
     cooling = ""
@@ -51,8 +47,9 @@ class _Soften(RouteFamily):
     def parse(self, steps, grade):
         self.require_family(grade)
         s = steps[0]
-        params = {"temp_c": float(s["temp_c"]) if "temp_c" in s else _default(grade, self.route, "temp_c", 870.0),
-                  "hours": float(s["hours"]) if "hours" in s else _default(grade, self.route, "hours", 1.0)}
+        params = {"temp_c": float(s["temp_c"]) if "temp_c" in s
+                  else self.window_float(grade, self.route, "temp_c", 870.0),
+                  "hours": float(s["hours"]) if "hours" in s else self.window_float(grade, self.route, "hours", 1.0)}
         return params, self.window_warnings(grade, self.route, params)
 
     def to_steps(self, params):
@@ -60,7 +57,7 @@ class _Soften(RouteFamily):
 
     def grid(self, grade):
         t = self.span(grade, self.route, "temp_c", 3, (845.0, 925.0))
-        return {"temp_c": t, "hours": np.full(len(t), _default(grade, self.route, "hours", 1.0))}
+        return {"temp_c": t, "hours": np.full(len(t), self.window_float(grade, self.route, "hours", 1.0))}
 
     def rate(self, batch: Batch) -> np.ndarray:
         if self.cooling == "furnace":
@@ -88,8 +85,8 @@ class _Soften(RouteFamily):
             anch = np.isin(fam[modelled], ANCHORED)
             if anch.any():
                 g = sub.grades
-                t_ref = np.array([_default(g[i], "anneal", "temp_c", 845.0) for i in sub.gidx])
-                h_ref = np.array([_default(g[i], "anneal", "hours", 2.0) for i in sub.gidx])
+                t_ref = np.array([self.window_float(g[i], "anneal", "temp_c", 845.0) for i in sub.gidx])
+                h_ref = np.array([self.window_float(g[i], "anneal", "hours", 2.0) for i in sub.gidx])
                 ref = fp.anneal_properties(sub.comp, t_ref, h_ref, np.full(sub.n, fp.FURNACE_COOL_K_S))
                 ys = np.where(anch, base["yield_mpa"][modelled] * ys / ref["yield_mpa"], ys)
                 uts = np.where(anch, base["uts_mpa"][modelled] * uts / ref["uts_mpa"], uts)

@@ -142,6 +142,11 @@ class RouteFamily:
         return fallback
 
     @staticmethod
+    def window_float(grade: Grade, route: str, parameter: str, fallback: float) -> float:
+        """The window default of a numeric parameter as a float, else ``fallback``."""
+        return float(RouteFamily.window_value(grade, route, parameter, None, fallback))
+
+    @staticmethod
     def window_warnings(grade: Grade, route: str, params: Mapping) -> list[str]:
         """Warnings for parameters outside the grade's usual process window."""
         out = []

@@ -20,7 +20,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from ...errors import InputError, RouteError
+from ...errors import InputError, NotModelledError, RouteError
 from ...models import conversions, strain_hardening as sh, stress_relief, validity
 from .base import Batch, RouteFamily
 
@@ -88,7 +88,6 @@ class ColdWork(RouteFamily):
         params["stress_relieve_hours"] = float(sr.get("hours", 1.0)) if sr else float("nan")
         if sr:
             if grade.family not in STEEL_SCALE:
-                from ...errors import NotModelledError
                 raise NotModelledError(f"stress relieving after cold work is modelled for carbon steels only "
                                        f"(ASM Handbook cold-finished bar practice); {grade.id} is {grade.family}")
             warns += self.window_warnings(grade, ROUTE, {"stress_relieve_temp_c": params["stress_relieve_temp_c"]})

@@ -24,6 +24,7 @@ import numpy as np
 
 from ...models import conversions, induction, validity
 from ...models.composition import el
+from . import anneal
 from .base import Batch, RouteFamily, product_grid
 from .carburize import merged_positions, resample
 from .quench_temper import default_austenitize_c, through_harden
@@ -168,13 +169,14 @@ class Induction(RouteFamily):
         prior_norm = np.asarray(p["prior"]).astype(str) == "normalize"
         if prior_norm.any():
             # the core keeps the normalized condition: the normalize family's model at the section
-            from .anneal import FAMILIES as SOFT, _default
-            norm = next(f for f in SOFT if f.name == "normalize")
+            norm = next(f for f in anneal.FAMILIES if f.name == "normalize")
             idx = np.flatnonzero(prior_norm)
             sub = batch.subset(prior_norm)
             sub = Batch(sub.grades, sub.gidx, sub.comp,
-                        {"temp_c": np.array([_default(sub.grades[i], "normalize", "temp_c", 870.0) for i in sub.gidx]),
-                         "hours": np.array([_default(sub.grades[i], "normalize", "hours", 1.0) for i in sub.gidx])},
+                        {"temp_c": np.array([self.window_float(sub.grades[i], "normalize", "temp_c", 870.0)
+                                             for i in sub.gidx]),
+                         "hours": np.array([self.window_float(sub.grades[i], "normalize", "hours", 1.0)
+                                            for i in sub.gidx])},
                         sub.diameter_mm, sub.thickness_mm)
             nres = norm.compute(sub)
             for k in ("uts_mpa", "yield_mpa", "elongation_pct"):

@@ -42,6 +42,7 @@ from ...models import conversions, stress_relief, validity
 from .. import bands
 from .cold_work import stress_relief_steps
 from .base import Batch, RouteFamily
+from . import get
 
 STEEL_SCALE = ("carbon_steel", "alloy_steel", "carburizing_steel", "nitriding_steel", "stainless_martensitic",
                "stainless_ph", "tool_steel", "maraging_steel")
@@ -219,7 +220,6 @@ class _SupplyThen(RouteFamily):
     conditions: tuple = ()
 
     def _inner(self):
-        from . import get
         return get(self.inner_name)
 
     @property
