@@ -22,11 +22,9 @@ from pathlib import Path
 
 import numpy as np
 
-try:
-    from selector.selection.pareto import pareto_mask
-except ImportError:  # run from a checkout without installing
-    sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
-    from selector.selection.pareto import pareto_mask
+sys.path.insert(0, str(Path(__file__).resolve().parents[1]))   # this checkout first, as the other scripts
+
+from selector.selection.pareto import pareto_mask  # noqa: E402
 
 SEED = 20240611
 

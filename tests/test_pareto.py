@@ -7,7 +7,7 @@ import numpy as np
 import pytest
 
 from selector.errors import InputError
-from selector.selection.pareto import pareto_mask, pareto_rank
+from selector.selection.pareto import pareto_mask
 
 
 def brute_mask(values, maximize):
@@ -17,19 +17,6 @@ def brute_mask(values, maximize):
     gt = (x[:, None, :] > x[None, :, :]).any(axis=-1)
     dominated = (ge & gt & ok[:, None]).any(axis=0)
     return ok & ~dominated
-
-
-def brute_rank(values, maximize):
-    x = np.asarray(values, dtype=float)
-    rank = np.full(len(x), -1)
-    left = np.flatnonzero(~np.isnan(x).any(axis=1))
-    r = 0
-    while left.size:
-        front = brute_mask(x[left], maximize)
-        rank[left[front]] = r
-        left = left[~front]
-        r += 1
-    return rank
 
 
 def random_set(rng, n, k, kind):
@@ -160,34 +147,6 @@ def test_one_objective_keeps_every_copy_of_the_best():
 def test_empty_and_all_nan():
     assert pareto_mask(np.empty((0, 2)), [True, True]).shape == (0,)
     assert not pareto_mask(np.full((5, 3), np.nan), [True] * 3).any()
-    assert pareto_rank(np.full((4, 2), np.nan), [True, True]).tolist() == [-1] * 4
-
-
-@pytest.mark.parametrize("k", [2, 3])
-@pytest.mark.parametrize("kind", ["continuous", "ties"])
-def test_rank_matches_brute_force_peeling(k, kind):
-    rng = np.random.default_rng(5 + k)
-    x = random_set(rng, 300, k, kind)
-    x[:5, 0] = np.nan
-    maximize = list(SENSES[k][-1])
-    r = pareto_rank(x, maximize)
-    np.testing.assert_array_equal(r, brute_rank(x, maximize))
-    assert (r[:5] == -1).all()
-    np.testing.assert_array_equal(r == 0, pareto_mask(x, maximize))
-
-
-def test_rank_structure():
-    rng = np.random.default_rng(3)
-    x = rng.random((400, 2))
-    r = pareto_rank(x, [True, True])
-    assert r.min() == 0 and r.max() > 3
-    for i in np.flatnonzero(r > 0):
-        ahead = x[r == r[i] - 1]
-        # a rank-r point is dominated by some point of rank r-1
-        assert ((ahead >= x[i]).all(axis=1) & (ahead > x[i]).any(axis=1)).any()
-        # and by nothing of its own rank or worse
-        same = x[r >= r[i]]
-        assert not ((same >= x[i]).all(axis=1) & (same > x[i]).any(axis=1)).any()
 
 
 @pytest.mark.parametrize("values,maximize,field", [

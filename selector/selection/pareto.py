@@ -11,7 +11,7 @@ Kung, Luccio & Preparata 1975).
 * Exact duplicates do not dominate one another, so all copies of a front point are
   kept.
 * A row with a NaN in any objective is never on the front and takes no part in the
-  comparison (it dominates nothing); its rank is ``-1``.  ``+inf``/``-inf`` are
+  comparison (it dominates nothing).  ``+inf``/``-inf`` are
   ordinary, comparable values.
 
 Methods
@@ -27,7 +27,6 @@ Methods
   presorted by a monotone score (the range-normalised sum of the objectives), with
   the pivots taken in numpy blocks.  Exact for any input order; fast when the
   front is small compared with n (the usual case), O(n · front) at worst.
-* ranks: repeated peeling of fronts (non-dominated sorting, Goldberg 1989).
 
 References
 ----------
@@ -41,8 +40,6 @@ Börzsönyi, S., Kossmann, D., Stocker, K. (2001) The Skyline operator.  *Proc. 
     ICDE*, 421-430.  doi:10.1109/ICDE.2001.914855.
 Chomicki, J., Godfrey, P., Gryz, J., Liang, D. (2003) Skyline with presorting.
     *Proc. 19th ICDE*, 717-719.
-Goldberg, D. E. (1989) *Genetic Algorithms in Search, Optimization and Machine
-    Learning*.  Addison-Wesley, p. 201 (page from memory).
 """
 from __future__ import annotations
 
@@ -52,7 +49,7 @@ import numpy as np
 
 from ..errors import InputError
 
-__all__ = ["pareto_mask", "pareto_rank"]
+__all__ = ["pareto_mask"]
 
 # Below this many points the 2-D pivot pre-filter is not worth its passes.
 _PREFILTER_MIN_POINTS = 2048
@@ -331,43 +328,3 @@ def pareto_mask(values, maximize: Sequence[bool]) -> np.ndarray:
     [True, True, False, True]
     """
     return _mask_oriented(_prepare(values, maximize))
-
-
-def pareto_rank(values, maximize: Sequence[bool]) -> np.ndarray:
-    """Pareto rank by repeated peeling (non-dominated sorting, Goldberg 1989).
-
-    rank 0 = ``pareto_mask`` of all points; rank r = the front of what is left once
-    ranks 0 … r−1 are removed.
-
-    Parameters
-    ----------
-    values : array_like, shape (n, k)
-        Objective values (see :func:`pareto_mask`).
-    maximize : sequence of k bool
-        ``True`` where larger is better.
-
-    Returns
-    -------
-    numpy.ndarray of int, shape (n,)
-        0 for the front, 1 for the next front, …; ``-1`` for rows with a NaN.
-
-    Validity
-    --------
-    One front extraction per rank: meant for up to about 10^4 points.
-
-    References
-    ----------
-    Goldberg, D. E. (1989) Genetic Algorithms in Search, Optimization and Machine
-    Learning, Addison-Wesley (from memory); fronts by :func:`pareto_mask`.
-    """
-    x = _prepare(values, maximize)
-    n = x.shape[0]
-    rank = np.full(n, -1, dtype=int)
-    left = np.flatnonzero(~np.isnan(x).any(axis=1))
-    r = 0
-    while left.size:
-        front = _mask_oriented(x[left])
-        rank[left[front]] = r
-        left = left[~front]
-        r += 1
-    return rank

@@ -1,8 +1,7 @@
 """Registry of route families.
 
-The op sequences that identify each family live here, so that a route can be
-recognised (and a clear "not modelled yet" error given) even before its family's
-module exists.  A family module defines ``FAMILIES``: a list of
+Each family declares the op sequences it accepts (``patterns``); :func:`match` finds
+the family of a route from them.  A family module defines ``FAMILIES``: a list of
 :class:`~selector.routes.families.base.RouteFamily` instances.  Selection, the CLI
 and the page iterate over :func:`available`; a new module listed in ``MODULES``
 shows up everywhere with no other change.
@@ -21,29 +20,6 @@ MODULES = {
     "cold_work": "cold_work", "age": "age",
     "supply": "supply", "supply_induction": "supply", "supply_nitride": "supply",
     "austemper": "austemper", "martemper": "austemper",
-}
-
-#: family name -> accepted op sequences
-PATTERNS = {
-    "anneal": (("anneal",),),
-    "normalize": (("normalize",),),
-    "quench_temper": (("harden",), ("harden", "temper"), ("normalize", "harden", "temper"),
-                      ("anneal", "harden", "temper")),
-    "carburize": (("carburize",), ("carburize", "temper"), ("carburize", "harden"),
-                  ("carburize", "harden", "temper")),
-    "nitride": (("nitride",), ("harden", "temper", "nitride")),
-    "induction": (("induction_harden",), ("induction_harden", "temper"),
-                  ("normalize", "induction_harden"), ("normalize", "induction_harden", "temper"),
-                  ("harden", "temper", "induction_harden"),
-                  ("harden", "temper", "induction_harden", "temper")),
-    "cold_work": (("cold_work",), ("anneal", "cold_work"), ("cold_work", "stress_relieve"),
-                  ("anneal", "cold_work", "stress_relieve")),
-    "age": (("solution_treat",), ("age",), ("solution_treat", "age")),
-    "supply": (("supply",), ("supply", "stress_relieve")),
-    "supply_induction": (("supply", "induction_harden"), ("supply", "induction_harden", "temper")),
-    "supply_nitride": (("supply", "nitride"),),
-    "austemper": (("austemper",),),
-    "martemper": (("martemper",), ("martemper", "temper")),
 }
 
 
@@ -80,9 +56,10 @@ def available() -> list:
 
 
 def match(signature: tuple) -> str:
-    """The family whose patterns include the op sequence ``signature``."""
-    for name, pats in PATTERNS.items():
-        if signature in pats:
-            return name
-    accepted = "; ".join(" → ".join(p) for pats in PATTERNS.values() for p in pats)
+    """The family whose ``patterns`` (the accepted op sequences, declared by each family)
+    include the op sequence ``signature``."""
+    for fam in available():
+        if signature in fam.patterns:
+            return fam.name
+    accepted = "; ".join(" → ".join(p) for fam in available() for p in fam.patterns)
     raise RouteError("route", " → ".join(signature), f"one of these op sequences: {accepted}")
