@@ -45,22 +45,21 @@ import functools
 import numpy as np
 import pandas as pd
 
+from .. import inputs
 from ..cache import disk_frame
 from ..catalogue.grades import FAMILIES, default_catalogue
-from ..errors import InputError
+from ..errors import InputError, NotModelledError
 from ..routes import families as fam_registry
 from ..routes import fatigue as fatigue_mod
 from ..routes.evaluate import evaluate, section_args
 from ..routes.steps import describe
+from ..rules import cautions as cautions_mod
+from ..rules.cautions import check_context
+from ..states import scatter
 from ..states.expand import expand
 from . import cost as cost_mod
-from ..rules import cautions as cautions_mod
-from ..errors import NotModelledError, check_choice
-from ..states import scatter
 from .pareto import pareto_mask
 from .targets import NUMERIC_TARGETS, _NAN_PASSES_MAX, margins, meets, shortfalls, validate_targets
-from .. import inputs
-from ..rules.cautions import check_context
 
 DEFAULT_OBJECTIVES = (("part_cost", "min"), ("p_meet", "max"), ("elongation_pct", "max"))
 OBJECTIVE_COLUMNS = ("yield_mpa", "uts_mpa", "elongation_pct", "hardness_hrc", "surface_hardness_hrc",

@@ -211,6 +211,23 @@ class RouteFamily:
         return tuple(w.values) if w is not None and w.values else tuple(fallback)
 
 
+def harden_step(quench, agitation, austenitize_c) -> dict:
+    """A ``harden`` step as every family writes it back (:meth:`RouteFamily.to_steps`):
+    the agitation only where it is not the default ``moderate``."""
+    step = {"op": "harden", "quench": str(quench)}
+    if str(agitation) != "moderate":
+        step["agitation"] = str(agitation)
+    step["austenitize_c"] = float(austenitize_c)
+    return step
+
+
+def temper_steps(temp_c, hours) -> list[dict]:
+    """``[{"op": "temper", ...}]``, or ``[]`` where ``temp_c`` is NaN (no temper)."""
+    if not np.isfinite(float(temp_c)):
+        return []
+    return [{"op": "temper", "temp_c": float(temp_c), "hours": float(hours)}]
+
+
 def product_grid(**axes) -> dict[str, np.ndarray]:
     """Cartesian product of 1-D axes as flat arrays (object dtype kept for text)."""
     names = list(axes)

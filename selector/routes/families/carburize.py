@@ -27,7 +27,7 @@ import numpy as np
 from ...errors import RouteError
 from ...models import carburizing, conversions, validity
 from ...models.composition import el
-from .base import Batch, RouteFamily, at_position, product_grid
+from .base import Batch, RouteFamily, at_position, harden_step, product_grid, temper_steps
 from .. import quench_response
 from .quench_temper import default_austenitize_c, through_harden
 
@@ -127,15 +127,8 @@ class Carburize(RouteFamily):
         steps = [{"op": "carburize", "temp_c": float(params["temp_c"]), "hours": float(params["hours"]),
                   "surface_carbon_pct": float(params["surface_carbon_pct"])}]
         if str(params.get("hardening", "direct")) == "reheat":
-            h = {"op": "harden", "quench": str(params["quench"])}
-            if str(params.get("agitation", "moderate")) != "moderate":
-                h["agitation"] = str(params["agitation"])
-            h["austenitize_c"] = float(params["austenitize_c"])
-            steps.append(h)
-        if np.isfinite(float(params["temper_temp_c"])):
-            steps.append({"op": "temper", "temp_c": float(params["temper_temp_c"]),
-                          "hours": float(params["temper_hours"])})
-        return steps
+            steps.append(harden_step(params["quench"], params.get("agitation", "moderate"), params["austenitize_c"]))
+        return steps + temper_steps(params["temper_temp_c"], params["temper_hours"])
 
     # ------------------------------------------------------------------- grid
     def grid(self, grade):

@@ -25,9 +25,9 @@ import numpy as np
 from ...models import conversions, induction, validity
 from ...models.composition import el
 from . import anneal
-from .base import Batch, RouteFamily, product_grid
-from .carburize import merged_positions, resample
-from .quench_temper import default_austenitize_c, through_harden
+from .base import Batch, RouteFamily, harden_step, product_grid, temper_steps
+from .core import core_profile, no_prior_cycle_params, prior_cycle_params
+from .quench_temper import default_austenitize_c
 
 ROUTE = "induction"
 PRIORS = ("quench_temper", "normalize", "none")
@@ -69,16 +69,10 @@ class Induction(RouteFamily):
                   "temper_temp_c": float(after["temp_c"]) if after else float("nan"),
                   "temper_hours": float(after.get("hours", 1.0)) if after else float("nan")}
         if "harden" in ops:
-            h = steps[ops.index("harden")]
-            t = steps[ops.index("temper")]
-            aust = float(h["austenitize_c"]) if "austenitize_c" in h else default_austenitize_c(grade)
-            params.update(prior="quench_temper", prior_quench=str(h["quench"]),
-                          prior_agitation=str(h.get("agitation", "moderate")), prior_austenitize_c=aust,
-                          prior_temper_temp_c=float(t["temp_c"]), prior_temper_hours=float(t.get("hours", 2.0)))
+            params.update(prior="quench_temper", **prior_cycle_params(steps[ops.index("harden")],
+                                                                      steps[ops.index("temper")], grade, "prior_"))
         else:
-            params.update(prior="normalize" if "normalize" in ops else "none", prior_quench="oil",
-                          prior_agitation="moderate", prior_austenitize_c=float("nan"),
-                          prior_temper_temp_c=float("nan"), prior_temper_hours=float("nan"))
+            params.update(prior="normalize" if "normalize" in ops else "none", **no_prior_cycle_params("prior_"))
         warns = self.window_warnings(grade, ROUTE, {k: params[k] for k in ("case_depth_mm", "temper_temp_c",
                                                                             "quench")})
         return params, warns
@@ -87,12 +81,9 @@ class Induction(RouteFamily):
         steps = []
         prior = str(params.get("prior", "none"))
         if prior == "quench_temper":
-            h = {"op": "harden", "quench": str(params["prior_quench"])}
-            if str(params.get("prior_agitation", "moderate")) != "moderate":
-                h["agitation"] = str(params["prior_agitation"])
-            h["austenitize_c"] = float(params["prior_austenitize_c"])
-            steps += [h, {"op": "temper", "temp_c": float(params["prior_temper_temp_c"]),
-                          "hours": float(params["prior_temper_hours"])}]
+            steps += [harden_step(params["prior_quench"], params.get("prior_agitation", "moderate"),
+                                  params["prior_austenitize_c"]),
+                      *temper_steps(params["prior_temper_temp_c"], params["prior_temper_hours"])]
         elif prior == "normalize":
             steps.append({"op": "normalize"})
         ih = {"op": "induction_harden", "case_depth_mm": float(params["case_depth_mm"])}
@@ -100,10 +91,7 @@ class Induction(RouteFamily):
             ih["frequency_hz"] = float(params["frequency_hz"])
         ih["quench"] = str(params["quench"])
         steps.append(ih)
-        if np.isfinite(float(params["temper_temp_c"])):
-            steps.append({"op": "temper", "temp_c": float(params["temper_temp_c"]),
-                          "hours": float(params["temper_hours"])})
-        return steps
+        return steps + temper_steps(params["temper_temp_c"], params["temper_hours"])
 
     def grid(self, grade):
         depth = np.unique(np.round(self.span(grade, ROUTE, "case_depth_mm", 5, (0.5, 6.0)) * 2.0) / 2.0)
@@ -139,32 +127,10 @@ class Induction(RouteFamily):
         tempered = np.isfinite(t_t)
         prior_qt = np.asarray(p["prior"]).astype(str) == "quench_temper"
         pt_t = np.asarray(p["prior_temper_temp_c"], float)
-        if prior_qt.any():
-            res = through_harden(batch, p["prior_quench"], p["prior_agitation"],
-                                 np.where(prior_qt, np.asarray(p["prior_austenitize_c"], float), 850.0),
-                                 np.where(prior_qt, pt_t, 600.0),
-                                 np.where(prior_qt, np.asarray(p["prior_temper_hours"], float), 2.0))
-            core_pos = np.asarray(res["profile_positions"], float)
-            pos = merged_positions(core_pos)
-            core_hv = resample(res["profile_hv"], core_pos, pos)
-        else:
-            res = {}
-            pos = merged_positions(np.linspace(1.0, 0.0, 11))
-            core_hv = np.zeros((n, len(pos)))
-        base_hv = conversions.hb_to_hv(batch.attr("base_hardness_hb"))
-        core_hv = np.where(prior_qt[:, None], core_hv, base_hv[:, None])
-        if not prior_qt.all():
-            for k, attr in (("uts_mpa", "base_uts_mpa"), ("yield_mpa", "base_yield_mpa"),
-                            ("elongation_pct", "base_elongation_pct")):
-                v = batch.attr(attr)
-                res[k] = np.where(prior_qt, res.get(k, v), v)
-                res["center_" + k] = np.where(prior_qt, res.get("center_" + k, v), v)
-            res["hardness_hv"] = np.where(prior_qt, res.get("hardness_hv", base_hv), base_hv)
-            res["center_hardness_hv"] = np.where(prior_qt, res.get("center_hardness_hv", base_hv), base_hv)
-            if "reduction_area_pct" in res:
-                res["reduction_area_pct"] = np.where(prior_qt, res["reduction_area_pct"], np.nan)
-            if "center_martensite_pct" in res:
-                res["center_martensite_pct"] = np.where(prior_qt, res["center_martensite_pct"], 0.0)
+        res, pos, core_hv = core_profile(
+            batch, prior_qt, p["prior_quench"], p["prior_agitation"],
+            np.where(prior_qt, np.asarray(p["prior_austenitize_c"], float), 850.0),
+            np.where(prior_qt, pt_t, 600.0), np.where(prior_qt, np.asarray(p["prior_temper_hours"], float), 2.0))
 
         prior_norm = np.asarray(p["prior"]).astype(str) == "normalize"
         if prior_norm.any():

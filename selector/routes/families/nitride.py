@@ -20,11 +20,11 @@ from __future__ import annotations
 
 import numpy as np
 
-from ...models import conversions, nitriding, tempering, validity
+from ...models import nitriding, tempering, validity
 from ...models.composition import el
-from .base import Batch, RouteFamily, product_grid
-from .carburize import merged_positions, resample
-from .quench_temper import default_austenitize_c, through_harden
+from .base import Batch, RouteFamily, harden_step, product_grid, temper_steps
+from .core import core_profile, no_prior_cycle_params, prior_cycle_params
+from .quench_temper import default_austenitize_c
 
 ROUTE = "nitride"
 PRIORS = ("quench_temper", "none")
@@ -72,13 +72,9 @@ class Nitride(RouteFamily):
         t = next((s for s in steps if s["op"] == "temper"), None)
         params = {"temp_c": float(n["temp_c"]), "hours": float(n["hours"])}
         if h is not None:
-            aust = float(h["austenitize_c"]) if "austenitize_c" in h else default_austenitize_c(grade)
-            params.update(prior="quench_temper", quench=str(h["quench"]),
-                          agitation=str(h.get("agitation", "moderate")), austenitize_c=aust,
-                          temper_temp_c=float(t["temp_c"]), temper_hours=float(t.get("hours", 2.0)))
+            params.update(prior="quench_temper", **prior_cycle_params(h, t, grade))
         else:
-            params.update(prior="none", quench="oil", agitation="moderate", austenitize_c=float("nan"),
-                          temper_temp_c=float("nan"), temper_hours=float("nan"))
+            params.update(prior="none", **no_prior_cycle_params())
         warns = self.window_warnings(grade, ROUTE, {k: params[k] for k in ("temp_c", "hours", "temper_temp_c")})
         warns += nitriding.nitriding_cautions(params["temp_c"],
                                               params["temper_temp_c"] if h is not None else None)
@@ -87,12 +83,8 @@ class Nitride(RouteFamily):
     def to_steps(self, params):
         steps = []
         if str(params.get("prior", "none")) == "quench_temper":
-            hs = {"op": "harden", "quench": str(params["quench"])}
-            if str(params.get("agitation", "moderate")) != "moderate":
-                hs["agitation"] = str(params["agitation"])
-            hs["austenitize_c"] = float(params["austenitize_c"])
-            steps += [hs, {"op": "temper", "temp_c": float(params["temper_temp_c"]),
-                           "hours": float(params["temper_hours"])}]
+            steps += [harden_step(params["quench"], params.get("agitation", "moderate"), params["austenitize_c"]),
+                      *temper_steps(params["temper_temp_c"], params["temper_hours"])]
         steps.append({"op": "nitride", "temp_c": float(params["temp_c"]), "hours": float(params["hours"])})
         return steps
 
@@ -119,34 +111,10 @@ class Nitride(RouteFamily):
         n = batch.n
         t_t = np.asarray(p["temper_temp_c"], float)
         t_h = np.asarray(p["temper_hours"], float)
-        res = None
-        if prior_qt.any():
-            tt, th = equivalent_temper(np.where(prior_qt, t_t, temp), np.where(prior_qt, t_h, 1.0),
-                                       temp, hours, el(comp, "C"))
-            aust = np.where(prior_qt, np.asarray(p["austenitize_c"], float), 850.0)
-            res = through_harden(batch, p["quench"], p["agitation"], aust, tt, th)
-            core_pos = np.asarray(res["profile_positions"], float)
-            pos = merged_positions(core_pos)
-            core_hv = resample(res["profile_hv"], core_pos, pos)
-        else:
-            pos = merged_positions(np.linspace(1.0, 0.0, 11))
-            core_hv = np.zeros((n, len(pos)))
-            res = {}
-        # annealed baseline where there is no prior hardening
-        base_hv = conversions.hb_to_hv(batch.attr("base_hardness_hb"))
-        core_hv = np.where(prior_qt[:, None], core_hv, base_hv[:, None])
-        if not prior_qt.all():
-            base = {"uts_mpa": batch.attr("base_uts_mpa"), "yield_mpa": batch.attr("base_yield_mpa"),
-                    "elongation_pct": batch.attr("base_elongation_pct")}
-            for k, v in base.items():
-                res[k] = np.where(prior_qt, res.get(k, v), v)
-                res["center_" + k] = np.where(prior_qt, res.get("center_" + k, v), v)
-            res["hardness_hv"] = np.where(prior_qt, res.get("hardness_hv", base_hv), base_hv)
-            res["center_hardness_hv"] = np.where(prior_qt, res.get("center_hardness_hv", base_hv), base_hv)
-            if "reduction_area_pct" in res:
-                res["reduction_area_pct"] = np.where(prior_qt, res["reduction_area_pct"], np.nan)
-            if "center_martensite_pct" in res:
-                res["center_martensite_pct"] = np.where(prior_qt, res["center_martensite_pct"], 0.0)
+        tt, th = equivalent_temper(np.where(prior_qt, t_t, temp), np.where(prior_qt, t_h, 1.0),
+                                   temp, hours, el(comp, "C"))
+        aust = np.where(prior_qt, np.asarray(p["austenitize_c"], float), 850.0)
+        res, pos, core_hv = core_profile(batch, prior_qt, p["quench"], p["agitation"], aust, tt, th)
 
         section = batch.section_mm
         depth = (1.0 - pos)[None, :] * section[:, None] / 2.0

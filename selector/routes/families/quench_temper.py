@@ -24,7 +24,8 @@ from ...models import (conversions, correlations, critical_temperatures, structu
                        validity)
 from ...models.composition import el
 from .. import quench_response
-from .base import Batch, RouteFamily, at_position, product_grid, tension_test_position
+from .base import (Batch, RouteFamily, at_position, harden_step, product_grid, temper_steps,
+                   tension_test_position)
 
 TME_RANGE_C = (260.0, 370.0)
 CORRELATION_CLASS = {"carbon_steel": "carbon_steel", "alloy_steel": "alloy_steel",
@@ -210,14 +211,8 @@ class QuenchTemper(RouteFamily):
         return params, warns
 
     def to_steps(self, params):
-        steps = [{"op": "harden", "quench": str(params["quench"])}]
-        if params.get("agitation", "moderate") != "moderate":
-            steps[0]["agitation"] = str(params["agitation"])
-        steps[0]["austenitize_c"] = float(params["austenitize_c"])
-        if np.isfinite(float(params["temper_temp_c"])):
-            steps.append({"op": "temper", "temp_c": float(params["temper_temp_c"]),
-                          "hours": float(params["temper_hours"])})
-        return steps
+        return [harden_step(params["quench"], params.get("agitation", "moderate"), params["austenitize_c"]),
+                *temper_steps(params["temper_temp_c"], params["temper_hours"])]
 
     def grid(self, grade):
         quench = self.choices(grade, "quench_temper", "quench", ("oil",))
