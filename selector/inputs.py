@@ -42,7 +42,7 @@ __all__ = ["MAX_FILE_BYTES", "MAX_TEXT_CHARS", "MAX_NESTING", "MAX_RANGE_VALUES"
            "is_number", "as_float", "number", "integer", "flag", "name", "mapping", "nesting_depth",
            "text_nesting", "check_text", "read_file_bytes", "strip_bom", "decode_text", "byte_position",
            "parse_json", "parse_toml",
-           "range_count", "safe_repr"]
+           "range_count", "range_values", "diameter_list", "safe_repr"]
 
 
 # ----------------------------------------------------------------------------- scalars
@@ -392,3 +392,82 @@ def range_count(start: float, stop: float, step: float, names=("start", "stop", 
         raise InputError(names[2], step, f"a step giving at most {max_values} values from "
                          f"{start:g} to {stop:g} {unit} (this one gives about {safe_repr(span + 1)})")
     return int(math.floor(span + 1e-9)) + 1
+
+
+def range_values(start: float, stop: float, step: float, names=("start", "stop", "step"),
+                 max_values: int = MAX_RANGE_VALUES, unit: str = "mm") -> list[float]:
+    """The values of ``start:stop:step``, both ends included, each rounded to 6 decimals
+    (as ``numpy.round``: half to even), after :func:`range_count` has checked them.
+
+    >>> range_values(20, 30, 2.5)
+    [20.0, 22.5, 25.0, 27.5, 30.0]
+    """
+    n = range_count(start, stop, step, names, max_values=max_values, unit=unit)
+    start, step = float(start), float(step)
+    return [round((start + step * i) * 1e6) / 1e6 for i in range(n)]
+
+
+def diameter_list(text, field: str = "diameters", max_values: int = MAX_RANGE_VALUES, unit: str = "mm",
+                  max_chars: int = 10_000) -> list[float]:
+    """Diameters typed as text, the one parser of the command line and the page:
+    a list ``"20, 25, 30"`` (commas or semicolons) or a range ``"from:to:step"``
+    (both ends included, :func:`range_values`).
+
+    Parameters
+    ----------
+    text : str
+        What the user typed, in ``unit`` (the caller converts display units).
+    field : str
+        The name of the input in an error (``"--diameters"``, ``"Sweep diameters"``).
+    max_values : int
+        Most values, checked before a range is built.
+    unit : str
+        The unit named in an error.
+    max_chars : int
+        Longest text accepted.
+
+    Returns
+    -------
+    list of float
+        In the order typed, each finite and > 0.
+
+    Raises
+    ------
+    InputError
+        Naming ``field``, the value and what is allowed.
+
+    >>> diameter_list("20, 25;30")
+    [20.0, 25.0, 30.0]
+    >>> diameter_list("10:20:5")
+    [10.0, 15.0, 20.0]
+    """
+    allowed = (f"a list '20, 25, 30' or a range 'from:to:step' in {unit} (finite, > 0, at most "
+               f"{max_values} values)")
+    text = check_text(field, text, max_chars=max_chars)
+    if ":" in text:
+        bounds = text.split(":")
+        if len(bounds) != 3:
+            raise InputError(field, text, allowed)
+        try:
+            a, b, step = (float(x) for x in bounds)
+        except ValueError:
+            raise InputError(field, text, allowed) from None
+        try:
+            return range_values(a, b, step, ("from", "to", "step"), max_values=max_values, unit=unit)
+        except InputError as exc:
+            raise InputError(field, text, f"{exc.field}={exc.value!s}: {exc.allowed}") from None
+    parts = [p.strip() for p in text.replace(";", ",").split(",") if p.strip()]
+    if not parts:
+        raise InputError(field, text, allowed)
+    if len(parts) > max_values:
+        raise InputError(field, f"{len(parts)} values", allowed)
+    out = []
+    for p in parts:
+        try:
+            v = float(p)
+        except ValueError:
+            raise InputError(field, p, allowed) from None
+        if not math.isfinite(v) or v <= 0:
+            raise InputError(field, p, allowed)
+        out.append(v)
+    return out

@@ -78,10 +78,10 @@ def diameter_range(start_mm: float, stop_mm: float, step_mm: float) -> np.ndarra
 
     Each must be a finite number > 0 (mm), ``stop_mm >= start_mm``, and the range
     may hold at most :data:`MAX_DIAMETERS` values; this is checked before the range
-    is built (:func:`selector.inputs.range_count`)."""
-    n = inputs.range_count(start_mm, stop_mm, step_mm, ("start_mm", "stop_mm", "step_mm"),
-                           max_values=MAX_DIAMETERS)
-    return np.round(float(start_mm) + float(step_mm) * np.arange(n), 6)
+    is built (:func:`selector.inputs.range_values`; the text form ``"from:to:step"`` is
+    read by :func:`selector.inputs.diameter_list`)."""
+    return np.array(inputs.range_values(start_mm, stop_mm, step_mm, ("start_mm", "stop_mm", "step_mm"),
+                                        max_values=MAX_DIAMETERS), float)
 
 
 def pin_length_mm(shear_planes: int, lug_thickness_mm: float, clevis_thickness_mm: float,
