@@ -79,10 +79,11 @@ import math
 import numpy as np
 
 from ..errors import InputError, check_choice
+from ..models.conversions import N_PER_LBF
 from .. import inputs
 
-#: newtons per pound-force (NIST SP 811, 2008, App. B.9; exact by definition)
-LBF_TO_N = 4.4482216152605
+#: newtons per pound-force (:data:`selector.models.conversions.N_PER_LBF`)
+LBF_TO_N = N_PER_LBF
 
 #: ultimate shear / ultimate tensile strength by material class: (ratio, source, confidence)
 SHEAR_TO_TENSILE = {

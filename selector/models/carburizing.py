@@ -29,7 +29,7 @@ from ..errors import InputError, check_choice
 from . import validity
 from .composition import Composition, el
 from .critical_temperatures import ms_c as _ms_andrews_linear
-from .conversions import hrc_to_hv, hv_to_hrc
+from .conversions import MM_PER_IN, hrc_to_hv, hv_to_hrc
 from .tempering import tempered_hv, tempered_martensite_hv
 from .martensite import martensite_hardness_hrc
 from .hardenability import J1_MM, jominy_hardness_hrc
@@ -296,7 +296,7 @@ def harris_case_depth_mm(temp_c, hours):
     t_k = _kelvin(temp_c, "harris_case_depth_mm")
     h = _nonneg("hours", hours, "harris_case_depth_mm")
     t_r = t_k * 1.8  # Rankine
-    return 25.4 * 31.6 * np.sqrt(h) / 10.0 ** (6700.0 / t_r)
+    return MM_PER_IN * 31.6 * np.sqrt(h) / 10.0 ** (6700.0 / t_r)
 
 
 # --------------------------------------------------- 4. Ms and retained austenite

@@ -31,6 +31,13 @@ ASTM E140-12b, Standard Hardness Conversion Tables for Metals, Table 1 (non-aust
 steels, Rockwell C range) and Table 2 (Rockwell B range).
 ASTM A370, Test Methods and Definitions for Mechanical Testing of Steel Products,
 Table 3 (approximate hardness conversions and tensile strength for non-austenitic steels).
+
+Units of measure
+----------------
+This module is also the one place of the unit constants (ksi, inch, pound-force) and of
+the table that turns an SI value (MPa, mm, °C, kN) into US customary units and back
+(:data:`UNITS`, :func:`to_us_customary`, :func:`from_us_customary`); the page, the
+command line and the design layer use it.  NIST SP 811 (2008), Appendix B.8 and B.9.
 """
 from __future__ import annotations
 
@@ -40,12 +47,11 @@ import numpy as np
 import pandas as pd
 
 from ..catalogue.loader import Column, Schema, read_table
-from ..errors import DataFileError
+from ..errors import DataFileError, check_choice
 from . import validity
 
 REFERENCE = "ASTM E140-12b Table 1"
 FILE = "hardness_conversions.csv"
-KSI_TO_MPA = 6.895
 
 _SCHEMA = Schema((
     Column("table", "choice", choices=("E140_T1", "E140_T2")),
@@ -216,7 +222,7 @@ def hv_to_uts_mpa(hardness_hv):
     """Approximate tensile strength (MPa) from Vickers hardness (ASTM A370 Table 3).
 
     UTS = linear interpolation of the tensile strengths tabulated beside E140
-    hardness values (ksi × 6.895).
+    hardness values (ksi × 6.895, the rounding of ``data/hardness_conversions.csv``).
 
     Parameters
     ----------
@@ -307,3 +313,52 @@ def _register() -> None:
 
 
 _register()
+
+
+# ----------------------------------------------------------------------------- units of measure
+#: MPa in 1 ksi (NIST SP 811, 2008, Appendix B.8, "kip per square inch": 6.894 757 E+00 MPa)
+MPA_PER_KSI = 6.894757
+#: former name of :data:`MPA_PER_KSI` (it held 6.895, the rounding with which the ``uts_mpa``
+#: column of data/hardness_conversions.csv was written from A370 Table 3's ksi)
+KSI_TO_MPA = MPA_PER_KSI
+#: mm in 1 inch, exact by definition (NIST SP 811, 2008, Appendix B.8)
+MM_PER_IN = 25.4
+#: N in 1 pound-force, exact by definition (NIST SP 811, 2008, Appendix B.9)
+N_PER_LBF = 4.4482216152605
+
+#: quantity -> (SI unit, US customary unit, SI value -> US, US value -> SI); SI values are
+#: MPa, mm, °C and kN.  One table instead of a chain of tests on the quantity.
+UNITS = {
+    "stress": ("MPa", "ksi", lambda v: v / MPA_PER_KSI, lambda v: v * MPA_PER_KSI),
+    "length": ("mm", "in", lambda v: v / MM_PER_IN, lambda v: v * MM_PER_IN),
+    "temperature": ("°C", "°F", lambda v: v * 9.0 / 5.0 + 32.0, lambda v: (v - 32.0) * 5.0 / 9.0),
+    "force": ("kN", "lbf", lambda v: v * 1000.0 / N_PER_LBF, lambda v: v * N_PER_LBF / 1000.0),
+}
+
+
+def _unit_row(quantity: str) -> tuple:
+    check_choice("quantity", quantity, tuple(UNITS))
+    return UNITS[quantity]
+
+
+def to_us_customary(value, quantity: str):
+    """An SI value (MPa, mm, °C or kN; scalar or array) in US customary units (ksi, in,
+    °F, lbf).  A scalar gives a float, an array an ndarray.
+
+    >>> round(to_us_customary(100.0, "temperature"), 6)
+    212.0
+    """
+    v = np.asarray(value, float)
+    out = _unit_row(quantity)[2](v)
+    return float(out) if out.ndim == 0 else out
+
+
+def from_us_customary(value, quantity: str):
+    """A value in US customary units (ksi, in, °F or lbf) in SI (MPa, mm, °C, kN).
+
+    >>> from_us_customary(1.0, "length")
+    25.4
+    """
+    v = np.asarray(value, float)
+    out = _unit_row(quantity)[3](v)
+    return float(out) if out.ndim == 0 else out

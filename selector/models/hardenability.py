@@ -59,6 +59,7 @@ from ..catalogue.loader import Column, Schema, read_table
 from ..errors import DataFileError, InputError
 from . import cooling, validity
 from .composition import el
+from .conversions import MM_PER_IN
 from .martensite import ih_hrc, martensite_hardness_hrc
 
 A255 = "ASTM A255-10 §1.3 (calculation method composition limits)"
@@ -234,8 +235,8 @@ def ideal_critical_diameter_in(comp, grain_size_astm=7):
 
 
 def di_mm(comp, grain_size_astm=7):
-    """Ideal critical diameter in mm (25.4 × :func:`ideal_critical_diameter_in`)."""
-    return 25.4 * ideal_critical_diameter_in(comp, grain_size_astm)
+    """Ideal critical diameter in mm (25.4 mm/in × :func:`ideal_critical_diameter_in`)."""
+    return MM_PER_IN * ideal_critical_diameter_in(comp, grain_size_astm)
 
 
 # ----------------------------------------------------------------------------- Jominy
