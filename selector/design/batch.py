@@ -42,8 +42,8 @@ import numpy as np
 import pandas as pd
 
 from ..errors import InputError
-from .parts_list import read_parts
 from ..selection.engine import nearest_misses, select
+from .parts_list import read_parts
 from .pins import NOTICE
 
 #: environment variable naming a dask.distributed scheduler address

@@ -36,13 +36,13 @@ from __future__ import annotations
 
 import numpy as np
 
+from .. import inputs
 from ..catalogue.grades import default_catalogue
 from ..errors import InputError
 from ..models import conversions
 from ..models.correlations import FAMILIES as QT_FAMILIES, yield_from_uts
-from .. import inputs
-from .pins import LBF_TO_N, NOTICE, SHEAR_TO_TENSILE, _FAMILY_CLASS, pin_stresses
 from ..routes.evaluate import evaluate
+from .pins import LBF_TO_N, NOTICE, SHEAR_TO_TENSILE, _FAMILY_CLASS, pin_stresses
 
 _CONTEXT = "pin capacity"
 #: tempering range over which the hardness-only yield is taken at its lowest, °C (common practice)

@@ -47,9 +47,9 @@ import pandas as pd
 
 from ..catalogue.grades import FAMILIES
 from ..errors import DataFileError, InputError, nearest
+from ..rules.cautions import GALVANIC_LIMITS_V, anodic_index
 from ..selection.targets import HARD_FILTERS, NUMERIC_TARGETS, validate_targets
 from . import pins
-from ..rules.cautions import GALVANIC_LIMITS_V, anodic_index
 
 #: largest parts file accepted, bytes (50 MB)
 MAX_PARTS_FILE_BYTES = 50 * 1024 * 1024

@@ -78,9 +78,9 @@ import math
 
 import numpy as np
 
+from .. import inputs
 from ..errors import InputError, check_choice
 from ..models.conversions import N_PER_LBF
-from .. import inputs
 
 #: newtons per pound-force (:data:`selector.models.conversions.N_PER_LBF`)
 LBF_TO_N = N_PER_LBF

@@ -34,13 +34,13 @@ import numpy as np
 import pandas as pd
 
 from .. import inputs
-from ..errors import InputError, check_choice
-from . import pins
-from ..selection.engine import select
 from ..catalogue.grades import FAMILIES
-from ..selection.cost import check_price_sheet
-from ..selection.targets import validate_targets
+from ..errors import InputError, check_choice
 from ..rules.cautions import caution_column, check_context
+from ..selection.cost import check_price_sheet
+from ..selection.engine import select
+from ..selection.targets import validate_targets
+from . import pins
 
 COST_COLUMNS = ("part_cost", "relative_cost")
 

@@ -37,9 +37,9 @@ from dataclasses import dataclass, fields
 import numpy as np
 
 from ..cache import disk_table
+from ..catalogue.loader import CONFIDENCE, Column, Schema, read_table
 from ..errors import DataFileError, InputError, check_choice
 from . import validity
-from ..catalogue.loader import CONFIDENCE, Column, Schema, read_table
 
 R_J = 8.314  # J mol^-1 K^-1
 

@@ -28,11 +28,11 @@ from scipy.special import erf, erfinv
 from ..errors import InputError, check_choice
 from . import validity
 from .composition import Composition, el
-from .critical_temperatures import ms_c as _ms_andrews_linear
 from .conversions import MM_PER_IN, hrc_to_hv, hv_to_hrc
-from .tempering import tempered_hv, tempered_martensite_hv
-from .martensite import martensite_hardness_hrc
+from .critical_temperatures import ms_c as _ms_andrews_linear
 from .hardenability import J1_MM, jominy_hardness_hrc
+from .martensite import martensite_hardness_hrc
+from .tempering import tempered_hv, tempered_martensite_hv
 
 #: gas constant, cal mol^-1 K^-1 (Tibbetts expresses Q in cal/mol)
 R_CAL = 1.987

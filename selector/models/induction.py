@@ -19,11 +19,11 @@ import functools
 
 import numpy as np
 
+from ..catalogue.loader import read_table
 from ..errors import InputError
 from . import validity
-from .martensite import martensite_hardness_hrc
-from ..catalogue.loader import read_table
 from .carburizing import low_temper_hrc
+from .martensite import martensite_hardness_hrc
 
 #: resistivity of a 0.4 %C steel at 900 °C, µΩ·cm, with mu_r = 1 (holooly.com worked example, V)
 HOT_RESISTIVITY_UOHM_CM = 114.6

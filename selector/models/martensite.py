@@ -18,8 +18,8 @@ import functools
 
 import numpy as np
 
-from . import validity
 from ..catalogue.loader import read_table
+from . import validity
 
 REFERENCE = ("ASTM A255 (initial hardness polynomial); J.M. Hodge & M.A. Orehoski, "
              "Trans. AIME 167 (1946) 627")

@@ -21,10 +21,10 @@ import functools
 import numpy as np
 from scipy.special import erfc, erfcinv
 
+from ..catalogue.loader import read_table
 from ..errors import InputError
 from . import validity
 from .composition import Composition, el
-from ..catalogue.loader import read_table
 
 R_J = 8.314  # J mol^-1 K^-1
 

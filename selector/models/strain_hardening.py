@@ -24,9 +24,9 @@ import math
 
 import numpy as np
 
+from ..catalogue.loader import CONFIDENCE, Column, Schema, read_table
 from ..errors import InputError, check_array, check_choice
 from . import validity
-from ..catalogue.loader import CONFIDENCE, Column, Schema, read_table
 
 #: Brown & Sharpe (AWG) gauge ratio per gauge number, 92^(1/39) (ASTM B258 definition)
 BS_GAUGE_RATIO = 92.0 ** (1.0 / 39.0)

@@ -7,13 +7,13 @@ import math
 
 import numpy as np
 
+from .. import inputs
 from ..catalogue import heat
 from ..catalogue.grades import Grade, default_catalogue
 from ..errors import InputError, RouteError, check_choice
 from ..models import conversions, validity
 from . import bands, families, fatigue, steps as steps_mod
 from .families.base import Batch, tension_test_position
-from .. import inputs
 
 STEEL_SCALE_FAMILIES = ("carbon_steel", "alloy_steel", "carburizing_steel", "nitriding_steel",
                         "stainless_martensitic", "stainless_ph", "tool_steel", "maraging_steel")

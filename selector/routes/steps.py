@@ -16,9 +16,9 @@ from __future__ import annotations
 from dataclasses import dataclass
 from typing import Mapping, Sequence
 
-from ..errors import RouteError, check_choice, nearest
 from .. import inputs
 from ..catalogue.supply import CONDITIONS
+from ..errors import RouteError, check_choice, nearest
 
 #: most steps a route may hold (the longest route of any family has 5)
 MAX_STEPS = 12

@@ -89,11 +89,11 @@ from typing import Callable, Mapping
 import numpy as np
 import pandas as pd
 
+from .. import inputs
+from ..catalogue.grades import default_catalogue
 from ..catalogue.loader import CONFIDENCE, Column, Schema, read_table
 from ..errors import DataFileError, InputError, UnknownGradeError, check_choice, nearest
 from ..models import conversions
-from ..catalogue.grades import default_catalogue
-from .. import inputs
 
 CAUTIONS_FILE = "cautions.csv"
 GALVANIC_FILE = "galvanic_series.csv"

@@ -12,10 +12,10 @@ import math
 import numpy as np
 import pandas as pd
 
+from .. import inputs
 from ..catalogue.grades import default_catalogue
 from ..catalogue.loader import CONFIDENCE, Column, Schema, parse_text, decode_bytes, read_table
 from ..errors import DataFileError, InputError
-from .. import inputs
 
 ROUTE_COST_SCHEMA = Schema((Column("route"), Column("adder_per_kg", "float", lo=0, hi=1000),
                             Column("source"), Column("confidence", "choice", choices=CONFIDENCE)))

@@ -37,9 +37,9 @@ from typing import Mapping, Sequence
 import numpy as np
 import pandas as pd
 
+from .. import inputs
 from ..catalogue.grades import FAMILIES
 from ..errors import DataFileError, InputError, check_choice, check_number
-from .. import inputs
 
 __all__ = ["TARGET_KEYS", "NUMERIC_TARGETS", "HARD_FILTERS", "validate_targets", "targets_from_toml",
            "meets", "margins", "shortfalls"]

@@ -45,10 +45,10 @@ import pandas as pd
 from ..catalogue.grades import default_catalogue
 from ..catalogue.loader import CONFIDENCE, Column, Schema, data_dir, read_file
 from ..errors import NotModelledError, SelectorError, UnknownGradeError
-from . import calibration
-from ..routes.families.base import RouteFamily
 from ..models.hardenability import jominy_curve_hrc
 from ..routes.evaluate import evaluate
+from ..routes.families.base import RouteFamily
+from . import calibration
 from .thresholds import HEADROOM_NOTE, THRESHOLDS
 
 #: defaults used where a reference row leaves a treatment condition blank

@@ -27,8 +27,8 @@ import numpy as np
 from ...errors import RouteError
 from ...models import carburizing, conversions, validity
 from ...models.composition import el
-from .base import Batch, RouteFamily, at_position, harden_step, product_grid, temper_steps
 from .. import quench_response
+from .base import Batch, RouteFamily, at_position, harden_step, product_grid, temper_steps
 from .quench_temper import default_austenitize_c, through_harden
 
 ROUTE = "carburize"

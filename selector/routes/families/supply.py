@@ -40,9 +40,9 @@ from ...catalogue.grades import FAMILIES as FAMILIES_ALL
 from ...errors import NotModelledError, RouteError
 from ...models import conversions, stress_relief, validity
 from .. import bands
-from .cold_work import stress_relief_steps
-from .base import Batch, RouteFamily
 from . import get
+from .base import Batch, RouteFamily
+from .cold_work import stress_relief_steps
 
 STEEL_SCALE = ("carbon_steel", "alloy_steel", "carburizing_steel", "nitriding_steel", "stainless_martensitic",
                "stainless_ph", "tool_steel", "maraging_steel")
