@@ -129,14 +129,12 @@ def test_local_cluster_with_two_worker_processes_gives_the_same_result(result):
 
 
 def test_engine_rank_and_p_meet_are_followed_when_present(monkeypatch):
-    from selector.selection import engine
-
     def fake_select(targets, d, **kw):
         return pd.DataFrame({"grade": ["A", "B", "C"], "route_text": ["a", "b", "c"], "robust": [True] * 3,
                              "part_cost": [1.0, 2.0, 3.0], "mass_kg": [1.0] * 3, "relative_cost": [1.0] * 3,
                              "rank": [3, 1, 2], "p_meet": [0.5, 0.99, 0.9]})
 
-    monkeypatch.setattr(engine, "select", fake_select)
+    monkeypatch.setattr(batch_mod, "select", fake_select)      # the name the batch module calls
     res = batch_mod.section_candidates(25.0, None, [{"order": 0, "part_id": "x", "length_mm": 500.0,
                                                      "quantity_per_year": 2, "targets": {}, "service": {}}], top=2)
     assert list(res["grade"]) == ["B", "C"] and list(res["rank"]) == [1, 2]
