@@ -5,7 +5,7 @@ targets, pin load case), and the readers of step, heat and diameter texts.
 Only reading and checking of the command line lives here; the verbs call the library.
 The library is imported inside the readers that need it (price sheets, targets files,
 the diameter range): building the parser for ``selector --help`` or ``selector grades``
-then costs no model import (about 1.5 s of CPU on the shared machine).
+then costs no model import (see :mod:`selector.views.cli`).
 """
 from __future__ import annotations
 

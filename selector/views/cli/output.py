@@ -10,7 +10,6 @@ from typing import Sequence
 import pandas as pd
 
 from ... import CAUTION
-from ..columns import all_columns_view, column_descriptions, default_view
 from ..export import to_csv_text
 from ..notice import CAUTION_LINES
 from ..units import hardness_scale
@@ -69,6 +68,10 @@ def emit(df: pd.DataFrame, args, title: str = "", lead: Sequence[str] = (), extr
     (:func:`selector.views.columns.default_view`; with ``--all-columns``,
     :func:`~selector.views.columns.all_columns_view`) in ``args.format``.  ``lead`` /
     ``extra``: columns particular to the verb, shown before / after the default ones."""
+    # imported here, not at the top: the columns bring the route chain (scipy.stats through the
+    # fatigue model, about 1 s of CPU) that --help, grades and validate do not need
+    from ..columns import all_columns_view, column_descriptions, default_view
+
     system, scale = view_of(args)
     view = (all_columns_view if getattr(args, "all_columns", False) else default_view)(
         df, system, scale, lead=lead, extra=extra)
