@@ -1,0 +1,89 @@
+"""Baseline (annealed or supplied) properties of catalogue grades: their own source and confidence
+(``base_source`` / ``base_confidence`` of data/grades.csv) and a check against the tables read.
+
+Each expected value below is typed from the named reproduction, not from data/grades.csv.
+"""
+import pytest
+
+from selector.catalogue.grades import GRADES_SCHEMA, grade
+from selector.catalogue.loader import data_dir, read_file
+
+KSI = 6.894757
+
+# (tensile MPa, yield MPa, elongation %, HB) as printed in the source; tolerance: the sources print MPa
+# to 1 MPa or ksi to 1 ksi (0.5 ksi = 3.4 MPa), elongation to 0.1 %, HB to 1
+READ = {
+    # azom.com ArticleID 6743 and theworldmaterial.com: AISI 5160 annealed at 815 degC
+    "5160": ((724, 275, 17.2, 197), 1.0),
+    # azom.com ArticleID 6733: AISI E9310 annealed
+    "9310": ((820, 450, 17.3, 241), 1.0),
+    # azom.com ArticleID 6744: AISI 6150 (annealed)
+    "6150": ((670, 415, 23.0, 197), 1.0),
+    # theworldmaterial.com: AISI 1095 annealed at 790 degC
+    "1095": ((655, 380, 13.0, 192), 1.0),
+    # efunda.com: AISI 1340 annealed at 800 degC 703.3 / 436.4 MPa, 25.5 %; HB 207 in the Shigley appendix copy
+    "1340": ((703.3, 436.4, 25.5, 207), 1.0),
+    # efunda.com: AISI 4140 annealed at 815 degC 655.0 / 417.1 MPa, 25.7 %; HB 197 in the Shigley appendix copy
+    "4140": ((655.0, 417.1, 25.7, 197), 1.0),
+    # asm.matweb.com M434AA: AISI 4340 annealed, 25 mm round
+    "4340": ((745, 470, 22.0, 217), 1.0),
+    # Shigley appendix table (scribd 403205949): AISI 4130 annealed 558 MPa / 359 MPa / 28 % / 156 HB
+    "4130": ((558, 359, 28.0, 156), 1.0),
+    # Aluminum Association typical properties (Kutz, Handbook of Materials Selection, Table 5), ksi
+    "1100": ((13 * KSI, 5 * KSI, 35, 23), 3.5),
+    "2011": ((55 * KSI, 43 * KSI, 15, 95), 3.5),
+    "2014": ((27 * KSI, 14 * KSI, 18, 45), 3.5),
+    "2024": ((27 * KSI, 11 * KSI, 20, 47), 3.5),
+    "3003": ((16 * KSI, 6 * KSI, 30, 28), 3.5),
+}
+
+
+def _grades():
+    return read_file(data_dir() / "grades.csv", GRADES_SCHEMA)
+
+
+@pytest.mark.parametrize("grade_id", sorted(READ))
+def test_baseline_matches_the_table_read(grade_id):
+    (uts, ys, el, hb), tol_mpa = READ[grade_id]
+    g = grade(grade_id)
+    assert g.base_uts_mpa == pytest.approx(uts, abs=tol_mpa)
+    assert g.base_yield_mpa == pytest.approx(ys, abs=tol_mpa)
+    assert g.base_elongation_pct == pytest.approx(el, abs=0.1)
+    assert g.base_hardness_hb == pytest.approx(hb, abs=1)
+
+
+def test_every_builtin_row_tags_its_baseline():
+    t = _grades()
+    assert (t["base_source"].str.strip() != "").all()
+    assert (t["base_confidence"].str.strip() != "").all()
+    verified = t["base_confidence"] == "verified"
+    # a verified baseline names what was read, and the table above checks it
+    assert t.loc[verified, "base_source"].str.contains("reproduc|published|read|row of", case=False).all()
+    assert set(t.loc[verified, "id"]) <= set(READ)
+
+
+def test_a_row_without_the_baseline_columns_still_loads(tmp_path):
+    # the columns are optional for a user's custom grade file (selector.studies.load_custom_grades)
+    from selector.catalogue.loader import parse_text
+    src = (data_dir() / "grades.csv").read_text(encoding="utf-8").splitlines()
+    body = [ln for ln in src if not ln.startswith("#")]
+    header = body[0].split(",")
+    keep = [i for i, h in enumerate(header) if h not in ("base_source", "base_confidence")]
+    assert len(keep) == len(header) - 2
+    import csv
+    import io
+    rows = list(csv.reader(io.StringIO("\n".join(body[:2]))))
+    text = "\n".join(",".join(f'"{r[i]}"' for i in keep) for r in rows)
+    df = parse_text(text, "custom.csv", GRADES_SCHEMA)
+    assert len(df) == 1
+
+
+@pytest.mark.xfail(strict=True, reason=(
+    "issue 18 target not met: 13 of 103 baseline rows (13 %) are verified; the rest are tagged honestly "
+    "(from memory, or partial where some values were read).  It passes when >= 80 % are read in a handbook "
+    "table or product standard reproduction (ASM annealed-bar tables, AA typical properties, ASTM B/AMS "
+    "minimums)"))
+def test_at_least_80_percent_of_baseline_rows_are_verified():
+    t = _grades()
+    verified = t["base_confidence"] == "verified"
+    assert verified.mean() >= 0.80, f"{verified.sum()} of {len(t)} baseline rows verified"
