@@ -29,6 +29,14 @@ READ = {
     "4340": ((745, 470, 22.0, 217), 1.0),
     # Shigley appendix table (scribd 403205949): AISI 4130 annealed 558 MPa / 359 MPa / 28 % / 156 HB
     "4130": ((558, 359, 28.0, 156), 1.0),
+    # azom.com ArticleID 6766 (and sheetsplates.com): AISI 8740 annealed
+    "8740": ((695, 415, 22.2, 201), 1.0),
+    # simplycommodities.com copy of the azom.com AISI 4320 article: annealed; efunda copy at searchsteel.info 579.2 MPa
+    "4320": ((580, 425, 29.0, 163), 1.0),
+    # azom.com ArticleID 6764: AISI 4620 annealed
+    "4620": ((510, 370, 31.3, 149), 1.0),
+    # scribd.com/document/501088711: "AISI 5140 Steel, annealed 830 degC"
+    "5140": ((570, 295, 28.6, 167), 1.0),
     # Aluminum Association typical properties (Kutz, Handbook of Materials Selection, Table 5), ksi
     "1100": ((13 * KSI, 5 * KSI, 35, 23), 3.5),
     "2011": ((55 * KSI, 43 * KSI, 15, 95), 3.5),
