@@ -48,6 +48,13 @@ READ = {
     "7075": ((228, 103, 17, 60), 1.0),
     "5083": ((290, 145, 22, None), 1.0),
     "6061": ((124, 55.2, 25, 30), 1.0),
+    # ASM Material Data Sheets (asm.matweb.com): MTP641 Ti-6Al-4V annealed (copy at scribd 492878761), MQ316J 316 annealed
+    # bar, 'AISI Type 303 Stainless Steel, annealed bar' (copy at elginfasteners.com), 'AISI Type 304 Stainless Steel'
+    # (copy at scribd 416534641)
+    "Ti-6Al-4V": ((950, 880, 14, 334), 1.0),
+    "316": ((550, 240, 60, 149), 1.0),
+    "303": ((620, 240, 50, 160), 1.0),
+    "304": ((505, 215, 70, 123), 1.0),
     # Aluminum Association typical properties (Kutz, Handbook of Materials Selection, Table 5), ksi
     "1100": ((13 * KSI, 5 * KSI, 35, 23), 3.5),
     "2011": ((55 * KSI, 43 * KSI, 15, 95), 3.5),
