@@ -55,6 +55,13 @@ READ = {
     "316": ((550, 240, 60, 149), 1.0),
     "303": ((620, 240, 50, 160), 1.0),
     "304": ((505, 215, 70, 123), 1.0),
+    # ASM Material Data Sheets: MTP643 Ti-6Al-4V ELI annealed; MTU021 Titanium Grade 2 annealed (98 HRB, no Brinell value)
+    "Ti-6Al-4V-ELI": ((860, 790, 15, 326), 1.0),
+    "Ti-Gr2": ((430, 340, 28, None), 1.0),
+    # btimetals.com C51000 table, OS035 row: 49 ksi / 340 MPa, 20 ksi / 140 MPa, 58 %, 28 HRB (no Brinell value)
+    "C51000": ((340, 140, 58, None), 1.0),
+    # aircraftmaterials.com grade 431 data sheet, annealed
+    "431": ((862, 655, 20, 260), 1.0),
     # Aluminum Association typical properties (Kutz, Handbook of Materials Selection, Table 5), ksi
     "1100": ((13 * KSI, 5 * KSI, 35, 23), 3.5),
     "2011": ((55 * KSI, 43 * KSI, 15, 95), 3.5),
