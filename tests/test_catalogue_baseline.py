@@ -62,6 +62,14 @@ READ = {
     "C51000": ((340, 140, 58, None), 1.0),
     # aircraftmaterials.com grade 431 data sheet, annealed
     "431": ((862, 655, 20, 260), 1.0),
+    # ASM Material Data Sheet 'AISI Type 304L Stainless Steel' (MQ304L): 82 HRB, no Brinell value
+    "304L": ((564, 210, 58, None), 1.0),
+    # metalmartusa.com grade T416 data sheet, annealed: 75 / 40 ksi, 30 %, 155 HB
+    "416": ((75 * KSI, 40 * KSI, 30, 155), 1.0),
+    # ASTM B505 continuous castings, specified minimums (ksi) as reproduced at bronzebearingsinc.com (C95400, 170 HB
+    # typical) and dura-barms.com (C93200, no Brinell requirement)
+    "C95400": ((85 * KSI, 32 * KSI, 12, 170), 1.0),
+    "C93200": ((35 * KSI, 20 * KSI, 10, None), 1.0),
     # Aluminum Association typical properties (Kutz, Handbook of Materials Selection, Table 5), ksi
     "1100": ((13 * KSI, 5 * KSI, 35, 23), 3.5),
     "2011": ((55 * KSI, 43 * KSI, 15, 95), 3.5),
