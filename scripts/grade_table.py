@@ -28,13 +28,20 @@ def shares() -> dict:
     """Share of rows tagged ``verified`` in the composition, grade and supply tables."""
     d = data_dir()
     out = {}
-    for name, path, schema in (("composition rows", d / "compositions.csv", COMPOSITION_SCHEMA),
-                               ("grade rows (baseline properties)", d / "grades.csv", GRADES_SCHEMA),
-                               ("supply-condition rows", d / "supply_conditions.csv", SUPPLY_SCHEMA)):
+    for name, path, schema, col in (
+            ("composition rows", d / "compositions.csv", COMPOSITION_SCHEMA, "confidence"),
+            ("baseline property rows (grades.csv base_confidence)", d / "grades.csv", GRADES_SCHEMA, "base_confidence"),
+            ("grade rows (whole row, with the indicative price)", d / "grades.csv", GRADES_SCHEMA, "confidence"),
+            ("supply-condition rows", d / "supply_conditions.csv", SUPPLY_SCHEMA, "confidence")):
         t = read_file(path, schema)
-        c = Counter(t["confidence"])
+        c = Counter(t[col])
         out[name] = (c.get("verified", 0), len(t), dict(c))
     return out
+
+
+def _base_confidence() -> dict:
+    t = read_file(data_dir() / "grades.csv", GRADES_SCHEMA)
+    return dict(zip(t["id"], t["base_confidence"]))
 
 
 def _cell(s: str) -> str:
@@ -54,9 +61,10 @@ def render() -> str:
         "and licensed engineering review decide.",
         "",
         "Confidence: `verified` = read in the standard or a faithful reproduction (named in the row's source);",
-        "`partial`; `from memory` = recalled, check before release; `common practice`.  The grade row's",
-        "confidence is the weakest of what it relies on (its baseline properties and its indicative price, which",
-        "is common practice at best), so no grade row is `verified`.",
+        "`partial`; `from memory` = recalled, check before release; `common practice`.  The baseline properties",
+        "(annealed or supplied condition) carry their own source and confidence (`base_source`, `base_confidence`);",
+        "the grade row's confidence is the weakest of what it relies on (its baseline properties and its indicative",
+        "price, which is common practice at best), so no grade row as a whole is `verified`.",
         "",
         "## Verified shares",
         "",
@@ -68,8 +76,9 @@ def render() -> str:
         lines.append(f"| {name} | {v} | {n} | {100.0 * v / n:.1f} % | {tags} |")
     lines += ["", f"## Grades ({len(cat.grades)})", "",
               "| id | name | family | UNS | EN | JIS | governing standard (composition) | composition rows verified | "
-              "grade row | supply conditions |",
-              "|---|---|---|---|---|---|---|---|---|---|"]
+              "baseline properties | grade row | supply conditions |",
+              "|---|---|---|---|---|---|---|---|---|---|---|"]
+    base = _base_confidence()
     for g in sorted(cat.grades.values(), key=lambda g: (g.family, g.id)):
         sub = comps[comps["grade"] == g.id]
         nv = int((sub["confidence"] == "verified").sum())
@@ -77,7 +86,7 @@ def render() -> str:
         conds = sorted({c for c, _ in conditions_for(g)})
         lines.append("| " + " | ".join(_cell(x) for x in (
             g.id, g.name, g.family, g.designations["uns"], en, g.designations["jis"], g.standard,
-            f"{nv} of {len(sub)}", g.confidence, ", ".join(CONDITIONS[c] for c in conds) or "-")) + " |")
+            f"{nv} of {len(sub)}", base.get(g.id, "") or "-", g.confidence, ", ".join(CONDITIONS[c] for c in conds) or "-")) + " |")
     lines.append("")
     return "\n".join(lines)
 

@@ -61,14 +61,13 @@ def csv_files(data_dir: Path = DATA_DIR) -> list[Path]:
 
 
 def sources_by_file(data_dir: Path = DATA_DIR) -> dict[str, list[str]]:
-    """Distinct non-empty ``source`` strings per table (relative path -> sorted list)."""
+    """Distinct non-empty ``source`` strings per table (relative path -> sorted list); a table's other
+    ``*_source`` columns (``base_source`` of grades.csv) count as sources too."""
     out = {}
     for path in csv_files(data_dir):
         header, rows = read_rows(path)
-        if "source" not in header:
-            out[path.relative_to(data_dir).as_posix()] = []
-            continue
-        out[path.relative_to(data_dir).as_posix()] = sorted({r["source"] for _, r in rows if r["source"]})
+        cols = [h for h in header if h == "source" or h.endswith("_source")]
+        out[path.relative_to(data_dir).as_posix()] = sorted({r[c] for _, r in rows for c in cols if r[c]})
     return out
 
 

@@ -61,6 +61,10 @@ GRADES_SCHEMA = Schema((
     Column("relative_price", "float", lo=0.01, hi=1000), Column("corrosion_resistant", "bool"),
     Column("austenitize_c", "float", lo=700, hi=1250, allow_blank=True), Column("routes"),
     Column("source"), Column("confidence", "choice", choices=CONFIDENCE),
+    # where the baseline (base_*) properties were read and their own confidence; optional so that a user's
+    # custom grade file without them stays valid (the built-in file carries them on every row)
+    Column("base_source", required=False, allow_blank=True),
+    Column("base_confidence", "choice", choices=CONFIDENCE, required=False, allow_blank=True),
 ), row_check=_check_grade_row)
 
 

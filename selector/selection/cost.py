@@ -2,7 +2,10 @@
 user's price sheet.
 
 Prices are *relative* (1018 cold-drawn bar = 1.0 per kg) and indicative only; a
-price sheet loaded by the user overrides the catalogue's values.
+price sheet loaded by the user overrides the catalogue's values.  A route's adder
+may depend on the grade's family (``families`` column of ``data/route_costs.csv``:
+the in-house cold work of steel bar is costed as a small-lot drawing operation, the
+cold tempers of copper and aluminium as a mill temper premium); see docs/cost.md.
 """
 from __future__ import annotations
 
@@ -17,8 +20,19 @@ from ..catalogue.grades import default_catalogue
 from ..catalogue.loader import CONFIDENCE, Column, Schema, parse_text, decode_bytes, read_table
 from ..errors import DataFileError, InputError
 
-ROUTE_COST_SCHEMA = Schema((Column("route"), Column("adder_per_kg", "float", lo=0, hi=1000),
-                            Column("source"), Column("confidence", "choice", choices=CONFIDENCE)))
+def _check_cost_families(row):
+    from ..catalogue.grades import FAMILIES
+
+    bad = [f for f in str(row.get("families") or "").split(";") if f.strip() and f.strip() not in FAMILIES]
+    if bad:
+        return ("families", f"{bad[0]!r} is not a grade family; allowed: {', '.join(FAMILIES)}")
+    return None
+
+
+ROUTE_COST_SCHEMA = Schema((Column("route"), Column("families", required=False, allow_blank=True),
+                            Column("adder_per_kg", "float", lo=0, hi=1000),
+                            Column("source"), Column("confidence", "choice", choices=CONFIDENCE)),
+                           row_check=_check_cost_families)
 
 #: a user's price sheet: grade (any designation) and relative price per kg
 PRICE_SHEET_SCHEMA = Schema((Column("grade"), Column("relative_price", "float", lo=0.001, hi=1e5),
@@ -26,9 +40,23 @@ PRICE_SHEET_SCHEMA = Schema((Column("grade"), Column("relative_price", "float", 
 
 
 @functools.cache
-def route_adders() -> dict:
+def _route_cost_rows() -> tuple:
     t = read_table("route_costs.csv", ROUTE_COST_SCHEMA)
-    return dict(zip(t["route"], t["adder_per_kg"].astype(float)))
+    fams = t["families"].fillna("") if "families" in t else [""] * len(t)
+    return tuple((r, tuple(f.strip() for f in str(fs).split(";") if f.strip()), float(a))
+                 for r, fs, a in zip(t["route"], fams, t["adder_per_kg"]))
+
+
+@functools.cache
+def route_adders() -> dict:
+    """``{route: adder per kg}``: the adder of each route for a family not named on a row of its own."""
+    return {r: a for r, fams, a in _route_cost_rows() if not fams}
+
+
+@functools.cache
+def family_adders() -> dict:
+    """``{(route, family): adder per kg}`` of the rows that name grade families."""
+    return {(r, f): a for r, fams, a in _route_cost_rows() for f in fams}
 
 
 def parse_price_sheet(data: bytes | str, name: str = "price sheet") -> dict:
@@ -103,11 +131,20 @@ def part_mass_kg(density_g_cm3, diameter_mm=None, thickness_mm=None, length_mm=1
     return dens * math.pi / 4 * diameter_mm ** 2 * length_mm
 
 
-def relative_cost_per_kg(price_per_kg: np.ndarray, routes: np.ndarray) -> np.ndarray:
+def relative_cost_per_kg(price_per_kg: np.ndarray, routes: np.ndarray, families: np.ndarray | None = None
+                         ) -> np.ndarray:
+    """Relative cost per kg: the price per kg plus the adder of the route (of the route and the
+    grade's family where ``data/route_costs.csv`` names it)."""
     add = route_adders()
-    codes, uniq = pd.factorize(np.asarray(routes, dtype=object))     # a few routes, many states
-    adders = np.array([add.get(r, np.nan) for r in uniq], float)[codes]
+    rcodes, runiq = pd.factorize(np.asarray(routes, dtype=object))     # a few routes, many states
+    if families is None:
+        adders = np.array([add.get(r, np.nan) for r in runiq], float)[rcodes]
+    else:
+        fam = family_adders()
+        fcodes, funiq = pd.factorize(np.asarray(families, dtype=object))
+        table = np.array([[fam.get((r, f), add.get(r, np.nan)) for f in funiq] for r in runiq], float)
+        adders = table.reshape(len(runiq), len(funiq))[rcodes, fcodes]
     if np.isnan(adders).any():
-        missing = sorted({r for r, a in zip(routes, adders) if a != a})
+        missing = sorted({r for r, a in zip(np.asarray(routes, dtype=object), adders) if a != a})
         raise InputError("route", missing[0], f"a route with a cost adder in data/route_costs.csv ({', '.join(add)})")
     return np.asarray(price_per_kg, float) + adders

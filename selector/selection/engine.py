@@ -121,7 +121,7 @@ def costed(states: pd.DataFrame, length_mm: float = 100.0, price_sheet: dict | N
             m = (df["grade"] == gid).to_numpy()
             price[m] = p
             src[m] = "price sheet"
-    df["relative_cost"] = cost_mod.relative_cost_per_kg(price, df["route"].to_numpy())
+    df["relative_cost"] = cost_mod.relative_cost_per_kg(price, df["route"].to_numpy(), df["family"].to_numpy())
     mass = cost_mod.part_mass_kg(df["density_g_cm3"].to_numpy(float), diameter_mm, thickness_mm, length_mm)
     df["mass_kg"] = mass
     df["part_cost"] = df["relative_cost"] * mass
@@ -790,7 +790,8 @@ def alternatives(grade, route, diameter_mm: float = 25.0, *, thickness_mm: float
     ref = evaluate(grade, route, diameter_mm=diameter_mm, thickness_mm=thickness_mm)
     g = default_catalogue().lookup(grade)
     price = prices.get(g.id, g.relative_price)
-    ref_cost = float(cost_mod.relative_cost_per_kg(np.array([price]), np.array([ref["route_family"]]))[0])
+    ref_cost = float(cost_mod.relative_cost_per_kg(np.array([price]), np.array([ref["route_family"]]),
+                                                np.array([g.family]))[0])
     if ref.get("yield_mpa") is not None and ref.get("uts_mpa") is not None:
         basis = "strength"
         t = {"min_yield_mpa": ref["yield_mpa"], "min_uts_mpa": ref["uts_mpa"]}
