@@ -150,7 +150,6 @@ def test_high_surface_carbon_flag():
 def test_validity_registered():
     assert validity.check("carbon_diffusivity", temp_c=1050.0)
     assert not validity.check("carbon_diffusivity", temp_c=925.0, carbon_pct=0.8)
-    assert validity.check("harris_case_depth", temp_c=800.0)
 
 
 # ------------------------------------------------------------- case hardness

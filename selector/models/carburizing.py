@@ -48,8 +48,10 @@ validity.register("carbon_diffusivity", {"temp_c": (850.0, 1000.0, "°C"),
 validity.register("carbon_profile", {"temp_c": (850.0, 1000.0, "°C"),
                                      "surface_carbon_pct": (0.6, 1.2, "wt%"),
                                      "core_carbon_pct": (0.05, 0.30, "wt%")}, REF_CRANK)
-# Harris's table covers 1550–1800 °F (843–982 °C).
-validity.register("harris_case_depth", {"temp_c": (843.0, 982.0, "°C")}, REF_HARRIS)
+#: Harris's table covers 1550–1800 °F (843–982 °C).  Not registered with validity: no route
+#: uses the Harris formula (the case depth is the diffusion model's); it is a cross-check only
+#: (scripts/check_case_depth.py, tests/test_carburizing.py).
+HARRIS_RANGE_C = (843.0, 982.0)
 # Andrews's data set covers C below about 0.6 % (the linear form is registered as
 # "andrews_ms" by critical_temperatures); a carburized case extrapolates both forms.
 validity.register("andrews_ms_product", {"C": (0.1, 0.6, "wt%")},
@@ -280,7 +282,7 @@ def harris_case_depth_mm(temp_c, hours):
 
     Validity
     --------
-    843–982 °C (``harris_case_depth``); the surface is assumed saturated in carbon
+    843–982 °C (:data:`HARRIS_RANGE_C`); the surface is assumed saturated in carbon
     (austenite at Acm).  A leaner carbon potential gives a shallower case.
 
     References

@@ -303,7 +303,7 @@ def _register() -> None:
         "hardness_hv": (float(hv_hb[0]), float(hv_hrc[-1]), "HV"),
         "hardness_hb": (float(hb[0]), float(hb[-1]), "HB"),
         "uts_mpa": (float(uts[0]), float(uts[-1]), "MPa"),
-    }, "ASTM E140-12b Table 1")
+    }, "ASTM E140-12b Table 1", beyond="no converted value is given outside the table")
 
 
 _register()

@@ -90,7 +90,8 @@ validity.register("marin_size", {"diameter_mm": (None, 254.0, "mm")},
 validity.register("marin_temperature", {"temp_c": (None, 538.0, "°C")},
                   "Budynas & Nisbett (2015) eq. 6-27: 70–1000 °F")
 validity.register("murakami_2002", {"hardness_hv": (None, MURAKAMI_MAX_HV, "HV")},
-                  "Murakami (2002): sigma_w = 1.6 HV for defect-free steels up to about 400 HV")
+                  "Murakami (2002): sigma_w = 1.6 HV for defect-free steels up to about 400 HV",
+                  beyond="no estimate is given above it")
 
 _SURF = Schema((Column("finish", "choice", choices=FINISHES), Column("a_mpa", "float", lo=0.1, hi=1000),
                 Column("b", "float", lo=-2, hi=0), Column("source"),

@@ -42,6 +42,13 @@ import numpy as np
 from ..catalogue.loader import Column, Schema, read_table
 from ..models import conversions
 from ..models import fatigue as fm
+from .model_inputs import uses
+
+#: the model inputs of the fatigue stage, every route alike (checked by ``routes.evaluate``: the
+#: section and service temperature against the Marin factors, the hardness against Murakami's
+#: estimate of a polished steel, which is not given above its range)
+MODEL_INPUTS = (uses("marin_size", diameter_mm="section_mm") + uses("marin_temperature", "temp_c")
+                + uses("murakami_2002", "hardness_hv"))
 
 CASE_ROUTES = ("carburize", "nitride", "induction")
 STEEL_FAMILIES = ("carbon_steel", "alloy_steel", "carburizing_steel", "nitriding_steel",

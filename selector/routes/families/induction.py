@@ -22,11 +22,12 @@ from __future__ import annotations
 
 import numpy as np
 
-from ...models import conversions, induction, validity
+from ...models import conversions, induction
 from ...models.composition import el
 from .base import Batch, RouteFamily, product_grid
 from .carburize import merged_positions, resample
-from .quench_temper import default_austenitize_c, through_harden
+from ..model_inputs import restrict, uses
+from .quench_temper import CORE_INPUTS, default_austenitize_c, through_harden
 
 ROUTE = "induction"
 PRIORS = ("quench_temper", "normalize", "none")
@@ -46,6 +47,11 @@ class Induction(RouteFamily):
                   "prior_quench", "prior_agitation", "prior_austenitize_c", "prior_temper_temp_c",
                   "prior_temper_hours")
     families = ("carbon_steel", "alloy_steel")
+    #: the prior harden-and-temper core (where the prior is quench_temper) and the hardened layer
+    model_inputs = (CORE_INPUTS + uses("induction_surface_hardness", "temper_temp_c", c_pct="C")
+                    + uses("induction_frequency_table", hardened_depth_mm="case_depth_mm")
+                    + uses("astm_e140", hardness_hrc="surface_hrc")
+                    + uses("astm_e140", hardness_hb="base_hardness_hb", where="annealed_core"))
     references = (
         "electromagnetic reference depth delta = 503 sqrt(rho/(mu_r f)) (V. Rudnev et al., ASM Handbook "
         "Vol. 4C (2014), principles of induction hardening)",
@@ -143,11 +149,12 @@ class Induction(RouteFamily):
                                  np.where(prior_qt, np.asarray(p["prior_austenitize_c"], float), 850.0),
                                  np.where(prior_qt, pt_t, 600.0),
                                  np.where(prior_qt, np.asarray(p["prior_temper_hours"], float), 2.0))
+            restrict(res, "core", prior_qt)      # the other states ran with placeholders
             core_pos = np.asarray(res["profile_positions"], float)
             pos = merged_positions(core_pos)
             core_hv = resample(res["profile_hv"], core_pos, pos)
         else:
-            res = {}
+            res = {"model_inputs": {"core": np.zeros(n, bool)}}
             pos = merged_positions(np.linspace(1.0, 0.0, 11))
             core_hv = np.zeros((n, len(pos)))
         base_hv = conversions.hb_to_hv(batch.attr("base_hardness_hb"))
@@ -193,7 +200,10 @@ class Induction(RouteFamily):
         hrc_q = induction.surface_hardness_hrc(c)
         hrc_t = induction.surface_hardness_hrc(c, np.where(tempered, t_t, 150.0), np.where(tempered, t_h, 1.0),
                                                comp)
-        surf_hv = conversions.hrc_to_hv(np.where(tempered, hrc_t, hrc_q))
+        surf_hrc = np.where(tempered, hrc_t, hrc_q)
+        surf_hv = conversions.hrc_to_hv(surf_hrc)
+        res["model_inputs"].update(surface_hrc=surf_hrc, annealed_core=~prior_qt & ~prior_norm,
+                                   base_hardness_hb=batch.attr("base_hardness_hb"))
         section = batch.section_mm
         depth = (1.0 - pos)[None, :] * section[:, None] / 2.0
         in_case = depth <= depth_case[:, None] + 1e-9
@@ -216,8 +226,7 @@ class Induction(RouteFamily):
                       np.ones(n, bool)))
         notes.append(("frequency outside the range usually chosen for this hardened depth (ASM Handbook "
                       "Vol. 4; Semiatin & Stutz 1986; from memory)", f_ok & ((freq < lo) | (freq > hi))))
-        notes.append(("hardened depth outside 0.4–10 mm, the range of the frequency practice table",
-                      (depth_case < 0.4) | (depth_case > 10.0)))
+        # hardened depth outside the frequency practice table: model_inputs, checked by finish()
         notes.append(("hardened depth over a quarter of the section: close to through-hardening; residual "
                       "stresses and cracking risk differ from a surface layer (common practice)",
                       depth_case > section / 4.0))
@@ -227,11 +236,6 @@ class Induction(RouteFamily):
                       ~tempered))
         notes.append(("carbon below 0.30 %: the surface hardness reached by induction hardening is low "
                       "(common practice: 0.35–0.55 %C grades)", c < 0.30))
-        mask = validity.out_of_range_mask("induction_surface_hardness", c_pct=c,
-                                          temper_temp_c=np.where(tempered, t_t, 180.0))
-        if mask.any():
-            notes.append(("outside the validity range of induction_surface_hardness "
-                          f"({validity.get('induction_surface_hardness').reference}): extrapolated", mask))
         qw = res.pop("quench_warnings", [])
         if n == 1:
             notes += [(w, np.ones(1, bool)) for w in qw]

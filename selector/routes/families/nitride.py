@@ -20,11 +20,12 @@ from __future__ import annotations
 
 import numpy as np
 
-from ...models import conversions, nitriding, tempering, validity
+from ...models import conversions, nitriding, tempering
 from ...models.composition import el
 from .base import Batch, RouteFamily, product_grid
 from .carburize import merged_positions, resample
-from .quench_temper import default_austenitize_c, through_harden
+from ..model_inputs import restrict, uses
+from .quench_temper import CORE_INPUTS, default_austenitize_c, through_harden
 
 ROUTE = "nitride"
 PRIORS = ("quench_temper", "none")
@@ -56,6 +57,10 @@ class Nitride(RouteFamily):
     parameters = ("temp_c", "hours", "prior", "quench", "agitation", "austenitize_c",
                   "temper_temp_c", "temper_hours")
     families = ("nitriding_steel", "alloy_steel")
+    #: the core's chain (on prior-hardened states; the nitriding cycle counts as temper) and the case
+    model_inputs = (CORE_INPUTS + uses("nitrided_case_depth", "temp_c", "hours")
+                    + uses("nitrided_surface_hardness", "Al", "Cr", "Mo", "V")
+                    + uses("astm_e140", hardness_hb="base_hardness_hb", where="annealed_core"))
     references = (
         "DIN 50190-3 (nitriding hardness depth, core + 50 HV)",
         "parabolic case growth x = K sqrt(t); K from memory (ASM Handbook Vol. 4, gas nitriding)",
@@ -125,13 +130,14 @@ class Nitride(RouteFamily):
                                        temp, hours, el(comp, "C"))
             aust = np.where(prior_qt, np.asarray(p["austenitize_c"], float), 850.0)
             res = through_harden(batch, p["quench"], p["agitation"], aust, tt, th)
+            restrict(res, "core", prior_qt)      # the annealed-core states ran with placeholders
             core_pos = np.asarray(res["profile_positions"], float)
             pos = merged_positions(core_pos)
             core_hv = resample(res["profile_hv"], core_pos, pos)
         else:
             pos = merged_positions(np.linspace(1.0, 0.0, 11))
             core_hv = np.zeros((n, len(pos)))
-            res = {}
+            res = {"model_inputs": {"core": np.zeros(n, bool)}}
         # annealed baseline where there is no prior hardening
         base_hv = conversions.hb_to_hv(batch.attr("base_hardness_hb"))
         core_hv = np.where(prior_qt[:, None], core_hv, base_hv[:, None])
@@ -155,6 +161,7 @@ class Nitride(RouteFamily):
         res["profile_hv"] = prof
         res["profile_positions"] = pos
         res["surface_hardness_hv"] = prof[:, 0]
+        res["model_inputs"].update(annealed_core=~prior_qt, base_hardness_hb=batch.attr("base_hardness_hb"))
         res["case_depth_mm"] = np.minimum(nitriding.nitrided_case_depth_mm(temp, hours), section / 2.0)
         res.pop("profile_as_quenched_hv", None)
 
@@ -164,17 +171,9 @@ class Nitride(RouteFamily):
                       "little support (common practice: harden and temper first)", ~prior_qt))
         notes.append(("prior temper less than 30 °C above the nitriding temperature: the core softens during "
                       "nitriding (common practice)", prior_qt & (t_t < temp + nitriding.TEMPER_MARGIN_C)))
-        lo, hi = nitriding.GAS_NITRIDING_RANGE_C
-        notes.append((f"nitriding temperature outside the gas-nitriding range {lo:.0f}–{hi:.0f} °C: the case "
-                      "estimate is extrapolated", (temp < lo) | (temp > hi)))
+        # the gas-nitriding range and the case models' ranges: model_inputs, checked by finish()
         notes.append(("the compound (white) layer, 0–20 µm, is not modelled; it is brittle and is often "
                       "removed or limited on fatigue-loaded parts (common practice)", np.ones(n, bool)))
-        for model, vals in (("nitrided_case_depth", {"temp_c": temp, "hours": hours}),
-                            ("nitrided_surface_hardness", {k: el(comp, k) for k in ("Al", "Cr", "Mo", "V")})):
-            mask = validity.out_of_range_mask(model, **vals)
-            if mask.any():
-                notes.append((f"outside the validity range of {model} ({validity.get(model).reference}): "
-                              "extrapolated", mask))
         qw = res.pop("quench_warnings", [])
         if n == 1:
             notes += [(w, np.ones(1, bool)) for w in qw]
