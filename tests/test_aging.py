@@ -21,7 +21,7 @@ KEY = {"yield_mpa": "yield_mpa", "uts_mpa": "uts_mpa", "elongation_pct": "elonga
 
 
 def test_temperature_compensated_time_definition():
-    # P = (t/T) exp(-Q/RT) (Shercliff & Ashby 1990, Part I; models reference §9)
+    # P = (t/T) exp(-Q/RT) (Shercliff & Ashby, Acta Metall. Mater. 38 (1990) 1789, Part I; from memory)
     p = ag.temperature_compensated_time(175.0, 8.0, 130.0)
     tk = 448.15
     assert float(p) == pytest.approx(8 * 3600 / tk * np.exp(-130e3 / (8.314 * tk)), rel=1e-12)
@@ -34,7 +34,7 @@ def test_temperature_compensated_time_definition():
 
 
 def test_peak_time_scaling():
-    # t_p2 = t_p1 (T2/T1) exp[(Q/R)(1/T2 - 1/T1)] (models reference §9, derived)
+    # t_p2 = t_p1 (T2/T1) exp[(Q/R)(1/T2 - 1/T1)] (derived from Shercliff & Ashby 1990, Part I: equal P at the peak)
     c = ag.aging_constants("6061")
     assert float(ag.peak_time_h(c, c.t_ref_c)) == pytest.approx(float(c.tp_ref_h), rel=1e-9)
     t1, t2 = 448.15, 433.15
@@ -218,7 +218,7 @@ def test_7075_t73_below_t6_and_c17200_within_b196():
 
 def test_precipitate_peak_falls_with_aging_temperature():
     # the precipitate contribution at peak scales with f0(T)^(1/2), f0 ∝ 1 - ce/c0, so a
-    # hotter age gives a lower precipitate peak (Shercliff & Ashby 1990; models reference §9).
+    # hotter age gives a lower precipitate peak (Shercliff & Ashby, Acta Metall. Mater. 38 (1990) 1789; from memory).
     # (The total peak yield does not fall within the calibrated ranges: the solute kept
     # in solution at the hotter age offsets it; documented in docs/methods/aging.md.)
     for alloy, temps in (("6061", [160.0, 200.0, 240.0]), ("17-4PH", [482.0, 552.0, 621.0])):

@@ -88,7 +88,7 @@ def test_alloy_ra_not_below_carbon_at_equal_strength():
 
 
 def test_yield_ratio_in_qt_band():
-    # reference sheet §13 (from memory): Q&T tempered martensite YS/UTS about 0.80-0.95;
+    # Q&T tempered martensite YS/UTS about 0.80-0.95 (SAE J413 (1990) TS-YS figure; values from memory);
     # the fitted alloy-steel ratio lies inside that band over 205-650 C
     t = np.linspace(205, 650, 10)
     r = cr.yield_from_uts(1000.0, t, "alloy_steel") / 1000.0

@@ -25,14 +25,14 @@ def ref_rows(family):
 
 
 def test_true_strain_definition():
-    # eps = ln(A0/A) = -ln(1 - CW) (models reference §8, standard definition)
+    # eps = ln(A0/A) = -ln(1 - CW) (standard definition, e.g. Dieter, Mechanical Metallurgy, ch. 3)
     e = sh.true_strain_from_reduction(np.array([0.0, 50.0, 75.0]))
     np.testing.assert_allclose(e, [0.0, np.log(2.0), np.log(4.0)], rtol=1e-12)
     np.testing.assert_allclose(sh.reduction_from_true_strain(e), [0.0, 50.0, 75.0], atol=1e-9)
 
 
 def test_gauge_number_reductions():
-    # B&S numbers of reduction: 2 = 20.7 %, 4 = 37.1 %, 8 = 60.5 % (models reference §8, M);
+    # B&S numbers of reduction: 2 = 20.7 %, 4 = 37.1 %, 8 = 60.5 % (from memory);
     # the gauge ratio 92^(1/39) (ASTM B258) gives 20.70, 37.11, 60.45 %
     r = sh.reduction_from_gauge_numbers(np.array([2, 4, 8]))
     np.testing.assert_allclose(r, [20.7, 37.1, 60.5], atol=0.1)
@@ -40,7 +40,7 @@ def test_gauge_number_reductions():
 
 def test_annealed_uts_textbook_check():
     # 70-30 brass K = 900 MPa, n = 0.49 (Kalpakjian & Schmid table) gives 389 MPa
-    # (models reference §8 check value)
+    # (K n^n e^-n, the engineering UTS at necking: Considère, hand evaluation)
     assert float(sh.annealed_uts_mpa(900.0, 0.49)) == pytest.approx(389.0, abs=1.0)
     # and zero reduction reproduces it in the full model (no yield offset at sigma_y0 -> 0)
     p = sh.cold_worked_properties(0.0, 900.0, 0.49, 1e-6, 60.0, 3.0)
@@ -48,7 +48,7 @@ def test_annealed_uts_textbook_check():
 
 
 def test_considere_fallback_roundtrip():
-    # K = UTS (e/n)^n reproduces the annealed UTS (models reference §8 fallback fit)
+    # K = UTS (e/n)^n reproduces the annealed UTS (Considère condition, the inverse of annealed_uts_mpa)
     k = sh.k_from_uts_mpa(np.array([300.0, 580.0]), np.array([0.3, 0.45]))
     np.testing.assert_allclose(sh.annealed_uts_mpa(k, np.array([0.3, 0.45])), [300.0, 580.0], rtol=1e-12)
 
@@ -125,7 +125,7 @@ def test_strength_rises_elongation_falls_with_cold_work(grade):
 
 
 def test_uniform_elongation_vanishes_past_n():
-    # Considère: once the prestrain reaches n the bar necks at once (models reference §8)
+    # Considère: once the prestrain reaches n the bar necks at once (Considère condition; Dieter, Mechanical Metallurgy, ch. 8)
     p = sh.cold_worked_properties(np.array([0.0, 30.0, 60.0]), 675.0, 0.33, 1.0, 60.0, 3.0)
     eps = sh.true_strain_from_reduction(np.array([0.0, 30.0, 60.0]))
     np.testing.assert_allclose(p["uniform_elongation_pct"][:1], 100 * np.expm1(0.33), rtol=1e-3)

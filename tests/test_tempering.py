@@ -21,7 +21,7 @@ def hrc(comp, temp_c, hours):
 # --- Hollomon-Jaffe parameter ------------------------------------------------------
 
 def test_parameter_definition_and_typical_magnitude():
-    # P = T_K (C + log10 t_h); reference sheet §5: P/1000 about 15-21 for usual tempers
+    # P = T_K (C + log10 t_h); Hollomon & Jaffe, Trans. AIME 162 (1945) 223: P/1000 about 15-21 for usual tempers (from memory)
     p = tp.hollomon_jaffe_parameter(550.0, 2.0, 20.0)
     assert p == pytest.approx(823.15 * (20.0 + np.log10(2.0)), rel=1e-12)
     assert 15.0 < p / 1000 < 21.0
