@@ -187,7 +187,7 @@ def test_di_definition_holds_in_the_chain():
     assert checked >= 6
 
 
-def test_critical_diameter_under_a_real_quench_matches_the_chart():
+def test_calibration_critical_diameter_under_a_real_quench_matches_the_chart():
     """A bar of Grossmann critical diameter D under quench H is 50 % martensite at its centre.
     Chart (data/reference/jominy_equivalence_charts.csv, centre-oil-51, a fit row: calibration of the
     rate factor): a steel 50 % martensite at J 19 mm has D = 51 mm in still oil (H = 0.3).  The chain
