@@ -166,6 +166,11 @@ def yield_from_uts(uts_mpa, temper_temp_c, family):
     ----------
     ASM Metals Handbook Vol. 1 (1990) Q&T property table (fitted rows in
     data/tempering_points.csv); SAE J413 (1990).
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> round(float(yield_from_uts(1000.0, 540.0, "alloy_steel")))
+    893
     """
     u = _uts(uts_mpa)
     tt = np.asarray(temper_temp_c, float)
@@ -204,6 +209,11 @@ def elongation_from_uts(uts_mpa, family):
     ----------
     ASM Metals Handbook Vol. 1 (1990) Q&T table; exponential form after Mater. Sci.
     Technol. (2025), doi 10.1177/02670836251331815.
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> round(float(elongation_from_uts(1000.0, "alloy_steel")), 1)
+    18.0
     """
     u = _uts(uts_mpa)
 
@@ -239,6 +249,11 @@ def reduction_of_area_from_uts(uts_mpa, family):
     References
     ----------
     ASM Metals Handbook Vol. 1 (1990) Q&T table; SAE J413 (1990).
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> round(float(reduction_of_area_from_uts(1000.0, "alloy_steel")), 1)
+    56.9
     """
     u = _uts(uts_mpa)
 

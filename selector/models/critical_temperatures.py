@@ -66,6 +66,12 @@ def ac1_c(comp):
     ----------
     Andrews, JISI 203 (1965) 721; equation verified against two reproductions
     (models reference sheet §3).
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> s = {"C": 0.45, "Mn": 0.75, "Si": 0.25}
+    >>> round(float(ac1_c(s)))
+    722
     """
     return (723.0 - 10.7 * el(comp, "Mn") - 16.9 * el(comp, "Ni") + 29.1 * el(comp, "Si")
             + 16.9 * el(comp, "Cr") + 290.0 * el(comp, "As") + 6.38 * el(comp, "W"))
@@ -93,6 +99,12 @@ def ac3_c(comp):
     References
     ----------
     Andrews, JISI 203 (1965) 721 (bracket form; models reference sheet §3).
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> s = {"C": 0.45, "Mn": 0.75, "Si": 0.25}
+    >>> round(float(ac3_c(s)))
+    762
     """
     c = np.maximum(el(comp, "C"), 0.0)
     return (910.0 - 203.0 * np.sqrt(c) - 15.2 * el(comp, "Ni") + 44.7 * el(comp, "Si")
@@ -123,6 +135,13 @@ def ms_c(comp):
     References
     ----------
     Andrews, JISI 203 (1965) 721.
+
+    Example (from the source: Andrews (1965) linear form, hand evaluation for 0.45 C, 0.75 Mn:
+    539 - 190.35 - 22.8 = 325.85 °C)
+
+    >>> s = {"C": 0.45, "Mn": 0.75, "Si": 0.25}
+    >>> round(float(ms_c(s)), 2)
+    325.85
     """
     return (539.0 - 423.0 * el(comp, "C") - 30.4 * el(comp, "Mn") - 17.7 * el(comp, "Ni")
             - 12.1 * el(comp, "Cr") - 7.5 * el(comp, "Mo"))
@@ -151,6 +170,12 @@ def default_austenitize_c(comp):
     ----------
     Common practice (austenitize 30–50 °C above Ac3; hypereutectoid steels about 50 °C
     above Ac1); Ac1 and Ac3 from Andrews (1965).
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> s = {"C": 0.45, "Mn": 0.75, "Si": 0.25}
+    >>> round(float(default_austenitize_c(s)))
+    802
     """
     c = el(comp, "C")
     return np.where(c < EUTECTOID_C, ac3_c(comp) + MARGIN_AC3_C, ac1_c(comp) + MARGIN_AC1_C)

@@ -53,7 +53,13 @@ def register(model: str, ranges: Mapping[str, tuple], reference: str,
 
 def load_all() -> dict[str, Validity]:
     """Import every module of :mod:`selector.models` (each registers its ranges at import)
-    and return the whole registry."""
+    and return the whole registry.
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> "astm_e140" in load_all()
+    True
+    """
     import importlib
     import pkgutil
 
@@ -64,7 +70,13 @@ def load_all() -> dict[str, Validity]:
 
 
 def get(model: str) -> Validity:
-    """The registered ranges of ``model`` (its module is imported if it was not yet)."""
+    """The registered ranges of ``model`` (its module is imported if it was not yet).
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> get("marin_size").ranges["diameter_mm"]
+    (None, 254.0, 'mm')
+    """
     if model not in _REGISTRY:
         load_all()
     return _REGISTRY[model]
@@ -72,7 +84,13 @@ def get(model: str) -> Validity:
 
 def out_of_range_mask(model: str, **values) -> np.ndarray:
     """Boolean array (broadcast over the values) that is True where any value is
-    outside the model's registered range."""
+    outside the model's registered range.
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> out_of_range_mask("marin_size", diameter_mm=[100.0, 300.0]).tolist()
+    [False, True]
+    """
     v = _REGISTRY[model]
     mask = np.zeros(np.broadcast(*[np.asarray(x) for x in values.values()]).shape if values else (), bool)
     for name, x in values.items():
@@ -92,7 +110,13 @@ def _fmt(x: float) -> str:
 
 
 def check(model: str, **values) -> list[str]:
-    """Messages for every value (scalar or array: any element) outside ``model``'s range."""
+    """Messages for every value (scalar or array: any element) outside ``model``'s range.
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> check("marin_size", diameter_mm=300.0)[0].split(" is ")[0]
+    'marin_size: diameter_mm = 300 mm'
+    """
     v = get(model)
     msgs = []
     for name, x in values.items():
@@ -188,7 +212,13 @@ def notes(model: str, name: str, values, on=None) -> list[tuple[str, np.ndarray]
 
 
 def table() -> list[dict]:
-    """All registered ranges as rows (for docs/methods.md)."""
+    """All registered ranges as rows (for docs/methods.md).
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> {"model", "variable", "min", "max", "unit", "reference"} <= set(table()[0])
+    True
+    """
     rows = []
     for v in sorted(_REGISTRY.values(), key=lambda v: v.model):
         for name, (lo, hi, unit) in v.ranges.items():
