@@ -1,6 +1,6 @@
 """Precipitation aging: the Shercliff–Ashby process model (1990), calibrated per alloy.
 
-Structure (Shercliff & Ashby 1990, Part I; models reference §9, mostly from memory):
+Structure (Shercliff & Ashby 1990, Part I; mostly from memory):
 
 * Temperature-compensated time ``P = (t / T) exp(-Q_A / R T)`` (t in s, T in K).
   Isothermal aging curves collapse onto one curve of ``P / P_p``; multi-step

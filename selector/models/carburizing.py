@@ -373,7 +373,7 @@ def martensite_start_c(comp: Composition, method: str = "andrews_linear"):
     ----------
     K.W. Andrews, "Empirical formulae for the calculation of some transformation
     temperatures", JISI 203 (1965) 721 (linear form verified via a secondary
-    reproduction; product form from memory: models reference §3).
+    reproduction; product form from memory).
 
     Example (from the source: Andrews (1965) linear form, 8620 (0.20 C, 0.80 Mn, 0.55 Ni, 0.50
     Cr, 0.20 Mo): 539 - 84.6 - 24.32 - 9.735 - 6.05 - 1.5 = 412.8 °C (hand evaluation))

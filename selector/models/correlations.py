@@ -26,7 +26,7 @@ Families: ``carbon_steel``, ``alloy_steel``; ``carburizing_steel`` and
 ``stainless_martensitic`` (no martensitic-stainless rows were fitted: a documented
 approximation).
 
-Measured in the data (the reference sheet's YS/UTS "rising with tempering
+Measured in the data (the recalled YS/UTS "rising with tempering
 temperature" is not borne out by these rows): YS/UTS ≈ 0.90 for the alloy steels
 nearly independent of tempering temperature, ≈ 0.72–0.78 for the water-quenched
 carbon steels and falling slightly with tempering temperature.

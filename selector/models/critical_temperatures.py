@@ -65,7 +65,7 @@ def ac1_c(comp):
     References
     ----------
     Andrews, JISI 203 (1965) 721; equation verified against two reproductions
-    (models reference sheet §3).
+    (as reproduced in Krauss, Steels, ASM 1990).
 
     Example (illustrative: a value of this implementation, not a published one)
 
@@ -98,7 +98,7 @@ def ac3_c(comp):
 
     References
     ----------
-    Andrews, JISI 203 (1965) 721 (bracket form; models reference sheet §3).
+    Andrews, JISI 203 (1965) 721 (bracket form, as reproduced in Krauss, Steels, ASM 1990).
 
     Example (illustrative: a value of this implementation, not a published one)
 

@@ -48,7 +48,7 @@ References
 J. Marin, *Mechanical Behavior of Engineering Materials*, Prentice-Hall (1962).
 R.G. Budynas, J.K. Nisbett, *Shigley's Mechanical Engineering Design*, 10th ed.,
 McGraw-Hill (2015), section 6-7 (eq. 6-8), 6-9 (Table 6-2, eqs. 6-20, 6-26, 6-27,
-Table 6-5) (values from memory; the project's models sheet lists the same constants).
+Table 6-5) (values from memory).
 Y. Murakami, *Metal Fatigue: Effects of Small Defects and Nonmetallic Inclusions*,
 Elsevier (2002), ch. 1-2 (sigma_w = 1.6 HV up to about 400 HV; from memory).
 R. Rennert et al., *FKM Guideline: Analytical Strength Assessment of Components*, 6th ed.,

@@ -49,7 +49,7 @@ STILL_AIR_H_W_M2K = 80.0
 STEEL_RHO_C_J_M3K = 5.9e6
 
 GMP_REF = ("T. Gladman, I.D. McIvor & F.B. Pickering, JISI 210 (1972) 916 (ferrite-pearlite yield and "
-           "tensile strength; from memory, models reference §10)")
+           "tensile strength; from memory)")
 
 validity.register("gladman_mcivor_pickering", {"C": (0.0, 0.8, "wt%"), "Mn": (0.0, 1.6, "wt%"),
                                                "Si": (0.0, 0.6, "wt%"),
@@ -201,8 +201,7 @@ def ferrite_pearlite_strength(comp: Composition, ferrite_grain_um, pearlite_spac
     ----------
     T. Gladman, I.D. McIvor & F.B. Pickering, "Some aspects of the structure–property
     relationships in high-carbon ferrite–pearlite steels", JISI 210 (1972) 916–930;
-    F.B. Pickering & T. Gladman, ISI Special Report 81 (1963) 10 (models reference §10,
-    from memory).
+    F.B. Pickering & T. Gladman, ISI Special Report 81 (1963) 10 (from memory).
 
     Example
     -------

@@ -54,7 +54,7 @@ def astm_e112_mean_diameter_um(grain_size_number):
 
     Returns
     -------
-    ndarray, µm.  G = 12 gives 5.6 µm, G = 8 gives 22.5 µm (models reference §10).
+    ndarray, µm.  G = 12 gives 5.6 µm, G = 8 gives 22.5 µm (ASTM E112 definition, hand evaluation).
 
     References
     ----------
@@ -169,7 +169,7 @@ def hall_petch_yield_mpa(sigma0_mpa, k_mpa_sqrt_m, grain_um):
         Friction stress, MPa.
     k_mpa_sqrt_m : array_like
         Hall–Petch coefficient, MPa·m^½ (mild steel about 0.74, copper about 0.11,
-        models reference §10, from memory).
+        from memory).
     grain_um : array_like
         Grain size (mean lineal intercept), µm (> 0).
 

@@ -22,8 +22,7 @@ Two steps, after the calculation method of ASTM A255 (based on Grossmann 1942):
 Sources and confidence (see ``docs/methods/hardenability.md``):
 
 * composition limits (A255 §1.3): verified in two copies of the standard;
-* carbon-base and alloy multiplying-factor fits: recalled (models reference sheet
-  §1.3, §1.5) and confirmed by an independent secondary reproduction of the A255
+* carbon-base and alloy multiplying-factor fits: recalled (from memory) and confirmed by an independent secondary reproduction of the A255
   method that also reproduces A255's worked example (SAE 4118 modified, DI = 1.95 in):
   partial;
 * grain-size correction DI_C(G) = DI_C(7)·1.08^(7−G): a fit of ratios read from the

@@ -30,7 +30,7 @@ COLD_RESISTIVITY_UOHM_CM = 16.0
 COLD_RELATIVE_PERMEABILITY = 40.0
 
 REF_DELTA = ("delta = 503 sqrt(rho/(mu_r f)) m, rho in ohm m (standard electromagnetic skin depth; "
-             "holooly.com worked example, models reference §11, V)")
+             "holooly.com worked example, verified)")
 REF_PRACTICE = ("ASM Handbook Vol. 4 and S.L. Semiatin & D.E. Stutz, Induction Heat Treatment of Steel, "
                 "ASM (1986): frequency for hardened depth (from memory)")
 
@@ -82,7 +82,7 @@ def reference_depth_mm(frequency_hz, resistivity_uohm_cm=HOT_RESISTIVITY_UOHM_CM
     References
     ----------
     Standard electromagnetic skin depth; worked example and resistivities at
-    holooly.com (models reference §11, V); V. Rudnev et al., ASM Handbook Vol. 4C
+    holooly.com (verified); V. Rudnev et al., ASM Handbook Vol. 4C
     (2014), "Principles of induction hardening and inspection".
 
     Example (from the source: reference depth 503 sqrt(rho/(mu_r f)); worked example data

@@ -45,7 +45,7 @@ def ih_hrc(c_pct):
     References
     ----------
     ASTM A255-10, calculation of hardenability (initial hardness).  Coefficients
-    from memory (models reference sheet §1.7): confidence ``from memory``.
+    from memory: confidence ``from memory``.
 
     Example (from the source: ASTM A255 initial hardness (99.9 % martensite) at 0.40 % C: 56.1
     HRC (from memory))

@@ -38,7 +38,7 @@ DIN_50190_DELTA_HV = 50.0
 TEMPER_MARGIN_C = 30.0
 
 REF_DEPTH = ("x = K sqrt(t), parabolic diffusion-zone growth (case-hardening introduction, vdocuments.mx; "
-             "K from memory, models reference §11); depth to core + 50 HV per DIN 50190-3")
+             "K from memory); depth to core + 50 HV per DIN 50190-3")
 REF_HV = "fitted to ASM Handbook Vol. 4 'Gas nitriding' typical surface hardness (from memory)"
 GAS_NITRIDING_RANGE_C = (495.0, 565.0)
 

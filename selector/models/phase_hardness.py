@@ -7,8 +7,7 @@
     HV    = X_M HV_M + X_B HV_B + X_FP HV_FP
 
 Vr is the cooling rate at 700 °C in °C/h, log base 10.  The mixture rule is
-confirmed in a quoted excerpt; the coefficients are recalled (models reference
-sheet §4, confidence from memory) and were sanity-checked on a 4140-like steel.
+confirmed in a quoted excerpt; the coefficients are recalled (confidence from memory) and were sanity-checked on a 4140-like steel.
 
 References
 ----------
@@ -116,7 +115,7 @@ def maynier_tempering_parameter_k(temp_c, hours):
     References
     ----------
     Maynier, Jungmann & Dollet, TMS-AIME 1978, pp. 518–545 (form and ΔH from memory,
-    models reference sheet §4, tag M-low).
+    low confidence).
 
     Example (from the source: Maynier et al. (1978), Pa = [1/T - (R/dH) ln(t/t0)]^-1 with t0 = 1
     h: 1 h at 540 °C gives Pa = T = 813.15 K)
@@ -165,7 +164,7 @@ def tempered_bainite_hv(comp, temp_c, hours):
     References
     ----------
     Maynier, Jungmann & Dollet, TMS-AIME 1978, pp. 518–545 (coefficients from memory,
-    models reference sheet §4, tag M-low).
+    low confidence).
 
     Examples
     --------

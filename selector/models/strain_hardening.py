@@ -5,7 +5,7 @@ annealed constants of a family or grade (``data/hollomon_constants.csv``).  A co
 reduction (area reduction, drawing or rolling) is a prestrain ``eps0 = -ln(1 - r)``;
 a tensile test on the cold-worked section then continues the same flow curve, so
 yield strength, tensile strength and the remaining uniform elongation follow from
-``eps0`` (derived relations of models reference §8, after Dieter, *Mechanical
+``eps0`` (derived relations, after Dieter, *Mechanical
 Metallurgy*, the Considère condition ``d sigma / d eps = sigma`` at necking).
 
 Temper designations are aliases of reductions (``data/temper_aliases.csv``):
@@ -68,7 +68,7 @@ def true_strain_from_reduction(reduction_pct):
 
     References
     ----------
-    Standard definitions (models reference §8); G.E. Dieter, *Mechanical Metallurgy*.
+    Standard definitions; G.E. Dieter, *Mechanical Metallurgy*.
 
     Example (from the source: definition eps = ln(A0/A): a 75 % reduction is ln 4)
 
@@ -101,7 +101,7 @@ def reduction_from_gauge_numbers(numbers):
         r = 100 (1 - 92^(-N/39))
 
     Copper-alloy rolled tempers H01, H02, H03, H04, H06, H08, H10 correspond to 1, 2,
-    3, 4, 6, 8, 10 B&S numbers of reduction (common practice; models reference §8):
+    3, 4, 6, 8, 10 B&S numbers of reduction (common practice, from memory):
     10.9, 20.7, 29.4, 37.1, 50.1, 60.4, 68.6 %.
 
     Parameters
@@ -134,7 +134,7 @@ def annealed_uts_mpa(k_mpa, n):
 
         UTS0 = K n^n exp(-n)
 
-    Check (models reference §8): 70-30 brass, K = 900 MPa, n = 0.49 → 389 MPa.
+    Check (Kalpakjian & Schmid K, n table): 70-30 brass, K = 900 MPa, n = 0.49 → 389 MPa.
 
     Example (from the source: 70-30 brass K = 900 MPa, n = 0.49 (Kalpakjian & Schmid table): K
     n^n e^-n = 389 MPa)
@@ -149,7 +149,7 @@ def annealed_uts_mpa(k_mpa, n):
 
 def k_from_uts_mpa(uts_mpa, n):
     """Hollomon K that reproduces an annealed tensile strength for a given n
-    (Considère fallback fit, models reference §8): ``K = UTS (e / n)^n``.
+    (Considère fallback fit): ``K = UTS (e / n)^n``.
 
     Example (from the source: inverse of the 70-30 brass check (Kalpakjian & Schmid): 389 MPa at
     n = 0.49 is K = 900 MPa (the check rounds to 1 MPa))
@@ -222,12 +222,12 @@ def cold_worked_properties(reduction_pct, k_mpa, n, base_yield_mpa, base_elongat
     ----------
     J.H. Hollomon, "Tensile deformation", Trans. AIME 162 (1945) 268;
     G.E. Dieter, *Mechanical Metallurgy*, 3rd ed. (1986), §8 (instability in tension);
-    models reference §8 (derived relations; Kalpakjian & Schmid and Callister K, n tables).
+    Derived relations; Kalpakjian & Schmid and Callister K, n tables.
 
     Example
     -------
     70-30 brass with the Kalpakjian & Schmid constants (K = 900 MPa, n = 0.49) and no
-    reduction: UTS = 900 · 0.49^0.49 · e^-0.49 ≈ 389 MPa (models reference §8 check).
+    reduction: UTS = 900 · 0.49^0.49 · e^-0.49 ≈ 389 MPa (hand evaluation).
 
     Example (illustrative: a value of this implementation, not a published one)
 

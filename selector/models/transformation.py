@@ -29,7 +29,7 @@ References
 ----------
 M.V. Li, D.V. Niebuhr, L.L. Meekisho, D.G. Atteridge, "A computational model for the
 prediction of steel hardenability", Metall. Mater. Trans. B 29B (1998) 661–672
-(equations as recalled, models reference sheet §7.2: from memory).
+(equations as recalled: from memory).
 J.S. Kirkaldy, D. Venugopalan, in *Phase Transformations in Ferrous Alloys*, TMS-AIME
 1984, 125–148.
 E. Scheil, Arch. Eisenhüttenwes. 8 (1935) 565.

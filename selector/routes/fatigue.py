@@ -31,7 +31,7 @@ The band (``_lo``/``_hi``) follows the tensile-strength band of the state
 band's edges; case-hardened states scale by ``uts_mpa_lo / uts_mpa``.
 
 References: as :mod:`selector.models.fatigue`; the depth check is the usual practice
-for case-hardened parts (the project's models sheet, section 14: common practice).
+for case-hardened parts (common practice).
 """
 from __future__ import annotations
 
