@@ -123,3 +123,14 @@ def test_notes_group_states_by_value_and_keep_each_state_local():
     # the message of one state does not depend on the other states of the batch
     alone = validity.notes("tempering_hv", "C", np.array([0.97]))
     assert alone[0][0] == v[1][0]
+
+
+def test_induction_on_a_normalized_core_checks_the_normalize_chain():
+    # the prior normalize runs the normalize family's models on the core (not in the grid:
+    # evaluate only); its inputs resolve and are checked like the anneal family's
+    from selector.routes.families.induction import NORMALIZED_CORE_INPUTS
+
+    assert {i.model for i in NORMALIZED_CORE_INPUTS} >= {"austenite_grain_growth", "gladman_mcivor_pickering"}
+    r = selector.evaluate("1045", [{"op": "normalize"}, {"op": "induction_harden", "case_depth_mm": 2.0},
+                                   {"op": "temper", "temp_c": 180}], diameter_mm=25.0)
+    assert r["params"]["prior"] == "normalize"

@@ -35,6 +35,35 @@ PRIORS = ("quench_temper", "normalize", "none")
 PRIOR_TEMPER_MIN_C = 450.0
 
 
+#: the normalize family's chain on the states whose prior condition is a normalize (their core)
+NORMALIZED_CORE_INPUTS = (
+    uses("andrews_ac", "C", "Mn", "Si", "Ni", "Cr", "Mo", where="norm_family")
+    + uses("austenite_grain_growth", temp_c="norm_temp_c", hours="norm_hours", where="norm_modelled")
+    + uses("hodgson_gibbs_ferrite_grain", ceq="norm_ceq", cooling_rate_k_s="norm_cooling_rate_k_s",
+           austenite_grain_um="norm_austenite_grain_um", where="norm_modelled")
+    + uses("gladman_mcivor_pickering", "C", "Mn", "Si", ferrite_grain_um="norm_ferrite_grain_um",
+           pearlite_spacing_um="norm_pearlite_spacing_um", where="norm_modelled")
+    + uses("astm_e140", uts_mpa="norm_uts_mpa", where="norm_modelled")
+)
+
+
+def _normalized_core_inputs(nres: dict, sub: Batch, idx: np.ndarray, n: int) -> dict:
+    """The normalize family's model inputs of the sub-batch ``sub`` (rows ``idx`` of ``n``),
+    spread over the whole batch under ``norm_*`` names (masks False elsewhere)."""
+    def full(values, fill):
+        out = np.full(n, fill, dtype=bool if isinstance(fill, bool) else float)
+        out[idx] = values
+        return out
+    mi = nres["model_inputs"]
+    out = {"norm_family": full(mi["ferrite_pearlite_family"], False), "norm_modelled": full(mi["modelled"], False),
+           "norm_temp_c": full(sub.params["temp_c"], np.nan), "norm_hours": full(sub.params["hours"], np.nan),
+           "norm_ceq": full(mi["ceq"], np.nan), "norm_cooling_rate_k_s": full(mi["cooling_rate_k_s"], np.nan),
+           "norm_uts_mpa": full(nres["uts_mpa"], np.nan)}
+    for k in ("austenite_grain_um", "ferrite_grain_um", "pearlite_spacing_um"):
+        out["norm_" + k] = full(nres[k], np.nan) if k in nres else np.full(n, np.nan)
+    return out
+
+
 class Induction(RouteFamily):
     name = "induction"
     label = "induction harden + temper"
@@ -48,7 +77,8 @@ class Induction(RouteFamily):
                   "prior_temper_hours")
     families = ("carbon_steel", "alloy_steel")
     #: the prior harden-and-temper core (where the prior is quench_temper) and the hardened layer
-    model_inputs = (CORE_INPUTS + uses("induction_surface_hardness", "temper_temp_c", c_pct="C")
+    model_inputs = (CORE_INPUTS + NORMALIZED_CORE_INPUTS
+                    + uses("induction_surface_hardness", "temper_temp_c", c_pct="C")
                     + uses("induction_frequency_table", hardened_depth_mm="case_depth_mm")
                     + uses("astm_e140", hardness_hrc="surface_hrc")
                     + uses("astm_e140", hardness_hb="base_hardness_hb", where="annealed_core"))
@@ -195,6 +225,9 @@ class Induction(RouteFamily):
                 res[k][idx] = nres["hardness_hv"]
             core_hv = core_hv.copy()
             core_hv[idx, :] = np.asarray(nres["hardness_hv"], float)[:, None]
+            res["model_inputs"].update(_normalized_core_inputs(nres, sub, idx, n))
+        else:
+            res["model_inputs"].update(norm_family=np.zeros(n, bool), norm_modelled=np.zeros(n, bool))
 
         c = el(comp, "C")
         hrc_q = induction.surface_hardness_hrc(c)
