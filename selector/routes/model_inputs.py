@@ -102,8 +102,12 @@ def validity_notes(inputs, res: dict, batch) -> list[tuple[str, np.ndarray]]:
     """``(message, mask)`` notes for every declared input outside its model's registered
     range (:func:`selector.models.validity.notes`), vectorised over the batch."""
     out = []
+    masks: dict = {}
     for inp in inputs:
-        on = mask(inp.where, res, batch.n)
-        if on.any():
+        if inp.where not in masks:
+            on = mask(inp.where, res, batch.n)
+            masks[inp.where] = on if on.any() else None
+        on = masks[inp.where]
+        if on is not None:
             out += validity.notes(inp.model, inp.variable, value(inp.name, res, batch), on)
     return out
