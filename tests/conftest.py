@@ -2,6 +2,17 @@
 import os
 import tempfile
 
+import pytest
+
 # The suite writes its on-disk tables (selector/cache.py) to a directory of its own, so a
 # test that patches a model can never leave a table in the user's cache directory.
 os.environ["SELECTOR_CACHE_DIR"] = tempfile.mkdtemp(prefix="selector-test-cache-")
+
+
+def pytest_collection_modifyitems(config, items):
+    """A test whose name says ``calibration`` carries the ``calibration`` marker too, so
+    ``pytest -m calibration`` lists every in-sample check and ``-m "not calibration"`` the rest
+    (pyproject.toml: markers)."""
+    for item in items:
+        if "calibration" in item.name and "calibration" not in item.keywords:
+            item.add_marker(pytest.mark.calibration)

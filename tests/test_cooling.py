@@ -152,7 +152,7 @@ def test_shipped_rate_factor_equals_what_the_fit_script_produces():
     assert len(rows) == 4 and len(cv) == 4
 
 
-def test_bar_centres_against_published_charts():
+def test_calibration_bar_centres_against_published_charts():
     # data/reference/jominy_equivalence_charts.csv: textbook chart of equivalent Jominy positions and
     # bar diameter (bar centres), as described in the text at herrytool.com/bearing/43928.html
     # (role fit: these rows calibrate the rate factor, so this is a calibration check), and the
@@ -172,7 +172,11 @@ def test_ideal_centre_table_matches_the_exact_series():
     exact = cooling.jominy_equivalent_mm(cooling.jominy_rate_factor() * np.asarray(
         cooling.cooling_rate_at_c_s(np.inf, diameter_mm=d, positions=(0.0,), exact=True)).reshape(-1))
     assert np.allclose(cooling.ideal_centre_jominy_mm(d), exact, rtol=0.01)
-    # a 75 mm round quenched ideally: 12.5 mm along the Jominy bar (chart row centre-ideal-75, fit)
+
+
+def test_calibration_ideal_quench_75mm_centre():
+    # a 75 mm round quenched ideally: 12.5 mm along the Jominy bar (chart row centre-ideal-75 of
+    # data/reference/jominy_equivalence_charts.csv, a row of data/fits/jominy_equivalence_rows.csv)
     assert cooling.ideal_centre_jominy_mm(75.0) == pytest.approx(12.5, abs=1.0)
 
 

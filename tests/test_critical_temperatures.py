@@ -32,12 +32,10 @@ def test_ms_against_handbook():
 
 def test_steven_haynes_ms_matches_fahrenheit_form():
     # The Steven-Haynes Ms in deg F (eng-tips thread 56725): 1042 - 853C - 60Mn - 30Cr - 30Ni - 38Mo;
-    # its Bs partner must lie above Andrews Ms for these steels (bainite forms above Ms).
     for s in (S1045, S4140, S4340):
         ms_f = 1042 - 853 * s["C"] - 60 * s["Mn"] - 30 * s.get("Cr", 0) - 30 * s.get("Ni", 0) - 38 * s.get("Mo", 0)
         ms_sh_c = (ms_f - 32) / 1.8
         assert abs(ms_sh_c - ct.ms_c(s)) < 40
-        assert ct.bs_c(s) > ct.ms_c(s) + 50
 
 
 def test_trends():
@@ -45,7 +43,6 @@ def test_trends():
     comp = {"C": c, "Mn": 0.8, "Si": 0.25}
     assert np.all(np.diff(ct.ac3_c(comp)) < 0)
     assert np.all(np.diff(ct.ms_c(comp)) < 0)
-    assert np.all(np.diff(ct.bs_c(comp)) < 0)
     ni = {"C": 0.4, "Mn": 0.8, "Ni": np.array([0.0, 1.0, 2.0])}
     assert np.all(np.diff(ct.ac1_c(ni)) < 0)
     assert np.all(ct.ac3_c(comp) > ct.ac1_c(comp))
@@ -69,4 +66,4 @@ def test_default_austenitize():
 def test_validity_registered():
     assert validity.check("andrews_ac", C=0.8)
     assert not validity.check("andrews_ac", C=0.4)
-    assert validity.check("steven_haynes_bs", Mo=1.5)
+    assert validity.check("andrews_ms", C=0.05)

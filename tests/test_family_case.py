@@ -154,7 +154,7 @@ def test_induction_on_quenched_and_tempered_4140():
     comp = default_catalogue().lookup("4140").composition()
     expect = float(induction.surface_hardness_hrc(comp["C"], 180.0, 1.0, comp))
     assert r["surface_hardness_hrc"] == pytest.approx(expect, abs=0.05)
-    # ASTM A255 IH at 0.40 %C = 56.1 HRC as quenched (models reference §6); a low temper lowers it
+    # ASTM A255 IH at 0.40 %C = 56.1 HRC as quenched (ASTM A255 initial-hardness polynomial, from memory); a low temper lowers it
     assert 50.0 <= r["surface_hardness_hrc"] <= 56.5
     assert r["case_depth_mm"] == 2.0
     assert r["center_hardness_hv"] == pytest.approx(ref["center_hardness_hv"], rel=1e-5)

@@ -25,29 +25,44 @@ def test_lever_rule():
     np.testing.assert_allclose(f, [0.0, 0.0, 0.5, 1.0, 1.0], atol=1e-12)
 
 
-def test_gmp_equation_hand_value():
-    # Gladman, McIvor & Pickering (1972), evaluated by hand for 0.45 C, 0.75 Mn, 0.25 Si,
-    # d = 0.006 mm, S0 = 1.1e-4 mm, no free N
+def test_gmp_equation_structure():
+    # Gladman, McIvor & Pickering, JISI 210 (1972) 916: the ferrite term (Hall-Petch in the
+    # ferrite grain) weighs f_alpha^(1/3) and the pearlite term (Hall-Petch in the spacing) the
+    # rest.  Checked as properties, not by re-summing the coefficients: finer ferrite and finer
+    # pearlite both strengthen; more carbon (more pearlite) makes the ferrite grain matter less;
+    # silicon adds solid-solution strength to both yield and tensile strength.
     comp = {"C": 0.45, "Mn": 0.75, "Si": 0.25}
-    f3 = (1 - (0.45 - 0.02) / 0.75) ** (1 / 3)
-    ys = f3 * (35 + 58 * 0.75 + 17.4 / np.sqrt(0.006)) + (1 - f3) * (178 + 3.8 / np.sqrt(1.1e-4)) + 63 * 0.25
-    uts = f3 * (246 + 18.2 / np.sqrt(0.006)) + (1 - f3) * (719 + 3.5 / np.sqrt(1.1e-4)) + 97 * 0.25
-    got = fp.ferrite_pearlite_strength(comp, 6.0, 0.11, free_n_pct=0.0)
-    assert float(got[0]) == pytest.approx(ys, rel=1e-12) and float(got[1]) == pytest.approx(uts, rel=1e-12)
+    s = lambda comp, d, s0: np.asarray(fp.ferrite_pearlite_strength(comp, d, s0, free_n_pct=0.0), float)  # noqa: E731
+    base = s(comp, 6.0, 0.11)
+    assert np.all(s(comp, 4.0, 0.11) > base) and np.all(s(comp, 6.0, 0.08) > base)
+    lean, rich = dict(comp, C=0.20), dict(comp, C=0.60)
+    gain = lambda c: s(c, 4.0, 0.11)[0] - s(c, 6.0, 0.11)[0]  # noqa: E731
+    assert gain(rich) < gain(lean)
+    assert np.all(s(dict(comp, Si=0.45), 6.0, 0.11) > base)
 
 
 def test_pickering_gladman_1963_hand_value():
+    # Pickering & Gladman, ISI Special Report 81 (1963), as published: 15.4 x [3.5 + 2.1 Mn + 5.4 Si
+    # + 1.13 d^-1/2] and 15.4 x [19.1 + 1.8 Mn + 5.4 Si + 0.25 P + 0.5 d^-1/2] (tsi -> MPa, d in mm;
+    # from memory).  The module keeps the coefficients multiplied out and rounded to 3 digits,
+    # so the two forms agree to 0.2 %.
     ys, uts = fp.ferritic_strength_pickering_gladman({"C": 0.1, "Mn": 1.0, "Si": 0.2}, 10.0, free_n_pct=0.0)
-    assert float(ys) == pytest.approx(53.9 + 32.3 + 83.2 * 0.2 + 17.4 / np.sqrt(0.01), rel=1e-12)
+    d = 0.01
     p = 100 * (0.1 - 0.02) / 0.75
-    assert float(uts) == pytest.approx(294 + 27.7 + 83.2 * 0.2 + 3.85 * p + 7.7 / np.sqrt(0.01), rel=1e-12)
+    assert float(ys) == pytest.approx(15.4 * (3.5 + 2.1 * 1.0 + 5.4 * 0.2 + 1.13 / np.sqrt(d)), rel=2e-3)
+    assert float(uts) == pytest.approx(15.4 * (19.1 + 1.8 * 1.0 + 5.4 * 0.2 + 0.25 * p + 0.5 / np.sqrt(d)), rel=2e-3)
 
 
 def test_spacing_and_undercooling():
-    # spacing inversely proportional to undercooling (Zener 1946), 8.02 um K (from memory)
-    assert float(fp.pearlite_spacing_um(25.0)) == pytest.approx(0.3208)
-    dt = fp.transformation_undercooling_k(np.array([0.01, 1.0]))
-    np.testing.assert_allclose(dt, [75 * 0.01 ** 0.24, 75.0])
+    # spacing inversely proportional to undercooling (Zener, Trans. AIME 167 (1946) 550): the
+    # product is one constant; faster cooling transforms with more undercooling
+    dts = np.array([10.0, 25.0, 50.0])
+    s = fp.pearlite_spacing_um(dts)
+    np.testing.assert_allclose(s * dts, s[0] * dts[0], rtol=1e-12)
+    dt = fp.transformation_undercooling_k(np.array([0.01, 0.1, 1.0, 10.0]))
+    assert np.all(np.diff(dt) > 0)
+    # pearlite of a normalized bar (about 1 K/s): spacing about 0.1-0.3 um (common practice, from memory)
+    assert 0.05 < float(fp.pearlite_spacing_um(dt[2])) < 0.5
     # still-air rate of a bar falls with diameter; a furnace cool is much slower
     r = fp.still_air_cooling_rate_k_s(np.array([12.0, 25.0, 100.0]))
     assert np.all(np.diff(r) < 0) and r[-1] > 10 * fp.FURNACE_COOL_K_S
@@ -93,8 +108,8 @@ def test_ferrite_grain_relation():
     d_rate = fp.ferrite_grain_size_um(comp, 60.0, np.array([0.1, 1.0, 10.0]))
     d_aus = fp.ferrite_grain_size_um(comp, np.array([20.0, 60.0, 150.0]), 1.0)
     assert np.all(np.diff(d_rate) < 0) and np.all(np.diff(d_aus) > 0)
-    ceq = 0.18 + 0.75 / 6
-    assert float(d_rate[1]) == pytest.approx((-0.4 + 6.37 * ceq) + (24.2 - 59 * ceq) + 22 * (1 - np.exp(-0.9)))
+    # ferrite grains of a normalized low-carbon bar: about 5-30 um (ASTM E112 G 7-11; common practice)
+    assert 5.0 < float(d_rate[1]) < 30.0
 
 
 def test_broadcast_and_errors():

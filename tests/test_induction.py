@@ -8,20 +8,20 @@ from selector.models import validity
 
 
 def test_reference_depth_hot_10khz():
-    # models reference §11 (V, holooly.com worked example data): hot steel rho = 114.6 µΩ·cm,
+    # reference depth delta = 503 sqrt(rho/(mu_r f)), worked example data on holooly.com (verified): hot steel rho = 114.6 µΩ·cm,
     # mu_r = 1: delta(10 kHz) ~ 5.4 mm (table to 2 significant figures -> 1 %)
     assert float(ind.reference_depth_mm(10e3, 114.6, 1.0)) == pytest.approx(5.4, rel=0.01)
 
 
 def test_reference_depth_table():
-    # models reference §11 table of delta_hot: 1, 3, 10, 30, 100, 450 kHz ->
+    # delta_hot from the same formula and data (hand evaluation): 1, 3, 10, 30, 100, 450 kHz ->
     # 17.0, 9.8, 5.4, 3.1, 1.7, 0.80 mm (2-3 significant figures -> 1.5 %)
     f = np.array([1e3, 3e3, 10e3, 30e3, 100e3, 450e3])
     np.testing.assert_allclose(ind.reference_depth_mm(f), [17.0, 9.8, 5.4, 3.1, 1.7, 0.80], rtol=0.015)
 
 
 def test_reference_depth_cold_1khz():
-    # models reference §11 (V): 0.4 %C steel at 30 °C, rho = 16 µΩ·cm, mu_r 40: delta(1 kHz) = 1.0 mm
+    # holooly.com worked example (verified): 0.4 %C steel at 30 °C, rho = 16 µΩ·cm, mu_r 40: delta(1 kHz) = 1.0 mm
     d = float(ind.reference_depth_mm(1e3, ind.COLD_RESISTIVITY_UOHM_CM, ind.COLD_RELATIVE_PERMEABILITY))
     assert d == pytest.approx(1.0, rel=0.02)
 
@@ -39,7 +39,7 @@ def test_reference_depth_bad_input():
 
 
 @pytest.mark.parametrize("depth,dia,lo,hi", [
-    # practice table, ASM Handbook Vol. 4 / Semiatin & Stutz 1986 (models reference §11, M-low)
+    # practice table, ASM Handbook Vol. 4 / Semiatin & Stutz 1986 (from memory, low confidence)
     (0.8, 50.0, 100e3, 500e3),
     (2.0, 50.0, 10e3, 500e3),
     (2.0, 20.0, 30e3, 500e3),   # 10 kHz only above 25 mm diameter
@@ -68,7 +68,7 @@ def test_suggested_band_consistent_with_reference_depth():
 
 
 def test_surface_hardness_1045():
-    # 99.9 % martensite at 0.45 %C (ASTM A255 IH, models reference §6: 56.1 at 0.40,
+    # 99.9 % martensite at 0.45 %C (ASTM A255 initial-hardness polynomial, from memory: 56.1 at 0.40,
     # 60.9 at 0.50) -> ~58.6 HRC.  After a 180 °C temper: induction-hardened 1045
     # surfaces are usually specified in 50–60 HRC (from memory; wide band)
     aq = float(ind.surface_hardness_hrc(0.45))

@@ -15,14 +15,14 @@ C1045 = {"C": 0.45, "Mn": 0.75}
 
 
 def test_depth_grows_as_root_time():
-    # parabolic growth x = K sqrt(t) (models reference §11, V): 4x the time, 2x the depth
+    # parabolic growth x = K sqrt(t) (parabolic diffusion growth; case-hardening course notes, vdocuments.mx, verified): 4x the time, 2x the depth
     x = nt.nitrided_case_depth_mm(525.0, np.array([12.0, 48.0, 192.0]))
     np.testing.assert_allclose(x[1:] / x[:-1], 2.0, rtol=1e-12)
 
 
 def test_depth_48h_525c():
-    # about 0.5 mm in 48 h at about 525 °C, Al-Cr-Mo nitriding steels (models reference
-    # §11, M-low); the diffusion zone of 0.5–0.8 mm takes tens to hundreds of hours
+    # about 0.5 mm in 48 h at about 525 °C, Al-Cr-Mo nitriding steels (ASM Handbook
+    # Vol. 4 (1991), gas nitriding; from memory, low confidence); the diffusion zone of 0.5–0.8 mm takes tens to hundreds of hours
     # (sarlin.se nitriding page, V)
     assert float(nt.nitrided_case_depth_mm(525.0, 48.0)) == pytest.approx(0.5, abs=0.05)
     assert 0.5 <= float(nt.nitrided_case_depth_mm(540.0, 100.0)) <= 0.9

@@ -109,12 +109,33 @@ def test_martensite_inverse_matches_forward_model():
     assert np.allclose(back, martensite.martensite_pct_from_hrc(c, h), atol=0.1)
 
 
-def test_warnings_name_the_state():
+def _qt_notes(comp, diameter_mm=None, thickness_mm=None, quench="oil"):
+    """Notes of the quench_temper family, finished, on a batch of 4140 states with ``comp``
+    (the chain's validity ranges are checked by routes.evaluate.finish, not by the chain)."""
+    from selector.catalogue.grades import default_catalogue
+    from selector.routes import families
+    from selector.routes.evaluate import finish
+    from selector.routes.families.base import Batch
+
+    n = len(next(v for v in comp.values() if np.ndim(v)))
+    g = default_catalogue().grades["4140"]
+    params = {"quench": np.array([quench] * n, dtype=object), "agitation": np.array(["moderate"] * n, dtype=object),
+              "austenitize_c": np.full(n, 845.0), "temper_temp_c": np.full(n, 540.0), "temper_hours": np.full(n, 2.0)}
+    batch = Batch([g], np.zeros(n, int), {k: np.broadcast_to(np.asarray(v, float), (n,)).copy() for k, v in comp.items()},
+                  params, np.full(n, np.nan if diameter_mm is None else diameter_mm),
+                  np.full(n, np.nan if thickness_mm is None else thickness_mm))
+    fam = families.get("quench_temper")
+    return finish(fam.compute(batch), batch, fam.name)["notes"]
+
+
+def test_validity_warnings_name_the_state_the_value_and_the_range():
     comp = {"C": np.array([0.40, 0.40]), "Mn": 0.8, "Si": 0.25, "Ni": np.array([0.0, 1.8]),
             "Cr": 0.8, "Mo": 0.25}
-    r = qr.as_quenched_profile(comp, "oil", "moderate", diameter_mm=30.0)
-    msg = [w for w in r["warnings"] if w.startswith("astm_a255: Ni")]
-    assert msg and "1 of 2 states" in msg[0] and "state 1" in msg[0]
+    notes = [(m, mask) for m, mask in _qt_notes(comp, diameter_mm=30.0) if m.startswith("astm_a255: Ni")]
+    assert len(notes) == 1
+    msg, mask = notes[0]
+    assert mask.tolist() == [False, True]
+    assert "Ni = 1.8 wt% is outside 0–1.5 wt%" in msg      # ASTM A255 §1.3 composition limit Ni 1.50
 
 
 def test_plate_and_bar_and_bad_input():
@@ -166,7 +187,7 @@ def test_di_definition_holds_in_the_chain():
     assert checked >= 6
 
 
-def test_critical_diameter_under_a_real_quench_matches_the_chart():
+def test_calibration_critical_diameter_under_a_real_quench_matches_the_chart():
     """A bar of Grossmann critical diameter D under quench H is 50 % martensite at its centre.
     Chart (data/reference/jominy_equivalence_charts.csv, centre-oil-51, a fit row: calibration of the
     rate factor): a steel 50 % martensite at J 19 mm has D = 51 mm in still oil (H = 0.3).  The chain
@@ -210,7 +231,7 @@ def test_high_carbon_steels_get_the_fallback_warning():
 
 
 def test_thin_oil_strip_is_flagged_as_extrapolating_the_rate_factor():
-    r = qr.as_quenched_profile(S4140, "oil", "moderate", thickness_mm=1.5)
-    assert any(w.startswith("jominy_rate_factor: Biot number below") for w in r["warnings"])
-    r = qr.as_quenched_profile(S4140, "water", "moderate", diameter_mm=50.0)
-    assert not any(w.startswith("jominy_rate_factor") for w in r["warnings"])
+    (strip,) = [m for m, mask in _qt_notes(_arr(S4140, 1), thickness_mm=1.5) if m.startswith("jominy_rate_factor")]
+    assert "biot = " in strip and "outside 0.05–100" in strip
+    assert not any(m.startswith("jominy_rate_factor")
+                   for m, mask in _qt_notes(_arr(S4140, 1), diameter_mm=50.0, quench="water") if mask.any())

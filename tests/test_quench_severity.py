@@ -50,7 +50,7 @@ def test_h_equals_2kH():
     # curve data"): H = 1 in^-1 with k = 27 W/mK -> h = 2*27*39.37 = 2126 W/m2K
     assert qs.heat_transfer_coefficient_w_m2k(1.0) == pytest.approx(2126.0, rel=1e-3)
     assert qs.heat_transfer_coefficient_w_m2k(1.0, conductivity_w_mk=40.0) == pytest.approx(3149.6, rel=1e-3)
-    # still air, derived h ~ 70 W/m2K (models reference sheet §2)
+    # still air, h = 2kH with Grossmann's H for still air (derived), about 70 W/m2K
     assert 50 < qs.heat_transfer_coefficient_w_m2k(qs.grossmann_h_per_in("air", "none")) < 100
     with pytest.raises(InputError):
         qs.heat_transfer_coefficient_w_m2k(-1.0)
@@ -66,10 +66,10 @@ def test_every_row_has_source_and_confidence():
 
 
 def test_agitated_values_inside_the_classic_ranges():
-    # Grossmann 1952 H table as reproduced in ASM Handbook Vol. 4 (models reference sheet §2, from
+    # Grossmann 1952 H table as reproduced in ASM Handbook Vol. 4 (from
     # memory): oil mild 0.30-0.35, moderate 0.35-0.40, strong 0.50-0.80; water mild 1.0-1.1,
     # moderate 1.2-1.3, strong 1.6-2.0; brine mild 2.0-2.2. Polymer (PAG) is not in Grossmann's table:
-    # typical 0.3-1.2 (sheet §2, low confidence).
+    # typical 0.3-1.2 (from memory, low confidence).
     ranges = {("oil", "mild"): (0.30, 0.35), ("oil", "moderate"): (0.35, 0.40), ("oil", "strong"): (0.50, 0.80),
               ("water", "mild"): (1.0, 1.1), ("water", "moderate"): (1.2, 1.3), ("water", "strong"): (1.6, 2.0),
               ("brine", "mild"): (2.0, 2.2)}

@@ -28,7 +28,7 @@ def test_fractions_sum_to_one_and_martensite_is_the_given_one():
 
 
 def test_as_quenched_constituents_are_maynier_check_values():
-    # models reference sheet §4, derived check values for 0.40C-0.25Si-0.85Mn-1.0Cr-0.20Mo
+    # hand evaluation of the published equations for 0.40C-0.25Si-0.85Mn-1.0Cr-0.20Mo
     # (Maynier, Jungmann & Dollet 1978): HV_B 299/350/402 and HV_FP 220/234/247 at
     # 1e3/1e4/1e5 C/h.  The constituent hardnesses of the mixture are those values.
     rates = np.array([[1e3, 1e4, 1e5]]) / 3600.0

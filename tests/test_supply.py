@@ -175,8 +175,10 @@ def test_stress_relief_model_is_monotone_in_time_and_temperature():
     f1 = stress_relief.cold_work_loss_fraction(t, 1.0)
     f4 = stress_relief.cold_work_loss_fraction(t, 4.0)
     assert np.all(np.diff(f1) >= 0) and np.all(f4 >= f1)
-    # Hollomon-Jaffe parameter: 1 h at 480 degC -> T_K * 20
-    assert stress_relief.hollomon_jaffe_parameter(480.0, 1.0) == pytest.approx(753.15 * 20.0)
+    # Hollomon-Jaffe parameter T_K (C + log10 t): ten times the time adds T_K, whatever C
+    # (Hollomon & Jaffe, Trans. AIME 162 (1945) 223)
+    p1, p10 = (stress_relief.hollomon_jaffe_parameter(480.0, h) for h in (1.0, 10.0))
+    assert p10 - p1 == pytest.approx(753.15, rel=1e-9)
 
 
 def test_bad_supply_rows_rejected_with_file_line_and_column(tmp_path):

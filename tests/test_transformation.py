@@ -10,13 +10,13 @@ S1045 = {"C": 0.45, "Mn": 0.75, "Si": 0.25}
 
 
 def test_s_integral_values():
-    # models reference sheet §7.2 (numerical values of the Li S(X) integral): S(0.01) = 0.104, S(0.99) = 1.95
+    # Li, Niebuhr, Meekisho & Atteridge, Metall. Mater. Trans. B 29B (1998) 661, S(X) integral evaluated numerically: S(0.01) = 0.104, S(0.99) = 1.95
     assert tr.s_integral(0.01) == pytest.approx(0.104, abs=0.003)
     assert tr.s_integral(0.99) == pytest.approx(1.95, abs=0.03)
 
 
 def test_isothermal_start_times_1045():
-    # models reference sheet §7.2 sanity values for 1045, G = 8 (derived from the same equations with a
+    # hand evaluation of the Li et al. (1998) equations for 1045, G = 8 (with a
     # thermodynamic Ae3; here Andrews Ac3 stands in): 1 % pearlite at 650 C ~ 0.4 s, 1 % bainite at
     # 450 C ~ 1.6 s, 1 % ferrite at 650 C ~ 2.7 s. Tolerance: factor 1.3 (pearlite, bainite), 2 (ferrite).
     assert tr.isothermal_time_s(S1045, 650, 0.01, "pearlite") == pytest.approx(0.4, rel=0.3)

@@ -52,8 +52,10 @@ validity.register("carbon_diffusivity", {"temp_c": (850.0, 1000.0, "°C"),
 validity.register("carbon_profile", {"temp_c": (850.0, 1000.0, "°C"),
                                      "surface_carbon_pct": (0.6, 1.2, "wt%"),
                                      "core_carbon_pct": (0.05, 0.30, "wt%")}, REF_CRANK)
-# Harris's table covers 1550–1800 °F (843–982 °C).
-validity.register("harris_case_depth", {"temp_c": (843.0, 982.0, "°C")}, REF_HARRIS)
+#: Harris's table covers 1550–1800 °F (843–982 °C).  Not registered with validity: no route
+#: uses the Harris formula (the case depth is the diffusion model's); it is a cross-check only
+#: (scripts/check_case_depth.py, tests/test_carburizing.py).
+HARRIS_RANGE_C = (843.0, 982.0)
 # Andrews's data set covers C below about 0.6 % (the linear form is registered as
 # "andrews_ms" by critical_temperatures); a carburized case extrapolates both forms.
 validity.register("andrews_ms_product", {"C": (0.1, 0.6, "wt%")},
@@ -154,6 +156,12 @@ def carbon_diffusivity_m2_s(temp_c, carbon_pct, method: str = "tibbetts"):
     from memory; check values at 900 °C: 7.7e-12 m^2/s at 0.2 %C, 1.6e-11 at
     0.8 %C).  Callister, Materials Science and Engineering, diffusion table
     (D0 = 2.3e-5 m^2/s, Q = 148 kJ/mol, from memory).
+
+    Example (from the source: Tibbetts (1980), D(925 °C, 0.2 % C) about 1.06e-11 m^2/s (hand
+    evaluation, from memory))
+
+    >>> f"{float(carbon_diffusivity_m2_s(925.0, 0.2)):.2e}"
+    '1.06e-11'
     """
     check_choice("method", method, _DIFFUSIVITY, "carbon_diffusivity_m2_s")
     t_k = _kelvin(temp_c, "carbon_diffusivity_m2_s")
@@ -176,7 +184,13 @@ def representative_diffusivity_m2_s(temp_c, surface_carbon_pct, core_carbon_pct,
                                     method: str = "tibbetts"):
     """Carbon diffusivity used for the whole profile: D at the mean of the surface
     and core carbon, (Cs + C0)/2 (a single D makes the erf solution exact; the
-    mean carbon is the usual representative choice).  m^2/s."""
+    mean carbon is the usual representative choice).  m^2/s.
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> f"{float(representative_diffusivity_m2_s(925.0, 0.9, 0.2)):.2e}"
+    '1.59e-11'
+    """
     cs, c0 = _check_carbon(surface_carbon_pct, core_carbon_pct, "representative_diffusivity_m2_s")
     return carbon_diffusivity_m2_s(temp_c, 0.5 * (cs + c0), method)
 
@@ -220,6 +234,11 @@ def carbon_profile_pct(depth_mm, temp_c, hours, surface_carbon_pct, core_carbon_
     ----------
     J. Crank, The Mathematics of Diffusion, 2nd ed., Oxford (1975), §3.3;
     Tibbetts (1980) for D.
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> round(float(carbon_profile_pct(0.5, 925.0, 6.0, 0.9, 0.2)), 2)
+    0.58
     """
     ctx = "carbon_profile_pct"
     x_m = _nonneg("depth_mm", depth_mm, ctx) * 1e-3
@@ -238,6 +257,11 @@ def depth_at_carbon_mm(carbon_pct, temp_c, hours, surface_carbon_pct, core_carbo
 
     x = 2 sqrt(D t) erfinv[(Cs - C) / (Cs - C0)]; NaN where ``carbon_pct`` is not
     between C0 (exclusive) and Cs (inclusive).
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> round(float(depth_at_carbon_mm(0.55, 925.0, 6.0, 0.9, 0.2)), 2)
+    0.56
     """
     ctx = "depth_at_carbon_mm"
     t_s = _nonneg("hours", hours, ctx) * 3600.0
@@ -257,6 +281,11 @@ def total_case_depth_mm(temp_c, hours, surface_carbon_pct, core_carbon_pct,
 
     The default 0.07 %C over the core is where Harris's total case depths fall for
     0.040–0.070 in cases (flamemet.com summary of Harris 1943, partial).  mm.
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> round(float(total_case_depth_mm(927.0, 8.0, 0.8, 0.2)), 2)
+    1.48
     """
     cs, c0 = _check_carbon(surface_carbon_pct, core_carbon_pct, "total_case_depth_mm")
     return depth_at_carbon_mm(c0 + delta_carbon_pct, temp_c, hours, cs, c0, method)
@@ -284,7 +313,7 @@ def harris_case_depth_mm(temp_c, hours):
 
     Validity
     --------
-    843–982 °C (``harris_case_depth``); the surface is assumed saturated in carbon
+    843–982 °C (:data:`HARRIS_RANGE_C`); the surface is assumed saturated in carbon
     (austenite at Acm).  A leaner carbon potential gives a shallower case.
 
     References
@@ -292,6 +321,12 @@ def harris_case_depth_mm(temp_c, hours):
     F.E. Harris, "Case depth — an attempt at a practical definition", Metal
     Progress 44 (1943) 265 (formula from memory; variable definitions seen in a
     secondary summary, flamemet.com/tech/feharris.html).
+
+    Example (from the source: Harris (1943) table, 927 °C (1700 °F): k = 0.025 in/sqrt(h), so 8
+    h gives 0.071 in (1.8 mm) (from memory))
+
+    >>> round(float(harris_case_depth_mm(927.0, 8.0)), 1)
+    1.8
     """
     t_k = _kelvin(temp_c, "harris_case_depth_mm")
     h = _nonneg("hours", hours, "harris_case_depth_mm")
@@ -342,7 +377,14 @@ def martensite_start_c(comp: Composition, method: str = "andrews_linear"):
     ----------
     K.W. Andrews, "Empirical formulae for the calculation of some transformation
     temperatures", JISI 203 (1965) 721 (linear form verified via a secondary
-    reproduction; product form from memory: models reference §3).
+    reproduction; product form from memory).
+
+    Example (from the source: Andrews (1965) linear form, 8620 (0.20 C, 0.80 Mn, 0.55 Ni, 0.50
+    Cr, 0.20 Mo): 539 - 84.6 - 24.32 - 9.735 - 6.05 - 1.5 = 412.8 °C (hand evaluation))
+
+    >>> core = {"C": 0.20, "Mn": 0.80, "Si": 0.25, "Ni": 0.55, "Cr": 0.50, "Mo": 0.20}
+    >>> round(float(martensite_start_c(core)), 1)
+    412.8
     """
     check_choice("method", method, _MS, "martensite_start_c")
     return _MS[method](comp)
@@ -384,6 +426,12 @@ def retained_austenite_pct(carbon_pct, comp: Composition, quench_temp_c=25.0,
     References
     ----------
     D.P. Koistinen & R.E. Marburger, Acta Metall. 7 (1959) 59; Andrews (1965).
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> core = {"C": 0.20, "Mn": 0.80, "Si": 0.25, "Ni": 0.55, "Cr": 0.50, "Mo": 0.20}
+    >>> round(float(retained_austenite_pct(0.8, core)), 1)
+    12.8
     """
     c = _nonneg("carbon_pct", carbon_pct, "retained_austenite_pct")
     tq = np.asarray(quench_temp_c, float)
@@ -394,12 +442,24 @@ def retained_austenite_pct(carbon_pct, comp: Composition, quench_temp_c=25.0,
 
 # --------------------------------------------------------------------- cautions
 def high_surface_carbon_mask(surface_carbon_pct):
-    """True where the surface carbon exceeds :data:`HIGH_SURFACE_CARBON_PCT` (0.9 %)."""
+    """True where the surface carbon exceeds :data:`HIGH_SURFACE_CARBON_PCT` (0.9 %).
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> high_surface_carbon_mask([0.8, 1.0]).tolist()
+    [False, True]
+    """
     return np.asarray(surface_carbon_pct, float) > HIGH_SURFACE_CARBON_PCT + 1e-12
 
 
 def carburizing_cautions(surface_carbon_pct) -> list[str]:
-    """Metallurgical cautions for a carburizing route (messages for the result's warnings)."""
+    """Metallurgical cautions for a carburizing route (messages for the result's warnings).
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> len(carburizing_cautions([0.8, 1.05]))
+    1
+    """
     msgs = []
     if np.any(high_surface_carbon_mask(surface_carbon_pct)):
         cs = float(np.max(np.asarray(surface_carbon_pct, float)))
@@ -418,6 +478,12 @@ def low_temper_hrc(as_quenched_hrc, comp: Composition, temper_temp_c, temper_hou
     (:func:`selector.models.conversions.hv_to_hrc`).
 
     ``temper_temp_c=None`` returns the as-quenched hardness.
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> core = {"C": 0.20, "Mn": 0.80, "Si": 0.25, "Ni": 0.55, "Cr": 0.50, "Mo": 0.20}
+    >>> round(float(low_temper_hrc(62.0, core, 180.0, 2.0)), 1)
+    44.2
     """
     aq = np.asarray(as_quenched_hrc, float)
     if temper_temp_c is None:
@@ -443,6 +509,12 @@ def fully_hardened_case_hrc(carbon_pct, comp_core: Composition, temper_temp_c=No
     (:data:`RETAINED_AUSTENITE_HV`, from memory), mixed by volume.  The A255 IH
     curve is taken as fresh martensite: by the same KM estimate it holds less than
     8 % austenite up to 0.6 %C.
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> core = {"C": 0.20, "Mn": 0.80, "Si": 0.25, "Ni": 0.55, "Cr": 0.50, "Mo": 0.20}
+    >>> round(float(fully_hardened_case_hrc(0.8, core, 180.0)), 1)
+    59.7
     """
     c = _nonneg("carbon_pct", carbon_pct, "fully_hardened_case_hrc")
     local = _local_comp(comp_core, c)
@@ -502,6 +574,12 @@ def case_as_quenched_hrc(carbon_pct, comp_core: Composition, jominy_mm=None, gra
     --------
     8620 alloy (0.80 Mn, 0.55 Ni, 0.50 Cr, 0.20 Mo) at 0.35 %C, J = 5 mm: about
     52 HRC (this code: IH(0.35) = 53.3 HRC, DI 83 mm, DF 1.02).
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> core = {"C": 0.20, "Mn": 0.80, "Si": 0.25, "Ni": 0.55, "Cr": 0.50, "Mo": 0.20}
+    >>> round(float(case_as_quenched_hrc(0.8, core)), 1)
+    64.8
     """
     c = _nonneg("carbon_pct", carbon_pct, "case_as_quenched_hrc")
     j = J1_MM if jominy_mm is None else _nonneg("jominy_mm", jominy_mm, "case_as_quenched_hrc")
@@ -556,6 +634,12 @@ def case_hardness_hv(as_quenched_hv, carbon_pct, comp_core: Composition, temper_
     ----------
     J.H. Hollomon & L.D. Jaffe, Trans. AIME 162 (1945) 223; D.P. Koistinen &
     R.E. Marburger, Acta Metall. 7 (1959) 59; K.W. Andrews, JISI 203 (1965) 721.
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> core = {"C": 0.20, "Mn": 0.80, "Si": 0.25, "Ni": 0.55, "Cr": 0.50, "Mo": 0.20}
+    >>> round(float(case_hardness_hv(800.0, 0.8, core, 180.0)))
+    672
     """
     ctx = "case_hardness_hv"
     c = _nonneg("carbon_pct", carbon_pct, ctx)
@@ -631,6 +715,12 @@ def case_hardness_profile_hrc(depth_mm, temp_c, hours, surface_carbon_pct, comp_
     ----------
     Crank (1975); Tibbetts (1980); ASTM A255 (IH, DI, DF); Hollomon & Jaffe (1945);
     Koistinen & Marburger (1959); Andrews (1965); ASTM E140 (HV-HRC).
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> core = {"C": 0.20, "Mn": 0.80, "Si": 0.25, "Ni": 0.55, "Cr": 0.50, "Mo": 0.20}
+    >>> round(float(case_hardness_profile_hrc(0.1, 925.0, 6.0, 0.8, core, 180.0, 2.0, 35.0)), 1)
+    58.9
     """
     ctx = "case_hardness_profile_hrc"
     c0 = el(comp_core, "C")
@@ -653,6 +743,12 @@ def depth_at_hardness_mm(depth_mm, hardness, threshold):
     profile never falls below it (the core itself is at or above the threshold).
     ``depth_mm`` and ``hardness`` broadcast; ``threshold`` broadcasts with their
     leading axes.  Units of ``hardness`` and ``threshold`` must agree (HRC or HV).
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> import numpy as np
+    >>> round(float(depth_at_hardness_mm(np.array([0.0, 1.0, 2.0]), np.array([700.0, 600.0, 400.0]), 550.0)), 2)
+    1.25
     """
     prof = np.asarray(hardness, float)
     depth = np.broadcast_to(np.asarray(depth_mm, float), prof.shape)
@@ -694,6 +790,12 @@ def effective_case_depth_mm(temp_c, hours, surface_carbon_pct, comp_core: Compos
     ----------
     SAE J423 (methods of measuring case depth); ISO 2639 (case-hardened steels,
     determination of the effective case depth, 550 HV ~ 50 HRC criterion).
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> core = {"C": 0.20, "Mn": 0.80, "Si": 0.25, "Ni": 0.55, "Cr": 0.50, "Mo": 0.20}
+    >>> round(float(effective_case_depth_mm(925.0, 8.0, 0.8, core, 175.0, 2.0, 35.0)), 2)
+    1.29
     """
     ctx = "effective_case_depth_mm"
     c0 = el(comp_core, "C")

@@ -17,11 +17,25 @@ Composition = Mapping[str, "np.ndarray | float"]
 
 
 def el(comp: Composition, symbol: str) -> np.ndarray:
-    """wt % of ``symbol`` in ``comp`` as a float array (0 where absent)."""
+    """wt % of ``symbol`` in ``comp`` as a float array (0 where absent).
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> [float(el({"C": 0.4}, "C")), float(el({"C": 0.4}, "Mo"))]
+    [0.4, 0.0]
+    """
     v = comp.get(symbol, 0.0)
     return np.asarray(v, dtype=float)
 
 
 def broadcast_shape(comp: Composition) -> tuple:
+    """The common numpy shape of the element arrays of ``comp`` (``()`` for scalars).
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> import numpy as np
+    >>> broadcast_shape({"C": np.array([0.2, 0.4]), "Mn": 0.8})
+    (2,)
+    """
     arrays = [np.asarray(v) for v in comp.values()]
     return np.broadcast(*arrays).shape if arrays else ()

@@ -141,6 +141,11 @@ def hv_to_hrc(hardness_hv):
     References
     ----------
     ASTM E140-12b, Table 1.
+
+    Example (from the source: ASTM E140-12b Table 1: 513 HV is 50 HRC)
+
+    >>> round(float(hv_to_hrc(513.0)), 1)
+    50.0
     """
     hv, hrc = _chains()["hrc"]
     return _interp(hardness_hv, hv, hrc)
@@ -168,6 +173,11 @@ def hrc_to_hv(hardness_hrc):
     References
     ----------
     ASTM E140-12b, Table 1.
+
+    Example (from the source: ASTM E140-12b Table 1: 50 HRC is 513 HV)
+
+    >>> round(float(hrc_to_hv(50.0)))
+    513
     """
     hv, hrc = _chains()["hrc"]
     return _interp(hardness_hrc, hrc, hv)
@@ -197,6 +207,11 @@ def hv_to_hb(hardness_hv):
     References
     ----------
     ASTM E140-12b, Tables 1 and 2.
+
+    Example (from the source: ASTM E140-12b Table 1 row HRC 30: 302 HV, 286 HB)
+
+    >>> round(float(hv_to_hb(302.0)))
+    286
     """
     hv, hb = _chains()["hb"]
     return _interp(hardness_hv, hv, hb)
@@ -224,6 +239,11 @@ def hb_to_hv(hardness_hb):
     References
     ----------
     ASTM E140-12b, Tables 1 and 2.
+
+    Example (from the source: ASTM E140-12b Table 1 / A370 Table 3 row HRC 30: 286 HB, 302 HV)
+
+    >>> round(float(hb_to_hv(286.0)))
+    302
     """
     hv, hb = _chains()["hb"]
     return _interp(hardness_hb, hb, hv)
@@ -233,9 +253,6 @@ def hv_to_uts_mpa(hardness_hv):
     """Approximate tensile strength (MPa) from Vickers hardness (ASTM A370 Table 3).
 
     UTS = linear interpolation of the tensile strengths tabulated beside E140
-<<<<<<< HEAD
-    hardness values (ksi × 6.895, the rounding of ``data/hardness_conversions.csv``).
-=======
     hardness values (the table's own MPa column, rounded from ksi × 6.895).
 
     Parameters
@@ -257,6 +274,11 @@ def hv_to_uts_mpa(hardness_hv):
     References
     ----------
     ASTM A370, Table 3; ASTM E140-12b, Tables 1 and 2.
+
+    Example (from the source: ASTM A370 Table 3 row HRC 30: 302 HV, tensile 138 ksi (951.5 MPa))
+
+    >>> round(float(hv_to_uts_mpa(302.0)))
+    952
     """
     hv, uts = _chains()["uts_mpa"]
     return _interp(hardness_hv, hv, uts)
@@ -282,6 +304,11 @@ def uts_to_hv(uts_mpa):
     References
     ----------
     ASTM A370, Table 3; ASTM E140-12b, Tables 1 and 2.
+
+    Example (from the source: ASTM A370 Table 3 row HRC 30: tensile 138 ksi (951 MPa), 302 HV)
+
+    >>> round(float(uts_to_hv(951.0)))
+    302
     """
     hv, uts = _chains()["uts_mpa"]
     return _interp(uts_mpa, uts, hv)
@@ -309,6 +336,11 @@ def hb_to_uts_mpa(hardness_hb):
     References
     ----------
     ASTM A370, Table 3; ASTM E140-12b, Tables 1 and 2.
+
+    Example (from the source: ASTM A370 Table 3 row HRC 30: 286 HB, tensile 138 ksi (951.5 MPa))
+
+    >>> round(float(hb_to_uts_mpa(286.0)))
+    952
     """
     return hv_to_uts_mpa(hb_to_hv(hardness_hb))
 
@@ -323,7 +355,7 @@ def _register() -> None:
         "hardness_hv": (float(hv_hb[0]), float(hv_hrc[-1]), "HV"),
         "hardness_hb": (float(hb[0]), float(hb[-1]), "HB"),
         "uts_mpa": (float(uts[0]), float(uts[-1]), "MPa"),
-    }, "ASTM E140-12b Table 1")
+    }, "ASTM E140-12b Table 1", beyond="no converted value is given outside the table")
 
 
 _register()

@@ -26,7 +26,7 @@ Families: ``carbon_steel``, ``alloy_steel``; ``carburizing_steel`` and
 ``stainless_martensitic`` (no martensitic-stainless rows were fitted: a documented
 approximation).
 
-Measured in the data (the reference sheet's YS/UTS "rising with tempering
+Measured in the data (the recalled YS/UTS "rising with tempering
 temperature" is not borne out by these rows): YS/UTS ≈ 0.90 for the alloy steels
 nearly independent of tempering temperature, ≈ 0.72–0.78 for the water-quenched
 carbon steels and falling slightly with tempering temperature.
@@ -166,6 +166,11 @@ def yield_from_uts(uts_mpa, temper_temp_c, family):
     ----------
     ASM Metals Handbook Vol. 1 (1990) Q&T property table (fitted rows in
     data/tempering_points.csv); SAE J413 (1990).
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> round(float(yield_from_uts(1000.0, 540.0, "alloy_steel")))
+    893
     """
     u = _uts(uts_mpa)
     tt = np.asarray(temper_temp_c, float)
@@ -204,6 +209,11 @@ def elongation_from_uts(uts_mpa, family):
     ----------
     ASM Metals Handbook Vol. 1 (1990) Q&T table; exponential form after Mater. Sci.
     Technol. (2025), doi 10.1177/02670836251331815.
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> round(float(elongation_from_uts(1000.0, "alloy_steel")), 1)
+    18.0
     """
     u = _uts(uts_mpa)
 
@@ -239,6 +249,11 @@ def reduction_of_area_from_uts(uts_mpa, family):
     References
     ----------
     ASM Metals Handbook Vol. 1 (1990) Q&T table; SAE J413 (1990).
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> round(float(reduction_of_area_from_uts(1000.0, "alloy_steel")), 1)
+    56.9
     """
     u = _uts(uts_mpa)
 

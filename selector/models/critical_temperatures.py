@@ -1,4 +1,4 @@
-"""Critical temperatures of low-alloy steels from composition (Andrews 1965; Steven & Haynes 1956).
+"""Critical temperatures of low-alloy steels from composition (Andrews 1965).
 
 Empirical linear regressions on wt %, in °C:
 
@@ -6,7 +6,6 @@ Empirical linear regressions on wt %, in °C:
 * Ac3 = 910 − 203 √C − 15.2 Ni + 44.7 Si + 104 V + 31.5 Mo + 13.1 W
         − (30 Mn + 11 Cr + 20 Cu − 700 P − 400 Al − 120 As − 400 Ti)         (Andrews 1965)
 * Ms  = 539 − 423 C − 30.4 Mn − 17.7 Ni − 12.1 Cr − 7.5 Mo                     (Andrews 1965, linear)
-* Bs  = 830 − 270 C − 90 Mn − 37 Ni − 70 Cr − 83 Mo                             (Steven & Haynes 1956)
 
 Ac1 and Ac3 are the temperatures on slow heating; the regressions scatter by about
 ±15–25 °C against measured values.  Ac3 is fitted for C < 0.6 %.
@@ -21,8 +20,6 @@ References
 K.W. Andrews, "Empirical formulae for the calculation of some transformation
 temperatures", J. Iron Steel Inst. 203 (1965) 721–727 (as reproduced in G. Krauss,
 *Steels: Heat Treatment and Processing Principles*, ASM 1990).
-W. Steven and A.G. Haynes, "The temperature of formation of martensite and bainite in
-low-alloy steels", J. Iron Steel Inst. 183 (1956) 349–359.
 """
 from __future__ import annotations
 
@@ -32,7 +29,6 @@ from .composition import el
 from . import validity
 
 ANDREWS = "Andrews, JISI 203 (1965) 721 (data ranges from memory)"
-STEVEN_HAYNES = "Steven & Haynes, JISI 183 (1956) 349 (data ranges from memory)"
 
 #: eutectoid carbon used to split hypo- from hypereutectoid steels, wt % (common practice)
 EUTECTOID_C = 0.77
@@ -46,8 +42,6 @@ validity.register("andrews_ac", {"C": (0.0, 0.6, "wt%"), "Mn": (0.0, 4.9, "wt%")
                   ANDREWS)
 validity.register("andrews_ms", {"C": (0.1, 0.6, "wt%"), "Mn": (0.0, 4.9, "wt%"), "Ni": (0.0, 5.0, "wt%"),
                                  "Cr": (0.0, 4.6, "wt%"), "Mo": (0.0, 5.4, "wt%")}, ANDREWS)
-validity.register("steven_haynes_bs", {"C": (0.1, 0.55, "wt%"), "Mn": (0.2, 1.7, "wt%"), "Ni": (0.0, 5.0, "wt%"),
-                                       "Cr": (0.0, 3.5, "wt%"), "Mo": (0.0, 1.0, "wt%")}, STEVEN_HAYNES)
 
 
 def ac1_c(comp):
@@ -71,7 +65,13 @@ def ac1_c(comp):
     References
     ----------
     Andrews, JISI 203 (1965) 721; equation verified against two reproductions
-    (models reference sheet §3).
+    (as reproduced in Krauss, Steels, ASM 1990).
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> s = {"C": 0.45, "Mn": 0.75, "Si": 0.25}
+    >>> round(float(ac1_c(s)))
+    722
     """
     return (723.0 - 10.7 * el(comp, "Mn") - 16.9 * el(comp, "Ni") + 29.1 * el(comp, "Si")
             + 16.9 * el(comp, "Cr") + 290.0 * el(comp, "As") + 6.38 * el(comp, "W"))
@@ -98,7 +98,13 @@ def ac3_c(comp):
 
     References
     ----------
-    Andrews, JISI 203 (1965) 721 (bracket form; models reference sheet §3).
+    Andrews, JISI 203 (1965) 721 (bracket form, as reproduced in Krauss, Steels, ASM 1990).
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> s = {"C": 0.45, "Mn": 0.75, "Si": 0.25}
+    >>> round(float(ac3_c(s)))
+    762
     """
     c = np.maximum(el(comp, "C"), 0.0)
     return (910.0 - 203.0 * np.sqrt(c) - 15.2 * el(comp, "Ni") + 44.7 * el(comp, "Si")
@@ -129,35 +135,16 @@ def ms_c(comp):
     References
     ----------
     Andrews, JISI 203 (1965) 721.
+
+    Example (from the source: Andrews (1965) linear form, hand evaluation for 0.45 C, 0.75 Mn:
+    539 - 190.35 - 22.8 = 325.85 °C)
+
+    >>> s = {"C": 0.45, "Mn": 0.75, "Si": 0.25}
+    >>> round(float(ms_c(s)), 2)
+    325.85
     """
     return (539.0 - 423.0 * el(comp, "C") - 30.4 * el(comp, "Mn") - 17.7 * el(comp, "Ni")
             - 12.1 * el(comp, "Cr") - 7.5 * el(comp, "Mo"))
-
-
-def bs_c(comp):
-    """Bainite start temperature Bs, °C (Steven & Haynes 1956).
-
-    Bs = 830 − 270 C − 90 Mn − 37 Ni − 70 Cr − 83 Mo
-
-    Parameters
-    ----------
-    comp : mapping
-        Element → wt %.
-
-    Returns
-    -------
-    ndarray, °C.
-
-    Validity
-    --------
-    ``steven_haynes_bs`` (low-alloy steels, C 0.1–0.55 %).
-
-    References
-    ----------
-    Steven & Haynes, JISI 183 (1956) 349.
-    """
-    return (830.0 - 270.0 * el(comp, "C") - 90.0 * el(comp, "Mn") - 37.0 * el(comp, "Ni")
-            - 70.0 * el(comp, "Cr") - 83.0 * el(comp, "Mo"))
 
 
 def default_austenitize_c(comp):
@@ -183,6 +170,12 @@ def default_austenitize_c(comp):
     ----------
     Common practice (austenitize 30–50 °C above Ac3; hypereutectoid steels about 50 °C
     above Ac1); Ac1 and Ac3 from Andrews (1965).
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> s = {"C": 0.45, "Mn": 0.75, "Si": 0.25}
+    >>> round(float(default_austenitize_c(s)))
+    802
     """
     c = el(comp, "C")
     return np.where(c < EUTECTOID_C, ac3_c(comp) + MARGIN_AC3_C, ac1_c(comp) + MARGIN_AC1_C)

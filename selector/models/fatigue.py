@@ -48,7 +48,7 @@ References
 J. Marin, *Mechanical Behavior of Engineering Materials*, Prentice-Hall (1962).
 R.G. Budynas, J.K. Nisbett, *Shigley's Mechanical Engineering Design*, 10th ed.,
 McGraw-Hill (2015), section 6-7 (eq. 6-8), 6-9 (Table 6-2, eqs. 6-20, 6-26, 6-27,
-Table 6-5) (values from memory; the project's models sheet lists the same constants).
+Table 6-5) (values from memory).
 Y. Murakami, *Metal Fatigue: Effects of Small Defects and Nonmetallic Inclusions*,
 Elsevier (2002), ch. 1-2 (sigma_w = 1.6 HV up to about 400 HV; from memory).
 R. Rennert et al., *FKM Guideline: Analytical Strength Assessment of Components*, 6th ed.,
@@ -90,7 +90,8 @@ validity.register("marin_size", {"diameter_mm": (None, 254.0, "mm")},
 validity.register("marin_temperature", {"temp_c": (None, 538.0, "°C")},
                   "Budynas & Nisbett (2015) eq. 6-27: 70–1000 °F")
 validity.register("murakami_2002", {"hardness_hv": (None, MURAKAMI_MAX_HV, "HV")},
-                  "Murakami (2002): sigma_w = 1.6 HV for defect-free steels up to about 400 HV")
+                  "Murakami (2002): sigma_w = 1.6 HV for defect-free steels up to about 400 HV",
+                  beyond="no estimate is given above it")
 
 _SURF = Schema((Column("finish", "choice", choices=FINISHES), Column("a_mpa", "float", lo=0.1, hi=1000),
                 Column("b", "float", lo=-2, hi=0), Column("source"),
@@ -117,17 +118,35 @@ def nonferrous_table() -> dict:
 
 
 def check_finish(finish) -> str:
-    """``finish`` if it is one of :data:`FINISHES`, else :class:`InputError`."""
+    """``finish`` if it is one of :data:`FINISHES`, else :class:`InputError`.
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> check_finish("ground")
+    'ground'
+    """
     return check_choice("finish", finish, FINISHES, "fatigue")
 
 
 def check_load_type(load_type) -> str:
-    """``load_type`` if it is one of :data:`LOAD_TYPES`, else :class:`InputError`."""
+    """``load_type`` if it is one of :data:`LOAD_TYPES`, else :class:`InputError`.
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> check_load_type("axial")
+    'axial'
+    """
     return check_choice("load_type", load_type, LOAD_TYPES, "fatigue")
 
 
 def check_reliability(reliability) -> float:
-    """``reliability`` as float if it is a number in [0.5, 0.9999], else :class:`InputError`."""
+    """``reliability`` as float if it is a number in [0.5, 0.9999], else :class:`InputError`.
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> check_reliability(0.99)
+    0.99
+    """
     lo, hi = RELIABILITY_RANGE
     allowed = f"a number in [{lo}, {hi}] (the range of Budynas & Nisbett Table 6-5)"
     if isinstance(reliability, bool) or not isinstance(reliability, (int, float, np.floating, np.integer)):
@@ -250,7 +269,13 @@ def size_factor(diameter_mm, load_type: str = "bending"):
 
 
 def load_factor(load_type: str = "bending") -> float:
-    """Marin load factor kc: bending 1, axial 0.85, torsion 0.59 (Budynas & Nisbett 2015, eq. 6-26)."""
+    """Marin load factor kc: bending 1, axial 0.85, torsion 0.59 (Budynas & Nisbett 2015, eq. 6-26).
+
+    Example (from the source: Budynas & Nisbett (2015) eq. 6-26: kc = 0.85 axial)
+
+    >>> load_factor("axial")
+    0.85
+    """
     return LOAD_FACTOR[check_load_type(load_type)]
 
 
@@ -295,6 +320,11 @@ def marin_factors(uts_mpa, diameter_mm, finish: str = "machined", load_type: str
     -------
     dict
         ``ka, kb, kc, kd, ke, product``.
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> round(float(marin_factors(520.0, 32.0)["kb"]), 3)
+    0.858
     """
     ka = surface_factor(uts_mpa, finish)
     kb = size_factor(diameter_mm, load_type)
@@ -319,6 +349,11 @@ def nonferrous_fatigue_strength_mpa(uts_mpa, family: str):
     ------
     InputError
         For a family not in the table.
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> [round(float(x)) for x in nonferrous_fatigue_strength_mpa(310.0, "aluminium")]
+    [124, 500000000]
     """
     table = nonferrous_table()
     ratio, cap, cycles, _s, _c = table[check_choice("family", family, list(table), "fatigue")]
@@ -329,7 +364,13 @@ def nonferrous_fatigue_strength_mpa(uts_mpa, family: str):
 
 
 def mean_stress_sensitivity(uts_mpa):
-    """FKM mean-stress sensitivity of steel, ``M = 0.35e-3 Rm - 0.1`` (Rennert et al. 2012, section 4.4)."""
+    """FKM mean-stress sensitivity of steel, ``M = 0.35e-3 Rm - 0.1`` (Rennert et al. 2012, section 4.4).
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> round(float(mean_stress_sensitivity(1000.0)), 3)
+    0.25
+    """
     return np.clip(0.35e-3 * np.asarray(uts_mpa, float) - 0.1, 0.0, 0.95)
 
 
@@ -353,6 +394,11 @@ def residual_stress_credit(fatigue_mpa, residual_mpa, uts_mpa):
     -------
     ndarray
         Fatigue strength amplitude, MPa.
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> round(float(residual_stress_credit(500.0, -300.0, 1500.0)))
+    628
     """
     sw = np.asarray(fatigue_mpa, float)
     r = np.minimum(np.asarray(residual_mpa, float), 0.0)

@@ -50,7 +50,7 @@ STILL_AIR_H_W_M2K = 80.0
 STEEL_RHO_C_J_M3K = 5.9e6
 
 GMP_REF = ("T. Gladman, I.D. McIvor & F.B. Pickering, JISI 210 (1972) 916 (ferrite-pearlite yield and "
-           "tensile strength; from memory, models reference §10)")
+           "tensile strength; from memory)")
 
 validity.register("gladman_mcivor_pickering", {"C": (0.0, 0.8, "wt%"), "Mn": (0.0, 1.6, "wt%"),
                                                "Si": (0.0, 0.6, "wt%"),
@@ -72,6 +72,12 @@ def pearlite_fraction(comp: Composition):
     ----------
     Fe–Fe3C phase diagram (eutectoid 0.76–0.77 % C; W.D. Callister, *Materials Science
     and Engineering*, common practice).
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> s = {"C": 0.45, "Mn": 0.75, "Si": 0.25}
+    >>> round(float(pearlite_fraction(s)), 3)
+    0.573
     """
     c = el(comp, "C")
     return np.clip((c - FERRITE_C_PCT) / (EUTECTOID_C_PCT - FERRITE_C_PCT), 0.0, 1.0)
@@ -86,6 +92,11 @@ def still_air_cooling_rate_k_s(diameter_mm):
 
     h = 80 W/(m² K), rho c = 5.9 MJ/(m³ K): about 1.5 K/s at 25 mm, 0.37 K/s at 100 mm.
     Newton cooling (Biot number h D / 4k below 0.1 up to about 150 mm).
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> round(float(still_air_cooling_rate_k_s(25.0)), 2)
+    1.48
     """
     d = _check("diameter_mm", diameter_mm, 0.0, None, "still_air_cooling_rate_k_s", lo_open=True)
     return 4.0 * STILL_AIR_H_W_M2K * 680.0 / (STEEL_RHO_C_J_M3K * d * 1e-3)
@@ -95,7 +106,13 @@ def transformation_undercooling_k(cooling_rate_k_s):
     """Undercooling below the eutectoid at which ferrite–pearlite forms on continuous
     cooling: ``75 K · rate^0.24`` (rate in K/s), fitted to common practice: about 25 K
     (transformation near 700 °C) for a furnace cool at 0.01 K/s and about 75 K (near
-    650 °C) for a still-air cool at 1 K/s."""
+    650 °C) for a still-air cool at 1 K/s.
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> round(float(transformation_undercooling_k(1.0)), 1)
+    75.0
+    """
     r = _check("cooling_rate_k_s", cooling_rate_k_s, 0.0, None, "transformation_undercooling_k", lo_open=True)
     return UNDERCOOLING_A_K * r ** UNDERCOOLING_B
 
@@ -106,6 +123,11 @@ def pearlite_spacing_um(undercooling_k):
     The spacing is inversely proportional to the undercooling below the eutectoid
     (C. Zener, Trans. AIME 167 (1946) 550; M. Hillert, 1962); the constant 8.02 µm·K is
     the Fe–C eutectoid value (from memory): 0.32 µm at 25 K, 0.11 µm at 75 K.
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> round(float(pearlite_spacing_um(25.0)), 4)
+    0.3208
     """
     dt = _check("undercooling_k", undercooling_k, 0.0, None, "pearlite_spacing_um", lo_open=True)
     return SPACING_UM_K / dt
@@ -127,6 +149,12 @@ def ferrite_grain_size_um(comp: Composition, austenite_grain_um, cooling_rate_k_
     P.D. Hodgson & R.K. Gibbs, "A mathematical model to predict the mechanical
     properties of hot rolled C-Mn and microalloyed steels", ISIJ Int. 32 (1992) 1329
     (from memory).
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> s = {"C": 0.45, "Mn": 0.75, "Si": 0.25}
+    >>> round(float(ferrite_grain_size_um(s, 60.0, 1.0)), 1)
+    5.9
     """
     dg = _check("austenite_grain_um", austenite_grain_um, 0.0, None, "ferrite_grain_size_um", lo_open=True)
     r = _check("cooling_rate_k_s", cooling_rate_k_s, 0.0, None, "ferrite_grain_size_um", lo_open=True)
@@ -174,13 +202,18 @@ def ferrite_pearlite_strength(comp: Composition, ferrite_grain_um, pearlite_spac
     ----------
     T. Gladman, I.D. McIvor & F.B. Pickering, "Some aspects of the structure–property
     relationships in high-carbon ferrite–pearlite steels", JISI 210 (1972) 916–930;
-    F.B. Pickering & T. Gladman, ISI Special Report 81 (1963) 10 (models reference §10,
-    from memory).
+    F.B. Pickering & T. Gladman, ISI Special Report 81 (1963) 10 (from memory).
 
     Example
     -------
     0.45 C, 0.75 Mn, 0.25 Si, 6 µm ferrite, 0.11 µm spacing (normalized 1045):
     about 380 / 690 MPa (handbook normalized 1045: 425 / 650-750 MPa).
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> s = {"C": 0.45, "Mn": 0.75, "Si": 0.25}
+    >>> [round(float(x)) for x in ferrite_pearlite_strength(s, 6.0, 0.11, free_n_pct=0.0)]
+    [378, 647]
     """
     d = _check("ferrite_grain_um", ferrite_grain_um, 0.0, None, "ferrite_pearlite_strength", lo_open=True) * 1e-3
     s = _check("pearlite_spacing_um", pearlite_spacing_um, 0.0, None, "ferrite_pearlite_strength",
@@ -205,6 +238,12 @@ def ferritic_strength_pickering_gladman(comp: Composition, ferrite_grain_um, pea
         UTS = 294 + 27.7 Mn + 83.2 Si + 3.85 P + 7.7 d^-1/2
 
     MPa, wt %, d in mm, P the pearlite percentage (default from the lever rule).
+
+    Example (from the source: Pickering & Gladman (1963), 15.4 x [3.5 + 2.1 Mn + 5.4 Si + 1.13
+    d^-1/2] for 1.0 Mn, 0.2 Si, d = 0.01 mm: 276.9 MPa (hand evaluation, from memory))
+
+    >>> round(float(ferritic_strength_pickering_gladman({"C": 0.1, "Mn": 1.0, "Si": 0.2}, 10.0, free_n_pct=0.0)[0]), 1)
+    276.8
     """
     d = _check("ferrite_grain_um", ferrite_grain_um, 0.0, None, "ferritic_strength_pickering_gladman",
                lo_open=True) * 1e-3
@@ -223,7 +262,14 @@ def anneal_microstructure(comp: Composition, temp_c, hours, cooling_rate_k_s, in
     """Microstructure of an anneal / normalize: austenite grain (Sellars–Whiteman growth
     law), ferrite grain (Hodgson & Gibbs), undercooling and pearlite spacing, pearlite
     fraction.  Returns dict ``austenite_grain_um, ferrite_grain_um, undercooling_k,
-    pearlite_spacing_um, pearlite_fraction``."""
+    pearlite_spacing_um, pearlite_fraction``.
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> s = {"C": 0.45, "Mn": 0.75, "Si": 0.25}
+    >>> round(float(anneal_microstructure(s, 845.0, 1.0, 0.01)["ferrite_grain_um"]), 1)
+    32.3
+    """
     dg = austenite_grain_size_um(temp_c, hours, initial_um)
     dt = transformation_undercooling_k(cooling_rate_k_s)
     return {"austenite_grain_um": dg, "ferrite_grain_um": ferrite_grain_size_um(comp, dg, cooling_rate_k_s),
@@ -235,7 +281,14 @@ def anneal_properties(comp: Composition, temp_c, hours, cooling_rate_k_s, free_n
     """Yield and tensile strength after austenitizing at ``temp_c`` for ``hours`` and
     cooling at ``cooling_rate_k_s`` (furnace: :data:`FURNACE_COOL_K_S`; still air:
     :func:`still_air_cooling_rate_k_s`), with the microstructure of
-    :func:`anneal_microstructure`.  Free N defaults to 0 (Al-killed)."""
+    :func:`anneal_microstructure`.  Free N defaults to 0 (Al-killed).
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> s = {"C": 0.45, "Mn": 0.75, "Si": 0.25}
+    >>> round(float(anneal_properties(s, 845.0, 1.0, 0.01)["uts_mpa"]))
+    512
+    """
     m = anneal_microstructure(comp, temp_c, hours, cooling_rate_k_s)
     ys, uts = ferrite_pearlite_strength(comp, m["ferrite_grain_um"], m["pearlite_spacing_um"], free_n_pct)
     return {**m, "yield_mpa": ys, "uts_mpa": uts}

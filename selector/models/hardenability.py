@@ -22,8 +22,7 @@ Two steps, after the calculation method of ASTM A255 (based on Grossmann 1942):
 Sources and confidence (see ``docs/methods/hardenability.md``):
 
 * composition limits (A255 §1.3): verified in two copies of the standard;
-* carbon-base and alloy multiplying-factor fits: recalled (models reference sheet
-  §1.3, §1.5) and confirmed by an independent secondary reproduction of the A255
+* carbon-base and alloy multiplying-factor fits: recalled (from memory) and confirmed by an independent secondary reproduction of the A255
   method that also reproduces A255's worked example (SAE 4118 modified, DI = 1.95 in):
   partial;
 * grain-size correction DI_C(G) = DI_C(7)·1.08^(7−G): a fit of ratios read from the
@@ -130,6 +129,12 @@ def austenite_carbon_pct(c_pct, austenitize_c):
     Examples
     --------
     1095 (0.95 % C) at 780 °C: C_γ = 0.77 + 53 × 0.00318 = 0.94 %.
+
+    Example (from the source: the Fe-Fe3C Acm line through 0.77 % at 727 °C and 2.11 % at 1148
+    °C: 0.939 % at 780 °C (hand evaluation))
+
+    >>> round(float(austenite_carbon_pct(0.965, 780.0)), 3)
+    0.939
     """
     c = np.asarray(c_pct, float)
     t = np.asarray(austenitize_c, float)
@@ -144,6 +149,12 @@ def carbon_factor_in(c_pct, grain_size_astm=7.0):
     DI_C(7) = 0.54 C (C ≤ 0.39); 0.171 + 0.001 C + 0.265 C² (≤ 0.55);
     0.115 + 0.268 C − 0.038 C² (≤ 0.65); 0.143 + 0.200 C (≤ 0.75);
     0.062 + 0.409 C − 0.135 C² (≤ 0.90); DI_C(G) = DI_C(7) · 1.08^(7 − G).
+
+    Example (from the source: ASTM A255 carbon multiplying factor at 0.45 % C, grain size 7:
+    0.225 in (from memory))
+
+    >>> round(float(carbon_factor_in(0.45)), 3)
+    0.225
     """
     c = np.clip(np.asarray(c_pct, float), 0.0, 0.90)
     base = np.select(
@@ -160,6 +171,13 @@ def alloy_factors(comp) -> dict:
     Mn: 1 + 3.3333 Mn (≤ 1.20), 5.10 Mn − 1.12 (above); Si: 1 + 0.70 Si;
     Ni: 1 + 0.363 Ni (≤ 1.50), 0.3211 + 1.4501 Ni − 0.6119 Ni² + 0.1253 Ni³ (above);
     Cr: 1 + 2.16 Cr; Mo: 1 + 3.00 Mo; Cu: 1 + 0.365 Cu; V: 1 + 1.73 V; Zr: 1 + 2.5 Zr.
+
+    Example (from the source: ASTM A255 worked example (SAE 4118 modified, as reproduced in a
+    secondary source): Mn factor 3.667, Cr 1.929)
+
+    >>> s = {"C": 0.22, "Mn": 0.80, "Si": 0.18, "Ni": 0.10, "Cr": 0.43, "Mo": 0.25, "Cu": 0.10, "V": 0.05}
+    >>> [round(float(alloy_factors(s)[e]), 3) for e in ("Mn", "Cr")]
+    [3.667, 1.929]
     """
     mn, ni = el(comp, "Mn"), el(comp, "Ni")
     return {
@@ -180,6 +198,11 @@ def boron_factor(comp):
     BF = max(1, 1 + 1.5 (0.9 − C)) where B ≥ 0.0005 %, else 1.  The A255 table
     (BF against carbon and alloy factor) was not obtained; the real effect also
     falls as the alloy factor rises and needs protected (Ti/Al-bound N) boron.
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> float(boron_factor({"C": 0.4}))
+    1.0
     """
     c = el(comp, "C")
     b = el(comp, "B")
@@ -220,6 +243,13 @@ def ideal_critical_diameter_in(comp, grain_size_astm=7):
     --------
     A255's worked example (SAE 4118 modified: 0.22 C, 0.80 Mn, 0.18 Si, 0.10 Ni,
     0.43 Cr, 0.25 Mo, 0.10 Cu, 0.05 V) gives DI = 1.95 in.
+
+    Example (from the source: ASTM A255 worked example (SAE 4118 modified): DI = 1.95 in with
+    rounded factors, 1.93 in unrounded)
+
+    >>> s = {"C": 0.22, "Mn": 0.80, "Si": 0.18, "Ni": 0.10, "Cr": 0.43, "Mo": 0.25, "Cu": 0.10, "V": 0.05}
+    >>> round(float(ideal_critical_diameter_in(s)), 2)
+    1.93
     """
     for e in ("C", "Mn", "Si", "Ni", "Cr", "Mo", "Cu", "V", "B", "Zr"):
         v = el(comp, e)
@@ -235,7 +265,15 @@ def ideal_critical_diameter_in(comp, grain_size_astm=7):
 
 
 def di_mm(comp, grain_size_astm=7):
-    """Ideal critical diameter in mm (25.4 mm/in × :func:`ideal_critical_diameter_in`)."""
+    """Ideal critical diameter in mm (25.4 × :func:`ideal_critical_diameter_in`).
+
+    Example (from the source: ASTM A255 worked example (SAE 4118 modified): DI = 1.95 in; the
+    example rounds each factor, unrounded 1.93 in (49.1 mm))
+
+    >>> s = {"C": 0.22, "Mn": 0.80, "Si": 0.18, "Ni": 0.10, "Cr": 0.43, "Mo": 0.25, "Cu": 0.10, "V": 0.05}
+    >>> round(float(di_mm(s)), 1)
+    49.1
+    """
     return MM_PER_IN * ideal_critical_diameter_in(comp, grain_size_astm)
 
 
@@ -268,6 +306,11 @@ def dividing_factor(di_mm_value, distance_mm):
 
     Bilinear interpolation of the monotone grid; DI held within 10–160 mm, d within
     J1 (1.59 mm, DF = 1) to 50 mm.
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> round(float(dividing_factor(100.0, 10.0)), 3)
+    1.118
     """
     dn, df = _df_grid()
     di = np.clip(np.asarray(di_mm_value, float), _DI_LO_MM, _DI_HI_MM)
@@ -301,6 +344,11 @@ def j50_table():
     Returns
     -------
     (di_grid_mm, r_grid, j50_mm) with shapes (151,), (201,), (151, 201).
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> len(j50_table()) > 0
+    True
     """
     df = dividing_factor(_DI_GRID[:, None], _J_FINE_MM[None, :])            # (nDI, nd), non-decreasing in d
     out = np.full((len(_DI_GRID), len(_R_GRID)), np.nan)
@@ -331,6 +379,11 @@ def j50_mm(c_pct, di_mm_value):
     Returns
     -------
     ndarray, mm, the broadcast shape.
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> round(float(j50_mm(0.40, 100.0)), 1)
+    17.0
     """
     gd, gr, tab = _j50_cached()
     c, di = np.broadcast_arrays(np.asarray(c_pct, float), np.asarray(di_mm_value, float))
@@ -374,6 +427,11 @@ def di_distance_scale(c_pct, di_mm_value):
     ----------
     Grossmann, Elements of Hardenability (ASM 1952); ASTM A255-10 (definition of DI);
     Hodge & Orehoski, Trans. AIME 167 (1946) 627 (50 % martensite hardness).
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> round(float(di_distance_scale(0.40, 100.0)), 3)
+    0.976
     """
     c, di = np.broadcast_arrays(np.asarray(c_pct, float), np.asarray(di_mm_value, float))
     j50 = j50_mm(c, di)
@@ -388,6 +446,12 @@ def jominy_hardness_hrc(comp, distance_mm, grain_size_astm=7):
 
     HRC = IH(C) / DF(DI, J1 + s·(d − J1)), s = :func:`di_distance_scale` (the DI definition).  See
     :func:`jominy_curve_hrc` for the curve form.
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> s = {"C": 0.40, "Mn": 0.875, "Si": 0.25, "Cr": 0.95, "Mo": 0.20}
+    >>> round(float(jominy_hardness_hrc(s, 1.5)), 1)
+    56.1
     """
     d = np.asarray(distance_mm, float)
     if np.any(np.isnan(d)) or np.any(d < 0):
@@ -398,7 +462,13 @@ def jominy_hardness_hrc(comp, distance_mm, grain_size_astm=7):
 
 
 def scaled_distance_mm(distance_mm, scale):
-    """J1 + s·(d − J1), never below 0: the distance at which the fallback dividing factors are read."""
+    """J1 + s·(d − J1), never below 0: the distance at which the fallback dividing factors are read.
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> float(scaled_distance_mm(10.0, 1.2))
+    11.6825
+    """
     d = np.asarray(distance_mm, float)
     return np.maximum(J1_MM + np.asarray(scale, float) * (d - J1_MM), 0.0)
 
@@ -431,6 +501,12 @@ def jominy_curve_hrc(comp, distances_mm, grain_size_astm=7):
     References
     ----------
     ASTM A255-10, calculation of the end-quench curve from DI (IH and dividing factors).
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> s = {"C": 0.40, "Mn": 0.875, "Si": 0.25, "Cr": 0.95, "Mo": 0.20}
+    >>> [round(float(x), 1) for x in jominy_curve_hrc(s, [1.5, 25.0])]
+    [56.1, 41.1]
     """
     dist = np.atleast_1d(np.asarray(distances_mm, float))
     if dist.ndim != 1:

@@ -39,7 +39,7 @@ DIN_50190_DELTA_HV = 50.0
 TEMPER_MARGIN_C = 30.0
 
 REF_DEPTH = ("x = K sqrt(t), parabolic diffusion-zone growth (case-hardening introduction, vdocuments.mx; "
-             "K from memory, models reference §11); depth to core + 50 HV per DIN 50190-3")
+             "K from memory); depth to core + 50 HV per DIN 50190-3")
 REF_HV = "fitted to ASM Handbook Vol. 4 'Gas nitriding' typical surface hardness (from memory)"
 GAS_NITRIDING_RANGE_C = (495.0, 565.0)
 
@@ -95,6 +95,11 @@ def nitriding_rate_mm_per_sqrt_h(temp_c):
     ----------
     J.D. Fast & M.B. Verrijp, JISI 176 (1954) 24 (N diffusion in alpha-iron);
     ASM Handbook Vol. 4, "Gas nitriding" (case depth against time, from memory).
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> round(float(nitriding_rate_mm_per_sqrt_h(525.0)), 3)
+    0.072
     """
     k = _constants()
     t = np.asarray(temp_c, float)
@@ -131,6 +136,12 @@ def nitrided_case_depth_mm(temp_c, hours):
     References
     ----------
     DIN 50190-3 (nitriding hardness depth); see :func:`nitriding_rate_mm_per_sqrt_h`.
+
+    Example (from the source: about 0.5 mm in 48 h at about 525 °C for Al-Cr-Mo nitriding steels
+    (ASM Handbook Vol. 4, gas nitriding; from memory))
+
+    >>> round(float(nitrided_case_depth_mm(525.0, 48.0)), 2)
+    0.5
     """
     h = _arr("hours", hours, "nitrided_case_depth_mm")
     return nitriding_rate_mm_per_sqrt_h(temp_c) * np.sqrt(h)
@@ -166,6 +177,11 @@ def surface_hardness_hv(comp: Composition):
     ----------
     ASM Handbook Vol. 4, "Gas nitriding", typical surface hardness tables (values
     from memory); constants in ``data/nitriding_constants.csv``.
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> round(float(surface_hardness_hv({"C": 0.40, "Cr": 1.6, "Al": 1.1, "Mo": 0.35})))
+    1041
     """
     k = _constants()
     s = sum(k[f"w_{x}"] * el(comp, x) for x in NITRIDE_FORMERS)
@@ -203,6 +219,13 @@ def hardness_profile_hv(depth_mm, temp_c, hours, comp: Composition, core_hardnes
     References
     ----------
     DIN 50190-3 (core + 50 HV); shape assumed (erfc, the diffusion-zone form).
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> import numpy as np
+    >>> s = {"C": 0.40, "Cr": 1.6, "Al": 1.1, "Mo": 0.35}
+    >>> [round(float(x)) for x in hardness_profile_hv(np.array([0.0, 1.0]), 525.0, 48.0, s, 300.0)]
+    [1041, 300]
     """
     x = _arr("depth_mm", depth_mm, "hardness_profile_hv")
     core = _arr("core_hardness_hv", core_hardness_hv, "hardness_profile_hv", positive=True)
@@ -222,6 +245,11 @@ def nitriding_cautions(temp_c, prior_temper_temp_c=None) -> list[str]:
     * temperature outside 495–565 °C (gas nitriding practice);
     * prior tempering temperature less than 30 °C above the nitriding temperature:
       the core softens during nitriding (common practice).
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> len(nitriding_cautions(600.0))
+    1
     """
     msgs = []
     t = np.atleast_1d(np.asarray(temp_c, float))

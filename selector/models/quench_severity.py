@@ -71,7 +71,13 @@ def _table() -> dict:
 
 
 def table_rows():
-    """The quench-severity rows as a DataFrame (medium, agitation, range, value, source, confidence)."""
+    """The quench-severity rows as a DataFrame (medium, agitation, range, value, source, confidence).
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> len(table_rows()) > 0
+    True
+    """
     return read_table("quench_severity.csv", schema=_SCHEMA)
 
 
@@ -117,6 +123,12 @@ def grossmann_h_per_in(quench, agitation="moderate"):
     ----------
     Grossmann, *Elements of Hardenability*, ASM 1952, H table (via ASM Handbook Vol. 4),
     values from memory; air derived from h ≈ 70 W m⁻² K⁻¹ and k = 27 W m⁻¹ K⁻¹.
+
+    Example (from the source: Grossmann (1952) H table as reproduced in ASM Handbook Vol. 4:
+    oil, moderate agitation 0.35-0.40 in^-1 (from memory))
+
+    >>> float(grossmann_h_per_in("oil", "moderate"))
+    0.375
     """
     tab = _table()
     if isinstance(quench, str) and isinstance(agitation, str):
@@ -158,6 +170,11 @@ def heat_transfer_coefficient_w_m2k(h_per_in, conductivity_w_mk=K_STEEL_W_MK):
     ----------
     Definition of H (Grossmann 1952); see thermalprocessing.com, "Determining Grossmann
     H value from cooling curve data".
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> round(float(heat_transfer_coefficient_w_m2k(1.0)))
+    2126
     """
     h = np.asarray(h_per_in, float)
     k = np.asarray(conductivity_w_mk, float)

@@ -54,7 +54,14 @@ validity.register("stress_relief", {"temp_c": (250.0, 700.0, "°C"), "hours": (0
 
 
 def hollomon_jaffe_parameter(temp_c, hours):
-    """P = T_K (20 + log10 t_h), K (Hollomon & Jaffe 1945)."""
+    """P = T_K (20 + log10 t_h), K (Hollomon & Jaffe 1945).
+
+    Example (from the source: Hollomon & Jaffe (1945), P = T_K (C + log10 t): one hour at 480 °C
+    with C = 20 is 753.15 x 20)
+
+    >>> round(float(hollomon_jaffe_parameter(480.0, 1.0)), 1)
+    15063.0
+    """
     t = np.asarray(temp_c, float) + 273.15
     h = np.maximum(np.asarray(hours, float), 1e-3)
     return t * (HJ_C + np.log10(h))
@@ -62,7 +69,13 @@ def hollomon_jaffe_parameter(temp_c, hours):
 
 def cold_work_loss_fraction(temp_c, hours):
     """Fraction (0..1) of the cold-work strength increment lost by a soak of
-    ``hours`` h at ``temp_c`` °C (0 below 480 °C-1 h equivalent, 1 at 650 °C-1 h)."""
+    ``hours`` h at ``temp_c`` °C (0 below 480 °C-1 h equivalent, 1 at 650 °C-1 h).
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> round(float(cold_work_loss_fraction(600.0, 1.0)), 3)
+    0.706
+    """
     p = hollomon_jaffe_parameter(temp_c, hours)
     lo = hollomon_jaffe_parameter(LOSS_START_C, 1.0)
     hi = hollomon_jaffe_parameter(LOSS_END_C, 1.0)
@@ -83,6 +96,11 @@ def stress_relieved_properties(temp_c, hours, uts_cw_mpa, yield_cw_mpa, elongati
     Returns
     -------
     dict of arrays ``uts_mpa``, ``yield_mpa``, ``elongation_pct``, ``loss_fraction``.
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> round(float(stress_relieved_properties(600.0, 1.0, 700.0, 600.0, 10.0, 500.0, 300.0, 30.0)["uts_mpa"]))
+    559
     """
     f = cold_work_loss_fraction(temp_c, hours)
     ys_cw, ys_a = np.asarray(yield_cw_mpa, float), np.asarray(yield_annealed_mpa, float)

@@ -12,7 +12,7 @@ from ..catalogue import heat
 from ..catalogue.grades import Grade, default_catalogue
 from ..errors import InputError, RouteError, check_choice
 from ..models import conversions, validity
-from . import bands, families, fatigue, steps as steps_mod
+from . import bands, families, fatigue, model_inputs, steps as steps_mod
 from .families.base import Batch, tension_test_position
 
 STEEL_SCALE_FAMILIES = ("carbon_steel", "alloy_steel", "carburizing_steel", "nitriding_steel",
@@ -67,12 +67,18 @@ BELOW_TABLE_NOTE = ("tensile strength below the lowest row of the tensile-streng
 
 
 def finish(res: dict, batch: Batch, route: str = bands.ANY) -> dict:
-    """Add what every family shares (in place) and return ``res``: the scale
-    conversions, the note for states whose strength is undefined because their
-    hardness is off the conversion table, and the 90 % prediction band
-    (``<key>_lo``/``<key>_hi``, :mod:`selector.routes.bands`) of tensile and yield
-    strength, elongation and hardness (HV, with its HRC/HB conversions) for the
-    route family ``route``."""
+    """Add what every family shares (in place) and return ``res``: the validity notes of
+    every model input the route family ``route`` declares (``RouteFamily.model_inputs``,
+    :mod:`selector.routes.model_inputs`: a visible warning, per state, naming the model,
+    the variable, its value and the registered range), the scale conversions, the note
+    for states whose strength is undefined because their hardness is off the conversion
+    table, and the 90 % prediction band (``<key>_lo``/``<key>_hi``,
+    :mod:`selector.routes.bands`) of tensile and yield strength, elongation and hardness
+    (HV, with its HRC/HB conversions) for the route family ``route``."""
+    if route in families.MODULES:
+        declared = families.get(route).model_inputs
+        res.setdefault("notes", []).extend(model_inputs.validity_notes(declared, res, batch))
+    res.pop("model_inputs", None)
     fam = batch.attr("family")
     hv_test = np.asarray(res.get("hardness_hv", np.full(batch.n, np.nan)), float)
     uts = np.asarray(res.get("uts_mpa", np.full(batch.n, np.nan)), float)
@@ -241,9 +247,10 @@ def _add_fatigue(out: dict, res: dict, batch: Batch, route: str, section: float,
         rec["through_depth"] = {k: (v.round(4).tolist() if isinstance(v, np.ndarray) else round(v, 4))
                                 for k, v in td.items()}
     out["fatigue"] = rec
-    msgs = validity.check("marin_size", diameter_mm=section)
-    if temp_c is not None:
-        msgs += validity.check("marin_temperature", temp_c=temp_c)
+    used = {"section_mm": section, "temp_c": temp_c,
+            "hardness_hv": hv if out.get("family") in fatigue.STEEL_FAMILIES else None}
+    msgs = [m for inp in fatigue.MODEL_INPUTS if used[inp.name] is not None
+            for m in validity.check(inp.model, **{inp.variable: used[inp.name]})]
     out["warnings"] = list(dict.fromkeys(out["warnings"] + msgs))
     out["sources"].append("fatigue: Marin (1962) factors as tabulated in Budynas & Nisbett, Shigley's "
                           "Mechanical Engineering Design, 10th ed. (2015), sec. 6-7 to 6-9 (data/fatigue_surface.csv); "

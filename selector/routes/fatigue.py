@@ -31,7 +31,7 @@ The band (``_lo``/``_hi``) follows the tensile-strength band of the state
 band's edges; case-hardened states scale by ``uts_mpa_lo / uts_mpa``.
 
 References: as :mod:`selector.models.fatigue`; the depth check is the usual practice
-for case-hardened parts (the project's models sheet, section 14: common practice).
+for case-hardened parts (common practice).
 """
 from __future__ import annotations
 
@@ -42,6 +42,13 @@ import numpy as np
 from ..catalogue.loader import Column, Schema, read_table
 from ..models import conversions
 from ..models import fatigue as fm
+from .model_inputs import uses
+
+#: the model inputs of the fatigue stage, every route alike (checked by ``routes.evaluate``: the
+#: section and service temperature against the Marin factors, the hardness against Murakami's
+#: estimate of a polished steel, which is not given above its range)
+MODEL_INPUTS = (uses("marin_size", diameter_mm="section_mm") + uses("marin_temperature", "temp_c")
+                + uses("murakami_2002", "hardness_hv"))
 
 CASE_ROUTES = ("carburize", "nitride", "induction")
 STEEL_FAMILIES = ("carbon_steel", "alloy_steel", "carburizing_steel", "nitriding_steel",

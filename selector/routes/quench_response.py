@@ -26,7 +26,7 @@ from __future__ import annotations
 import numpy as np
 
 from ..errors import InputError
-from ..models import conversions, cooling, critical_temperatures, hardenability, quench_severity, validity
+from ..models import conversions, cooling, critical_temperatures, hardenability, quench_severity
 from ..models.composition import el
 from ..models.martensite import ih_hrc, martensite_hardness_hrc
 
@@ -188,12 +188,8 @@ def as_quenched_profile(comp, quench, agitation="moderate", diameter_mm=None, th
     kw = {size_name: size}
     rate_conduction = cooling.cooling_rate_at_c_s(h_w, positions=tuple(pos), austenitize_c=t0, **kw)
     bi = cooling.biot_number(h_w, **kw)
-    warn(bi > 100.0, "Biot number above 100: surface cooling rate taken at Bi = 100",
-         lambda i: f"{q[i]}/{a[i]}, {size[i]:g} mm")
-    bi_lo = validity.get("jominy_rate_factor").ranges["biot"][0]
-    warn(bi < bi_lo, f"jominy_rate_factor: Biot number below {bi_lo:g} "
-                     f"({validity.get('jominy_rate_factor').reference}): effective cooling rate extrapolated",
-         lambda i: f"{q[i]}/{a[i]}, {size_name} = {size[i]:g}, Bi = {bi[i]:.3f}")
+    # Bi outside the conduction table and the chart-anchored rate factor: the route's
+    # model_inputs (quench_cooling, jominy_rate_factor), checked by routes.evaluate.finish
 
     # Jominy equivalence and A255 hardness
     # carbon in austenite: the steel's carbon, or for hypereutectoid steels what the Acm line lets
@@ -211,15 +207,8 @@ def as_quenched_profile(comp, quench, agitation="moderate", diameter_mm=None, th
     mart = martensite_pct_from_hardness(c[:, None], hrc)
     hv = _hrc_to_hv(hrc)
 
-    # validity and metallurgical warnings, each naming the states
-    ranges = validity.get("astm_a255").ranges
-    for e, (lo, hi, unit) in ranges.items():
-        x = el(comp1, e) * np.ones(n)
-        bad = (x < lo - 1e-9) | ((x > hi + 1e-9) & (e != "C"))     # high C: the fallback warning below
-        warn(bad, f"astm_a255: {e} outside {lo:g}-{hi:g} {unit} ({validity.get('astm_a255').reference}); "
-                  "DI and Jominy curve extrapolated", lambda i, x=x, e=e: f"{e} = {x[i]:.3g} {unit}")
-    warn((di < 10.0) | (di > 160.0), "DI outside 10-160 mm of the dividing-factor fit; end value held",
-         lambda i: f"DI = {di[i]:.0f} mm")
+    # metallurgical warnings, each naming the states (the registered validity ranges: the
+    # route's model_inputs, checked by routes.evaluate.finish)
     warn(np.any(jmm > DF_MAX_MM, axis=1),
          "Jominy-equivalent distance beyond 50 mm (slow cooling, e.g. air): hardness is the 50 mm value, "
          "an upper estimate", lambda i: f"{q[i]}/{a[i]}, {size[i]:g} mm, J = {jmm[i].max():.0f} mm")
@@ -228,18 +217,11 @@ def as_quenched_profile(comp, quench, agitation="moderate", diameter_mm=None, th
          "Fe-Fe3C Acm line at the austenitizing temperature, A255 carbon factor fitted to 0.90 % C, "
          "initial hardness held at its 0.70 % C value; docs/methods/hardenability.md)",
          lambda i: f"C = {c_steel[i]:.2f} wt%, in austenite {c[i]:.2f} wt% at {t0[i]:.0f} C")
-    hc_hi = validity.get("high_carbon_fallback").ranges["C"][1]
-    warn(c_steel > hc_hi + 1e-9, f"high_carbon_fallback: C above {hc_hi:g} wt%, beyond the range the fallback "
-                                 "is stated for; hardenability extrapolated", lambda i: f"C = {c_steel[i]:.2f} wt%")
     centre = int(np.argmin(pos))
     warn(mart[:, centre] < 50.0, "as-quenched centre below 50 % martensite (not through-hardened)",
          lambda i: f"{q[i]}/{a[i]}, {size_name} = {size[i]:g}, centre {mart[i, centre]:.0f} % martensite")
     warn(np.any(hrc < 20.0, axis=1), "hardness below HRC 20: HV extrapolated below ASTM E140 Table 1",
          lambda i: f"{hrc[i].min():.1f} HRC")
-    warn(c > 0.6 + 1e-9, f"andrews_ac: C above 0.6 wt% ({critical_temperatures.ANDREWS}); Ac3 and Ms extrapolated",
-         lambda i: f"C = {c[i]:.2f} wt%")
-    warn((g < 5) | (g > 9), "grain size outside ASTM 5-9 of the Grossmann grain-size fit",
-         lambda i: f"G = {g[i]:g}")
 
     return {
         "positions": pos,
@@ -255,4 +237,11 @@ def as_quenched_profile(comp, quench, agitation="moderate", diameter_mm=None, th
         "ac3_c": ac3,
         "austenitize_c": t0,
         "warnings": warnings,
+        # the inputs of the chain's models, for the route's validity checks
+        "h_per_in": h_in,
+        "biot": bi,
+        "theta": (700.0 - cooling.BATH_C) / (t0 - cooling.BATH_C),   # rate taken at 700 C (cooling_rate_at_c_s)
+        "steel_carbon_pct": c_steel,
+        "austenite_carbon_pct": c,
+        "grain_size_astm": g,
     }

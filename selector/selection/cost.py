@@ -16,13 +16,12 @@ import numpy as np
 import pandas as pd
 
 from .. import inputs
-from ..catalogue.grades import default_catalogue
+from ..catalogue.grades import FAMILIES, default_catalogue
 from ..catalogue.loader import CONFIDENCE, Column, Schema, parse_text, decode_bytes, read_table
 from ..errors import DataFileError, InputError
 
-def _check_cost_families(row):
-    from ..catalogue.grades import FAMILIES
 
+def _check_cost_families(row):
     bad = [f for f in str(row.get("families") or "").split(";") if f.strip() and f.strip() not in FAMILIES]
     if bad:
         return ("families", f"{bad[0]!r} is not a grade family; allowed: {', '.join(FAMILIES)}")

@@ -17,8 +17,12 @@ from __future__ import annotations
 import numpy as np
 
 from ...errors import NotModelledError, RouteError
-from ...models import aging as ag, conversions, validity
+from ...models import aging as ag, conversions
+from ..model_inputs import uses
 from .base import Batch, RouteFamily
+
+#: the calibrated aging models (``aging.AgingConstants.model``), one per alloy class
+AGING_MODELS = ("shercliff_ashby_aluminium", "shercliff_ashby_ph_stainless", "shercliff_ashby_c17200")
 
 ROUTE = "age"
 
@@ -67,6 +71,7 @@ class Age(RouteFamily):
     main_parameter = "age_hours"
     parameters = ("solution_temp_c", "age_temp_c", "age_hours", "age2_temp_c", "age2_hours", "designation")
     families = ("aluminium", "stainless_ph", "copper_alloy")
+    model_inputs = sum((uses(m, temp_c="aging_temp_c", hours="aging_hours", where=m) for m in AGING_MODELS), ())
     references = (
         "H.R. Shercliff & M.F. Ashby, Acta Metall. Mater. 38 (1990) 1789-1802 and 1803-1812 (aging process model)",
         "calibration: Aluminum Association typical tempers, ASTM B196 (C17200): data/aging_calibration.csv; "
@@ -187,12 +192,9 @@ class Age(RouteFamily):
              "modelled; common practice)", (batch.attr("family").astype(str) == "aluminium")
              & (batch.section_mm > 75.0)),
         ]
-        for model in sorted(set(c.model)):
-            m = np.array([x == model for x in c.model]) & ~natural
-            bad = m & validity.out_of_range_mask(model, temp_c=np.where(m, t_last, np.nan_to_num(t_last, nan=0.0)),
-                                                 hours=np.where(two, h2, h1))
-            notes.append((f"aging schedule outside the calibrated range of {model} "
-                          f"({validity.get(model).reference}): extrapolated", bad))
+        # the schedule's last step against the calibrated range of the state's own model
+        out["model_inputs"] = {"aging_temp_c": t_last, "aging_hours": np.where(two, h2, h1),
+                               **{m: (np.asarray(c.model, dtype=object) == m) & ~natural for m in AGING_MODELS}}
         out["notes"] = notes
         return out
 

@@ -15,8 +15,9 @@ from __future__ import annotations
 
 import numpy as np
 
-from ...models import conversions, critical_temperatures, ferrite_pearlite as fp, grain_size, validity  # noqa: F401 (grain_size registers its validity range)
+from ...models import conversions, critical_temperatures, ferrite_pearlite as fp
 from ...models.composition import el
+from ..model_inputs import uses
 from .base import Batch, RouteFamily
 
 MODELLED = ("carbon_steel", "alloy_steel", "carburizing_steel")
@@ -43,6 +44,15 @@ class _Soften(RouteFamily):
     main_parameter = "temp_c"
     parameters = ("temp_c", "hours")
     references = REFERENCES
+    #: Andrews Ac3 decides whether the ferrite-pearlite chain applies; the chain on the modelled states
+    model_inputs = (
+        uses("andrews_ac", "C", "Mn", "Si", "Ni", "Cr", "Mo", where="ferrite_pearlite_family")
+        + uses("austenite_grain_growth", "temp_c", "hours", where="modelled")
+        + uses("hodgson_gibbs_ferrite_grain", "ceq", "cooling_rate_k_s", "austenite_grain_um", where="modelled")
+        + uses("gladman_mcivor_pickering", "C", "Mn", "Si", "ferrite_grain_um", "pearlite_spacing_um",
+               where="modelled")
+        + uses("astm_e140", "uts_mpa", where="modelled")
+    )
 
     def parse(self, steps, grade):
         self.require_family(grade)
@@ -114,10 +124,9 @@ class _Soften(RouteFamily):
              np.isin(fam, MODELLED) & (temp < ac3)),
             ("alloy steel: strength scaled from the catalogue anneal by the ferrite-pearlite model "
              "(Gladman, McIvor & Pickering 1972 has no Cr, Mo, Ni terms)", modelled & np.isin(fam, ANCHORED)),
-            ("grain growth law outside its fitted range (Sellars & Whiteman 1979); fine-grain Al-killed steels "
-             "grow less below about 1000 °C", modelled & validity.out_of_range_mask("austenite_grain_growth",
-                                                                                   temp_c=temp, hours=hours)),
         ]
+        out["model_inputs"] = {"modelled": modelled, "ferrite_pearlite_family": np.isin(fam, MODELLED),
+                               "ceq": carbon + el(comp, "Mn") / 6.0, "cooling_rate_k_s": self.rate(batch)}
         return out
 
 

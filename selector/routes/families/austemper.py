@@ -56,10 +56,11 @@ from __future__ import annotations
 
 import numpy as np
 
-from ...models import conversions, cooling, phase_hardness, quench_severity, tempering, transformation, validity
+from ...models import conversions, cooling, phase_hardness, quench_severity, tempering, transformation
 from ...models.composition import el
 from ...models.martensite import martensite_hardness_hrc
 from ...errors import NotModelledError
+from ..model_inputs import uses
 from .base import Batch, RouteFamily, product_grid
 from .quench_temper import _by_class, _yield, correlation_class, default_austenitize_c
 from ...models import correlations
@@ -131,8 +132,20 @@ def section_limit_mm(comp, austenitize_c, bath_c, lo=1.0, hi=200.0, n=8):
     return float(np.exp(np.log(d[j - 1]) + f * (np.log(d[j]) - np.log(d[j - 1]))))
 
 
+#: the models of both bath routes: the centre's cooling into the bath, Maynier phase hardness,
+#: Li et al. kinetics, E140 strength and the strength correlations
+BATH_INPUTS = (
+    uses("grossmann_h", "h_per_in") + uses("quench_cooling", "biot", "theta")
+    + uses("maynier_1978", "C", "Si", "Mn", "Ni", "Cr", "Mo", "V") + uses("li_1998", "C", "Mn", "Ni", "Cr", "Mo")
+    + uses("astm_e140", "hardness_hv")
+    + uses("qt_correlations", "uts_mpa", temper_temp_c="correlation_temper_c", where="alloy_class")
+    + uses("qt_correlations_carbon", "uts_mpa", where="carbon_class")
+)
+
+
 class _BathRoute(RouteFamily):
     families = STEEL
+    model_inputs = BATH_INPUTS
     references = (
         "Li, Niebuhr, Meekisho & Atteridge, Metall. Mater. Trans. B 29B (1998) 661 (transformation kinetics)",
         "Scheil, Arch. Eisenhüttenwes. 8 (1935) 565 (additivity); Koistinen & Marburger, Acta Metall. 7 (1959) 59",
@@ -199,12 +212,17 @@ class _BathRoute(RouteFamily):
         notes.append(("the centre reaches the bath too slowly: ferrite or pearlite forms before it "
                       "(Scheil sum of Li et al. 1998 kinetics >= 1); the section exceeds this route's limit",
                       c["missed"]))
-        vals = {k: batch.comp.get(k, np.zeros(batch.n)) for k in ("C", "Si", "Mn", "Ni", "Cr", "Mo", "V")}
-        for model in ("maynier_1978", "li_1998"):
-            mask = validity.out_of_range_mask(model, **vals)
-            if mask.any():
-                notes.append((f"composition outside the validity of {model} ({validity.get(model).reference}): "
-                              "phase hardness / kinetics extrapolated", mask))
+        d = None if np.all(np.isnan(batch.diameter_mm)) else batch.diameter_mm
+        t = None if d is not None else batch.thickness_mm
+        aust = np.asarray(batch.params["austenitize_c"], float)
+        tc = np.asarray(temper_c, float)
+        res["model_inputs"] = {
+            "h_per_in": np.full(batch.n, float(quench_severity.grossmann_h_per_in(*BATH_MEDIUM))),
+            "biot": np.broadcast_to(cooling.biot_number(_h_w_m2k(), d, t), (batch.n,)),
+            # the centre's rate is taken at 700 C on the way into the bath (cooling_rate_at_c_s)
+            "theta": (700.0 - c["bath"]) / (aust - c["bath"]),
+            "alloy_class": cls != "carbon_steel", "carbon_class": cls == "carbon_steel",
+            "correlation_temper_c": np.where(np.isfinite(tc), tc, 150.0)}
         if batch.n == 1:
             d = batch.diameter_mm[0]
             if np.isfinite(d):
@@ -264,6 +282,11 @@ class Martemper(_BathRoute):
     patterns = (("martemper",), ("martemper", "temper"))
     main_parameter = "temper_temp_c"
     parameters = ("austenitize_c", "bath_c", "temper_temp_c", "temper_hours")
+    #: the tempered martensite: fully hard reference (A255 / Hodge-Orehoski at 99.9 %) and the master surface
+    model_inputs = BATH_INPUTS + (
+        uses("martensite_hardness", "C", where="tempered")
+        + uses("hollomon_jaffe", "C", temp_c="temper_temp_c", hours="temper_hours", where="tempered")
+        + uses("tempering_hv", *tempering.ALLOY_CHECKED, "P_1000", where="tempered"))
 
     def parse(self, steps, grade):
         s, aust = self._parse_bath(steps, grade)
@@ -308,7 +331,11 @@ class Martemper(_BathRoute):
                                        {k: np.asarray(v, float)[:, None] for k, v in batch.comp.items()},
                                        np.where(tempered, t, 200.0)[:, None], np.where(tempered, h, 1.0)[:, None])[:, 0]
             hv = np.where(tempered, np.minimum(tt, hv), hv)
-        return self._finish(batch, c, hv, t)
+        res = self._finish(batch, c, hv, t)
+        h1 = np.where(tempered, h, 1.0)
+        res["model_inputs"].update(tempered=tempered, P_1000=np.where(tempered, tempering.hollomon_jaffe_parameter(
+            np.where(tempered, t, 200.0), h1, tempering.hollomon_jaffe_constant(el(batch.comp, "C"))) / 1000.0, np.nan))
+        return res
 
 
 FAMILIES = [Austemper(), Martemper()]

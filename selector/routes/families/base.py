@@ -14,7 +14,9 @@ catalogue, so the numbers agree by construction.
 ``profile_hv`` of shape ``(n, len(profile_positions))`` with ``profile_positions``
 (r/R from surface 1.0 to centre 0.0), ``center_martensite_pct``, ``peak_ratio``,
 ``reduction_area_pct``; and ``"notes"``: a list of ``(message, mask)`` pairs, the
-mask True where the message applies.  NaN means "not defined" (e.g. the hardness of
+mask True where the message applies; optionally ``"model_inputs"``: the intermediate
+values and masks that the family's :attr:`RouteFamily.model_inputs` read
+(:mod:`selector.routes.model_inputs`).  NaN means "not defined" (e.g. the hardness of
 an aluminium alloy on a steel scale).
 """
 from __future__ import annotations
@@ -107,6 +109,10 @@ class RouteFamily:
     references: tuple = ()
     #: grade families this route is modelled for (others raise NotModelledError)
     families: tuple = ()
+    #: every input of every model the family calls (:class:`selector.routes.model_inputs.ModelInput`,
+    #: built with ``model_inputs.uses``); ``routes.evaluate.finish`` checks each against the
+    #: range registered in :mod:`selector.models.validity` and adds a visible warning
+    model_inputs: tuple = ()
 
     def parse(self, steps: Sequence[Mapping], grade: Grade) -> tuple[dict, list[str]]:
         raise NotImplementedError

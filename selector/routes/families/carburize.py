@@ -25,11 +25,12 @@ from __future__ import annotations
 import numpy as np
 
 from ...errors import RouteError
-from ...models import carburizing, conversions, validity
+from ...models import carburizing, conversions
 from ...models.composition import el
 from .. import quench_response
+from ..model_inputs import uses
 from .base import Batch, RouteFamily, at_position, harden_step, product_grid, temper_steps
-from .quench_temper import default_austenitize_c, through_harden
+from .quench_temper import CORE_INPUTS, default_austenitize_c, through_harden
 
 ROUTE = "carburize"
 #: lowest HRC the ASTM E140 Rockwell C scale gives (soft cores are floored here in the
@@ -76,6 +77,14 @@ class Carburize(RouteFamily):
     parameters = ("temp_c", "hours", "surface_carbon_pct", "hardening", "quench", "agitation",
                   "austenitize_c", "temper_temp_c", "temper_hours")
     families = ("carburizing_steel", "carbon_steel")
+    model_inputs = (
+        CORE_INPUTS
+        + uses("carbon_diffusivity", "temp_c", carbon_pct="mean_carbon_pct")
+        + uses("carbon_profile", "temp_c", "surface_carbon_pct", core_carbon_pct="C")
+        # retained austenite of the case: Ms by Andrews' product form at the surface carbon
+        + uses("andrews_ms_product", C="case_surface_carbon_pct")
+        + uses("carburized_case_hardness", "temp_c", "surface_carbon_pct", "temper_temp_c")
+    )
     references = (
         "G.G. Tibbetts, J. Appl. Phys. 51 (1980) 4813 (carbon diffusivity in austenite)",
         "J. Crank, The Mathematics of Diffusion, 2nd ed. (1975) (erf solution)",
@@ -217,15 +226,7 @@ class Carburize(RouteFamily):
         direct = np.asarray(p["hardening"]).astype(str) == "direct"
         notes.append(("direct quench from above 930 °C: grain growth in coarse-grained heats; prefer "
                       "fine-grained steel or a reheat quench (common practice)", direct & (temp > 930.0)))
-        for model, vals in (("carbon_diffusivity", {"temp_c": temp}),
-                            ("carbon_profile", {"temp_c": temp, "surface_carbon_pct": cs, "core_carbon_pct": c0}),
-                            ("carburized_case_hardness", {"temp_c": temp, "surface_carbon_pct": cs,
-                                                          "temper_temp_c": np.where(tempered, t_t, 175.0)})):
-            mask = validity.out_of_range_mask(model, **vals)
-            if mask.any():
-                v = validity.get(model)
-                notes.append((f"outside the validity range of {model} ({v.reference}): the case estimate is "
-                              "extrapolated", mask))
+        res["model_inputs"].update(mean_carbon_pct=0.5 * (cs_eff + c0), case_surface_carbon_pct=cs_eff)
         qw = res.pop("quench_warnings", [])
         if batch.n == 1:
             notes += [(w, np.ones(1, bool)) for w in qw]

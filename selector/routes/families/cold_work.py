@@ -22,6 +22,7 @@ import numpy as np
 
 from ...errors import InputError, NotModelledError, RouteError
 from ...models import conversions, strain_hardening as sh, stress_relief, validity
+from ..model_inputs import uses
 from .base import Batch, RouteFamily
 
 ROUTE = "cold_work"
@@ -65,6 +66,8 @@ class ColdWork(RouteFamily):
     main_parameter = "reduction_pct"
     parameters = ("reduction_pct", "designation", "prior_anneal", "stress_relieve_temp_c", "stress_relieve_hours")
     families = ("carbon_steel", "stainless_austenitic", "aluminium", "copper_alloy")
+    model_inputs = (uses("strain_hardening", "reduction_pct", "true_strain")
+                    + uses("stress_relief", temp_c="stress_relieve_temp_c", hours="stress_relieve_hours"))
     references = (
         stress_relief.REFERENCE,
         "J.H. Hollomon, Trans. AIME 162 (1945) 268 (power-law strain hardening)",
@@ -82,7 +85,6 @@ class ColdWork(RouteFamily):
         params = {"reduction_pct": float(red), "designation": des,
                   "prior_anneal": "anneal" if steps[0]["op"] == "anneal" else "none"}
         warns = self.window_warnings(grade, ROUTE, {"reduction_pct": params["reduction_pct"]})
-        warns += validity.check("strain_hardening", reduction_pct=params["reduction_pct"])
         sr = next((s for s in steps if s["op"] == "stress_relieve"), None)
         params["stress_relieve_temp_c"] = float(sr["temp_c"]) if sr else float("nan")
         params["stress_relieve_hours"] = float(sr.get("hours", 1.0)) if sr else float("nan")
@@ -91,8 +93,6 @@ class ColdWork(RouteFamily):
                 raise NotModelledError(f"stress relieving after cold work is modelled for carbon steels only "
                                        f"(ASM Handbook cold-finished bar practice); {grade.id} is {grade.family}")
             warns += self.window_warnings(grade, ROUTE, {"stress_relieve_temp_c": params["stress_relieve_temp_c"]})
-            warns += validity.check("stress_relief", temp_c=params["stress_relieve_temp_c"],
-                                    hours=params["stress_relieve_hours"])
         return params, warns
 
     def to_steps(self, params):
@@ -142,8 +142,6 @@ class ColdWork(RouteFamily):
                "hardness_hv": hv, "surface_hardness_hv": hv, "center_hardness_hv": hv,
                "case_depth_mm": np.zeros(n), "true_strain": res["true_strain"]}
         notes = [
-            ("reduction beyond the fitted range of the Hollomon law (80 %): strength extrapolated "
-             "(validity strain_hardening)", validity.out_of_range_mask("strain_hardening", reduction_pct=red)),
             ("heavy cold reduction: intermediate anneals are needed and ductility is low (common practice)",
              red > 60.0),
             ("cold-worked properties are along the working direction; transverse ductility is lower "
@@ -156,9 +154,6 @@ class ColdWork(RouteFamily):
         ]
         notes.append(("stress relieved after cold work: ASM Handbook cold-finished bar practice (from memory) on "
                       "the Hollomon-Jaffe time-temperature parameter", relieved))
-        notes.append(("stress relieving outside the registered range of the stress_relief model: extrapolated",
-                      relieved & validity.out_of_range_mask("stress_relief", temp_c=np.where(relieved, sr_t, 400.0),
-                                                            hours=np.where(relieved, sr_h, 1.0))))
         out["notes"] = notes
         return out
 

@@ -17,6 +17,7 @@ import numpy as np
 
 from ...catalogue.grades import Grade
 from ...models import conversions
+from ..model_inputs import restrict
 from .base import Batch
 from .carburize import merged_positions, resample
 from .quench_temper import default_austenitize_c, through_harden
@@ -70,11 +71,12 @@ def core_profile(batch: Batch, prior_qt: np.ndarray, quench, agitation, austenit
     n = batch.n
     if prior_qt.any():
         res = through_harden(batch, quench, agitation, austenitize_c, temper_temp_c, temper_hours)
+        restrict(res, "core", prior_qt)      # the states without a prior cycle ran with placeholders
         core_pos = np.asarray(res["profile_positions"], float)
         pos = merged_positions(core_pos)
         core_hv = resample(res["profile_hv"], core_pos, pos)
     else:
-        res = {}
+        res = {"model_inputs": {"core": np.zeros(n, bool)}}
         pos = merged_positions(np.linspace(1.0, 0.0, 11))
         core_hv = np.zeros((n, len(pos)))
     # the annealed baseline where there is no prior hardening

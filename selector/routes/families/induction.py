@@ -22,17 +22,47 @@ from __future__ import annotations
 
 import numpy as np
 
-from ...models import conversions, induction, validity
+from ...models import conversions, induction
 from ...models.composition import el
 from . import anneal
 from .base import Batch, RouteFamily, harden_step, product_grid, temper_steps
+from ..model_inputs import uses
 from .core import core_profile, no_prior_cycle_params, prior_cycle_params
-from .quench_temper import default_austenitize_c
+from .quench_temper import CORE_INPUTS, default_austenitize_c
 
 ROUTE = "induction"
 PRIORS = ("quench_temper", "normalize", "none")
 #: lowest prior temper spanned by the grid, °C (common practice for induction-hardened Q&T cores)
 PRIOR_TEMPER_MIN_C = 450.0
+
+
+#: the normalize family's chain on the states whose prior condition is a normalize (their core)
+NORMALIZED_CORE_INPUTS = (
+    uses("andrews_ac", "C", "Mn", "Si", "Ni", "Cr", "Mo", where="norm_family")
+    + uses("austenite_grain_growth", temp_c="norm_temp_c", hours="norm_hours", where="norm_modelled")
+    + uses("hodgson_gibbs_ferrite_grain", ceq="norm_ceq", cooling_rate_k_s="norm_cooling_rate_k_s",
+           austenite_grain_um="norm_austenite_grain_um", where="norm_modelled")
+    + uses("gladman_mcivor_pickering", "C", "Mn", "Si", ferrite_grain_um="norm_ferrite_grain_um",
+           pearlite_spacing_um="norm_pearlite_spacing_um", where="norm_modelled")
+    + uses("astm_e140", uts_mpa="norm_uts_mpa", where="norm_modelled")
+)
+
+
+def _normalized_core_inputs(nres: dict, sub: Batch, idx: np.ndarray, n: int) -> dict:
+    """The normalize family's model inputs of the sub-batch ``sub`` (rows ``idx`` of ``n``),
+    spread over the whole batch under ``norm_*`` names (masks False elsewhere)."""
+    def full(values, fill):
+        out = np.full(n, fill, dtype=bool if isinstance(fill, bool) else float)
+        out[idx] = values
+        return out
+    mi = nres["model_inputs"]
+    out = {"norm_family": full(mi["ferrite_pearlite_family"], False), "norm_modelled": full(mi["modelled"], False),
+           "norm_temp_c": full(sub.params["temp_c"], np.nan), "norm_hours": full(sub.params["hours"], np.nan),
+           "norm_ceq": full(mi["ceq"], np.nan), "norm_cooling_rate_k_s": full(mi["cooling_rate_k_s"], np.nan),
+           "norm_uts_mpa": full(nres["uts_mpa"], np.nan)}
+    for k in ("austenite_grain_um", "ferrite_grain_um", "pearlite_spacing_um"):
+        out["norm_" + k] = full(nres[k], np.nan) if k in nres else np.full(n, np.nan)
+    return out
 
 
 class Induction(RouteFamily):
@@ -47,6 +77,12 @@ class Induction(RouteFamily):
                   "prior_quench", "prior_agitation", "prior_austenitize_c", "prior_temper_temp_c",
                   "prior_temper_hours")
     families = ("carbon_steel", "alloy_steel")
+    #: the prior harden-and-temper core (where the prior is quench_temper) and the hardened layer
+    model_inputs = (CORE_INPUTS + NORMALIZED_CORE_INPUTS
+                    + uses("induction_surface_hardness", "temper_temp_c", c_pct="C")
+                    + uses("induction_frequency_table", hardened_depth_mm="case_depth_mm")
+                    + uses("astm_e140", hardness_hrc="surface_hrc")
+                    + uses("astm_e140", hardness_hb="base_hardness_hb", where="annealed_core"))
     references = (
         "electromagnetic reference depth delta = 503 sqrt(rho/(mu_r f)) (V. Rudnev et al., ASM Handbook "
         "Vol. 4C (2014), principles of induction hardening)",
@@ -156,12 +192,18 @@ class Induction(RouteFamily):
                 res[k][idx] = nres["hardness_hv"]
             core_hv = core_hv.copy()
             core_hv[idx, :] = np.asarray(nres["hardness_hv"], float)[:, None]
+            res["model_inputs"].update(_normalized_core_inputs(nres, sub, idx, n))
+        else:
+            res["model_inputs"].update(norm_family=np.zeros(n, bool), norm_modelled=np.zeros(n, bool))
 
         c = el(comp, "C")
         hrc_q = induction.surface_hardness_hrc(c)
         hrc_t = induction.surface_hardness_hrc(c, np.where(tempered, t_t, 150.0), np.where(tempered, t_h, 1.0),
                                                comp)
-        surf_hv = conversions.hrc_to_hv(np.where(tempered, hrc_t, hrc_q))
+        surf_hrc = np.where(tempered, hrc_t, hrc_q)
+        surf_hv = conversions.hrc_to_hv(surf_hrc)
+        res["model_inputs"].update(surface_hrc=surf_hrc, annealed_core=~prior_qt & ~prior_norm,
+                                   base_hardness_hb=batch.attr("base_hardness_hb"))
         section = batch.section_mm
         depth = (1.0 - pos)[None, :] * section[:, None] / 2.0
         in_case = depth <= depth_case[:, None] + 1e-9
@@ -184,8 +226,7 @@ class Induction(RouteFamily):
                       np.ones(n, bool)))
         notes.append(("frequency outside the range usually chosen for this hardened depth (ASM Handbook "
                       "Vol. 4; Semiatin & Stutz 1986; from memory)", f_ok & ((freq < lo) | (freq > hi))))
-        notes.append(("hardened depth outside 0.4–10 mm, the range of the frequency practice table",
-                      (depth_case < 0.4) | (depth_case > 10.0)))
+        # hardened depth outside the frequency practice table: model_inputs, checked by finish()
         notes.append(("hardened depth over a quarter of the section: close to through-hardening; residual "
                       "stresses and cracking risk differ from a surface layer (common practice)",
                       depth_case > section / 4.0))
@@ -195,11 +236,6 @@ class Induction(RouteFamily):
                       ~tempered))
         notes.append(("carbon below 0.30 %: the surface hardness reached by induction hardening is low "
                       "(common practice: 0.35–0.55 %C grades)", c < 0.30))
-        mask = validity.out_of_range_mask("induction_surface_hardness", c_pct=c,
-                                          temper_temp_c=np.where(tempered, t_t, 180.0))
-        if mask.any():
-            notes.append(("outside the validity range of induction_surface_hardness "
-                          f"({validity.get('induction_surface_hardness').reference}): extrapolated", mask))
         qw = res.pop("quench_warnings", [])
         if n == 1:
             notes += [(w, np.ones(1, bool)) for w in qw]

@@ -23,8 +23,9 @@ import numpy as np
 from ...models import nitriding, tempering, validity
 from ...models.composition import el
 from .base import Batch, RouteFamily, harden_step, product_grid, temper_steps
+from ..model_inputs import uses
 from .core import core_profile, no_prior_cycle_params, prior_cycle_params
-from .quench_temper import default_austenitize_c
+from .quench_temper import CORE_INPUTS, default_austenitize_c
 
 ROUTE = "nitride"
 PRIORS = ("quench_temper", "none")
@@ -56,6 +57,10 @@ class Nitride(RouteFamily):
     parameters = ("temp_c", "hours", "prior", "quench", "agitation", "austenitize_c",
                   "temper_temp_c", "temper_hours")
     families = ("nitriding_steel", "alloy_steel")
+    #: the core's chain (on prior-hardened states; the nitriding cycle counts as temper) and the case
+    model_inputs = (CORE_INPUTS + uses("nitrided_case_depth", "temp_c", "hours")
+                    + uses("nitrided_surface_hardness", "Al", "Cr", "Mo", "V")
+                    + uses("astm_e140", hardness_hb="base_hardness_hb", where="annealed_core"))
     references = (
         "DIN 50190-3 (nitriding hardness depth, core + 50 HV)",
         "parabolic case growth x = K sqrt(t); K from memory (ASM Handbook Vol. 4, gas nitriding)",
@@ -123,6 +128,7 @@ class Nitride(RouteFamily):
         res["profile_hv"] = prof
         res["profile_positions"] = pos
         res["surface_hardness_hv"] = prof[:, 0]
+        res["model_inputs"].update(annealed_core=~prior_qt, base_hardness_hb=batch.attr("base_hardness_hb"))
         res["case_depth_mm"] = np.minimum(nitriding.nitrided_case_depth_mm(temp, hours), section / 2.0)
         res.pop("profile_as_quenched_hv", None)
 
@@ -132,17 +138,9 @@ class Nitride(RouteFamily):
                       "little support (common practice: harden and temper first)", ~prior_qt))
         notes.append(("prior temper less than 30 °C above the nitriding temperature: the core softens during "
                       "nitriding (common practice)", prior_qt & (t_t < temp + nitriding.TEMPER_MARGIN_C)))
-        lo, hi = nitriding.GAS_NITRIDING_RANGE_C
-        notes.append((f"nitriding temperature outside the gas-nitriding range {lo:.0f}–{hi:.0f} °C: the case "
-                      "estimate is extrapolated", (temp < lo) | (temp > hi)))
+        # the gas-nitriding range and the case models' ranges: model_inputs, checked by finish()
         notes.append(("the compound (white) layer, 0–20 µm, is not modelled; it is brittle and is often "
                       "removed or limited on fatigue-loaded parts (common practice)", np.ones(n, bool)))
-        for model, vals in (("nitrided_case_depth", {"temp_c": temp, "hours": hours}),
-                            ("nitrided_surface_hardness", {k: el(comp, k) for k in ("Al", "Cr", "Mo", "V")})):
-            mask = validity.out_of_range_mask(model, **vals)
-            if mask.any():
-                notes.append((f"outside the validity range of {model} ({validity.get(model).reference}): "
-                              "extrapolated", mask))
         qw = res.pop("quench_warnings", [])
         if n == 1:
             notes += [(w, np.ones(1, bool)) for w in qw]

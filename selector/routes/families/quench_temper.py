@@ -20,10 +20,11 @@ from __future__ import annotations
 import numpy as np
 
 from ...catalogue.grades import Grade
-from ...models import (conversions, correlations, critical_temperatures, structure_tempering, tempering,
+from ...models import (conversions, correlations, critical_temperatures, hardenability, structure_tempering, tempering,
                        validity)
 from ...models.composition import el
 from .. import quench_response
+from ..model_inputs import uses
 from .base import (Batch, RouteFamily, at_position, harden_step, product_grid, temper_steps,
                    tension_test_position)
 
@@ -74,7 +75,7 @@ def through_harden(batch: Batch, quench, agitation, austenitize_c, temper_temp_c
            "di_mm": np.asarray(prof["di_mm"], float), "ac1_c": np.asarray(prof["ac1_c"], float),
            "ac3_c": np.asarray(prof["ac3_c"], float), "ms_c": np.asarray(prof["ms_c"], float),
            "quench_warnings": list(prof.get("warnings", [])),
-           "validity_notes": validity_notes(comp, t, h, non_m)}
+           "model_inputs": core_model_inputs(prof, comp, pos, where, t, h, non_m, cls)}
     t1 = np.asarray(temper_temp_c, float)
     for key, hv in (("", hv_test), ("center_", hv_center)):
         uts = conversions.hv_to_uts_mpa(hv)
@@ -89,47 +90,76 @@ def through_harden(batch: Batch, quench, agitation, austenitize_c, temper_temp_c
 NON_MARTENSITE_PCT = 5.0
 
 
-def _range_notes(model: str, values: dict, mask_on: np.ndarray, what: str) -> list:
-    """(message, per-state mask) for every variable of ``model`` outside its registered
-    range (:mod:`selector.models.validity`), restricted to the states ``mask_on``."""
-    v = validity.get(model)
-    out = []
-    for name, x in values.items():
-        if name not in v.ranges:
-            continue
-        lo, hi, unit = v.ranges[name]
-        x = np.asarray(x, float)
-        bad = np.zeros(x.shape, bool)
-        if lo is not None:
-            bad |= x < lo - 1e-9
-        if hi is not None:
-            bad |= x > hi + 1e-9
-        bad &= mask_on
-        if bad.any():
-            u = f" {unit}" if unit else ""
-            out.append((f"{model}: {name} outside {lo:.4g}–{hi:.4g}{u} ({v.reference}); {what} extrapolated", bad))
-    return out
-
-
-def validity_notes(comp, temper_temp_c, temper_hours, non_martensite_pct) -> list:
-    """Visible warnings, per state, for the tempering and constituent models used
-    outside their registered ranges: ``hollomon_jaffe`` and ``tempering_hv`` (tempered
-    states), ``maynier_1978`` and ``li_1998`` (states with more than 5 % non-martensitic
-    products at the test location)."""
+def core_model_inputs(prof: dict, comp, pos, where, temper_temp_c, temper_hours, non_martensite_pct,
+                      cls) -> dict:
+    """The values at the test location of every model of the through-hardening chain
+    (:data:`CORE_INPUTS`), and the masks of the states that use them: ``core`` (all: a
+    family whose core is not always hardened narrows it with ``model_inputs.restrict``),
+    ``core_tempered``, ``core_mixed_tempered`` (more than 5 % non-martensitic products at
+    the test location), ``alloy_class`` and ``carbon_class`` (the strength correlations)."""
     t = np.asarray(temper_temp_c, float)
     n = t.shape[0]
-    h = np.where(np.isfinite(np.asarray(temper_hours, float)), temper_hours, 1.0)
-    vals = {e: np.broadcast_to(np.asarray(el(comp, e), float), (n,)) for e in tempering.ALLOY_CHECKED}
     tempered = np.isfinite(t)
+    h = np.where(np.isfinite(np.asarray(temper_hours, float)), temper_hours, 1.0)
+    c_hj = np.broadcast_to(el(comp, "C"), (n,))
     t1 = np.where(tempered, t, 200.0)
-    p = tempering.hollomon_jaffe_parameter(t1, h, tempering.hollomon_jaffe_constant(vals["C"])) / 1000.0
-    notes = _range_notes("hollomon_jaffe", {"temp_c": t1, "hours": h, "C": vals["C"]}, tempered,
-                         "tempering parameter")
-    notes += _range_notes("tempering_hv", {**vals, "P_1000": p}, tempered, "tempered-martensite hardness")
+    at = lambda key: at_position(np.asarray(prof[key], float), pos, where)  # noqa: E731
+    one = lambda key: np.broadcast_to(np.asarray(prof[key], float), (n,))  # noqa: E731
+    c_steel = one("steel_carbon_pct")
     mixed = np.asarray(non_martensite_pct, float) > NON_MARTENSITE_PCT
-    notes += _range_notes("maynier_1978", vals, mixed & tempered, "bainite / ferrite-pearlite hardness")
-    notes += _range_notes("li_1998", vals, mixed & tempered, "bainite share of the non-martensitic products")
-    return notes
+    return {
+        "core": np.ones(n, bool), "core_tempered": tempered, "core_mixed_tempered": mixed & tempered,
+        "alloy_class": cls != "carbon_steel", "carbon_class": cls == "carbon_steel",
+        "h_per_in": one("h_per_in"), "biot": one("biot"), "theta": one("theta"),
+        "cooling_rate_c_s": at("cooling_rate_c_s"), "jominy_mm": at("jominy_mm"), "di_mm": one("di_mm"),
+        "grain_size_astm": one("grain_size_astm"),
+        # A255 up to 0.70 % C; above, the high-carbon fallback (quench_response)
+        "a255_carbon_pct": np.where(c_steel <= hardenability.A255_C_MAX + 1e-9, c_steel, np.nan),
+        "fallback_carbon_pct": np.where(c_steel > hardenability.A255_C_MAX + 1e-9, c_steel, np.nan),
+        "austenite_carbon_pct": one("austenite_carbon_pct"),
+        "martensite_pct": at("martensite_pct"),
+        "core_temper_c": np.where(tempered, t, np.nan), "core_temper_hours": np.where(tempered, h, np.nan),
+        "P_1000": np.where(tempered, tempering.hollomon_jaffe_parameter(
+            t1, h, tempering.hollomon_jaffe_constant(c_hj)) / 1000.0, np.nan),
+        # the yield correlation is evaluated at 150 °C for an untempered state (_yield)
+        "correlation_temper_c": np.where(tempered, t, 150.0),
+    }
+
+
+#: the models of the through-hardening chain and their inputs (on the ``core`` states)
+HARDENING_INPUTS = (
+    uses("grossmann_h", "h_per_in", where="core")
+    + uses("quench_cooling", "biot", "theta", where="core")
+    + uses("jominy_rate_factor", "biot", where="core")
+    + uses("jominy_equivalence", "cooling_rate_c_s", where="core")
+    + uses("astm_a255", "Mn", "Si", "Ni", "Cr", "Mo", "Cu", "V", C="a255_carbon_pct", where="core")
+    + uses("high_carbon_fallback", C="fallback_carbon_pct", where="core")
+    + uses("a255_dividing_factors", "di_mm", distance_mm="jominy_mm", where="core")
+    + uses("a255_grain_size", "grain_size_astm", where="core")
+    + uses("astm_e112", grain_size_number="grain_size_astm", where="core")
+    + uses("martensite_hardness", C="austenite_carbon_pct", pct_martensite="martensite_pct", where="core")
+    + uses("andrews_ac", "C", "Mn", "Si", "Ni", "Cr", "Mo", where="core")
+    + uses("andrews_ms", "C", "Mn", "Ni", "Cr", "Mo", where="core")
+)
+
+#: tempering of the core's structure (structure_tempering: Hollomon-Jaffe master surface for the
+#: martensite; Maynier et al. and Li et al. for the non-martensitic products)
+TEMPERING_INPUTS = (
+    uses("hollomon_jaffe", "C", temp_c="core_temper_c", hours="core_temper_hours", where=("core", "core_tempered"))
+    + uses("tempering_hv", *tempering.ALLOY_CHECKED, "P_1000", where=("core", "core_tempered"))
+    + uses("maynier_1978", "C", "Si", "Mn", "Ni", "Cr", "Mo", "V", where=("core", "core_mixed_tempered"))
+    + uses("li_1998", "C", "Mn", "Ni", "Cr", "Mo", where=("core", "core_mixed_tempered"))
+)
+
+#: hardness to strength (ASTM E140) and strength to yield / elongation / reduction of area
+STRENGTH_INPUTS = (
+    uses("astm_e140", "hardness_hv", where="core")
+    + uses("qt_correlations", "uts_mpa", temper_temp_c="correlation_temper_c", where=("core", "alloy_class"))
+    + uses("qt_correlations_carbon", "uts_mpa", where=("core", "carbon_class"))
+)
+
+#: every model input of :func:`through_harden`: the families that harden a core declare these
+CORE_INPUTS = HARDENING_INPUTS + TEMPERING_INPUTS + STRENGTH_INPUTS
 
 
 def _by_class(fn, uts, cls):
@@ -184,6 +214,7 @@ class QuenchTemper(RouteFamily):
     main_parameter = "temper_temp_c"
     parameters = ("quench", "agitation", "austenitize_c", "temper_temp_c", "temper_hours")
     families = ("carbon_steel", "alloy_steel", "carburizing_steel", "nitriding_steel", "stainless_martensitic")
+    model_inputs = CORE_INPUTS
     references = (
         "J.H. Hollomon & L.D. Jaffe, Trans. AIME 162 (1945) 223 (tempering parameter)",
         "Ph. Maynier, B. Jungmann & J. Dollet, Hardenability Concepts with Applications to Steel, "
@@ -249,17 +280,6 @@ class QuenchTemper(RouteFamily):
         notes.append(("untempered martensite is brittle: temper promptly after quenching (common practice)",
                       ~np.isfinite(t)))
 
-        for model, vals in (("astm_a255", {k: batch.comp.get(k, np.zeros(batch.n))
-                                           for k in ("C", "Mn", "Si", "Ni", "Cr", "Mo", "Cu", "V")}),):
-            try:
-                msgs = validity.get(model)
-            except KeyError:
-                continue
-            mask = validity.out_of_range_mask(model, **vals)
-            if mask.any():
-                notes.append((f"composition outside the validity range of {model} ({msgs.reference}): "
-                              "hardenability extrapolated", mask))
-        notes += res.pop("validity_notes")
         qw = res.pop("quench_warnings")
         if batch.n == 1:   # batch-level messages only make sense for a single state
             notes += [(w, np.ones(1, bool)) for w in qw]

@@ -38,7 +38,8 @@ import numpy as np
 from ...catalogue import supply as sup
 from ...catalogue.grades import FAMILIES as FAMILIES_ALL
 from ...errors import NotModelledError, RouteError
-from ...models import conversions, stress_relief, validity
+from ...models import conversions, stress_relief
+from ..model_inputs import uses
 from .. import bands
 from . import get
 from .base import Batch, RouteFamily
@@ -143,6 +144,7 @@ class Supply(RouteFamily):
     #: every grade family: a grade admits the route from its supply rows (catalogue/supply.py)
     families = FAMILIES_ALL
     references = REFERENCES + (stress_relief.REFERENCE,)
+    model_inputs = uses("stress_relief", temp_c="stress_relieve_temp_c", hours="stress_relieve_hours")
 
     def parse(self, steps, grade):
         s = steps[0]
@@ -163,8 +165,6 @@ class Supply(RouteFamily):
             sr = steps[1]
             params["stress_relieve_temp_c"] = float(sr["temp_c"])
             params["stress_relieve_hours"] = float(sr.get("hours", 1.0))
-            warns += validity.check("stress_relief", temp_c=params["stress_relieve_temp_c"],
-                                    hours=params["stress_relieve_hours"])
         return params, warns
 
     def to_steps(self, params):
@@ -206,9 +206,6 @@ class Supply(RouteFamily):
         notes = _supply_notes(props, batch)
         notes.append(("stress relieving model: ASM Handbook cold-finished bar practice (from memory) on the "
                       "Hollomon-Jaffe time-temperature parameter", relieved))
-        notes.append(("stress relieving outside the registered range of the stress_relief model: extrapolated",
-                      relieved & validity.out_of_range_mask("stress_relief", temp_c=np.where(relieved, sr_t, 400.0),
-                                                            hours=np.where(relieved, sr_h, 1.0))))
         out["notes"] = notes
         return out
 
@@ -225,6 +222,10 @@ class _SupplyThen(RouteFamily):
     @property
     def families(self):  # noqa: D401 - the grade families of the inner route
         return self._inner().families
+
+    @property
+    def model_inputs(self):  # noqa: D401 - the inner route's models (its prior core is not run here)
+        return self._inner().model_inputs
 
     def _split(self, steps, grade):
         self.require_family(grade)
