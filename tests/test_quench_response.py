@@ -216,25 +216,37 @@ def test_thin_oil_strip_is_flagged_as_extrapolating_the_rate_factor():
     assert not any(w.startswith("jominy_rate_factor") for w in r["warnings"])
 
 
-def test_partly_hardened_fraction_reproduces_the_chain_hardness_by_the_mixture_rule():
-    # below 50 % martensite the fraction is read against the Maynier (1978) hardness of the
-    # non-martensitic products at the local rate: the mixture rule then returns the chain's own
-    # as-quenched hardness (one martensite figure for the report and the tempering; issue 11)
+def test_partly_hardened_fraction_read_against_the_products_hardness():
+    # below 50 % martensite the fraction is read between the 50 % curve and the Maynier (1978)
+    # hardness of the non-martensitic products (at the slow end of the A255 curve): the mixture
+    # rule the Q&T route tempers then stays close to the chain's own hardness (issue 11: one
+    # martensite figure for the report and the tempering)
     from selector.catalogue.grades import grade
     from selector.models import structure_tempering as st
     comp = {k: float(v) for k, v in grade("1045").composition().items()}
     p = qr.as_quenched_profile(comp, "water", diameter_mm=25.4)
     m = p["martensite_pct"][0]
-    assert np.all(m[1:] < 50.0) and np.all(m[1:] > 5.0)       # partly hardened, not "no martensite"
+    assert np.all(m[1:] < 50.0) and np.all(m[1:] > 20.0)     # partly hardened, not "no martensite"
     parts = st.constituents({k: np.array([[v]]) for k, v in comp.items()}, p["martensite_pct"],
                             p["cooling_rate_c_s"])
     below = p["martensite_pct"] < 50.0
-    # exact at 0 %; at 50 % the reading follows the 50 % curve (Hodge & Orehoski, via
-    # models/martensite.py), which lies within a few per cent of half martensite + half
-    # products by the mixture rule: 4 % (measured 3.0 % at mid-radius)
-    np.testing.assert_allclose(st.mixture_hv(parts)[below], p["hardness_hv"][below], rtol=0.04)
-    # the former extrapolation of the 50-90 % slope gave 2 % martensite at this centre
-    assert m[-1] > 20.0
+    # the products at the local rate are a little harder than at the anchor rate: 6 % (measured
+    # 5.0 % at the centre); the former extrapolation of the 50-90 % slope read 2 % martensite at
+    # this centre and its mixture fell 32 % below the chain's hardness
+    np.testing.assert_allclose(st.mixture_hv(parts)[below], p["hardness_hv"][below], rtol=0.06)
+
+
+@pytest.mark.parametrize("gid", ["1018", "1035", "4118", "4130", "4140"])
+def test_centre_martensite_never_rises_with_the_section(gid):
+    # the fraction is a monotonic function of the rate (property behind "a larger section is no
+    # harder at the centre", tests/test_properties.py); a reading against the products at the
+    # local rate broke it by up to 2.7 points for these grades
+    from selector.catalogue.grades import grade
+    sizes = np.geomspace(5.0, 300.0, 40)
+    comp = {k: np.full(sizes.size, float(v)) for k, v in grade(gid).composition().items()}
+    for quench in ("water", "oil"):
+        m = qr.as_quenched_profile(comp, quench, diameter_mm=sizes, positions=(0.0,))["martensite_pct"][:, 0]
+        assert np.all(np.diff(m) <= 1e-9)
 
 
 def test_martensite_from_hardness_is_continuous_at_50_percent():

@@ -64,11 +64,12 @@ def martensite_pct_from_hardness(c_pct, hardness_hrc, rest_hardness_hv=None):
 
     Closed-form inverse of :func:`selector.models.martensite.martensite_hardness_hrc`
     (piecewise linear between its 50, 90 and 99.9 % curves), clipped to 0–99.9 %.
-    Below 50 %: with ``rest_hardness_hv`` (the hardness of the non-martensitic products
-    at the same cooling rate, HV), linear in HV between that hardness (0 %) and the
-    50 % curve, so that the linear mixture rule of Maynier et al. (1978) reproduces the
-    chain's hardness with this fraction; without it (or where the products would be as
-    hard as the 50 % structure), linear extrapolation of the 50–90 % slope.
+    Below 50 %: with ``rest_hardness_hv`` (the hardness of the non-martensitic products,
+    HV; :func:`as_quenched_profile` takes their Maynier et al. (1978) hardness at the slow
+    end of the A255 curve), linear in HV between that hardness (0 %) and the 50 % curve,
+    so that the linear mixture rule of Maynier et al. stays close to the chain's hardness
+    with this fraction; without it (or where the products would be as hard as the 50 %
+    structure), linear extrapolation of the 50–90 % slope.
     """
     c = np.asarray(c_pct, float)
     h = np.asarray(hardness_hrc, float)
@@ -222,10 +223,12 @@ def as_quenched_profile(comp, quench, agitation="moderate", diameter_mm=None, th
     hrc = ih_hrc(c)[:, None] / hardenability.dividing_factor(
         di[:, None], hardenability.scaled_distance_mm(jmm, hardenability.di_distance_scale(c, di)[:, None]))
     # below 50 % martensite the fraction is read against the Maynier (1978) hardness of the
-    # non-martensitic products at the local rate (structure_tempering.constituents with no
-    # martensite), so that the mixture rule the Q&T route tempers reproduces this hardness
+    # non-martensitic products (structure_tempering.constituents with no martensite) at the rate
+    # of the slow end of the A255 curve (J = 50 mm, where the chain holds its hardness): one
+    # anchor per composition, so the fraction falls monotonically with the rate, as the hardness
+    rate_slow = np.broadcast_to(cooling.jominy_rate_c_s(DF_MAX_MM), (n, 1))
     rest = structure_tempering.constituents({k: np.asarray(v, float)[:, None] for k, v in comp_aus.items()},
-                                            np.zeros_like(hrc), rate)
+                                            np.zeros((n, 1)), rate_slow)
     mart = martensite_pct_from_hardness(c[:, None], hrc, rest["x_b"] * rest["hv_b"] + rest["x_fp"] * rest["hv_fp"])
     hv = _hrc_to_hv(hrc)
 
