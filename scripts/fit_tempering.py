@@ -1,7 +1,11 @@
 """Fit the tempered-martensite master surface OFFLINE and write its files.
 
-Reads the fully hardened rows of ``data/tempering_points.csv`` and fits, by linear
-least squares (``numpy.linalg.lstsq``), the surface of
+Reads the fully hardened rows of ``data/tempering_points.csv`` and the published
+tempering tables of fully hardened Cr steels listed in :data:`EXTRA_TABLES` (rows of
+``data/reference/qt_steels.csv``, chosen BEFORE the fit by source and section: they
+become calibration rows of the validation report by the key join, and leave its
+independent set) and fits, by linear least squares (``numpy.linalg.lstsq``), the
+surface of
 :func:`selector.models.tempering.tempered_martensite_hv` (form and features in
 :func:`selector.models.tempering.tempering_features`).  Writes, per the fit convention:
 
@@ -33,27 +37,74 @@ from selector.models import conversions, tempering as tp  # noqa: E402
 NAME = "tempering"
 SOURCE_FILE = "data/tempering_points.csv"
 OUT = ROOT / "data" / "fits"
-UNITS = {"1": "HV", "C": "HV/wt%", "s": "HV", "C*s": "HV/wt%", "Mo*a": "HV/wt%", "V*a": "HV/wt%"}
+UNITS = {"1": "HV", "C": "HV/wt%", "s": "HV", "C*s": "HV/wt%", "Mo*a": "HV/wt%", "V*a": "HV/wt%", "Cr": "HV/wt%"}
+REFERENCE_FILE = "data/reference/qt_steels.csv"
+#: published tempering tables of fully hardened steels taken from the reference file into the
+#: fit: (catalogue grade, section_mm, text the row's source contains).  41Cr4 (EN 10083-3),
+#: entered as 5140: the only table of a Cr steel without Mo tempered 200-700 C on a section
+#: the chain fully hardens (10 mm round, oil: 95 % martensite), which the Cr term needs.
+#: Its rows are composition-keyed on the catalogue's 5140 (as the validation recomputes them).
+EXTRA_TABLES = (("5140", 10.0, "41Cr4"),)
+#: tempering time where a table states none (the validation report's default)
+DEFAULT_HOURS = 2.0
 RANGE_UNITS = {"temp_c": "degC", "hours": "h", "P_1000": "K/1000"}
 CV_SOURCE = "leave-one-grade-out refit by scripts/fit_tempering.py"
-SOURCE = "least squares on the fully hardened rows of data/tempering_points.csv (scripts/fit_tempering.py)"
+SOURCE = ("least squares on the fully hardened rows of data/tempering_points.csv and the EXTRA_TABLES rows of "
+          "data/reference/qt_steels.csv (scripts/fit_tempering.py)")
 
 
-def fit_points(points: pd.DataFrame) -> pd.DataFrame:
-    """The rows the fit uses: ``fully_hardened`` rows of the tempering table."""
-    return points[points["fully_hardened"]].reset_index(drop=True)
+def extra_points(path: Path = ROOT / REFERENCE_FILE) -> pd.DataFrame:
+    """The rows of :data:`EXTRA_TABLES` from the reference file, in the columns of
+    :func:`tempering.load_points` (composition: the catalogue grade's nominal; hardness:
+    the printed HRC by ASTM E140, else the printed HB; time: as printed, else
+    :data:`DEFAULT_HOURS`)."""
+    from selector.catalogue.grades import grade
+
+    ref = pd.read_csv(path, comment="#", dtype={"grade": str, "quench": str})
+    out = []
+    for gid, section, text in EXTRA_TABLES:
+        comp = {k: float(v) for k, v in grade(gid).composition().items()}
+        sel = ref[(ref["grade"] == gid) & (ref["section_mm"] == section)
+                  & ref["source"].str.contains(text, regex=False)]
+        for r in sel.to_dict("records"):
+            hrc, hb = r["hardness_hrc"], r["hardness_hb"]
+            hv = float(conversions.hrc_to_hv(hrc)) if hrc == hrc else float(conversions.hb_to_hv(hb))
+            hours = float(r["temper_hours"]) if r["temper_hours"] == r["temper_hours"] else DEFAULT_HOURS
+            rec = {f"{e.lower()}_pct": comp.get(e, 0.0) for e in tp.ALLOY_CHECKED}
+            rec.update(grade=gid, family=grade(gid).family, quench=r["quench"], section_mm=section,
+                       austenitize_c=r["austenitize_c"], temp_c=float(r["temper_temp_c"]), hours=hours,
+                       hardness_hb=hb, hardness_hrc=hrc, hardness_hv=hv, fully_hardened=True,
+                       source=r["source"], confidence=r["confidence"], source_file=REFERENCE_FILE)
+            out.append(rec)
+    t = pd.DataFrame(out)
+    t["P"] = tp.hollomon_jaffe_parameter(t["temp_c"].to_numpy(float), t["hours"].to_numpy(float),
+                                         tp.hollomon_jaffe_constant(t["c_pct"].to_numpy(float)))
+    return t
+
+
+def fit_points(points: pd.DataFrame, extra: pd.DataFrame | None = None) -> pd.DataFrame:
+    """The rows the fit uses: ``fully_hardened`` rows of the tempering table, then the
+    rows of :data:`EXTRA_TABLES`."""
+    own = points[points["fully_hardened"]].assign(source_file=SOURCE_FILE)
+    extra = extra_points() if extra is None else extra
+    return pd.concat([own, extra], ignore_index=True)
+
+
+def _features(rows: pd.DataFrame) -> np.ndarray:
+    return tp.tempering_features(rows["c_pct"].to_numpy(float), rows["mo_pct"].to_numpy(float),
+                                 rows["v_pct"].to_numpy(float), rows["P"].to_numpy(float),
+                                 rows["cr_pct"].to_numpy(float))
 
 
 def solve(rows: pd.DataFrame) -> np.ndarray:
-    x = tp.tempering_features(rows["c_pct"].to_numpy(float), rows["mo_pct"].to_numpy(float),
-                              rows["v_pct"].to_numpy(float), rows["P"].to_numpy(float))
+    x = _features(rows)
     coef, *_ = np.linalg.lstsq(x, rows["hardness_hv"].to_numpy(float), rcond=None)
     return coef
 
 
 def predict(coef, rows: pd.DataFrame) -> np.ndarray:
     return tp.surface_hv(coef, rows["c_pct"].to_numpy(float), rows["mo_pct"].to_numpy(float),
-                         rows["v_pct"].to_numpy(float), rows["P"].to_numpy(float))
+                         rows["v_pct"].to_numpy(float), rows["P"].to_numpy(float), rows["cr_pct"].to_numpy(float))
 
 
 def hrc_error(pred_hv, obs_hv) -> np.ndarray:
@@ -79,7 +130,7 @@ def fit(points: pd.DataFrame | None = None) -> dict:
                          "unit": RANGE_UNITS.get(var, "wt%"), "source": "span of the fitted rows",
                          "confidence": "fitted"})
     coefficients = pd.DataFrame(recs)
-    used = pd.DataFrame({"fit": "tempering_hv", "source_file": SOURCE_FILE, "grade": rows["grade"].astype(str),
+    used = pd.DataFrame({"fit": "tempering_hv", "source_file": rows["source_file"], "grade": rows["grade"].astype(str),
                          "quench": rows["quench"], "section_mm": rows["section_mm"], "temp_c": rows["temp_c"],
                          "hours": rows["hours"], "condition": "", "source": rows["source"],
                          "confidence": rows["confidence"]})
@@ -102,8 +153,8 @@ def fit(points: pd.DataFrame | None = None) -> dict:
 
 
 def write(result: dict, out: Path = OUT) -> None:
-    fitted.write_tables(NAME, result, f"# written by scripts/fit_{NAME}.py from {SOURCE_FILE} (fully_hardened rows); "
-                                      "do not edit by hand\n", out)
+    fitted.write_tables(NAME, result, f"# written by scripts/fit_{NAME}.py from {SOURCE_FILE} (fully_hardened rows) "
+                                      f"and {REFERENCE_FILE} (tables of EXTRA_TABLES); do not edit by hand\n", out)
 
 
 def main() -> int:

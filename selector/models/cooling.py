@@ -502,6 +502,32 @@ def ideal_centre_jominy_mm(diameter_mm):
 JOMINY_MAX_MM = 100.0
 
 
+def jominy_rate_c_s(distance_mm):
+    """Cooling rate at 700 °C of the Jominy bar at ``distance_mm`` from the quenched end, °C/s:
+    the inverse of :func:`jominy_equivalent_mm` inside the table (log–log interpolation of
+    ``data/jominy_cooling_rates.csv``; held at the end rows outside it).
+
+    Parameters
+    ----------
+    distance_mm : array_like
+        Distance from the quenched end, mm (> 0).
+
+    Returns
+    -------
+    ndarray, °C/s.
+
+    References
+    ----------
+    Jominy cooling rates at 705 °C (ASTM A255; textbook chart axis, Callister Fig. 14.9).
+    Example: 50.8 mm (J32) → 1.9 °C/s (the table's last row).
+    """
+    d = np.asarray(distance_mm, float)
+    if np.any(np.isnan(d)) or np.any(d <= 0):
+        raise InputError("distance_mm", distance_mm, "distances > 0 mm")
+    ld, lr = _jominy_table()
+    return np.exp(np.interp(np.log(d), ld, lr))
+
+
 def jominy_equivalent_mm(cooling_rate_c_s):
     """Distance (mm) on the Jominy bar that cools at the same rate at 700 °C.
 

@@ -18,20 +18,22 @@ docs/methods/tempering.md):
 
     s   = P/1000 − 16
     a   = max(P/1000 − 12, 0)
-    HV_TM = a0 + a1·C + (b0 + b1·C)·s + (k_Mo·Mo + k_V·V)·a
+    HV_TM = a0 + a1·C + (b0 + b1·C)·s + (k_Mo·Mo + k_V·V)·a + k_Cr·Cr
     HV_TM = clip(HV_TM, HV_FLOOR, HV_martensite(C))
 
 The carbon effect weakens as P rises (b1 < 0: Grange, Hribal & Porter 1977 found the
 effect of carbon on tempered hardness decreasing markedly with tempering
 temperature), while the Mo and V terms grow there: the resistance to softening that
 the carbide formers give (the same authors found the alloy effects growing with
-tempering temperature).  Cr, Mn, Si, Ni and quadratic terms in s or C were tried by
-the same criterion and did not lower the leave-one-grade-out error, so those
-elements act through carbon and hardenability only; a carbon term in max(P/1000 − 12, 0)
+tempering temperature), and chromium raises the tempered hardness at every temper
+(k_Cr > 0, the same authors' finding; fitted with the 41Cr4 tempering table of
+``data/reference/qt_steels.csv`` in the data).  Mn, Si, Ni and quadratic terms in s or C
+were tried by the same criterion and did not lower the leave-one-grade-out error, so
+those elements act through carbon and hardenability only; a carbon term in max(P/1000 − 12, 0)
 instead of C·s scored slightly better (1.91 against 2.07 HRC) but extrapolates to
 60.5 HRC for 0.85 % C tempered at 175 °C, below the 62–64 HRC of high-carbon martensite
-after such a temper (from memory), so C·s is kept.  Mo and V are
-held at the top of the fitted range (0.25 % Mo, 0.15 % V) so the curve always softens
+after such a temper (from memory), so C·s is kept.  Mo, V and Cr are
+held at the top of the fitted range (0.25 % Mo, 0.15 % V, 0.95 % Cr) so the curve always softens
 with P; tool steels with secondary hardening are outside the model.
 
 The hardness of a partly martensitic structure after tempering is the mixture rule
@@ -71,13 +73,13 @@ ALLOY_CHECKED = ("C", "Mn", "Si", "Ni", "Cr", "Mo", "V")
 C_INTERCEPT, C_SLOPE, C_RANGE = 21.3, 5.8, (15.0, 21.3)
 #: P/1000 from which the Mo and V terms act (chosen by leave-one-grade-out error)
 P_ALLOY_ONSET = 12.0
-#: Mo and V are held at these values (top of the fitted data) in the fit's alloy terms
-MO_MAX, V_MAX = 0.25, 0.15
+#: Mo, V and Cr are held at these values (top of the fitted data) in the fit's alloy terms
+MO_MAX, V_MAX, CR_MAX = 0.25, 0.15, 0.95
 #: lowest hardness returned for tempered martensite, HV (spheroidized low-carbon
 #: steel is about 120-150 HV: common practice)
 HV_FLOOR = 120.0
 
-FEATURES = ("1", "C", "s", "C*s", "Mo*a", "V*a")
+FEATURES = ("1", "C", "s", "C*s", "Mo*a", "V*a", "Cr")
 
 _SCHEMA = Schema((
     Column("grade", "str"),
@@ -197,20 +199,21 @@ def equivalent_hours(temp_c, hours, to_temp_c, c_const):
 # ---------------------------------------------------------------------------------
 # the fitted master surface (coefficients fitted offline by scripts/fit_tempering.py)
 
-def tempering_features(c, mo, v, p):
+def tempering_features(c, mo, v, p, cr=0.0):
     """Design matrix of the master surface, columns :data:`FEATURES` (last axis).
 
-    ``s = P/1000 − 16``, ``a = max(P/1000 − 12, 0)``; Mo and V are held at
-    :data:`MO_MAX` / :data:`V_MAX`.  Shared by the package and the fit script so that
-    the two can never use different forms.
+    ``s = P/1000 − 16``, ``a = max(P/1000 − 12, 0)``; Mo, V and Cr are held at
+    :data:`MO_MAX` / :data:`V_MAX` / :data:`CR_MAX`.  Shared by the package and the fit
+    script so that the two can never use different forms.
     """
-    c, mo, v, p = (np.asarray(x, float) for x in (c, mo, v, p))
+    c, mo, v, p, cr = (np.asarray(x, float) for x in (c, mo, v, p, cr))
     s = p / 1000.0 - 16.0
     a = np.maximum(p / 1000.0 - P_ALLOY_ONSET, 0.0)
     mo = np.minimum(mo, MO_MAX)
     v = np.minimum(v, V_MAX)
-    one = np.ones(np.broadcast(c, mo, v, p).shape)
-    return np.stack(np.broadcast_arrays(one, c, s, c * s, mo * a, v * a), axis=-1)
+    cr = np.minimum(cr, CR_MAX)
+    one = np.ones(np.broadcast(c, mo, v, p, cr).shape)
+    return np.stack(np.broadcast_arrays(one, c, s, c * s, mo * a, v * a, cr), axis=-1)
 
 
 def load_points():
@@ -227,10 +230,10 @@ def load_points():
     return t
 
 
-def surface_hv(coef, c, mo, v, p):
+def surface_hv(coef, c, mo, v, p, cr=0.0):
     """The master surface with coefficients ``coef`` (in :data:`FEATURES` order),
     clipped to [HV_FLOOR, HV_M(C)]."""
-    hv = tempering_features(c, mo, v, p) @ np.asarray(coef, float)
+    hv = tempering_features(c, mo, v, p, cr) @ np.asarray(coef, float)
     cap = conversions.hrc_to_hv(martensite_hardness_hrc(c, 99.9))
     return np.clip(hv, HV_FLOOR, cap)
 
@@ -266,8 +269,8 @@ def tempered_martensite_hv(comp, temp_c, hours):
     Hollomon–Jaffe parameter, Hollomon & Jaffe 1945; alloy terms after Grange,
     Hribal & Porter 1977).
 
-    HV = clip(a0 + a1·C + (b0 + b1·C)·(P/1000 − 16) + (k_Mo·Mo + k_V·V)·max(P/1000 − 12, 0),
-              120, HV_M(C)),   P = T_K·(C_HJ(C) + log10 t_h)
+    HV = clip(a0 + a1·C + (b0 + b1·C)·(P/1000 − 16) + (k_Mo·Mo + k_V·V)·max(P/1000 − 12, 0)
+              + k_Cr·Cr, 120, HV_M(C)),   P = T_K·(C_HJ(C) + log10 t_h)
 
     with HV_M(C) the as-quenched 99.9 % martensite hardness
     (:func:`selector.models.martensite.martensite_hardness_hrc`, converted by ASTM E140)
@@ -277,7 +280,7 @@ def tempered_martensite_hv(comp, temp_c, hours):
     Parameters
     ----------
     comp : mapping
-        Composition, element symbol → wt % (float or array); uses C, Mo, V.
+        Composition, element symbol → wt % (float or array); uses C, Mo, V, Cr.
     temp_c : array_like
         Tempering temperature, °C.
     hours : array_like
@@ -309,7 +312,7 @@ def tempered_martensite_hv(comp, temp_c, hours):
     """
     c = _carbon(el(comp, "C"))
     p = hollomon_jaffe_parameter(temp_c, hours, hollomon_jaffe_constant(c))
-    return surface_hv(coefficients(), c, el(comp, "Mo"), el(comp, "V"), p)
+    return surface_hv(coefficients(), c, el(comp, "Mo"), el(comp, "V"), p, el(comp, "Cr"))
 
 
 

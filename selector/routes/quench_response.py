@@ -26,7 +26,8 @@ from __future__ import annotations
 import numpy as np
 
 from ..errors import InputError
-from ..models import conversions, cooling, critical_temperatures, hardenability, quench_severity
+from ..models import (conversions, cooling, critical_temperatures, hardenability, quench_severity,
+                      structure_tempering, validity)
 from ..models.composition import el
 from ..models.martensite import ih_hrc, martensite_hardness_hrc
 
@@ -58,12 +59,17 @@ def _first(mask):
     return int(np.flatnonzero(mask)[0])
 
 
-def martensite_pct_from_hardness(c_pct, hardness_hrc):
+def martensite_pct_from_hardness(c_pct, hardness_hrc, rest_hardness_hv=None):
     """Percent martensite that gives ``hardness_hrc`` at carbon ``c_pct``.
 
     Closed-form inverse of :func:`selector.models.martensite.martensite_hardness_hrc`
-    (piecewise linear between its 50, 90 and 99.9 % curves; linear extrapolation
-    below 50 %), clipped to 0–99.9 %.
+    (piecewise linear between its 50, 90 and 99.9 % curves), clipped to 0–99.9 %.
+    Below 50 %: with ``rest_hardness_hv`` (the hardness of the non-martensitic products,
+    HV; :func:`as_quenched_profile` takes their Maynier et al. (1978) hardness at the slow
+    end of the A255 curve), linear in HV between that hardness (0 %) and the 50 % curve,
+    so that the linear mixture rule of Maynier et al. stays close to the chain's hardness
+    with this fraction; without it (or where the products would be as hard as the 50 %
+    structure), linear extrapolation of the 50–90 % slope.
     """
     c = np.asarray(c_pct, float)
     h = np.asarray(hardness_hrc, float)
@@ -72,8 +78,16 @@ def martensite_pct_from_hardness(c_pct, hardness_hrc):
     h50 = martensite_hardness_hrc(c, 50.0)
     d_hi = np.maximum(h100 - h90, 1e-9)
     d_lo = np.maximum(h90 - h50, 1e-9)
+    below = 50.0 - 40.0 * (h50 - h) / d_lo
+    if rest_hardness_hv is not None:
+        hv50 = _hrc_to_hv(np.broadcast_to(h50, np.broadcast_shapes(np.shape(h50), h.shape)))
+        hv_rest = np.asarray(rest_hardness_hv, float)
+        span = hv50 - hv_rest
+        ok = span > 1.0
+        mixed = 50.0 * (_hrc_to_hv(h) - hv_rest) / np.where(ok, span, 1.0)
+        below = np.where(ok, mixed, below)
     m = np.where(h >= h90, 90.0 + 9.9 * (h - h90) / d_hi,
-                 np.where(h >= h50, 50.0 + 40.0 * (h - h50) / d_lo, 50.0 - 40.0 * (h50 - h) / d_lo))
+                 np.where(h >= h50, 50.0 + 40.0 * (h - h50) / d_lo, below))
     return np.clip(m, 0.0, 99.9)
 
 
@@ -204,7 +218,14 @@ def as_quenched_profile(comp, quench, agitation="moderate", diameter_mm=None, th
     # A255 curve read at the DI-consistent distance (hardenability.di_distance_scale)
     hrc = ih_hrc(c)[:, None] / hardenability.dividing_factor(
         di[:, None], hardenability.scaled_distance_mm(jmm, hardenability.di_distance_scale(c, di)[:, None]))
-    mart = martensite_pct_from_hardness(c[:, None], hrc)
+    # below 50 % martensite the fraction is read against the Maynier (1978) hardness of the
+    # non-martensitic products (structure_tempering.constituents with no martensite) at the rate
+    # of the slow end of the A255 curve (J = 50 mm, where the chain holds its hardness): one
+    # anchor per composition, so the fraction falls monotonically with the rate, as the hardness
+    rate_slow = np.broadcast_to(cooling.jominy_rate_c_s(DF_MAX_MM), (n, 1))
+    rest = structure_tempering.constituents({k: np.asarray(v, float)[:, None] for k, v in comp_aus.items()},
+                                            np.zeros((n, 1)), rate_slow)
+    mart = martensite_pct_from_hardness(c[:, None], hrc, rest["x_b"] * rest["hv_b"] + rest["x_fp"] * rest["hv_fp"])
     hv = _hrc_to_hv(hrc)
 
     # metallurgical warnings, each naming the states (the registered validity ranges: the
