@@ -31,7 +31,7 @@ LAYERS = (
     ("states", ("selector.states",)),
     ("rules", ("selector.rules",)),
     ("selection", ("selector.selection",)),
-    ("design", ("selector.design", "selector.validation", "selector.user_files", "selector.studies")),
+    ("design", ("selector.design", "selector.validation", "selector.user_files")),
     ("api", ("selector",)),                        # selector/__init__.py: the lazy public names
     ("views", ("selector.views", "selector.__main__")),
 )
@@ -60,7 +60,7 @@ VIEWS_IN_FUNCTION_ALLOWED = frozenset({
     ("selector.views.page", "selector.design.sweep"), ("selector.views.page", "selector.inputs"),
     ("selector.views.page", "selector.routes.families.austemper"), ("selector.views.page", "selector.rules.cautions"),
     ("selector.views.page", "selector.selection.engine"), ("selector.views.page", "selector.selection.targets"),
-    ("selector.views.page", "selector.studies"), ("selector.views.page", "selector.views.cli"),
+    ("selector.views.page", "selector.user_files"), ("selector.views.page", "selector.views.cli"),
     ("selector.views.page", "selector.views.export"),
     ("selector.views.page_parts", "selector"),
 })

@@ -264,7 +264,7 @@ def check_families(families: Sequence[str]) -> str | None:
 
 def read_price_sheet(data: bytes | str | None, name: str = "price sheet") -> tuple[dict | None, str | None]:
     """Read an uploaded or pasted price sheet with the library's user-file reader
-    (:func:`selector.studies.load_price_sheet`: UTF-8 check with the line and column
+    (:func:`selector.user_files.load_price_sheet`: UTF-8 check with the line and column
     of a bad byte, then the price-sheet schema).  Pasted text is passed as its UTF-8
     bytes (a ``str`` would be taken for a path).
 
@@ -274,7 +274,7 @@ def read_price_sheet(data: bytes | str | None, name: str = "price sheet") -> tup
     """
     if data is None or (isinstance(data, (bytes, str)) and not data.strip()):
         return None, None
-    from selector import studies
+    from selector import user_files as studies
 
     raw = data.encode("utf-8") if isinstance(data, str) else bytes(data)
     try:
