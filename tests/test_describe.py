@@ -30,7 +30,7 @@ def full_step(op):
 def routes_of(fam, n_grades=3, n_states=3):
     """Routes of ``fam``: each accepted op sequence with every parameter set, and the routes the
     selection builds (grid states of a few grades, for the families expanded over the catalogue)."""
-    out = [[full_step(op) for op in pattern] for pattern in families.PATTERNS[fam.name]]
+    out = [[full_step(op) for op in pattern] for pattern in fam.patterns]
     for g in default_catalogue().grades.values():
         try:
             grid = fam.grid(g)
@@ -41,7 +41,7 @@ def routes_of(fam, n_grades=3, n_states=3):
             continue
         for i in sorted({0, m // 2, m - 1})[:n_states]:
             out.append(fam.to_steps({k: v[i] for k, v in grid.items()}))
-        if len(out) >= len(families.PATTERNS[fam.name]) + n_grades * n_states:
+        if len(out) >= len(fam.patterns) + n_grades * n_states:
             break
     return out
 
