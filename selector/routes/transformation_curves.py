@@ -228,7 +228,7 @@ def fatigue_depth_curves(ev: Mapping, surface_stress_mpa=None) -> dict:
         ``bending stress``); ``governing_depth_mm``, ``allowable_surface_mpa``; ``margin``
         (smallest strength / stress through the depth at ``surface_stress_mpa``; < 1: fails
         there); an empty table and None values when the result has no depth record
-        (through-hardened and bath routes, non-steels).
+        (no hardness profile: bath routes, plates, non-steels).
     """
     from .. import inputs
 

@@ -397,9 +397,9 @@ class Austemper(_BathRoute):
                      ("bath at or above Bs (Li et al. 1998): no bainite forms at this bath temperature", bath >= bs),
                      ("bainite transformation incomplete in the hold: the rest becomes fresh, untempered martensite "
                       "on cooling", (x < COMPLETE_X) & inside),
-                     ("isothermal bainite hardness outside its reference range (250-550 degC, 0.35-1.05 % C; "
-                      "phase_hardness.isothermal_bainite_hv): extrapolated",
-                      (bath < 250.0) | (bath > 550.0) | (c_pct < 0.35) | (c_pct > 1.05))]
+                     (f"bath temperature or carbon outside the validity of isothermal_bainite "
+                      f"({validity.get('isothermal_bainite').reference}): bainite hardness extrapolated",
+                      validity.out_of_range_mask("isothermal_bainite", temp_c=bath, C=c_pct))]
             return x, hv_b, notes
         c = self._common(batch, fractions)
         return self._finish(batch, c, c["hv"], c["bath"])
