@@ -80,8 +80,9 @@ BATH_MEDIUM = ("oil", "strong")
 AT_BATH_C = 10.0
 TIMES_S = bath_quench.TIMES_S
 ROOM_C = 25.0
-#: sizes (mm) on which the section limit is searched (log-spaced, 1-200 mm)
-LIMIT_SIZES_MM = np.geomspace(1.0, 200.0, 16)
+#: sizes (mm) on which the section limit is searched (log-spaced, 1-200 mm, ratio 1.7; the Scheil
+#: sum is close to a power of the size, so log-log interpolation between them is enough)
+LIMIT_SIZES_MM = np.geomspace(1.0, 200.0, 11)
 #: bainite progress below which the hold is reported incomplete
 COMPLETE_X = 0.95
 #: the selection grid holds this many times the 95 % bainite time (see Austemper.hold_for)
