@@ -182,3 +182,18 @@ def test_transformation_chart_frame():
     assert centre[0] > centre[-1] and abs(centre[-1] - 340.0) < 1.0   # ends at the bath
     qt = selector.evaluate("4340", [{"op": "harden", "quench": "oil"}, {"op": "temper", "temp_c": 540}], 25.0)
     assert pg.transformation_frame(qt, pg.SI).empty
+
+
+def test_selection_grids_keep_the_bath_on_the_right_side_of_ms():
+    # austempering is a bath above Ms; martempering's bath sits just above Ms (ASM Handbook Vol. 4 (1991),
+    # austempering and martempering of steel, from memory), inside the window
+    cat = default_catalogue()
+    aus, mar = A.FAMILIES
+    for gid in ("1045", "4140", "5160", "1095"):
+        g = cat.lookup(gid)
+        ms = float(transformation.ms_li_c(g.composition()))
+        assert np.all(aus.grid(g)["bath_c"] >= ms + A.MARTEMPER_ABOVE_MS_C)
+        lo, hi = A.window(g, "martemper", "bath_c")[:2]
+        bath = float(mar.grid(g)["bath_c"][0])
+        assert lo <= bath <= hi
+        assert bath >= ms or bath == hi           # below Ms only when Ms is above the window

@@ -85,6 +85,9 @@ ROOM_C = 25.0
 LIMIT_SIZES_MM = np.geomspace(1.0, 200.0, 11)
 #: bainite progress below which the hold is reported incomplete
 COMPLETE_X = 0.95
+#: the martempering bath of the selection grid sits this far above the Li Ms, °C; the austempering grid
+#: keeps baths at least this far above it
+MARTEMPER_ABOVE_MS_C = 10.0
 #: the selection grid holds this many times the 95 % bainite time (see Austemper.hold_for)
 HOLD_MARGIN = 1.25
 #: step of the austemper bath grid and of the martemper temper grid, °C
@@ -361,6 +364,11 @@ class Austemper(_BathRoute):
     def grid(self, grade):
         self.require_family(grade)
         temps = self._axis(grade, "bath_c", (260.0, 400.0), BATH_STEP_C)
+        # austempering needs a bath above Ms (below it the bath makes martensite): the grid keeps the
+        # window's baths at least MARTEMPER_ABOVE_MS_C above the Li Ms of the nominal composition
+        comp = grade.composition()
+        temps = temps[(temps >= float(transformation.ms_li_c(comp)) + MARTEMPER_ABOVE_MS_C)
+                      & (temps < float(transformation.bs_li_c(comp)))]
         n = len(temps)
         return {"austenitize_c": np.full(n, float(default_austenitize_c(grade))), "bath_c": temps,
                 "hold_hours": self.hold_for(grade, temps)}
@@ -435,8 +443,19 @@ class Martemper(_BathRoute):
         temps = self._axis(grade, "temper_temp_c", (150.0, 650.0), TEMPER_STEP_C)
         n = len(temps)
         return {"austenitize_c": np.full(n, float(default_austenitize_c(grade))),
-                "bath_c": np.full(n, self._default(grade, "bath_c", 230.0)),
+                "bath_c": np.full(n, self.bath_for(grade)),
                 "temper_temp_c": temps, "temper_hours": np.full(n, 2.0)}
+
+    def bath_for(self, grade) -> float:
+        """Bath of the selection grid: just above Ms (Li Ms of the nominal composition +
+        :data:`MARTEMPER_ABOVE_MS_C`, rounded up to 5 °C: a martempering bath sits at or slightly
+        above Ms, ASM Handbook Vol. 4 (1991), martempering of steel, from memory), kept inside
+        the grade's bath window; where Ms lies above the window the bath is the window's top
+        (a bath below Ms, "modified martempering": the caution says so)."""
+        w = window(grade, self.name, "bath_c")
+        lo, hi = (200.0, 290.0) if w is None else (w[0], w[1])
+        ms = float(transformation.ms_li_c(grade.composition()))
+        return float(np.clip(np.ceil((ms + MARTEMPER_ABOVE_MS_C) / 5.0) * 5.0, lo, hi))
 
     def compute(self, batch):
         p = batch.params
@@ -444,8 +463,8 @@ class Martemper(_BathRoute):
         h = np.asarray(p["temper_hours"], float)
 
         def fractions(comp, bath, ms, bs):
-            notes = [("bath below Ms (Li et al. 1998): martensite forms in the bath; martempering baths sit just "
-                      "above Ms", bath < ms),
+            notes = [("bath below Ms (Li et al. 1998): martensite starts in the bath (modified martempering); the "
+                      "distortion benefit of a bath just above Ms is smaller", bath < ms),
                      ("bath far above Ms: bainite may form during the equalising hold (not modelled)",
                       bath > ms + 100.0),
                      ("untempered martensite is brittle: temper promptly after martempering (common practice)",
