@@ -197,3 +197,11 @@ def test_selection_grids_keep_the_bath_on_the_right_side_of_ms():
         bath = float(mar.grid(g)["bath_c"][0])
         assert lo <= bath <= hi
         assert bath >= ms or bath == hi           # below Ms only when Ms is above the window
+
+
+def test_kept_section_limit_equals_a_fresh_computation():
+    # the limit is kept between sections (_LIMIT_CACHE); a kept value equals the direct computation
+    r1 = selector.evaluate("1080", [{"op": "austemper", "bath_c": 315, "hours": 1}], 5.0)
+    r2 = selector.evaluate("1080", [{"op": "austemper", "bath_c": 315, "hours": 1}], 9.0)
+    direct = A.section_limit_mm(default_catalogue().lookup("1080").composition(), r1["params"]["austenitize_c"], 315.0)
+    assert r1["section_limit_mm"] == pytest.approx(direct, rel=1e-9) == r2["section_limit_mm"]

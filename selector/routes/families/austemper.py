@@ -220,6 +220,28 @@ def section_limit_mm(comp, austenitize_c, bath_c, plate=False):
     return float(out[0]) if scalar else out
 
 
+#: section limits already computed, keyed by (elements, composition + temperatures row, plate): the
+#: limit does not depend on the section, so a selection at a new section reuses them
+_LIMIT_CACHE: dict = {}
+_LIMIT_CACHE_MAX = 50_000
+
+
+def _cached_limits(elements: tuple, rows: np.ndarray, plate: bool) -> np.ndarray:
+    """:func:`section_limit_mm` of each row of ``rows`` (columns: ``elements``, austenitize_c,
+    bath_c), computed once per distinct row and kept."""
+    keys = [(elements, r.tobytes(), plate) for r in rows]
+    todo = [i for i, k in enumerate(keys) if k not in _LIMIT_CACHE]
+    if todo:
+        if len(_LIMIT_CACHE) + len(todo) > _LIMIT_CACHE_MAX:
+            _LIMIT_CACHE.clear()
+        new = rows[todo]
+        vals = section_limit_mm({e: new[:, i] for i, e in enumerate(elements)}, new[:, -2], new[:, -1],
+                                plate=plate)
+        for i, v in zip(todo, np.atleast_1d(vals)):
+            _LIMIT_CACHE[keys[i]] = float(v)
+    return np.array([_LIMIT_CACHE[k] for k in keys], float)
+
+
 def _fresh_martensite_hv(comp):
     return np.asarray(conversions.hrc_to_hv(ih_hrc(el(comp, "C"))), float)
 
@@ -290,8 +312,7 @@ class _BathRoute(RouteFamily):
                                                         us if plate else None).items()}
         f_np = np.clip(prod["ferrite"] + prod["pearlite"], 0.0, 1.0)
         lk, linv = transformation.unique_rows(uniq[:, :-1])
-        limit = section_limit_mm({e: lk[:, i] for i, e in enumerate(elements)}, lk[:, -2], lk[:, -1],
-                                 plate=plate)[linv][inv]
+        limit = _cached_limits(tuple(elements), lk, plate)[linv][inv]
         rate = cooling.cooling_rate_at_c_s(_h_w_m2k(), d if not plate else None, batch.thickness_mm if plate else None,
                                            positions=(0.0,), austenitize_c=np.maximum(aust, 720.0),
                                            bath_c=np.minimum(bath, 650.0))[..., 0]
