@@ -44,3 +44,23 @@ def test_tempered_bainite_softens_with_temper_and_less_than_martensite():
     # it has lost about 55 HV, while tempered martensite of the same steel falls by about 270 HV
     # (hand evaluation of the Maynier tempered-martensite equation: 556 -> 343 HV from 400 to 600 C)
     assert 350.0 - hv[2] < 100.0
+
+
+def test_isothermal_bainite_reference_rows_and_carbon_scaling():
+    from selector.catalogue.loader import read_table
+    from selector.models import conversions
+
+    t = read_table("isothermal_bainite_hardness.csv")
+    eut = {"C": ph.ISO_REFERENCE_C}
+    # at the reference carbon the curve returns its rows (data/isothermal_bainite_hardness.csv)
+    got = conversions.hv_to_hrc(ph.isothermal_bainite_hv(eut, t["temp_c"].astype(float).to_numpy()))
+    assert np.allclose(got, t["hardness_hrc"].astype(float).to_numpy(), atol=0.3)
+    # lower carbon, softer bainite; lower temperature, harder bainite
+    assert ph.isothermal_bainite_hv({"C": 0.4}, 315.0) < ph.isothermal_bainite_hv(eut, 315.0)
+    hv = ph.isothermal_bainite_hv(eut, np.array([260.0, 315.0, 400.0, 500.0]))
+    assert np.all(np.diff(hv) < 0)
+
+
+def test_isothermal_bainite_bad_temperature():
+    with pytest.raises(InputError):
+        ph.isothermal_bainite_hv({"C": 0.8}, np.nan)

@@ -4,6 +4,7 @@ import pandas as pd
 import pytest
 
 from selector.catalogue.loader import read_table
+from selector.errors import InputError
 from selector.models import conversions, cooling, phase_hardness as ph, transformation as tr
 
 S1045 = {"C": 0.45, "Mn": 0.75, "Si": 0.25}
@@ -101,3 +102,31 @@ def test_bainite_share_never_falls_as_the_rate_rises():
         s = tr.bainite_share(selector.grade(g).composition(), rates)
         assert np.all(np.diff(s) >= -1e-12), g
         assert np.all((s >= 0) & (s <= 1))
+
+
+def test_path_progress_constant_temperature_matches_isothermal_time():
+    c = {"C": np.array([0.45]), "Mn": np.array([0.75]), "Si": np.array([0.25])}
+    tau = float(tr.isothermal_time_s(S1045, 600.0, 0.01, "pearlite"))
+    times = np.linspace(0.0, tau, 50)
+    x, start = tr.path_progress(c, times, np.full((1, 50), 600.0), "pearlite")
+    assert start[0] == pytest.approx(1.0, rel=1e-3)
+    assert x[0] == pytest.approx(0.01, rel=0.05)
+    # above Ae1 (Andrews Ac1) nothing happens
+    x_hot, s_hot = tr.path_progress(c, times, np.full((1, 50), 760.0), "pearlite")
+    assert x_hot[0] == 0.0 and s_hot[0] == 0.0
+
+
+def test_bainite_carbon_cap_only_acts_above_the_cap():
+    lo = {"C": 0.4, "Mn": 0.8}
+    hi = {"C": 0.95, "Mn": 0.8}
+    assert tr.isothermal_time_s(lo, 350.0, 0.5, "bainite", bainite_carbon_cap_pct=tr.LI_MAX_C) == \
+        pytest.approx(float(tr.isothermal_time_s(lo, 350.0, 0.5, "bainite")))
+    assert tr.isothermal_time_s(hi, 350.0, 0.5, "bainite", bainite_carbon_cap_pct=tr.LI_MAX_C) < \
+        tr.isothermal_time_s(hi, 350.0, 0.5, "bainite")
+
+
+def test_path_progress_bad_input():
+    with pytest.raises(InputError):
+        tr.path_progress(S1045, [0.0, 1.0], np.array([600.0, 590.0]), "pearlite")
+    with pytest.raises(InputError):
+        tr.path_progress(S1045, [0.0, 1.0], np.array([[600.0, 590.0]]), "martensite")

@@ -17,11 +17,15 @@ Applications to Steel*, eds. D.V. Doane and J.S. Kirkaldy, TMS-AIME 1978, pp. 51
 """
 from __future__ import annotations
 
+import functools
+
 import numpy as np
 
-from ..errors import InputError
+from ..catalogue.loader import CONFIDENCE, Column, Schema, read_table
+from ..errors import DataFileError, InputError
 from .composition import el
-from . import validity
+from . import conversions, validity
+from .martensite import ih_hrc
 
 validity.register("maynier_1978", {"C": (0.0, 0.5, "wt%"), "Si": (0.0, 1.0, "wt%"), "Mn": (0.0, 2.0, "wt%"),
                                    "Ni": (0.0, 4.0, "wt%"), "Cr": (0.0, 3.0, "wt%"), "Mo": (0.0, 1.0, "wt%"),
@@ -185,3 +189,88 @@ def tempered_bainite_hv(comp, temp_c, hours):
     # a negative slope (lean C-Mn steels without Si, Cr, Mo) would harden the bainite as the
     # temper rises: held at 0 there, so the result never rises with the tempering parameter
     return a + (1000.0 / pa) * np.maximum(b, 0.0)
+
+
+# --------------------------------------------------------------------------- isothermal bainite
+#: carbon of the eutectoid steel of the reference curve (data/isothermal_bainite_hardness.csv), wt %
+ISO_REFERENCE_C = 0.79
+
+_ISO_SCHEMA = Schema((Column("temp_c", "float", lo=100, hi=700), Column("hardness_hrc", "float", lo=10, hi=70),
+                      Column("source"), Column("confidence", "choice", choices=CONFIDENCE)))
+
+validity.register("isothermal_bainite", {"temp_c": (250.0, 550.0, "°C"), "C": (0.35, 1.05, "wt%")},
+                  "eutectoid reference curve, US Steel Atlas of Isothermal Transformation Diagrams (1951), "
+                  "from memory; carbon scaling by the martensite hardness (ASTM A255 IH)")
+
+
+@functools.cache
+def _iso_curve():
+    t = read_table("isothermal_bainite_hardness.csv", _ISO_SCHEMA).sort_values("temp_c")
+    temps = t["temp_c"].to_numpy(float)
+    if np.any(np.diff(temps) <= 0):
+        raise DataFileError("isothermal_bainite_hardness.csv", None, "temp_c", "temperatures must be distinct")
+    return temps, np.asarray(conversions.hrc_to_hv(t["hardness_hrc"].to_numpy(float)), float)
+
+
+def isothermal_bainite_hv(comp, temp_c):
+    """Hardness of bainite formed isothermally at ``temp_c`` (upper and lower bainite of an
+    austempering bath), HV.
+
+        HV_B,iso(C, T) = HV_eut(T) · HV_M(C) / HV_M(0.79)
+
+    HV_eut(T) is the hardness of a plain eutectoid steel after complete transformation at T
+    (``data/isothermal_bainite_hardness.csv``: the hardness scale of the eutectoid diagram of
+    the US Steel *Atlas of Isothermal Transformation Diagrams*, 1951, values recalled, from
+    memory), interpolated linearly in HV; outside the tabulated 250–550 °C it is held at the
+    end values.  HV_M(C) is the as-quenched martensite hardness of the steel's carbon (ASTM
+    A255 initial hardness, :func:`selector.models.martensite.ih_hrc`, held above 0.70 % C),
+    converted by ASTM E140: the carbon scaling assumes the bainite of another carbon content
+    is harder or softer in the proportion of its martensite (this project's assumption, not a
+    published relation; alloy elements act only through the carbon and the kinetics).
+
+    Why not Maynier's HV_B: its bainite hardness is a function of the *continuous* cooling
+    rate at 700 °C (a bainite formed while the part cools through the whole bainite range),
+    so for a 0.95 % C steel in a salt bath it gives about 31 HRC; the bainite of an
+    austempering bath forms at one temperature, and its hardness rises steadily as that
+    temperature falls (Bain & Paxton, *Alloying Elements in Steel*, ASM 1961, ch. on
+    isothermal transformation; lower bainite has hardness similar to tempered martensite:
+    ASM Heat Treat 2013 proceedings, "austempering ... lower bainite", abstract at
+    dl.asminternational.org/heat-treating/proceedings/HT2013/84116/26/34209).  The route
+    also caps this value at the hardness of the steel's martensite tempered at the bath
+    temperature for the hold (:func:`selector.models.tempering.tempered_martensite_hv`).
+
+    Parameters
+    ----------
+    comp : mapping
+        Element → wt % (uses C).
+    temp_c : array_like
+        Transformation (bath) temperature, °C.
+
+    Returns
+    -------
+    ndarray
+        HV, broadcast of the inputs.
+
+    Validity
+    --------
+    ``isothermal_bainite``: 250–550 °C, 0.35–1.05 % C.
+
+    References
+    ----------
+    US Steel, *Atlas of Isothermal Transformation Diagrams*, Pittsburgh 1951 (eutectoid
+    diagram; values recalled); ASTM A255 (initial hardness); ASTM E140 (conversion).
+
+    Examples
+    --------
+    A eutectoid steel transformed at 300 °C: 53 HRC (the table's row, about 560 HV).
+    """
+
+    t = np.asarray(temp_c, float)
+    if np.any(~np.isfinite(t)) or np.any(t <= -273.15):
+        raise InputError("temp_c", temp_c, "finite temperatures in °C")
+    temps, hv = _iso_curve()
+    base = np.interp(t, temps, hv)
+    c = np.asarray(el(comp, "C"), float)
+    ratio = (np.asarray(conversions.hrc_to_hv(ih_hrc(c)), float)
+             / float(conversions.hrc_to_hv(ih_hrc(ISO_REFERENCE_C))))
+    return base * ratio

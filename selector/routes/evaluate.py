@@ -190,6 +190,9 @@ def evaluate(grade, route, diameter_mm: float | None = 25.0, thickness_mm: float
                 "center_elongation_pct", "center_martensite_pct", "di_mm", "peak_ratio") + BAND_KEYS:
         if key in res:
             out[key] = _scalar(res[key])
+    for key in getattr(fam, "result_keys", ()):      # a family's own keys (e.g. section_limit_mm)
+        if key in res:
+            out[key] = _scalar(res[key])
     out["case_depth_mm"] = out.get("case_depth_mm") or 0.0
     if "profile_hv" in res:
         pos = np.asarray(res["profile_positions"], float)

@@ -26,7 +26,8 @@ CORNERS = ("lean", "nominal", "rich")
 RESULT_COLUMNS = ("uts_mpa", "yield_mpa", "elongation_pct", "hardness_hv", "hardness_hrc", "hardness_hb",
                   "surface_hardness_hv", "surface_hardness_hrc", "center_hardness_hv", "center_hardness_hrc",
                   "case_depth_mm", "reduction_area_pct", "center_uts_mpa", "center_yield_mpa",
-                  "center_martensite_pct", "peak_ratio", "di_mm", "band_free") + BAND_KEYS
+                  "center_martensite_pct", "peak_ratio", "di_mm", "band_free",
+                  "section_limit_mm", "bainite_pct") + BAND_KEYS
 
 
 def _family_blocks(fam, grades, corners):

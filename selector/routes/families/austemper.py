@@ -1,46 +1,51 @@
-"""Austempering and martempering: quench into a hot bath, hold, cool (bainite routes).
+"""Austempering and martempering: quench into a hot bath, hold, cool (the salt-bath routes).
 
 Steps::
 
     [{"op": "austemper", "bath_c": 315, "hours": 1}]                  # optional "austenitize_c"
     [{"op": "martemper", "bath_c": 230}, {"op": "temper", "temp_c": 200, "hours": 2}]
 
-Chain of models (all already in the package; nothing is fitted here):
+Chain of models (published models of the package; nothing is fitted here):
 
 1. **Cooling into the bath.** The bar (or plate) is quenched into a salt bath taken as
    strongly agitated oil (Grossmann H from ``data/quench_severity.csv``; agitated
    nitrate-nitrite salt quenches about like agitated oil: ASM Handbook Vol. 4 (1991),
-   austempering of steel, from memory).  The centre's temperature history comes
-   from the conduction series of :mod:`selector.models.cooling`.
-2. **Section limit.** Along the centre's path to the bath, the Scheil (1935) sum
-   ``Σ Δt / τ_start(T)`` of the ferrite and pearlite reactions (Li et al. 1998
-   kinetics, :func:`selector.models.transformation.isothermal_time_s`, 1 % progress) is
-   taken; when it reaches 1 before the centre is within 10 °C of the bath, ferrite or
-   pearlite forms at the centre: the section is beyond the route's limit.  The limit
-   itself (``section_limit_mm``, single evaluations only) is the largest diameter
-   whose sum stays below 1 (the same model on a few diameters).
-3. **Austempering hold.** Bainite progress at the bath temperature in the hold time
-   (Li et al. 1998 bainite kinetics, normalised progress X from S(X) = t/τ₁); the
-   austenite left transforms to martensite on cooling by Koistinen–Marburger (1959)
-   from the Li Ms (fresh, untempered martensite: a note).
-4. **Martempering.** The bath lies just above Ms; the hold equalises the temperature
-   (a short hold, taken as no transformation) and the part becomes martensite on
-   air cooling (Koistinen–Marburger), then the temper of the route uses the Q&T
-   tempering model (:func:`selector.models.tempering.tempered_hv`).
-5. **Hardness.** Maynier et al. (1978) phase hardness (:mod:`selector.models.phase_hardness`)
-   at the cooling rate at 700 °C of the centre, mixed by phase fractions; then tensile
-   strength by ASTM E140/A370 and yield/elongation by the Q&T correlations (yield
-   taken at the bath temperature as its "tempering" temperature, an approximation).
+   austempering of steel, from memory).  The centre's temperature path comes from the
+   conduction series (:mod:`selector.models.bath_quench`, Carslaw & Jaeger 1959).
+2. **Products on the way to the bath.** Along the centre's path, until it is within
+   :data:`AT_BATH_C` of the bath, the ferrite and pearlite reactions progress by Scheil
+   (1935) additivity of the Li et al. (1998) kinetics
+   (:func:`selector.models.transformation.path_progress`): ferrite up to its lever-rule
+   share (hypoeutectoid steels), pearlite from the austenite left.  Their sum is
+   ``non_bainitic_pct`` (ferrite + pearlite at the centre).
+3. **Section limit** (``section_limit_mm``, every state): the largest round diameter (or
+   plate thickness) whose centre reaches the bath before ferrite or pearlite *starts*
+   (Scheil sum of the 1 % start times < 1), by the same model on :data:`LIMIT_SIZES_MM`,
+   interpolated in log–log.  A section above it gets a caution (the centre forms some
+   ferrite/pearlite; the amount is in ``non_bainitic_pct``).
+4. **Austempering hold.** Bainite progress at the bath temperature in the hold time (Li et
+   al. 1998 bainite kinetics, normalised progress X from S(X) = t/τ₁, the carbon of the
+   rate constant held at the fit's 0.6 % for high-carbon steels: see
+   :func:`selector.models.transformation.isothermal_time_s`); the austenite left
+   transforms to fresh martensite on cooling by Koistinen–Marburger (1959) from the Li
+   Ms; what is left of it is retained austenite (``retained_austenite_pct``).
+5. **Martempering.** The bath lies just above Ms; the hold equalises the temperature (no
+   transformation is taken) and the part becomes martensite on air cooling
+   (Koistinen–Marburger), then the temper of the route uses the Q&T tempering model
+   (:func:`selector.models.tempering.tempered_hv`).
+6. **Hardness.** Rule of mixtures (Maynier et al. 1978, :func:`~selector.models.phase_hardness.mixture_hv`)
+   of: the bainite formed at the bath temperature
+   (:func:`selector.models.phase_hardness.isothermal_bainite_hv`, eutectoid isothermal
+   hardness curve scaled by carbon, capped at the martensite of the steel tempered at the
+   bath temperature for the hold); fresh martensite (ASTM A255 initial hardness);
+   ferrite–pearlite (Maynier 1978 at the centre's cooling rate at 700 °C).  Then tensile
+   strength by ASTM E140/A370 and yield/elongation by the Q&T correlations (yield taken
+   at the bath temperature as its "tempering" temperature, an approximation).
 
-Selection: the bath routes are not expanded over the catalogue yet (``grid`` raises
-:class:`~selector.errors.NotModelledError`, which the expansion skips): the conduction
-and kinetics chain costs about a second per state.  ``evaluate()`` gives them.
-
-Limitation: Maynier's bainite hardness depends on the cooling rate, not on the
-transformation temperature, so the model does not capture the harder lower bainite
-of a cooler bath; published austempered hardness for 1080/1095-class steels (about
-50-55 HRC) is checked in tests/test_austemper.py.  Maynier's equations hold for C up
-to 0.5 %; higher-carbon grades get the validity warning.
+Selection expands both routes over the grade's window: austemper over the bath
+temperature (10 °C steps) at the default hold, martemper over the temper temperature
+(25 °C steps) at the default bath.  Windows: ``data/bath_route_windows.csv`` (grade,
+then family rows) before ``data/route_windows.csv``.
 
 References
 ----------
@@ -49,87 +54,198 @@ E. Scheil, Arch. Eisenhüttenwes. 8 (1935) 565.
 D.P. Koistinen, R.E. Marburger, Acta Metall. 7 (1959) 59.
 Ph. Maynier, B. Jungmann, J. Dollet, in Hardenability Concepts with Applications to Steel,
 TMS-AIME (1978) 518.
+US Steel, Atlas of Isothermal Transformation Diagrams (1951) (isothermal bainite hardness).
 ASM Handbook Vol. 4, Heat Treating (1991): austempering of steel; martempering of steel
 (process windows, from memory).
 """
 from __future__ import annotations
 
+import functools
+
 import numpy as np
 
-from ...models import conversions, cooling, phase_hardness, quench_severity, tempering, transformation
-from ...models.composition import el
-from ...models.martensite import martensite_hardness_hrc
+from ...catalogue.loader import CONFIDENCE, Column, Schema, read_table
 from ...errors import NotModelledError
+from ...models import (bath_quench, conversions, cooling, correlations, phase_hardness, quench_severity,
+                       tempering, transformation, validity)
+from ...models.composition import el
+from ...models.martensite import ih_hrc, martensite_hardness_hrc
+from .. import transformation_curves as _curves
 from ..model_inputs import uses
 from .base import Batch, RouteFamily, product_grid
 from .quench_temper import _by_class, _yield, correlation_class, default_austenitize_c
-from ...models import correlations
 
 STEEL = ("carbon_steel", "alloy_steel")
 #: the salt bath is taken as strongly agitated oil (see the module docstring)
-BATH_MEDIUM = ("oil", "strong")
+BATH_MEDIUM = bath_quench.BATH_MEDIUM
 #: the centre counts as "at the bath" within this many °C
 AT_BATH_C = 10.0
-TIMES_S = np.geomspace(0.05, 3600.0, 120)
+TIMES_S = bath_quench.TIMES_S
 ROOM_C = 25.0
+#: sizes (mm) on which the section limit is searched (log-spaced, 1-200 mm, ratio 1.7; the Scheil
+#: sum is close to a power of the size, so log-log interpolation between them is enough)
+LIMIT_SIZES_MM = np.geomspace(1.0, 200.0, 11)
+#: bainite progress below which the hold is reported incomplete
+COMPLETE_X = 0.95
+#: the martempering bath of the selection grid sits this far above the Li Ms, °C; the austempering grid
+#: keeps baths at least this far above it
+MARTEMPER_ABOVE_MS_C = 10.0
+#: the selection grid holds this many times the 95 % bainite time (see Austemper.hold_for)
+HOLD_MARGIN = 1.25
+#: step of the austemper bath grid and of the martemper temper grid, °C
+BATH_STEP_C = 10.0
+TEMPER_STEP_C = 25.0
+
+_WINDOW_SCHEMA = Schema((Column("scope"), Column("route", "choice", choices=("austemper", "martemper")),
+                         Column("parameter", "choice", choices=("bath_c", "hold_hours", "temper_temp_c")),
+                         Column("min", "float", lo=0, hi=1000), Column("max", "float", lo=0, hi=1000),
+                         Column("default", "float", lo=0, hi=1000), Column("unit"), Column("source"),
+                         Column("confidence", "choice", choices=CONFIDENCE)))
+
+
+@functools.cache
+def _window_rows() -> dict:
+    t = read_table("bath_route_windows.csv", _WINDOW_SCHEMA)
+    return {(r.scope, r.route, r.parameter): (float(r.min), float(r.max), float(r.default), r.unit, r.source)
+            for r in t.itertuples(index=False)}
+
+
+def window(grade, route: str, parameter: str):
+    """``(min, max, default, unit, source)`` of a bath-route parameter for ``grade``: its grade
+    row in ``data/bath_route_windows.csv``, else its family row there, else
+    ``data/route_windows.csv``; None when none."""
+    rows = _window_rows()
+    for scope in (grade.id, grade.family):
+        if (scope, route, parameter) in rows:
+            return rows[(scope, route, parameter)]
+    w = grade.window(route, parameter)
+    if w is not None and w.min == w.min and w.max == w.max:
+        return (w.min, w.max, w.default, w.unit, w.source)
+    return None
 
 
 def _h_w_m2k():
-    return float(quench_severity.heat_transfer_coefficient_w_m2k(quench_severity.grossmann_h_per_in(*BATH_MEDIUM)))
+    return bath_quench.bath_h_w_m2k()
 
 
-def _col(comp, n):
-    return {k: np.broadcast_to(np.asarray(v, float), (n,))[:, None] for k, v in comp.items()}
+def _states_comp(comp, n):
+    return {k: np.broadcast_to(np.asarray(v, float), (n,)) for k, v in comp.items()}
+
+
+def products_to_bath(comp, austenitize_c, bath_c, diameter_mm=None, thickness_mm=None):
+    """Ferrite + pearlite formed at the centre before it reaches the bath, and the Scheil
+    start sum, for ``n`` states (Li et al. 1998 kinetics, Scheil additivity).
+
+    Parameters
+    ----------
+    comp : mapping
+        Element → wt %, arrays (n,) or scalars.
+    austenitize_c, bath_c : array_like
+        °C, (n,).
+    diameter_mm, thickness_mm : array_like
+        Round diameter (NaN for a plate) and plate thickness, mm, (n,).
+
+    Returns
+    -------
+    dict of ndarray (n,)
+        ``ferrite``, ``pearlite`` (fractions of the whole), ``start_sum`` (≥ 1: ferrite or
+        pearlite has started at the centre before it reached the bath).
+    """
+    aust = np.atleast_1d(np.asarray(austenitize_c, float))
+    bath = np.atleast_1d(np.asarray(bath_c, float))
+    n = max(len(aust), len(bath))
+    aust, bath = np.broadcast_to(aust, (n,)), np.broadcast_to(bath, (n,))
+    c = _states_comp(comp, n)
+    temp = bath_quench.path_temperature_c(_h_w_m2k(), TIMES_S, diameter_mm, thickness_mm, 0.0, aust, bath)
+    mid = 0.5 * (temp[:, 1:] + temp[:, :-1])
+    moving = mid > bath[:, None] + AT_BATH_C
+    with np.errstate(over="ignore", divide="ignore", invalid="ignore"):
+        xp, sp = transformation.path_progress(c, TIMES_S, temp, "pearlite", active=moving)
+        xf, sf = transformation.path_progress(c, TIMES_S, temp, "ferrite", active=moving)
+    carbon = np.asarray(el(c, "C"), float)
+    hypo = carbon < transformation.EUTECTOID_C
+    xeq = np.clip((transformation.EUTECTOID_C - carbon) / transformation.EUTECTOID_C, 0.0, 1.0)
+    f_f = np.where(hypo, xeq * xf, 0.0)
+    f_p = (1.0 - f_f) * xp
+    start = np.where(hypo, np.maximum(sp, sf), sp)
+    return {"ferrite": f_f, "pearlite": f_p, "start_sum": start}
 
 
 def scheil_to_bath(comp, austenitize_c, bath_c, diameter_mm=None, thickness_mm=None):
-    """Scheil sum of ferrite/pearlite start along the centre's path into the bath (n,);
-    >= 1 means the centre transforms before it reaches the bath."""
-    aust = np.asarray(austenitize_c, float)
-    bath = np.asarray(bath_c, float)
-    n = aust.shape[0]
-    dm = None if diameter_mm is None else np.asarray(diameter_mm, float)[:, None]
-    tm = None if thickness_mm is None else np.asarray(thickness_mm, float)[:, None]
-    temp = cooling.temperature_c(_h_w_m2k(), TIMES_S[None, :], dm, tm, positions=(0.0,),
-                                 austenitize_c=aust[:, None], bath_c=bath[:, None])[..., 0]
-    mid = 0.5 * (temp[:, 1:] + temp[:, :-1])
-    dt = np.diff(TIMES_S)[None, :]
-    c2 = _col(comp, n)
-    with np.errstate(over="ignore", divide="ignore", invalid="ignore"):
-        tau_p = transformation.isothermal_time_s(c2, mid, 0.01, "pearlite")
-        tau_f = transformation.isothermal_time_s(c2, mid, 0.01, "ferrite")
-        hypo = (el(comp, "C") < transformation.EUTECTOID_C)
-        tau = np.where(np.broadcast_to(np.asarray(hypo)[..., None] if np.ndim(hypo) else hypo, tau_p.shape),
-                       np.minimum(tau_p, tau_f), tau_p)
-        moving = mid > bath[:, None] + AT_BATH_C
-        return np.sum(np.where(moving & np.isfinite(tau) & (tau > 0), dt / tau, 0.0), axis=1)
+    """Scheil sum of the ferrite/pearlite start along the centre's path into the bath (n,);
+    >= 1 means the centre starts to transform before it reaches the bath."""
+    return products_to_bath(comp, austenitize_c, bath_c, diameter_mm, thickness_mm)["start_sum"]
 
 
 def bainite_progress(comp, bath_c, hours):
-    """Normalised bainite progress X (0–1) after ``hours`` at ``bath_c`` (Li et al. 1998)."""
-    x_ref = 0.5
-    tau1 = transformation.isothermal_time_s(comp, bath_c, x_ref, "bainite") / transformation.s_integral(x_ref)
+    """Normalised bainite progress X (0–1) after ``hours`` at ``bath_c`` (Li et al. 1998,
+    the carbon of the rate constant held at the fit's upper end, :data:`transformation.LI_MAX_C`)."""
+    tau1 = (transformation.isothermal_time_s(comp, bath_c, 0.5, "bainite",
+                                             bainite_carbon_cap_pct=transformation.LI_MAX_C)
+            / transformation.s_integral(0.5))
     xs = np.linspace(0.0, 0.999, 2001)
     s = transformation.s_integral(xs)
     return np.interp(np.asarray(hours, float) * 3600.0 / tau1, s, xs)
 
 
-def section_limit_mm(comp, austenitize_c, bath_c, lo=1.0, hi=200.0, n=8):
-    """Largest round diameter (mm) whose centre reaches the bath before ferrite/pearlite
-    starts: :func:`scheil_to_bath` on ``n`` diameters spaced geometrically from ``lo`` to
-    ``hi``, the crossing of the sum through 1 interpolated in log-log.  ``hi`` when every
-    diameter passes, 0 when ``lo`` fails."""
-    d = np.geomspace(lo, hi, n)
-    s = scheil_to_bath({k: np.full(n, float(v)) for k, v in comp.items()}, np.full(n, float(austenitize_c)),
-                       np.full(n, float(bath_c)), diameter_mm=d)
-    if s[0] >= 1.0:
-        return 0.0
-    if s[-1] < 1.0:
-        return hi
-    j = int(np.argmax(s >= 1.0))
-    ls0, ls1 = np.log(max(s[j - 1], 1e-12)), np.log(s[j])
-    f = (0.0 - ls0) / (ls1 - ls0) if ls1 != ls0 else 0.0
-    return float(np.exp(np.log(d[j - 1]) + f * (np.log(d[j]) - np.log(d[j - 1]))))
+def section_limit_mm(comp, austenitize_c, bath_c, plate=False):
+    """Largest round diameter (``plate``: plate thickness), mm, whose centre reaches the bath
+    before ferrite or pearlite starts, for ``n`` states: :func:`scheil_to_bath` on
+    :data:`LIMIT_SIZES_MM`, the crossing of the sum through 1 interpolated in log–log; the
+    largest size when every size passes, 0 when the smallest fails.
+
+    Returns
+    -------
+    ndarray (n,), mm (a float for scalar input).
+    """
+    scalar = np.ndim(bath_c) == 0 and np.ndim(austenitize_c) == 0
+    aust = np.atleast_1d(np.asarray(austenitize_c, float))
+    bath = np.atleast_1d(np.asarray(bath_c, float))
+    n = max(len(aust), len(bath), *[np.size(v) for v in comp.values()])
+    sizes = LIMIT_SIZES_MM
+    k = len(sizes)
+    rep = {e: np.repeat(np.broadcast_to(np.asarray(v, float), (n,)), k) for e, v in comp.items()}
+    dd = np.tile(sizes, n)
+    args = (None, dd) if plate else (dd, None)
+    s = scheil_to_bath(rep, np.repeat(np.broadcast_to(aust, (n,)), k), np.repeat(np.broadcast_to(bath, (n,)), k),
+                       *args).reshape(n, k)
+    ls = np.log(np.maximum(s, 1e-12))
+    over = s >= 1.0
+    j = np.argmax(over, axis=1)
+    jm = np.maximum(j - 1, 0)
+    rows = np.arange(n)
+    l0, l1 = ls[rows, jm], ls[rows, j]
+    f = np.where(l1 != l0, (0.0 - l0) / np.where(l1 != l0, l1 - l0, 1.0), 0.0)
+    lsz = np.log(sizes)
+    out = np.exp(lsz[jm] + np.clip(f, 0.0, 1.0) * (lsz[j] - lsz[jm]))
+    out = np.where(~over.any(axis=1), sizes[-1], np.where(over[:, 0], 0.0, out))
+    return float(out[0]) if scalar else out
+
+
+#: section limits already computed, keyed by (elements, composition + temperatures row, plate): the
+#: limit does not depend on the section, so a selection at a new section reuses them
+_LIMIT_CACHE: dict = {}
+_LIMIT_CACHE_MAX = 50_000
+
+
+def _cached_limits(elements: tuple, rows: np.ndarray, plate: bool) -> np.ndarray:
+    """:func:`section_limit_mm` of each row of ``rows`` (columns: ``elements``, austenitize_c,
+    bath_c), computed once per distinct row and kept."""
+    keys = [(elements, r.tobytes(), plate) for r in rows]
+    todo = [i for i, k in enumerate(keys) if k not in _LIMIT_CACHE]
+    if todo:
+        if len(_LIMIT_CACHE) + len(todo) > _LIMIT_CACHE_MAX:
+            _LIMIT_CACHE.clear()
+        new = rows[todo]
+        vals = section_limit_mm({e: new[:, i] for i, e in enumerate(elements)}, new[:, -2], new[:, -1],
+                                plate=plate)
+        for i, v in zip(todo, np.atleast_1d(vals)):
+            _LIMIT_CACHE[keys[i]] = float(v)
+    return np.array([_LIMIT_CACHE[k] for k in keys], float)
+
+
+def _fresh_martensite_hv(comp):
+    return np.asarray(conversions.hrc_to_hv(ih_hrc(el(comp, "C"))), float)
 
 
 #: the models of both bath routes: the centre's cooling into the bath, Maynier phase hardness,
@@ -149,10 +265,14 @@ class _BathRoute(RouteFamily):
     references = (
         "Li, Niebuhr, Meekisho & Atteridge, Metall. Mater. Trans. B 29B (1998) 661 (transformation kinetics)",
         "Scheil, Arch. Eisenhüttenwes. 8 (1935) 565 (additivity); Koistinen & Marburger, Acta Metall. 7 (1959) 59",
-        "Maynier, Jungmann & Dollet, TMS-AIME (1978) 518 (phase hardness)",
-        "ASM Handbook Vol. 4 (1991): austempering and martempering of steel (process windows)",
+        "Maynier, Jungmann & Dollet, TMS-AIME (1978) 518 (phase hardness, mixture rule)",
+        "US Steel, Atlas of Isothermal Transformation Diagrams (1951): hardness of isothermal bainite (from memory)",
+        "ASM Handbook Vol. 4 (1991): austempering and martempering of steel (process windows, from memory)",
     )
     op = ""
+    #: keys of the result that evaluate() reports besides the common ones
+    result_keys = ("section_limit_mm", "bainite_pct", "non_bainitic_pct", "retained_austenite_pct")
+    #: validity of the route, as declared per family (models and ranges it relies on)
 
     def _parse_bath(self, steps, grade):
         self.require_family(grade)
@@ -162,42 +282,67 @@ class _BathRoute(RouteFamily):
             aust = default_austenitize_c(grade)
         return s, float(aust)
 
-    def _grid(self, grade, extra):
-        raise NotModelledError(f"the {self.name} route is evaluated one state at a time (evaluate()); it is not "
-                               "expanded over the catalogue in selection yet (the conduction and kinetics chain "
-                               "is too slow for the whole catalogue)")
-        bands = self.bands(grade, self.name, "bath_c", (260.0, 400.0))
-        temps = np.unique(np.concatenate([np.arange(np.ceil(lo / 10) * 10, hi + 0.1, 10.0) for lo, hi in bands]))
-        g = product_grid(bath_c=temps)
-        n = len(temps)
-        g["austenitize_c"] = np.full(n, float(default_austenitize_c(grade)))
-        for k, v in extra.items():
-            g[k] = np.full(n, float(v))
-        return g
+    def _default(self, grade, parameter, fallback):
+        w = window(grade, self.name, parameter)
+        return fallback if w is None or w[2] != w[2] else float(w[2])
+
+    def _warnings(self, grade, params):
+        out = []
+        for name, v in params.items():
+            w = window(grade, self.name, name)
+            if w is None or v is None or v != v or name == "austenitize_c":
+                continue
+            lo, hi, _, unit, src = w
+            if not (lo - 1e-9 <= v <= hi + 1e-9):
+                out.append(f"{name} = {v:g} {unit} is outside the usual window {lo:g}–{hi:g} {unit} for "
+                           f"{grade.id} ({src}); the estimate is extrapolated")
+        return out
+
+    def _axis(self, grade, parameter, fallback, step):
+        w = window(grade, self.name, parameter)
+        lo, hi = (fallback if w is None else (w[0], w[1]))
+        return np.arange(np.ceil(lo / step) * step, hi + 1e-9, step)
 
     def _common(self, batch, fractions_fn):
         p = batch.params
         comp = batch.comp
         aust = np.asarray(p["austenitize_c"], float)
         bath = np.asarray(p["bath_c"], float)
-        d = None if np.all(np.isnan(batch.diameter_mm)) else batch.diameter_mm
-        t = None if d is not None else batch.thickness_mm
-        scheil = scheil_to_bath(comp, aust, bath, d, t)
-        rate = cooling.cooling_rate_at_c_s(_h_w_m2k(), d, t, positions=(0.0,), austenitize_c=aust,
-                                           bath_c=bath)[..., 0]
+        round_ = np.isfinite(batch.diameter_mm)
+        d = batch.diameter_mm if round_.any() else None
+        t = None if round_.all() else batch.thickness_mm
+        plate = not round_.any()
+        # the products on the way and the limit depend on composition, temperatures and size only:
+        # computed once per distinct row (a martemper grid repeats them over its temper axis)
+        elements = sorted(comp)
+        section = np.where(round_, batch.diameter_mm, batch.thickness_mm)
+        key = np.stack([np.broadcast_to(np.asarray(comp[e], float), (batch.n,)) for e in elements]
+                       + [aust, bath, section], axis=1)
+        uniq, inv = transformation.unique_rows(key)
+        ucomp = {e: uniq[:, i] for i, e in enumerate(elements)}
+        ua, ub, us = uniq[:, -3], uniq[:, -2], uniq[:, -1]
+        prod = {k: v[inv] for k, v in products_to_bath(ucomp, ua, ub, None if plate else us,
+                                                        us if plate else None).items()}
+        f_np = np.clip(prod["ferrite"] + prod["pearlite"], 0.0, 1.0)
+        lk, linv = transformation.unique_rows(uniq[:, :-1])
+        limit = _cached_limits(tuple(elements), lk, plate)[linv][inv]
+        rate = cooling.cooling_rate_at_c_s(_h_w_m2k(), d if not plate else None, batch.thickness_mm if plate else None,
+                                           positions=(0.0,), austenitize_c=np.maximum(aust, 720.0),
+                                           bath_c=np.minimum(bath, 650.0))[..., 0]
         rate = np.maximum(np.asarray(rate, float), 1e-3)
-        hv_m, hv_b, hv_fp = phase_hardness.phase_hardness_hv(comp, rate)
+        _, _, hv_fp = phase_hardness.phase_hardness_hv(comp, rate)
         ms = transformation.ms_li_c(comp)
         bs = transformation.bs_li_c(comp)
-        f_b, f_m, notes = fractions_fn(comp, bath, ms, bs)
-        missed = scheil >= 1.0
-        f_fp = np.where(missed, 1.0, 0.0)
-        f_b = np.where(missed, 0.0, f_b)
-        f_m = np.where(missed, 0.0, f_m)
-        f_ra = np.clip(1.0 - f_b - f_m - f_fp, 0.0, 1.0)
-        hv = phase_hardness.mixture_hv([f_m, f_b, f_fp], [hv_m, hv_b, hv_fp])
-        return {"hv": hv, "hv_m": hv_m, "f_b": f_b, "f_m": f_m, "f_fp": f_fp, "f_ra": f_ra, "missed": missed,
-                "ms": ms, "bs": bs, "bath": bath, "scheil": scheil, "notes": notes}
+        x_b, hv_b, notes = fractions_fn(comp, bath, ms, bs)
+        f_b = (1.0 - f_np) * x_b
+        km = 1.0 - np.exp(-transformation.KM_ALPHA * np.maximum(ms - ROOM_C, 0.0))
+        f_m = (1.0 - f_np - f_b) * km
+        f_ra = np.clip(1.0 - f_np - f_b - f_m, 0.0, 1.0)
+        hv_m = _fresh_martensite_hv(comp)
+        hv = phase_hardness.mixture_hv([f_m, f_b, f_np], [hv_m, hv_b, hv_fp])
+        return {"hv": hv, "hv_m": hv_m, "f_b": f_b, "f_m": f_m, "f_np": f_np, "f_ra": f_ra,
+                "ms": ms, "bs": bs, "bath": bath, "start": prod["start_sum"], "limit": limit,
+                "over": section > limit, "notes": notes}
 
     def _finish(self, batch, c, hv, temper_c):
         cls = correlation_class(batch.attr("family"))
@@ -207,11 +352,20 @@ class _BathRoute(RouteFamily):
                "elongation_pct": _by_class(correlations.elongation_from_uts, uts, cls),
                "reduction_area_pct": _by_class(correlations.reduction_of_area_from_uts, uts, cls),
                "case_depth_mm": np.zeros(batch.n), "center_martensite_pct": 100.0 * c["f_m"],
-               "bainite_pct": 100.0 * c["f_b"], "ms_c": c["ms"], "bs_c": c["bs"]}
+               "bainite_pct": 100.0 * c["f_b"], "non_bainitic_pct": 100.0 * c["f_np"],
+               "retained_austenite_pct": 100.0 * c["f_ra"], "section_limit_mm": c["limit"],
+               "ms_c": c["ms"], "bs_c": c["bs"]}
         notes = list(c["notes"])
-        notes.append(("the centre reaches the bath too slowly: ferrite or pearlite forms before it "
-                      "(Scheil sum of Li et al. 1998 kinetics >= 1); the section exceeds this route's limit",
-                      c["missed"]))
+        unit = "diameter" if np.isfinite(batch.diameter_mm).all() else "thickness"
+        notes.append((f"section above this route's limit (the largest {unit} whose centre reaches the bath before "
+                      "ferrite or pearlite starts, section_limit_mm; Li et al. 1998 kinetics, Scheil additivity): "
+                      "the centre forms some ferrite/pearlite (non_bainitic_pct) and is softer; choose a more "
+                      "hardenable grade or a smaller section", c["over"]))
+        notes.append(("ferrite/pearlite is most of the centre: the bath route does not work at this section",
+                      c["f_np"] > 0.5))
+        notes.append(("retained austenite above 10 % at room temperature (Koistinen–Marburger from the Li Ms): "
+                      "dimensional instability and softer than estimated; a sub-zero treatment or a temper is usual "
+                      "(common practice)", c["f_ra"] > 0.10))
         d = None if np.all(np.isnan(batch.diameter_mm)) else batch.diameter_mm
         t = None if d is not None else batch.thickness_mm
         aust = np.asarray(batch.params["austenitize_c"], float)
@@ -222,16 +376,8 @@ class _BathRoute(RouteFamily):
             # the centre's rate is taken at 700 C on the way into the bath (cooling_rate_at_c_s)
             "theta": (700.0 - c["bath"]) / (aust - c["bath"]),
             "alloy_class": cls != "carbon_steel", "carbon_class": cls == "carbon_steel",
-            "correlation_temper_c": np.where(np.isfinite(tc), tc, 150.0)}
-        if batch.n == 1:
-            d = batch.diameter_mm[0]
-            if np.isfinite(d):
-                lim = section_limit_mm({k: float(np.asarray(v)[0]) for k, v in batch.comp.items()},
-                                       float(batch.params["austenitize_c"][0]), float(batch.params["bath_c"][0]))
-                res["section_limit_mm"] = np.array([lim])
-                notes.append((f"section limit of this route: about {lim:.0f} mm diameter (centre reaches the "
-                              "bath before ferrite/pearlite starts; Li et al. 1998 kinetics, Scheil additivity)",
-                              np.ones(1, bool)))
+            "correlation_temper_c": np.where(np.isfinite(tc), tc, 150.0),
+            "bath_c": np.broadcast_to(np.asarray(c["bath"], float), (batch.n,))}
         res["notes"] = notes
         return res
 
@@ -243,11 +389,15 @@ class Austemper(_BathRoute):
     patterns = (("austemper",),)
     main_parameter = "bath_c"
     parameters = ("austenitize_c", "bath_c", "hold_hours")
+    #: the bath chain, and the bainite's hardness read at the bath temperature
+    model_inputs = BATH_INPUTS + uses("isothermal_bainite", "C", temp_c="bath_c")
 
     def parse(self, steps, grade):
         s, aust = self._parse_bath(steps, grade)
-        params = {"austenitize_c": aust, "bath_c": float(s["bath_c"]), "hold_hours": float(s.get("hours", 1.0))}
-        return params, self.window_warnings(grade, self.name, params)
+        hours = s.get("hours")
+        params = {"austenitize_c": aust, "bath_c": float(s["bath_c"]),
+                  "hold_hours": float(hours) if hours is not None else self._default(grade, "hold_hours", 1.0)}
+        return params, self._warnings(grade, params)
 
     def to_steps(self, params):
         return [{"op": "austemper", "bath_c": float(params["bath_c"]), "hours": float(params["hold_hours"]),
@@ -255,22 +405,50 @@ class Austemper(_BathRoute):
 
     def grid(self, grade):
         self.require_family(grade)
-        return self._grid(grade, {"hold_hours": self.window_value(grade, self.name, "hold_hours", None, 1.0)})
+        temps = self._axis(grade, "bath_c", (260.0, 400.0), BATH_STEP_C)
+        # austempering needs a bath above Ms (below it the bath makes martensite): the grid keeps the
+        # window's baths at least MARTEMPER_ABOVE_MS_C above the Li Ms of the nominal composition
+        comp = grade.composition()
+        temps = temps[(temps >= float(transformation.ms_li_c(comp)) + MARTEMPER_ABOVE_MS_C)
+                      & (temps < float(transformation.bs_li_c(comp)))]
+        n = len(temps)
+        return {"austenitize_c": np.full(n, float(default_austenitize_c(grade))), "bath_c": temps,
+                "hold_hours": self.hold_for(grade, temps)}
+
+    def hold_for(self, grade, bath_c):
+        """Hold (h) of the selection grid at each bath temperature: long enough for 95 % of the
+        bainite of the nominal composition (Li et al. 1998, × :data:`HOLD_MARGIN`), rounded up to
+        a quarter hour and kept inside the grade's hold window (practice holds until the
+        transformation is complete: ASM Handbook Vol. 4 (1991), austempering of steel, from
+        memory); the window's default where the bath is outside Ms–Bs."""
+        w = window(grade, self.name, "hold_hours")
+        lo, hi, dflt = (0.5, 4.0, 1.0) if w is None else (w[0], w[1], w[2])
+        comp = grade.composition()
+        bath = np.asarray(bath_c, float)
+        with np.errstate(over="ignore", divide="ignore", invalid="ignore"):
+            t95 = transformation.isothermal_time_s(comp, bath, COMPLETE_X, "bainite",
+                                                   bainite_carbon_cap_pct=transformation.LI_MAX_C) / 3600.0
+        inside = (bath > transformation.ms_li_c(comp)) & (bath < transformation.bs_li_c(comp)) & np.isfinite(t95)
+        hold = np.clip(np.ceil(HOLD_MARGIN * np.where(inside, t95, dflt) * 4.0) / 4.0, lo, hi)
+        return np.where(inside, hold, dflt)
 
     def compute(self, batch):
         hours = np.asarray(batch.params["hold_hours"], float)
 
         def fractions(comp, bath, ms, bs):
-            x = bainite_progress(comp, bath, hours)
-            x = np.where((bath > ms) & (bath < bs), x, 0.0)
-            km = 1.0 - np.exp(-transformation.KM_ALPHA * np.maximum(ms - ROOM_C, 0.0))
-            f_m = (1.0 - x) * km
+            inside = (bath > ms) & (bath < bs)
+            with np.errstate(over="ignore", divide="ignore", invalid="ignore"):
+                x = np.where(inside, bainite_progress(comp, np.where(inside, bath, 0.5 * (ms + bs)), hours), 0.0)
+            hv_iso = phase_hardness.isothermal_bainite_hv(comp, bath)
+            hv_tm = tempering.tempered_martensite_hv(comp, bath, hours)
+            hv_b = np.minimum(hv_iso, hv_tm)
             notes = [("bath at or below Ms (Li et al. 1998): martensite forms on entering the bath; this is not an "
                       "austempering", bath <= ms),
                      ("bath at or above Bs (Li et al. 1998): no bainite forms at this bath temperature", bath >= bs),
                      ("bainite transformation incomplete in the hold: the rest becomes fresh, untempered martensite "
-                      "on cooling", (x < 0.95) & (bath > ms) & (bath < bs))]
-            return x, f_m, notes
+                      "on cooling", (x < COMPLETE_X) & inside)]
+            # the validity of isothermal_bainite is declared in model_inputs and checked by finish()
+            return x, hv_b, notes
         c = self._common(batch, fractions)
         return self._finish(batch, c, c["hv"], c["bath"])
 
@@ -294,7 +472,7 @@ class Martemper(_BathRoute):
         params = {"austenitize_c": aust, "bath_c": float(s["bath_c"]),
                   "temper_temp_c": t["temp_c"] if t else float("nan"),
                   "temper_hours": t.get("hours", 2.0) if t else float("nan")}
-        return params, self.window_warnings(grade, self.name, params)
+        return params, self._warnings(grade, params)
 
     def to_steps(self, params):
         steps = [{"op": "martemper", "bath_c": float(params["bath_c"]),
@@ -306,7 +484,22 @@ class Martemper(_BathRoute):
 
     def grid(self, grade):
         self.require_family(grade)
-        return self._grid(grade, {})
+        temps = self._axis(grade, "temper_temp_c", (150.0, 650.0), TEMPER_STEP_C)
+        n = len(temps)
+        return {"austenitize_c": np.full(n, float(default_austenitize_c(grade))),
+                "bath_c": np.full(n, self.bath_for(grade)),
+                "temper_temp_c": temps, "temper_hours": np.full(n, 2.0)}
+
+    def bath_for(self, grade) -> float:
+        """Bath of the selection grid: just above Ms (Li Ms of the nominal composition +
+        :data:`MARTEMPER_ABOVE_MS_C`, rounded up to 5 °C: a martempering bath sits at or slightly
+        above Ms, ASM Handbook Vol. 4 (1991), martempering of steel, from memory), kept inside
+        the grade's bath window; where Ms lies above the window the bath is the window's top
+        (a bath below Ms, "modified martempering": the caution says so)."""
+        w = window(grade, self.name, "bath_c")
+        lo, hi = (200.0, 290.0) if w is None else (w[0], w[1])
+        ms = float(transformation.ms_li_c(grade.composition()))
+        return float(np.clip(np.ceil((ms + MARTEMPER_ABOVE_MS_C) / 5.0) * 5.0, lo, hi))
 
     def compute(self, batch):
         p = batch.params
@@ -314,14 +507,13 @@ class Martemper(_BathRoute):
         h = np.asarray(p["temper_hours"], float)
 
         def fractions(comp, bath, ms, bs):
-            km = 1.0 - np.exp(-transformation.KM_ALPHA * np.maximum(ms - ROOM_C, 0.0))
-            notes = [("bath below Ms (Li et al. 1998): martensite forms in the bath; martempering baths sit just "
-                      "above Ms", bath < ms),
+            notes = [("bath below Ms (Li et al. 1998): martensite starts in the bath (modified martempering); the "
+                      "distortion benefit of a bath just above Ms is smaller", bath < ms),
                      ("bath far above Ms: bainite may form during the equalising hold (not modelled)",
                       bath > ms + 100.0),
                      ("untempered martensite is brittle: temper promptly after martempering (common practice)",
                       ~np.isfinite(t))]
-            return np.zeros_like(km), km, notes
+            return np.zeros(np.shape(bath)), np.zeros(np.shape(bath)), notes
         c = self._common(batch, fractions)
         hv = c["hv"]
         tempered = np.isfinite(t)
@@ -342,47 +534,12 @@ FAMILIES = [Austemper(), Martemper()]
 
 
 def transformation_curves(comp, temps_c=None, start=0.01, finish=0.99) -> dict:
-    """Isothermal transformation start and finish times of ferrite, pearlite and bainite
-    (Li et al. 1998, :func:`selector.models.transformation.isothermal_time_s`) for one
-    composition, for a time–temperature chart.
-
-    Returns
-    -------
-    dict
-        ``temp_c`` (array), ``<reaction>_start_s`` / ``<reaction>_finish_s`` (s; NaN where
-        the reaction does not run: above Ae3 / Ae1 / Bs, or below Ms), ``ms_c``, ``bs_c``.
-    """
-    c = {k: float(np.asarray(v).ravel()[0]) for k, v in comp.items()}
-    ms, bs = float(transformation.ms_li_c(c)), float(transformation.bs_li_c(c))
-    ae1 = float(transformation.ac1_c(c))
-    ae3 = float(transformation.ac3_c(c))
-    temps = np.arange(np.floor(ms / 10) * 10 + 10, ae3, 10.0) if temps_c is None else np.asarray(temps_c, float)
-    out = {"temp_c": temps, "ms_c": ms, "bs_c": bs}
-    tops = {"ferrite": ae3, "pearlite": ae1, "bainite": bs}
-    for r, top in tops.items():
-        ok = (temps < top - 1.0) & (temps > ms)
-        if r == "ferrite" and c.get("C", 0.0) >= transformation.EUTECTOID_C:
-            ok &= False
-        for key, frac in (("start", start), ("finish", finish)):
-            with np.errstate(over="ignore", divide="ignore", invalid="ignore"):
-                t = transformation.isothermal_time_s(c, temps, frac, r)
-            out[f"{r}_{key}_s"] = np.where(ok & np.isfinite(t), t, np.nan)
-    return out
+    """Isothermal start and finish curves for one composition (see
+    :func:`selector.routes.transformation_curves.transformation_curves`; kept here for the page)."""
+    return _curves.transformation_curves(comp, temps_c, start, finish)
 
 
 def cooling_path(comp, austenitize_c, bath_c, diameter_mm, hold_hours=None, positions=(1.0, 0.0)) -> dict:
-    """Temperature against time at the surface and centre of a round quenched into the bath
-    (the salt bath of this module, :mod:`selector.models.cooling`), to draw over
-    :func:`transformation_curves`; the hold at the bath follows to ``hold_hours``.
-
-    Returns
-    -------
-    dict
-        ``time_s`` (array) and ``surface_c``, ``centre_c`` (arrays, °C).
-    """
-    end = max(3600.0 * float(hold_hours or 0.05), TIMES_S[-1])
-    t = np.geomspace(0.05, end, 150)
-    temp = cooling.temperature_c(_h_w_m2k(), t, np.array([float(diameter_mm)])[:, None], None,
-                                 positions=positions, austenitize_c=float(austenitize_c),
-                                 bath_c=float(bath_c))[0]
-    return {"time_s": t, "surface_c": temp[:, 0], "centre_c": temp[:, -1]}
+    """Surface and centre temperature paths into the bath (see
+    :func:`selector.routes.transformation_curves.bath_cooling_path`; kept here for the page)."""
+    return _curves.bath_cooling_path(austenitize_c, bath_c, diameter_mm, hold_hours, positions)
