@@ -286,10 +286,10 @@ def candidate_view(cand, states):
         st.markdown("\n".join(pg.route_steps(row["route"], system)))
         param = row["window_parameter"]
         if param:
-            win = pg._fmt_window(row['window_min'], row['window_max'], param, system)
+            win = pg.fmt_window(row['window_min'], row['window_max'], param, system)
             st.markdown(f"**Process window** (clear of avoid cautions): "
                         f"{win or 'none clear of avoid cautions: ' + str(row.get('avoid') or '')}")
-            rw = pg._fmt_window(row["robust_window_min"], row["robust_window_max"], param, system)
+            rw = pg.fmt_window(row["robust_window_min"], row["robust_window_max"], param, system)
             st.markdown(f"**Window at the required probability**: {rw or 'none: meets at the estimate only'}")
     with right:
         st.markdown("**Cautions**")

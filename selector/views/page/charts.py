@@ -1,0 +1,532 @@
+"""Charts of the page (Altair): the strength-elongation map, the process-parameter
+curves, hardness profiles, the side-by-side bars, the diameter sweep, the
+trade-off frontier of a near miss and the fatigue strength through the depth.
+Each builder takes DataFrames in SI and the unit system, and draws; no physics."""
+from __future__ import annotations
+
+import math
+from typing import Mapping, Sequence
+
+import altair as alt
+import numpy as np
+import pandas as pd
+from selector.catalogue.grades import default_catalogue
+from selector.routes.families import austemper as bath
+from selector.selection.targets import NUMERIC_TARGETS
+
+from .text import param_label, param_unit, percent, pick_label, route_line
+from .units import display_name, quantity_of, to_display, unit
+
+PALETTE = ["#1b6f8a", "#c2571a", "#5b8c2a", "#8e3b74", "#b3922b", "#3f4fa3", "#a8323e", "#2f8f7b",
+           "#6b5a3e", "#d07fa8", "#4d7ea8", "#7c8a1f", "#9b5fc0", "#c0873f", "#355c4a"]
+TARGET_FILL = "#f1e6c8"
+TARGET_STROKE = "#8a6d1e"
+
+
+# --------------------------------------------------------------------------- region geometry (display)
+
+def hull_band(x: np.ndarray, y: np.ndarray) -> pd.DataFrame:
+    """The convex hull of points (x, y) as a band: at each hull vertex abscissa,
+    the lower and upper edge (``x, lo, hi``) — a form an area mark can fill.
+
+    Andrew's monotone chain (A.M. Andrew, Inf. Process. Lett. 9 (1979) 216) gives the
+    lower and upper chains of the hull, both ordered by x, so the band is exact for
+    the convex region.  A purely geometric display helper.
+    """
+    pts = np.column_stack([np.asarray(x, float), np.asarray(y, float)])
+    pts = pts[np.isfinite(pts).all(axis=1)]
+    if len(pts) == 0:
+        return pd.DataFrame(columns=["x", "lo", "hi"])
+    pts = np.unique(pts, axis=0)          # sorted by x then y
+    if len(pts) == 1 or np.ptp(pts[:, 0]) == 0:
+        xs = float(pts[0, 0])
+        return pd.DataFrame({"x": [xs, xs], "lo": [pts[:, 1].min()] * 2, "hi": [pts[:, 1].max()] * 2})
+
+    def turn(o, a, b):   # z of the cross product (a - o) x (b - o)
+        return (a[0] - o[0]) * (b[1] - o[1]) - (a[1] - o[1]) * (b[0] - o[0])
+
+    def chain(points):
+        out = []
+        for p in points:
+            while len(out) >= 2 and turn(out[-2], out[-1], p) <= 0:
+                out.pop()
+            out.append(p)
+        return np.array(out)
+
+    lower = chain(pts)
+    upper = chain(pts[::-1])[::-1]
+    xs = np.unique(np.concatenate([lower[:, 0], upper[:, 0]]))
+    lo = np.interp(xs, lower[:, 0], lower[:, 1])
+    hi = np.interp(xs, upper[:, 0], upper[:, 1])
+    return pd.DataFrame({"x": xs, "lo": np.minimum(lo, hi), "hi": np.maximum(lo, hi)})
+
+
+def chart_frames(states: pd.DataFrame, cand: pd.DataFrame, y: str, system: str,
+                 picked: str | None = None) -> dict:
+    """Frames for :func:`strength_elongation_chart`: ``regions`` (hull band of each
+    candidate's states, every corner and main-parameter value), ``paths`` (nominal
+    corner along the main parameter, with text labels of the parameter value) and
+    ``points`` (each candidate's chosen state).  ``y`` is ``yield_mpa`` or ``uts_mpa``."""
+    regions, paths = [], []
+    for _, c in cand.iterrows():
+        s = states[states["variant"] == c["variant"]]
+        band = hull_band(s["elongation_pct"], s[y])
+        if len(band):
+            band = band.assign(label=c["label"], id=c["id"], focus=c["id"] == picked)
+            regions.append(band)
+        nom = s[s["corner"] == "nominal"].dropna(subset=["elongation_pct", y])
+        nom = nom.sort_values("main_value") if nom["main_value"].notna().any() else nom
+        if len(nom):
+            param = c.get("window_parameter") or ""
+            q = quantity_of(param) if param else None
+            mv = nom["main_value"].to_numpy(float)
+            shown = to_display(mv, q, system) if q else mv
+            u = param_unit(param, system)
+            n = len(nom)
+            focus = c["id"] == picked
+            step = max(1, int(math.ceil(n / 14)))     # at most about 14 labels on the focus path
+            keep = np.zeros(n, bool)
+            if focus:
+                keep[::step] = True
+                keep[-1] = True
+            text = [_param_text(v, q, u) if (k and v == v) else "" for v, k in zip(np.atleast_1d(shown), keep)]
+            paths.append(pd.DataFrame({"x": nom["elongation_pct"].to_numpy(float),
+                                       "y": nom[y].to_numpy(float), "order": np.arange(n),
+                                       "text": text, "param": np.atleast_1d(shown),
+                                       "label": c["label"], "id": c["id"], "focus": focus}))
+    reg = pd.concat(regions, ignore_index=True) if regions else pd.DataFrame(columns=["x", "lo", "hi", "label", "id", "focus"])
+    pth = pd.concat(paths, ignore_index=True) if paths else pd.DataFrame(
+        columns=["x", "y", "order", "text", "param", "label", "id", "focus"])
+    pts = pd.DataFrame({"x": cand["elongation_pct"].to_numpy(float), "y": cand[y].to_numpy(float),
+                        "label": cand["label"], "id": cand["id"], "grade": cand["grade"],
+                        "route": cand["route_text"], "window": cand.get("window", ""),
+                        "set": np.where(cand["pareto"].astype(bool), "Pareto set", "meets targets"),
+                        "cost": cand["relative_cost"].to_numpy(float)})
+    for frame in (reg, pth, pts):
+        for col in ("y", "lo", "hi"):
+            if col in frame:
+                frame[col] = to_display(frame[col].to_numpy(float), "stress", system)
+    return {"regions": reg, "paths": pth, "points": pts}
+
+
+def _param_text(v: float, q: str | None, u: str) -> str:
+    if q == "temperature":
+        return f"{v:.0f}°"
+    if q == "length":
+        return f"{v:.3g} {u}"
+    return f"{v:.3g} {u}".strip()
+
+
+def _domain(values, pad=0.06, floor=None):
+    v = np.asarray([x for x in values if x is not None and x == x], float)
+    if len(v) == 0:
+        return [0.0, 1.0]
+    lo, hi = float(v.min()), float(v.max())
+    span = (hi - lo) or max(abs(hi), 1.0) * 0.1
+    lo, hi = lo - pad * span, hi + pad * span
+    if floor is not None:
+        lo = max(lo, floor)
+    return [lo, hi]
+
+
+def strength_elongation_chart(frames: dict, targets: Mapping, y: str, system: str,
+                              picked: str | None = None, height: int = 500) -> alt.Chart:
+    """Strength (yield or tensile) against elongation: each candidate's reachable
+    region (hull over corners and main-parameter values), its process path with the
+    parameter values, the target region, and the chosen points (Pareto set filled)."""
+    reg, pth, pts = frames["regions"], frames["paths"], frames["points"]
+    su = unit("stress", system)
+    ytitle = ("Yield strength" if y == "yield_mpa" else "Tensile strength") + f" ({su})"
+    tmin = targets.get("min_" + y.replace("_mpa", "") + "_mpa")
+    tmax = targets.get("max_" + y.replace("_mpa", "") + "_mpa")
+    emin = targets.get("min_elongation_pct")
+    ys = list(reg.get("lo", [])) + list(reg.get("hi", [])) + list(pts["y"])
+    xs = list(reg.get("x", [])) + list(pts["x"])
+    ys += [to_display(v, "stress", system) for v in (tmin, tmax) if v is not None]
+    xs += [emin] if emin is not None else []
+    xdom, ydom = _domain(xs, floor=0.0), _domain(ys, floor=0.0)
+    labels = list(dict.fromkeys(list(pts["label"])))
+    colour = alt.Color("label:N", title="candidate", scale=alt.Scale(domain=labels, range=PALETTE[:len(labels)]
+                                                                     if len(labels) <= len(PALETTE) else None),
+                       legend=alt.Legend(orient="right", symbolType="square", labelLimit=260, labelFontSize=11,
+                                         symbolLimit=0))
+    x = alt.X("x:Q", title="Elongation (%)", scale=alt.Scale(domain=xdom, nice=False))
+    yy = alt.Y("y:Q", title=ytitle, scale=alt.Scale(domain=ydom, nice=False))
+
+    box = pd.DataFrame({"x": [emin if emin is not None else xdom[0]], "x2": [xdom[1]],
+                        "y": [to_display(tmin, "stress", system) if tmin is not None else ydom[0]],
+                        "y2": [to_display(tmax, "stress", system) if tmax is not None else ydom[1]]})
+    target = alt.Chart(box).mark_rect(fill=TARGET_FILL, opacity=0.55, stroke=TARGET_STROKE,
+                                      strokeDash=[6, 3], strokeWidth=1.2).encode(
+        x=alt.X("x:Q", scale=alt.Scale(domain=xdom, nice=False)), x2="x2:Q",
+        y=alt.Y("y:Q", scale=alt.Scale(domain=ydom, nice=False)), y2="y2:Q")
+    target_txt = alt.Chart(box).mark_text(align="right", baseline="bottom", dx=-6, dy=-4, color=TARGET_STROKE,
+                                          fontStyle="italic").encode(
+        x="x2:Q", y="y2:Q", text=alt.value("target region"))
+    layers = [target, target_txt]
+    if len(reg):
+        layers.append(alt.Chart(reg).mark_area(line={"strokeWidth": 0.6}).encode(
+            opacity=alt.condition("datum.focus", alt.value(0.32), alt.value(0.06)),
+            x=alt.X("x:Q", scale=alt.Scale(domain=xdom, nice=False)), y=alt.Y("lo:Q", title=ytitle,
+                                                                              scale=alt.Scale(domain=ydom,
+                                                                                              nice=False)),
+            y2="hi:Q", color=colour, detail="label:N",
+            tooltip=[alt.Tooltip("label:N", title="candidate")]))
+    if len(pth):
+        layers.append(alt.Chart(pth).mark_line(point=alt.OverlayMarkDef(size=14, filled=True))
+                      .encode(x=x, y=yy, order="order:Q", color=colour, detail="label:N",
+                              strokeWidth=alt.condition("datum.focus", alt.value(2.6), alt.value(0.9)),
+                              opacity=alt.condition("datum.focus", alt.value(1.0), alt.value(0.45)),
+                              tooltip=[alt.Tooltip("label:N", title="candidate"),
+                                       alt.Tooltip("param:Q", title="process value", format=".4g"),
+                                       alt.Tooltip("x:Q", title="elongation %", format=".1f"),
+                                       alt.Tooltip("y:Q", title=su, format=".4g")]))
+        layers.append(alt.Chart(pth[pth["text"] != ""]).mark_text(dx=8, dy=-6, fontSize=11, align="left",
+                                                                  fontWeight="bold")
+                      .encode(x=x, y=yy, text="text:N", color=colour))
+    shape = alt.Shape("set:N", title="", scale=alt.Scale(domain=["Pareto set", "meets targets"],
+                                                        range=["diamond", "triangle-down"]))
+    layers.append(alt.Chart(pts).mark_point(size=150, filled=True, stroke="#222222", strokeWidth=1.0)
+                  .encode(x=x, y=yy, shape=shape, color=colour,
+                          fillOpacity=alt.condition("datum.set == 'Pareto set'", alt.value(1.0), alt.value(0.25)),
+                          tooltip=[alt.Tooltip("label:N", title="candidate"), alt.Tooltip("route:N"),
+                                   alt.Tooltip("window:N"), alt.Tooltip("set:N", title="status"),
+                                   alt.Tooltip("x:Q", title="elongation %", format=".1f"),
+                                   alt.Tooltip("y:Q", title=su, format=".4g"),
+                                   alt.Tooltip("cost:Q", title="relative cost/kg", format=".2f")]))
+    layers.append(alt.Chart(pts).mark_text(dx=0, dy=-13, fontWeight="bold", fontSize=11)
+                  .encode(x=x, y=yy, text="id:N", color=colour))
+    if picked is not None and (pts["id"] == picked).any():
+        layers.append(alt.Chart(pts[pts["id"] == picked]).mark_point(size=600, shape="circle", filled=False,
+                                                                     strokeWidth=2.2, color="#111111")
+                      .encode(x=x, y=yy))
+    return alt.layer(*layers).properties(height=height).resolve_scale(color="shared")
+
+
+def profile_frame(profiles: Mapping[str, list], system: str) -> pd.DataFrame:
+    """Long frame of hardness profiles: ``label -> evaluate()["profile"]`` to columns
+    ``label, depth, r_over_R, hardness_hv, hardness_hrc`` (depth in display units)."""
+    rows = []
+    for label, prof in profiles.items():
+        for p in prof or []:
+            rows.append({"label": label, "depth": to_display(p["depth_mm"], "length", system),
+                         "r_over_R": p["r_over_R"], "hardness_hv": p["hardness_hv"],
+                         "hardness_hrc": p.get("hardness_hrc")})
+    return pd.DataFrame(rows, columns=["label", "depth", "r_over_R", "hardness_hv", "hardness_hrc"])
+
+
+def profile_chart(frame: pd.DataFrame, system: str, labels: Sequence[str] | None = None,
+                  height: int = 320, title: str = "Hardness across the section",
+                  colours: Sequence[str] | None = None) -> alt.Chart:
+    """Hardness (HV) against depth from the surface; one line per label on shared
+    axes (colours: by candidate id unless given)."""
+    labels = list(labels or dict.fromkeys(frame["label"]))
+    colour = alt.Color("label:N", title="candidate",
+                       scale=alt.Scale(domain=labels, range=list(colours or _colours_for(labels))),
+                       legend=alt.Legend(orient="top", labelLimit=300, direction="horizontal", title=None))
+    lu = unit("length", system)
+    return alt.Chart(frame).mark_line(point=alt.OverlayMarkDef(size=22), strokeWidth=2).encode(
+        x=alt.X("depth:Q", title=f"Depth below the surface ({lu}); centre at the right"),
+        y=alt.Y("hardness_hv:Q", title="Hardness (HV)", scale=alt.Scale(zero=False)),
+        color=colour,
+        tooltip=[alt.Tooltip("label:N", title="candidate"), alt.Tooltip("depth:Q", format=".3g", title=lu),
+                 alt.Tooltip("r_over_R:Q", format=".2f", title="r/R"),
+                 alt.Tooltip("hardness_hv:Q", format=".0f", title="HV"),
+                 alt.Tooltip("hardness_hrc:Q", format=".1f", title="HRC")],
+    ).properties(height=height, title=title)
+
+
+def _colours_for(labels: Sequence[str]) -> list:
+    """Palette colours by candidate id (``C3 …`` -> the third colour), so a candidate
+    keeps its colour in every chart."""
+    out = []
+    for lab in labels:
+        try:
+            i = int(str(lab).split()[0][1:]) - 1
+        except ValueError:
+            i = len(out)
+        out.append(PALETTE[i % len(PALETTE)])
+    return out
+
+
+def parameter_frame(states: pd.DataFrame, variant: str, system: str) -> pd.DataFrame:
+    """Properties of one variant along its main parameter, per corner, long form:
+    ``param, corner, quantity, value`` (strengths in display units)."""
+    s = states[states["variant"] == variant].dropna(subset=["main_value"])
+    rows = []
+    for q, col in (("yield", "yield_mpa"), ("tensile", "uts_mpa"), ("elongation", "elongation_pct")):
+        if col not in s:
+            continue
+        v = s[col].to_numpy(float)
+        if col.endswith("_mpa"):
+            v = to_display(v, "stress", system)
+        rows.append(pd.DataFrame({"main_value": s["main_value"].to_numpy(float), "corner": s["corner"].to_numpy(),
+                                  "quantity": q, "value": v}))
+    return pd.concat(rows, ignore_index=True) if rows else pd.DataFrame(
+        columns=["main_value", "corner", "quantity", "value"])
+
+
+def parameter_charts(frame: pd.DataFrame, param: str, window: tuple, robust_window: tuple,
+                     targets: Mapping, system: str, chosen: float | None = None) -> list:
+    """Two charts on the same x axis (strength, then elongation) against the main
+    process parameter: the nominal
+    composition as a line, the lean–rich spread as a band, the window that meets the
+    targets shaded (darker where it holds at every composition corner), the targets
+    as rules and the chosen value as a vertical mark."""
+    q = quantity_of(param)
+    f = frame.copy()
+    if q:
+        f["main_value"] = to_display(f["main_value"].to_numpy(float), q, system)
+
+    def conv(v):
+        return to_display(v, q, system) if (q and v is not None and v == v) else v
+    pu = param_unit(param, system)
+    xt = f"{param_label(param).capitalize()} ({pu})" if pu else param_label(param).capitalize()
+    xdom = _domain(f["main_value"], pad=0.02)
+    x = alt.X("main_value:Q", title=xt, scale=alt.Scale(domain=xdom, nice=False))
+    spread = f.pivot_table(index=["main_value", "quantity"], values="value", aggfunc=["min", "max"]).reset_index()
+    spread.columns = ["main_value", "quantity", "lo", "hi"]
+    nominal = f[f["corner"] == "nominal"]
+    su = unit("stress", system)
+    panels = []
+    for qty, title, tkeys, qcol in ((("yield", "tensile"), f"Strength ({su})",
+                                     ("min_yield_mpa", "max_yield_mpa", "min_uts_mpa", "max_uts_mpa"), "stress"),
+                                    (("elongation",), "Elongation (%)", ("min_elongation_pct",), None)):
+        sp = spread[spread["quantity"].isin(qty)]
+        nm = nominal[nominal["quantity"].isin(qty)]
+        layers = []
+        if window and window[0] == window[0] and window[0] is not None:
+            layers.append(alt.Chart(pd.DataFrame({"a": [conv(window[0])], "b": [conv(window[1])]}))
+                          .mark_rect(color="#cfe3d6", opacity=0.7).encode(
+                x=alt.X("a:Q", scale=alt.Scale(domain=xdom, nice=False)), x2="b:Q"))
+        if robust_window and robust_window[0] == robust_window[0] and robust_window[0] is not None:
+            layers.append(alt.Chart(pd.DataFrame({"a": [conv(robust_window[0])], "b": [conv(robust_window[1])]}))
+                          .mark_rect(color="#8fbf9f", opacity=0.6).encode(
+                x=alt.X("a:Q", scale=alt.Scale(domain=xdom, nice=False)), x2="b:Q"))
+        qrange = {"yield": "#1b6f8a", "tensile": "#c2571a", "elongation": "#5b8c2a"}
+        qcolour = alt.Color("quantity:N", title=None,
+                            scale=alt.Scale(domain=list(qty), range=[qrange[k] for k in qty]),
+                            legend=alt.Legend(orient="top", direction="horizontal"))
+        ytitle = title
+        layers.append(alt.Chart(sp).mark_area(opacity=0.22).encode(
+            x=x, y=alt.Y("lo:Q", title=ytitle, scale=alt.Scale(zero=False)), y2="hi:Q", color=qcolour))
+        layers.append(alt.Chart(nm).mark_line(strokeWidth=2, point=alt.OverlayMarkDef(size=16)).encode(
+            x=x, y=alt.Y("value:Q", title=ytitle, scale=alt.Scale(zero=False)), color=qcolour,
+            tooltip=[alt.Tooltip("main_value:Q", title=xt, format=".4g"), alt.Tooltip("quantity:N"),
+                     alt.Tooltip("value:Q", format=".4g")]))
+        rules = []
+        for k in tkeys:
+            v = targets.get(k)
+            if v is not None:
+                rules.append({"v": to_display(v, qcol, system) if qcol else v,
+                              "t": k.replace("_mpa", "").replace("_pct", "").replace("_", " ")})
+        if rules:
+            rf = pd.DataFrame(rules)
+            layers.append(alt.Chart(rf).mark_rule(color=TARGET_STROKE, strokeDash=[5, 3]).encode(y="v:Q"))
+            layers.append(alt.Chart(rf).mark_text(align="left", dx=4, dy=-5, color=TARGET_STROKE, fontSize=10)
+                          .encode(y="v:Q", x=alt.value(2), text="t:N"))
+        if chosen is not None and chosen == chosen:
+            layers.append(alt.Chart(pd.DataFrame({"c": [conv(chosen)]})).mark_rule(color="#111111", strokeWidth=1.5)
+                          .encode(x=alt.X("c:Q", scale=alt.Scale(domain=xdom, nice=False))))
+        panels.append(alt.layer(*layers).properties(height=210 if qcol else 170))
+    return panels
+
+
+def comparison_frame(cand: pd.DataFrame, ids: Sequence[str], system: str) -> pd.DataFrame:
+    """Properties of the chosen candidates in long form for the shared-axis bars:
+    ``label, group, quantity, value`` (strengths in display units)."""
+    sub = cand[cand["id"].isin(list(ids))]
+    rows = []
+    su = unit("stress", system)
+    for _, r in sub.iterrows():
+        for col, qty, group in (("yield_mpa", "yield", f"strength ({su})"), ("uts_mpa", "tensile", f"strength ({su})"),
+                                ("elongation_pct", "elongation", "elongation (%)"),
+                                ("hardness_hrc", "hardness", "hardness (HRC)"),
+                                ("surface_hardness_hrc", "surface hardness", "hardness (HRC)"),
+                                ("relative_cost", "per kg", "relative cost"),
+                                ("part_cost", "per part", "relative cost")):
+            v = r.get(col)
+            if v is None or v != v:
+                continue
+            v = float(v)
+            if col.endswith("_mpa"):
+                v = float(to_display(v, "stress", system))
+            rows.append({"label": r["label"], "id": r["id"], "group": group, "quantity": qty, "value": v})
+    return pd.DataFrame(rows, columns=["label", "id", "group", "quantity", "value"])
+
+
+#: colours of the compared candidates, by their place in the comparison
+COMPARE_COLOURS = ["#1b6f8a", "#c2571a", "#5b8c2a"]
+
+
+def comparison_bars(frame: pd.DataFrame, group: str, labels: Sequence[str], height: int = 240,
+                    legend: bool = False) -> alt.Chart:
+    """Grouped bars of one property group (e.g. strength) for the compared
+    candidates, on one shared value axis."""
+    f = frame[frame["group"] == group]
+    labels = list(labels)
+    return alt.Chart(f).mark_bar(cornerRadiusTopLeft=2, cornerRadiusTopRight=2).encode(
+        x=alt.X("quantity:N", title=None, axis=alt.Axis(labelAngle=0)),
+        xOffset=alt.XOffset("label:N", sort=labels),
+        y=alt.Y("value:Q", title=group),
+        color=alt.Color("label:N", title="candidate", sort=labels,
+                        scale=alt.Scale(domain=labels, range=COMPARE_COLOURS[:len(labels)]),
+                        legend=alt.Legend(orient="top", labelLimit=300, direction="horizontal", title=None)
+                        if legend else None),
+        tooltip=[alt.Tooltip("label:N", title="candidate"), "quantity:N", alt.Tooltip("value:Q", format=".4g")],
+    ).properties(height=height)
+
+
+
+def sweep_chart(sw: pd.DataFrame, system: str, height: int = 340) -> alt.LayerChart:
+    """Relative part cost of the cheapest robust pick (left axis) and the minimum
+    yield target (right axis) against the pin diameter; each diameter where the pick
+    changes grade or route is marked (◆, a dashed rule and the new pick's label),
+    and the first pick is labelled.  Diameters with no robust candidate are marked
+    ✕ at the foot of the chart."""
+    lu, su = unit("length", system), unit("stress", system)
+    f = pd.DataFrame({"d": to_display(sw["diameter_mm"].to_numpy(float), "length", system),
+                      "cost": sw["part_cost"].to_numpy(float),
+                      "target": to_display(sw["min_yield_mpa"].to_numpy(float), "stress", system),
+                      "pick": [pick_label(g, r) for g, r in zip(sw["grade"], sw["route_family"])],
+                      "route": sw["route_text"].astype(str), "changed": sw["changed"].to_numpy(bool)})
+    f["starts"] = f["changed"] | (np.arange(len(f)) == 0)
+    series = alt.Scale(domain=["part cost", "min yield target"], range=[PALETTE[0], TARGET_STROKE])
+    colour = alt.Color("series:N", title=None, scale=series, legend=alt.Legend(orient="top", direction="horizontal"))
+    x = alt.X("d:Q", title=f"Pin diameter ({lu})", scale=alt.Scale(domain=_domain(f["d"], pad=0.04), nice=False))
+    have = f[f["cost"].notna()].assign(series="part cost")
+    ycost = alt.Y("cost:Q", title="Relative part cost (cheapest robust pick)", scale=alt.Scale(zero=False))
+    tips = [alt.Tooltip("d:Q", title=lu, format=".4g"), alt.Tooltip("pick:N"), alt.Tooltip("route:N"),
+            alt.Tooltip("cost:Q", title="part cost", format=".3f"),
+            alt.Tooltip("target:Q", title=f"min yield ({su})", format=".4g")]
+    cost = alt.Chart(have).mark_line(strokeWidth=2.4, point=alt.OverlayMarkDef(size=40, filled=True)).encode(
+        x=x, y=ycost, color=colour, tooltip=tips)
+    starts = have[have["starts"]]
+    marks = alt.Chart(starts[starts["changed"]]).mark_point(shape="diamond", size=260, filled=True,
+                                                          stroke="#111111", strokeWidth=1.2).encode(
+        x=x, y=ycost, color=colour, tooltip=tips)
+    # labels alternate above and below the line, so that picks at close diameters do not overlap
+    starts = starts.assign(above=np.arange(len(starts)) % 2 == 0)
+    labels = [alt.Chart(starts[starts["above"] == up]).mark_text(
+        align="left", dx=8, dy=-14 if up else 16, fontWeight="bold", fontSize=11, color="#222222").encode(
+        x=x, y=ycost, text="pick:N") for up in (True, False)]
+    rules = alt.Chart(f[f["changed"]]).mark_rule(strokeDash=[4, 3], color="#555555").encode(x=x)
+    none = alt.Chart(f[f["cost"].isna()]).mark_point(shape="cross", size=120, color="#a8323e", filled=True).encode(
+        x=x, y=alt.value(height - 8), tooltip=[alt.Tooltip("d:Q", title=lu, format=".4g"), alt.Tooltip("pick:N")])
+    target = alt.Chart(f.assign(series="min yield target")).mark_line(strokeDash=[6, 3], strokeWidth=1.6,
+                                                                      point=alt.OverlayMarkDef(size=18)).encode(
+        x=x, y=alt.Y("target:Q", title=f"Min yield target ({su})", scale=alt.Scale(zero=False),
+                     axis=alt.Axis(orient="right")),
+        color=colour, tooltip=tips)
+    left = alt.layer(rules, cost, marks, *labels, none)
+    return alt.layer(left, target).resolve_scale(y="independent").properties(
+        height=height, title="Cheapest robust pick per diameter (◆ where the grade or route changes)")
+
+
+def frontier_chart(frontier: pd.DataFrame, axes: Sequence[str], targets: Mapping, system: str,
+                   height: int = 340):
+    """The trade-off between the two most binding targets: the non-dominated states
+    (:func:`~selector.selection.engine.miss_analysis`) as a step line with points, and the
+    two target limits as dashed rules.  None when there is no frontier."""
+    if frontier is None or len(frontier) == 0 or len(axes) != 2:
+        return None
+    (cx, _), (cy, _) = NUMERIC_TARGETS[axes[0]], NUMERIC_TARGETS[axes[1]]
+    qx, qy = quantity_of(cx), quantity_of(cy)
+
+    def conv(v, q):
+        return to_display(np.asarray(v, float), q, system) if q else np.asarray(v, float)
+    nx, ny = display_name(cx, system), display_name(cy, system)
+    pm = frontier["p_meet"].to_numpy(float) if "p_meet" in frontier else np.full(len(frontier), np.nan)
+    df = pd.DataFrame({"x": conv(frontier[cx], qx), "y": conv(frontier[cy], qy),
+                       "grade": frontier["grade"].to_numpy(),
+                       "route": [route_line(r, system, t) for r, t in zip(frontier["route"], frontier["route_text"])],
+                       "p_meet": [percent(p) for p in pm]})
+    enc_x = alt.X("x:Q", title=nx, scale=alt.Scale(zero=False))
+    enc_y = alt.Y("y:Q", title=ny, scale=alt.Scale(zero=False))
+    tips = [alt.Tooltip("grade:N"), alt.Tooltip("route:N"), alt.Tooltip("x:Q", title=nx, format=".4g"),
+            alt.Tooltip("y:Q", title=ny, format=".4g"), alt.Tooltip("p_meet:N", title="p_meet")]
+    line = alt.Chart(df).mark_line(interpolate="step-after", strokeWidth=1.5).encode(x=enc_x, y=enc_y)
+    pts = alt.Chart(df).mark_point(filled=True, size=30).encode(x=enc_x, y=enc_y, tooltip=tips)
+    layers = [line, pts]
+    lx, ly = targets.get(axes[0]), targets.get(axes[1])
+    if lx is not None:
+        layers.append(alt.Chart(pd.DataFrame({"x": [float(conv(lx, qx))]}))
+                      .mark_rule(strokeDash=[6, 3], color="firebrick").encode(x="x:Q"))
+    if ly is not None:
+        layers.append(alt.Chart(pd.DataFrame({"y": [float(conv(ly, qy))]}))
+                      .mark_rule(strokeDash=[6, 3], color="firebrick").encode(y="y:Q"))
+    return alt.layer(*layers).properties(
+        height=height, title=f"What can be reached: {ny} against {nx} with the other targets met "
+                             "(dashed: the targets)")
+
+
+def fatigue_depth_frame(ev: Mapping, system: str) -> pd.DataFrame:
+    """Long frame of ``evaluate()["fatigue"]["through_depth"]`` for the chart: columns
+    ``depth, curve, stress`` (``curve``: local fatigue strength, or the applied stress
+    scaled so that it touches the strength at the governing depth)."""
+    td = (ev.get("fatigue") or {}).get("through_depth")
+    if not td:
+        return pd.DataFrame(columns=["depth", "curve", "stress"])
+    depth = to_display(np.asarray(td["depth_mm"], float), "length", system)
+    strength = to_display(np.asarray(td["strength_mpa"], float), "stress", system)
+    applied = to_display(np.asarray(td["stress_per_surface"], float) * td["allowable_surface_mpa"], "stress", system)
+    return pd.concat([pd.DataFrame({"depth": depth, "curve": "local fatigue strength", "stress": strength}),
+                      pd.DataFrame({"depth": depth, "curve": "applied stress at the allowable surface stress",
+                                    "stress": applied})], ignore_index=True)
+
+
+def fatigue_depth_chart(frame: pd.DataFrame, system: str, height: int = 300) -> alt.Chart:
+    """Local fatigue strength and the applied (bending) stress against depth; they touch
+    at the governing depth."""
+    su, lu = unit("stress", system), unit("length", system)
+    return alt.Chart(frame).mark_line(point=alt.OverlayMarkDef(size=18), strokeWidth=2).encode(
+        x=alt.X("depth:Q", title=f"Depth below the surface ({lu})"),
+        y=alt.Y("stress:Q", title=f"Stress amplitude ({su})"),
+        color=alt.Color("curve:N", title=None, legend=alt.Legend(orient="top", labelLimit=400)),
+        tooltip=[alt.Tooltip("curve:N"), alt.Tooltip("depth:Q", format=".3g", title=lu),
+                 alt.Tooltip("stress:Q", format=".4g", title=su)],
+    ).properties(height=height, title="Fatigue strength against the applied stress through the section")
+
+
+def transformation_frame(ev: Mapping, system: str) -> pd.DataFrame:
+    """Long frame for the time–temperature chart of a bath route (austemper, martemper) of
+    one ``evaluate()`` result: the transformation start and finish curves of its
+    composition (Li et al. 1998) and the surface and centre cooling paths into the bath.
+    Columns ``time_s, temp, curve, kind`` (temp in display units; kind ``reaction`` or
+    ``path``).  Empty for other routes."""
+
+    if ev.get("route_family") not in ("austemper", "martemper") or not ev.get("diameter_mm"):
+        return pd.DataFrame(columns=["time_s", "temp", "curve", "kind"])
+    g = default_catalogue().lookup(ev["grade"])
+    comp = ev.get("heat_composition") or g.composition(ev.get("composition", "nominal")
+                                                       if ev.get("composition") != "heat" else "nominal")
+    p = ev["params"]
+    tc = bath.transformation_curves(comp)
+    rows = []
+    for r in ("ferrite", "pearlite", "bainite"):
+        for key in ("start", "finish"):
+            t = tc[f"{r}_{key}_s"]
+            ok = np.isfinite(t)
+            rows.append(pd.DataFrame({"time_s": t[ok], "temp": to_display(tc["temp_c"][ok], "temperature", system),
+                                      "curve": f"{r} {key}", "kind": "reaction"}))
+    path = bath.cooling_path(comp, p["austenitize_c"], p["bath_c"], ev["diameter_mm"], p.get("hold_hours"))
+    for where in ("surface", "centre"):
+        rows.append(pd.DataFrame({"time_s": path["time_s"], "temp": to_display(path[f"{where}_c"], "temperature",
+                                                                               system),
+                                  "curve": f"{where} cooling path", "kind": "path"}))
+    return pd.concat(rows, ignore_index=True)
+
+
+def transformation_chart(frame: pd.DataFrame, system: str, height: int = 320) -> alt.Chart:
+    """Transformation start/finish curves (solid) and the cooling paths (dashed) on a
+    logarithmic time axis."""
+    tu = unit("temperature", system)
+    return alt.Chart(frame).mark_line(strokeWidth=2).encode(
+        x=alt.X("time_s:Q", title="Time (s, log scale)", scale=alt.Scale(type="log")),
+        y=alt.Y("temp:Q", title=f"Temperature ({tu})"),
+        color=alt.Color("curve:N", title=None, legend=alt.Legend(orient="top", labelLimit=300)),
+        strokeDash=alt.StrokeDash("kind:N", title=None, legend=None),
+        tooltip=[alt.Tooltip("curve:N"), alt.Tooltip("time_s:Q", format=".3g", title="s"),
+                 alt.Tooltip("temp:Q", format=".0f", title=tu)],
+    ).properties(height=height, title="Transformation start and finish (Li et al. 1998) with the cooling path")
+
