@@ -14,6 +14,7 @@ import selector
 from selector.catalogue.grades import FAMILIES
 from selector.design.sweep import changes
 from selector.errors import SelectorError
+from selector.selection.cost_split import split_cost
 from selector.selection.targets import validate_targets
 from selector.views import page as pg
 
@@ -21,43 +22,42 @@ st.set_page_config(page_title="selector · grade and route finder", page_icon="�
 
 
 # ----------------------------------------------------------------------------- state defaults
+def _set_inputs(values: dict) -> None:
+    for k, v in values.items():
+        st.session_state[k] = v
+
+
 def _defaults():
-    d = pg.DEMO
+    """First run: the example is loaded (labelled as such); "New part" clears it."""
     ss = st.session_state
     if "_init" in ss:
         return
     ss["_init"] = True
     ss["units"] = pg.SI
     ss["_units_prev"] = pg.SI
-    ss["shape"] = "round bar" if d["shape"] == "round" else "plate"
-    ss["diameter"] = d["diameter_mm"]
-    ss["thickness"] = d["thickness_mm"]
-    ss["length"] = d["length_mm"]
-    for key, (wkey, _, _) in pg.TARGET_FIELDS.items():
-        ss[wkey] = d["targets"].get(key)
-    ss["families"] = list(FAMILIES)
-    ss["robust_only"] = bool(d.get("robust_only"))
-    sv = d.get("service", {})
-    ss["plated"] = bool(sv.get("plated", False))
-    ss["plating"] = sv.get("plating", "")
-    ss["mating"] = sv.get("mating_material", "")
-    ss["environment"] = sv.get("environment", "normal")
-    ss["service_temp"] = sv.get("service_temp_c")
-    pin = d.get("pin") or {}
-    ss["pin_load"] = pin.get("load_kn")
-    ss["pin_diameter"] = pin.get("diameter_mm")
-    ss["pin_planes"] = int(pin.get("shear_planes", 2))
-    ss["pin_model"] = "uniform"
-    ss["pin_lug"] = pin.get("lug_thickness_mm")
-    ss["pin_clevis"] = pin.get("clevis_thickness_mm")
-    ss["pin_gap"] = pin.get("gap_mm", 0.0)
-    ss["pin_sf"] = pin.get("safety_factor", 2.0)
-    ss["pin_wear_hrc"] = pin.get("wear_surface_hardness_hrc")
-    sweep_d = pin.get("sweep_diameters_mm") or [20.0, 25.0, 30.0]
-    ss["sweep_mode"] = pg.SWEEP_MODES[0]
-    ss["sweep_list"] = pg.format_lengths(sweep_d, pg.SI)
-    ss["sweep_from"], ss["sweep_to"] = min(sweep_d), max(sweep_d)
-    ss["sweep_step"] = 2.0
+    _set_inputs(pg.example_inputs(pg.SI))
+    ss["_scenario"] = "example"
+    ss["_upload_gen"] = 0
+    ss["hardness_scale"] = "HRC"
+
+
+def _new_part():
+    """Everything back to blank: no section, no targets, no service conditions, no pin,
+    catalogue prices (a loaded price file is dropped), every family, no filter."""
+    ss = st.session_state
+    _set_inputs(pg.blank_inputs(ss["units"]))
+    for k in ("_prices_ok", "_prices_name", "_sweep", "_parts", "_prefill_compare"):
+        ss.pop(k, None)
+    ss["_upload_gen"] = ss.get("_upload_gen", 0) + 1
+    ss["_scenario"] = "new"
+
+
+def _load_example():
+    ss = st.session_state
+    _set_inputs(pg.example_inputs(ss["units"]))
+    for k in ("_sweep", "_prefill_compare"):
+        ss.pop(k, None)
+    ss["_scenario"] = "example"
 
 
 def _units_changed():
@@ -80,6 +80,7 @@ def _apply_pin():
     for k, v in pg.inputs_from_pin(rep, case, system).items():
         ss[k] = v
     ss["_pin_applied"] = True
+    ss["_prefill_compare"] = True      # side by side: first through-hardened and first case-hardened
 
 
 _defaults()
@@ -95,10 +96,19 @@ def notice(where: str):
 
 # ----------------------------------------------------------------------------- inputs (sidebar)
 with st.sidebar:
+    b1, b2 = st.columns(2)
+    b1.button("New part", key="new_part", on_click=_new_part, width="stretch",
+              help="Clear everything: section, targets, service conditions, pin, filters and price sheet.")
+    b2.button("Load the example", key="load_example", on_click=_load_example, width="stretch",
+              help="The invented demo part of docs/demo.md, with its targets and service conditions.")
     st.markdown("### Part")
     st.radio("Units", pg.UNIT_SYSTEMS, key="units", horizontal=True, on_change=_units_changed,
              help="SI: MPa, mm, °C.  US customary: ksi, in, °F.  The library computes in SI.")
+    st.radio("Hardness scale", pg.HARDNESS_SCALES, key="hardness_scale", horizontal=True,
+             help="One scale in every view: Rockwell C (ASTM E18) or Vickers (ASTM E92); converted on the "
+                  "steel table of ASTM E140 by the library.")
     system = ss["units"]
+    hs = ss.get("hardness_scale", "HRC")
     su, lu = pg.unit("stress", system), pg.unit("length", system)
     lfmt = "%.3f" if system == pg.US else "%.1f"
     sfmt = "%.1f" if system == pg.US else "%.0f"
@@ -120,7 +130,8 @@ with st.sidebar:
     c2.number_input(f"Max tensile ({su})", key="max_uts", value=None, format=sfmt)
     c1.number_input("Min elongation (%)", key="min_elong", value=None, format="%.1f")
     c2.number_input("Max rel. cost / kg", key="max_cost", value=None, format="%.2f")
-    with st.expander("Hardness and case"):
+    with st.expander("Hardness and case", expanded=any(
+            ss.get(k) is not None for k in ("min_hrc", "max_hrc", "min_surface_hrc", "min_case_depth"))):
         h1, h2 = st.columns(2)
         h1.number_input("Min hardness (HRC)", key="min_hrc", value=None, format="%.1f")
         h2.number_input("Max hardness (HRC)", key="max_hrc", value=None, format="%.1f")
@@ -133,7 +144,7 @@ with st.sidebar:
     st.checkbox("Corrosion-resistant grades only", key="corrosion")
     st.checkbox("Only candidates that meet the targets with the required probability", key="robust_only")
     st.number_input("Required probability of meeting the targets (%)", min_value=1.0, max_value=100.0,
-                    value=90.0, step=5.0, format="%.0f", key="min_p_pct",
+                    step=5.0, format="%.0f", key="min_p_pct",
                     help="Share of heats within the grade's specification, processed by the route, that meet "
                          "every target, counting the model's 90 % band (Monte Carlo, 200 draws: standard "
                          "error at most 3.5 points).")
@@ -142,7 +153,9 @@ with st.sidebar:
                    help="Cautions of severity 'avoid' put a route after every route without one; "
                         "allow a rule here when your process controls it.")
 
-    with st.expander("Service conditions (for the cautions)"):
+    with st.expander("Service conditions (for the cautions)", expanded=bool(
+            ss.get("plated") or ss.get("mating") or ss.get("service_temp") is not None
+            or ss.get("environment", "normal") != "normal")):
         st.checkbox("Electroplated", key="plated")
         st.text_input("Plating", key="plating", placeholder="zinc plated")
         st.text_input("Mating material", key="mating", placeholder="structural steel, brass, 6061 …")
@@ -151,8 +164,9 @@ with st.sidebar:
                         value=None, format="%.0f")
 
     st.markdown("### Prices")
-    upload = st.file_uploader("Price sheet (CSV: grade, relative_price[, source])", type=["csv"], key="price_file")
-    with st.expander("…or paste one"):
+    upload = st.file_uploader("Price sheet (CSV: grade, relative_price[, source])", type=["csv"],
+                              key=f"price_file_{ss.get('_upload_gen', 0)}")
+    with st.expander("…or paste one", expanded=bool(ss.get("price_text"))):
         st.text_area("Price sheet text", key="price_text", height=90,
                      placeholder="grade,relative_price\n4140,1.9\n1045,1.2")
 
@@ -163,7 +177,9 @@ with st.sidebar:
 
 # ----------------------------------------------------------------------------- header
 st.title("selector · grade and route finder")
-st.caption(pg.DEMO["title"])
+if ss.get("_scenario") == "example":
+    st.info(f"**Example loaded** (press *New part* in the sidebar to start from blank): {pg.demo_title(system)}.  "
+            "Its section, targets and service conditions are in the sidebar, its load case in the pin tab.")
 notice("top")
 
 # ----------------------------------------------------------------------------- validation
@@ -197,16 +213,21 @@ if svc_msg:
     errors.append(svc_msg)
 
 prices_file = upload.getvalue() if upload is not None else None
-prices, price_msg = pg.read_price_sheet(prices_file, getattr(upload, "name", "price sheet"))
+price_name = getattr(upload, "name", None) or "price sheet"
+prices, price_msg = pg.read_price_sheet(prices_file, price_name)
 if price_msg is None and prices is None:
-    prices, price_msg = pg.read_price_sheet(ss.get("price_text") or None, "pasted price sheet")
+    price_name = "pasted price sheet"
+    prices, price_msg = pg.read_price_sheet(ss.get("price_text") or None, price_name)
 if price_msg:
-    st.error(f"Price sheet not applied (nothing of it is used): {price_msg}")
+    # the sheet is rejected whole; the prices in use stay what they were, and the page says which
     prices = ss.get("_prices_ok")
+    price_name = ss.get("_prices_name") if prices else None
 elif prices is not None:
-    ss["_prices_ok"] = prices
+    ss["_prices_ok"], ss["_prices_name"] = prices, price_name
 else:
-    ss["_prices_ok"] = None
+    ss["_prices_ok"], ss["_prices_name"] = None, None
+    price_name = None
+prices_in_use = pg.prices_in_use(price_name, prices)
 price_items = tuple(sorted(prices.items())) if prices else ()
 
 prepared_ok = False
@@ -219,24 +240,40 @@ if not errors:
     except SelectorError as exc:
         errors.append(pg.explain(exc, system))
 
+if price_msg:
+    st.error(f"Price sheet rejected, nothing of it is used: {price_msg}")
+    st.warning(f"Prices in use: **{prices_in_use}**.  " + (
+        "That sheet was accepted before this one; clear the rejected sheet or load a corrected one."
+        if prices else "The catalogue's indicative prices apply."))
 for e in errors:
-    st.error(e)
+    # after "New part" the blank inputs are the next step, not a fault
+    (st.info if ss.get("_scenario") == "new" and ": blank;" in e else st.error)(e)
+st.markdown(pg.settings_line(diameter_mm=d_si, thickness_mm=t_si, length_mm=len_si, targets=targets,
+                             families=ss["families"], all_families=list(FAMILIES),
+                             corrosion_resistant=bool(ss.get("corrosion")), robust_only=bool(ss.get("robust_only")),
+                             min_p_meet=float(ss.get("min_p_pct") or 90.0) / 100.0, allow=ss.get("allow") or (),
+                             service=service, prices=prices_in_use, system=system))
 
 
 # ----------------------------------------------------------------------------- views
-def evaluation_metrics(cols, ev: dict, prefix: str = "") -> None:
-    """Yield, tensile, elongation and hardness of one ``evaluate()`` result in the first four
-    of ``cols`` (display units; "—" where the model gives none)."""
+def evaluation_metrics(ev: dict, prefix: str = "", extra: tuple | None = None) -> None:
+    """Yield, tensile, elongation and hardness of one ``evaluate()`` result, three a row
+    (display units, the page's hardness scale; "—" where the model gives none);
+    ``extra``: one more ``(label, value)`` metric."""
     def shown(key, fmt):
         return "—" if ev.get(key) is None else fmt(ev[key])
-    cols[0].metric(f"{prefix}{'yield' if prefix else 'Yield'} ({su})",
-                   shown("yield_mpa", lambda v: f"{pg.to_display(v, 'stress', system):.4g}"))
-    cols[1].metric(f"{prefix}{'tensile' if prefix else 'Tensile'} ({su})",
-                   shown("uts_mpa", lambda v: f"{pg.to_display(v, 'stress', system):.4g}"))
-    cols[2].metric(f"{prefix}{'elongation' if prefix else 'Elongation'} (%)",
-                   shown("elongation_pct", lambda v: f"{v:.3g}"))
-    cols[3].metric(f"{prefix}{'hardness' if prefix else 'Hardness'} (HRC)",
-                   shown("hardness_hrc", lambda v: f"{v:.3g}"))
+    items = [(f"{prefix}{'yield' if prefix else 'Yield'} ({su})",
+              shown("yield_mpa", lambda v: f"{pg.to_display(v, 'stress', system):.4g}")),
+             (f"{prefix}{'tensile' if prefix else 'Tensile'} ({su})",
+              shown("uts_mpa", lambda v: f"{pg.to_display(v, 'stress', system):.4g}")),
+             (f"{prefix}{'elongation' if prefix else 'Elongation'} (%)", shown("elongation_pct", lambda v: f"{v:.3g}")),
+             (f"{prefix}{'hardness' if prefix else 'Hardness'} ({hs})", pg.hardness_text(ev, "hardness", hs))]
+    if extra:
+        items.append(extra)
+    for i in range(0, len(items), 3):
+        cols = st.columns(3)
+        for c, (label, value) in zip(cols, items[i:i + 3]):
+            c.metric(label, value)
 
 
 def candidate_view(cand, states):
@@ -249,17 +286,24 @@ def candidate_view(cand, states):
     ev = pg.cached_evaluate(row["grade"], pg.route_json(row["route"]), d_si, t_si)
     g = selector.grade(row["grade"])
     st.subheader(f"{row['id']} · {g.name} · {pg.route_line(row['route'], system, row['route_text'])}")
-    m = st.columns(6)
+    # three metrics a row: labels and values stay whole at 1024 px
+    m = st.columns(3)
     m[0].metric(f"Yield ({su})", f"{pg.to_display(row['yield_mpa'], 'stress', system):.4g}")
     m[1].metric(f"Tensile ({su})", f"{pg.to_display(row['uts_mpa'], 'stress', system):.4g}")
     m[2].metric("Elongation (%)", f"{row['elongation_pct']:.3g}")
-    hrc = row["hardness_hrc"]
-    m[3].metric("Hardness (HRC)", "—" if hrc != hrc else f"{hrc:.3g}")
-    m[4].metric("Rel. cost / kg", f"{row['relative_cost']:.3g}")
-    m[5].metric("Meets the targets", pg.percent(row.get("p_meet")),
+    m = st.columns(3)
+    m[0].metric(f"Hardness ({hs})", pg.hardness_text(row, "hardness", hs))
+    m[1].metric("Surface and case", pg.case_text(row, system, hs))
+    m[2].metric("Meets the targets", pg.percent(row.get("p_meet")),
                 help="Probability that a heat within the specification meets every target (model band "
                      "included); every composition corner at once: "
                      + ("yes" if row.get("corners_meet") else "no"))
+    m = st.columns(3)
+    m[0].metric("Material / kg", f"{row['material_cost_per_kg']:.3g}", help="Relative price of the bar per kg "
+                f"({row.get('price_source', '')}); 1018 bar = 1.")
+    m[1].metric("Processing / kg", f"{row['processing_cost_per_kg']:.3g}",
+                help="Indicative processing adder of the route family per kg (data/route_costs.csv).")
+    m[2].metric("Part cost", f"{row['part_cost']:.3g}", help=f"Per kg × the part's mass ({row['mass_kg']:.3g} kg).")
     st.caption(pg.band_text(ev, system))
     heat_text = st.text_input("Heat analysis from the mill certificate (wt %)", key="heat_text",
                               placeholder="e.g. C=0.41 Mn=0.86 Cr=0.95 Mo=0.18 (other elements: nominal)",
@@ -275,7 +319,7 @@ def candidate_view(cand, states):
         except SelectorError as exc:
             st.error(str(exc))
         else:
-            evaluation_metrics(st.columns(4), hv, "Heat: ")
+            evaluation_metrics(hv, "Heat: ")
             st.caption(pg.band_text(hv, system))
             heat_warn = [w for w in hv.get("warnings", []) if w.startswith("heat analysis")]
             if heat_warn:
@@ -314,7 +358,7 @@ def candidate_view(cand, states):
     with c2:
         if ev.get("profile"):
             pfr = pg.profile_frame({row["label"]: ev["profile"]}, system)
-            st.altair_chart(pg.profile_chart(pfr, system, [row["label"]]), width="stretch")
+            st.altair_chart(pg.profile_chart(pfr, system, [row["label"]], scale=hs), width="stretch")
         else:
             st.info("This route family reports no hardness profile across the section.")
         ffr = pg.fatigue_depth_frame(ev, system)
@@ -333,10 +377,9 @@ def comparison_view(cand):
     ids = list(cand["variant"])
     labels = dict(zip(cand["variant"], cand["label"]))
     cur = [v for v in ss.get("compare", []) if v in ids]
-    if not cur:
-        through = cand[cand["route_family"] == "quench_temper"]["variant"].head(1).tolist()
-        case = cand[cand["route_family"].isin(["carburize", "nitride", "induction"])]["variant"].head(1).tolist()
-        cur = (through + case) if len(through + case) >= 2 else ids[:2]
+    if ss.pop("_prefill_compare", False) or not cur:
+        pair = pg.first_through_and_case(cand)
+        cur = pair if len(pair) >= 2 else ids[:2]
     ss["compare"] = cur[:3]
     st.multiselect("Candidates to compare (two or three)", ids, key="compare", max_selections=3,
                    format_func=lambda v: labels.get(v, v))
@@ -362,7 +405,7 @@ def comparison_view(cand):
             profiles[r["label"]] = ev["profile"]
     if profiles:
         st.altair_chart(pg.profile_chart(pg.profile_frame(profiles, system), system, list(profiles),
-                                         title="Hardness across the section (shared axes)",
+                                         title="Hardness across the section (shared axes)", scale=hs,
                                          colours=[pg.COMPARE_COLOURS[lab.index(k)] for k in profiles]),
                         width="stretch")
     for _, r in sub.iterrows():
@@ -428,18 +471,19 @@ def pin_view():
             st.error(m)
         if rep is not None:
             s = rep["stresses"]
-            m = st.columns(4)
-            m[0].metric(f"Shear ({su})", f"{pg.to_display(s['shear_mpa'], 'stress', system):.4g}")
-            m[1].metric(f"Bending ({su})", f"{pg.to_display(s['bending_mpa'], 'stress', system):.4g}")
-            m[2].metric(f"Bearing ({su})", f"{pg.to_display(s['bearing_mpa'], 'stress', system):.4g}")
-            m[3].metric("Governing", rep["governing"])
             t = rep["targets"]
-            m = st.columns(4)
+            wear = t.get("min_surface_hardness_hrc")
+            # three metrics a row: labels and values stay whole at 1024 px
+            m = st.columns(3)
             m[0].metric(f"Min yield ({su})", f"{pg.to_display(t['min_yield_mpa'], 'stress', system):.4g}")
             m[1].metric(f"Min tensile ({su})", f"{pg.to_display(t['min_uts_mpa'], 'stress', system):.4g}")
-            wear = t.get("min_surface_hardness_hrc")
             m[2].metric("Min surface (HRC)", "—" if wear is None else f"{wear:.3g}")
-            m[3].metric(f"Grip length ({lu})", f"{pg.to_display(pg.pin_grip_mm(case), 'length', system):.4g}")
+            m = st.columns(3)
+            m[0].metric("Governing", rep["governing"])
+            m[1].metric(f"Grip length ({lu})", f"{pg.to_display(pg.pin_grip_mm(case), 'length', system):.4g}")
+            m[2].metric("Shear/tensile", f"{rep['shear_to_tensile']['ratio']:g}")
+            st.markdown("**Where each target comes from**")
+            st.markdown("\n".join(f"- {line}" for line in pg.pin_target_explanations(rep, system)))
             st.dataframe(pg.pin_stress_table(rep, system), hide_index=True, width="stretch", key="pin_stresses")
             ratio = rep["shear_to_tensile"]
             with st.expander("Formulas and assumptions"):
@@ -454,7 +498,9 @@ def pin_view():
                            "hardness clears the surface target) and the section: a round bar of the pin's "
                            "diameter, the grip length.  Other targets stay.")
             if ss.pop("_pin_applied", False):
-                st.success("The sidebar now holds the pin's targets and section; the other tabs are ranked on them.")
+                st.success("The sidebar now holds the pin's targets and section; the other tabs are ranked on them, "
+                           "and *Side by side* starts from the first through-hardened and the first "
+                           "case-hardened candidate.")
     if case is not None:
         capacity_view(case)
 
@@ -520,6 +566,60 @@ def pin_view():
                        mime="text/csv", key="sweep_download")
     st.caption(sw.attrs.get("notice", selector.CAUTION) + f"  Pin length for the part cost: "
                f"{pg.to_display(sw.attrs.get('length_mm', float('nan')), 'length', system):.4g} {lu} (grip length).")
+
+
+def alternatives_view(cand):
+    """Procurement: cheaper candidates that reach the properties of a chosen one (or of a
+    grade and route typed here), material and processing cost apart."""
+    st.markdown("**Cheaper alternatives.** The chosen grade and route is evaluated at the section in force; its "
+                "yield and tensile strength (its case when case-hardened) become minimum targets and its "
+                "elongation less one point (docs/methods/selection.md); every cheaper candidate per kg is listed, "
+                "cheapest first.  Material (the bar) and processing (the route's indicative adder) are shown apart.")
+    have = cand is not None and len(cand) > 0
+    modes = ("a candidate of the list", "a grade and route I type") if have else ("a grade and route I type",)
+    if ss.get("alt_mode") not in modes:
+        ss["alt_mode"] = modes[0]
+    st.radio("Alternatives to", modes, key="alt_mode", horizontal=True)
+    if ss["alt_mode"] == "a candidate of the list":
+        ids = list(cand["variant"])
+        labels = dict(zip(cand["variant"], cand["label"]))
+        if ss.get("alt_pick") not in ids:
+            ss["alt_pick"] = ids[0]
+        st.selectbox("Candidate", ids, key="alt_pick", format_func=lambda v: labels.get(v, v))
+        row = cand.set_index("variant").loc[ss["alt_pick"]]
+        grade, route = row["grade"], list(row["route"])
+    else:
+        c = st.columns(2)
+        c[0].text_input("Grade", key="alt_grade", value="4140", help="Any designation of a catalogue grade.")
+        c[1].text_input("Route steps (';'-separated)", key="alt_steps", value="harden quench=oil; temper temp_c=540")
+        grade = (ss.get("alt_grade") or "").strip()
+        route, msg = pg.read_route_steps(ss.get("alt_steps"))
+        if msg or not grade:
+            st.error(msg or "Grade: blank; allowed: a catalogue grade, e.g. 4140")
+            return
+    if not prepared_ok:
+        st.info("Give a valid section and length in the sidebar first (see the messages above).")
+        return
+    try:
+        alt = pg.cached_alternatives(grade, pg.route_json(route), d_si, t_si, len_si, price_items)
+    except SelectorError as exc:
+        st.error(pg.explain(exc, system))
+        return
+    ref = alt.attrs["reference"]
+    st.markdown(f"**Reference:** {ref['grade']} · {pg.route_line(route, system, ref.get('route_text'))}")
+    m = st.columns(3)
+    m[0].metric("Material / kg", f"{ref['material_cost_per_kg']:.3g}")
+    m[1].metric("Processing / kg", f"{ref['processing_cost_per_kg']:.3g}")
+    m[2].metric("Total / kg", f"{ref['relative_cost']:.3g}")
+    st.caption("Matched on its " + ("strength" if ref["basis"] == "strength" else "hardness (its strength is beyond "
+               "the tensile column of ASTM A370 Table 3)") + "; prices in use: " + prices_in_use + ".")
+    if len(alt) == 0:
+        st.info("No cheaper candidate reaches these properties at this section.")
+    else:
+        st.dataframe(pg.alternatives_table(alt, system), hide_index=True, width="stretch", key="alternatives")
+        st.download_button("Download the alternatives (CSV)", pg.to_csv(pg.alternatives_table(alt, system)),
+                           file_name="alternatives.csv", mime="text/csv", key="alternatives_download")
+    st.caption(selector.CAUTION)
 
 
 def parts_view():
@@ -592,7 +692,8 @@ def parts_view():
     st.caption(selector.CAUTION)
 
 
-TAB_LABELS = ["Map and list", "One candidate", "Side by side", "Clevis pin and sizes", "Parts list"]
+TAB_LABELS = ["Map and list", "One candidate", "Side by side", "Cheaper alternatives", "Clevis pin and sizes",
+              "Parts list"]
 cand = None
 if prepared_ok:
     try:
@@ -605,7 +706,7 @@ if prepared_ok:
         st.error(pg.explain(exc, system))
         cand = None
 if cand is not None and len(cand):
-    cand = pg.label_candidates(cand)
+    cand = split_cost(pg.label_candidates(cand))
     n_chart = int(ss.get("chart_n", 15))
     top = cand.head(n_chart)
     pick = ss.get("pick") if ss.get("pick") in set(cand["variant"]) else cand["variant"].iloc[0]
@@ -614,7 +715,7 @@ if cand is not None and len(cand):
                                       tuple(sorted(set(top["variant"]) | {pick})))
     timings["regions"] = time.perf_counter() - t
     st.markdown(pg.ranking_summary(cand))
-tab_map, tab_one, tab_two, tab_pin, tab_parts = st.tabs(TAB_LABELS)
+tab_map, tab_one, tab_two, tab_alt, tab_pin, tab_parts = st.tabs(TAB_LABELS)
 no_table = "No candidate table: see the messages above."
 if cand is not None and len(cand) == 0:
     with tab_map:
@@ -639,9 +740,7 @@ if cand is not None and len(cand) == 0:
                 i = st.selectbox("Open a near miss", list(labels), key="miss_pick", format_func=labels.get)
                 r = misses.loc[i]
                 ev = pg.cached_evaluate(r["grade"], pg.route_json(r["route"]), d_si, t_si)
-                mm = st.columns(5)
-                evaluation_metrics(mm, ev)
-                mm[4].metric("Meets the targets", pg.percent(r.get("p_meet")))
+                evaluation_metrics(ev, extra=("Meets the targets", pg.percent(r.get("p_meet"))))
                 st.caption(pg.band_text(ev, system))
                 st.markdown("\n".join(pg.route_steps(r["route"], system)))
                 mc = pg.candidate_cautions(r, ev.get("warnings", []), service)
@@ -681,6 +780,8 @@ else:
     for tab in (tab_map, tab_one, tab_two):
         with tab:
             st.info(no_table)
+with tab_alt:
+    alternatives_view(cand)
 t = time.perf_counter()
 with tab_pin:
     pin_view()

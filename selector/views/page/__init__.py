@@ -19,20 +19,20 @@ Results are estimates for preliminary selection; see :data:`selector.CAUTION`.
 from .units import (  # noqa: F401
     SI, UNIT_INPUTS, UNIT_SYSTEMS, US, convert_inputs, si_key, to_display, to_si, unit)
 from .inputs import (  # noqa: F401
-    DEFER_NOTICE, DEMO, ENVIRONMENTS, LOAD_MODEL_LABELS, PIN_INPUT_KEYS, PIN_TARGET_KEYS,
+    read_route_steps, blank_inputs, demo_title, example_inputs, DEFER_NOTICE, DEMO, ENVIRONMENTS, LOAD_MODEL_LABELS, PIN_INPUT_KEYS, PIN_TARGET_KEYS,
     SHEAR_PLANE_LABELS, SWEEP_LABELS, SWEEP_MODES, SWEEP_SECONDS_PER_DIAMETER, TARGET_FIELDS,
     capacity_for, check_families, check_service, convert_length_text, explain, format_lengths,
     inputs_from_pin, parse_lengths, pin_case_from_inputs, pin_grip_mm, pin_report_for, read_heat,
     read_price_sheet, route_json, service_context, si_targets, sweep_diameters, targets_from_inputs,
     targets_key)
 from .text import (  # noqa: F401
-    avoid_rule_label, avoid_rules, band_text, candidate_cautions, label_candidates, percent, pick_label,
+    HARDNESS_SCALES, case_text, hardness_text, first_through_and_case, pin_target_explanations, prices_in_use, settings_line, avoid_rule_label, avoid_rules, band_text, candidate_cautions, label_candidates, percent, pick_label,
     ranking_summary, route_line, route_steps, to_csv)
 from .tables import (  # noqa: F401
-    SWEEP_SHOWN, capacity_table, comparison_table, display_table, fmt_window, miss_table,
+    alternatives_table, SWEEP_SHOWN, capacity_table, comparison_table, display_table, fmt_window, miss_table,
     pin_stress_table, reachable_table, sweep_table)
 from .cache import (  # noqa: F401
-    cached_evaluate, cached_miss_analysis, cached_nearest_misses, cached_prepare, cached_rank,
+    cached_alternatives, cached_evaluate, cached_miss_analysis, cached_nearest_misses, cached_prepare, cached_rank,
     cached_sweep, cached_variant_states)
 from .charts import (  # noqa: F401
     COMPARE_COLOURS, chart_frames, comparison_bars, comparison_frame, fatigue_depth_chart,

@@ -13,6 +13,7 @@ import streamlit as st
 import selector
 from selector.design.sweep_routes import diameter_sweep_routes
 from selector.selection import engine
+from selector.selection.cost_split import split_cost
 
 # --------------------------------------------------------------------------- cached library calls
 
@@ -86,3 +87,21 @@ def cached_sweep(diameters_mm: tuple, case_json: str, extra_json: str = "{}", pr
     return diameter_sweep_routes(list(diameters_mm), **json.loads(case_json),
                                  extra_targets=json.loads(extra_json) or None,
                                  price_sheet=_prices(price_items), caution_context=json.loads(context_json))
+
+
+@st.cache_data(show_spinner="Looking for cheaper alternatives…", max_entries=32)
+def cached_alternatives(grade: str, route_json: str, diameter_mm, thickness_mm, length_mm, price_items=()):
+    """:func:`~selector.selection.engine.alternatives` of a grade and route at the
+    section, length and price sheet in force, with the material and processing parts
+    of each cost (:func:`selector.selection.cost_split.split_cost`); the reference's
+    own split in ``attrs["reference"]``."""
+    alt = engine.alternatives(grade, json.loads(route_json), diameter_mm,
+                              thickness_mm=thickness_mm, length_mm=length_mm, price_sheet=_prices(price_items))
+    ref = dict(alt.attrs["reference"])
+    ref_split = split_cost(pd.DataFrame({"route_family": [ref["route_family"]],
+                                         "relative_cost": [ref["relative_cost"]]}))
+    ref["material_cost_per_kg"] = float(ref_split["material_cost_per_kg"].iloc[0])
+    ref["processing_cost_per_kg"] = float(ref_split["processing_cost_per_kg"].iloc[0])
+    out = split_cost(alt)
+    out.attrs["reference"] = ref
+    return out

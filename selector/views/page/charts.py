@@ -217,9 +217,10 @@ def profile_frame(profiles: Mapping[str, list], system: str) -> pd.DataFrame:
 
 def profile_chart(frame: pd.DataFrame, system: str, labels: Sequence[str] | None = None,
                   height: int = 320, title: str = "Hardness across the section",
-                  colours: Sequence[str] | None = None) -> alt.Chart:
-    """Hardness (HV) against depth from the surface; one line per label on shared
-    axes (colours: by candidate id unless given)."""
+                  colours: Sequence[str] | None = None, scale: str = "HRC") -> alt.Chart:
+    """Hardness (``scale``: HRC or HV, the page's one scale) against depth from the
+    surface; one line per label on shared axes (colours: by candidate id unless given).
+    HRC is blank where the profile is below the Rockwell C range."""
     labels = list(labels or dict.fromkeys(frame["label"]))
     colour = alt.Color("label:N", title="candidate",
                        scale=alt.Scale(domain=labels, range=list(colours or _colours_for(labels))),
@@ -227,7 +228,7 @@ def profile_chart(frame: pd.DataFrame, system: str, labels: Sequence[str] | None
     lu = unit("length", system)
     return alt.Chart(frame).mark_line(point=alt.OverlayMarkDef(size=22), strokeWidth=2).encode(
         x=alt.X("depth:Q", title=f"Depth below the surface ({lu}); centre at the right"),
-        y=alt.Y("hardness_hv:Q", title="Hardness (HV)", scale=alt.Scale(zero=False)),
+        y=alt.Y(f"hardness_{scale.lower()}:Q", title=f"Hardness ({scale})", scale=alt.Scale(zero=False)),
         color=colour,
         tooltip=[alt.Tooltip("label:N", title="candidate"), alt.Tooltip("depth:Q", format=".3g", title=lu),
                  alt.Tooltip("r_over_R:Q", format=".2f", title="r/R"),

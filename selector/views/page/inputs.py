@@ -22,7 +22,7 @@ from selector.inputs import MAX_RANGE_VALUES
 from selector.rules.cautions import check_context
 from selector.views.cli import parse_step_text
 
-from .units import SI, US, si_key, to_display, to_si, unit
+from .units import DIGITS, SI, US, si_key, to_display, to_si, unit
 
 # --------------------------------------------------------------------------- demo
 
@@ -46,8 +46,19 @@ def _demo() -> dict:
                     "sweep_diameters_mm": [float(v) for v in c["sweep_diameters_mm"]]}}
 
 
-#: The page's default part and targets (see :func:`_demo`).
+#: The example part and targets (see :func:`_demo`).
 DEMO = _demo()
+
+
+def demo_title(system: str) -> str:
+    """The example's one-line description in the display units of ``system``."""
+    c = DEMO_CASE
+    lu, fu = unit("length", system), unit("force", system)
+    return (f"Demo (invented scenario, demo data): {c['company']}, {c['part']}: "
+            f"Ø {to_display(c['diameter_mm'], 'length', system):.4g} {lu} pin, "
+            f"{to_display(c['load_kn'], 'force', system):{',.0f' if system == US else 'g'}} {fu} design load in "
+            f"{'double' if c['shear_planes'] == 2 else 'single'} shear, safety factor {c['safety_factor']:g}; "
+            "see docs/demo.md")
 
 #: The notice shown on every view, after :data:`selector.CAUTION`.
 DEFER_NOTICE = ("Parts chosen here can hurt people when they fail. Defer to the applicable design "
@@ -376,10 +387,12 @@ def capacity_for(case: Mapping, grade: str, steps_text: str | None, hardness_hrc
     steps (``"harden quench=oil; temper temp_c=540"``) or a specified hardness.
     Returns ``(capacity, None)`` or ``(None, message)``."""
 
+    route = None
+    if steps_text and steps_text.strip():
+        route, msg = read_route_steps(steps_text)
+        if msg:
+            return None, msg
     try:
-        route = None
-        if steps_text and steps_text.strip():
-            route = [parse_step_text(s) for s in steps_text.split(";") if s.strip()]
         cap = selector.pin_capacity(grade, route, case["diameter_mm"], case.get("gap_mm", 0.0),
                                     case["lug_thickness_mm"], case["clevis_thickness_mm"],
                                     shear_planes=case.get("shear_planes", 2),
@@ -390,3 +403,77 @@ def capacity_for(case: Mapping, grade: str, steps_text: str | None, hardness_hrc
         return None, explain(exc, system, {**PIN_LABELS, **CAPACITY_LABELS})
 
 
+
+
+# --------------------------------------------------------------------------- the example and a new part
+
+#: the sidebar's service-condition widgets and the pin widgets, with their blank values
+SERVICE_BLANK = {"plated": False, "plating": "", "mating": "", "environment": "normal", "service_temp": None}
+PIN_BLANK = {"pin_load": None, "pin_diameter": None, "pin_planes": 2, "pin_model": "uniform", "pin_lug": None,
+             "pin_clevis": None, "pin_gap": 0.0, "pin_sf": 2.0, "pin_wear_hrc": None}
+#: widgets a new part clears besides the targets, section, service and pin inputs
+OTHER_BLANK = {"families": list(FAMILIES), "corrosion": False, "robust_only": False, "min_p_pct": 90.0,
+               "allow": [], "price_text": "", "heat_text": "", "compare": [], "pick": None}
+
+
+def blank_inputs(system: str) -> dict:
+    """Widget values of a new part: no section, no targets, no service conditions,
+    no pin, every family, catalogue prices, no filter (``system``: the units kept)."""
+    out = {"shape": "round bar", "diameter": None, "thickness": None, "length": None}
+    out.update({wkey: None for wkey, _, _ in TARGET_FIELDS.values()})
+    out.update(SERVICE_BLANK)
+    out.update(PIN_BLANK)
+    out.update({k: (list(v) if isinstance(v, list) else v) for k, v in OTHER_BLANK.items()})
+    out["sweep_mode"] = SWEEP_MODES[0]
+    out["sweep_list"] = ""
+    out["sweep_from"], out["sweep_to"], out["sweep_step"] = None, None, None
+    return out
+
+
+def example_inputs(system: str) -> dict:
+    """Widget values of the example (:data:`DEMO`), in the display units of ``system``:
+    the section, the targets, the service conditions and the pin load case, every one
+    visible in the sidebar and the pin tab."""
+    d = DEMO
+    out = blank_inputs(system)
+
+    def disp(v, q):
+        if v is None:
+            return None
+        shown = float(to_display(v, q, system))
+        return round(shown, DIGITS[(q, system)]) if system == US else shown
+    out.update({"shape": "round bar" if d["shape"] == "round" else "plate",
+                "diameter": disp(d["diameter_mm"], "length"), "thickness": disp(d["thickness_mm"], "length"),
+                "length": disp(d["length_mm"], "length"), "robust_only": bool(d.get("robust_only"))})
+    for key, (wkey, q, _) in TARGET_FIELDS.items():
+        v = d["targets"].get(key)
+        out[wkey] = None if v is None else (disp(v, q) if q else float(v))
+    sv = d.get("service", {})
+    out.update({"plated": bool(sv.get("plated", False)), "plating": sv.get("plating", ""),
+                "mating": sv.get("mating_material", ""), "environment": sv.get("environment", "normal"),
+                "service_temp": disp(sv.get("service_temp_c"), "temperature")})
+    pin = d.get("pin") or {}
+    if pin:
+        out.update({"pin_load": disp(pin["load_kn"], "force"),
+                    "pin_diameter": disp(pin["diameter_mm"], "length"), "pin_planes": int(pin["shear_planes"]),
+                    "pin_lug": disp(pin["lug_thickness_mm"], "length"),
+                    "pin_clevis": disp(pin["clevis_thickness_mm"], "length"), "pin_gap": disp(pin["gap_mm"], "length"),
+                    "pin_sf": float(pin["safety_factor"]), "pin_wear_hrc": pin.get("wear_surface_hardness_hrc")})
+        sweep_d = pin.get("sweep_diameters_mm") or []
+        out["sweep_list"] = format_lengths(sweep_d, system)
+        if sweep_d:
+            out["sweep_from"], out["sweep_to"] = disp(min(sweep_d), "length"), disp(max(sweep_d), "length")
+            out["sweep_step"] = disp(2.0, "length")
+    return out
+
+
+
+def read_route_steps(text: str | None) -> tuple[list | None, str | None]:
+    """Route steps typed as ``"harden quench=oil; temper temp_c=540"`` (one step per
+    ``;``, each ``op key=value ...``): ``(steps, None)`` or ``(None, message)``."""
+    if text is None or not text.strip():
+        return None, "Route steps: blank; allowed: steps separated by ';', e.g. 'harden quench=oil; temper temp_c=540'"
+    try:
+        return [parse_step_text(s) for s in text.split(";") if s.strip()], None
+    except SelectorError as exc:
+        return None, f"Route steps: {exc}"

@@ -10,7 +10,7 @@ import pandas as pd
 
 from .inputs import FIELD_LABELS, route_json
 from .text import param_label, param_unit, route_line
-from .units import US, display_name, quantity_of, to_display, unit
+from .units import SI, US, display_name, quantity_of, to_display, unit
 
 # --------------------------------------------------------------------------- table for display
 
@@ -199,3 +199,26 @@ def capacity_table(cap: Mapping, system: str) -> pd.DataFrame:
                          "governing": [m == cap["governing"] for m in ("shear", "bending", "bearing")]})
 
 
+
+
+def alternatives_table(alt: pd.DataFrame, system: str) -> pd.DataFrame:
+    """Cheaper alternatives (:func:`~selector.selection.engine.alternatives` with the
+    cost split of :func:`~selector.selection.cost_split.split_cost`) with plain column
+    names in display units: the material and the processing cost shown apart."""
+    su = unit("stress", system)
+    out = pd.DataFrame({
+        "grade": alt["grade"],
+        "route": [route_line(r, system, t) for r, t in zip(alt["route"], alt["route_text"])],
+        f"yield ({su})": np.round(to_display(alt["yield_mpa"].to_numpy(float), "stress", system), 0 if system == SI else 1),
+        f"tensile ({su})": np.round(to_display(alt["uts_mpa"].to_numpy(float), "stress", system), 0 if system == SI else 1),
+        "elongation (%)": alt["elongation_pct"].astype(float).round(1),
+        "material / kg": alt["material_cost_per_kg"].astype(float).round(3),
+        "processing / kg": alt["processing_cost_per_kg"].astype(float).round(3),
+        "total / kg": alt["relative_cost"].astype(float).round(3),
+        "saving / kg": alt["saving_per_kg"].astype(float).round(3),
+        "material per part": alt["material_part_cost"].astype(float).round(4),
+        "processing per part": alt["processing_part_cost"].astype(float).round(4),
+        "meets the targets (%)": (100.0 * alt["p_meet"].astype(float)).round(1),
+        "price": alt["price_source"],
+    })
+    return out.reset_index(drop=True)

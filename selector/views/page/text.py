@@ -207,3 +207,145 @@ def pick_label(grade: str, route_family: str) -> str:
 
 
 
+
+
+# --------------------------------------------------------------------------- the settings in force
+
+#: short names of the targets in the settings line: target key -> (words, quantity or unit text)
+TARGET_WORDS = {
+    "min_yield_mpa": ("yield ≥", "stress"), "max_yield_mpa": ("yield ≤", "stress"),
+    "min_uts_mpa": ("tensile ≥", "stress"), "max_uts_mpa": ("tensile ≤", "stress"),
+    "min_elongation_pct": ("elongation ≥", "%"), "min_hardness_hrc": ("hardness ≥", "HRC"),
+    "max_hardness_hrc": ("hardness ≤", "HRC"), "min_surface_hardness_hrc": ("surface ≥", "HRC"),
+    "min_case_depth_mm": ("case depth ≥", "length"), "max_relative_cost": ("cost per kg ≤", ""),
+}
+
+
+def _shown(v, what: str, system: str) -> str:
+    if what in ("stress", "length", "temperature"):
+        return f"{to_display(v, what, system):.4g} {unit(what, system)}"
+    return f"{v:.4g} {what}".strip()
+
+
+def settings_line(*, diameter_mm, thickness_mm, length_mm, targets: Mapping, families: Sequence[str],
+                  all_families: Sequence[str], corrosion_resistant: bool, robust_only: bool, min_p_meet: float,
+                  allow: Sequence[str], service: Mapping, prices: str, system: str) -> str:
+    """One line naming every setting in force (values in display units): the section,
+    each target, the families, the filters, the service conditions for the cautions,
+    the prices and the units.  Nothing that steers the ranking is left out."""
+    if diameter_mm is not None:
+        section = f"round bar Ø {_shown(diameter_mm, 'length', system)}"
+    elif thickness_mm is not None:
+        section = f"plate {_shown(thickness_mm, 'length', system)} thick"
+    else:
+        section = "no section"
+    if length_mm is not None:
+        section += f" × {_shown(length_mm, 'length', system)} long"
+    tl = [f"{TARGET_WORDS[k][0]} {_shown(v, TARGET_WORDS[k][1], system)}" for k, v in targets.items()
+          if k in TARGET_WORDS and v is not None]
+    fams = ("all families" if set(families) == set(all_families) else
+            "families: " + ", ".join(f.replace("_", " ") for f in families) if families else "no family")
+    if corrosion_resistant:
+        fams += ", corrosion-resistant only"
+    filt = (f"only candidates that meet the targets with a probability ≥ {100 * min_p_meet:.0f} %" if robust_only
+            else "every candidate that meets the targets at the estimate")
+    if allow:
+        filt += "; cautions not ranked last: " + ", ".join(allow)
+    sv = []
+    if service.get("plated"):
+        sv.append(service.get("plating") or "electroplated")
+    if service.get("mating_material"):
+        sv.append(f"mating {service['mating_material']}")
+    sv.append(f"{service.get('environment', 'normal')} environment")
+    if service.get("service_temp_c") is not None:
+        sv.append(f"up to {_shown(service['service_temp_c'], 'temperature', system)}")
+    units = ("SI (MPa, mm, °C)" if system == SI else "US customary (ksi, in, °F)")
+    return (f"**In force** · {section} · targets: {', '.join(tl) if tl else 'none'} · {fams} · {filt} · "
+            f"service: {', '.join(sv)} · prices: {prices} · units: {units}")
+
+
+# --------------------------------------------------------------------------- the pin's targets explained
+
+def pin_target_explanations(report: Mapping, system: str) -> list[str]:
+    """One sentence per target the pin sets (markdown), with its working in display
+    units: which stress governs the yield target and by how much, the shear-to-tensile
+    factor behind the tensile target (and why that target can sit below the yield
+    target), and where the surface-hardness target comes from."""
+    s, t = report["stresses"], report["targets"]
+    sf, kb = report["safety_factor"], report["bearing_factor"]
+    ratio = report["shear_to_tensile"]
+    su = unit("stress", system)
+
+    def v(x):
+        return f"{to_display(x, 'stress', system):.4g} {su}"
+    dem = report["yield_candidates_mpa"]
+    gov = report["governing"]
+    others = ", ".join(f"{m} {v(dem[m])}" for m in ("bending", "shear", "bearing") if m != gov)
+    out = [f"**Minimum yield {v(t['min_yield_mpa'])}: {gov} governs.** Each mode's yield demand is the safety "
+           f"factor {sf:g} × its stress: bending {v(s['bending_mpa'])} × {sf:g}; shear √3 × {v(s['shear_mpa'])} "
+           f"× {sf:g} (von Mises: shear yield = yield / √3); bearing {v(s['bearing_mpa'])} / {kb:g} × {sf:g}. "
+           f"The largest, {gov}, sets the target (the others: {others})."]
+    out.append(f"**Minimum tensile {v(t['min_uts_mpa'])}: from shear only.** Safety factor {sf:g} × shear "
+               f"{v(s['shear_mpa'])} / {ratio['ratio']:g}, the ratio of ultimate shear to ultimate tensile "
+               f"strength ({ratio['source']}; {ratio['confidence']}).  It guards against shearing the pin off, "
+               "so it can be far below the yield target, which bending sets; a candidate meeting the yield "
+               "target meets it as a rule, since tensile strength exceeds yield strength.")
+    if t.get("min_surface_hardness_hrc") is not None:
+        out.append(f"**Minimum surface hardness {t['min_surface_hardness_hrc']:g} HRC: for wear,** as typed "
+                   "(not derived from the load); it calls for a hardened case or a through-hardened bar that "
+                   "hard at the surface.")
+    else:
+        out.append("**No surface-hardness target:** the wear hardness is blank.")
+    return out
+
+
+def first_through_and_case(cand: pd.DataFrame) -> list:
+    """The ``variant`` of the first candidate without a hardened case (through-hardened,
+    or a bar used as bought) and of the first with one (``case_depth_mm`` > 0), in the
+    table's order: the pair the side-by-side view starts from.  Either may be missing."""
+    depth = pd.to_numeric(cand.get("case_depth_mm"), errors="coerce").fillna(0.0).to_numpy() \
+        if "case_depth_mm" in cand else None
+    if depth is None or len(cand) == 0:
+        return list(cand["variant"].head(2)) if len(cand) else []
+    through = cand["variant"][depth <= 0].head(1).tolist()
+    case = cand["variant"][depth > 0].head(1).tolist()
+    return through + case
+
+
+def prices_in_use(name: str | None, prices: Mapping | None) -> str:
+    """The prices the ranking uses, named: the accepted price sheet (and how many
+    grades it prices) or the catalogue's indicative prices."""
+    if not prices:
+        return "catalogue prices (indicative, 1018 bar = 1 per kg)"
+    return (f"price sheet '{name or 'price sheet'}' ({len(prices)} grade{'s' if len(prices) != 1 else ''} priced; "
+            "catalogue prices for the others)")
+
+
+#: hardness scales a view can show (one per view)
+HARDNESS_SCALES = ("HRC", "HV")
+
+
+def hardness_text(row: Mapping, which: str, scale: str) -> str:
+    """``row[which + '_hrc' | '_hv']`` as text in ``scale`` (``—`` where the model gives
+    none, e.g. below the Rockwell C range)."""
+    v = row.get(f"{which}_{scale.lower()}")
+    try:
+        v = float(v)
+    except (TypeError, ValueError):
+        return "—"
+    return "—" if v != v else (f"{v:.3g}" if scale == "HRC" else f"{v:.0f}")
+
+
+def case_text(row: Mapping, system: str, scale: str = "HRC") -> str:
+    """The surface hardness and case depth of a case-hardened candidate
+    (``58 HRC, 0.8 mm``), or ``through-hardened`` (no case depth) with its surface
+    hardness: never a case depth of zero."""
+    depth = row.get("case_depth_mm")
+    try:
+        depth = float(depth)
+    except (TypeError, ValueError):
+        depth = float("nan")
+    surf = hardness_text(row, "surface_hardness", scale)
+    if depth == depth and depth > 0:
+        return f"{surf} {scale}, {to_display(depth, 'length', system):.2g} {unit('length', system)}"
+    return f"no case, {surf} {scale}" if surf != "—" else "no case"

@@ -95,7 +95,7 @@ UNIT_INPUTS = {"diameter": "length", "thickness": "length", "length": "length",
                "pin_clevis": "length", "sweep_from": "length", "sweep_to": "length", "sweep_step": "length"}
 
 #: digits kept when a unit switch converts an input
-_DIGITS = {("stress", SI): 1, ("stress", US): 3, ("length", SI): 2, ("length", US): 4,
+DIGITS = {("stress", SI): 1, ("stress", US): 3, ("length", SI): 2, ("length", US): 4,
            ("temperature", SI): 1, ("temperature", US): 1, ("force", SI): 3, ("force", US): 1}
 
 
@@ -110,7 +110,7 @@ def convert_inputs(state: Mapping, old: str, new: str) -> dict:
         if v is None:
             continue
         si = to_si(v, q, old)
-        out[key] = round(float(to_display(si, q, new)), _DIGITS[(q, new)])
+        out[key] = round(float(to_display(si, q, new)), DIGITS[(q, new)])
     return out
 
 
@@ -119,12 +119,12 @@ def convert_inputs(state: Mapping, old: str, new: str) -> dict:
 #: 0.001 ksi, 0.1 °F).  A unit switch converts the inputs to the other system and back with
 #: rounding (30 mm -> 1.1811 in -> 29.99994 mm); keyed on the rounded SI value, the switch finds
 #: every result in the cache and recomputes nothing (units are display only).
-SI_KEY_DIGITS = {"length": 2, "stress": 1, "temperature": 1, "force": 3}
+SI_KEYDIGITS = {"length": 2, "stress": 1, "temperature": 1, "force": 3}
 
 
 def si_key(value, quantity: str):
-    """An SI input rounded to :data:`SI_KEY_DIGITS` (None stays None)."""
+    """An SI input rounded to :data:`SI_KEYDIGITS` (None stays None)."""
     if value is None:
         return None
-    return round(float(value), SI_KEY_DIGITS[quantity])
+    return round(float(value), SI_KEYDIGITS[quantity])
 
