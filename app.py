@@ -89,6 +89,11 @@ T0 = time.perf_counter()
 timings = {}
 
 
+def message(text: str) -> None:
+    """An input message: after "New part" a blank input is the next step (info), else an error."""
+    (st.info if ss.get("_scenario") == "new" and ": blank;" in text else st.error)(text)
+
+
 def notice(where: str):
     """The caution and the notice to defer to codes and review (every view)."""
     st.warning(f"**{selector.CAUTION}** {pg.DEFER_NOTICE}", icon="⚠️")
@@ -246,8 +251,7 @@ if price_msg:
         "That sheet was accepted before this one; clear the rejected sheet or load a corrected one."
         if prices else "The catalogue's indicative prices apply."))
 for e in errors:
-    # after "New part" the blank inputs are the next step, not a fault
-    (st.info if ss.get("_scenario") == "new" and ": blank;" in e else st.error)(e)
+    message(e)
 st.markdown(pg.settings_line(diameter_mm=d_si, thickness_mm=t_si, length_mm=len_si, targets=targets,
                              families=ss["families"], all_families=list(FAMILIES),
                              corrosion_resistant=bool(ss.get("corrosion")), robust_only=bool(ss.get("robust_only")),
@@ -468,7 +472,7 @@ def pin_view():
         msgs = [msg] if msg else []
     with results:
         for m in msgs:
-            st.error(m)
+            message(m)
         if rep is not None:
             s = rep["stresses"]
             t = rep["targets"]
@@ -520,7 +524,7 @@ def pin_view():
     diam, dmsg = pg.sweep_diameters(ss["sweep_mode"], ss.get("sweep_list"), ss.get("sweep_from"),
                                     ss.get("sweep_to"), ss.get("sweep_step"), system)
     if dmsg:
-        st.error(dmsg)
+        message(dmsg)
     args = None
     if rep is not None and not dmsg:
         extra = {k: v for k, v in targets.items() if k not in pg.PIN_TARGET_KEYS}
@@ -760,9 +764,10 @@ elif cand is not None:
         st.altair_chart(pg.strength_elongation_chart(frames, targets, y, system, picked=picked_id),
                         width="stretch")
         timings["map"] = time.perf_counter() - t
-        st.caption(f"Shaded: each candidate's reachable region over its process window and composition "
-                   f"range; line: its process path at the nominal composition, labelled with the main "
-                   f"parameter; ◆ Pareto set, ▼ other candidates; ringed: the candidate in focus. "
+        st.caption(f"Each line is a candidate's process path at the nominal composition, its main parameter "
+                   f"written at the ends (along the whole path for the candidate in focus, marked ✛); the dotted "
+                   f"edges bound its scatter over the composition range and the window; colour: route family; "
+                   f"■ Pareto set, □ other candidates, each at its chosen state; dashed: the targets.  "
                    f"Top {len(top)} of {len(cand)} drawn.")
         table = pg.display_table(cand.drop(columns=["label"]), system)
         st.dataframe(table, width="stretch", hide_index=True, key="candidates")

@@ -16,7 +16,8 @@ from streamlit.testing.v1 import AppTest
 
 import selector
 from selector.catalogue.grades import FAMILIES
-from selector.selection.engine import prepare, rank
+from selector.design.pins import pin_report
+from selector.selection.engine import alternatives, prepare, rank
 from selector.views import page as pg
 
 APP = str(Path(__file__).resolve().parents[1] / "app.py")
@@ -182,7 +183,9 @@ def test_bad_price_sheet_shows_line_and_column_and_changes_nothing(at):
     at.text_area(key="price_text").set_value("grade,relative_price\n4140,1.9\n1045,cheap\n")
     _run(at)
     errs = " ".join(_errors(at))
-    assert "not applied" in errs and "line 3" in errs and "relative_price" in errs
+    assert "rejected" in errs and "line 3" in errs and "relative_price" in errs
+    # no sheet was accepted before: the page says the catalogue's prices are used
+    assert any("Prices in use" in w.value and "catalogue prices" in w.value for w in at.warning)
     after = _table(at)
     pd.testing.assert_frame_equal(before, after)
 
@@ -653,3 +656,167 @@ def test_sweep_on_two_diameters_is_the_library_pick(at):
     assert any("have changed since this sweep" in i.value for i in at.info)
     assert _sweep(at) is not None
     assert sum(selector.CAUTION in w.value for w in at.warning) >= 2
+
+
+# --------------------------------------------------------------------------- issue 15: settings, reset, prices
+
+def _in_force(at) -> str:
+    lines = [m.value for m in at.markdown if m.value.startswith("**In force**")]
+    assert len(lines) == 1
+    return lines[0]
+
+
+def test_settings_line_names_every_setting_in_force(at):
+    line = _in_force(at)
+    d = pg.DEMO
+    assert f"Ø {d['diameter_mm']:.4g} mm" in line and f"× {d['length_mm']:.4g} mm long" in line
+    # every target of the example, with its value, including the surface hardness of a collapsed panel
+    for key, words in (("min_yield_mpa", "yield ≥"), ("min_uts_mpa", "tensile ≥"),
+                       ("min_surface_hardness_hrc", "surface ≥")):
+        assert f"{words} {d['targets'][key]:.4g}" in line, (key, line)
+    sv = d["service"]
+    assert sv["plating"] in line and sv["mating_material"] in line and f"{sv['environment']} environment" in line
+    assert f"up to {sv['service_temp_c']:.4g} °C" in line
+    assert "all families" in line and "probability ≥ 90 %" in line and "catalogue prices" in line and "SI" in line
+    # a change of any setting shows in the line
+    at.multiselect(key="families").set_value(["alloy_steel", "carbon_steel"])
+    at.checkbox(key="corrosion").check()
+    at.radio(key="units").set_value(pg.US)
+    _run(at)
+    line = _in_force(at)
+    assert "families: alloy steel, carbon steel" in line and "corrosion-resistant only" in line
+    assert f"yield ≥ {d['targets']['min_yield_mpa'] / 6.894757:.4g} ksi" in line and "°F" in line and "US customary" in line
+
+
+def test_new_part_clears_everything_and_the_example_is_loaded_on_purpose(at):
+    assert any("Example loaded" in i.value for i in at.info)
+    at.button(key="new_part").click()
+    _run(at)
+    for wkey, _, _ in pg.TARGET_FIELDS.values():
+        assert at.number_input(key=wkey).value is None, wkey
+    for key in ("diameter", "length", "service_temp", "pin_load", "pin_diameter", "pin_lug", "pin_clevis"):
+        assert at.number_input(key=key).value is None, key
+    assert not at.checkbox(key="plated").value and at.text_input(key="mating").value == ""
+    assert at.selectbox(key="environment").value == "normal"
+    assert not at.checkbox(key="robust_only").value and at.text_area(key="price_text").value == ""
+    assert set(at.multiselect(key="families").value) == set(FAMILIES)
+    assert not any("Example loaded" in i.value for i in at.info)
+    assert _table(at) is None and not _errors(at)          # blank inputs are the next step, not faults
+    assert any(i.value.startswith("Diameter: blank") for i in at.info)
+    line = _in_force(at)
+    assert "targets: none" in line and "no section" in line and "normal environment" in line
+    assert "plated" not in line and "mating" not in line
+    # a section alone ranks every candidate with no target
+    at.number_input(key="diameter").set_value(30.0)
+    at.number_input(key="length").set_value(100.0)
+    _run(at)
+    table = _table(at)
+    assert table is not None and len(table) == len(rank(prepare(30.0, None, 100.0), {}))
+    # the example comes back on purpose, labelled, its targets visible in the sidebar
+    at.button(key="load_example").click()
+    _run(at)
+    assert any("Example loaded" in i.value for i in at.info)
+    assert at.number_input(key="min_yield").value == pytest.approx(pg.DEMO["targets"]["min_yield_mpa"])
+    assert at.number_input(key="min_surface_hrc").value == pg.DEMO["targets"]["min_surface_hardness_hrc"]
+    assert at.text_input(key="mating").value == pg.DEMO["service"]["mating_material"]
+
+
+def test_rejected_price_sheet_after_a_good_one_names_the_prices_in_use(at):
+    at.text_area(key="price_text").set_value("grade,relative_price\nAISI 4140,0.25\n")
+    _run(at)
+    good = _table(at)
+    assert "price sheet 'pasted price sheet' (1 grade priced" in _in_force(at)
+    at.text_area(key="price_text").set_value("grade,relative_price\n4140,cheap\n")
+    _run(at)
+    errs = " ".join(_errors(at))
+    assert "rejected" in errs and "line 2" in errs
+    # the sheet accepted before stays in use, and the page says so (warning and the settings line)
+    warn = [w.value for w in at.warning if "Prices in use" in w.value]
+    assert warn and "pasted price sheet" in warn[0] and "accepted before" in warn[0]
+    assert "price sheet 'pasted price sheet'" in _in_force(at)
+    after = _table(at)
+    assert (after.loc[after["grade"] == "4140", "price_source"] == "price sheet").all()
+    pd.testing.assert_frame_equal(good, after)
+    # clearing the text goes back to the catalogue, said in the line
+    at.text_area(key="price_text").set_value("")
+    _run(at)
+    assert "catalogue prices" in _in_force(at) and not _errors(at)
+
+
+# --------------------------------------------------------------------------- issue 15: procurement
+
+def _alternatives(at) -> pd.DataFrame | None:
+    for df in at.dataframe:
+        if "saving / kg" in df.value.columns:
+            return df.value
+    return None
+
+
+def test_alternatives_view_lists_cheaper_candidates_with_material_and_processing_apart(at):
+    table = _table(at)
+    # the dearest candidate per kg has cheaper alternatives
+    i = int(np.argmax(table["relative_cost"].to_numpy(float)))
+    at.selectbox(key="alt_pick").select_index(i)
+    _run(at)
+    shown = _alternatives(at)
+    row = table.iloc[i]
+    d = pg.DEMO
+    ref = alternatives(row["grade"], json.loads(row["route"]), d["diameter_mm"],
+                                                 length_mm=d["length_mm"])
+    assert shown is not None and len(shown) == len(ref) > 0
+    assert list(shown["grade"]) == list(ref["grade"])
+    np.testing.assert_allclose(shown["total / kg"], ref["relative_cost"], atol=5e-4)
+    np.testing.assert_allclose(shown["material / kg"] + shown["processing / kg"], shown["total / kg"], atol=1.5e-3)
+    # the material part is the grade's catalogue price (no sheet loaded), the processing part the route's adder
+    for g, m in zip(shown["grade"], shown["material / kg"]):
+        assert m == pytest.approx(selector.grade(g).relative_price, abs=5e-4)
+    assert (shown["total / kg"] < row["relative_cost"]).all()
+    labels = [m.label for m in at.metric]
+    assert "Material / kg" in labels and "Processing / kg" in labels
+    assert any("prices in use: catalogue prices" in c.value for c in at.caption)
+    # a grade and route typed by the user; a bad step names the field
+    at.radio(key="alt_mode").set_value("a grade and route I type")
+    _run(at)
+    assert _alternatives(at) is not None or any("No cheaper candidate" in i.value for i in at.info)
+    at.text_input(key="alt_steps").set_value("harden quench=oil; temper temp_c")
+    _run(at)
+    assert any(e.startswith("Route steps") and "temp_c" in e and "allowed" in e for e in _errors(at))
+    at.text_input(key="alt_steps").set_value("harden quench=oil; temper temp_c=hot")
+    _run(at)
+    assert any("temp_c" in e and "hot" in e for e in _errors(at))
+
+
+# --------------------------------------------------------------------------- issue 15: pin explanation, comparison
+
+def test_pin_view_explains_each_derived_target(at):
+    md = " ".join(m.value for m in at.markdown)
+    rep = pin_report(**{k: pg.DEMO["pin"][k] for k in
+                                             ("load_kn", "diameter_mm", "shear_planes", "safety_factor", "gap_mm",
+                                              "lug_thickness_mm", "clevis_thickness_mm",
+                                              "wear_surface_hardness_hrc")})
+    assert f"{rep['governing']} governs" in md
+    assert f"Minimum yield {rep['targets']['min_yield_mpa']:.4g} MPa" in md
+    assert f"Minimum tensile {rep['targets']['min_uts_mpa']:.4g} MPa: from shear only" in md
+    assert "/ 0.6," in md and "common practice" in md           # the shear-to-tensile factor and its source
+    assert "Minimum surface hardness 50 HRC" in md
+    _set_pin(at, PIN_CASE, planes=1)
+    md = " ".join(m.value for m in at.markdown)
+    ref = pin_report(load_kn=45.0, diameter_mm=30.0, shear_planes=1, safety_factor=2.5,
+                                          gap_mm=2.0, lug_thickness_mm=20.0, clevis_thickness_mm=12.0)
+    assert f"{ref['governing']} governs" in md and "No surface-hardness target" in md
+
+
+def test_use_these_targets_prefills_side_by_side_with_through_and_case_hardened(at):
+    table = _table(at)
+    at.multiselect(key="compare").set_value(list(at.multiselect(key="compare").options[-2:]))
+    _run(at)
+    at.button(key="pin_apply").click()
+    _run(at)
+    table = _table(at)
+    depth = table["case_depth_mm"].astype(float).fillna(0.0).to_numpy()
+    chosen = at.multiselect(key="compare").value
+    assert len(chosen) == 2
+    # the first row without a case and the first with one, in the table's order
+    first_through = next(i for i in range(len(table)) if depth[i] <= 0)
+    first_case = next(i for i in range(len(table)) if depth[i] > 0)
+    assert chosen == [table["variant"].iloc[first_through], table["variant"].iloc[first_case]]

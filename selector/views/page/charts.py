@@ -14,7 +14,7 @@ from selector.catalogue.grades import default_catalogue
 from selector.routes.families import austemper as bath
 from selector.selection.targets import NUMERIC_TARGETS
 
-from .text import param_label, param_unit, percent, pick_label, route_line
+from .text import family_label, param_label, param_unit, percent, pick_label, route_line
 from .units import display_name, quantity_of, to_display, unit
 
 PALETTE = ["#1b6f8a", "#c2571a", "#5b8c2a", "#8e3b74", "#b3922b", "#3f4fa3", "#a8323e", "#2f8f7b",
@@ -63,44 +63,51 @@ def hull_band(x: np.ndarray, y: np.ndarray) -> pd.DataFrame:
 
 def chart_frames(states: pd.DataFrame, cand: pd.DataFrame, y: str, system: str,
                  picked: str | None = None) -> dict:
-    """Frames for :func:`strength_elongation_chart`: ``regions`` (hull band of each
-    candidate's states, every corner and main-parameter value), ``paths`` (nominal
-    corner along the main parameter, with text labels of the parameter value) and
-    ``points`` (each candidate's chosen state).  ``y`` is ``yield_mpa`` or ``uts_mpa``."""
+    """Frames for :func:`strength_elongation_chart`.
+
+    ``regions``: the edges of each candidate's scatter (lower and upper edge of the
+    hull over every composition corner and main-parameter value: ``x, lo, hi``);
+    ``paths``: the nominal composition along the main parameter, with the parameter
+    value as text at both ends of every path and along the focus path; ``points``:
+    each candidate's chosen state.  Every frame carries ``family`` (the route
+    family's name from the library) for the colour.  ``y``: ``yield_mpa`` or ``uts_mpa``."""
     regions, paths = [], []
+    fam_of = dict(zip(cand["id"], [family_label(f) for f in cand["route_family"]]))
     for _, c in cand.iterrows():
         s = states[states["variant"] == c["variant"]]
+        focus = c["id"] == picked
         band = hull_band(s["elongation_pct"], s[y])
         if len(band):
-            band = band.assign(label=c["label"], id=c["id"], focus=c["id"] == picked)
-            regions.append(band)
+            regions.append(band.assign(label=c["label"], id=c["id"], family=fam_of[c["id"]], focus=focus))
         nom = s[s["corner"] == "nominal"].dropna(subset=["elongation_pct", y])
         nom = nom.sort_values("main_value") if nom["main_value"].notna().any() else nom
         if len(nom):
             param = c.get("window_parameter") or ""
             q = quantity_of(param) if param else None
             mv = nom["main_value"].to_numpy(float)
-            shown = to_display(mv, q, system) if q else mv
+            shown = np.atleast_1d(to_display(mv, q, system) if q else mv)
             u = param_unit(param, system)
             n = len(nom)
-            focus = c["id"] == picked
-            step = max(1, int(math.ceil(n / 14)))     # at most about 14 labels on the focus path
             keep = np.zeros(n, bool)
+            keep[[0, -1]] = True                       # both ends of every path
             if focus:
-                keep[::step] = True
-                keep[-1] = True
-            text = [_param_text(v, q, u) if (k and v == v) else "" for v, k in zip(np.atleast_1d(shown), keep)]
+                keep[::max(1, int(math.ceil(n / 8)))] = True    # and along the focus path
+            text = [_param_text(v, q, u) if (k and v == v) else "" for v, k in zip(shown, keep)]
             paths.append(pd.DataFrame({"x": nom["elongation_pct"].to_numpy(float),
                                        "y": nom[y].to_numpy(float), "order": np.arange(n),
-                                       "text": text, "param": np.atleast_1d(shown),
-                                       "label": c["label"], "id": c["id"], "focus": focus}))
-    reg = pd.concat(regions, ignore_index=True) if regions else pd.DataFrame(columns=["x", "lo", "hi", "label", "id", "focus"])
+                                       "text": text, "param": shown, "label": c["label"], "id": c["id"],
+                                       "family": fam_of[c["id"]], "focus": focus}))
+    reg = pd.concat(regions, ignore_index=True) if regions else pd.DataFrame(
+        columns=["x", "lo", "hi", "label", "id", "family", "focus"])
     pth = pd.concat(paths, ignore_index=True) if paths else pd.DataFrame(
-        columns=["x", "y", "order", "text", "param", "label", "id", "focus"])
+        columns=["x", "y", "order", "text", "param", "label", "id", "family", "focus"])
     pts = pd.DataFrame({"x": cand["elongation_pct"].to_numpy(float), "y": cand[y].to_numpy(float),
                         "label": cand["label"], "id": cand["id"], "grade": cand["grade"],
+                        "tag": [f"{i} {g}" for i, g in zip(cand["id"], cand["grade"])],
+                        "family": [fam_of[i] for i in cand["id"]],
                         "route": cand["route_text"], "window": cand.get("window", ""),
                         "set": np.where(cand["pareto"].astype(bool), "Pareto set", "meets targets"),
+                        "focus": (cand["id"] == picked).to_numpy(),
                         "cost": cand["relative_cost"].to_numpy(float)})
     for frame in (reg, pth, pts):
         for col in ("y", "lo", "hi"):
@@ -129,78 +136,110 @@ def _domain(values, pad=0.06, floor=None):
     return [lo, hi]
 
 
+#: colours of the route families on the map, given in order of appearance (so a new family
+#: needs no entry here); dark enough for thin lines and text on white
+FAMILY_COLOURS = ["#0f5e7a", "#b24a12", "#4a7a1c", "#7b2f66", "#8f6f10", "#34449a", "#9a2a35", "#1f7a68",
+                  "#5c4b30", "#5a5a5a"]
+#: colour of the target limits on the map
+LIMIT_COLOUR = "#6d5a12"
+
+
 def strength_elongation_chart(frames: dict, targets: Mapping, y: str, system: str,
                               picked: str | None = None, height: int = 500) -> alt.Chart:
-    """Strength (yield or tensile) against elongation: each candidate's reachable
-    region (hull over corners and main-parameter values), its process path with the
-    parameter values, the target region, and the chosen points (Pareto set filled)."""
+    """Strength (yield or tensile) against elongation, drawn as process paths.
+
+    Encoding (the page's own): each candidate is its **process path** at the nominal
+    composition, a line through the states of its main parameter with the parameter
+    value written at its ends (and along the focus path); the spread over composition
+    corners and the window is two **thin dotted edges** (lower and upper), not a
+    filled area; **colour is the route family** (one short legend of families);
+    each chosen state is a **square** (filled: Pareto set; open: meets the targets)
+    labelled directly with its id and grade; the candidate in focus has a heavy path
+    and a cross-hair on its chosen state; the **targets** are dashed limit lines, each
+    named at its end, with a check-mark text in the corner that meets them all."""
     reg, pth, pts = frames["regions"], frames["paths"], frames["points"]
     su = unit("stress", system)
     ytitle = ("Yield strength" if y == "yield_mpa" else "Tensile strength") + f" ({su})"
-    tmin = targets.get("min_" + y.replace("_mpa", "") + "_mpa")
-    tmax = targets.get("max_" + y.replace("_mpa", "") + "_mpa")
+    which = "yield" if y == "yield_mpa" else "uts"
+    tmin, tmax = targets.get(f"min_{which}_mpa"), targets.get(f"max_{which}_mpa")
     emin = targets.get("min_elongation_pct")
     ys = list(reg.get("lo", [])) + list(reg.get("hi", [])) + list(pts["y"])
     xs = list(reg.get("x", [])) + list(pts["x"])
     ys += [to_display(v, "stress", system) for v in (tmin, tmax) if v is not None]
     xs += [emin] if emin is not None else []
     xdom, ydom = _domain(xs, floor=0.0), _domain(ys, floor=0.0)
-    labels = list(dict.fromkeys(list(pts["label"])))
-    colour = alt.Color("label:N", title="candidate", scale=alt.Scale(domain=labels, range=PALETTE[:len(labels)]
-                                                                     if len(labels) <= len(PALETTE) else None),
-                       legend=alt.Legend(orient="right", symbolType="square", labelLimit=260, labelFontSize=11,
-                                         symbolLimit=0))
+    fams = list(dict.fromkeys(list(pts["family"])))
+    colour = alt.Color("family:N", title="route family",
+                       scale=alt.Scale(domain=fams, range=[FAMILY_COLOURS[i % len(FAMILY_COLOURS)]
+                                                           for i in range(len(fams))]),
+                       legend=alt.Legend(orient="top", direction="horizontal", labelLimit=0, titleLimit=0,
+                                         symbolType="stroke", symbolStrokeWidth=3, columns=4))
     x = alt.X("x:Q", title="Elongation (%)", scale=alt.Scale(domain=xdom, nice=False))
     yy = alt.Y("y:Q", title=ytitle, scale=alt.Scale(domain=ydom, nice=False))
-
-    box = pd.DataFrame({"x": [emin if emin is not None else xdom[0]], "x2": [xdom[1]],
-                        "y": [to_display(tmin, "stress", system) if tmin is not None else ydom[0]],
-                        "y2": [to_display(tmax, "stress", system) if tmax is not None else ydom[1]]})
-    target = alt.Chart(box).mark_rect(fill=TARGET_FILL, opacity=0.55, stroke=TARGET_STROKE,
-                                      strokeDash=[6, 3], strokeWidth=1.2).encode(
-        x=alt.X("x:Q", scale=alt.Scale(domain=xdom, nice=False)), x2="x2:Q",
-        y=alt.Y("y:Q", scale=alt.Scale(domain=ydom, nice=False)), y2="y2:Q")
-    target_txt = alt.Chart(box).mark_text(align="right", baseline="bottom", dx=-6, dy=-4, color=TARGET_STROKE,
-                                          fontStyle="italic").encode(
-        x="x2:Q", y="y2:Q", text=alt.value("target region"))
-    layers = [target, target_txt]
+    layers = []
+    # the targets: dashed limits named at their ends, a check mark in the corner that meets them all
+    limits = []
+    for v, name in ((tmin, f"min {which if which == 'yield' else 'tensile'}"),
+                    (tmax, f"max {which if which == 'yield' else 'tensile'}")):
+        if v is not None:
+            limits.append({"y": float(to_display(v, "stress", system)), "t": f"{name} {to_display(v, 'stress', system):.4g}"})
+    if limits:
+        lf = pd.DataFrame(limits)
+        layers.append(alt.Chart(lf).mark_rule(color=LIMIT_COLOUR, strokeDash=[8, 4], strokeWidth=1.4)
+                      .encode(y=alt.Y("y:Q", scale=alt.Scale(domain=ydom, nice=False))))
+        layers.append(alt.Chart(lf.assign(xr=xdom[1])).mark_text(align="right", dx=-4, dy=-6, color=LIMIT_COLOUR,
+                                                                 fontSize=11)
+                      .encode(x=alt.X("xr:Q", scale=alt.Scale(domain=xdom, nice=False)), y="y:Q", text="t:N"))
+    if emin is not None:
+        ef = pd.DataFrame({"x": [float(emin)], "t": [f"min elongation {emin:.3g} %"]})
+        layers.append(alt.Chart(ef).mark_rule(color=LIMIT_COLOUR, strokeDash=[8, 4], strokeWidth=1.4)
+                      .encode(x=alt.X("x:Q", scale=alt.Scale(domain=xdom, nice=False))))
+        layers.append(alt.Chart(ef).mark_text(align="left", dx=4, dy=10, color=LIMIT_COLOUR, fontSize=11,
+                                              angle=0).encode(x="x:Q", y=alt.value(0), text="t:N"))
+    if limits or emin is not None:
+        corner = pd.DataFrame({"x": [xdom[1]], "y": [float(to_display(tmax, "stress", system)) if tmax is not None
+                                                     else ydom[1]], "t": ["✓ meets the targets"]})
+        layers.append(alt.Chart(corner).mark_text(align="right", baseline="top", dx=-6, dy=6, color=LIMIT_COLOUR,
+                                                  fontStyle="italic", fontSize=12)
+                      .encode(x=alt.X("x:Q", scale=alt.Scale(domain=xdom, nice=False)),
+                              y=alt.Y("y:Q", scale=alt.Scale(domain=ydom, nice=False)), text="t:N"))
+    # the scatter over composition and window: two thin dotted edges per candidate
     if len(reg):
-        layers.append(alt.Chart(reg).mark_area(line={"strokeWidth": 0.6}).encode(
-            opacity=alt.condition("datum.focus", alt.value(0.32), alt.value(0.06)),
-            x=alt.X("x:Q", scale=alt.Scale(domain=xdom, nice=False)), y=alt.Y("lo:Q", title=ytitle,
-                                                                              scale=alt.Scale(domain=ydom,
-                                                                                              nice=False)),
-            y2="hi:Q", color=colour, detail="label:N",
-            tooltip=[alt.Tooltip("label:N", title="candidate")]))
+        for edge in ("lo", "hi"):
+            layers.append(alt.Chart(reg).mark_line(strokeDash=[1.5, 2.5], interpolate="linear")
+                          .encode(x=x, y=alt.Y(f"{edge}:Q", title=ytitle, scale=alt.Scale(domain=ydom, nice=False)),
+                                  color=colour, detail="id:N",
+                                  strokeWidth=alt.condition("datum.focus", alt.value(1.4), alt.value(0.7)),
+                                  opacity=alt.condition("datum.focus", alt.value(0.9), alt.value(0.45)),
+                                  tooltip=[alt.Tooltip("label:N", title="candidate")]))
+    # the process paths, labelled with the parameter value
     if len(pth):
-        layers.append(alt.Chart(pth).mark_line(point=alt.OverlayMarkDef(size=14, filled=True))
-                      .encode(x=x, y=yy, order="order:Q", color=colour, detail="label:N",
-                              strokeWidth=alt.condition("datum.focus", alt.value(2.6), alt.value(0.9)),
-                              opacity=alt.condition("datum.focus", alt.value(1.0), alt.value(0.45)),
+        layers.append(alt.Chart(pth).mark_line()
+                      .encode(x=x, y=yy, order="order:Q", color=colour, detail="id:N",
+                              strokeWidth=alt.condition("datum.focus", alt.value(3.2), alt.value(1.3)),
+                              opacity=alt.condition("datum.focus", alt.value(1.0), alt.value(0.6)),
                               tooltip=[alt.Tooltip("label:N", title="candidate"),
                                        alt.Tooltip("param:Q", title="process value", format=".4g"),
                                        alt.Tooltip("x:Q", title="elongation %", format=".1f"),
                                        alt.Tooltip("y:Q", title=su, format=".4g")]))
-        layers.append(alt.Chart(pth[pth["text"] != ""]).mark_text(dx=8, dy=-6, fontSize=11, align="left",
-                                                                  fontWeight="bold")
+        layers.append(alt.Chart(pth[pth["text"] != ""]).mark_text(dx=6, dy=8, fontSize=10, align="left")
                       .encode(x=x, y=yy, text="text:N", color=colour))
-    shape = alt.Shape("set:N", title="", scale=alt.Scale(domain=["Pareto set", "meets targets"],
-                                                        range=["diamond", "triangle-down"]))
-    layers.append(alt.Chart(pts).mark_point(size=150, filled=True, stroke="#222222", strokeWidth=1.0)
-                  .encode(x=x, y=yy, shape=shape, color=colour,
-                          fillOpacity=alt.condition("datum.set == 'Pareto set'", alt.value(1.0), alt.value(0.25)),
+    # the chosen states: squares, filled for the Pareto set, labelled directly
+    layers.append(alt.Chart(pts).mark_point(shape="square", size=110, strokeWidth=1.8)
+                  .encode(x=x, y=yy, color=colour,
+                          fill=alt.condition("datum.set == 'Pareto set'", colour, alt.value("white")),
                           tooltip=[alt.Tooltip("label:N", title="candidate"), alt.Tooltip("route:N"),
                                    alt.Tooltip("window:N"), alt.Tooltip("set:N", title="status"),
                                    alt.Tooltip("x:Q", title="elongation %", format=".1f"),
                                    alt.Tooltip("y:Q", title=su, format=".4g"),
                                    alt.Tooltip("cost:Q", title="relative cost/kg", format=".2f")]))
-    layers.append(alt.Chart(pts).mark_text(dx=0, dy=-13, fontWeight="bold", fontSize=11)
-                  .encode(x=x, y=yy, text="id:N", color=colour))
+    layers.append(alt.Chart(pts).mark_text(align="left", dx=8, dy=-8, fontWeight="bold", fontSize=11)
+                  .encode(x=x, y=yy, text="tag:N", color=colour))
     if picked is not None and (pts["id"] == picked).any():
-        layers.append(alt.Chart(pts[pts["id"] == picked]).mark_point(size=600, shape="circle", filled=False,
-                                                                     strokeWidth=2.2, color="#111111")
+        layers.append(alt.Chart(pts[pts["id"] == picked]).mark_point(shape="cross", size=520, filled=False,
+                                                                     strokeWidth=1.6, color="#111111")
                       .encode(x=x, y=yy))
-    return alt.layer(*layers).properties(height=height).resolve_scale(color="shared")
+    return alt.layer(*layers).properties(height=height)
 
 
 def profile_frame(profiles: Mapping[str, list], system: str) -> pd.DataFrame:

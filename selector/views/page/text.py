@@ -8,6 +8,7 @@ from typing import Mapping, Sequence
 import pandas as pd
 from selector.catalogue.supply import CONDITIONS
 from selector.errors import SelectorError
+from selector.routes import families
 from selector.rules.cautions import AVOID_CODES
 from selector.rules.cautions import CAUTIONS
 from selector.rules.cautions import cautions_for
@@ -21,10 +22,14 @@ CAUTION_COLUMNS = ("grade", "family", "route_family", "quench", "temper_temp_c",
 
 # --------------------------------------------------------------------------- candidate labels
 
-ROUTE_SHORT = {"quench_temper": "harden+temper", "carburize": "carburize", "nitride": "nitride",
-               "induction": "induction", "cold_work": "cold work", "age": "solution+age",
-               "anneal": "anneal", "normalize": "normalize", "supply": "bar as supplied",
-               "supply_induction": "bought bar + induction", "supply_nitride": "bought bar + nitride"}
+def family_label(name: str) -> str:
+    """The route family's own label (``harden + temper``), from the library's registry
+    of families; a name the registry does not model reads as its words."""
+    try:
+        return families.get(name).label or name.replace("_", " ")
+    except SelectorError:
+        return str(name).replace("_", " ")
+
 
 PARAM_LABELS = {"temper_temp_c": "tempering temperature", "hours": "time at temperature",
                 "reduction_pct": "cold reduction", "age_temp_c": "aging temperature",
@@ -59,7 +64,7 @@ def label_candidates(cand: pd.DataFrame) -> pd.DataFrame:
     short route name) to a candidates table."""
     out = cand.reset_index(drop=True).copy()
     out.insert(0, "id", [f"C{i + 1}" for i in range(len(out))])
-    out["label"] = [f"{i} {g} · {ROUTE_SHORT.get(r, r)}{_variant_extra(row)}"
+    out["label"] = [f"{i} {g} · {family_label(r)}{_variant_extra(row)}"
                     for i, g, r, (_, row) in zip(out["id"], out["grade"], out["route_family"], out.iterrows())]
     return out
 
@@ -203,7 +208,7 @@ def pick_label(grade: str, route_family: str) -> str:
     """``4140 · harden+temper`` (or ``no robust candidate``)."""
     if not grade:
         return "no robust candidate"
-    return f"{grade} · {ROUTE_SHORT.get(route_family, route_family)}"
+    return f"{grade} · {family_label(route_family)}"
 
 
 
