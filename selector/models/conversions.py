@@ -45,7 +45,17 @@ from . import validity
 
 REFERENCE = "ASTM E140-12b Table 1"
 FILE = "hardness_conversions.csv"
-KSI_TO_MPA = 6.895
+#: 1 ksi in MPa: 1 lbf (4.448 221 615 260 5 N, exact) per square inch (25.4 mm, exact), NIST SP 811
+#: (2008) Appendix B.8 and B.9.  The one ksi constant of the package: views and tests use it.
+MPA_PER_KSI = 4.4482216152605e3 / 25.4**2
+#: kept name of :data:`MPA_PER_KSI` (the same number)
+KSI_TO_MPA = MPA_PER_KSI
+#: 1 in = 25.4 mm, exact (NIST SP 811 (2008) Appendix B.8, 'inch')
+MM_PER_IN = 25.4
+#: 1 lbf = 4.448 221 615 260 5 N, exact (NIST SP 811 (2008) Appendix B.9, 'pound-force')
+N_PER_LBF = 4.4482216152605
+#: 1 lb = 0.453 592 37 kg, exact (NIST SP 811 (2008) Appendix B.8, 'pound (avoirdupois)')
+KG_PER_LB = 0.45359237
 
 _SCHEMA = Schema((
     Column("table", "choice", choices=("E140_T1", "E140_T2")),
@@ -216,7 +226,7 @@ def hv_to_uts_mpa(hardness_hv):
     """Approximate tensile strength (MPa) from Vickers hardness (ASTM A370 Table 3).
 
     UTS = linear interpolation of the tensile strengths tabulated beside E140
-    hardness values (ksi × 6.895).
+    hardness values (the table's own MPa column, rounded from ksi × 6.895).
 
     Parameters
     ----------
