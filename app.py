@@ -110,8 +110,8 @@ with st.sidebar:
     st.radio("Units", pg.UNIT_SYSTEMS, key="units", horizontal=True, on_change=_units_changed,
              help="SI: MPa, mm, °C.  US customary: ksi, in, °F.  The library computes in SI.")
     st.radio("Hardness scale", pg.HARDNESS_SCALES, key="hardness_scale", horizontal=True,
-             help="One scale in every view: Rockwell C (ASTM E18) or Vickers (ASTM E92); converted on the "
-                  "steel table of ASTM E140 by the library.")
+             help="One scale in every view: Rockwell C (ASTM E18), Brinell (ASTM E10) or Vickers (ASTM E92); "
+                  "HRC and HB from the library's HV on the steel table of ASTM E140.")
     system = ss["units"]
     hs = ss.get("hardness_scale", "HRC")
     su, lu = pg.unit("stress", system), pg.unit("length", system)
@@ -361,7 +361,7 @@ def candidate_view(cand, states):
             st.info("This route has no main process parameter to vary.")
     with c2:
         if ev.get("profile"):
-            pfr = pg.profile_frame({row["label"]: ev["profile"]}, system)
+            pfr = pg.profile_frame({row["label"]: ev["profile"]}, system, {row["label"]: row["family"]})
             st.altair_chart(pg.profile_chart(pfr, system, [row["label"]], scale=hs), width="stretch")
         else:
             st.info("This route family reports no hardness profile across the section.")
@@ -394,21 +394,22 @@ def comparison_view(cand):
     sub = cand[cand["variant"].isin(chosen)]
     cids = list(sub["id"])
     lab = list(sub["label"])
-    st.dataframe(pg.comparison_table(cand, cids, system), width="stretch")
-    frame = pg.comparison_frame(cand, cids, system)
+    st.dataframe(pg.comparison_table(cand, cids, system, hs), width="stretch")
+    frame = pg.comparison_frame(cand, cids, system, hs)
     b1, b2 = st.columns(2)
     b1.altair_chart(pg.comparison_bars(frame, f"strength ({su})", lab, legend=True), width="stretch")
     b2.altair_chart(pg.comparison_bars(frame, "relative cost", lab, legend=True), width="stretch")
     b3, b4 = st.columns(2)
     b3.altair_chart(pg.comparison_bars(frame, "elongation (%)", lab, height=200), width="stretch")
-    b4.altair_chart(pg.comparison_bars(frame, "hardness (HRC)", lab, height=200), width="stretch")
+    b4.altair_chart(pg.comparison_bars(frame, f"hardness ({hs})", lab, height=200), width="stretch")
     profiles = {}
     for _, r in sub.iterrows():
         ev = pg.cached_evaluate(r["grade"], pg.route_json(r["route"]), d_si, t_si)
         if ev.get("profile"):
             profiles[r["label"]] = ev["profile"]
     if profiles:
-        st.altair_chart(pg.profile_chart(pg.profile_frame(profiles, system), system, list(profiles),
+        st.altair_chart(pg.profile_chart(pg.profile_frame(profiles, system, dict(zip(sub["label"], sub["family"]))), system,
+                                         list(profiles),
                                          title="Hardness across the section (shared axes)", scale=hs,
                                          colours=[pg.COMPARE_COLOURS[lab.index(k)] for k in profiles]),
                         width="stretch")
@@ -769,7 +770,10 @@ elif cand is not None:
                    f"edges bound its scatter over the composition range and the window; colour: route family; "
                    f"■ Pareto set, □ other candidates, each at its chosen state; dashed: the targets.  "
                    f"Top {len(top)} of {len(cand)} drawn.")
-        table = pg.display_table(cand.drop(columns=["label"]), system)
+        st.toggle("All columns", key="all_columns",
+                  help="Every column of the library's table after the readable ones: internal names, full "
+                       "precision, the route steps as JSON (docs/columns.md).")
+        table = pg.display_table(cand, system, hs, all_columns=bool(ss.get("all_columns")))
         st.dataframe(table, width="stretch", hide_index=True, key="candidates")
         st.download_button("Download the table (CSV)", pg.to_csv(table), file_name="candidates.csv",
                            mime="text/csv", key="download")

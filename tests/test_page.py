@@ -21,6 +21,8 @@ from selector.selection.engine import alternatives, prepare, rank
 from selector.views import page as pg
 
 APP = str(Path(__file__).resolve().parents[1] / "app.py")
+#: MPa per ksi: 1000 lbf / in^2, both exact (NIST SP 811 (2008), Appendix B.8 and B.9)
+KSI = 4448.2216152605 / 25.4 ** 2
 TIMEOUT = 120
 
 
@@ -35,7 +37,21 @@ def at():
     return _run(AppTest.from_file(APP, default_timeout=TIMEOUT))
 
 
+def _readable(at) -> pd.DataFrame | None:
+    """The candidate table as shown by default (readable columns)."""
+    for df in at.dataframe:
+        if "process route" in df.value.columns and "p_meet (%)" in df.value.columns:
+            return df.value
+    return None
+
+
 def _table(at) -> pd.DataFrame | None:
+    """The candidate table with every column of the library (the page's "All columns" switch on)."""
+    if _readable(at) is None:
+        return None
+    if not at.toggle(key="all_columns").value:
+        at.toggle(key="all_columns").set_value(True)
+        _run(at)
     for df in at.dataframe:
         v = df.value
         if "route_text" in v.columns and "pareto" in v.columns:
@@ -219,14 +235,14 @@ def test_us_units_convert_inputs_and_table(at):
     _run(at)
     # the inputs follow the unit switch (MPa -> ksi, mm -> in, °C -> °F)
     d = pg.DEMO
-    assert at.number_input(key="min_yield").value == pytest.approx(d["targets"]["min_yield_mpa"] / 6.894757,
+    assert at.number_input(key="min_yield").value == pytest.approx(d["targets"]["min_yield_mpa"] / KSI,
                                                                    abs=0.001)
     assert at.number_input(key="diameter").value == pytest.approx(d["diameter_mm"] / 25.4, abs=0.0001)
     if d["service"].get("service_temp_c") is not None:
         assert at.number_input(key="service_temp").value == pytest.approx(
             d["service"]["service_temp_c"] * 9 / 5 + 32, abs=0.1)
     us = _table(at)
-    assert "yield_ksi" in us.columns and "yield_mpa" not in us.columns
+    assert "yield_ksi" in us.columns and "yield_mpa" not in us.columns and "yield (ksi)" in us.columns
     assert "case_depth_in" in us.columns and "uts_ksi" in us.columns
     # the library got the inputs back in SI, and the table shows its result in US units
     keys = ["diameter", "length"] + [w for w, _, _ in pg.TARGET_FIELDS.values()]
@@ -240,15 +256,18 @@ def test_us_units_convert_inputs_and_table(at):
     # (routes with a temperature: a bar bought as supplied has none)
     with_temp = ref["route_text"].str.contains("°C").to_numpy()
     assert with_temp.any()
-    assert us.loc[with_temp, "route_text"].str.contains("°F").all() and not us["route_text"].str.contains("°C").any()
-    assert pg.route_line([{"op": "temper", "temp_c": 540.0, "hours": 2.0}], pg.US) == "Temper at 1004 °F, for 2 h"
-    np.testing.assert_allclose(us["yield_ksi"], ref["yield_mpa"] / 6.894757, rtol=1e-12)
+    words = us["process route"]
+    assert words[with_temp].str.contains("°F").all() and not words.str.contains("°C").any()
+    # 540 °C = 1004 °F, written to the 10 °F step of a furnace set point
+    assert "1000 °F" in pg.route_line([{"op": "temper", "temp_c": 540.0, "hours": 2.0}], pg.US)
+    np.testing.assert_allclose(us["yield_ksi"], ref["yield_mpa"] / (4448.2216152605 / 25.4 ** 2), rtol=1e-12)
     np.testing.assert_allclose(us["case_depth_in"], ref["case_depth_mm"] / 25.4, rtol=1e-12)
     # rows with a window (a candidate with an avoid caution has none)
     qt = ((ref["window_parameter"] == "temper_temp_c") & ref["window_min"].notna()).to_numpy()
     assert qt.any()
     np.testing.assert_allclose(us.loc[qt, "window_min"], ref.loc[qt, "window_min"] * 9 / 5 + 32, rtol=1e-12)
-    assert us.loc[qt, "window"].str.contains("°F").all() and not us.loc[qt, "window"].str.contains("°C").any()
+    shown = us.loc[qt, "process window"]
+    assert shown.str.contains("°F").all() and not shown.str.contains("°C").any()
     # and back
     at.radio(key="units").set_value(pg.SI)
     _run(at)
@@ -330,7 +349,7 @@ def test_band_text_converts_units():
     ev = {"yield_mpa_lo": 689.476, "yield_mpa_hi": 827.371, "hardness_hrc_lo": 30.0, "hardness_hrc_hi": 36.0}
     si, us = pg.band_text(ev, pg.SI), pg.band_text(ev, pg.US)
     assert "yield 689–827 MPa" in si and "hardness 30.0–36.0 HRC" in si
-    assert "yield 100–120 ksi" in us            # 689.476 MPa = 100 ksi (1 ksi = 6.894757 MPa)
+    assert "yield 100–120 ksi" in us            # 689.476 MPa = 100 ksi (1 ksi = 6.894757 MPa, NIST SP 811)
 
 
 def test_comparison_defaults_to_through_and_case_hardened(at):
@@ -345,8 +364,9 @@ def test_comparison_defaults_to_through_and_case_hardened(at):
 # --------------------------------------------------------------------------- pure helpers
 
 def test_unit_conversions():
-    # 1 ksi = 6.894757 MPa (NIST SP 811 (2008), Appendix B.8)
-    assert pg.to_display(6.894757, "stress", pg.US) == pytest.approx(1.0, rel=1e-12)
+    # 1 ksi = 4448.2216152605 / 25.4^2 MPa exactly (NIST SP 811 (2008), Appendix B.8, B.9)
+    ksi = 4448.2216152605 / 25.4 ** 2     # 1 ksi = 1000 lbf / in^2, both exact (NIST SP 811 (2008), B.8, B.9)
+    assert pg.to_display(ksi, "stress", pg.US) == pytest.approx(1.0, rel=1e-12)
     assert pg.to_display(25.4, "length", pg.US) == pytest.approx(1.0, rel=1e-12)      # exact by definition
     assert pg.to_display(100.0, "temperature", pg.US) == pytest.approx(212.0, abs=1e-9)
     assert pg.to_display(-40.0, "temperature", pg.US) == pytest.approx(-40.0, abs=1e-9)
@@ -526,10 +546,10 @@ def test_pin_section_in_us_units(at):
                                lug_thickness_mm=at.number_input(key="pin_lug").value * 25.4,
                                clevis_thickness_mm=at.number_input(key="pin_clevis").value * 25.4,
                                wear_surface_hardness_hrc=d["wear_surface_hardness_hrc"])
-    assert at.number_input(key="min_yield").value == pytest.approx(ref["min_yield_mpa"] / 6.894757, rel=1e-9)
+    assert at.number_input(key="min_yield").value == pytest.approx(ref["min_yield_mpa"] / KSI, rel=1e-9)
     # the rounding of the unit switch moves the demo target by less than 0.1 %
     assert ref["min_yield_mpa"] == pytest.approx(pg.DEMO["targets"]["min_yield_mpa"], rel=1e-3)
-    assert _metric(at, "Min yield (ksi)") == f"{ref['min_yield_mpa'] / 6.894757:.4g}"
+    assert _metric(at, "Min yield (ksi)") == f"{ref['min_yield_mpa'] / KSI:.4g}"
     assert not _errors(at)
     # the listed sweep diameters follow the switch (inch, 4 significant digits)
     listed, msg = pg.parse_lengths(at.text_input(key="sweep_list").value, pg.US)
@@ -540,7 +560,7 @@ def test_pin_section_in_us_units(at):
 def test_sweep_table_and_chart_in_display_units():
     route = [{"op": "harden", "austenitize_c": 845.0, "quench": "oil"},
              {"op": "temper", "temp_c": 540.0, "hours": 2.0}]
-    sw = pd.DataFrame({"diameter_mm": [25.4, 50.8, 76.2], "min_yield_mpa": [6.894757 * 100, 6.894757 * 50, 200.0],
+    sw = pd.DataFrame({"diameter_mm": [25.4, 50.8, 76.2], "min_yield_mpa": [KSI * 100, KSI * 50, 200.0],
                        "min_uts_mpa": [300.0, 200.0, 100.0], "min_surface_hardness_hrc": np.nan,
                        "governing": "bending", "n_robust": [3, 5, 0], "grade": ["4140", "1045", ""],
                        "family": ["alloy_steel", "carbon_steel", ""], "route_family": ["quench_temper", "induction", ""],
@@ -551,11 +571,13 @@ def test_sweep_table_and_chart_in_display_units():
                        "changed": [False, True, True], "cautions": ["", "", ""],
                        "route": [json.dumps(route), "", ""]})
     us = pg.sweep_table(sw, pg.US)
-    # 1 in = 25.4 mm, 1 ksi = 6.894757 MPa (NIST SP 811 (2008), Appendix B.8)
+    # 1 in = 25.4 mm, 1 ksi = 4448.2216152605 / 25.4^2 MPa exactly (NIST SP 811 (2008), Appendix B.8, B.9)
     np.testing.assert_allclose(us["diameter_in"], [1.0, 2.0, 3.0], rtol=1e-12)
     np.testing.assert_allclose(us["min_yield_ksi"][:2], [100.0, 50.0], rtol=1e-12)
     assert "diameter_mm" not in us and "yield_ksi" in us
-    assert us["route_text"][0] == "Austenitize and quench from 1553 °F, quench in oil → Temper at 1004 °F, for 2 h"
+    # 845 °C = 1553 °F and 540 °C = 1004 °F, written to the 10 °F step of a furnace set point
+    assert "1550 °F" in us["route_text"][0] and "1000 °F" in us["route_text"][0] and "oil" in us["route_text"][0]
+    assert "°C" not in us["route_text"][0]
     assert us["route_text"][1] == "x"                 # no steps kept: the library's text
     si = pg.sweep_table(sw, pg.SI)
     assert list(si.columns) == [c for c in pg.SWEEP_SHOWN]
@@ -685,7 +707,7 @@ def test_settings_line_names_every_setting_in_force(at):
     _run(at)
     line = _in_force(at)
     assert "families: alloy steel, carbon steel" in line and "corrosion-resistant only" in line
-    assert f"yield ≥ {d['targets']['min_yield_mpa'] / 6.894757:.4g} ksi" in line and "°F" in line and "US customary" in line
+    assert f"yield ≥ {d['targets']['min_yield_mpa'] / KSI:.4g} ksi" in line and "°F" in line and "US customary" in line
 
 
 def test_new_part_clears_everything_and_the_example_is_loaded_on_purpose(at):
@@ -820,3 +842,35 @@ def test_use_these_targets_prefills_side_by_side_with_through_and_case_hardened(
     first_through = next(i for i in range(len(table)) if depth[i] <= 0)
     first_case = next(i for i in range(len(table)) if depth[i] > 0)
     assert chosen == [table["variant"].iloc[first_through], table["variant"].iloc[first_case]]
+
+
+def test_default_columns_are_readable_and_all_columns_are_behind_a_switch(at):
+    from selector.views.columns import default_headers
+
+    shown = _readable(at)
+    assert shown is not None and len(shown) > 0
+    headers = [h for h in default_headers(pg.SI, "HRC") if h in shown.columns]
+    assert list(shown.columns) == ["id"] + headers + ["material / kg", "processing / kg"]
+    for h in ("grade", "process route", "yield (MPa)", "tensile (MPa)", "elongation (%)", "hardness (HRC)",
+              "surface hardness (HRC)", "case depth (mm)", "part cost (relative)", "p_meet (%)", "process window"):
+        assert h in shown.columns, h
+    assert not {"route_family", "route", "route_text", "window_min", "variant"} & set(shown.columns)
+    # rounded to the precision the models carry: strengths to 5 MPa, elongation to 0.5 %
+    assert (shown["yield (MPa)"] % 5 == 0).all() and ((shown["elongation (%)"] * 2) % 1 == 0).all()
+    # a zero case depth reads as words, never 0
+    full = _table(at)
+    assert list(full["id"]) == list(shown["id"])
+    no_case = full["case_depth_mm"].astype(float).fillna(0.0).to_numpy() <= 0
+    assert no_case.any() and (~no_case).any()
+    assert shown.loc[no_case, "case depth (mm)"].isin(["through-hardened", "no case"]).all()
+    hardened = full["route_family"].isin(["quench_temper"]).to_numpy() & no_case
+    assert (shown.loc[hardened, "case depth (mm)"] == "through-hardened").all()
+    # the switch adds every internal column after the readable ones
+    assert {"route_family", "route", "route_text", "window_min", "relative_price"} <= set(full.columns)
+    assert list(full.columns[:len(shown.columns) - 2]) == list(shown.columns[:-2])
+    # in US units the headers carry US units
+    at.toggle(key="all_columns").set_value(False)
+    at.radio(key="units").set_value(pg.US)
+    _run(at)
+    us = _readable(at)
+    assert "yield (ksi)" in us.columns and "case depth (in)" in us.columns and "yield (MPa)" not in us.columns

@@ -16,8 +16,9 @@ The names below are the page's public helpers (``from selector.views import page
 Results are estimates for preliminary selection; see :data:`selector.CAUTION`.
 """
 
-from .units import (  # noqa: F401
-    SI, UNIT_INPUTS, UNIT_SYSTEMS, US, convert_inputs, si_key, to_display, to_si, unit)
+from .units import DIGITS, UNIT_INPUTS, convert_inputs, si_key  # noqa: F401
+from selector.views.units import (  # noqa: F401
+    HARDNESS_SCALES, SI, UNIT_SYSTEMS, US, display_name, quantity_of, to_display, to_si, unit)
 from .inputs import (  # noqa: F401
     read_route_steps, blank_inputs, demo_title, example_inputs, DEFER_NOTICE, DEMO, ENVIRONMENTS, LOAD_MODEL_LABELS, PIN_INPUT_KEYS, PIN_TARGET_KEYS,
     SHEAR_PLANE_LABELS, SWEEP_LABELS, SWEEP_MODES, SWEEP_SECONDS_PER_DIAMETER, TARGET_FIELDS,
@@ -26,7 +27,7 @@ from .inputs import (  # noqa: F401
     read_price_sheet, route_json, service_context, si_targets, sweep_diameters, targets_from_inputs,
     targets_key)
 from .text import (  # noqa: F401
-    HARDNESS_SCALES, case_text, hardness_text, first_through_and_case, pin_target_explanations, prices_in_use, settings_line, avoid_rule_label, avoid_rules, band_text, candidate_cautions, label_candidates, percent, pick_label,
+    case_text, hardness_text, first_through_and_case, pin_target_explanations, prices_in_use, settings_line, avoid_rule_label, avoid_rules, band_text, candidate_cautions, label_candidates, percent, pick_label,
     ranking_summary, route_line, route_steps, to_csv)
 from .tables import (  # noqa: F401
     alternatives_table, SWEEP_SHOWN, capacity_table, comparison_table, display_table, fmt_window, miss_table,

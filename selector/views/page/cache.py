@@ -15,6 +15,7 @@ from selector.design.sweep_routes import diameter_sweep_routes
 from selector.selection import engine
 from selector.selection.cost_split import split_cost
 
+
 # --------------------------------------------------------------------------- cached library calls
 
 def _prices(price_items) -> dict | None:

@@ -10,12 +10,15 @@ from typing import Mapping, Sequence
 import altair as alt
 import numpy as np
 import pandas as pd
+
 from selector.catalogue.grades import default_catalogue
 from selector.routes.families import austemper as bath
 from selector.selection.targets import NUMERIC_TARGETS
+from selector.routes.evaluate import scale_hardness
+from selector.views.units import display_name, quantity_of, to_display, unit
 
 from .text import family_label, param_label, param_unit, percent, pick_label, route_line
-from .units import display_name, quantity_of, to_display, unit
+
 
 PALETTE = ["#1b6f8a", "#c2571a", "#5b8c2a", "#8e3b74", "#b3922b", "#3f4fa3", "#a8323e", "#2f8f7b",
            "#6b5a3e", "#d07fa8", "#4d7ea8", "#7c8a1f", "#9b5fc0", "#c0873f", "#355c4a"]
@@ -242,16 +245,22 @@ def strength_elongation_chart(frames: dict, targets: Mapping, y: str, system: st
     return alt.layer(*layers).properties(height=height)
 
 
-def profile_frame(profiles: Mapping[str, list], system: str) -> pd.DataFrame:
+def profile_frame(profiles: Mapping[str, list], system: str, families: Mapping[str, str] | None = None
+                  ) -> pd.DataFrame:
     """Long frame of hardness profiles: ``label -> evaluate()["profile"]`` to columns
-    ``label, depth, r_over_R, hardness_hv, hardness_hrc`` (depth in display units)."""
+    ``label, depth, r_over_R, hardness_hv, hardness_hrc, hardness_hb`` (depth in display
+    units; HB from the profile's HV on the ASTM E140 steel table of the library,
+    :func:`selector.routes.evaluate.scale_hardness`, given each label's grade family)."""
     rows = []
     for label, prof in profiles.items():
         for p in prof or []:
             rows.append({"label": label, "depth": to_display(p["depth_mm"], "length", system),
                          "r_over_R": p["r_over_R"], "hardness_hv": p["hardness_hv"],
                          "hardness_hrc": p.get("hardness_hrc")})
-    return pd.DataFrame(rows, columns=["label", "depth", "r_over_R", "hardness_hv", "hardness_hrc"])
+    out = pd.DataFrame(rows, columns=["label", "depth", "r_over_R", "hardness_hv", "hardness_hrc"])
+    fam = np.array([(families or {}).get(lab, "") for lab in out["label"]], dtype=object)
+    out["hardness_hb"] = scale_hardness(out["hardness_hv"].to_numpy(float), fam)["hb"] if len(out) else []
+    return out
 
 
 def profile_chart(frame: pd.DataFrame, system: str, labels: Sequence[str] | None = None,
@@ -372,17 +381,20 @@ def parameter_charts(frame: pd.DataFrame, param: str, window: tuple, robust_wind
     return panels
 
 
-def comparison_frame(cand: pd.DataFrame, ids: Sequence[str], system: str) -> pd.DataFrame:
+def comparison_frame(cand: pd.DataFrame, ids: Sequence[str], system: str, hardness: str = "HRC") -> pd.DataFrame:
     """Properties of the chosen candidates in long form for the shared-axis bars:
-    ``label, group, quantity, value`` (strengths in display units)."""
+    ``label, group, quantity, value`` (strengths in display units, hardness in the
+    view's scale; the cost split into material and processing per kg where present)."""
     sub = cand[cand["id"].isin(list(ids))]
     rows = []
-    su = unit("stress", system)
+    su, hs = unit("stress", system), hardness.lower()
     for _, r in sub.iterrows():
         for col, qty, group in (("yield_mpa", "yield", f"strength ({su})"), ("uts_mpa", "tensile", f"strength ({su})"),
                                 ("elongation_pct", "elongation", "elongation (%)"),
-                                ("hardness_hrc", "hardness", "hardness (HRC)"),
-                                ("surface_hardness_hrc", "surface hardness", "hardness (HRC)"),
+                                (f"hardness_{hs}", "hardness", f"hardness ({hardness})"),
+                                (f"surface_hardness_{hs}", "surface hardness", f"hardness ({hardness})"),
+                                ("material_cost_per_kg", "material / kg", "relative cost"),
+                                ("processing_cost_per_kg", "processing / kg", "relative cost"),
                                 ("relative_cost", "per kg", "relative cost"),
                                 ("part_cost", "per part", "relative cost")):
             v = r.get(col)

@@ -10,19 +10,19 @@ import math
 from typing import Mapping, Sequence
 
 import selector
-from selector.catalogue.grades import FAMILIES
-from selector.errors import DataFileError, InputError, SelectorError, safe_repr
 from selector import studies
+from selector.catalogue.grades import FAMILIES
 from selector.catalogue.heat import parse_heat_text
-from selector.design.pins import DEMO_CASE, DEMO_PIN_KEYS, pin_targets
-from selector.design.pins import pin_report
-from selector.design.sweep import diameter_range
-from selector.design.sweep import pin_length_mm
+from selector.design.pins import DEMO_CASE, DEMO_PIN_KEYS, pin_report, pin_targets
+from selector.design.sweep import diameter_range, pin_length_mm
+from selector.errors import DataFileError, InputError, safe_repr, SelectorError
 from selector.inputs import MAX_RANGE_VALUES
 from selector.rules.cautions import check_context
 from selector.views.cli import parse_step_text
+from selector.views.units import SI, US, to_display, to_si, unit
 
-from .units import DIGITS, SI, US, si_key, to_display, to_si, unit
+from .units import DIGITS, si_key
+
 
 # --------------------------------------------------------------------------- demo
 

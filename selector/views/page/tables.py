@@ -8,9 +8,12 @@ from typing import Mapping, Sequence
 import numpy as np
 import pandas as pd
 
+from selector.views.columns import all_columns_view, default_view
+from selector.views.units import SI, US, display_name, quantity_of, significant, to_display, unit
+
 from .inputs import FIELD_LABELS, route_json
-from .text import param_label, param_unit, route_line
-from .units import SI, US, display_name, quantity_of, to_display, unit
+from .text import case_text, hardness_text, param_label, param_unit, route_line
+
 
 # --------------------------------------------------------------------------- table for display
 
@@ -26,76 +29,51 @@ def fmt_window(lo, hi, param, system) -> str:
     return f"{param_label(param)} {lo:.4g} {u} only".strip()
 
 
-def _convert_ranges(text, param, system) -> str:
-    """``"200–250; 380–560"`` of a parameter in SI -> the same ranges in display units."""
-    q = quantity_of(param) if param else None
-    if not isinstance(text, str) or not text or not q:
-        return text if isinstance(text, str) else ""
-    out = []
-    for part in text.split("; "):
-        nums = [f"{float(to_display(float(v), q, system)):.4g}" for v in part.split("–")]
-        out.append("–".join(nums))
-    return "; ".join(out) + f" {param_unit(param, system)}"
+def display_table(cand: pd.DataFrame, system: str, hardness: str | None = None,
+                  all_columns: bool = False) -> pd.DataFrame:
+    """The candidates as the page shows them, led by the page's ``id`` (C1, C2 … as on the map).
+
+    By default the readable columns of :func:`selector.views.columns.default_view`
+    (plain names with units, rounded to the models' precision, the route in words in
+    ``system``'s units, ``through-hardened`` instead of a zero case depth, hardness in
+    the view's scale), followed by the material and processing cost per kg
+    (:mod:`selector.selection.cost_split`).  With ``all_columns`` every column of the
+    library's table follows (:func:`~selector.views.columns.all_columns_view`: internal
+    names and full precision, converted and renamed to ``system``'s units), the route
+    steps as JSON text."""
+    df = cand.drop(columns=[c for c in ("label",) if c in cand.columns])
+    view = all_columns_view(df, system, hardness) if all_columns else default_view(df, system, hardness)
+    view = view.drop(columns=[c for c in ("id",) if c in view.columns])
+    view.insert(0, "id", list(cand["id"]) if "id" in cand else [f"C{i + 1}" for i in range(len(cand))])
+    if not all_columns:
+        for col, header in (("material_cost_per_kg", "material / kg"), ("processing_cost_per_kg", "processing / kg")):
+            if col in cand:
+                view[header] = [significant(v, 3) for v in cand[col].to_numpy(float)]
+    if "route" in view:
+        view["route"] = [route_json(r) if isinstance(r, (list, tuple)) else str(r) for r in view["route"]]
+    for col in view.columns:       # a column of numbers and words (case depth or "through-hardened") as text
+        vals = view[col].tolist()
+        if view[col].dtype == object and any(isinstance(v, str) for v in vals) \
+                and any(isinstance(v, (int, float)) and not isinstance(v, bool) for v in vals):
+            view[col] = [v if isinstance(v, str) else ("" if v != v else f"{v:g}") for v in vals]
+    return view.reset_index(drop=True)
 
 
-def display_table(cand: pd.DataFrame, system: str) -> pd.DataFrame:
-    """The candidates with the columns of ``select`` in the display units (headers
-    renamed, e.g. ``yield_ksi``); the route as JSON text; the window columns
-    converted row by row according to their parameter."""
-    df = cand.copy()
-    if system == US and "route" in df:
-        df["route_text"] = [route_line(r, system) if isinstance(r, (list, tuple)) else t
-                            for r, t in zip(df["route"], df["route_text"])]
-    if "route" in df:
-        df["route"] = [route_json(r) if isinstance(r, (list, tuple)) else str(r) for r in df["route"]]
-    if system == US and "window_parameter" in df:
-        params = df["window_parameter"].astype(str).tolist()
-        if "window_min" in df and "window_max" in df:
-            df["window"] = [fmt_window(lo, hi, p, system) for lo, hi, p in zip(df["window_min"], df["window_max"],
-                                                                                   params)]
-            if "feasible_min" in df:
-                none = (df["window_min"].isna() & df["feasible_min"].notna()).to_numpy()
-                for i in np.flatnonzero(none):
-                    feas = fmt_window(df["feasible_min"].iloc[i], df["feasible_max"].iloc[i], params[i], system)
-                    df.iloc[i, df.columns.get_loc("window")] = (
-                        f"none clear of avoid cautions (targets met at {feas})")
-        df["window_unit"] = [param_unit(p, system) for p in params]
-        if "sub_windows" in df:
-            df["sub_windows"] = [_convert_ranges(txt, p, system) for txt, p in zip(df["sub_windows"], params)]
-        for col in ("main_value", "window_min", "window_max", "robust_window_min", "robust_window_max",
-                    "feasible_min", "feasible_max"):
-            if col not in df:
-                continue
-            vals = df[col].to_numpy(float).copy()
-            for i, p in enumerate(params):
-                q = quantity_of(p)
-                if q and vals[i] == vals[i]:
-                    vals[i] = to_display(vals[i], q, system)
-            df[col] = vals
-    if "p_meet" in df:
-        pos = list(df.columns).index("p_meet")
-        df.insert(pos + 1, "p_meet_pct", (100.0 * df["p_meet"].to_numpy(float)).round(1))
-    rename = {}
-    for col in df.columns:
-        q = quantity_of(col)
-        if q and system == US and pd.api.types.is_numeric_dtype(df[col]):
-            df[col] = to_display(df[col].to_numpy(float), q, system)
-            rename[col] = display_name(col, system)
-    return df.rename(columns=rename)
-
-
-def comparison_table(cand: pd.DataFrame, ids: Sequence[str], system: str) -> pd.DataFrame:
-    """One column per chosen candidate, one row per property, in display units."""
+def comparison_table(cand: pd.DataFrame, ids: Sequence[str], system: str, hardness: str = "HRC") -> pd.DataFrame:
+    """One column per chosen candidate, one row per property, in display units and the
+    view's hardness scale; the case in words where there is none."""
     sub = cand.set_index("id").loc[list(ids)]
-    su, lu = unit("stress", system), unit("length", system)
+    su = unit("stress", system)
     rows = {
         "grade": sub["grade"], "family": sub["family"],
         "route": [route_line(r, system, t) for r, t in zip(sub["route"], sub["route_text"])],
         f"yield ({su})": to_display(sub["yield_mpa"].to_numpy(float), "stress", system),
         f"tensile ({su})": to_display(sub["uts_mpa"].to_numpy(float), "stress", system),
-        "elongation (%)": sub["elongation_pct"], "hardness (HRC)": sub["hardness_hrc"],
-        "surface hardness (HRC)": sub["surface_hardness_hrc"],
-        f"case depth ({lu})": to_display(sub["case_depth_mm"].to_numpy(float), "length", system),
+        "elongation (%)": sub["elongation_pct"],
+        f"hardness ({hardness})": [hardness_text(r, "hardness", hardness) for _, r in sub.iterrows()],
+        "surface and case": [case_text(r, system, hardness) for _, r in sub.iterrows()],
+        "material / kg": sub["material_cost_per_kg"] if "material_cost_per_kg" in sub else [np.nan] * len(sub),
+        "processing / kg": sub["processing_cost_per_kg"] if "processing_cost_per_kg" in sub else [np.nan] * len(sub),
         "relative cost per kg": sub["relative_cost"], "relative cost per part": sub["part_cost"],
         "robust over composition": sub["robust"], "Pareto set": sub["pareto"],
         "process window": [fmt_window(a, b, p, system) for a, b, p in

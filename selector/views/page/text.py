@@ -3,18 +3,18 @@ cautions of a candidate, percentages and the ranking summary, and the route in
 words in the chosen units."""
 from __future__ import annotations
 
+import json
 from typing import Mapping, Sequence
 
 import pandas as pd
-from selector.catalogue.supply import CONDITIONS
+
 from selector.errors import SelectorError
 from selector.routes import families
-from selector.rules.cautions import AVOID_CODES
-from selector.rules.cautions import CAUTIONS
-from selector.rules.cautions import cautions_for
+from selector.routes.describe import case_words, describe_step, parameter_words
+from selector.rules.cautions import AVOID_CODES, CAUTIONS, cautions_for
 from selector.views.export import to_csv_text
+from selector.views.units import SI, UNIT_QUANTITY, route_words, to_display, unit, value_formatter
 
-from .units import SI, quantity_of, to_display, unit
 
 #: columns the caution rules read (selector.rules.cautions), when present
 CAUTION_COLUMNS = ("grade", "family", "route_family", "quench", "temper_temp_c", "age_temp_c", "peak_ratio",
@@ -31,25 +31,16 @@ def family_label(name: str) -> str:
         return str(name).replace("_", " ")
 
 
-PARAM_LABELS = {"temper_temp_c": "tempering temperature", "hours": "time at temperature",
-                "reduction_pct": "cold reduction", "age_temp_c": "aging temperature",
-                "age_hours": "aging time", "case_depth_mm": "case depth", "temp_c": "temperature"}
-
-#: the page's own palette for candidates (ink-like hues, light enough to overlap)
-
-def param_label(name: str) -> str:
-    return PARAM_LABELS.get(name, name.replace("_", " "))
+def param_label(name: str, family: str | None = None) -> str:
+    """A process parameter in words (:func:`selector.routes.describe.parameter_words`)."""
+    return parameter_words(name, family)[0]
 
 
-def param_unit(name: str, system: str) -> str:
-    q = quantity_of(name)
-    if q:
-        return unit(q, system)
-    if name.endswith("hours"):
-        return "h"
-    if name.endswith("_pct"):
-        return "%"
-    return ""
+def param_unit(name: str, system: str, family: str | None = None) -> str:
+    """The unit of a process parameter in ``system`` (``°F`` for a temperature in US units)."""
+    si_unit = parameter_words(name, family)[1]
+    q = UNIT_QUANTITY.get(si_unit)
+    return unit(q, system) if q else si_unit
 
 
 def _variant_extra(row) -> str:
@@ -148,60 +139,21 @@ def to_csv(df: pd.DataFrame) -> bytes:
 
 # --------------------------------------------------------------------------- readable route
 
-OP_TITLES = {"harden": "Austenitize and quench", "temper": "Temper", "normalize": "Normalize",
-             "anneal": "Anneal", "carburize": "Carburize", "nitride": "Nitride (gas)",
-             "induction_harden": "Induction harden", "cold_work": "Cold work",
-             "solution_treat": "Solution treat", "age": "Age", "supply": "Buy bar",
-             "stress_relieve": "Stress relieve"}
-
-
-#: how a step parameter reads in a sentence: name -> (words before the value, kind)
-STEP_WORDS = {"temp_c": ("at", "temperature"), "austenitize_c": ("from", "temperature"),
-              "hours": ("for", "hours"), "quench": ("quench in", "text"), "agitation": ("agitation", "text"),
-              "case_depth_mm": ("to a case depth of", "length"), "frequency_hz": ("at", "hz"),
-              "surface_carbon_pct": ("to a surface carbon of", "wt%"), "reduction_pct": ("by", "%"),
-              "designation": ("temper", "text")}
-
-
 def route_steps(route: Sequence[Mapping], system: str) -> list[str]:
-    """Readable numbered steps of a route, parameters in display units
-    (``2. **Temper** at 1004 °F, for 2 h``)."""
-    out = []
-    for i, s in enumerate(route, 1):
-        op = s.get("op", "?")
-        bits = []
-        for k, v in s.items():
-            if k == "op":
-                continue
-            words, kind = STEP_WORDS.get(k, (k.replace("_", " "), "number"))
-            if op == "supply":
-                bits.append(CONDITIONS.get(str(v), str(v)) if k == "condition" else f"({v})")
-                continue
-            if isinstance(v, bool) or not isinstance(v, (int, float)):
-                bits.append(f"{words} {v}")
-            elif kind == "temperature":
-                bits.append(f"{words} {to_display(v, 'temperature', system):.0f} {unit('temperature', system)}")
-            elif kind == "length":
-                bits.append(f"{words} {to_display(v, 'length', system):.3g} {unit('length', system)}")
-            elif kind == "hours":
-                bits.append(f"{words} {v:.3g} h")
-            elif kind == "hz":
-                bits.append(f"{words} {v / 1000:.3g} kHz")
-            else:
-                bits.append(f"{words} {v:.3g} {kind if kind not in ('number', 'text') else ''}".strip())
-        out.append(f"{i}. **{OP_TITLES.get(op, op)}**" + (" " + ", ".join(bits) if bits else ""))
-    return out
+    """Numbered steps of a route in words, values in ``system``'s units
+    (:func:`selector.routes.describe.describe_step`): ``1. austenitize 845 °C, quench in oil``."""
+    fmt = value_formatter(system)
+    return [f"{i}. {describe_step(s, fmt)}" for i, s in enumerate(route, 1)]
 
 
 def route_line(route: Sequence[Mapping], system: str, si_text: str | None = None) -> str:
-    """One-line route text: the library's own text in SI, the same steps with
-    temperatures and depths converted in US units."""
-    if system == SI and si_text:
-        return si_text
-    parts = []
-    for step in route_steps(route, system):
-        parts.append(step.split(". ", 1)[1].replace("**", ""))
-    return " → ".join(parts)
+    """One-line route in words in ``system``'s units (:func:`selector.views.units.route_words`);
+    ``si_text`` (the library's ``route_text``) where the steps are not known."""
+    if isinstance(route, str):
+        route = json.loads(route) if route.strip().startswith("[") else None
+    if route:
+        return route_words(list(route), system)
+    return si_text or ""
 
 
 def pick_label(grade: str, route_family: str) -> str:
@@ -305,15 +257,13 @@ def pin_target_explanations(report: Mapping, system: str) -> list[str]:
 
 
 def first_through_and_case(cand: pd.DataFrame) -> list:
-    """The ``variant`` of the first candidate without a hardened case (through-hardened,
-    or a bar used as bought) and of the first with one (``case_depth_mm`` > 0), in the
-    table's order: the pair the side-by-side view starts from.  Either may be missing."""
-    depth = pd.to_numeric(cand.get("case_depth_mm"), errors="coerce").fillna(0.0).to_numpy() \
-        if "case_depth_mm" in cand else None
-    if depth is None or len(cand) == 0:
-        return list(cand["variant"].head(2)) if len(cand) else []
-    through = cand["variant"][depth <= 0].head(1).tolist()
-    case = cand["variant"][depth > 0].head(1).tolist()
+    """The ``variant`` of the first through-hardened candidate and of the first
+    case-hardened one, in the table's order (the library's reading of each route,
+    :func:`selector.routes.describe.case_words`): the pair the side-by-side view starts
+    from.  Either may be missing."""
+    kinds = [case_words(list(r)) for r in cand["route"]]
+    through = [v for v, k in zip(cand["variant"], kinds) if k == "through-hardened"][:1]
+    case = [v for v, k in zip(cand["variant"], kinds) if k is None][:1]
     return through + case
 
 
@@ -326,13 +276,9 @@ def prices_in_use(name: str | None, prices: Mapping | None) -> str:
             "catalogue prices for the others)")
 
 
-#: hardness scales a view can show (one per view)
-HARDNESS_SCALES = ("HRC", "HV")
-
-
 def hardness_text(row: Mapping, which: str, scale: str) -> str:
-    """``row[which + '_hrc' | '_hv']`` as text in ``scale`` (``—`` where the model gives
-    none, e.g. below the Rockwell C range)."""
+    """``row[which + '_hrc' | '_hb' | '_hv']`` as text in ``scale`` (``—`` where the model
+    gives none, e.g. below the Rockwell C range)."""
     v = row.get(f"{which}_{scale.lower()}")
     try:
         v = float(v)
@@ -343,8 +289,8 @@ def hardness_text(row: Mapping, which: str, scale: str) -> str:
 
 def case_text(row: Mapping, system: str, scale: str = "HRC") -> str:
     """The surface hardness and case depth of a case-hardened candidate
-    (``58 HRC, 0.8 mm``), or ``through-hardened`` (no case depth) with its surface
-    hardness: never a case depth of zero."""
+    (``58 HRC, 0.8 mm``), or what the route is instead (``through-hardened``, ``no case``:
+    :func:`selector.routes.describe.case_words`), never a case depth of zero."""
     depth = row.get("case_depth_mm")
     try:
         depth = float(depth)
@@ -353,4 +299,5 @@ def case_text(row: Mapping, system: str, scale: str = "HRC") -> str:
     surf = hardness_text(row, "surface_hardness", scale)
     if depth == depth and depth > 0:
         return f"{surf} {scale}, {to_display(depth, 'length', system):.2g} {unit('length', system)}"
-    return f"no case, {surf} {scale}" if surf != "—" else "no case"
+    words = case_words(list(row.get("route") or [])) or "no case"
+    return words

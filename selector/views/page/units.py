@@ -1,89 +1,13 @@
-"""Display units of the page: the SI and US customary labels, conversion of a value
-for display and of a typed value back to SI, and the conversion of the unit-bearing
-inputs when the unit system changes.  The library computes in SI throughout; these
-functions touch only what is shown and typed."""
+"""Units of the page's inputs.  The units table itself (labels, conversions, column
+names) is the one shared with the command line, :mod:`selector.views.units`; this
+module adds what belongs to the page's widgets: which input carries which quantity,
+the conversion of every input when the unit system changes, and the rounding of the
+SI values that key the page's cache."""
 from __future__ import annotations
 
 from typing import Mapping
 
-import numpy as np
-
-# --------------------------------------------------------------------------- units
-
-SI, US = "SI", "US customary"
-UNIT_SYSTEMS = (SI, US)
-
-MPA_PER_KSI = 6.894757   # 1 ksi = 6.894757 MPa (NIST SP 811, Appendix B.8, 'kip per square inch')
-MM_PER_IN = 25.4         # exact by definition (NIST SP 811, Appendix B.8, 'inch')
-
-N_PER_LBF = 4.4482216152605  # 1 lbf = 4.448 221 615 260 5 N, exact (NIST SP 811, Appendix B.9)
-
-UNITS = {  # quantity -> (SI label, US label)
-    "stress": ("MPa", "ksi"),
-    "length": ("mm", "in"),
-    "temperature": ("°C", "°F"),
-    "force": ("kN", "lbf"),
-}
-
-
-def unit(quantity: str, system: str) -> str:
-    """Display unit label of ``quantity`` (``stress``, ``length``, ``temperature``)."""
-    si, us = UNITS[quantity]
-    return us if system == US else si
-
-
-def to_display(value, quantity: str, system: str):
-    """An SI value (MPa, mm, °C, kN; scalar or array) in the display units of ``system``."""
-    if value is None:
-        return None
-    v = np.asarray(value, float)
-    if system == US:
-        if quantity == "stress":
-            v = v / MPA_PER_KSI
-        elif quantity == "length":
-            v = v / MM_PER_IN
-        elif quantity == "temperature":
-            v = v * 9.0 / 5.0 + 32.0
-        elif quantity == "force":
-            v = v * 1000.0 / N_PER_LBF
-    return float(v) if v.ndim == 0 else v
-
-
-def to_si(value, quantity: str, system: str):
-    """A value typed in the display units of ``system`` back to SI (MPa, mm, °C, kN)."""
-    if value is None:
-        return None
-    v = np.asarray(value, float)
-    if system == US:
-        if quantity == "stress":
-            v = v * MPA_PER_KSI
-        elif quantity == "length":
-            v = v * MM_PER_IN
-        elif quantity == "temperature":
-            v = (v - 32.0) * 5.0 / 9.0
-        elif quantity == "force":
-            v = v * N_PER_LBF / 1000.0
-    return float(v) if v.ndim == 0 else v
-
-
-def quantity_of(name: str) -> str | None:
-    """The quantity of an SI-suffixed column or parameter name, or None."""
-    if name.endswith("_mpa"):
-        return "stress"
-    if name.endswith("_mm"):
-        return "length"
-    if name.endswith("_c") or name == "temp_c":
-        return "temperature"
-    return None
-
-
-def display_name(name: str, system: str) -> str:
-    """``yield_mpa`` -> ``yield_ksi`` in US units (column headers of the table)."""
-    q = quantity_of(name)
-    if q is None or system == SI:
-        return name
-    suffix = {"stress": "_ksi", "length": "_in", "temperature": "_f"}[q]
-    return name[: name.rfind("_")] + suffix
+from selector.views.units import SI, US, to_display, to_si
 
 
 #: page inputs that carry a unit: widget key -> quantity
