@@ -101,10 +101,9 @@ def notice(where: str):
 
 # ----------------------------------------------------------------------------- inputs (sidebar)
 with st.sidebar:
-    b1, b2 = st.columns(2)
-    b1.button("New part", key="new_part", on_click=_new_part, width="stretch",
+    st.button("New part (clear everything)", key="new_part", on_click=_new_part, width="stretch",
               help="Clear everything: section, targets, service conditions, pin, filters and price sheet.")
-    b2.button("Load the example", key="load_example", on_click=_load_example, width="stretch",
+    st.button("Load the example", key="load_example", on_click=_load_example, width="stretch",
               help="The invented demo part of docs/demo.md, with its targets and service conditions.")
     st.markdown("### Part")
     st.radio("Units", pg.UNIT_SYSTEMS, key="units", horizontal=True, on_change=_units_changed,
@@ -297,7 +296,7 @@ def candidate_view(cand, states):
     m[2].metric("Elongation (%)", f"{row['elongation_pct']:.3g}")
     m = st.columns(3)
     m[0].metric(f"Hardness ({hs})", pg.hardness_text(row, "hardness", hs))
-    m[1].metric("Surface and case", pg.case_text(row, system, hs))
+    m[1].metric(f"Surface ({hs})", pg.hardness_text(row, "surface_hardness", hs))
     m[2].metric("Meets the targets", pg.percent(row.get("p_meet")),
                 help="Probability that a heat within the specification meets every target (model band "
                      "included); every composition corner at once: "
@@ -308,6 +307,7 @@ def candidate_view(cand, states):
     m[1].metric("Processing / kg", f"{row['processing_cost_per_kg']:.3g}",
                 help="Indicative processing adder of the route family per kg (data/route_costs.csv).")
     m[2].metric("Part cost", f"{row['part_cost']:.3g}", help=f"Per kg × the part's mass ({row['mass_kg']:.3g} kg).")
+    st.markdown(f"**Surface and case:** {pg.case_text(row, system, hs)}")
     st.caption(pg.band_text(ev, system))
     heat_text = st.text_input("Heat analysis from the mill certificate (wt %)", key="heat_text",
                               placeholder="e.g. C=0.41 Mn=0.86 Cr=0.95 Mo=0.18 (other elements: nominal)",
@@ -346,8 +346,8 @@ def candidate_view(cand, states):
             st.warning("\n".join(f"- {c}" for c in cautions))
         else:
             st.info("No route-specific caution raised; the general notice above still applies.")
-    c1, c2 = st.columns(2)
-    with c1:
+    # charts one under the other at full width: legends and titles stay whole at 1024 px
+    with st.container():
         param = row["window_parameter"]
         if param:
             pf = pg.parameter_frame(states, ss["pick"], system)
@@ -359,7 +359,7 @@ def candidate_view(cand, states):
                        "meets the targets; darker: where it holds at every corner.")
         else:
             st.info("This route has no main process parameter to vary.")
-    with c2:
+    with st.container():
         if ev.get("profile"):
             pfr = pg.profile_frame({row["label"]: ev["profile"]}, system, {row["label"]: row["family"]})
             st.altair_chart(pg.profile_chart(pfr, system, [row["label"]], scale=hs), width="stretch")
@@ -446,26 +446,28 @@ def pin_view():
                 "members meet across one shear plane (single shear).  Stresses by elementary beam theory "
                 "(Budynas & Nisbett 2015, ch. 3; docs/methods/pins.md); the targets multiply them by the "
                 "safety factor.")
-    inputs, results = st.columns([2, 3], gap="large")
+    # inputs above, results below at full width: metric labels and values stay whole at 1024 px
+    inputs, results = st.container(), st.container()
     with inputs:
-        c1, c2 = st.columns(2)
+        c1, c2, c3 = st.columns(3)
         c1.number_input(f"Load ({fu})", key="pin_load", value=None, format="%.0f" if system == pg.US else "%.2f",
                         help="The load the joint carries (the design load, shock included).")
         c2.number_input(f"Pin diameter ({lu})", key="pin_diameter", value=None, format=lfmt)
+        c3.number_input("Safety factor", key="pin_sf", value=None, format="%.2f", help="1 to 10.")
         c1.radio("Shear planes", (2, 1), key="pin_planes", format_func=pg.SHEAR_PLANE_LABELS.get)
         c2.radio("Bending model", tuple(pg.LOAD_MODEL_LABELS), key="pin_model",
                  format_func=pg.LOAD_MODEL_LABELS.get,
                  help="Uniform: bearing pressure spread over each member's thickness.  Concentrated: loads "
                       "at the bearing centres, a higher moment (double shear only; single shear is always "
                       "the clamped cantilever).")
+        c3.number_input("Wear surface hardness (HRC)", key="pin_wear_hrc", value=None, format="%.1f",
+                        help="Optional: the minimum surface hardness for wear (20 to 70 HRC).  Blank: none.")
         c1.number_input(f"Lug thickness ({lu})", key="pin_lug", value=None, format=lfmt,
                         help="The middle member in double shear; the member the pin is clamped in, in single shear.")
-        c2.number_input(f"Clevis arm thickness ({lu})", key="pin_clevis", value=None, format=lfmt,
-                        help="One arm of the clevis (double shear), or the other member (single shear).")
-        c1.number_input(f"Gap each side ({lu})", key="pin_gap", value=None, format=lfmt)
-        c2.number_input("Safety factor", key="pin_sf", value=None, format="%.2f", help="1 to 10.")
-        c1.number_input("Wear surface hardness (HRC)", key="pin_wear_hrc", value=None, format="%.1f",
-                        help="Optional: the minimum surface hardness for wear (20 to 70 HRC).  Blank: none.")
+        c2.number_input(f"Clevis arm ({lu})", key="pin_clevis", value=None, format=lfmt,
+                        help="Thickness of one arm of the clevis (double shear), or of the other member (single "
+                             "shear).")
+        c3.number_input(f"Gap each side ({lu})", key="pin_gap", value=None, format=lfmt)
     case, msgs = pg.pin_case_from_inputs({k: ss.get(k) for k in pg.PIN_INPUT_KEYS}, system)
     rep = None
     if case is not None:
@@ -697,8 +699,7 @@ def parts_view():
     st.caption(selector.CAUTION)
 
 
-TAB_LABELS = ["Map and list", "One candidate", "Side by side", "Cheaper alternatives", "Clevis pin and sizes",
-              "Parts list"]
+TAB_LABELS = ["Map and list", "One candidate", "Side by side", "Alternatives", "Clevis pin", "Parts list"]
 cand = None
 if prepared_ok:
     try:

@@ -115,7 +115,8 @@ CUT = """() => {
         if (!box.width) continue;
         for (const g of chart.querySelectorAll('svg .role-legend')) {
             const r = g.getBoundingClientRect();
-            if (r.width && (r.right > box.right + 1 || r.left < box.left - 1)) out.push('legend outside its chart');
+            if (r.width && (r.right > box.right + 1 || r.left < box.left - 1))
+                out.push('legend outside its chart: ' + g.textContent.slice(0, 80));
         }
     }
     return out;
@@ -144,7 +145,7 @@ def test_page_at_1024_px_renders_views_and_cuts_no_text(server, tmp_path):
         # a new, throw-away profile directory (Playwright passes it as --user-data-dir)
         browser = p.chromium.launch_persistent_context(str(tmp_path / "profile"), executable_path=CHROMIUM,
                                                        headless=True, args=LAUNCH_ARGS,
-                                                       viewport={"width": WIDTH, "height": 1100})
+                                                       viewport={"width": WIDTH, "height": 2600})
         try:
             page = browser.new_page()
             t0 = time.monotonic()
@@ -185,11 +186,11 @@ def test_page_at_1024_px_renders_views_and_cuts_no_text(server, tmp_path):
             page.wait_for_timeout(1500)       # let the chart finish its transitions
             cut = {}
             cut["map"] = page.evaluate(CUT)
-            page.screenshot(path=str(SCREENSHOT), full_page=False)
+            page.screenshot(path=str(SCREENSHOT), full_page=False, clip={"x": 0, "y": 0, "width": WIDTH, "height": 1500})
             assert SCREENSHOT.stat().st_size > 20_000
             _shot(page, "map")
             for name, label in (("candidate", "One candidate"), ("side_by_side", "Side by side"),
-                                ("alternatives", "Cheaper alternatives"), ("pin", "Clevis pin and sizes"),
+                                ("alternatives", "Alternatives"), ("pin", "Clevis pin"),
                                 ("parts", "Parts list")):
                 _tab(page, label)
                 cut[name] = page.evaluate(CUT)
@@ -225,6 +226,7 @@ def test_page_at_1024_px_renders_views_and_cuts_no_text(server, tmp_path):
                   f"diameter change: {diameter_s:.2f} s; unit switch: {units_s:.2f} s; "
                   f"server side of the first run: {first_run[0].split('This run:')[1].strip() if first_run else '?'}; "
                   f"of the re-rank: {server_side[0].split('This run:')[1].strip() if server_side else '?'}")
+            print("cut:", {k: v for k, v in cut.items() if v})
             assert not {k: v for k, v in cut.items() if v}, cut
         finally:
             browser.close()

@@ -175,8 +175,8 @@ def strength_elongation_chart(frames: dict, targets: Mapping, y: str, system: st
     colour = alt.Color("family:N", title="route family",
                        scale=alt.Scale(domain=fams, range=[FAMILY_COLOURS[i % len(FAMILY_COLOURS)]
                                                            for i in range(len(fams))]),
-                       legend=alt.Legend(orient="top", direction="horizontal", labelLimit=0, titleLimit=0,
-                                         symbolType="stroke", symbolStrokeWidth=3, columns=4))
+                       legend=alt.Legend(orient="top", direction="horizontal", labelLimit=0, title=None,
+                                         symbolType="stroke", symbolStrokeWidth=3, columns=2))
     x = alt.X("x:Q", title="Elongation (%)", scale=alt.Scale(domain=xdom, nice=False))
     yy = alt.Y("y:Q", title=ytitle, scale=alt.Scale(domain=ydom, nice=False))
     layers = []
@@ -272,7 +272,7 @@ def profile_chart(frame: pd.DataFrame, system: str, labels: Sequence[str] | None
     labels = list(labels or dict.fromkeys(frame["label"]))
     colour = alt.Color("label:N", title="candidate",
                        scale=alt.Scale(domain=labels, range=list(colours or _colours_for(labels))),
-                       legend=alt.Legend(orient="top", labelLimit=300, direction="horizontal", title=None))
+                       legend=alt.Legend(orient="top", labelLimit=0, columns=1, title=None))
     lu = unit("length", system)
     return alt.Chart(frame).mark_line(point=alt.OverlayMarkDef(size=22), strokeWidth=2).encode(
         x=alt.X("depth:Q", title=f"Depth below the surface ({lu}); centre at the right"),
@@ -414,16 +414,18 @@ COMPARE_COLOURS = ["#1b6f8a", "#c2571a", "#5b8c2a"]
 def comparison_bars(frame: pd.DataFrame, group: str, labels: Sequence[str], height: int = 240,
                     legend: bool = False) -> alt.Chart:
     """Grouped bars of one property group (e.g. strength) for the compared
-    candidates, on one shared value axis."""
+    candidates, on one shared value axis; the key names each candidate by its id
+    (C1, C3 …: the comparison table above gives the full label), so that it fits a
+    half-width column."""
     f = frame[frame["group"] == group]
-    labels = list(labels)
+    ids = [str(lab).split()[0] for lab in labels]
     return alt.Chart(f).mark_bar(cornerRadiusTopLeft=2, cornerRadiusTopRight=2).encode(
-        x=alt.X("quantity:N", title=None, axis=alt.Axis(labelAngle=0)),
-        xOffset=alt.XOffset("label:N", sort=labels),
+        x=alt.X("quantity:N", title=None, axis=alt.Axis(labelAngle=0, labelLimit=0)),
+        xOffset=alt.XOffset("id:N", sort=ids),
         y=alt.Y("value:Q", title=group),
-        color=alt.Color("label:N", title="candidate", sort=labels,
-                        scale=alt.Scale(domain=labels, range=COMPARE_COLOURS[:len(labels)]),
-                        legend=alt.Legend(orient="top", labelLimit=300, direction="horizontal", title=None)
+        color=alt.Color("id:N", title="candidate", sort=ids,
+                        scale=alt.Scale(domain=ids, range=COMPARE_COLOURS[:len(ids)]),
+                        legend=alt.Legend(orient="top", direction="horizontal", labelLimit=0, title=None)
                         if legend else None),
         tooltip=[alt.Tooltip("label:N", title="candidate"), "quantity:N", alt.Tooltip("value:Q", format=".4g")],
     ).properties(height=height)
@@ -508,8 +510,8 @@ def frontier_chart(frontier: pd.DataFrame, axes: Sequence[str], targets: Mapping
         layers.append(alt.Chart(pd.DataFrame({"y": [float(conv(ly, qy))]}))
                       .mark_rule(strokeDash=[6, 3], color="firebrick").encode(y="y:Q"))
     return alt.layer(*layers).properties(
-        height=height, title=f"What can be reached: {ny} against {nx} with the other targets met "
-                             "(dashed: the targets)")
+        height=height, title=alt.TitleParams([f"What can be reached: {ny} against {nx}",
+                                              "with the other targets met (dashed: the targets)"]))
 
 
 def fatigue_depth_frame(ev: Mapping, system: str) -> pd.DataFrame:
@@ -534,10 +536,10 @@ def fatigue_depth_chart(frame: pd.DataFrame, system: str, height: int = 300) -> 
     return alt.Chart(frame).mark_line(point=alt.OverlayMarkDef(size=18), strokeWidth=2).encode(
         x=alt.X("depth:Q", title=f"Depth below the surface ({lu})"),
         y=alt.Y("stress:Q", title=f"Stress amplitude ({su})"),
-        color=alt.Color("curve:N", title=None, legend=alt.Legend(orient="top", labelLimit=400)),
+        color=alt.Color("curve:N", title=None, legend=alt.Legend(orient="top", labelLimit=0, columns=1)),
         tooltip=[alt.Tooltip("curve:N"), alt.Tooltip("depth:Q", format=".3g", title=lu),
                  alt.Tooltip("stress:Q", format=".4g", title=su)],
-    ).properties(height=height, title="Fatigue strength against the applied stress through the section")
+    ).properties(height=height, title=alt.TitleParams(["Fatigue strength and applied stress", "through the section"]))
 
 
 def transformation_frame(ev: Mapping, system: str) -> pd.DataFrame:
@@ -576,9 +578,10 @@ def transformation_chart(frame: pd.DataFrame, system: str, height: int = 320) ->
     return alt.Chart(frame).mark_line(strokeWidth=2).encode(
         x=alt.X("time_s:Q", title="Time (s, log scale)", scale=alt.Scale(type="log")),
         y=alt.Y("temp:Q", title=f"Temperature ({tu})"),
-        color=alt.Color("curve:N", title=None, legend=alt.Legend(orient="top", labelLimit=300)),
+        color=alt.Color("curve:N", title=None, legend=alt.Legend(orient="top", labelLimit=0, columns=2)),
         strokeDash=alt.StrokeDash("kind:N", title=None, legend=None),
         tooltip=[alt.Tooltip("curve:N"), alt.Tooltip("time_s:Q", format=".3g", title="s"),
                  alt.Tooltip("temp:Q", format=".0f", title=tu)],
-    ).properties(height=height, title="Transformation start and finish (Li et al. 1998) with the cooling path")
+    ).properties(height=height, title=alt.TitleParams(["Transformation start and finish (Li et al. 1998)",
+                                                        "with the cooling path"]))
 
