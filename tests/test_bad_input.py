@@ -455,13 +455,13 @@ def test_defect_15_save_study_is_confined(tmp_path, monkeypatch):
 
 def test_defect_16_csv_cells_cannot_start_formulas(capsys):
     from selector.views import page as pg
-    from selector.views.cli_more import emit
+    from selector.views.cli.output import write_frame
 
     df = pd.DataFrame({"grade": ["=HYPERLINK(\"x\")", "+1", "-1+2", "@SUM(A1)", "4140", "\tx"],
                        "yield_mpa": [-1.0, 2.0, 3.0, 4.0, 5.0, 6.0], "=col": [""] * 6})
     for text in (pg.to_csv(df).decode("utf-8"), None):
         if text is None:
-            emit(df, "csv")
+            write_frame(df, "csv")
             text = capsys.readouterr().out
         back = pd.read_csv(io.StringIO(text), keep_default_na=False)
         assert list(back["grade"]) == ["'=HYPERLINK(\"x\")", "'+1", "'-1+2", "'@SUM(A1)", "4140", "'\tx"]

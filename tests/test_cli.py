@@ -1,87 +1,94 @@
-"""The command line: each command calls the library and formats its answer."""
+"""The command-line package (selector.views.cli): the parser, the exit codes, the entry
+points, and the layout (one module per verb, no private imports between them, no circle)."""
+import ast
 import io
 import json
+import shutil
+import subprocess
+import sys
 from contextlib import redirect_stderr, redirect_stdout
+from pathlib import Path
 
-import pandas as pd
 import pytest
 
-import selector
-from selector.views.cli import main, parse_step_text
+from selector.views import cli
+from selector.views.cli import main
+
+PACKAGE = Path(cli.__file__).parent
+OLD_MODULES = ("cli.py", "cli_more.py", "cli_design.py", "cli_batch.py", "cli_validate.py")
 
 
 def run(*argv):
     out, err = io.StringIO(), io.StringIO()
     with redirect_stdout(out), redirect_stderr(err):
-        code = main(list(argv))
+        code = main([str(a) for a in argv])
     return code, out.getvalue(), err.getvalue()
 
 
-def test_parse_step_text():
-    assert parse_step_text("temper temp_c=540 hours=2") == {"op": "temper", "temp_c": 540.0, "hours": 2.0}
-    assert parse_step_text("harden quench=oil") == {"op": "harden", "quench": "oil"}
+def test_one_module_per_verb_and_every_verb_registered():
+    names = [v.NAME for v in cli.VERBS]
+    assert names == ["evaluate", "grades", "select", "alternatives", "pin", "sweep", "validate", "batch"]
+    for v in cli.VERBS:
+        assert Path(v.__file__).stem == v.NAME and callable(v.run) and callable(v.add_command)
+    sub = next(a for a in cli.build_parser()._actions if a.dest == "command")
+    assert list(sub.choices) == names
+    for old in OLD_MODULES:
+        assert not (PACKAGE.parent / old).exists(), old
 
 
-def test_evaluate_readable_and_json_match_library():
-    code, out, _ = run("evaluate", "42CrMo4", "harden quench=oil", "temper temp_c=540 hours=2", "--diameter", "40")
-    assert code == 0 and "tensile strength" in out and "CAUTION" in out and "mid-radius" in out
-    code, out, _ = run("evaluate", "4140", "--route-json",
-                       '[{"op":"harden","quench":"oil"},{"op":"temper","temp_c":540,"hours":2}]',
-                       "--diameter", "40", "--json")
-    data = json.loads(out)
-    ref = selector.evaluate("4140", [{"op": "harden", "quench": "oil"}, {"op": "temper", "temp_c": 540, "hours": 2}],
-                            diameter_mm=40)
-    assert data["uts_mpa"] == pytest.approx(ref["uts_mpa"]) and "caution" in data
+def _imports(path):
+    """(module, names) of every ``from .x import a, b`` in a module of the package."""
+    tree = ast.parse(path.read_text(encoding="utf-8"))
+    return [(n.module or "", [a.name for a in n.names], n.level) for n in ast.walk(tree)
+            if isinstance(n, ast.ImportFrom)]
 
 
-def test_bad_input_exits_2_with_message():
-    code, _, err = run("evaluate", "4140", "harden quench=honey")
-    assert code == 2 and "quench" in err and "allowed" in err
+def test_no_private_names_imported_and_no_circle():
+    graph = {}
+    for path in PACKAGE.glob("*.py"):
+        deps = set()
+        for module, names, level in _imports(path):
+            assert not any(n.startswith("_") and n != "__future__" for n in names), (path.name, names)
+            if level == 1:                      # a sibling in the package
+                deps.update([module] if module else names)
+        graph[path.stem] = deps - {""}
+    # nothing imports the package's __init__, so every edge is between verb/helper modules: a
+    # depth-first walk finds any circle
+    state = {}
+
+    def visit(node, trail):
+        assert state.get(node) != "open", " -> ".join(trail + [node])
+        if state.get(node) == "done":
+            return
+        state[node] = "open"
+        for nxt in graph.get(node, ()):
+            if nxt in graph and nxt != "__init__":
+                visit(nxt, trail + [node])
+        state[node] = "done"
+
+    for node in graph:
+        visit(node, [])
+    assert "__init__" not in set().union(*[d for k, d in graph.items() if k != "__init__"])
+
+
+def test_help_and_usage_errors_exit_2_in_one_line():
+    code, out, _ = run("--help")
+    assert code == 0 and "usage" in out
+    for argv in (["nosuchverb"], ["select", "--units", "metric"], ["select", "--hardness", "HRB"], []):
+        code, out, err = run(*argv)
+        assert code == 2 and len(err.strip().splitlines()) == 1 and err.startswith("error: "), argv
     code, _, err = run("evaluate", "nosuchgrade", "anneal")
     assert code == 2 and "nearest" in err
 
 
-def test_select_formats_and_toml(tmp_path):
-    code, out, _ = run("select", "--min-yield-mpa", "700", "--min-elongation-pct", "12", "--diameter", "30",
-                       "--format", "json")
-    rows = json.loads(out)["rows"]
-    assert code == 0 and rows and all(r["yield_mpa"] >= 700 for r in rows)
-    code, out, _ = run("select", "--min-yield-mpa", "700", "--diameter", "30", "--format", "csv")
-    df = pd.read_csv(io.StringIO(out))
-    assert (df["yield_mpa"] >= 700).all() and "route" in df
-    toml = tmp_path / "t.toml"
-    toml.write_text("[targets]\nmin_yield_mpa = 700\nmin_elongation_pct = 12\n", encoding="utf-8")
-    code, out2, _ = run("select", "--targets", str(toml), "--diameter", "30", "--format", "json")
-    assert code == 0 and len(json.loads(out2)["rows"]) == len(rows)
-    code, out, _ = run("select", "--min-yield-mpa", "700", "--diameter", "30", "--top", "3")
-    assert code == 0 and "candidates" in out and "CAUTION" in out
-
-
-def test_select_nothing_meets_prints_nearest_misses():
-    code, out, _ = run("select", "--min-yield-mpa", "2600", "--min-elongation-pct", "30")
-    assert code == 1 and "Nearest misses" in out and "move_min_yield_mpa" in out
-
-
-def test_alternatives_command():
-    code, out, _ = run("alternatives", "4340", "harden quench=oil", "temper temp_c=600", "--format", "json")
-    rows = json.loads(out)["rows"]
-    assert code == 0 and rows
-    assert all(r["relative_cost"] <= rows[-1]["relative_cost"] for r in rows)
-
-
-def test_pin_command_targets_match_library():
-    code, out, _ = run("pin", "--load-kn", "60", "--diameter", "25", "--gap", "1.5", "--lug", "38", "--clevis", "16",
-                       "--format", "json")
-    data = json.loads(out)
-    t = selector.pin_targets(load_kn=60, diameter_mm=25, gap_mm=1.5, lug_thickness_mm=38, clevis_thickness_mm=16)
-    assert data["targets"]["min_yield_mpa"] == pytest.approx(t["min_yield_mpa"])
+def test_bad_step_names_field_and_allowed():
+    code, _, err = run("evaluate", "4140", "harden quench=honey")
+    assert code == 2 and "quench" in err and "allowed" in err
 
 
 def test_module_entry_point_and_console_script():
-    import shutil
-    import subprocess
-    import sys
-
+    text = (Path(__file__).resolve().parents[1] / "pyproject.toml").read_text(encoding="utf-8")
+    assert 'selector = "selector.views.cli:main"' in text           # [project.scripts]: the package's main
     r = subprocess.run([sys.executable, "-m", "selector", "grades", "4140", "--json"], capture_output=True,
                        text=True, timeout=120)
     assert r.returncode == 0 and json.loads(r.stdout)["id"] == "4140"
@@ -92,18 +99,6 @@ def test_module_entry_point_and_console_script():
     assert r.returncode == 0 and json.loads(r.stdout)["id"] == "4140"
 
 
-def test_select_min_p_meet_and_allow_flags():
-    code, out, _ = run("select", "--min-yield-mpa", "800", "--min-elongation-pct", "12", "--diameter", "60",
-                       "--min-p-meet", "0.8", "--allow", "quench_cracking,shallow_hardening", "--format", "json")
-    assert code == 0
-    rows = json.loads(out)["rows"]
-    ref = selector.select({"min_yield_mpa": 800, "min_elongation_pct": 12}, diameter_mm=60, min_p_meet=0.8,
-                          allow=["quench_cracking", "shallow_hardening"])
-    assert [r["grade"] for r in rows] == ref["grade"].tolist()
-    assert all(r["min_p_meet"] == 0.8 for r in rows)
-    code, out, _ = run("select", "--min-yield-mpa", "800", "--diameter", "60", "--top", "3")
-    assert code == 0 and "p_meet_pct" in out and "CAUTION" in out
-    code, _, err = run("select", "--min-yield-mpa", "800", "--min-p-meet", "0")
-    assert code == 2 and "min_p_meet" in err and "(0, 1]" in err
-    code, _, err = run("select", "--min-yield-mpa", "800", "--allow", "nosuchrule")
-    assert code == 2 and "allow" in err and "quench_cracking" in err
+def test_grades_lists_the_catalogue():
+    code, out, _ = run("grades")
+    assert code == 0 and "4140" in out and "alloy_steel" in out

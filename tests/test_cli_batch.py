@@ -1,11 +1,11 @@
-"""CLI verb `selector batch` (selector.views.cli_batch)."""
+"""CLI verb `selector batch` (selector.views.cli.batch)."""
 import pandas as pd
 import pytest
 
 import selector
 from selector.design import batch as batch_mod
 from selector.views.cli import main
-from selector.views.cli_batch import ProgressBar
+from selector.views.cli.batch import ProgressBar
 
 CSV = """part_id,diameter_mm,length_mm,quantity_per_year,min_yield_mpa,min_uts_mpa,min_elongation_pct
 K-1,25,120,500,600,800,

@@ -139,11 +139,15 @@ def _bath(verb: str):
 
 
 def _supply(step, fmt):
+    """``bought cold drawn and stress relieved (ASTM A311 class B)``; a designation that holds its
+    own parentheses follows a comma (``bought solution treated and aged, H1050 (ASTM A564)``)."""
     cond = step.get("condition")
-    text = "bought " + CONDITIONS.get(str(cond), str(cond).replace("_", " "))
-    if step.get("designation"):
-        text += f" ({step['designation']})"
-    return text
+    words = CONDITIONS.get(str(cond), str(cond).replace("_", " "))
+    des = step.get("designation")
+    if not des:
+        return f"bought {words}"
+    words = words.split(" (")[0]
+    return f"bought {words}, {des}" if "(" in des else f"bought {words} ({des})"
 
 
 #: op -> words of one step (step mapping, formatter) -> str

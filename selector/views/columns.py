@@ -42,8 +42,8 @@ import pandas as pd
 from ..routes.describe import case_words, parameter_words
 from ..routes.evaluate import scale_hardness
 from ..rules.cautions import CAUTIONS
-from .units import SI, check_system, convert_frame, hardness_scale, round_to, route_words, significant, \
-    to_display, unit, value_text
+from .units import QUANTITIES, SI, check_system, convert_frame, hardness_scale, quantity_of, round_to, \
+    route_words, significant, to_display, unit, value_text
 
 #: the 90 % band of the estimate (selector.routes.bands)
 BAND_LEVEL = "90 %"
@@ -259,8 +259,8 @@ READABLE: Sequence[Readable] = (
              else round_to(100.0 * df["p_meet"].to_numpy(float), STEPS["p_meet"])),
     Readable(lambda v: "process window", "the range of the route's main parameter over which the targets are "
              "met (chosen units)", _window),
-    Readable(lambda v: "avoid", "caution rules of severity 'avoid' that apply (such candidates come last)",
-             _avoid),
+    Readable(lambda v: "avoid cautions", "caution rules of severity 'avoid' that apply (such candidates come "
+             "last; the rule codes are in the ``avoid`` column of all columns)", _avoid),
 )
 
 
@@ -277,7 +277,45 @@ def column_descriptions(system: str = SI, hardness: str | None = None) -> dict[s
     return {c.header(view): c.description for c in READABLE}
 
 
-def default_view(df: pd.DataFrame, system: str = SI, hardness: str | None = None) -> pd.DataFrame:
+#: words of an internal name's parts in a header (``uts`` reads "tensile")
+NAME_WORDS = {"uts": "tensile", "hrc": "(HRC)", "hv": "(HV)", "hb": "(HB)", "pct": "(%)"}
+
+
+def readable_name(name: str, system: str = SI) -> str:
+    """A plain header for an internal column outside the default set: ``move_min_yield_mpa``
+    -> ``"move min yield (MPa)"`` (``"(ksi)"`` in US units), ``diameter_mm`` -> ``"diameter (mm)"``,
+    ``saving_per_kg`` -> ``"saving (per kg)"``, ``miss_score`` -> ``"miss score"``."""
+    q = quantity_of(name)
+    stem = name
+    tail = ""
+    if q is not None:
+        suffix = QUANTITIES[q].si_suffix
+        stem = name[: -len(suffix)] if name.endswith(suffix) else name.rsplit("_", 1)[0]
+        tail = f" ({unit(q, system)})"
+    words = [NAME_WORDS.get(w, w) for w in stem.split("_") if w]
+    return " ".join(words) + tail
+
+
+def _extra(df: pd.DataFrame, names: Sequence[str], view: View) -> dict:
+    out = {}
+    for name in names:
+        if name not in df:
+            continue
+        col = df[name]
+        q = quantity_of(name)
+        if pd.api.types.is_numeric_dtype(col) and not pd.api.types.is_bool_dtype(col):
+            vals = col.to_numpy(float)
+            if q is not None:
+                vals = to_display(vals, q, view.system)
+            col = [significant(x, 4) for x in vals]
+        else:
+            col = col.tolist()
+        out[readable_name(name, view.system)] = col
+    return out
+
+
+def default_view(df: pd.DataFrame, system: str = SI, hardness: str | None = None, lead: Sequence[str] = (),
+                 extra: Sequence[str] = ()) -> pd.DataFrame:
     """The readable default columns of a candidates table (``select``, ``alternatives``,
     nearest misses, a sweep): plain headers with units, rounded, the route in words.
     A column whose source is absent from ``df`` is left out.
@@ -291,25 +329,33 @@ def default_view(df: pd.DataFrame, system: str = SI, hardness: str | None = None
     hardness : str, optional
         ``"HRC"``, ``"HB"`` or ``"HV"``; default the system's
         (:func:`selector.views.units.hardness_scale`).
+    lead, extra : sequence of str
+        Internal columns of a particular table to show before / after the default ones
+        (a sweep's ``diameter_mm``, the nearest misses' ``move_*``), with headers from
+        :func:`readable_name`, converted to ``system`` and rounded to 4 significant figures.
 
     Returns
     -------
     DataFrame
-        Same rows and index, columns :func:`default_headers` present in ``df``.
+        Same rows and index, columns :func:`default_headers` present in ``df`` (with
+        ``lead`` before and ``extra`` after).
     """
     view = View.of(system, hardness)
-    out = pd.DataFrame(index=df.index)
+    cols = dict(_extra(df, lead, view))
     for c in READABLE:
         vals = c.build(df, view)
         if vals is not None:
-            out[c.header(view)] = list(vals) if not isinstance(vals, np.ndarray) else vals
+            cols[c.header(view)] = list(vals)
+    cols.update(_extra(df, [e for e in extra if e not in lead], view))
+    out = pd.DataFrame(cols, index=df.index)
     return out
 
 
-def all_columns_view(df: pd.DataFrame, system: str = SI, hardness: str | None = None) -> pd.DataFrame:
+def all_columns_view(df: pd.DataFrame, system: str = SI, hardness: str | None = None, lead: Sequence[str] = (),
+                     extra: Sequence[str] = ()) -> pd.DataFrame:
     """:func:`default_view` followed by every other column of ``df`` (internal names,
     full precision, in ``system``'s units and renamed there: ``yield_ksi``).  ``route``
     stays the list of steps in SI, as ``evaluate`` and ``--route-json`` take it."""
-    head = default_view(df, system, hardness)
+    head = default_view(df, system, hardness, lead, extra)
     rest = convert_frame(df.drop(columns=[c for c in df.columns if c in head.columns]), system)
     return pd.concat([head, rest], axis=1)

@@ -1,6 +1,7 @@
-"""CLI verb ``selector batch``: a parts list in, candidates per part (and optionally a
-rationalised stock list) out.  Only calls the library and formats its answer; the
-progress bar goes to stderr so stdout stays clean."""
+"""``selector batch``: a parts list in, candidates per part (and optionally a rationalised
+stock list) out.  Only calls the library and formats its answer; the progress bar goes to
+stderr so stdout stays clean.  The result files keep the library's columns
+(``selector.design.batch.RESULT_COLUMNS``, docs/batch.md): they are data for other programs."""
 from __future__ import annotations
 
 import json
@@ -10,8 +11,11 @@ from pathlib import Path
 
 import pandas as pd
 
-from .. import CAUTION
-from ..errors import InputError
+from ...errors import InputError
+from .args import price_sheet
+from .output import print_caution
+
+NAME = "batch"
 
 OUT_SUFFIXES = (".parquet", ".csv")
 
@@ -60,9 +64,8 @@ def _stock_path(out: Path) -> Path:
     return out.with_name(out.stem + "_stock" + out.suffix)
 
 
-def cmd_batch(args) -> int:
-    from .. import batch, rationalise
-    from .cli_more import _price_sheet
+def run(args) -> int:
+    from ... import batch, rationalise     # the library (and Dask), at run time (selector.views.cli)
 
     out = Path(args.out)
     if out.suffix.lower() not in OUT_SUFFIXES:
@@ -72,7 +75,7 @@ def cmd_batch(args) -> int:
     bar = None if args.quiet else ProgressBar(sys.stderr)
     if args.top < 0:
         raise InputError("--top", args.top, "a whole number >= 0 (0: every candidate)")
-    res = batch(args.parts, top=args.top or None, scheduler=args.scheduler, price_sheet=_price_sheet(args),
+    res = batch(args.parts, top=args.top or None, scheduler=args.scheduler, price_sheet=price_sheet(args),
                 robust_only=args.robust_only, per_grade=args.rationalise, progress=bar)
     _write(res, out)
     n_parts = res["part_id"].nunique()
@@ -105,12 +108,12 @@ def cmd_batch(args) -> int:
         print(f"\nassignment written to {spath}")
         if args.json:
             print(json.dumps({"grades": st["grades"], "total_cost": st["total_cost"], "gap": st["gap"]}))
-    print(f"\nCAUTION: {CAUTION}")
+    print_caution()
     return 0
 
 
-def add_commands(sub) -> None:
-    b = sub.add_parser("batch", help="a parts list (CSV or Parquet): candidates per part, optional stock list")
+def add_command(sub) -> None:
+    b = sub.add_parser(NAME, help="a parts list (CSV or Parquet): candidates per part, optional stock list")
     b.add_argument("parts", help="parts list, CSV or Parquet (columns: docs/batch.md)")
     b.add_argument("--out", required=True, help="result file, .parquet or .csv")
     b.add_argument("--top", type=int, default=5, help="candidates kept per part (default 5; 0: all); with "
@@ -128,4 +131,4 @@ def add_commands(sub) -> None:
     b.add_argument("--robust-only", action="store_true", help="only candidates that hold at every corner")
     b.add_argument("--quiet", action="store_true", help="no progress bar")
     b.add_argument("--json", action="store_true", help="also print the stock summary as JSON")
-    b.set_defaults(func=cmd_batch)
+    b.set_defaults(func=run)

@@ -1,20 +1,20 @@
-"""CLI command ``selector validate``: recompute every reference row and write the
+"""``selector validate``: recompute every reference row and write the
 validation report (``docs/validation.md`` and its PNG parity plots).  Only calls
 :func:`selector.validation.report.run` and prints its summary."""
 from __future__ import annotations
 
 import sys
+from pathlib import Path
 
-from .. import CAUTION
+from ...errors import DataFileError, InputError
+from .output import print_caution
+
+NAME = "validate"
 
 
-def _writable_target(field: str, path: str | None, folder: bool = False) -> None:
+def writable_target(field: str, path: str | None, folder: bool = False) -> None:
     """A clear error before any work when ``path`` cannot be written: its parent
     (or, for a folder, an existing ancestor) must be a folder."""
-    from pathlib import Path
-
-    from ..errors import InputError
-
     if path is None:
         return
     if "\x00" in path:
@@ -31,12 +31,11 @@ def _writable_target(field: str, path: str | None, folder: bool = False) -> None
         raise InputError(field, path, f"a path inside a folder ({anc} is a file, not a folder)")
 
 
-def cmd_validate(args) -> int:
-    from ..errors import DataFileError
-    from ..validation import report
+def run(args) -> int:
+    from ...validation import report     # the library (and matplotlib), at run time (selector.views.cli)
 
-    _writable_target("--out", args.out)
-    _writable_target("--figures", args.figures, folder=True)
+    writable_target("--out", args.out)
+    writable_target("--figures", args.figures, folder=True)
     try:
         res = report.run(args.out, args.figures)
     except OSError as exc:
@@ -51,15 +50,15 @@ def cmd_validate(args) -> int:
         print(f"no threshold documented for: {msg}", file=sys.stderr)
     for msg in res["violations"]:
         print(f"threshold exceeded: {msg}", file=sys.stderr)
-    print(f"\nCAUTION: {CAUTION}")
+    print_caution()
     return 1 if res["violations"] or (args.strict and res["undocumented"]) else 0
 
 
-def add_commands(sub) -> None:
-    v = sub.add_parser("validate", help="recompute the published reference rows and write the validation report")
+def add_command(sub) -> None:
+    v = sub.add_parser(NAME, help="recompute the published reference rows and write the validation report")
     v.add_argument("--out", default="docs/validation.md", help="report file (default docs/validation.md)")
     v.add_argument("--figures", default=None,
                    help="folder for the PNG parity plots (default: the report path without .md)")
     v.add_argument("--strict", action="store_true",
                    help="also fail when a compared group has no documented threshold")
-    v.set_defaults(func=cmd_validate)
+    v.set_defaults(func=run)
