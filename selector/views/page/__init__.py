@@ -16,11 +16,12 @@ The names below are the page's public helpers (``from selector.views import page
 Results are estimates for preliminary selection; see :data:`selector.CAUTION`.
 """
 
+from selector.views.notice import DEFER_NOTICE  # noqa: F401
 from .units import DIGITS, UNIT_INPUTS, convert_inputs, si_key  # noqa: F401
 from selector.views.units import (  # noqa: F401
     HARDNESS_SCALES, SI, UNIT_SYSTEMS, US, display_name, quantity_of, to_display, to_si, unit)
 from .inputs import (  # noqa: F401
-    read_route_steps, blank_inputs, demo_title, example_inputs, DEFER_NOTICE, DEMO, ENVIRONMENTS, LOAD_MODEL_LABELS, PIN_INPUT_KEYS, PIN_TARGET_KEYS,
+    read_route_steps, blank_inputs, demo_title, example_inputs, DEMO, ENVIRONMENTS, LOAD_MODEL_LABELS, PIN_INPUT_KEYS, PIN_TARGET_KEYS,
     SHEAR_PLANE_LABELS, SWEEP_LABELS, SWEEP_MODES, SWEEP_SECONDS_PER_DIAMETER, TARGET_FIELDS,
     capacity_for, check_families, check_service, convert_length_text, explain, format_lengths,
     inputs_from_pin, parse_lengths, pin_case_from_inputs, pin_grip_mm, pin_report_for, read_heat,

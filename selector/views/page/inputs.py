@@ -18,7 +18,7 @@ from selector.design.sweep import diameter_range, pin_length_mm
 from selector.errors import DataFileError, InputError, safe_repr, SelectorError
 from selector.inputs import MAX_RANGE_VALUES
 from selector.rules.cautions import check_context
-from selector.views.cli import parse_step_text
+from selector.views.cli.args import parse_step_text
 from selector.views.units import SI, US, to_display, to_si, unit
 
 from .units import DIGITS, si_key
@@ -60,10 +60,6 @@ def demo_title(system: str) -> str:
             f"{'double' if c['shear_planes'] == 2 else 'single'} shear, safety factor {c['safety_factor']:g}; "
             "see docs/demo.md")
 
-#: The notice shown on every view, after :data:`selector.CAUTION`.
-DEFER_NOTICE = ("Parts chosen here can hurt people when they fail. Defer to the applicable design "
-                "code and local regulations, certified material test reports for the actual heat, "
-                "and review by a qualified, licensed engineer.")
 
 def si_targets(targets: Mapping) -> dict:
     """SI targets with the unit-bearing values rounded by :func:`si_key` (the others unchanged)."""
