@@ -42,15 +42,15 @@ import pandas as pd
 from ..routes.describe import case_words, parameter_words
 from ..routes.evaluate import scale_hardness
 from ..rules.cautions import CAUTIONS
-from .units import QUANTITIES, SI, check_system, convert_frame, hardness_scale, quantity_of, round_to, \
+from .units import QUANTITIES, SI, US, check_system, convert_frame, hardness_scale, quantity_of, round_to, \
     route_words, significant, to_display, unit, value_text
 
 #: the 90 % band of the estimate (selector.routes.bands)
 BAND_LEVEL = "90 %"
 
 #: rounding step of each shown quantity: (quantity or scale, system) -> step
-STEPS = {("stress", "SI"): 5.0, ("stress", "US customary"): 1.0,
-         ("length", "SI"): 0.05, ("length", "US customary"): 0.002,
+STEPS = {("stress", SI): 5.0, ("stress", US): 1.0,
+         ("length", SI): 0.05, ("length", US): 0.002,
          "elongation": 0.5, "HRC": 1.0, "HB": 5.0, "HV": 5.0, "p_meet": 1.0}
 
 #: column of the library's table for each hardness scale: (at the test location, at the surface)
