@@ -113,7 +113,7 @@ with st.sidebar:
                   "HRC and HB from the library's HV on the steel table of ASTM E140.")
     system = ss["units"]
     hs = ss.get("hardness_scale", "HRC")
-    su, lu = pg.unit("stress", system), pg.unit("length", system)
+    su, lu, mu = pg.unit("stress", system), pg.unit("length", system), pg.mass_unit(system)
     lfmt = "%.3f" if system == pg.US else "%.1f"
     sfmt = "%.1f" if system == pg.US else "%.0f"
     st.radio("Section", ("round bar", "plate"), key="shape", horizontal=True)
@@ -302,10 +302,10 @@ def candidate_view(cand, states):
                      "included); every composition corner at once: "
                      + ("yes" if row.get("corners_meet") else "no"))
     m = st.columns(3)
-    m[0].metric("Material / kg", f"{row['material_cost_per_kg']:.3g}", help="Relative price of the bar per kg "
-                f"({row.get('price_source', '')}); 1018 bar = 1.")
-    m[1].metric("Processing / kg", f"{row['processing_cost_per_kg']:.3g}",
-                help="Indicative processing adder of the route family per kg (data/route_costs.csv).")
+    m[0].metric(f"Material / {mu}", pg.per_mass_text(row["material_cost_per_kg"], system),
+                help=f"Relative price of the bar per {mu} ({row.get('price_source', '')}); 1 kg of 1018 bar = 1.")
+    m[1].metric(f"Processing / {mu}", pg.per_mass_text(row["processing_cost_per_kg"], system),
+                help=f"Indicative processing adder of the route family per {mu} (data/route_costs.csv).")
     m[2].metric("Part cost", f"{row['part_cost']:.3g}", help=f"Per kg × the part's mass ({row['mass_kg']:.3g} kg).")
     st.markdown(f"**Surface and case:** {pg.case_text(row, system, hs)}")
     st.caption(pg.band_text(ev, system))
@@ -615,9 +615,9 @@ def alternatives_view(cand):
     ref = alt.attrs["reference"]
     st.markdown(f"**Reference:** {ref['grade']} · {pg.route_line(route, system, ref.get('route_text'))}")
     m = st.columns(3)
-    m[0].metric("Material / kg", f"{ref['material_cost_per_kg']:.3g}")
-    m[1].metric("Processing / kg", f"{ref['processing_cost_per_kg']:.3g}")
-    m[2].metric("Total / kg", f"{ref['relative_cost']:.3g}")
+    m[0].metric(f"Material / {mu}", pg.per_mass_text(ref["material_cost_per_kg"], system))
+    m[1].metric(f"Processing / {mu}", pg.per_mass_text(ref["processing_cost_per_kg"], system))
+    m[2].metric(f"Total / {mu}", pg.per_mass_text(ref["relative_cost"], system))
     st.caption("Matched on its " + ("strength" if ref["basis"] == "strength" else "hardness (its strength is beyond "
                "the tensile column of ASTM A370 Table 3)") + "; prices in use: " + prices_in_use + ".")
     if len(alt) == 0:

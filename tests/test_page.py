@@ -880,3 +880,6 @@ def test_default_columns_are_readable_and_all_columns_are_behind_a_switch(at):
     _run(at)
     us = _readable(at)
     assert "yield (ksi)" in us.columns and "case depth (in)" in us.columns and "yield (MPa)" not in us.columns
+    # prices per lb: the per-kg price x 0.45359237 kg/lb (exact, NIST SP 811 (2008), B.8)
+    assert "material / lb" in us.columns and "material / kg" not in us.columns
+    np.testing.assert_allclose(us["material / lb"], shown["material / kg"] * 0.45359237, rtol=2e-2)

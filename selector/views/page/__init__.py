@@ -21,21 +21,22 @@ from .units import DIGITS, UNIT_INPUTS, convert_inputs, si_key  # noqa: F401
 from selector.views.units import (  # noqa: F401
     HARDNESS_SCALES, SI, UNIT_SYSTEMS, US, display_name, quantity_of, to_display, to_si, unit)
 from .inputs import (  # noqa: F401
-    read_route_steps, blank_inputs, demo_title, example_inputs, DEMO, ENVIRONMENTS, LOAD_MODEL_LABELS, PIN_INPUT_KEYS, PIN_TARGET_KEYS,
-    SHEAR_PLANE_LABELS, SWEEP_LABELS, SWEEP_MODES, SWEEP_SECONDS_PER_DIAMETER, TARGET_FIELDS,
-    capacity_for, check_families, check_service, convert_length_text, explain, format_lengths,
+    DEMO, ENVIRONMENTS, LOAD_MODEL_LABELS, PIN_INPUT_KEYS, PIN_TARGET_KEYS, SHEAR_PLANE_LABELS,
+    SWEEP_LABELS, SWEEP_MODES, SWEEP_SECONDS_PER_DIAMETER, TARGET_FIELDS, blank_inputs, capacity_for,
+    check_families, check_service, convert_length_text, demo_title, example_inputs, explain, format_lengths,
     inputs_from_pin, parse_lengths, pin_case_from_inputs, pin_grip_mm, pin_report_for, read_heat,
-    read_price_sheet, route_json, service_context, si_targets, sweep_diameters, targets_from_inputs,
-    targets_key)
+    read_price_sheet, read_route_steps, route_json, service_context, si_targets, sweep_diameters,
+    targets_from_inputs, targets_key)
 from .text import (  # noqa: F401
-    case_text, hardness_text, first_through_and_case, pin_target_explanations, prices_in_use, settings_line, avoid_rule_label, avoid_rules, band_text, candidate_cautions, label_candidates, percent, pick_label,
-    ranking_summary, route_line, route_steps, to_csv)
+    avoid_rule_label, avoid_rules, band_text, candidate_cautions, case_text, family_label,
+    first_through_and_case, hardness_text, label_candidates, mass_unit, per_mass_text, percent, pick_label,
+    pin_target_explanations, prices_in_use, ranking_summary, route_line, route_steps, settings_line, to_csv)
 from .tables import (  # noqa: F401
-    alternatives_table, SWEEP_SHOWN, capacity_table, comparison_table, display_table, fmt_window, miss_table,
-    pin_stress_table, reachable_table, sweep_table)
+    SWEEP_SHOWN, alternatives_table, capacity_table, comparison_table, display_table, fmt_window,
+    miss_table, pin_stress_table, reachable_table, sweep_table)
 from .cache import (  # noqa: F401
-    cached_alternatives, cached_evaluate, cached_miss_analysis, cached_nearest_misses, cached_prepare, cached_rank,
-    cached_sweep, cached_variant_states)
+    cached_alternatives, cached_evaluate, cached_miss_analysis, cached_nearest_misses, cached_prepare,
+    cached_rank, cached_sweep, cached_variant_states)
 from .charts import (  # noqa: F401
     COMPARE_COLOURS, chart_frames, comparison_bars, comparison_frame, fatigue_depth_chart,
     fatigue_depth_frame, frontier_chart, hull_band, parameter_charts, parameter_frame, profile_chart,

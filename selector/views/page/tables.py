@@ -12,7 +12,7 @@ from selector.views.columns import all_columns_view, default_view
 from selector.views.units import SI, US, display_name, quantity_of, significant, to_display, unit
 
 from .inputs import FIELD_LABELS, route_json
-from .text import case_text, hardness_text, param_label, param_unit, route_line
+from .text import mass_unit, case_text, hardness_text, param_label, param_unit, route_line
 
 
 # --------------------------------------------------------------------------- table for display
@@ -46,9 +46,11 @@ def display_table(cand: pd.DataFrame, system: str, hardness: str | None = None,
     view = view.drop(columns=[c for c in ("id",) if c in view.columns])
     view.insert(0, "id", list(cand["id"]) if "id" in cand else [f"C{i + 1}" for i in range(len(cand))])
     if not all_columns:
-        for col, header in (("material_cost_per_kg", "material / kg"), ("processing_cost_per_kg", "processing / kg")):
+        per = mass_unit(system)
+        for col, what in (("material_cost_per_kg", "material"), ("processing_cost_per_kg", "processing")):
             if col in cand:
-                view[header] = [significant(v, 3) for v in cand[col].to_numpy(float)]
+                view[f"{what} / {per}"] = [significant(v, 3) for v in
+                                           to_display(cand[col].to_numpy(float), "cost_per_mass", system)]
     if "route" in view:
         view["route"] = [route_json(r) if isinstance(r, (list, tuple)) else str(r) for r in view["route"]]
     for col in view.columns:       # a column of numbers and words (case depth or "through-hardened") as text
@@ -182,18 +184,20 @@ def capacity_table(cap: Mapping, system: str) -> pd.DataFrame:
 def alternatives_table(alt: pd.DataFrame, system: str) -> pd.DataFrame:
     """Cheaper alternatives (:func:`~selector.selection.engine.alternatives` with the
     cost split of :func:`~selector.selection.cost_split.split_cost`) with plain column
-    names in display units: the material and the processing cost shown apart."""
-    su = unit("stress", system)
+    names in display units (cost per kg or per lb): the material and the processing
+    cost shown apart."""
+    su, per = unit("stress", system), mass_unit(system)
     out = pd.DataFrame({
         "grade": alt["grade"],
         "route": [route_line(r, system, t) for r, t in zip(alt["route"], alt["route_text"])],
         f"yield ({su})": np.round(to_display(alt["yield_mpa"].to_numpy(float), "stress", system), 0 if system == SI else 1),
         f"tensile ({su})": np.round(to_display(alt["uts_mpa"].to_numpy(float), "stress", system), 0 if system == SI else 1),
         "elongation (%)": alt["elongation_pct"].astype(float).round(1),
-        "material / kg": alt["material_cost_per_kg"].astype(float).round(3),
-        "processing / kg": alt["processing_cost_per_kg"].astype(float).round(3),
-        "total / kg": alt["relative_cost"].astype(float).round(3),
-        "saving / kg": alt["saving_per_kg"].astype(float).round(3),
+        f"material / {per}": np.round(to_display(alt["material_cost_per_kg"].to_numpy(float), "cost_per_mass", system), 3),
+        f"processing / {per}": np.round(to_display(alt["processing_cost_per_kg"].to_numpy(float), "cost_per_mass",
+                                                   system), 3),
+        f"total / {per}": np.round(to_display(alt["relative_cost"].to_numpy(float), "cost_per_mass", system), 3),
+        f"saving / {per}": np.round(to_display(alt["saving_per_kg"].to_numpy(float), "cost_per_mass", system), 3),
         "material per part": alt["material_part_cost"].astype(float).round(4),
         "processing per part": alt["processing_part_cost"].astype(float).round(4),
         "meets the targets (%)": (100.0 * alt["p_meet"].astype(float)).round(1),

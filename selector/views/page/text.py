@@ -301,3 +301,14 @@ def case_text(row: Mapping, system: str, scale: str = "HRC") -> str:
         return f"{surf} {scale}, {to_display(depth, 'length', system):.2g} {unit('length', system)}"
     words = case_words(list(row.get("route") or [])) or "no case"
     return words
+
+
+def mass_unit(system: str) -> str:
+    """``kg`` or ``lb``: the mass a price is quoted per in ``system`` (the shared units table's
+    ``cost_per_mass``)."""
+    return unit("mass", system)
+
+
+def per_mass_text(value_per_kg, system: str) -> str:
+    """A relative price per kg as text per kg or per lb (3 significant figures)."""
+    return f"{to_display(float(value_per_kg), 'cost_per_mass', system):.3g}"
