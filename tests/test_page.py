@@ -420,6 +420,15 @@ def test_chart_frames_hold_each_candidate_region_and_path():
     # colour by route family: the library's family label on every frame
     from selector.routes import families
     assert list(f["points"]["family"]) == [families.get(r).label for r in cand["route_family"]]
+    # direct labels: the focus always; no two written labels on top of each other
+    pts = f["points"]
+    assert pts.loc[pts["id"] == "C1", "tag"].iloc[0].startswith("C1")
+    shown = pts[pts["tag"] != ""]
+    sx, sy = np.ptp(states["elongation_pct"]), np.ptp(states["yield_mpa"])
+    for i in range(len(shown)):
+        for j in range(i):
+            a, b = shown.iloc[i], shown.iloc[j]
+            assert abs(a["x"] - b["x"]) / sx >= 0.1 or abs(a["y"] - b["y"]) / sy >= 0.05
     # each chosen point lies inside its own region band
     for _, p in f["points"].iterrows():
         b = f["regions"][f["regions"]["id"] == p["id"]]

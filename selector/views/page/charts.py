@@ -120,11 +120,32 @@ def chart_frames(states: pd.DataFrame, cand: pd.DataFrame, y: str, system: str,
                         "set": np.where(cand["pareto"].astype(bool), "Pareto set", "meets targets"),
                         "focus": (cand["id"] == picked).to_numpy(),
                         "cost": cand["relative_cost"].to_numpy(float)})
+    pts["tag"] = _declutter(pts["x"].to_numpy(float), pts["y"].to_numpy(float), list(pts["tag"]),
+                            pts["focus"].to_numpy(bool), span_x, span_y)
     for frame in (reg, pth, pts):
         for col in ("y", "lo", "hi"):
             if col in frame:
                 frame[col] = to_display(frame[col].to_numpy(float), "stress", system)
     return {"regions": reg, "paths": pth, "points": pts}
+
+
+#: nearest distance between two direct labels on the map, as a share of the drawn spread
+LABEL_GAP = 0.05
+
+
+def _declutter(x: np.ndarray, y: np.ndarray, tags: list, focus: np.ndarray, span_x: float, span_y: float) -> list:
+    """The direct labels of the chosen states with those too close to a label already
+    placed left blank (the focus first, then in rank order): a crowded corner keeps one
+    readable label; every state stays in the tooltip and the table."""
+    sx, sy = (span_x or 1.0), (span_y or 1.0)
+    order = list(np.flatnonzero(focus)) + [i for i in range(len(tags)) if not focus[i]]
+    placed, out = [], list(tags)
+    for i in order:
+        if any(abs(x[i] - x[j]) / sx < LABEL_GAP * 2 and abs(y[i] - y[j]) / sy < LABEL_GAP for j in placed):
+            out[i] = ""
+        else:
+            placed.append(i)
+    return out
 
 
 def _param_text(v: float, q: str | None, u: str) -> str:
@@ -166,7 +187,8 @@ def strength_elongation_chart(frames: dict, targets: Mapping, y: str, system: st
     corners and the window is two **thin dotted edges** (lower and upper), not a
     filled area; **colour is the route family** (one short legend of families);
     each chosen state is a **square** (filled: Pareto set; open: meets the targets)
-    labelled directly with its id (and grade, for the Pareto set and the focus); the
+    labelled directly with its id (and grade, for the Pareto set and the focus; in a
+    crowded corner only the first label is written); the
     candidate in focus has a heavy path
     and a cross-hair on its chosen state; the **targets** are dashed limit lines, each
     named at its end, with a check-mark text in the corner that meets them all."""
@@ -246,7 +268,8 @@ def strength_elongation_chart(frames: dict, targets: Mapping, y: str, system: st
                                    alt.Tooltip("x:Q", title="elongation %", format=".1f"),
                                    alt.Tooltip("y:Q", title=su, format=".4g"),
                                    alt.Tooltip("cost:Q", title="relative cost/kg", format=".2f")]))
-    layers.append(alt.Chart(pts).mark_text(align="left", dx=8, dy=-8, fontWeight="bold", fontSize=11)
+    layers.append(alt.Chart(pts[pts["tag"] != ""]).mark_text(align="left", dx=8, dy=-8, fontWeight="bold",
+                                                             fontSize=11)
                   .encode(x=x, y=yy, text="tag:N", color=colour))
     if picked is not None and (pts["id"] == picked).any():
         layers.append(alt.Chart(pts[pts["id"] == picked]).mark_point(shape="cross", size=520, filled=False,
