@@ -11,7 +11,7 @@ import pandas as pd
 import streamlit as st
 
 import selector
-from selector.design.sweep_routes import diameter_sweep_routes
+from selector.design.sweep_picks import sweep_with_picks
 from selector.selection import engine
 from selector.selection.cost_split import split_cost
 
@@ -80,14 +80,14 @@ def cached_evaluate(grade: str, route_json: str, diameter_mm, thickness_mm, comp
 @st.cache_data(show_spinner=False, max_entries=16)
 def cached_sweep(diameters_mm: tuple, case_json: str, extra_json: str = "{}", price_items=(),
                  context_json: str = "{}") -> pd.DataFrame:
-    """:func:`selector.design.sweep_routes.diameter_sweep_routes` of the load case
+    """:func:`selector.design.sweep_picks.sweep_with_picks` of the load case
     (``case_json``: the keywords of ``pin_report`` but the diameter), with the
     sidebar's other targets (``extra_json``), the price sheet and the service
     conditions for the cautions; ``route`` holds the steps of each pick.  Cached per
     argument set: the sweep runs the selection once per diameter."""
-    return diameter_sweep_routes(list(diameters_mm), **json.loads(case_json),
-                                 extra_targets=json.loads(extra_json) or None,
-                                 price_sheet=_prices(price_items), caution_context=json.loads(context_json))
+    return sweep_with_picks(list(diameters_mm), **json.loads(case_json),
+                            extra_targets=json.loads(extra_json) or None,
+                            price_sheet=_prices(price_items), caution_context=json.loads(context_json))
 
 
 @st.cache_data(show_spinner="Looking for cheaper alternatives…", max_entries=32)

@@ -137,7 +137,8 @@ def sweep_table(sw: pd.DataFrame, system: str) -> pd.DataFrame:
     ``min_yield_ksi`` in US units), the route text in °F in US units."""
     df = sw.copy()
     if system == US and "route" in df:
-        df["route_text"] = [route_line(json.loads(r) if isinstance(r, str) else r, system) if len(r) else t
+        df["route_text"] = [route_line(json.loads(r) if isinstance(r, str) else r, system)
+                            if (r is not None and len(r)) else t
                             for r, t in zip(df["route"], df["route_text"])]
     df = df[[c for c in SWEEP_SHOWN if c in df]]
     rename = {}
