@@ -14,50 +14,52 @@ import selector
 from selector.catalogue.grades import FAMILIES
 from selector.design.sweep import changes
 from selector.errors import SelectorError
+from selector.selection.cost_split import split_cost
 from selector.selection.targets import validate_targets
+from selector.routes.transformation_curves import candidate_curves
 from selector.views import page as pg
+from selector.views.charts_beyond import transformation_diagram
 
 st.set_page_config(page_title="selector · grade and route finder", page_icon="🔩", layout="wide")
 
 
 # ----------------------------------------------------------------------------- state defaults
+def _set_inputs(values: dict) -> None:
+    for k, v in values.items():
+        st.session_state[k] = v
+
+
 def _defaults():
-    d = pg.DEMO
+    """First run: the example is loaded (labelled as such); "New part" clears it."""
     ss = st.session_state
     if "_init" in ss:
         return
     ss["_init"] = True
     ss["units"] = pg.SI
     ss["_units_prev"] = pg.SI
-    ss["shape"] = "round bar" if d["shape"] == "round" else "plate"
-    ss["diameter"] = d["diameter_mm"]
-    ss["thickness"] = d["thickness_mm"]
-    ss["length"] = d["length_mm"]
-    for key, (wkey, _, _) in pg.TARGET_FIELDS.items():
-        ss[wkey] = d["targets"].get(key)
-    ss["families"] = list(FAMILIES)
-    ss["robust_only"] = bool(d.get("robust_only"))
-    sv = d.get("service", {})
-    ss["plated"] = bool(sv.get("plated", False))
-    ss["plating"] = sv.get("plating", "")
-    ss["mating"] = sv.get("mating_material", "")
-    ss["environment"] = sv.get("environment", "normal")
-    ss["service_temp"] = sv.get("service_temp_c")
-    pin = d.get("pin") or {}
-    ss["pin_load"] = pin.get("load_kn")
-    ss["pin_diameter"] = pin.get("diameter_mm")
-    ss["pin_planes"] = int(pin.get("shear_planes", 2))
-    ss["pin_model"] = "uniform"
-    ss["pin_lug"] = pin.get("lug_thickness_mm")
-    ss["pin_clevis"] = pin.get("clevis_thickness_mm")
-    ss["pin_gap"] = pin.get("gap_mm", 0.0)
-    ss["pin_sf"] = pin.get("safety_factor", 2.0)
-    ss["pin_wear_hrc"] = pin.get("wear_surface_hardness_hrc")
-    sweep_d = pin.get("sweep_diameters_mm") or [20.0, 25.0, 30.0]
-    ss["sweep_mode"] = pg.SWEEP_MODES[0]
-    ss["sweep_list"] = pg.format_lengths(sweep_d, pg.SI)
-    ss["sweep_from"], ss["sweep_to"] = min(sweep_d), max(sweep_d)
-    ss["sweep_step"] = 2.0
+    _set_inputs(pg.example_inputs(pg.SI))
+    ss["_scenario"] = "example"
+    ss["_upload_gen"] = 0
+    ss["hardness_scale"] = "HRC"
+
+
+def _new_part():
+    """Everything back to blank: no section, no targets, no service conditions, no pin,
+    catalogue prices (a loaded price file is dropped), every family, no filter."""
+    ss = st.session_state
+    _set_inputs(pg.blank_inputs(ss["units"]))
+    for k in ("_prices_ok", "_prices_name", "_sweep", "_parts", "_prefill_compare"):
+        ss.pop(k, None)
+    ss["_upload_gen"] = ss.get("_upload_gen", 0) + 1
+    ss["_scenario"] = "new"
+
+
+def _load_example():
+    ss = st.session_state
+    _set_inputs(pg.example_inputs(ss["units"]))
+    for k in ("_sweep", "_prefill_compare"):
+        ss.pop(k, None)
+    ss["_scenario"] = "example"
 
 
 def _units_changed():
@@ -80,12 +82,18 @@ def _apply_pin():
     for k, v in pg.inputs_from_pin(rep, case, system).items():
         ss[k] = v
     ss["_pin_applied"] = True
+    ss["_prefill_compare"] = True      # side by side: first through-hardened and first case-hardened
 
 
 _defaults()
 ss = st.session_state
 T0 = time.perf_counter()
 timings = {}
+
+
+def message(text: str) -> None:
+    """An input message: after "New part" a blank input is the next step (info), else an error."""
+    (st.info if ss.get("_scenario") == "new" and ": blank;" in text else st.error)(text)
 
 
 def notice(where: str):
@@ -95,11 +103,19 @@ def notice(where: str):
 
 # ----------------------------------------------------------------------------- inputs (sidebar)
 with st.sidebar:
+    st.button("New part (clear everything)", key="new_part", on_click=_new_part, width="stretch",
+              help="Clear everything: section, targets, service conditions, pin, filters and price sheet.")
+    st.button("Load the example", key="load_example", on_click=_load_example, width="stretch",
+              help="The invented demo part of docs/demo.md, with its targets and service conditions.")
     st.markdown("### Part")
     st.radio("Units", pg.UNIT_SYSTEMS, key="units", horizontal=True, on_change=_units_changed,
              help="SI: MPa, mm, °C.  US customary: ksi, in, °F.  The library computes in SI.")
+    st.radio("Hardness scale", pg.HARDNESS_SCALES, key="hardness_scale", horizontal=True,
+             help="One scale in every view: Rockwell C (ASTM E18), Brinell (ASTM E10) or Vickers (ASTM E92); "
+                  "HRC and HB from the library's HV on the steel table of ASTM E140.")
     system = ss["units"]
-    su, lu = pg.unit("stress", system), pg.unit("length", system)
+    hs = ss.get("hardness_scale", "HRC")
+    su, lu, mu = pg.unit("stress", system), pg.unit("length", system), pg.mass_unit(system)
     lfmt = "%.3f" if system == pg.US else "%.1f"
     sfmt = "%.1f" if system == pg.US else "%.0f"
     st.radio("Section", ("round bar", "plate"), key="shape", horizontal=True)
@@ -120,7 +136,8 @@ with st.sidebar:
     c2.number_input(f"Max tensile ({su})", key="max_uts", value=None, format=sfmt)
     c1.number_input("Min elongation (%)", key="min_elong", value=None, format="%.1f")
     c2.number_input("Max rel. cost / kg", key="max_cost", value=None, format="%.2f")
-    with st.expander("Hardness and case"):
+    with st.expander("Hardness and case", expanded=any(
+            ss.get(k) is not None for k in ("min_hrc", "max_hrc", "min_surface_hrc", "min_case_depth"))):
         h1, h2 = st.columns(2)
         h1.number_input("Min hardness (HRC)", key="min_hrc", value=None, format="%.1f")
         h2.number_input("Max hardness (HRC)", key="max_hrc", value=None, format="%.1f")
@@ -133,7 +150,7 @@ with st.sidebar:
     st.checkbox("Corrosion-resistant grades only", key="corrosion")
     st.checkbox("Only candidates that meet the targets with the required probability", key="robust_only")
     st.number_input("Required probability of meeting the targets (%)", min_value=1.0, max_value=100.0,
-                    value=90.0, step=5.0, format="%.0f", key="min_p_pct",
+                    step=5.0, format="%.0f", key="min_p_pct",
                     help="Share of heats within the grade's specification, processed by the route, that meet "
                          "every target, counting the model's 90 % band (Monte Carlo, 200 draws: standard "
                          "error at most 3.5 points).")
@@ -142,7 +159,9 @@ with st.sidebar:
                    help="Cautions of severity 'avoid' put a route after every route without one; "
                         "allow a rule here when your process controls it.")
 
-    with st.expander("Service conditions (for the cautions)"):
+    with st.expander("Service conditions (for the cautions)", expanded=bool(
+            ss.get("plated") or ss.get("mating") or ss.get("service_temp") is not None
+            or ss.get("environment", "normal") != "normal")):
         st.checkbox("Electroplated", key="plated")
         st.text_input("Plating", key="plating", placeholder="zinc plated")
         st.text_input("Mating material", key="mating", placeholder="structural steel, brass, 6061 …")
@@ -151,8 +170,9 @@ with st.sidebar:
                         value=None, format="%.0f")
 
     st.markdown("### Prices")
-    upload = st.file_uploader("Price sheet (CSV: grade, relative_price[, source])", type=["csv"], key="price_file")
-    with st.expander("…or paste one"):
+    upload = st.file_uploader("Price sheet (CSV: grade, relative_price[, source])", type=["csv"],
+                              key=f"price_file_{ss.get('_upload_gen', 0)}")
+    with st.expander("…or paste one", expanded=bool(ss.get("price_text"))):
         st.text_area("Price sheet text", key="price_text", height=90,
                      placeholder="grade,relative_price\n4140,1.9\n1045,1.2")
 
@@ -163,7 +183,9 @@ with st.sidebar:
 
 # ----------------------------------------------------------------------------- header
 st.title("selector · grade and route finder")
-st.caption(pg.DEMO["title"])
+if ss.get("_scenario") == "example":
+    st.info(f"**Example loaded** (press *New part* in the sidebar to start from blank): {pg.demo_title(system)}.  "
+            "Its section, targets and service conditions are in the sidebar, its load case in the pin tab.")
 notice("top")
 
 # ----------------------------------------------------------------------------- validation
@@ -197,16 +219,21 @@ if svc_msg:
     errors.append(svc_msg)
 
 prices_file = upload.getvalue() if upload is not None else None
-prices, price_msg = pg.read_price_sheet(prices_file, getattr(upload, "name", "price sheet"))
+price_name = getattr(upload, "name", None) or "price sheet"
+prices, price_msg = pg.read_price_sheet(prices_file, price_name)
 if price_msg is None and prices is None:
-    prices, price_msg = pg.read_price_sheet(ss.get("price_text") or None, "pasted price sheet")
+    price_name = "pasted price sheet"
+    prices, price_msg = pg.read_price_sheet(ss.get("price_text") or None, price_name)
 if price_msg:
-    st.error(f"Price sheet not applied (nothing of it is used): {price_msg}")
+    # the sheet is rejected whole; the prices in use stay what they were, and the page says which
     prices = ss.get("_prices_ok")
+    price_name = ss.get("_prices_name") if prices else None
 elif prices is not None:
-    ss["_prices_ok"] = prices
+    ss["_prices_ok"], ss["_prices_name"] = prices, price_name
 else:
-    ss["_prices_ok"] = None
+    ss["_prices_ok"], ss["_prices_name"] = None, None
+    price_name = None
+prices_in_use = pg.prices_in_use(price_name, prices)
 price_items = tuple(sorted(prices.items())) if prices else ()
 
 prepared_ok = False
@@ -219,24 +246,39 @@ if not errors:
     except SelectorError as exc:
         errors.append(pg.explain(exc, system))
 
+if price_msg:
+    st.error(f"Price sheet rejected, nothing of it is used: {price_msg}")
+    st.warning(f"Prices in use: **{prices_in_use}**.  " + (
+        "That sheet was accepted before this one; clear the rejected sheet or load a corrected one."
+        if prices else "The catalogue's indicative prices apply."))
 for e in errors:
-    st.error(e)
+    message(e)
+st.markdown(pg.settings_line(diameter_mm=d_si, thickness_mm=t_si, length_mm=len_si, targets=targets,
+                             families=ss["families"], all_families=list(FAMILIES),
+                             corrosion_resistant=bool(ss.get("corrosion")), robust_only=bool(ss.get("robust_only")),
+                             min_p_meet=float(ss.get("min_p_pct") or 90.0) / 100.0, allow=ss.get("allow") or (),
+                             service=service, prices=prices_in_use, system=system))
 
 
 # ----------------------------------------------------------------------------- views
-def evaluation_metrics(cols, ev: dict, prefix: str = "") -> None:
-    """Yield, tensile, elongation and hardness of one ``evaluate()`` result in the first four
-    of ``cols`` (display units; "—" where the model gives none)."""
+def evaluation_metrics(ev: dict, prefix: str = "", extra: tuple | None = None) -> None:
+    """Yield, tensile, elongation and hardness of one ``evaluate()`` result, three a row
+    (display units, the page's hardness scale; "—" where the model gives none);
+    ``extra``: one more ``(label, value)`` metric."""
     def shown(key, fmt):
         return "—" if ev.get(key) is None else fmt(ev[key])
-    cols[0].metric(f"{prefix}{'yield' if prefix else 'Yield'} ({su})",
-                   shown("yield_mpa", lambda v: f"{pg.to_display(v, 'stress', system):.4g}"))
-    cols[1].metric(f"{prefix}{'tensile' if prefix else 'Tensile'} ({su})",
-                   shown("uts_mpa", lambda v: f"{pg.to_display(v, 'stress', system):.4g}"))
-    cols[2].metric(f"{prefix}{'elongation' if prefix else 'Elongation'} (%)",
-                   shown("elongation_pct", lambda v: f"{v:.3g}"))
-    cols[3].metric(f"{prefix}{'hardness' if prefix else 'Hardness'} (HRC)",
-                   shown("hardness_hrc", lambda v: f"{v:.3g}"))
+    items = [(f"{prefix}{'yield' if prefix else 'Yield'} ({su})",
+              shown("yield_mpa", lambda v: f"{pg.to_display(v, 'stress', system):.4g}")),
+             (f"{prefix}{'tensile' if prefix else 'Tensile'} ({su})",
+              shown("uts_mpa", lambda v: f"{pg.to_display(v, 'stress', system):.4g}")),
+             (f"{prefix}{'elongation' if prefix else 'Elongation'} (%)", shown("elongation_pct", lambda v: f"{v:.3g}")),
+             (f"{prefix}{'hardness' if prefix else 'Hardness'} ({hs})", pg.hardness_text(ev, "hardness", hs))]
+    if extra:
+        items.append(extra)
+    for i in range(0, len(items), 3):
+        cols = st.columns(3)
+        for c, (label, value) in zip(cols, items[i:i + 3]):
+            c.metric(label, value)
 
 
 def candidate_view(cand, states):
@@ -249,17 +291,25 @@ def candidate_view(cand, states):
     ev = pg.cached_evaluate(row["grade"], pg.route_json(row["route"]), d_si, t_si)
     g = selector.grade(row["grade"])
     st.subheader(f"{row['id']} · {g.name} · {pg.route_line(row['route'], system, row['route_text'])}")
-    m = st.columns(6)
+    # three metrics a row: labels and values stay whole at 1024 px
+    m = st.columns(3)
     m[0].metric(f"Yield ({su})", f"{pg.to_display(row['yield_mpa'], 'stress', system):.4g}")
     m[1].metric(f"Tensile ({su})", f"{pg.to_display(row['uts_mpa'], 'stress', system):.4g}")
     m[2].metric("Elongation (%)", f"{row['elongation_pct']:.3g}")
-    hrc = row["hardness_hrc"]
-    m[3].metric("Hardness (HRC)", "—" if hrc != hrc else f"{hrc:.3g}")
-    m[4].metric("Rel. cost / kg", f"{row['relative_cost']:.3g}")
-    m[5].metric("Meets the targets", pg.percent(row.get("p_meet")),
+    m = st.columns(3)
+    m[0].metric(f"Hardness ({hs})", pg.hardness_text(row, "hardness", hs))
+    m[1].metric(f"Surface ({hs})", pg.hardness_text(row, "surface_hardness", hs))
+    m[2].metric("Meets the targets", pg.percent(row.get("p_meet")),
                 help="Probability that a heat within the specification meets every target (model band "
                      "included); every composition corner at once: "
                      + ("yes" if row.get("corners_meet") else "no"))
+    m = st.columns(3)
+    m[0].metric(f"Material / {mu}", pg.per_mass_text(row["material_cost_per_kg"], system),
+                help=f"Relative price of the bar per {mu} ({row.get('price_source', '')}); 1 kg of 1018 bar = 1.")
+    m[1].metric(f"Processing / {mu}", pg.per_mass_text(row["processing_cost_per_kg"], system),
+                help=f"Indicative processing adder of the route family per {mu} (data/route_costs.csv).")
+    m[2].metric("Part cost", f"{row['part_cost']:.3g}", help=f"Per kg × the part's mass ({row['mass_kg']:.3g} kg).")
+    st.markdown(f"**Surface and case:** {pg.case_text(row, system, hs)}")
     st.caption(pg.band_text(ev, system))
     heat_text = st.text_input("Heat analysis from the mill certificate (wt %)", key="heat_text",
                               placeholder="e.g. C=0.41 Mn=0.86 Cr=0.95 Mo=0.18 (other elements: nominal)",
@@ -275,7 +325,7 @@ def candidate_view(cand, states):
         except SelectorError as exc:
             st.error(str(exc))
         else:
-            evaluation_metrics(st.columns(4), hv, "Heat: ")
+            evaluation_metrics(hv, "Heat: ")
             st.caption(pg.band_text(hv, system))
             heat_warn = [w for w in hv.get("warnings", []) if w.startswith("heat analysis")]
             if heat_warn:
@@ -286,10 +336,10 @@ def candidate_view(cand, states):
         st.markdown("\n".join(pg.route_steps(row["route"], system)))
         param = row["window_parameter"]
         if param:
-            win = pg._fmt_window(row['window_min'], row['window_max'], param, system)
+            win = pg.fmt_window(row['window_min'], row['window_max'], param, system)
             st.markdown(f"**Process window** (clear of avoid cautions): "
                         f"{win or 'none clear of avoid cautions: ' + str(row.get('avoid') or '')}")
-            rw = pg._fmt_window(row["robust_window_min"], row["robust_window_max"], param, system)
+            rw = pg.fmt_window(row["robust_window_min"], row["robust_window_max"], param, system)
             st.markdown(f"**Window at the required probability**: {rw or 'none: meets at the estimate only'}")
     with right:
         st.markdown("**Cautions**")
@@ -298,8 +348,8 @@ def candidate_view(cand, states):
             st.warning("\n".join(f"- {c}" for c in cautions))
         else:
             st.info("No route-specific caution raised; the general notice above still applies.")
-    c1, c2 = st.columns(2)
-    with c1:
+    # charts one under the other at full width: legends and titles stay whole at 1024 px
+    with st.container():
         param = row["window_parameter"]
         if param:
             pf = pg.parameter_frame(states, ss["pick"], system)
@@ -311,10 +361,10 @@ def candidate_view(cand, states):
                        "meets the targets; darker: where it holds at every corner.")
         else:
             st.info("This route has no main process parameter to vary.")
-    with c2:
+    with st.container():
         if ev.get("profile"):
-            pfr = pg.profile_frame({row["label"]: ev["profile"]}, system)
-            st.altair_chart(pg.profile_chart(pfr, system, [row["label"]]), width="stretch")
+            pfr = pg.profile_frame({row["label"]: ev["profile"]}, system, {row["label"]: row["family"]})
+            st.altair_chart(pg.profile_chart(pfr, system, [row["label"]], scale=hs), width="stretch")
         else:
             st.info("This route family reports no hardness profile across the section.")
         ffr = pg.fatigue_depth_frame(ev, system)
@@ -322,9 +372,13 @@ def candidate_view(cand, states):
             st.altair_chart(pg.fatigue_depth_chart(ffr, system), width="stretch")
             st.caption("Rotating bending, machined surface, 50 % reliability; compressive residual stress of a "
                        "hardened case credited (data/residual_stress.csv).  The curves touch at the governing depth.")
-        tfr = pg.transformation_frame(ev, system)
-        if len(tfr):
-            st.altair_chart(pg.transformation_chart(tfr, system), width="stretch")
+        curves = candidate_curves(ev)
+        if len(curves["curves"]):
+            st.altair_chart(transformation_diagram(curves, fahrenheit=system == pg.US,
+                                                   title="Transformation start and finish, and this route's cooling"),
+                            width="stretch")
+            st.caption("Shaded: each reaction from its start to its finish (Li et al. 1998 kinetics); lines: the "
+                       "surface and centre cooling paths of this route at this section.")
     st.markdown("**Sources**")
     st.markdown("\n".join(f"- {s}" for s in ev.get("sources", [])))
 
@@ -333,10 +387,9 @@ def comparison_view(cand):
     ids = list(cand["variant"])
     labels = dict(zip(cand["variant"], cand["label"]))
     cur = [v for v in ss.get("compare", []) if v in ids]
-    if not cur:
-        through = cand[cand["route_family"] == "quench_temper"]["variant"].head(1).tolist()
-        case = cand[cand["route_family"].isin(["carburize", "nitride", "induction"])]["variant"].head(1).tolist()
-        cur = (through + case) if len(through + case) >= 2 else ids[:2]
+    if ss.pop("_prefill_compare", False) or not cur:
+        pair = pg.first_through_and_case(cand)
+        cur = pair if len(pair) >= 2 else ids[:2]
     ss["compare"] = cur[:3]
     st.multiselect("Candidates to compare (two or three)", ids, key="compare", max_selections=3,
                    format_func=lambda v: labels.get(v, v))
@@ -347,22 +400,23 @@ def comparison_view(cand):
     sub = cand[cand["variant"].isin(chosen)]
     cids = list(sub["id"])
     lab = list(sub["label"])
-    st.dataframe(pg.comparison_table(cand, cids, system), width="stretch")
-    frame = pg.comparison_frame(cand, cids, system)
+    st.dataframe(pg.comparison_table(cand, cids, system, hs), width="stretch")
+    frame = pg.comparison_frame(cand, cids, system, hs)
     b1, b2 = st.columns(2)
     b1.altair_chart(pg.comparison_bars(frame, f"strength ({su})", lab, legend=True), width="stretch")
     b2.altair_chart(pg.comparison_bars(frame, "relative cost", lab, legend=True), width="stretch")
     b3, b4 = st.columns(2)
     b3.altair_chart(pg.comparison_bars(frame, "elongation (%)", lab, height=200), width="stretch")
-    b4.altair_chart(pg.comparison_bars(frame, "hardness (HRC)", lab, height=200), width="stretch")
+    b4.altair_chart(pg.comparison_bars(frame, f"hardness ({hs})", lab, height=200), width="stretch")
     profiles = {}
     for _, r in sub.iterrows():
         ev = pg.cached_evaluate(r["grade"], pg.route_json(r["route"]), d_si, t_si)
         if ev.get("profile"):
             profiles[r["label"]] = ev["profile"]
     if profiles:
-        st.altair_chart(pg.profile_chart(pg.profile_frame(profiles, system), system, list(profiles),
-                                         title="Hardness across the section (shared axes)",
+        st.altair_chart(pg.profile_chart(pg.profile_frame(profiles, system, dict(zip(sub["label"], sub["family"]))), system,
+                                         list(profiles),
+                                         title="Hardness across the section (shared axes)", scale=hs,
                                          colours=[pg.COMPARE_COLOURS[lab.index(k)] for k in profiles]),
                         width="stretch")
     for _, r in sub.iterrows():
@@ -398,26 +452,28 @@ def pin_view():
                 "members meet across one shear plane (single shear).  Stresses by elementary beam theory "
                 "(Budynas & Nisbett 2015, ch. 3; docs/methods/pins.md); the targets multiply them by the "
                 "safety factor.")
-    inputs, results = st.columns([2, 3], gap="large")
+    # inputs above, results below at full width: metric labels and values stay whole at 1024 px
+    inputs, results = st.container(), st.container()
     with inputs:
-        c1, c2 = st.columns(2)
+        c1, c2, c3 = st.columns(3)
         c1.number_input(f"Load ({fu})", key="pin_load", value=None, format="%.0f" if system == pg.US else "%.2f",
                         help="The load the joint carries (the design load, shock included).")
         c2.number_input(f"Pin diameter ({lu})", key="pin_diameter", value=None, format=lfmt)
+        c3.number_input("Safety factor", key="pin_sf", value=None, format="%.2f", help="1 to 10.")
         c1.radio("Shear planes", (2, 1), key="pin_planes", format_func=pg.SHEAR_PLANE_LABELS.get)
         c2.radio("Bending model", tuple(pg.LOAD_MODEL_LABELS), key="pin_model",
                  format_func=pg.LOAD_MODEL_LABELS.get,
                  help="Uniform: bearing pressure spread over each member's thickness.  Concentrated: loads "
                       "at the bearing centres, a higher moment (double shear only; single shear is always "
                       "the clamped cantilever).")
+        c3.number_input("Wear surface hardness (HRC)", key="pin_wear_hrc", value=None, format="%.1f",
+                        help="Optional: the minimum surface hardness for wear (20 to 70 HRC).  Blank: none.")
         c1.number_input(f"Lug thickness ({lu})", key="pin_lug", value=None, format=lfmt,
                         help="The middle member in double shear; the member the pin is clamped in, in single shear.")
-        c2.number_input(f"Clevis arm thickness ({lu})", key="pin_clevis", value=None, format=lfmt,
-                        help="One arm of the clevis (double shear), or the other member (single shear).")
-        c1.number_input(f"Gap each side ({lu})", key="pin_gap", value=None, format=lfmt)
-        c2.number_input("Safety factor", key="pin_sf", value=None, format="%.2f", help="1 to 10.")
-        c1.number_input("Wear surface hardness (HRC)", key="pin_wear_hrc", value=None, format="%.1f",
-                        help="Optional: the minimum surface hardness for wear (20 to 70 HRC).  Blank: none.")
+        c2.number_input(f"Clevis arm ({lu})", key="pin_clevis", value=None, format=lfmt,
+                        help="Thickness of one arm of the clevis (double shear), or of the other member (single "
+                             "shear).")
+        c3.number_input(f"Gap each side ({lu})", key="pin_gap", value=None, format=lfmt)
     case, msgs = pg.pin_case_from_inputs({k: ss.get(k) for k in pg.PIN_INPUT_KEYS}, system)
     rep = None
     if case is not None:
@@ -425,21 +481,22 @@ def pin_view():
         msgs = [msg] if msg else []
     with results:
         for m in msgs:
-            st.error(m)
+            message(m)
         if rep is not None:
             s = rep["stresses"]
-            m = st.columns(4)
-            m[0].metric(f"Shear ({su})", f"{pg.to_display(s['shear_mpa'], 'stress', system):.4g}")
-            m[1].metric(f"Bending ({su})", f"{pg.to_display(s['bending_mpa'], 'stress', system):.4g}")
-            m[2].metric(f"Bearing ({su})", f"{pg.to_display(s['bearing_mpa'], 'stress', system):.4g}")
-            m[3].metric("Governing", rep["governing"])
             t = rep["targets"]
-            m = st.columns(4)
+            wear = t.get("min_surface_hardness_hrc")
+            # three metrics a row: labels and values stay whole at 1024 px
+            m = st.columns(3)
             m[0].metric(f"Min yield ({su})", f"{pg.to_display(t['min_yield_mpa'], 'stress', system):.4g}")
             m[1].metric(f"Min tensile ({su})", f"{pg.to_display(t['min_uts_mpa'], 'stress', system):.4g}")
-            wear = t.get("min_surface_hardness_hrc")
             m[2].metric("Min surface (HRC)", "—" if wear is None else f"{wear:.3g}")
-            m[3].metric(f"Grip length ({lu})", f"{pg.to_display(pg.pin_grip_mm(case), 'length', system):.4g}")
+            m = st.columns(3)
+            m[0].metric("Governing", rep["governing"])
+            m[1].metric(f"Grip length ({lu})", f"{pg.to_display(pg.pin_grip_mm(case), 'length', system):.4g}")
+            m[2].metric("Shear/tensile", f"{rep['shear_to_tensile']['ratio']:g}")
+            st.markdown("**Where each target comes from**")
+            st.markdown("\n".join(f"- {line}" for line in pg.pin_target_explanations(rep, system)))
             st.dataframe(pg.pin_stress_table(rep, system), hide_index=True, width="stretch", key="pin_stresses")
             ratio = rep["shear_to_tensile"]
             with st.expander("Formulas and assumptions"):
@@ -454,7 +511,9 @@ def pin_view():
                            "hardness clears the surface target) and the section: a round bar of the pin's "
                            "diameter, the grip length.  Other targets stay.")
             if ss.pop("_pin_applied", False):
-                st.success("The sidebar now holds the pin's targets and section; the other tabs are ranked on them.")
+                st.success("The sidebar now holds the pin's targets and section; the other tabs are ranked on them, "
+                           "and *Side by side* starts from the first through-hardened and the first "
+                           "case-hardened candidate.")
     if case is not None:
         capacity_view(case)
 
@@ -474,7 +533,7 @@ def pin_view():
     diam, dmsg = pg.sweep_diameters(ss["sweep_mode"], ss.get("sweep_list"), ss.get("sweep_from"),
                                     ss.get("sweep_to"), ss.get("sweep_step"), system)
     if dmsg:
-        st.error(dmsg)
+        message(dmsg)
     args = None
     if rep is not None and not dmsg:
         extra = {k: v for k, v in targets.items() if k not in pg.PIN_TARGET_KEYS}
@@ -520,6 +579,60 @@ def pin_view():
                        mime="text/csv", key="sweep_download")
     st.caption(sw.attrs.get("notice", selector.CAUTION) + f"  Pin length for the part cost: "
                f"{pg.to_display(sw.attrs.get('length_mm', float('nan')), 'length', system):.4g} {lu} (grip length).")
+
+
+def alternatives_view(cand):
+    """Procurement: cheaper candidates that reach the properties of a chosen one (or of a
+    grade and route typed here), material and processing cost apart."""
+    st.markdown("**Cheaper alternatives.** The chosen grade and route is evaluated at the section in force; its "
+                "yield and tensile strength (its case when case-hardened) become minimum targets and its "
+                "elongation less one point (docs/methods/selection.md); every cheaper candidate per kg is listed, "
+                "cheapest first.  Material (the bar) and processing (the route's indicative adder) are shown apart.")
+    have = cand is not None and len(cand) > 0
+    modes = ("a candidate of the list", "a grade and route I type") if have else ("a grade and route I type",)
+    if ss.get("alt_mode") not in modes:
+        ss["alt_mode"] = modes[0]
+    st.radio("Alternatives to", modes, key="alt_mode", horizontal=True)
+    if ss["alt_mode"] == "a candidate of the list":
+        ids = list(cand["variant"])
+        labels = dict(zip(cand["variant"], cand["label"]))
+        if ss.get("alt_pick") not in ids:
+            ss["alt_pick"] = ids[0]
+        st.selectbox("Candidate", ids, key="alt_pick", format_func=lambda v: labels.get(v, v))
+        row = cand.set_index("variant").loc[ss["alt_pick"]]
+        grade, route = row["grade"], list(row["route"])
+    else:
+        c = st.columns(2)
+        c[0].text_input("Grade", key="alt_grade", value="4140", help="Any designation of a catalogue grade.")
+        c[1].text_input("Route steps (';'-separated)", key="alt_steps", value="harden quench=oil; temper temp_c=540")
+        grade = (ss.get("alt_grade") or "").strip()
+        route, msg = pg.read_route_steps(ss.get("alt_steps"))
+        if msg or not grade:
+            st.error(msg or "Grade: blank; allowed: a catalogue grade, e.g. 4140")
+            return
+    if not prepared_ok:
+        st.info("Give a valid section and length in the sidebar first (see the messages above).")
+        return
+    try:
+        alt = pg.cached_alternatives(grade, pg.route_json(route), d_si, t_si, len_si, price_items)
+    except SelectorError as exc:
+        st.error(pg.explain(exc, system))
+        return
+    ref = alt.attrs["reference"]
+    st.markdown(f"**Reference:** {ref['grade']} · {pg.route_line(route, system, ref.get('route_text'))}")
+    m = st.columns(3)
+    m[0].metric(f"Material / {mu}", pg.per_mass_text(ref["material_cost_per_kg"], system))
+    m[1].metric(f"Processing / {mu}", pg.per_mass_text(ref["processing_cost_per_kg"], system))
+    m[2].metric(f"Total / {mu}", pg.per_mass_text(ref["relative_cost"], system))
+    st.caption("Matched on its " + ("strength" if ref["basis"] == "strength" else "hardness (its strength is beyond "
+               "the tensile column of ASTM A370 Table 3)") + "; prices in use: " + prices_in_use + ".")
+    if len(alt) == 0:
+        st.info("No cheaper candidate reaches these properties at this section.")
+    else:
+        st.dataframe(pg.alternatives_table(alt, system), hide_index=True, width="stretch", key="alternatives")
+        st.download_button("Download the alternatives (CSV)", pg.to_csv(pg.alternatives_table(alt, system)),
+                           file_name="alternatives.csv", mime="text/csv", key="alternatives_download")
+    st.caption(selector.CAUTION)
 
 
 def parts_view():
@@ -592,7 +705,7 @@ def parts_view():
     st.caption(selector.CAUTION)
 
 
-TAB_LABELS = ["Map and list", "One candidate", "Side by side", "Clevis pin and sizes", "Parts list"]
+TAB_LABELS = ["Map and list", "One candidate", "Side by side", "Alternatives", "Clevis pin", "Parts list"]
 cand = None
 if prepared_ok:
     try:
@@ -605,7 +718,7 @@ if prepared_ok:
         st.error(pg.explain(exc, system))
         cand = None
 if cand is not None and len(cand):
-    cand = pg.label_candidates(cand)
+    cand = split_cost(pg.label_candidates(cand))
     n_chart = int(ss.get("chart_n", 15))
     top = cand.head(n_chart)
     pick = ss.get("pick") if ss.get("pick") in set(cand["variant"]) else cand["variant"].iloc[0]
@@ -614,7 +727,7 @@ if cand is not None and len(cand):
                                       tuple(sorted(set(top["variant"]) | {pick})))
     timings["regions"] = time.perf_counter() - t
     st.markdown(pg.ranking_summary(cand))
-tab_map, tab_one, tab_two, tab_pin, tab_parts = st.tabs(TAB_LABELS)
+tab_map, tab_one, tab_two, tab_alt, tab_pin, tab_parts = st.tabs(TAB_LABELS)
 no_table = "No candidate table: see the messages above."
 if cand is not None and len(cand) == 0:
     with tab_map:
@@ -639,9 +752,7 @@ if cand is not None and len(cand) == 0:
                 i = st.selectbox("Open a near miss", list(labels), key="miss_pick", format_func=labels.get)
                 r = misses.loc[i]
                 ev = pg.cached_evaluate(r["grade"], pg.route_json(r["route"]), d_si, t_si)
-                mm = st.columns(5)
-                evaluation_metrics(mm, ev)
-                mm[4].metric("Meets the targets", pg.percent(r.get("p_meet")))
+                evaluation_metrics(ev, extra=("Meets the targets", pg.percent(r.get("p_meet"))))
                 st.caption(pg.band_text(ev, system))
                 st.markdown("\n".join(pg.route_steps(r["route"], system)))
                 mc = pg.candidate_cautions(r, ev.get("warnings", []), service)
@@ -661,11 +772,15 @@ elif cand is not None:
         st.altair_chart(pg.strength_elongation_chart(frames, targets, y, system, picked=picked_id),
                         width="stretch")
         timings["map"] = time.perf_counter() - t
-        st.caption(f"Shaded: each candidate's reachable region over its process window and composition "
-                   f"range; line: its process path at the nominal composition, labelled with the main "
-                   f"parameter; ◆ Pareto set, ▼ other candidates; ringed: the candidate in focus. "
+        st.caption(f"Each line is a candidate's process path at the nominal composition, its main parameter "
+                   f"written at the ends (along the whole path for the candidate in focus, marked ✛); the dotted "
+                   f"edges bound its scatter over the composition range and the window; colour: route family; "
+                   f"■ Pareto set, □ other candidates, each at its chosen state; dashed: the targets.  "
                    f"Top {len(top)} of {len(cand)} drawn.")
-        table = pg.display_table(cand.drop(columns=["label"]), system)
+        st.toggle("All columns", key="all_columns",
+                  help="Every column of the library's table after the readable ones: internal names, full "
+                       "precision, the route steps as JSON (docs/columns.md).")
+        table = pg.display_table(cand, system, hs, all_columns=bool(ss.get("all_columns")))
         st.dataframe(table, width="stretch", hide_index=True, key="candidates")
         st.download_button("Download the table (CSV)", pg.to_csv(table), file_name="candidates.csv",
                            mime="text/csv", key="download")
@@ -681,6 +796,8 @@ else:
     for tab in (tab_map, tab_one, tab_two):
         with tab:
             st.info(no_table)
+with tab_alt:
+    alternatives_view(cand)
 t = time.perf_counter()
 with tab_pin:
     pin_view()

@@ -168,21 +168,23 @@ def test_fast_path_matches_the_conduction_model():
         assert np.max(np.abs(a - b)) < 0.01
 
 
-def test_transformation_chart_frame():
-    from selector.views import page as pg
+def test_transformation_curves_of_a_candidate():
+    from selector.routes.transformation_curves import candidate_curves
+    from selector.views.charts_beyond import transformation_diagram
 
     ev = selector.evaluate("4340", AUST, 25.0)
-    fr = pg.transformation_frame(ev, pg.SI)
-    curves = set(fr["curve"])
-    assert {"bainite start", "bainite finish", "centre cooling path", "surface cooling path"} <= curves
-    b = fr[fr["curve"] == "bainite start"].set_index("temp")["time_s"]
-    f = fr[fr["curve"] == "bainite finish"].set_index("temp")["time_s"]
-    assert (f.loc[b.index] > b).all()              # finish after start at every temperature
-    centre = fr[fr["curve"] == "centre cooling path"]["temp"].to_numpy()
+    data = candidate_curves(ev)
+    fr = data["curves"]
+    assert {"bainite start", "bainite finish"} <= set(fr["curve"])
+    b = fr[fr["curve"] == "bainite start"].set_index("temp_c")["time_s"]
+    f = fr[fr["curve"] == "bainite finish"].set_index("temp_c")["time_s"]
+    common = b.index.intersection(f.index)
+    assert len(common) and (f.loc[common] > b.loc[common]).all()      # finish after start at every temperature
+    centre = data["path"][data["path"]["location"] == "centre"]["temp_c"].to_numpy()
     assert centre[0] > centre[-1] and abs(centre[-1] - 340.0) < 1.0   # ends at the bath
-    qt = selector.evaluate("4340", [{"op": "harden", "quench": "oil"}, {"op": "temper", "temp_c": 540}], 25.0)
-    assert pg.transformation_frame(qt, pg.SI).empty
-
+    transformation_diagram(data).to_dict()                            # the chart builds from it
+    annealed = selector.evaluate("4340", [{"op": "anneal"}], 25.0)
+    assert candidate_curves(annealed)["curves"].empty                 # no quench, no diagram
 
 def test_selection_grids_keep_the_bath_on_the_right_side_of_ms():
     # austempering is a bath above Ms; martempering's bath sits just above Ms (ASM Handbook Vol. 4 (1991),

@@ -1,7 +1,9 @@
-"""Real-browser check of the page: start ``streamlit run app.py`` on a free local
-port, open it in Debian's headless Chromium through Playwright, check that the
-strength–elongation chart and the candidate table render with data, and save
-``docs/screenshot.png`` (the README shows it).
+"""Real-browser check of the page at 1024 px: start ``streamlit run app.py`` on a free
+local port, open it in Debian's headless Chromium through Playwright, check that the
+strength–elongation map and the candidate table render with data, that no metric
+and no legend text is cut (an element's scroll width beyond its client width, or a
+chart label ending in an ellipsis), and save a screenshot of each view to ``docs/``
+(``docs/screenshot.png`` is the README's; ``docs/page_*.png`` one per tab).
 
 Needs ``/usr/bin/chromium`` (Debian package ``chromium``; ``.ci/run`` installs it)
 and the ``playwright`` Python package; no browser is downloaded.
@@ -24,6 +26,8 @@ import pytest
 ROOT = Path(__file__).resolve().parents[1]
 CHROMIUM = "/usr/bin/chromium"
 SCREENSHOT = ROOT / "docs" / "screenshot.png"
+#: the narrow screen of issue 15: nothing may be cut at this width
+WIDTH = 1024
 LAUNCH_ARGS = ["--headless", "--no-sandbox", "--disable-gpu", "--disable-background-networking",
                "--disable-component-update", "--disable-sync", "--no-first-run"]
 
@@ -93,7 +97,47 @@ def _timed_rerun(page, action) -> float:
     return time.monotonic() - t0
 
 
-def test_page_renders_chart_and_table_with_data(server, tmp_path):
+#: metric labels and values whose text is wider than their box (cut by CSS ellipsis or overflow), and
+#: chart text that vega shortened with an ellipsis (its label limit); each as "where: text"
+CUT = """() => {
+    const out = [];
+    const seen = (el) => el.offsetParent !== null;
+    for (const el of document.querySelectorAll(
+            "[data-testid='stMetricLabel'], [data-testid='stMetricLabel'] *, [data-testid='stMetricValue'], "
+            + "[data-testid='stMetricValue'] *")) {
+        if (seen(el) && el.scrollWidth > el.clientWidth + 1) out.push('metric: ' + el.innerText);
+    }
+    for (const t of document.querySelectorAll("[data-testid='stVegaLiteChart'] svg text")) {
+        if (t.textContent.endsWith('…')) out.push('chart: ' + t.textContent);
+    }
+    for (const chart of document.querySelectorAll("[data-testid='stVegaLiteChart']")) {
+        const box = chart.getBoundingClientRect();
+        if (!box.width) continue;
+        for (const g of chart.querySelectorAll('svg .role-legend')) {
+            const r = g.getBoundingClientRect();
+            if (r.width && (r.right > box.right + 1 || r.left < box.left - 1))
+                out.push('legend outside its chart: ' + g.textContent.slice(0, 80));
+        }
+    }
+    return out;
+}"""
+
+
+def _tab(page, name: str) -> None:
+    page.get_by_role("tab", name=name).click()
+    page.wait_for_function(IDLE, timeout=120_000)
+    page.wait_for_timeout(1200)        # charts finish drawing
+
+
+def _shot(page, name: str) -> Path:
+    path = ROOT / "docs" / f"page_{name}.png"
+    path.parent.mkdir(exist_ok=True)
+    page.screenshot(path=str(path), full_page=True)
+    assert path.stat().st_size > 20_000
+    return path
+
+
+def test_page_at_1024_px_renders_views_and_cuts_no_text(server, tmp_path):
     playwright = pytest.importorskip("playwright.sync_api")
     if not Path(CHROMIUM).exists():
         pytest.fail(f"{CHROMIUM} not found: install Debian's chromium package (.ci/run does)")
@@ -101,30 +145,29 @@ def test_page_renders_chart_and_table_with_data(server, tmp_path):
         # a new, throw-away profile directory (Playwright passes it as --user-data-dir)
         browser = p.chromium.launch_persistent_context(str(tmp_path / "profile"), executable_path=CHROMIUM,
                                                        headless=True, args=LAUNCH_ARGS,
-                                                       viewport={"width": 1500, "height": 1350})
+                                                       viewport={"width": WIDTH, "height": 2600})
         try:
             page = browser.new_page()
             t0 = time.monotonic()
             page.goto(server, wait_until="domcontentloaded")
-            # the strength-elongation chart: a vega-embed canvas or svg with nonzero size
+            # the strength-elongation map: a vega-embed svg with nonzero size
             chart = page.locator("[data-testid='stVegaLiteChart'] canvas, "
                                  "[data-testid='stVegaLiteChart'] svg").first
             chart.wait_for(state="visible", timeout=120_000)
             box = chart.bounding_box()
             assert box and box["width"] > 300 and box["height"] > 200
-            # the chart is drawn from data: the first chart (the strength-elongation map) holds one
-            # symbol per drawn candidate, filled areas for the regions and the target rectangle
+            # drawn from data: a square per drawn candidate, its process path and its two dotted edges
             marks = page.evaluate("""() => {
                 const el = document.querySelector("[data-testid='stVegaLiteChart']");
                 const svg = el && el.querySelector('svg');
                 if (!svg) return null;
                 const n = (sel) => svg.querySelectorAll(sel).length;
-                return {symbols: n('.mark-symbol path'), areas: n('.mark-area path'), rects: n('.mark-rect path'),
-                        lines: n('.mark-line path'), texts: n('.mark-text text')};
+                return {symbols: n('.mark-symbol path'), areas: n('.mark-area path'), lines: n('.mark-line path'),
+                        texts: n('.mark-text text')};
             }""")
             assert marks is not None, "the chart has no svg"
-            assert marks["symbols"] >= 3 and marks["areas"] >= 3 and marks["rects"] >= 1 and marks["lines"] >= 3
-            # the candidate table: a data grid with column headers from select() and rows
+            assert marks["symbols"] >= 3 and marks["lines"] >= 9 and marks["texts"] >= 3
+            assert marks["areas"] == 0                 # no filled region per candidate
             grid = page.locator("[data-testid='stDataFrame']").first
             grid.wait_for(state="visible", timeout=60_000)
             gbox = grid.bounding_box()
@@ -134,17 +177,25 @@ def test_page_renders_chart_and_table_with_data(server, tmp_path):
             assert summary, "the summary line of the candidates is missing"
             n_cand = int(re.search(r"(\d+)\s+candidates meet", summary[0]).group(1))
             assert n_cand > 0
-            # the caution notice is on the page (top and footer)
+            assert any(t.startswith("In force") for t in text), "the line of the settings in force is missing"
             page.wait_for_function(IDLE, timeout=120_000)
             load_s = time.monotonic() - t0
-            # read once the run has finished: the footer notice comes after every tab
             alerts = page.locator("[data-testid='stAlert']").all_inner_texts()
             assert sum("qualified" in a for a in alerts) >= 2
             first_run = page.get_by_text(re.compile("This run:")).all_inner_texts()
             page.wait_for_timeout(1500)       # let the chart finish its transitions
-            SCREENSHOT.parent.mkdir(exist_ok=True)
-            page.screenshot(path=str(SCREENSHOT), full_page=False)
+            cut = {}
+            cut["map"] = page.evaluate(CUT)
+            page.screenshot(path=str(SCREENSHOT), full_page=False, clip={"x": 0, "y": 0, "width": WIDTH, "height": 1500})
             assert SCREENSHOT.stat().st_size > 20_000
+            _shot(page, "map")
+            for name, label in (("candidate", "One candidate"), ("side_by_side", "Side by side"),
+                                ("alternatives", "Alternatives"), ("pin", "Clevis pin"),
+                                ("parts", "Parts list")):
+                _tab(page, label)
+                cut[name] = page.evaluate(CUT)
+                _shot(page, name)
+            _tab(page, "Map and list")
             # a change of targets re-ranks: the summary line changes to fewer candidates
             field = page.get_by_label(re.compile(r"^Min yield \(MPa\)"))
             t1 = time.monotonic()
@@ -161,8 +212,6 @@ def test_page_renders_chart_and_table_with_data(server, tmp_path):
             n_after = int(re.search(r"(\d+)\s+candidates meet", [t for t in text if "candidates meet" in t][0]).group(1))
             assert 0 < n_after < n_cand
             server_side = page.get_by_text(re.compile("This run:")).all_inner_texts()
-            # a diameter change (a new expansion at that section only) and a unit switch
-            # (display only: no recomputation); timings printed, never asserted
             diameter_s = _timed_rerun(page, lambda: (page.get_by_label(re.compile(r"^Diameter \(mm\)")).fill("41"),
                                                      page.get_by_label(re.compile(r"^Diameter \(mm\)")).press("Enter")))
             t2 = time.monotonic()
@@ -170,10 +219,14 @@ def test_page_renders_chart_and_table_with_data(server, tmp_path):
             page.get_by_label(re.compile(r"^Diameter \(in\)")).wait_for(state="visible", timeout=120_000)
             page.wait_for_function(IDLE, timeout=120_000)
             units_s = time.monotonic() - t2
-            print(f"first answer (chart and table): {load_s:.1f} s ({n_cand} candidates); "
+            page.wait_for_timeout(1200)
+            cut["map, US units"] = page.evaluate(CUT)
+            print(f"at {WIDTH} px: first answer (chart and table): {load_s:.1f} s ({n_cand} candidates); "
                   f"target change (re-rank): {rerank_s:.2f} s ({n_after} candidates); "
                   f"diameter change: {diameter_s:.2f} s; unit switch: {units_s:.2f} s; "
                   f"server side of the first run: {first_run[0].split('This run:')[1].strip() if first_run else '?'}; "
                   f"of the re-rank: {server_side[0].split('This run:')[1].strip() if server_side else '?'}")
+            print("cut:", {k: v for k, v in cut.items() if v})
+            assert not {k: v for k, v in cut.items() if v}, cut
         finally:
             browser.close()

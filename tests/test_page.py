@@ -16,10 +16,13 @@ from streamlit.testing.v1 import AppTest
 
 import selector
 from selector.catalogue.grades import FAMILIES
-from selector.selection.engine import prepare, rank
+from selector.design.pins import pin_report
+from selector.selection.engine import alternatives, prepare, rank
 from selector.views import page as pg
 
 APP = str(Path(__file__).resolve().parents[1] / "app.py")
+#: MPa per ksi: 1000 lbf / in^2, both exact (NIST SP 811 (2008), Appendix B.8 and B.9)
+KSI = 4448.2216152605 / 25.4 ** 2
 TIMEOUT = 120
 
 
@@ -34,7 +37,21 @@ def at():
     return _run(AppTest.from_file(APP, default_timeout=TIMEOUT))
 
 
+def _readable(at) -> pd.DataFrame | None:
+    """The candidate table as shown by default (readable columns)."""
+    for df in at.dataframe:
+        if "process route" in df.value.columns and "p_meet (%)" in df.value.columns:
+            return df.value
+    return None
+
+
 def _table(at) -> pd.DataFrame | None:
+    """The candidate table with every column of the library (the page's "All columns" switch on)."""
+    if _readable(at) is None:
+        return None
+    if not at.toggle(key="all_columns").value:
+        at.toggle(key="all_columns").set_value(True)
+        _run(at)
     for df in at.dataframe:
         v = df.value
         if "route_text" in v.columns and "pareto" in v.columns:
@@ -182,7 +199,9 @@ def test_bad_price_sheet_shows_line_and_column_and_changes_nothing(at):
     at.text_area(key="price_text").set_value("grade,relative_price\n4140,1.9\n1045,cheap\n")
     _run(at)
     errs = " ".join(_errors(at))
-    assert "not applied" in errs and "line 3" in errs and "relative_price" in errs
+    assert "rejected" in errs and "line 3" in errs and "relative_price" in errs
+    # no sheet was accepted before: the page says the catalogue's prices are used
+    assert any("Prices in use" in w.value and "catalogue prices" in w.value for w in at.warning)
     after = _table(at)
     pd.testing.assert_frame_equal(before, after)
 
@@ -216,14 +235,14 @@ def test_us_units_convert_inputs_and_table(at):
     _run(at)
     # the inputs follow the unit switch (MPa -> ksi, mm -> in, °C -> °F)
     d = pg.DEMO
-    assert at.number_input(key="min_yield").value == pytest.approx(d["targets"]["min_yield_mpa"] / 6.894757,
+    assert at.number_input(key="min_yield").value == pytest.approx(d["targets"]["min_yield_mpa"] / KSI,
                                                                    abs=0.001)
     assert at.number_input(key="diameter").value == pytest.approx(d["diameter_mm"] / 25.4, abs=0.0001)
     if d["service"].get("service_temp_c") is not None:
         assert at.number_input(key="service_temp").value == pytest.approx(
             d["service"]["service_temp_c"] * 9 / 5 + 32, abs=0.1)
     us = _table(at)
-    assert "yield_ksi" in us.columns and "yield_mpa" not in us.columns
+    assert "yield_ksi" in us.columns and "yield_mpa" not in us.columns and "yield (ksi)" in us.columns
     assert "case_depth_in" in us.columns and "uts_ksi" in us.columns
     # the library got the inputs back in SI, and the table shows its result in US units
     keys = ["diameter", "length"] + [w for w, _, _ in pg.TARGET_FIELDS.values()]
@@ -237,15 +256,18 @@ def test_us_units_convert_inputs_and_table(at):
     # (routes with a temperature: a bar bought as supplied has none)
     with_temp = ref["route_text"].str.contains("°C").to_numpy()
     assert with_temp.any()
-    assert us.loc[with_temp, "route_text"].str.contains("°F").all() and not us["route_text"].str.contains("°C").any()
-    assert pg.route_line([{"op": "temper", "temp_c": 540.0, "hours": 2.0}], pg.US) == "Temper at 1004 °F, for 2 h"
-    np.testing.assert_allclose(us["yield_ksi"], ref["yield_mpa"] / 6.894757, rtol=1e-12)
+    words = us["process route"]
+    assert words[with_temp].str.contains("°F").all() and not words.str.contains("°C").any()
+    # 540 °C = 1004 °F, written to the 10 °F step of a furnace set point
+    assert "1000 °F" in pg.route_line([{"op": "temper", "temp_c": 540.0, "hours": 2.0}], pg.US)
+    np.testing.assert_allclose(us["yield_ksi"], ref["yield_mpa"] / (4448.2216152605 / 25.4 ** 2), rtol=1e-12)
     np.testing.assert_allclose(us["case_depth_in"], ref["case_depth_mm"] / 25.4, rtol=1e-12)
     # rows with a window (a candidate with an avoid caution has none)
     qt = ((ref["window_parameter"] == "temper_temp_c") & ref["window_min"].notna()).to_numpy()
     assert qt.any()
     np.testing.assert_allclose(us.loc[qt, "window_min"], ref.loc[qt, "window_min"] * 9 / 5 + 32, rtol=1e-12)
-    assert us.loc[qt, "window"].str.contains("°F").all() and not us.loc[qt, "window"].str.contains("°C").any()
+    shown = us.loc[qt, "process window"]
+    assert shown.str.contains("°F").all() and not shown.str.contains("°C").any()
     # and back
     at.radio(key="units").set_value(pg.SI)
     _run(at)
@@ -298,10 +320,10 @@ def test_candidate_view_shows_route_window_profile_sources(at):
     _run(at)
     row = table.iloc[1]
     heads = [s.value for s in at.subheader]
-    assert any(h.startswith("C2 · ") and row["route_text"] in h for h in heads)
+    assert any(h.startswith("C2 · ") and row["process route"] in h for h in heads)
     md = " ".join(m.value for m in at.markdown)
     assert "**Process window**" in md and "**Sources**" in md
-    assert "1. **" in md                               # numbered route steps
+    assert any(m.value.startswith("1. ") for m in at.markdown)      # numbered route steps
 
 
 def test_candidate_view_band_and_heat_analysis(at):
@@ -327,7 +349,7 @@ def test_band_text_converts_units():
     ev = {"yield_mpa_lo": 689.476, "yield_mpa_hi": 827.371, "hardness_hrc_lo": 30.0, "hardness_hrc_hi": 36.0}
     si, us = pg.band_text(ev, pg.SI), pg.band_text(ev, pg.US)
     assert "yield 689–827 MPa" in si and "hardness 30.0–36.0 HRC" in si
-    assert "yield 100–120 ksi" in us            # 689.476 MPa = 100 ksi (1 ksi = 6.894757 MPa)
+    assert "yield 100–120 ksi" in us            # 689.476 MPa = 100 ksi (1 ksi = 6.894757 MPa, NIST SP 811)
 
 
 def test_comparison_defaults_to_through_and_case_hardened(at):
@@ -342,8 +364,9 @@ def test_comparison_defaults_to_through_and_case_hardened(at):
 # --------------------------------------------------------------------------- pure helpers
 
 def test_unit_conversions():
-    # 1 ksi = 6.894757 MPa (NIST SP 811 (2008), Appendix B.8)
-    assert pg.to_display(6.894757, "stress", pg.US) == pytest.approx(1.0, rel=1e-12)
+    # 1 ksi = 4448.2216152605 / 25.4^2 MPa exactly (NIST SP 811 (2008), Appendix B.8, B.9)
+    ksi = 4448.2216152605 / 25.4 ** 2     # 1 ksi = 1000 lbf / in^2, both exact (NIST SP 811 (2008), B.8, B.9)
+    assert pg.to_display(ksi, "stress", pg.US) == pytest.approx(1.0, rel=1e-12)
     assert pg.to_display(25.4, "length", pg.US) == pytest.approx(1.0, rel=1e-12)      # exact by definition
     assert pg.to_display(100.0, "temperature", pg.US) == pytest.approx(212.0, abs=1e-9)
     assert pg.to_display(-40.0, "temperature", pg.US) == pytest.approx(-40.0, abs=1e-9)
@@ -388,9 +411,24 @@ def test_chart_frames_hold_each_candidate_region_and_path():
     f = pg.chart_frames(states, cand, "yield_mpa", pg.SI, picked="C1")
     assert set(f["regions"]["id"]) == set(cand["id"])
     assert set(f["paths"]["id"]) == set(cand["id"])
-    # the focus path is labelled with its parameter values, the others are not
+    # a path long enough to read is labelled with its parameter value at both ends, the focus path along
+    # its length too
     labelled = f["paths"][f["paths"]["text"] != ""]
-    assert set(labelled["id"]) == {"C1"} and labelled["text"].str.endswith("°").all()
+    assert "C1" in set(labelled["id"]) and labelled["text"].str.endswith("°").all()
+    counts = labelled.groupby("id").size()
+    assert (counts.drop("C1") == 2).all() and counts["C1"] > 2
+    # colour by route family: the library's family label on every frame
+    from selector.routes import families
+    assert list(f["points"]["family"]) == [families.get(r).label for r in cand["route_family"]]
+    # direct labels: the focus always; no two written labels on top of each other
+    pts = f["points"]
+    assert pts.loc[pts["id"] == "C1", "tag"].iloc[0].startswith("C1")
+    shown = pts[pts["tag"] != ""]
+    sx, sy = np.ptp(states["elongation_pct"]), np.ptp(states["yield_mpa"])
+    for i in range(len(shown)):
+        for j in range(i):
+            a, b = shown.iloc[i], shown.iloc[j]
+            assert abs(a["x"] - b["x"]) / sx >= 0.1 or abs(a["y"] - b["y"]) / sy >= 0.05
     # each chosen point lies inside its own region band
     for _, p in f["points"].iterrows():
         b = f["regions"][f["regions"]["id"] == p["id"]]
@@ -523,10 +561,10 @@ def test_pin_section_in_us_units(at):
                                lug_thickness_mm=at.number_input(key="pin_lug").value * 25.4,
                                clevis_thickness_mm=at.number_input(key="pin_clevis").value * 25.4,
                                wear_surface_hardness_hrc=d["wear_surface_hardness_hrc"])
-    assert at.number_input(key="min_yield").value == pytest.approx(ref["min_yield_mpa"] / 6.894757, rel=1e-9)
+    assert at.number_input(key="min_yield").value == pytest.approx(ref["min_yield_mpa"] / KSI, rel=1e-9)
     # the rounding of the unit switch moves the demo target by less than 0.1 %
     assert ref["min_yield_mpa"] == pytest.approx(pg.DEMO["targets"]["min_yield_mpa"], rel=1e-3)
-    assert _metric(at, "Min yield (ksi)") == f"{ref['min_yield_mpa'] / 6.894757:.4g}"
+    assert _metric(at, "Min yield (ksi)") == f"{ref['min_yield_mpa'] / KSI:.4g}"
     assert not _errors(at)
     # the listed sweep diameters follow the switch (inch, 4 significant digits)
     listed, msg = pg.parse_lengths(at.text_input(key="sweep_list").value, pg.US)
@@ -537,7 +575,7 @@ def test_pin_section_in_us_units(at):
 def test_sweep_table_and_chart_in_display_units():
     route = [{"op": "harden", "austenitize_c": 845.0, "quench": "oil"},
              {"op": "temper", "temp_c": 540.0, "hours": 2.0}]
-    sw = pd.DataFrame({"diameter_mm": [25.4, 50.8, 76.2], "min_yield_mpa": [6.894757 * 100, 6.894757 * 50, 200.0],
+    sw = pd.DataFrame({"diameter_mm": [25.4, 50.8, 76.2], "min_yield_mpa": [KSI * 100, KSI * 50, 200.0],
                        "min_uts_mpa": [300.0, 200.0, 100.0], "min_surface_hardness_hrc": np.nan,
                        "governing": "bending", "n_robust": [3, 5, 0], "grade": ["4140", "1045", ""],
                        "family": ["alloy_steel", "carbon_steel", ""], "route_family": ["quench_temper", "induction", ""],
@@ -548,11 +586,13 @@ def test_sweep_table_and_chart_in_display_units():
                        "changed": [False, True, True], "cautions": ["", "", ""],
                        "route": [json.dumps(route), "", ""]})
     us = pg.sweep_table(sw, pg.US)
-    # 1 in = 25.4 mm, 1 ksi = 6.894757 MPa (NIST SP 811 (2008), Appendix B.8)
+    # 1 in = 25.4 mm, 1 ksi = 4448.2216152605 / 25.4^2 MPa exactly (NIST SP 811 (2008), Appendix B.8, B.9)
     np.testing.assert_allclose(us["diameter_in"], [1.0, 2.0, 3.0], rtol=1e-12)
     np.testing.assert_allclose(us["min_yield_ksi"][:2], [100.0, 50.0], rtol=1e-12)
     assert "diameter_mm" not in us and "yield_ksi" in us
-    assert us["route_text"][0] == "Austenitize and quench from 1553 °F, quench in oil → Temper at 1004 °F, for 2 h"
+    # 845 °C = 1553 °F and 540 °C = 1004 °F, written to the 10 °F step of a furnace set point
+    assert "1550 °F" in us["route_text"][0] and "1000 °F" in us["route_text"][0] and "oil" in us["route_text"][0]
+    assert "°C" not in us["route_text"][0]
     assert us["route_text"][1] == "x"                 # no steps kept: the library's text
     si = pg.sweep_table(sw, pg.SI)
     assert list(si.columns) == [c for c in pg.SWEEP_SHOWN]
@@ -653,3 +693,202 @@ def test_sweep_on_two_diameters_is_the_library_pick(at):
     assert any("have changed since this sweep" in i.value for i in at.info)
     assert _sweep(at) is not None
     assert sum(selector.CAUTION in w.value for w in at.warning) >= 2
+
+
+# --------------------------------------------------------------------------- issue 15: settings, reset, prices
+
+def _in_force(at) -> str:
+    lines = [m.value for m in at.markdown if m.value.startswith("**In force**")]
+    assert len(lines) == 1
+    return lines[0]
+
+
+def test_settings_line_names_every_setting_in_force(at):
+    line = _in_force(at)
+    d = pg.DEMO
+    assert f"Ø {d['diameter_mm']:.4g} mm" in line and f"× {d['length_mm']:.4g} mm long" in line
+    # every target of the example, with its value, including the surface hardness of a collapsed panel
+    for key, words in (("min_yield_mpa", "yield ≥"), ("min_uts_mpa", "tensile ≥"),
+                       ("min_surface_hardness_hrc", "surface ≥")):
+        assert f"{words} {d['targets'][key]:.4g}" in line, (key, line)
+    sv = d["service"]
+    assert sv["plating"] in line and sv["mating_material"] in line and f"{sv['environment']} environment" in line
+    assert f"up to {sv['service_temp_c']:.4g} °C" in line
+    assert "all families" in line and "probability ≥ 90 %" in line and "catalogue prices" in line and "SI" in line
+    # a change of any setting shows in the line
+    at.multiselect(key="families").set_value(["alloy_steel", "carbon_steel"])
+    at.checkbox(key="corrosion").check()
+    at.radio(key="units").set_value(pg.US)
+    _run(at)
+    line = _in_force(at)
+    assert "families: alloy steel, carbon steel" in line and "corrosion-resistant only" in line
+    assert f"yield ≥ {d['targets']['min_yield_mpa'] / KSI:.4g} ksi" in line and "°F" in line and "US customary" in line
+
+
+def test_new_part_clears_everything_and_the_example_is_loaded_on_purpose(at):
+    assert any("Example loaded" in i.value for i in at.info)
+    at.button(key="new_part").click()
+    _run(at)
+    for wkey, _, _ in pg.TARGET_FIELDS.values():
+        assert at.number_input(key=wkey).value is None, wkey
+    for key in ("diameter", "length", "service_temp", "pin_load", "pin_diameter", "pin_lug", "pin_clevis"):
+        assert at.number_input(key=key).value is None, key
+    assert not at.checkbox(key="plated").value and at.text_input(key="mating").value == ""
+    assert at.selectbox(key="environment").value == "normal"
+    assert not at.checkbox(key="robust_only").value and at.text_area(key="price_text").value == ""
+    assert set(at.multiselect(key="families").value) == set(FAMILIES)
+    assert not any("Example loaded" in i.value for i in at.info)
+    assert _table(at) is None and not _errors(at)          # blank inputs are the next step, not faults
+    assert any(i.value.startswith("Diameter: blank") for i in at.info)
+    line = _in_force(at)
+    assert "targets: none" in line and "no section" in line and "normal environment" in line
+    assert "plated" not in line and "mating" not in line
+    # a section alone ranks every candidate with no target
+    at.number_input(key="diameter").set_value(30.0)
+    at.number_input(key="length").set_value(100.0)
+    _run(at)
+    table = _table(at)
+    assert table is not None and len(table) == len(rank(prepare(30.0, None, 100.0), {}))
+    # the example comes back on purpose, labelled, its targets visible in the sidebar
+    at.button(key="load_example").click()
+    _run(at)
+    assert any("Example loaded" in i.value for i in at.info)
+    assert at.number_input(key="min_yield").value == pytest.approx(pg.DEMO["targets"]["min_yield_mpa"])
+    assert at.number_input(key="min_surface_hrc").value == pg.DEMO["targets"]["min_surface_hardness_hrc"]
+    assert at.text_input(key="mating").value == pg.DEMO["service"]["mating_material"]
+
+
+def test_rejected_price_sheet_after_a_good_one_names_the_prices_in_use(at):
+    at.text_area(key="price_text").set_value("grade,relative_price\nAISI 4140,0.25\n")
+    _run(at)
+    good = _table(at)
+    assert "price sheet 'pasted price sheet' (1 grade priced" in _in_force(at)
+    at.text_area(key="price_text").set_value("grade,relative_price\n4140,cheap\n")
+    _run(at)
+    errs = " ".join(_errors(at))
+    assert "rejected" in errs and "line 2" in errs
+    # the sheet accepted before stays in use, and the page says so (warning and the settings line)
+    warn = [w.value for w in at.warning if "Prices in use" in w.value]
+    assert warn and "pasted price sheet" in warn[0] and "accepted before" in warn[0]
+    assert "price sheet 'pasted price sheet'" in _in_force(at)
+    after = _table(at)
+    assert (after.loc[after["grade"] == "4140", "price_source"] == "price sheet").all()
+    pd.testing.assert_frame_equal(good, after)
+    # clearing the text goes back to the catalogue, said in the line
+    at.text_area(key="price_text").set_value("")
+    _run(at)
+    assert "catalogue prices" in _in_force(at) and not _errors(at)
+
+
+# --------------------------------------------------------------------------- issue 15: procurement
+
+def _alternatives(at) -> pd.DataFrame | None:
+    for df in at.dataframe:
+        if "saving / kg" in df.value.columns:
+            return df.value
+    return None
+
+
+def test_alternatives_view_lists_cheaper_candidates_with_material_and_processing_apart(at):
+    table = _table(at)
+    # the dearest candidate per kg has cheaper alternatives
+    i = int(np.argmax(table["relative_cost"].to_numpy(float)))
+    at.selectbox(key="alt_pick").select_index(i)
+    _run(at)
+    shown = _alternatives(at)
+    row = table.iloc[i]
+    d = pg.DEMO
+    ref = alternatives(row["grade"], json.loads(row["route"]), d["diameter_mm"],
+                                                 length_mm=d["length_mm"])
+    assert shown is not None and len(shown) == len(ref) > 0
+    assert list(shown["grade"]) == list(ref["grade"])
+    np.testing.assert_allclose(shown["total / kg"], ref["relative_cost"], atol=5e-4)
+    np.testing.assert_allclose(shown["material / kg"] + shown["processing / kg"], shown["total / kg"], atol=1.5e-3)
+    # the material part is the grade's catalogue price (no sheet loaded), the processing part the route's adder
+    for g, m in zip(shown["grade"], shown["material / kg"]):
+        assert m == pytest.approx(selector.grade(g).relative_price, abs=5e-4)
+    assert (shown["total / kg"] < row["relative_cost"]).all()
+    labels = [m.label for m in at.metric]
+    assert "Material / kg" in labels and "Processing / kg" in labels
+    assert any("prices in use: catalogue prices" in c.value for c in at.caption)
+    # a grade and route typed by the user; a bad step names the field
+    at.radio(key="alt_mode").set_value("a grade and route I type")
+    _run(at)
+    assert _alternatives(at) is not None or any("No cheaper candidate" in i.value for i in at.info)
+    at.text_input(key="alt_steps").set_value("harden quench=oil; temper temp_c")
+    _run(at)
+    assert any(e.startswith("Route steps") and "temp_c" in e and "allowed" in e for e in _errors(at))
+    at.text_input(key="alt_steps").set_value("harden quench=oil; temper temp_c=hot")
+    _run(at)
+    assert any("temp_c" in e and "hot" in e for e in _errors(at))
+
+
+# --------------------------------------------------------------------------- issue 15: pin explanation, comparison
+
+def test_pin_view_explains_each_derived_target(at):
+    md = " ".join(m.value for m in at.markdown)
+    rep = pin_report(**{k: pg.DEMO["pin"][k] for k in
+                                             ("load_kn", "diameter_mm", "shear_planes", "safety_factor", "gap_mm",
+                                              "lug_thickness_mm", "clevis_thickness_mm",
+                                              "wear_surface_hardness_hrc")})
+    assert f"{rep['governing']} governs" in md
+    assert f"Minimum yield {rep['targets']['min_yield_mpa']:.4g} MPa" in md
+    assert f"Minimum tensile {rep['targets']['min_uts_mpa']:.4g} MPa: from shear only" in md
+    assert "/ 0.6," in md and "common practice" in md           # the shear-to-tensile factor and its source
+    assert "Minimum surface hardness 50 HRC" in md
+    _set_pin(at, PIN_CASE, planes=1)
+    md = " ".join(m.value for m in at.markdown)
+    ref = pin_report(load_kn=45.0, diameter_mm=30.0, shear_planes=1, safety_factor=2.5,
+                                          gap_mm=2.0, lug_thickness_mm=20.0, clevis_thickness_mm=12.0)
+    assert f"{ref['governing']} governs" in md and "No surface-hardness target" in md
+
+
+def test_use_these_targets_prefills_side_by_side_with_through_and_case_hardened(at):
+    table = _table(at)
+    at.multiselect(key="compare").set_value(list(at.multiselect(key="compare").options[-2:]))
+    _run(at)
+    at.button(key="pin_apply").click()
+    _run(at)
+    table = _table(at)
+    depth = table["case_depth_mm"].astype(float).fillna(0.0).to_numpy()
+    chosen = at.multiselect(key="compare").value
+    assert len(chosen) == 2
+    # the first row without a case and the first with one, in the table's order
+    first_through = next(i for i in range(len(table)) if depth[i] <= 0)
+    first_case = next(i for i in range(len(table)) if depth[i] > 0)
+    assert chosen == [table["variant"].iloc[first_through], table["variant"].iloc[first_case]]
+
+
+def test_default_columns_are_readable_and_all_columns_are_behind_a_switch(at):
+    from selector.views.columns import default_headers
+
+    shown = _readable(at)
+    assert shown is not None and len(shown) > 0
+    headers = [h for h in default_headers(pg.SI, "HRC") if h in shown.columns]
+    assert list(shown.columns) == ["id"] + headers + ["material / kg", "processing / kg"]
+    for h in ("grade", "process route", "yield (MPa)", "tensile (MPa)", "elongation (%)", "hardness (HRC)",
+              "surface hardness (HRC)", "case depth (mm)", "part cost (relative)", "p_meet (%)", "process window"):
+        assert h in shown.columns, h
+    assert not {"route_family", "route", "route_text", "window_min", "variant"} & set(shown.columns)
+    # rounded to the precision the models carry: strengths to 5 MPa, elongation to 0.5 %
+    assert (shown["yield (MPa)"] % 5 == 0).all() and ((shown["elongation (%)"] * 2) % 1 == 0).all()
+    # a zero case depth reads as words, never 0
+    full = _table(at)
+    assert list(full["id"]) == list(shown["id"])
+    no_case = full["case_depth_mm"].astype(float).fillna(0.0).to_numpy() <= 0
+    assert no_case.any() and (~no_case).any()
+    assert shown.loc[no_case, "case depth (mm)"].isin(["through-hardened", "no case"]).all()
+    hardened = full["route_family"].isin(["quench_temper"]).to_numpy() & no_case
+    assert (shown.loc[hardened, "case depth (mm)"] == "through-hardened").all()
+    # the switch adds every internal column after the readable ones
+    assert {"route_family", "route", "route_text", "window_min", "relative_price"} <= set(full.columns)
+    assert list(full.columns[:len(shown.columns) - 2]) == list(shown.columns[:-2])
+    # in US units the headers carry US units
+    at.toggle(key="all_columns").set_value(False)
+    at.radio(key="units").set_value(pg.US)
+    _run(at)
+    us = _readable(at)
+    assert "yield (ksi)" in us.columns and "case depth (in)" in us.columns and "yield (MPa)" not in us.columns
+    # prices per lb: the per-kg price x 0.45359237 kg/lb (exact, NIST SP 811 (2008), B.8)
+    assert "material / lb" in us.columns and "material / kg" not in us.columns
+    np.testing.assert_allclose(us["material / lb"], shown["material / kg"] * 0.45359237, rtol=2e-2)

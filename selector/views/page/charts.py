@@ -1,0 +1,576 @@
+"""Charts of the page (Altair): the strength-elongation map, the process-parameter
+curves, hardness profiles, the side-by-side bars, the diameter sweep, the
+trade-off frontier of a near miss and the fatigue strength through the depth.
+Each builder takes DataFrames in SI and the unit system, and draws; no physics."""
+from __future__ import annotations
+
+import math
+from typing import Mapping, Sequence
+
+import altair as alt
+import numpy as np
+import pandas as pd
+
+from selector.catalogue.grades import default_catalogue
+from selector.selection.targets import NUMERIC_TARGETS
+from selector.routes.evaluate import scale_hardness
+from selector.views.units import display_name, quantity_of, to_display, unit
+
+from .text import family_label, param_label, param_unit, percent, pick_label, route_line
+
+
+PALETTE = ["#1b6f8a", "#c2571a", "#5b8c2a", "#8e3b74", "#b3922b", "#3f4fa3", "#a8323e", "#2f8f7b",
+           "#6b5a3e", "#d07fa8", "#4d7ea8", "#7c8a1f", "#9b5fc0", "#c0873f", "#355c4a"]
+TARGET_FILL = "#f1e6c8"
+TARGET_STROKE = "#8a6d1e"
+
+
+# --------------------------------------------------------------------------- region geometry (display)
+
+def hull_band(x: np.ndarray, y: np.ndarray) -> pd.DataFrame:
+    """The convex hull of points (x, y) as a band: at each hull vertex abscissa,
+    the lower and upper edge (``x, lo, hi``) — a form an area mark can fill.
+
+    Andrew's monotone chain (A.M. Andrew, Inf. Process. Lett. 9 (1979) 216) gives the
+    lower and upper chains of the hull, both ordered by x, so the band is exact for
+    the convex region.  A purely geometric display helper.
+    """
+    pts = np.column_stack([np.asarray(x, float), np.asarray(y, float)])
+    pts = pts[np.isfinite(pts).all(axis=1)]
+    if len(pts) == 0:
+        return pd.DataFrame(columns=["x", "lo", "hi"])
+    pts = np.unique(pts, axis=0)          # sorted by x then y
+    if len(pts) == 1 or np.ptp(pts[:, 0]) == 0:
+        xs = float(pts[0, 0])
+        return pd.DataFrame({"x": [xs, xs], "lo": [pts[:, 1].min()] * 2, "hi": [pts[:, 1].max()] * 2})
+
+    def turn(o, a, b):   # z of the cross product (a - o) x (b - o)
+        return (a[0] - o[0]) * (b[1] - o[1]) - (a[1] - o[1]) * (b[0] - o[0])
+
+    def chain(points):
+        out = []
+        for p in points:
+            while len(out) >= 2 and turn(out[-2], out[-1], p) <= 0:
+                out.pop()
+            out.append(p)
+        return np.array(out)
+
+    lower = chain(pts)
+    upper = chain(pts[::-1])[::-1]
+    xs = np.unique(np.concatenate([lower[:, 0], upper[:, 0]]))
+    lo = np.interp(xs, lower[:, 0], lower[:, 1])
+    hi = np.interp(xs, upper[:, 0], upper[:, 1])
+    return pd.DataFrame({"x": xs, "lo": np.minimum(lo, hi), "hi": np.maximum(lo, hi)})
+
+
+def chart_frames(states: pd.DataFrame, cand: pd.DataFrame, y: str, system: str,
+                 picked: str | None = None) -> dict:
+    """Frames for :func:`strength_elongation_chart`.
+
+    ``regions``: the edges of each candidate's scatter (lower and upper edge of the
+    hull over every composition corner and main-parameter value: ``x, lo, hi``);
+    ``paths``: the nominal composition along the main parameter, with the parameter
+    value as text at both ends of a path longer than 15 % of the drawn spread, and
+    along the focus path; ``points``:
+    each candidate's chosen state.  Every frame carries ``family`` (the route
+    family's name from the library) for the colour.  ``y``: ``yield_mpa`` or ``uts_mpa``."""
+    regions, paths = [], []
+    fam_of = dict(zip(cand["id"], [family_label(f) for f in cand["route_family"]]))
+    drawn = states[states["variant"].isin(list(cand["variant"]))]
+    # a path shorter than this share of the drawn spread carries no end labels (they would overlap)
+    span_x = float(np.nanmax(drawn["elongation_pct"]) - np.nanmin(drawn["elongation_pct"])) if len(drawn) else 0.0
+    span_y = float(np.nanmax(drawn[y]) - np.nanmin(drawn[y])) if len(drawn) else 0.0
+    for _, c in cand.iterrows():
+        s = states[states["variant"] == c["variant"]]
+        focus = c["id"] == picked
+        band = hull_band(s["elongation_pct"], s[y])
+        if len(band):
+            regions.append(band.assign(label=c["label"], id=c["id"], family=fam_of[c["id"]], focus=focus))
+        nom = s[s["corner"] == "nominal"].dropna(subset=["elongation_pct", y])
+        nom = nom.sort_values("main_value") if nom["main_value"].notna().any() else nom
+        if len(nom):
+            param = c.get("window_parameter") or ""
+            q = quantity_of(param) if param else None
+            mv = nom["main_value"].to_numpy(float)
+            shown = np.atleast_1d(to_display(mv, q, system) if q else mv)
+            u = param_unit(param, system)
+            n = len(nom)
+            keep = np.zeros(n, bool)
+            ex, ey = nom["elongation_pct"].to_numpy(float), nom[y].to_numpy(float)
+            if focus or np.ptp(ex) > 0.15 * span_x or np.ptp(ey) > 0.15 * span_y:
+                keep[[0, -1]] = True                   # both ends of a path long enough to read
+            if focus:
+                keep[::max(1, int(math.ceil(n / 8)))] = True    # and along the focus path
+            text = [_param_text(v, q, u) if (k and v == v) else "" for v, k in zip(shown, keep)]
+            paths.append(pd.DataFrame({"x": nom["elongation_pct"].to_numpy(float),
+                                       "y": nom[y].to_numpy(float), "order": np.arange(n),
+                                       "text": text, "param": shown, "label": c["label"], "id": c["id"],
+                                       "family": fam_of[c["id"]], "focus": focus}))
+    reg = pd.concat(regions, ignore_index=True) if regions else pd.DataFrame(
+        columns=["x", "lo", "hi", "label", "id", "family", "focus"])
+    pth = pd.concat(paths, ignore_index=True) if paths else pd.DataFrame(
+        columns=["x", "y", "order", "text", "param", "label", "id", "family", "focus"])
+    pts = pd.DataFrame({"x": cand["elongation_pct"].to_numpy(float), "y": cand[y].to_numpy(float),
+                        "label": cand["label"], "id": cand["id"], "grade": cand["grade"],
+                        "tag": [f"{i} {g}" if (p or i == picked) else i
+                                for i, g, p in zip(cand["id"], cand["grade"], cand["pareto"].astype(bool))],
+                        "family": [fam_of[i] for i in cand["id"]],
+                        "route": cand["route_text"], "window": cand.get("window", ""),
+                        "set": np.where(cand["pareto"].astype(bool), "Pareto set", "meets targets"),
+                        "focus": (cand["id"] == picked).to_numpy(),
+                        "cost": cand["relative_cost"].to_numpy(float)})
+    pts["tag"] = _declutter(pts["x"].to_numpy(float), pts["y"].to_numpy(float), list(pts["tag"]),
+                            pts["focus"].to_numpy(bool), span_x, span_y)
+    for frame in (reg, pth, pts):
+        for col in ("y", "lo", "hi"):
+            if col in frame:
+                frame[col] = to_display(frame[col].to_numpy(float), "stress", system)
+    return {"regions": reg, "paths": pth, "points": pts}
+
+
+#: nearest distance between two direct labels on the map, as a share of the drawn spread
+LABEL_GAP = 0.05
+
+
+def _declutter(x: np.ndarray, y: np.ndarray, tags: list, focus: np.ndarray, span_x: float, span_y: float) -> list:
+    """The direct labels of the chosen states with those too close to a label already
+    placed left blank (the focus first, then in rank order): a crowded corner keeps one
+    readable label; every state stays in the tooltip and the table."""
+    sx, sy = (span_x or 1.0), (span_y or 1.0)
+    order = list(np.flatnonzero(focus)) + [i for i in range(len(tags)) if not focus[i]]
+    placed, out = [], list(tags)
+    for i in order:
+        if any(abs(x[i] - x[j]) / sx < LABEL_GAP * 2 and abs(y[i] - y[j]) / sy < LABEL_GAP for j in placed):
+            out[i] = ""
+        else:
+            placed.append(i)
+    return out
+
+
+def _param_text(v: float, q: str | None, u: str) -> str:
+    if q == "temperature":
+        return f"{v:.0f}°"
+    if q == "length":
+        return f"{v:.3g} {u}"
+    return f"{v:.3g} {u}".strip()
+
+
+def _domain(values, pad=0.06, floor=None):
+    v = np.asarray([x for x in values if x is not None and x == x], float)
+    if len(v) == 0:
+        return [0.0, 1.0]
+    lo, hi = float(v.min()), float(v.max())
+    span = (hi - lo) or max(abs(hi), 1.0) * 0.1
+    lo, hi = lo - pad * span, hi + pad * span
+    if floor is not None:
+        lo = max(lo, floor)
+    return [lo, hi]
+
+
+#: colours of the route families on the map, given in order of appearance (so a new family
+#: needs no entry here); dark enough for thin lines and text on white
+FAMILY_COLOURS = ["#0f5e7a", "#b24a12", "#4a7a1c", "#7b2f66", "#8f6f10", "#34449a", "#9a2a35", "#1f7a68",
+                  "#5c4b30", "#5a5a5a"]
+#: colour of the target limits on the map
+LIMIT_COLOUR = "#6d5a12"
+
+
+def strength_elongation_chart(frames: dict, targets: Mapping, y: str, system: str,
+                              picked: str | None = None, height: int = 500) -> alt.Chart:
+    """Strength (yield or tensile) against elongation, drawn as process paths.
+
+    Encoding (the page's own): each candidate is its **process path** at the nominal
+    composition, a line through the states of its main parameter with the parameter
+    value written at its ends (when the path is long enough to read them) and along the
+    focus path; the spread over composition
+    corners and the window is two **thin dotted edges** (lower and upper), not a
+    filled area; **colour is the route family** (one short legend of families);
+    each chosen state is a **square** (filled: Pareto set; open: meets the targets)
+    labelled directly with its id (and grade, for the Pareto set and the focus; in a
+    crowded corner only the first label is written); the
+    candidate in focus has a heavy path
+    and a cross-hair on its chosen state; the **targets** are dashed limit lines, each
+    named at its end, with a check-mark text in the corner that meets them all."""
+    reg, pth, pts = frames["regions"], frames["paths"], frames["points"]
+    su = unit("stress", system)
+    ytitle = ("Yield strength" if y == "yield_mpa" else "Tensile strength") + f" ({su})"
+    which = "yield" if y == "yield_mpa" else "uts"
+    tmin, tmax = targets.get(f"min_{which}_mpa"), targets.get(f"max_{which}_mpa")
+    emin = targets.get("min_elongation_pct")
+    ys = list(reg.get("lo", [])) + list(reg.get("hi", [])) + list(pts["y"])
+    xs = list(reg.get("x", [])) + list(pts["x"])
+    ys += [to_display(v, "stress", system) for v in (tmin, tmax) if v is not None]
+    xs += [emin] if emin is not None else []
+    xdom, ydom = _domain(xs, floor=0.0), _domain(ys, floor=0.0)
+    fams = list(dict.fromkeys(list(pts["family"])))
+    colour = alt.Color("family:N", title="route family",
+                       scale=alt.Scale(domain=fams, range=[FAMILY_COLOURS[i % len(FAMILY_COLOURS)]
+                                                           for i in range(len(fams))]),
+                       legend=alt.Legend(orient="top", direction="horizontal", labelLimit=0, title=None,
+                                         symbolType="stroke", symbolStrokeWidth=3, columns=2))
+    x = alt.X("x:Q", title="Elongation (%)", scale=alt.Scale(domain=xdom, nice=False))
+    yy = alt.Y("y:Q", title=ytitle, scale=alt.Scale(domain=ydom, nice=False))
+    layers = []
+    # the targets: dashed limits named at their ends, a check mark in the corner that meets them all
+    limits = []
+    for v, name in ((tmin, f"min {which if which == 'yield' else 'tensile'}"),
+                    (tmax, f"max {which if which == 'yield' else 'tensile'}")):
+        if v is not None:
+            limits.append({"y": float(to_display(v, "stress", system)), "t": f"{name} {to_display(v, 'stress', system):.4g}"})
+    if limits:
+        lf = pd.DataFrame(limits)
+        layers.append(alt.Chart(lf).mark_rule(color=LIMIT_COLOUR, strokeDash=[8, 4], strokeWidth=1.4)
+                      .encode(y=alt.Y("y:Q", scale=alt.Scale(domain=ydom, nice=False))))
+        layers.append(alt.Chart(lf.assign(xr=xdom[1])).mark_text(align="right", dx=-4, dy=-6, color=LIMIT_COLOUR,
+                                                                 fontSize=11)
+                      .encode(x=alt.X("xr:Q", scale=alt.Scale(domain=xdom, nice=False)), y="y:Q", text="t:N"))
+    if emin is not None:
+        ef = pd.DataFrame({"x": [float(emin)], "t": [f"min elongation {emin:.3g} %"]})
+        layers.append(alt.Chart(ef).mark_rule(color=LIMIT_COLOUR, strokeDash=[8, 4], strokeWidth=1.4)
+                      .encode(x=alt.X("x:Q", scale=alt.Scale(domain=xdom, nice=False))))
+        layers.append(alt.Chart(ef).mark_text(align="left", dx=4, dy=10, color=LIMIT_COLOUR, fontSize=11,
+                                              angle=0).encode(x="x:Q", y=alt.value(0), text="t:N"))
+    if limits or emin is not None:
+        corner = pd.DataFrame({"x": [xdom[1]], "y": [float(to_display(tmax, "stress", system)) if tmax is not None
+                                                     else ydom[1]], "t": ["✓ meets the targets"]})
+        layers.append(alt.Chart(corner).mark_text(align="right", baseline="top", dx=-6, dy=6, color=LIMIT_COLOUR,
+                                                  fontStyle="italic", fontSize=12)
+                      .encode(x=alt.X("x:Q", scale=alt.Scale(domain=xdom, nice=False)),
+                              y=alt.Y("y:Q", scale=alt.Scale(domain=ydom, nice=False)), text="t:N"))
+    # the scatter over composition and window: two thin dotted edges per candidate
+    if len(reg):
+        for edge in ("lo", "hi"):
+            layers.append(alt.Chart(reg).mark_line(strokeDash=[1.5, 2.5], interpolate="linear")
+                          .encode(x=x, y=alt.Y(f"{edge}:Q", title=ytitle, scale=alt.Scale(domain=ydom, nice=False)),
+                                  color=colour, detail="id:N",
+                                  strokeWidth=alt.condition("datum.focus", alt.value(1.4), alt.value(0.7)),
+                                  opacity=alt.condition("datum.focus", alt.value(0.9), alt.value(0.45)),
+                                  tooltip=[alt.Tooltip("label:N", title="candidate")]))
+    # the process paths, labelled with the parameter value
+    if len(pth):
+        layers.append(alt.Chart(pth).mark_line()
+                      .encode(x=x, y=yy, order="order:Q", color=colour, detail="id:N",
+                              strokeWidth=alt.condition("datum.focus", alt.value(3.2), alt.value(1.3)),
+                              opacity=alt.condition("datum.focus", alt.value(1.0), alt.value(0.6)),
+                              tooltip=[alt.Tooltip("label:N", title="candidate"),
+                                       alt.Tooltip("param:Q", title="process value", format=".4g"),
+                                       alt.Tooltip("x:Q", title="elongation %", format=".1f"),
+                                       alt.Tooltip("y:Q", title=su, format=".4g")]))
+        layers.append(alt.Chart(pth[pth["text"] != ""]).mark_text(dx=6, dy=8, fontSize=10, align="left")
+                      .encode(x=x, y=yy, text="text:N", color=colour))
+    # the chosen states: squares, filled for the Pareto set, labelled directly
+    layers.append(alt.Chart(pts).mark_point(shape="square", size=110, strokeWidth=1.8)
+                  .encode(x=x, y=yy, color=colour,
+                          fill=alt.condition("datum.set == 'Pareto set'", colour, alt.value("white")),
+                          tooltip=[alt.Tooltip("label:N", title="candidate"), alt.Tooltip("route:N"),
+                                   alt.Tooltip("window:N"), alt.Tooltip("set:N", title="status"),
+                                   alt.Tooltip("x:Q", title="elongation %", format=".1f"),
+                                   alt.Tooltip("y:Q", title=su, format=".4g"),
+                                   alt.Tooltip("cost:Q", title="relative cost/kg", format=".2f")]))
+    layers.append(alt.Chart(pts[pts["tag"] != ""]).mark_text(align="left", dx=8, dy=-8, fontWeight="bold",
+                                                             fontSize=11)
+                  .encode(x=x, y=yy, text="tag:N", color=colour))
+    if picked is not None and (pts["id"] == picked).any():
+        layers.append(alt.Chart(pts[pts["id"] == picked]).mark_point(shape="cross", size=520, filled=False,
+                                                                     strokeWidth=1.6, color="#111111")
+                      .encode(x=x, y=yy))
+    return alt.layer(*layers).properties(height=height)
+
+
+def profile_frame(profiles: Mapping[str, list], system: str, families: Mapping[str, str] | None = None
+                  ) -> pd.DataFrame:
+    """Long frame of hardness profiles: ``label -> evaluate()["profile"]`` to columns
+    ``label, depth, r_over_R, hardness_hv, hardness_hrc, hardness_hb`` (depth in display
+    units; HB from the profile's HV on the ASTM E140 steel table of the library,
+    :func:`selector.routes.evaluate.scale_hardness`, given each label's grade family)."""
+    rows = []
+    for label, prof in profiles.items():
+        for p in prof or []:
+            rows.append({"label": label, "depth": to_display(p["depth_mm"], "length", system),
+                         "r_over_R": p["r_over_R"], "hardness_hv": p["hardness_hv"],
+                         "hardness_hrc": p.get("hardness_hrc")})
+    out = pd.DataFrame(rows, columns=["label", "depth", "r_over_R", "hardness_hv", "hardness_hrc"])
+    fam = np.array([(families or {}).get(lab, "") for lab in out["label"]], dtype=object)
+    out["hardness_hb"] = scale_hardness(out["hardness_hv"].to_numpy(float), fam)["hb"] if len(out) else []
+    return out
+
+
+def profile_chart(frame: pd.DataFrame, system: str, labels: Sequence[str] | None = None,
+                  height: int = 320, title: str = "Hardness across the section",
+                  colours: Sequence[str] | None = None, scale: str = "HRC") -> alt.Chart:
+    """Hardness (``scale``: HRC or HV, the page's one scale) against depth from the
+    surface; one line per label on shared axes (colours: by candidate id unless given).
+    HRC is blank where the profile is below the Rockwell C range."""
+    labels = list(labels or dict.fromkeys(frame["label"]))
+    colour = alt.Color("label:N", title="candidate",
+                       scale=alt.Scale(domain=labels, range=list(colours or _colours_for(labels))),
+                       legend=alt.Legend(orient="top", labelLimit=0, columns=1, title=None))
+    lu = unit("length", system)
+    return alt.Chart(frame).mark_line(point=alt.OverlayMarkDef(size=22), strokeWidth=2).encode(
+        x=alt.X("depth:Q", title=f"Depth below the surface ({lu}); centre at the right"),
+        y=alt.Y(f"hardness_{scale.lower()}:Q", title=f"Hardness ({scale})", scale=alt.Scale(zero=False)),
+        color=colour,
+        tooltip=[alt.Tooltip("label:N", title="candidate"), alt.Tooltip("depth:Q", format=".3g", title=lu),
+                 alt.Tooltip("r_over_R:Q", format=".2f", title="r/R"),
+                 alt.Tooltip("hardness_hv:Q", format=".0f", title="HV"),
+                 alt.Tooltip("hardness_hrc:Q", format=".1f", title="HRC")],
+    ).properties(height=height, title=title)
+
+
+def _colours_for(labels: Sequence[str]) -> list:
+    """Palette colours by candidate id (``C3 …`` -> the third colour), so a candidate
+    keeps its colour in every chart."""
+    out = []
+    for lab in labels:
+        try:
+            i = int(str(lab).split()[0][1:]) - 1
+        except ValueError:
+            i = len(out)
+        out.append(PALETTE[i % len(PALETTE)])
+    return out
+
+
+def parameter_frame(states: pd.DataFrame, variant: str, system: str) -> pd.DataFrame:
+    """Properties of one variant along its main parameter, per corner, long form:
+    ``param, corner, quantity, value`` (strengths in display units)."""
+    s = states[states["variant"] == variant].dropna(subset=["main_value"])
+    rows = []
+    for q, col in (("yield", "yield_mpa"), ("tensile", "uts_mpa"), ("elongation", "elongation_pct")):
+        if col not in s:
+            continue
+        v = s[col].to_numpy(float)
+        if col.endswith("_mpa"):
+            v = to_display(v, "stress", system)
+        rows.append(pd.DataFrame({"main_value": s["main_value"].to_numpy(float), "corner": s["corner"].to_numpy(),
+                                  "quantity": q, "value": v}))
+    return pd.concat(rows, ignore_index=True) if rows else pd.DataFrame(
+        columns=["main_value", "corner", "quantity", "value"])
+
+
+def parameter_charts(frame: pd.DataFrame, param: str, window: tuple, robust_window: tuple,
+                     targets: Mapping, system: str, chosen: float | None = None) -> list:
+    """Two charts on the same x axis (strength, then elongation) against the main
+    process parameter: the nominal
+    composition as a line, the lean–rich spread as a band, the window that meets the
+    targets shaded (darker where it holds at every composition corner), the targets
+    as rules and the chosen value as a vertical mark."""
+    q = quantity_of(param)
+    f = frame.copy()
+    if q:
+        f["main_value"] = to_display(f["main_value"].to_numpy(float), q, system)
+
+    def conv(v):
+        return to_display(v, q, system) if (q and v is not None and v == v) else v
+    pu = param_unit(param, system)
+    xt = f"{param_label(param).capitalize()} ({pu})" if pu else param_label(param).capitalize()
+    xdom = _domain(f["main_value"], pad=0.02)
+    x = alt.X("main_value:Q", title=xt, scale=alt.Scale(domain=xdom, nice=False))
+    spread = f.pivot_table(index=["main_value", "quantity"], values="value", aggfunc=["min", "max"]).reset_index()
+    spread.columns = ["main_value", "quantity", "lo", "hi"]
+    nominal = f[f["corner"] == "nominal"]
+    su = unit("stress", system)
+    panels = []
+    for qty, title, tkeys, qcol in ((("yield", "tensile"), f"Strength ({su})",
+                                     ("min_yield_mpa", "max_yield_mpa", "min_uts_mpa", "max_uts_mpa"), "stress"),
+                                    (("elongation",), "Elongation (%)", ("min_elongation_pct",), None)):
+        sp = spread[spread["quantity"].isin(qty)]
+        nm = nominal[nominal["quantity"].isin(qty)]
+        layers = []
+        if window and window[0] == window[0] and window[0] is not None:
+            layers.append(alt.Chart(pd.DataFrame({"a": [conv(window[0])], "b": [conv(window[1])]}))
+                          .mark_rect(color="#cfe3d6", opacity=0.7).encode(
+                x=alt.X("a:Q", scale=alt.Scale(domain=xdom, nice=False)), x2="b:Q"))
+        if robust_window and robust_window[0] == robust_window[0] and robust_window[0] is not None:
+            layers.append(alt.Chart(pd.DataFrame({"a": [conv(robust_window[0])], "b": [conv(robust_window[1])]}))
+                          .mark_rect(color="#8fbf9f", opacity=0.6).encode(
+                x=alt.X("a:Q", scale=alt.Scale(domain=xdom, nice=False)), x2="b:Q"))
+        qrange = {"yield": "#1b6f8a", "tensile": "#c2571a", "elongation": "#5b8c2a"}
+        qcolour = alt.Color("quantity:N", title=None,
+                            scale=alt.Scale(domain=list(qty), range=[qrange[k] for k in qty]),
+                            legend=alt.Legend(orient="top", direction="horizontal"))
+        ytitle = title
+        layers.append(alt.Chart(sp).mark_area(opacity=0.22).encode(
+            x=x, y=alt.Y("lo:Q", title=ytitle, scale=alt.Scale(zero=False)), y2="hi:Q", color=qcolour))
+        layers.append(alt.Chart(nm).mark_line(strokeWidth=2, point=alt.OverlayMarkDef(size=16)).encode(
+            x=x, y=alt.Y("value:Q", title=ytitle, scale=alt.Scale(zero=False)), color=qcolour,
+            tooltip=[alt.Tooltip("main_value:Q", title=xt, format=".4g"), alt.Tooltip("quantity:N"),
+                     alt.Tooltip("value:Q", format=".4g")]))
+        rules = []
+        for k in tkeys:
+            v = targets.get(k)
+            if v is not None:
+                rules.append({"v": to_display(v, qcol, system) if qcol else v,
+                              "t": k.replace("_mpa", "").replace("_pct", "").replace("_", " ")})
+        if rules:
+            rf = pd.DataFrame(rules)
+            layers.append(alt.Chart(rf).mark_rule(color=TARGET_STROKE, strokeDash=[5, 3]).encode(y="v:Q"))
+            layers.append(alt.Chart(rf).mark_text(align="left", dx=4, dy=-5, color=TARGET_STROKE, fontSize=10)
+                          .encode(y="v:Q", x=alt.value(2), text="t:N"))
+        if chosen is not None and chosen == chosen:
+            layers.append(alt.Chart(pd.DataFrame({"c": [conv(chosen)]})).mark_rule(color="#111111", strokeWidth=1.5)
+                          .encode(x=alt.X("c:Q", scale=alt.Scale(domain=xdom, nice=False))))
+        panels.append(alt.layer(*layers).properties(height=210 if qcol else 170))
+    return panels
+
+
+def comparison_frame(cand: pd.DataFrame, ids: Sequence[str], system: str, hardness: str = "HRC") -> pd.DataFrame:
+    """Properties of the chosen candidates in long form for the shared-axis bars:
+    ``label, group, quantity, value`` (strengths in display units, hardness in the
+    view's scale; the cost split into material and processing per kg where present)."""
+    sub = cand[cand["id"].isin(list(ids))]
+    rows = []
+    su, hs = unit("stress", system), hardness.lower()
+    for _, r in sub.iterrows():
+        for col, qty, group in (("yield_mpa", "yield", f"strength ({su})"), ("uts_mpa", "tensile", f"strength ({su})"),
+                                ("elongation_pct", "elongation", "elongation (%)"),
+                                (f"hardness_{hs}", "hardness", f"hardness ({hardness})"),
+                                (f"surface_hardness_{hs}", "surface hardness", f"hardness ({hardness})"),
+                                ("material_cost_per_kg", "material / kg", "relative cost"),
+                                ("processing_cost_per_kg", "processing / kg", "relative cost"),
+                                ("relative_cost", "per kg", "relative cost"),
+                                ("part_cost", "per part", "relative cost")):
+            v = r.get(col)
+            if v is None or v != v:
+                continue
+            v = float(v)
+            if col.endswith("_mpa"):
+                v = float(to_display(v, "stress", system))
+            rows.append({"label": r["label"], "id": r["id"], "group": group, "quantity": qty, "value": v})
+    return pd.DataFrame(rows, columns=["label", "id", "group", "quantity", "value"])
+
+
+#: colours of the compared candidates, by their place in the comparison
+COMPARE_COLOURS = ["#1b6f8a", "#c2571a", "#5b8c2a"]
+
+
+def comparison_bars(frame: pd.DataFrame, group: str, labels: Sequence[str], height: int = 240,
+                    legend: bool = False) -> alt.Chart:
+    """Grouped bars of one property group (e.g. strength) for the compared
+    candidates, on one shared value axis; the key names each candidate by its id
+    (C1, C3 …: the comparison table above gives the full label), so that it fits a
+    half-width column."""
+    f = frame[frame["group"] == group]
+    ids = [str(lab).split()[0] for lab in labels]
+    return alt.Chart(f).mark_bar(cornerRadiusTopLeft=2, cornerRadiusTopRight=2).encode(
+        x=alt.X("quantity:N", title=None, axis=alt.Axis(labelAngle=0, labelLimit=0)),
+        xOffset=alt.XOffset("id:N", sort=ids),
+        y=alt.Y("value:Q", title=group),
+        color=alt.Color("id:N", title="candidate", sort=ids,
+                        scale=alt.Scale(domain=ids, range=COMPARE_COLOURS[:len(ids)]),
+                        legend=alt.Legend(orient="top", direction="horizontal", labelLimit=0, title=None)
+                        if legend else None),
+        tooltip=[alt.Tooltip("label:N", title="candidate"), "quantity:N", alt.Tooltip("value:Q", format=".4g")],
+    ).properties(height=height)
+
+
+
+def sweep_chart(sw: pd.DataFrame, system: str, height: int = 340) -> alt.LayerChart:
+    """Relative part cost of the cheapest robust pick (left axis) and the minimum
+    yield target (right axis) against the pin diameter; each diameter where the pick
+    changes grade or route is marked (◆, a dashed rule and the new pick's label),
+    and the first pick is labelled.  Diameters with no robust candidate are marked
+    ✕ at the foot of the chart."""
+    lu, su = unit("length", system), unit("stress", system)
+    f = pd.DataFrame({"d": to_display(sw["diameter_mm"].to_numpy(float), "length", system),
+                      "cost": sw["part_cost"].to_numpy(float),
+                      "target": to_display(sw["min_yield_mpa"].to_numpy(float), "stress", system),
+                      "pick": [pick_label(g, r) for g, r in zip(sw["grade"], sw["route_family"])],
+                      "route": sw["route_text"].astype(str), "changed": sw["changed"].to_numpy(bool)})
+    f["starts"] = f["changed"] | (np.arange(len(f)) == 0)
+    series = alt.Scale(domain=["part cost", "min yield target"], range=[PALETTE[0], TARGET_STROKE])
+    colour = alt.Color("series:N", title=None, scale=series, legend=alt.Legend(orient="top", direction="horizontal"))
+    x = alt.X("d:Q", title=f"Pin diameter ({lu})", scale=alt.Scale(domain=_domain(f["d"], pad=0.04), nice=False))
+    have = f[f["cost"].notna()].assign(series="part cost")
+    ycost = alt.Y("cost:Q", title="Relative part cost (cheapest robust pick)", scale=alt.Scale(zero=False))
+    tips = [alt.Tooltip("d:Q", title=lu, format=".4g"), alt.Tooltip("pick:N"), alt.Tooltip("route:N"),
+            alt.Tooltip("cost:Q", title="part cost", format=".3f"),
+            alt.Tooltip("target:Q", title=f"min yield ({su})", format=".4g")]
+    cost = alt.Chart(have).mark_line(strokeWidth=2.4, point=alt.OverlayMarkDef(size=40, filled=True)).encode(
+        x=x, y=ycost, color=colour, tooltip=tips)
+    starts = have[have["starts"]]
+    marks = alt.Chart(starts[starts["changed"]]).mark_point(shape="diamond", size=260, filled=True,
+                                                          stroke="#111111", strokeWidth=1.2).encode(
+        x=x, y=ycost, color=colour, tooltip=tips)
+    # labels alternate above and below the line, so that picks at close diameters do not overlap
+    starts = starts.assign(above=np.arange(len(starts)) % 2 == 0)
+    labels = [alt.Chart(starts[starts["above"] == up]).mark_text(
+        align="left", dx=8, dy=-14 if up else 16, fontWeight="bold", fontSize=11, color="#222222").encode(
+        x=x, y=ycost, text="pick:N") for up in (True, False)]
+    rules = alt.Chart(f[f["changed"]]).mark_rule(strokeDash=[4, 3], color="#555555").encode(x=x)
+    none = alt.Chart(f[f["cost"].isna()]).mark_point(shape="cross", size=120, color="#a8323e", filled=True).encode(
+        x=x, y=alt.value(height - 8), tooltip=[alt.Tooltip("d:Q", title=lu, format=".4g"), alt.Tooltip("pick:N")])
+    target = alt.Chart(f.assign(series="min yield target")).mark_line(strokeDash=[6, 3], strokeWidth=1.6,
+                                                                      point=alt.OverlayMarkDef(size=18)).encode(
+        x=x, y=alt.Y("target:Q", title=f"Min yield target ({su})", scale=alt.Scale(zero=False),
+                     axis=alt.Axis(orient="right")),
+        color=colour, tooltip=tips)
+    left = alt.layer(rules, cost, marks, *labels, none)
+    return alt.layer(left, target).resolve_scale(y="independent").properties(
+        height=height, title="Cheapest robust pick per diameter (◆ where the grade or route changes)")
+
+
+def frontier_chart(frontier: pd.DataFrame, axes: Sequence[str], targets: Mapping, system: str,
+                   height: int = 340):
+    """The trade-off between the two most binding targets: the non-dominated states
+    (:func:`~selector.selection.engine.miss_analysis`) as a step line with points, and the
+    two target limits as dashed rules.  None when there is no frontier."""
+    if frontier is None or len(frontier) == 0 or len(axes) != 2:
+        return None
+    (cx, _), (cy, _) = NUMERIC_TARGETS[axes[0]], NUMERIC_TARGETS[axes[1]]
+    qx, qy = quantity_of(cx), quantity_of(cy)
+
+    def conv(v, q):
+        return to_display(np.asarray(v, float), q, system) if q else np.asarray(v, float)
+    nx, ny = display_name(cx, system), display_name(cy, system)
+    pm = frontier["p_meet"].to_numpy(float) if "p_meet" in frontier else np.full(len(frontier), np.nan)
+    df = pd.DataFrame({"x": conv(frontier[cx], qx), "y": conv(frontier[cy], qy),
+                       "grade": frontier["grade"].to_numpy(),
+                       "route": [route_line(r, system, t) for r, t in zip(frontier["route"], frontier["route_text"])],
+                       "p_meet": [percent(p) for p in pm]})
+    enc_x = alt.X("x:Q", title=nx, scale=alt.Scale(zero=False))
+    enc_y = alt.Y("y:Q", title=ny, scale=alt.Scale(zero=False))
+    tips = [alt.Tooltip("grade:N"), alt.Tooltip("route:N"), alt.Tooltip("x:Q", title=nx, format=".4g"),
+            alt.Tooltip("y:Q", title=ny, format=".4g"), alt.Tooltip("p_meet:N", title="p_meet")]
+    line = alt.Chart(df).mark_line(interpolate="step-after", strokeWidth=1.5).encode(x=enc_x, y=enc_y)
+    pts = alt.Chart(df).mark_point(filled=True, size=30).encode(x=enc_x, y=enc_y, tooltip=tips)
+    layers = [line, pts]
+    lx, ly = targets.get(axes[0]), targets.get(axes[1])
+    if lx is not None:
+        layers.append(alt.Chart(pd.DataFrame({"x": [float(conv(lx, qx))]}))
+                      .mark_rule(strokeDash=[6, 3], color="firebrick").encode(x="x:Q"))
+    if ly is not None:
+        layers.append(alt.Chart(pd.DataFrame({"y": [float(conv(ly, qy))]}))
+                      .mark_rule(strokeDash=[6, 3], color="firebrick").encode(y="y:Q"))
+    return alt.layer(*layers).properties(
+        height=height, title=alt.TitleParams([f"What can be reached: {ny} against {nx}",
+                                              "with the other targets met (dashed: the targets)"]))
+
+
+def fatigue_depth_frame(ev: Mapping, system: str) -> pd.DataFrame:
+    """Long frame of ``evaluate()["fatigue"]["through_depth"]`` for the chart: columns
+    ``depth, curve, stress`` (``curve``: local fatigue strength, or the applied stress
+    scaled so that it touches the strength at the governing depth)."""
+    td = (ev.get("fatigue") or {}).get("through_depth")
+    if not td:
+        return pd.DataFrame(columns=["depth", "curve", "stress"])
+    depth = to_display(np.asarray(td["depth_mm"], float), "length", system)
+    strength = to_display(np.asarray(td["strength_mpa"], float), "stress", system)
+    applied = to_display(np.asarray(td["stress_per_surface"], float) * td["allowable_surface_mpa"], "stress", system)
+    return pd.concat([pd.DataFrame({"depth": depth, "curve": "local fatigue strength", "stress": strength}),
+                      pd.DataFrame({"depth": depth, "curve": "applied stress at the allowable surface stress",
+                                    "stress": applied})], ignore_index=True)
+
+
+def fatigue_depth_chart(frame: pd.DataFrame, system: str, height: int = 300) -> alt.Chart:
+    """Local fatigue strength and the applied (bending) stress against depth; they touch
+    at the governing depth."""
+    su, lu = unit("stress", system), unit("length", system)
+    return alt.Chart(frame).mark_line(point=alt.OverlayMarkDef(size=18), strokeWidth=2).encode(
+        x=alt.X("depth:Q", title=f"Depth below the surface ({lu})"),
+        y=alt.Y("stress:Q", title=f"Stress amplitude ({su})"),
+        color=alt.Color("curve:N", title=None, legend=alt.Legend(orient="top", labelLimit=0, columns=1)),
+        tooltip=[alt.Tooltip("curve:N"), alt.Tooltip("depth:Q", format=".3g", title=lu),
+                 alt.Tooltip("stress:Q", format=".4g", title=su)],
+    ).properties(height=height, title=alt.TitleParams(["Fatigue strength and applied stress", "through the section"]))
+
+
