@@ -251,14 +251,19 @@ def effects(diameter_mm: float | None, thickness_mm: float | None) -> dict:
 def _band_quantiles(frame: pd.DataFrame, section_mm: float) -> dict:
     """(q05, q95) per row and banded property (0, 0 where the band table has none)."""
     out = {}
-    fams = frame["family"].to_numpy(object)
-    routes = frame["route"].to_numpy(object)
+    # the band table is looked up once per distinct (family, route) and spread to the rows
+    fcode, fams = pd.factorize(frame["family"].to_numpy(object))
+    rcode, routes = pd.factorize(frame["route"].to_numpy(object))
+    combo, inv = np.unique(rcode * len(fams) + fcode, return_inverse=True)
+    inv = inv.reshape(-1)
     for prop in BANDED:
-        lo, hi = np.zeros(len(frame)), np.zeros(len(frame))
-        for r in pd.unique(routes):
-            m = routes == r
-            ql, qh, _ = bands.quantiles(fams[m], r, np.full(int(m.sum()), section_mm), prop)
-            lo[m], hi[m] = ql, qh
+        lo_u, hi_u = np.zeros(len(combo)), np.zeros(len(combo))
+        for ri in np.unique(combo // len(fams)):
+            m = combo // len(fams) == ri
+            ql, qh, _ = bands.quantiles(np.asarray(fams, object)[combo[m] % len(fams)], routes[ri],
+                                        np.full(int(m.sum()), section_mm), prop)
+            lo_u[m], hi_u[m] = ql, qh
+        lo, hi = lo_u[inv], hi_u[inv]
         ok = np.isfinite(lo) & np.isfinite(hi)
         if bands.BAND_FREE in frame:      # a standard's guaranteed minimum: no model error
             ok &= ~(frame[bands.BAND_FREE].to_numpy(float) > 0.5)
