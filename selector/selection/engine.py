@@ -179,24 +179,30 @@ def _prepare_table(diameter_mm, thickness_mm, length_mm, prices: tuple) -> pd.Da
     return out
 
 
-@functools.lru_cache(maxsize=32)
-def _samples_cached(diameter_mm, thickness_mm, keys: tuple, column: str) -> np.ndarray:
-    st = expand(diameter_mm, thickness_mm)
-    nom = st[st["corner"] == "nominal"].set_index("state_key", drop=False).loc[list(keys)]
-    section = diameter_mm if thickness_mm is None else thickness_mm
-    return scatter.sample(nom, float(section), diameter_mm, thickness_mm, columns=[column])[column]
+_SAMPLES: dict = {}
 
 
 def samples(prepared: pd.DataFrame, columns=None) -> dict:
     """Monte Carlo draws (:func:`selector.states.scatter.sample`) of the nominal block
     of ``prepared``, row-aligned with it: ``{column: (m, N_DRAWS) array}`` for
-    ``columns`` (default every drawable column), each drawn on first use and cached
-    per section and state order."""
-    sec = prepared.attrs.get("section") or {}
-    m = len(prepared) // 3
-    keys = tuple(prepared["state_key"].to_numpy()[:m].tolist())
+    ``columns`` (default every drawable column), each drawn on first use and kept with
+    the prepared table (a few recent ones), so that a re-rank only re-thresholds them."""
     cols = list(scatter.DRAWABLE) if columns is None else list(columns)
-    return {c: _samples_cached(sec.get("diameter_mm"), sec.get("thickness_mm"), keys, c) for c in cols}
+    key = id(prepared)
+    hit = _SAMPLES.get(key)
+    if hit is None or hit[0] is not prepared:
+        hit = (prepared, {})
+        if len(_SAMPLES) >= 8:
+            _SAMPLES.pop(next(iter(_SAMPLES)))
+        _SAMPLES[key] = hit
+    store = hit[1]
+    missing = [c for c in cols if c not in store]
+    if missing:
+        sec = prepared.attrs.get("section") or {}
+        d, t = sec.get("diameter_mm"), sec.get("thickness_mm")
+        section = d if t is None else t
+        store.update(scatter.sample(prepared.iloc[:len(prepared) // 3], float(section), d, t, columns=missing))
+    return {c: store[c] for c in cols}
 
 
 def p_meet(prepared: pd.DataFrame, targets: dict | None) -> np.ndarray:

@@ -72,8 +72,9 @@ import functools
 
 import numpy as np
 import pandas as pd
-from scipy import stats
+from scipy import special
 
+from ..cache import disk_arrays, disk_table
 from ..catalogue.grades import default_catalogue
 from ..models import conversions
 from ..routes import bands
@@ -89,7 +90,7 @@ SEED = 20261203
 #: σ of the composition draw in units of the half-range (limits at ±2σ)
 SIGMA_HALF_RANGES = 0.5
 #: the 95 % point of the standard normal (a 90 % two-sided band spans ±1.645 σ)
-Z95 = float(stats.norm.ppf(0.95))
+Z95 = float(special.ndtri(0.95))
 #: correlation of the elongation error score with the strength error score (chosen: a
 #: heat stronger than estimated is usually less ductile; common practice)
 ELONGATION_STRENGTH_RHO = -0.5
@@ -114,14 +115,24 @@ def draws(elements, n_draws: int = N_DRAWS, seed: int = SEED) -> dict:
     positions (truncated normal, σ = :data:`SIGMA_HALF_RANGES`, on [−1, 1]),
     ``eps_s`` and ``eps_e`` (n_draws,) standard normal error scores of strength and
     elongation (correlation :data:`ELONGATION_STRENGTH_RHO`)."""
+    z, e1, e2 = _draw_table(tuple(elements), int(n_draws), int(seed))
+    rho = ELONGATION_STRENGTH_RHO
+    return {"z": np.atleast_2d(z).reshape(n_draws, len(elements)), "eps_s": e1,
+            "eps_e": rho * e1 + np.sqrt(1.0 - rho * rho) * e2}
+
+
+@disk_table      # constants of the seed: drawn once per machine (scipy.stats costs ~0.5 s to import)
+def _draw_table(elements: tuple, n_draws: int, seed: int) -> tuple:
+    """(z, e1, e2): the truncated-normal element positions and two standard normal score
+    vectors of :func:`draws`, from one generator seeded with ``seed``."""
+    from scipy import stats      # lazy: only when the table is built, not in every process
+
     rng = np.random.default_rng(seed)
     b = 1.0 / SIGMA_HALF_RANGES
     z = stats.truncnorm.rvs(-b, b, scale=SIGMA_HALF_RANGES, size=(n_draws, len(elements)), random_state=rng)
     e1 = rng.standard_normal(n_draws)
     e2 = rng.standard_normal(n_draws)
-    rho = ELONGATION_STRENGTH_RHO
-    return {"z": np.atleast_2d(z).reshape(n_draws, len(elements)), "eps_s": e1,
-            "eps_e": rho * e1 + np.sqrt(1.0 - rho * rho) * e2}
+    return np.asarray(z, float), np.asarray(e1, float), np.asarray(e2, float)
 
 
 def _half_ranges(batch: Batch, element: str) -> np.ndarray:
@@ -216,6 +227,28 @@ def _family_effects(fam, d, t, nominal: dict):
     return keys, elements, out
 
 
+@disk_arrays     # kept in the user's cache directory, keyed by the arguments and all code and data
+def _effect_blocks(diameter_mm: float | None, thickness_mm: float | None) -> dict:
+    """The sensitivities of :func:`effects` as plain arrays, one block per route family:
+    ``f<i>_keys`` (m_i,) state keys, ``f<i>_elements`` (K_i,), ``f<i>_a_<prop>`` (m_i, K_i)."""
+    states = expand(diameter_mm, thickness_mm)
+    nom = states[states["corner"] == "nominal"]
+    nominal = {p: pd.Series(nom[p].to_numpy(float), index=nom["state_key"].to_numpy()) for p in SAMPLED}
+    out = {}
+    i = 0
+    for fam in fam_registry.available():
+        res = _family_effects(fam, diameter_mm, thickness_mm, nominal)
+        if res is None:
+            continue
+        keys, els, deltas = res
+        out[f"f{i}_keys"] = np.asarray(keys, dtype=str)
+        out[f"f{i}_elements"] = np.asarray(list(els), dtype=str)
+        for p, delta in deltas.items():
+            out[f"f{i}_a_{p}"] = np.ascontiguousarray(delta, dtype=float)
+        i += 1
+    return out
+
+
 @functools.lru_cache(maxsize=8)
 def effects(diameter_mm: float | None, thickness_mm: float | None) -> dict:
     """Sensitivities of the nominal states of :func:`expand` at one section.
@@ -225,16 +258,17 @@ def effects(diameter_mm: float | None, thickness_mm: float | None) -> dict:
     mid-range to its maximum (0 where the grade does not specify it; 0 where the moved
     state's value is undefined, e.g. off the hardness table, so such a state keeps its
     nominal value).  Computed at every :data:`THIN`-th value of the route's main
-    parameter and interpolated linearly in between.  Cached per section (treat as
+    parameter and interpolated linearly in between.  Cached per section, in memory and
+    in the user's cache directory (:func:`selector.cache.disk_arrays`; treat as
     read-only)."""
-    states = expand(diameter_mm, thickness_mm)
-    nom = states[states["corner"] == "nominal"]
-    nominal = {p: pd.Series(nom[p].to_numpy(float), index=nom["state_key"].to_numpy()) for p in SAMPLED}
+    blocks = _effect_blocks(diameter_mm, thickness_mm)
     parts = []
-    for fam in fam_registry.available():
-        out = _family_effects(fam, diameter_mm, thickness_mm, nominal)
-        if out is not None:
-            parts.append(out)
+    i = 0
+    while f"f{i}_keys" in blocks:
+        els = [str(e) for e in blocks[f"f{i}_elements"]]
+        res = {p: blocks[f"f{i}_a_{p}"] for p in SAMPLED if f"f{i}_a_{p}" in blocks}
+        parts.append((blocks[f"f{i}_keys"].astype(object), els, res))
+        i += 1
     elements = tuple(sorted({e for _, els, _ in parts for e in els}))
     kpos = {e: i for i, e in enumerate(elements)}
     keys = np.concatenate([k for k, _, _ in parts])
@@ -338,10 +372,14 @@ def sample(nominal: pd.DataFrame, section_mm: float, diameter_mm, thickness_mm,
             lo, hi = q[p]
             mu, sig = 0.5 * (lo + hi), (hi - lo) / (2.0 * Z95)
             eps = dr["eps_e"] if p == "elongation_pct" else dr["eps_s"]
+            # the band error per draw takes one row per distinct (mu, sig): a few dozen rows,
+            # computed once and gathered (the same numbers as per state, at a fraction of the cost)
+            ms, inv = np.unique(np.column_stack([mu, sig]), axis=0, return_inverse=True)
+            inv = inv.reshape(-1)
             if BANDED[p] == "relative":
-                y = y * np.exp(mu[:, None] + sig[:, None] * eps[None, :])
+                y = y * np.exp(ms[:, :1] + ms[:, 1:] * eps[None, :])[inv]
             else:
-                y = np.maximum(y + mu[:, None] + sig[:, None] * eps[None, :], 0.0)
+                y = np.maximum(y + ms[inv, :1] + (ms[:, 1:] * eps[None, :])[inv], 0.0)
         elif p == "case_depth_mm":
             y = np.maximum(y, 0.0)
         out[p] = y.astype(dtype)
