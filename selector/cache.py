@@ -329,12 +329,15 @@ def arrays_to_frame(arrays: dict):
             raise ValueError(f"column {c} has {len(a)} rows, expected {n}")
         if dt.startswith("text:"):
             uniq = np.asarray(arrays[f"u{i}"]).astype(object)
-            vals = np.empty(n, dtype=object)
-            ok = a >= 0
-            vals[ok] = uniq[a[ok]]
-            vals[~ok] = np.nan
             kind = dt[5:]
-            data[c] = pd.Series(vals, dtype=object if kind == "object" else kind)
+            if kind == "object":
+                vals = np.empty(n, dtype=object)
+                ok = a >= 0
+                vals[ok] = uniq[a[ok]]
+                vals[~ok] = np.nan
+                data[c] = pd.Series(vals, dtype=object)
+            else:       # the distinct texts converted once, then taken by code (-1: missing)
+                data[c] = pd.Series(pd.array(uniq, dtype=kind).take(np.asarray(a, np.int64), allow_fill=True))
         else:
             data[c] = pd.Series(np.asarray(a, dtype=np.dtype(dt)), copy=False)
     df = pd.DataFrame(data, columns=cols)

@@ -305,6 +305,9 @@ def _band_quantiles(frame: pd.DataFrame, section_mm: float) -> dict:
     return out
 
 
+#: rows of states drawn at once in :func:`sample` (bounds its (rows, N_DRAWS) intermediates)
+SAMPLE_BLOCK_ROWS = 2048
+
 #: columns :func:`sample` can draw, and the drawn property each needs
 DRAWABLE = {**{p: p for p in SAMPLED}, "hardness_hrc": "hardness_hv", "surface_hardness_hrc": "surface_hardness_hv"}
 
@@ -363,11 +366,12 @@ def sample(nominal: pd.DataFrame, section_mm: float, diameter_mm, thickness_mm,
     want = list(DRAWABLE) if columns is None else [c for c in columns if c in DRAWABLE]
     need = {DRAWABLE[c] for c in want}
     out = {}
+    m, d = len(nominal), int(n_draws)
     for p in SAMPLED:
         if p not in need:
             continue
         base = nominal[p].to_numpy(float)[:, None]
-        y = base + eff["a"][p][rows] @ zt                  # (m, D)
+        a_p = eff["a"][p]
         if p in BANDED:
             lo, hi = q[p]
             mu, sig = 0.5 * (lo + hi), (hi - lo) / (2.0 * Z95)
@@ -377,12 +381,27 @@ def sample(nominal: pd.DataFrame, section_mm: float, diameter_mm, thickness_mm,
             ms, inv = np.unique(np.column_stack([mu, sig]), axis=0, return_inverse=True)
             inv = inv.reshape(-1)
             if BANDED[p] == "relative":
-                y = y * np.exp(ms[:, :1] + ms[:, 1:] * eps[None, :])[inv]
+                err = np.exp(ms[:, :1] + ms[:, 1:] * eps[None, :])
             else:
-                y = np.maximum(y + ms[inv, :1] + (ms[:, 1:] * eps[None, :])[inv], 0.0)
-        elif p == "case_depth_mm":
-            y = np.maximum(y, 0.0)
-        out[p] = y.astype(dtype)
+                err = ms[:, 1:] * eps[None, :]
+        res = np.empty((m, d), dtype)
+        # in blocks of rows: the (rows, D) intermediates stay small and are reused, instead of
+        # several fresh (m, D) float64 arrays per property (same operations, row by row)
+        for r0 in range(0, m, SAMPLE_BLOCK_ROWS):
+            r1 = min(m, r0 + SAMPLE_BLOCK_ROWS)
+            y = a_p[rows[r0:r1]] @ zt
+            y += base[r0:r1]                               # base + a·z  (m, D)
+            if p in BANDED:
+                if BANDED[p] == "relative":
+                    y *= err[inv[r0:r1]]
+                else:
+                    y += ms[inv[r0:r1], :1]
+                    y += err[inv[r0:r1]]
+                    np.maximum(y, 0.0, out=y)
+            elif p == "case_depth_mm":
+                np.maximum(y, 0.0, out=y)
+            res[r0:r1] = y
+        out[p] = res
     steel = np.isin(nominal["family"].to_numpy(object).astype(str), STEEL_SCALE_FAMILIES)[:, None]
     for key in ("hardness", "surface_hardness"):
         if key + "_hrc" not in want:
