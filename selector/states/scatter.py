@@ -159,11 +159,14 @@ def _thinned(batch: Batch, main: str | None) -> tuple[np.ndarray, np.ndarray, np
     if not main or main not in batch.params or THIN <= 1:
         return idx, idx, idx, np.ones(n)
     mv = np.asarray(batch.params[main], float)
-    cols = {"g": batch.gidx}
+    # group: the grade and every other parameter (codes of their distinct values, as text)
+    cols = [np.asarray(batch.gidx, float)]
     for k, v in batch.params.items():
         if k != main:
-            cols[k] = np.asarray(v).astype(str)
-    group = pd.DataFrame(cols).groupby(list(cols), sort=False).ngroup().to_numpy()
+            cols.append(np.unique(np.asarray(v).astype(str), return_inverse=True)[1].reshape(-1).astype(float))
+    table = np.ascontiguousarray(np.column_stack(cols))
+    group = np.unique(table.view(np.dtype((np.void, table.dtype.itemsize * table.shape[1]))).ravel(),
+                      return_inverse=True)[1].reshape(-1)
     order = np.lexsort((mv, group))
     g_s, m_s = group[order], mv[order]
     first = np.r_[True, g_s[1:] != g_s[:-1]]
@@ -216,10 +219,11 @@ def _family_effects(fam, d, t, nominal: dict):
                  batch.diameter_mm[idx], batch.thickness_mm[idx])
     res = fam.compute(pert)       # the sampled properties come from compute itself (no band, no HRC)
     out = {}
+    at = nominal["index"].get_indexer(keys[idx])       # rows of the moved states' nominal values
     for p in SAMPLED:
         if p not in res:
             continue
-        base = nominal[p].reindex(keys[idx]).to_numpy(float)
+        base = np.where(at >= 0, nominal[p][at], np.nan)
         delta = np.asarray(res[p], float) - base
         full = np.zeros((n, k))
         full[idx, col] = np.where(np.isfinite(delta), delta, 0.0)
@@ -233,7 +237,8 @@ def _effect_blocks(diameter_mm: float | None, thickness_mm: float | None) -> dic
     ``f<i>_keys`` (m_i,) state keys, ``f<i>_elements`` (K_i,), ``f<i>_a_<prop>`` (m_i, K_i)."""
     states = expand(diameter_mm, thickness_mm)
     nom = states[states["corner"] == "nominal"]
-    nominal = {p: pd.Series(nom[p].to_numpy(float), index=nom["state_key"].to_numpy()) for p in SAMPLED}
+    nominal = {p: nom[p].to_numpy(float) for p in SAMPLED}
+    nominal["index"] = pd.Index(nom["state_key"].to_numpy(object))
     out = {}
     i = 0
     for fam in fam_registry.available():
