@@ -254,6 +254,30 @@ def _caution_view(prepared: pd.DataFrame):
     return view
 
 
+_AVOID: dict = {}
+
+
+def _avoid_masks(prepared: pd.DataFrame, allowed, ctx: dict) -> dict:
+    """:func:`selector.rules.cautions.avoid_masks` of the nominal block of ``prepared``,
+    kept per prepared table, allowed rules and context (the masks depend on the targets
+    only through ``ctx["strength_target"]``): a re-rank for new targets reuses them."""
+    try:
+        key = (id(prepared), tuple(sorted(allowed)), tuple(sorted(ctx.items())))
+        hash(key)
+    except TypeError:             # an unhashable context value: computed every time
+        return cautions_mod.avoid_masks(_caution_view(prepared), allowed, **ctx)
+    hit = _AVOID.get(key)
+    if hit is not None and hit[0] is prepared:
+        return hit[1]
+    masks = cautions_mod.avoid_masks(_caution_view(prepared), allowed, **ctx)
+    for v in masks.values():
+        v.setflags(write=False)
+    if len(_AVOID) >= 32:
+        _AVOID.pop(next(iter(_AVOID)))
+    _AVOID[key] = (prepared, masks)
+    return masks
+
+
 def _check_min_p(min_p_meet) -> float:
     import math
     if isinstance(min_p_meet, bool) or not isinstance(min_p_meet, (int, float, np.integer, np.floating)) \
@@ -337,7 +361,7 @@ def rank(prepared: pd.DataFrame, targets: dict | None = None, objectives=DEFAULT
     # a candidate state meets every target at its estimate; p_meet grades how surely
     likely = (p >= min_p - 1e-12) & nominal
     nom = prepared.iloc[:m]
-    am = cautions_mod.avoid_masks(_caution_view(prepared), allowed, **ctx)
+    am = _avoid_masks(prepared, allowed, ctx)
     clean = ~np.any(list(am.values()), axis=0) if am else np.ones(m, bool)
     vcode = nom["variant_code"].to_numpy()
     main = nom["main_value"].to_numpy(float)
@@ -443,6 +467,27 @@ def _window_text(row) -> str:
     return txt
 
 
+_ROUTES: dict = {}
+
+
+def _route_of(fam, params: tuple) -> tuple:
+    """(steps, route text) of a route family at ``params`` ((name, value) pairs), kept
+    (a re-rank lists mostly the same candidates again)."""
+    key = (fam.name, params)
+    try:
+        hit = _ROUTES.get(key)
+    except TypeError:
+        hit, key = None, None
+    if hit is None:
+        steps = fam.to_steps(dict(params))
+        hit = (steps, describe(steps))
+        if key is not None:
+            if len(_ROUTES) >= 20_000:
+                _ROUTES.clear()
+            _ROUTES[key] = hit
+    return hit
+
+
 def _finish(cand: pd.DataFrame, t: dict, objectives, service: dict | None = None, allowed=()) -> pd.DataFrame:
     cand = cand.reset_index(drop=True)
     lists = cautions_mod.cautions_for(cand, **(service or {}))
@@ -460,9 +505,9 @@ def _finish(cand: pd.DataFrame, t: dict, objectives, service: dict | None = None
     # rows as dicts of Python values (Series.tolist boxes like to_dict("records"), at a fraction of its cost)
     for r in (dict(zip(cols, vals)) for vals in zip(*[cand[c].tolist() for c in cols])):
         fam = fam_registry.get(r["route"])
-        steps = fam.to_steps({p: r[p] for p in fam.parameters if p in r})
-        routes.append(steps)
-        texts.append(describe(steps))
+        steps, text = _route_of(fam, tuple((p, r[p]) for p in fam.parameters if p in r))
+        routes.append([dict(st) for st in steps])        # the caller's own copy of the steps
+        texts.append(text)
         wparam.append(fam.main_parameter or "")
         wtext.append(_window_text(r))
     cand["route_family"] = cand["route"]
