@@ -19,6 +19,15 @@ The property of a drawn heat is linearised about the nominal composition::
 
     y(z) = y_nom + Σ_e a_e · z_e,      a_e = y(e at its maximum, others nominal) − y_nom
 
+and then anchored on the exact corners of the expansion: the linear predictor
+``s = Σ_e a_e z_e`` is scaled on each side of 0 so that every element at its maximum gives
+the rich corner and every element at its minimum the lean corner exactly
+(:func:`anchor_factors`; issue 12: one-sided sensitivities summed past a hardenability
+threshold, e.g. 36CrNiMo4 at 60 mm, where each element alone lifts the centre past 50 %
+martensite)::
+
+    y(z) = y_nom + f · s,   f = (y_rich − y_nom) / Σ a_e  (rich side),  (y_nom − y_lean) / Σ a_e  (lean side)
+
 The sensitivities ``a_e`` come from one extra vectorised ``compute`` per route family
 over the nominal states with one element moved to its maximum (one block per
 element: the same family ``compute`` the expansion uses, so they follow any model
@@ -239,6 +248,10 @@ def _effect_blocks(diameter_mm: float | None, thickness_mm: float | None) -> dic
     nom = states[states["corner"] == "nominal"]
     nominal = {p: nom[p].to_numpy(float) for p in SAMPLED}
     nominal["index"] = pd.Index(nom["state_key"].to_numpy(object))
+    corner = {}
+    for c in ("lean", "rich"):
+        blk = states[states["corner"] == c]
+        corner[c] = ({p: blk[p].to_numpy(float) for p in SAMPLED}, pd.Index(blk["state_key"].to_numpy(object)))
     out = {}
     i = 0
     for fam in fam_registry.available():
@@ -250,6 +263,15 @@ def _effect_blocks(diameter_mm: float | None, thickness_mm: float | None) -> dic
         out[f"f{i}_elements"] = np.asarray(list(els), dtype=str)
         for p, delta in deltas.items():
             out[f"f{i}_a_{p}"] = np.ascontiguousarray(delta, dtype=float)
+        # the exact corners of the expansion, as changes from the nominal state (the anchors)
+        at = nominal["index"].get_indexer(keys)
+        for c, sign in (("lean", -1.0), ("rich", 1.0)):
+            vals, index = corner[c]
+            ci = index.get_indexer(keys)
+            for p in SAMPLED:
+                y0 = np.where(at >= 0, nominal[p][at], np.nan)
+                yc = np.where(ci >= 0, vals[p][ci], np.nan)
+                out[f"f{i}_d{c}_{p}"] = sign * (yc - y0)
         i += 1
     return out
 
@@ -274,6 +296,8 @@ def effects(diameter_mm: float | None, thickness_mm: float | None) -> dict:
         res = {p: blocks[f"f{i}_a_{p}"] for p in SAMPLED if f"f{i}_a_{p}" in blocks}
         parts.append((blocks[f"f{i}_keys"].astype(object), els, res))
         i += 1
+    anchors = {c: {p: np.concatenate([blocks[f"f{j}_d{c}_{p}"] for j in range(i)]) if i else np.zeros(0)
+                   for p in SAMPLED} for c in ("lean", "rich")}
     elements = tuple(sorted({e for _, els, _ in parts for e in els}))
     kpos = {e: i for i, e in enumerate(elements)}
     keys = np.concatenate([k for k, _, _ in parts])
@@ -284,7 +308,36 @@ def effects(diameter_mm: float | None, thickness_mm: float | None) -> dict:
         for p, delta in res.items():
             a[p][start:start + len(k), cols] = delta
         start += len(k)
-    return {"state_key": keys, "index": pd.Index(keys), "elements": elements, "a": a}
+    return {"state_key": keys, "index": pd.Index(keys), "elements": elements, "a": a,
+            "d_lean": anchors["lean"], "d_rich": anchors["rich"]}
+
+
+#: the corner anchoring is used where the linear predictor points one way:
+#: |Σ a_e| >= ANCHOR_MIN_SHARE · Σ |a_e| (else the plain linearisation)
+ANCHOR_MIN_SHARE = 0.5
+#: largest factor applied to the linear predictor by the anchoring (a safety cap)
+ANCHOR_MAX_FACTOR = 10.0
+
+
+def anchor_factors(a_rows: np.ndarray, d_lean: np.ndarray, d_rich: np.ndarray) -> tuple:
+    """(f_pos, f_neg) per state: the factors on the linear predictor ``s = Σ a_e z_e`` where
+    s >= 0 and where s < 0 that make the drawn property exact at the rich corner (every z_e = +1:
+    ``s = Σ a_e``) and at the lean corner (every z_e = −1), ``f_up = d_rich / Σ a_e``,
+    ``f_down = d_lean / Σ a_e`` (``d_rich = y_rich − y_nom``, ``d_lean = y_nom − y_lean``,
+    both exact, from the expansion).  1 (the plain linearisation) where a corner is
+    undefined or the sensitivities do not point one way (:data:`ANCHOR_MIN_SHARE`);
+    capped at ±:data:`ANCHOR_MAX_FACTOR`."""
+    tot = a_rows.sum(axis=1)
+    mag = np.abs(a_rows).sum(axis=1)
+    one_way = (np.abs(tot) >= ANCHOR_MIN_SHARE * mag) & (mag > 0)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        up = np.where(one_way, d_rich / np.where(one_way, tot, 1.0), np.nan)
+        dn = np.where(one_way, d_lean / np.where(one_way, tot, 1.0), np.nan)
+    up = np.where(np.isfinite(up), np.clip(up, -ANCHOR_MAX_FACTOR, ANCHOR_MAX_FACTOR), 1.0)
+    dn = np.where(np.isfinite(dn), np.clip(dn, -ANCHOR_MAX_FACTOR, ANCHOR_MAX_FACTOR), 1.0)
+    # the rich corner sits at s = Σ a_e: on the side s >= 0 when Σ a_e > 0, else on s < 0
+    rich_up = tot >= 0.0
+    return np.where(rich_up, up, dn), np.where(rich_up, dn, up)
 
 
 def _band_quantiles(frame: pd.DataFrame, section_mm: float) -> dict:
@@ -377,6 +430,7 @@ def sample(nominal: pd.DataFrame, section_mm: float, diameter_mm, thickness_mm,
             continue
         base = nominal[p].to_numpy(float)[:, None]
         a_p = eff["a"][p]
+        f_up, f_dn = anchor_factors(a_p[rows], eff["d_lean"][p][rows], eff["d_rich"][p][rows])
         if p in BANDED:
             lo, hi = q[p]
             mu, sig = 0.5 * (lo + hi), (hi - lo) / (2.0 * Z95)
@@ -394,8 +448,9 @@ def sample(nominal: pd.DataFrame, section_mm: float, diameter_mm, thickness_mm,
         # several fresh (m, D) float64 arrays per property (same operations, row by row)
         for r0 in range(0, m, SAMPLE_BLOCK_ROWS):
             r1 = min(m, r0 + SAMPLE_BLOCK_ROWS)
-            y = a_p[rows[r0:r1]] @ zt
-            y += base[r0:r1]                               # base + a·z  (m, D)
+            lin = a_p[rows[r0:r1]] @ zt                    # s = Σ a_e z_e  (rows, D)
+            y = lin * np.where(lin >= 0.0, f_up[r0:r1, None], f_dn[r0:r1, None])
+            y += base[r0:r1]                               # y_nom + f(s) · s
             if p in BANDED:
                 if BANDED[p] == "relative":
                     y *= err[inv[r0:r1]]
