@@ -182,6 +182,16 @@ def _prepare_table(diameter_mm, thickness_mm, length_mm, prices: tuple) -> pd.Da
 _SAMPLES: dict = {}
 
 
+def _evict(store: dict, most: int) -> None:
+    """Drop the oldest entries of a small per-process memo above ``most`` (tolerant of
+    another thread of the batch run doing the same at once)."""
+    while len(store) >= most:
+        try:
+            store.pop(next(iter(store)), None)
+        except (RuntimeError, StopIteration):
+            break
+
+
 def samples(prepared: pd.DataFrame, columns=None) -> dict:
     """Monte Carlo draws (:func:`selector.states.scatter.sample`) of the nominal block
     of ``prepared``, row-aligned with it: ``{column: (m, N_DRAWS) array}`` for
@@ -192,8 +202,7 @@ def samples(prepared: pd.DataFrame, columns=None) -> dict:
     hit = _SAMPLES.get(key)
     if hit is None or hit[0] is not prepared:
         hit = (prepared, {})
-        if len(_SAMPLES) >= 8:
-            _SAMPLES.pop(next(iter(_SAMPLES)))
+        _evict(_SAMPLES, 8)
         _SAMPLES[key] = hit
     store = hit[1]
     missing = [c for c in cols if c not in store]
@@ -272,8 +281,7 @@ def _avoid_masks(prepared: pd.DataFrame, allowed, ctx: dict) -> dict:
     masks = cautions_mod.avoid_masks(_caution_view(prepared), allowed, **ctx)
     for v in masks.values():
         v.setflags(write=False)
-    if len(_AVOID) >= 32:
-        _AVOID.pop(next(iter(_AVOID)))
+    _evict(_AVOID, 32)
     _AVOID[key] = (prepared, masks)
     return masks
 
