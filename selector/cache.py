@@ -329,12 +329,15 @@ def arrays_to_frame(arrays: dict):
             raise ValueError(f"column {c} has {len(a)} rows, expected {n}")
         if dt.startswith("text:"):
             uniq = np.asarray(arrays[f"u{i}"]).astype(object)
-            vals = np.empty(n, dtype=object)
-            ok = a >= 0
-            vals[ok] = uniq[a[ok]]
-            vals[~ok] = np.nan
             kind = dt[5:]
-            data[c] = pd.Series(vals, dtype=object if kind == "object" else kind)
+            if kind == "object":
+                vals = np.empty(n, dtype=object)
+                ok = a >= 0
+                vals[ok] = uniq[a[ok]]
+                vals[~ok] = np.nan
+                data[c] = pd.Series(vals, dtype=object)
+            else:       # the distinct texts converted once, then taken by code (-1: missing)
+                data[c] = pd.Series(pd.array(uniq, dtype=kind).take(np.asarray(a, np.int64), allow_fill=True))
         else:
             data[c] = pd.Series(np.asarray(a, dtype=np.dtype(dt)), copy=False)
     df = pd.DataFrame(data, columns=cols)
@@ -400,3 +403,40 @@ def _unflatten(data: dict) -> dict:
     if len(names) != len(data) - 1:
         raise ValueError("frame file: names and arrays differ in number")
     return {n: data[f"arr_{i + 1}"] for i, n in enumerate(names)}
+
+
+def disk_arrays(func):
+    """Decorator for a pure builder of a dict of named ndarrays (numeric, bool or text)
+    that depends on its arguments, the package code and the data files only (the
+    composition sensitivities of one section, :func:`selector.states.scatter.effects`).
+    Keyed and written like :func:`disk_frame` (a hash of every source and data file);
+    no in-memory copy is kept (the caller keeps its own); at most
+    :data:`MAX_FRAME_FILES` files are kept.  ``wrapper.build`` builds from scratch."""
+
+    @functools.wraps(func)
+    def wrapper(*args, **kwargs):
+        if not disk_enabled():
+            return wrapper.build(*args, **kwargs)
+        key = frame_key(func, args, kwargs)
+        path = cache_dir() / f"{func.__module__}.{func.__qualname__}-{key[:32]}.npz"
+        loaded = _load(path, key)
+        if loaded is not None:
+            try:
+                return _unflatten(loaded[0])
+            except (KeyError, ValueError, TypeError):
+                pass
+        arrays = wrapper.build(*args, **kwargs)
+        if not isinstance(arrays, dict) or not all(isinstance(v, np.ndarray) and v.dtype != object
+                                                   for v in arrays.values()):
+            raise TypeError("disk_arrays builders return a dict of numeric or text ndarrays")
+        flat = {f"arr_{i}": v for i, v in enumerate(_flatten(arrays))}
+        if _save(path, key, flat, True):
+            try:
+                os.utime(path)
+            except OSError:
+                pass
+            _prune(path.parent, f"{func.__module__}.{func.__qualname__}-*.npz", MAX_FRAME_FILES)
+        return arrays
+
+    wrapper.build = func
+    return wrapper

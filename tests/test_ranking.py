@@ -106,13 +106,16 @@ def test_p_meet_is_monotonic_in_the_targets(loose, tight):
 
 @pytest.mark.parametrize("targets", [{"min_yield_mpa": 700}, {"min_uts_mpa": 900}, {"min_hardness_hrc": 30},
                                      {"min_elongation_pct": 15}])
-@pytest.mark.xfail(strict=False, reason="issue 12, open: since the catalogue grew, the linearised composition "
-                   "scatter breaks the order for a few variants at 60 mm (36CrNiMo4 Q&T at 200-410 C, "
-                   "9255 normalize): sensitivities from one element-at-maximum state miss a hardenability threshold")
 def test_corners_all_meet_scores_at_least_a_lean_corner_failure(targets):
     """Within a variant (one grade and route, the main parameter varying), a state that
     meets the target at every composition corner has p_meet at least that of a state
-    whose lean corner fails."""
+    whose lean corner fails, to within one draw of the N_DRAWS: where the two
+    probabilities are equal within the stated Monte Carlo error, the model band's error
+    score (shared by both states) can tip a single draw either way (9255 normalize at
+    60 mm, yield 700: 0.730 against 0.735).  The composition scatter alone orders them:
+    the draws are anchored on the exact lean and rich corners (states/scatter.py); with
+    the earlier one-sided linearisation the gaps were 2 to 18 draws."""
+    from selector.states.scatter import N_DRAWS
     p = prepare(60)
     m = len(p) // 3
     ok = np.asarray(meets(p, targets), bool).reshape(3, m)     # blocks: nominal, lean, rich
@@ -124,7 +127,7 @@ def test_corners_all_meet_scores_at_least_a_lean_corner_failure(targets):
         s = v == code
         if (s & lean_fails).any():
             pairs += 1
-            assert pm[s & allc].min() >= pm[s & lean_fails].max(), code
+            assert pm[s & allc].min() >= pm[s & lean_fails].max() - 1.0 / N_DRAWS - 1e-12, code
     assert pairs >= 10
 
 

@@ -89,15 +89,43 @@ def test_linearisation_against_the_exact_rich_corner(nominal):
         assert np.median(rel) < 0.25, prop
 
 
+def test_anchored_draws_reproduce_the_exact_corners(nominal):
+    """With every element at its maximum (z = +1) the anchored draw equals the rich corner
+    computed exactly by the expansion, and at every minimum (z = -1) the lean corner,
+    wherever the anchoring applies (sensitivities pointing one way, factor under its cap)."""
+    st = expand(D)
+    eff = scatter.effects(D, None)
+    rows = eff["index"].get_indexer(nominal["state_key"])
+    for prop in ("yield_mpa", "uts_mpa", "elongation_pct"):
+        a = eff["a"][prop][rows]
+        f_pos, f_neg = scatter.anchor_factors(a, eff["d_lean"][prop][rows], eff["d_rich"][prop][rows])
+        y0 = nominal[prop].to_numpy(float)
+        tot, mag = a.sum(axis=1), np.abs(a).sum(axis=1)
+        for corner, s in (("rich", tot), ("lean", -tot)):
+            exact = st[st["corner"] == corner].set_index("state_key").loc[nominal["state_key"], prop]
+            exact = exact.to_numpy(float)
+            y = y0 + s * np.where(s >= 0, f_pos, f_neg)
+            f = np.where(s >= 0, f_pos, f_neg)
+            ok = (np.abs(tot) >= 0.5 * mag) & (mag > 0) & np.isfinite(exact) & np.isfinite(y0) \
+                & (np.abs(f) < scatter.ANCHOR_MAX_FACTOR)
+            assert ok.sum() > 1000, (prop, corner)
+            assert np.allclose(y[ok], exact[ok], rtol=1e-9, atol=1e-6), (prop, corner)
+
+
 def test_spread_covers_the_model_band(nominal):
-    """The drawn values hold at least the model's own 90 % band (composition adds to it)."""
+    """The drawn values hold at least the model's own 90 % band (composition adds to it):
+    the 5-95 % spread of the draws is at least the band's width, and the draws reach the
+    band's upper edge.  The lower edge is not required: where the rich corner crosses a
+    hardenability threshold and the lean corner barely moves (plain carbon steels at
+    30 mm: rich +600 MPa, lean -83 MPa), the heats of the specification are mostly
+    stronger than the nominal, and the anchored draws (states/scatter.py) say so."""
     sub = nominal[nominal["route"] == "quench_temper"].iloc[::10].head(100)
     s = scatter.sample(sub, D, D, None, n_draws=4000, seed=5)["yield_mpa"].astype(float)
     q05, q95 = np.percentile(s, 5, axis=1), np.percentile(s, 95, axis=1)
     lo, hi = sub["yield_mpa_lo"].to_numpy(float), sub["yield_mpa_hi"].to_numpy(float)
     ok = np.isfinite(lo) & np.isfinite(hi)
     assert ok.sum() > 40
-    assert np.all(q05[ok] <= lo[ok] * 1.03)
+    assert np.all(q95[ok] - q05[ok] >= 0.97 * (hi[ok] - lo[ok]))
     assert np.all(q95[ok] >= hi[ok] * 0.97)
 
 

@@ -92,12 +92,35 @@ def finish(res: dict, batch: Batch, route: str = bands.ANY) -> dict:
         res[key + "_hrc"] = sc["hrc"]
         res[key + "_hb"] = sc["hb"]
     section = np.where(np.isfinite(batch.diameter_mm), batch.diameter_mm, batch.thickness_mm)
-    res.update(bands.band_columns(res, fam, route, section))
+    res.update(_band_columns(res, batch, route, section))
     for edge in ("lo", "hi"):
         if f"hardness_hv_{edge}" in res:
             sc = scale_hardness(res[f"hardness_hv_{edge}"], fam)
             res[f"hardness_hrc_{edge}"], res[f"hardness_hb_{edge}"] = sc["hrc"], sc["hb"]
     return res
+
+
+def _band_columns(res: dict, batch: Batch, route: str, section) -> dict:
+    """:func:`bands.band_columns` of ``res``, with the band table looked up once per distinct
+    (grade family, section) of the batch and spread to its states: the same values (the
+    lookup is per family and section band), without sorting a per-state object array of
+    family names four times (a third of the expansion's time at 24 000 Q&T states)."""
+    gfam = np.array([g.family for g in batch.grades], dtype=object)
+    ufam, finv = np.unique(gfam, return_inverse=True)
+    usec, sinv = np.unique(np.asarray(section, float), return_inverse=True)
+    code = finv.reshape(-1)[batch.gidx] * len(usec) + sinv.reshape(-1)
+    ucode, inv = np.unique(code, return_inverse=True)
+    inv = inv.reshape(-1)
+    fam_u, sec_u = ufam[ucode // len(usec)], usec[ucode % len(usec)]
+    free = np.asarray(res.get(bands.BAND_FREE, 0.0), float) > 0.5
+    out = {}
+    for prop in bands.PROPERTIES:
+        if prop not in res:
+            continue
+        q_lo, q_hi, mode = bands.quantiles(fam_u, route, sec_u, prop)
+        q_lo, q_hi = np.where(free, 0.0, q_lo[inv]), np.where(free, 0.0, q_hi[inv])
+        out[prop + "_lo"], out[prop + "_hi"] = bands.apply(res[prop], q_lo, q_hi, mode)
+    return out
 
 
 #: alias of :func:`finish` (``evaluate`` has an argument of that name: the surface finish)

@@ -180,24 +180,39 @@ def _prepare_table(diameter_mm, thickness_mm, length_mm, prices: tuple) -> pd.Da
     return out
 
 
-@functools.lru_cache(maxsize=32)
-def _samples_cached(diameter_mm, thickness_mm, keys: tuple, column: str) -> np.ndarray:
-    st = expand(diameter_mm, thickness_mm)
-    nom = st[st["corner"] == "nominal"].set_index("state_key", drop=False).loc[list(keys)]
-    section = diameter_mm if thickness_mm is None else thickness_mm
-    return scatter.sample(nom, float(section), diameter_mm, thickness_mm, columns=[column])[column]
+_SAMPLES: dict = {}
+
+
+def _evict(store: dict, most: int) -> None:
+    """Drop the oldest entries of a small per-process memo above ``most`` (tolerant of
+    another thread of the batch run doing the same at once)."""
+    while len(store) >= most:
+        try:
+            store.pop(next(iter(store)), None)
+        except (RuntimeError, StopIteration):
+            break
 
 
 def samples(prepared: pd.DataFrame, columns=None) -> dict:
     """Monte Carlo draws (:func:`selector.states.scatter.sample`) of the nominal block
     of ``prepared``, row-aligned with it: ``{column: (m, N_DRAWS) array}`` for
-    ``columns`` (default every drawable column), each drawn on first use and cached
-    per section and state order."""
-    sec = prepared.attrs.get("section") or {}
-    m = len(prepared) // 3
-    keys = tuple(prepared["state_key"].to_numpy()[:m].tolist())
+    ``columns`` (default every drawable column), each drawn on first use and kept with
+    the prepared table (a few recent ones), so that a re-rank only re-thresholds them."""
     cols = list(scatter.DRAWABLE) if columns is None else list(columns)
-    return {c: _samples_cached(sec.get("diameter_mm"), sec.get("thickness_mm"), keys, c) for c in cols}
+    key = id(prepared)
+    hit = _SAMPLES.get(key)
+    if hit is None or hit[0] is not prepared:
+        hit = (prepared, {})
+        _evict(_SAMPLES, 8)
+        _SAMPLES[key] = hit
+    store = hit[1]
+    missing = [c for c in cols if c not in store]
+    if missing:
+        sec = prepared.attrs.get("section") or {}
+        d, t = sec.get("diameter_mm"), sec.get("thickness_mm")
+        section = d if t is None else t
+        store.update(scatter.sample(prepared.iloc[:len(prepared) // 3], float(section), d, t, columns=missing))
+    return {c: store[c] for c in cols}
 
 
 def p_meet(prepared: pd.DataFrame, targets: dict | None) -> np.ndarray:
@@ -247,6 +262,29 @@ def _caution_view(prepared: pd.DataFrame):
         _VIEWS.pop(next(iter(_VIEWS)))
     _VIEWS[key] = (prepared, view)
     return view
+
+
+_AVOID: dict = {}
+
+
+def _avoid_masks(prepared: pd.DataFrame, allowed, ctx: dict) -> dict:
+    """:func:`selector.rules.cautions.avoid_masks` of the nominal block of ``prepared``,
+    kept per prepared table, allowed rules and context (the masks depend on the targets
+    only through ``ctx["strength_target"]``): a re-rank for new targets reuses them."""
+    try:
+        key = (id(prepared), tuple(sorted(allowed)), tuple(sorted(ctx.items())))
+        hash(key)
+    except TypeError:             # an unhashable context value: computed every time
+        return cautions_mod.avoid_masks(_caution_view(prepared), allowed, **ctx)
+    hit = _AVOID.get(key)
+    if hit is not None and hit[0] is prepared:
+        return hit[1]
+    masks = cautions_mod.avoid_masks(_caution_view(prepared), allowed, **ctx)
+    for v in masks.values():
+        v.setflags(write=False)
+    _evict(_AVOID, 32)
+    _AVOID[key] = (prepared, masks)
+    return masks
 
 
 def _check_min_p(min_p_meet) -> float:
@@ -327,7 +365,7 @@ def rank(prepared: pd.DataFrame, targets: dict | None = None, objectives=DEFAULT
     # a candidate state meets every target at its estimate; p_meet grades how surely
     likely = (p >= min_p - 1e-12) & nominal
     nom = prepared.iloc[:m]
-    am = cautions_mod.avoid_masks(_caution_view(prepared), allowed, **ctx)
+    am = _avoid_masks(prepared, allowed, ctx)
     clean = ~np.any(list(am.values()), axis=0) if am else np.ones(m, bool)
     vcode = nom["variant_code"].to_numpy()
     main = nom["main_value"].to_numpy(float)
@@ -433,6 +471,27 @@ def _window_text(row) -> str:
     return txt
 
 
+_ROUTES: dict = {}
+
+
+def _route_of(fam, params: tuple) -> tuple:
+    """(steps, route text) of a route family at ``params`` ((name, value) pairs), kept
+    (a re-rank lists mostly the same candidates again)."""
+    key = (fam.name, params)
+    try:
+        hit = _ROUTES.get(key)
+    except TypeError:
+        hit, key = None, None
+    if hit is None:
+        steps = fam.to_steps(dict(params))
+        hit = (steps, describe(steps))
+        if key is not None:
+            if len(_ROUTES) >= 20_000:
+                _ROUTES.clear()
+            _ROUTES[key] = hit
+    return hit
+
+
 def _finish(cand: pd.DataFrame, t: dict, objectives, service: dict | None = None, allowed=()) -> pd.DataFrame:
     cand = cand.reset_index(drop=True)
     lists = cautions_mod.cautions_for(cand, **(service or {}))
@@ -450,9 +509,9 @@ def _finish(cand: pd.DataFrame, t: dict, objectives, service: dict | None = None
     # rows as dicts of Python values (Series.tolist boxes like to_dict("records"), at a fraction of its cost)
     for r in (dict(zip(cols, vals)) for vals in zip(*[cand[c].tolist() for c in cols])):
         fam = fam_registry.get(r["route"])
-        steps = fam.to_steps({p: r[p] for p in fam.parameters if p in r})
-        routes.append(steps)
-        texts.append(describe(steps))
+        steps, text = _route_of(fam, tuple((p, r[p]) for p in fam.parameters if p in r))
+        routes.append([dict(st) for st in steps])        # the caller's own copy of the steps
+        texts.append(text)
         wparam.append(fam.main_parameter or "")
         wtext.append(_window_text(r))
     cand["route_family"] = cand["route"]

@@ -19,6 +19,15 @@ The property of a drawn heat is linearised about the nominal composition::
 
     y(z) = y_nom + Σ_e a_e · z_e,      a_e = y(e at its maximum, others nominal) − y_nom
 
+and then anchored on the exact corners of the expansion: the linear predictor
+``s = Σ_e a_e z_e`` is scaled on each side of 0 so that every element at its maximum gives
+the rich corner and every element at its minimum the lean corner exactly
+(:func:`anchor_factors`; issue 12: one-sided sensitivities summed past a hardenability
+threshold, e.g. 36CrNiMo4 at 60 mm, where each element alone lifts the centre past 50 %
+martensite)::
+
+    y(z) = y_nom + f · s,   f = (y_rich − y_nom) / Σ a_e  (rich side),  (y_nom − y_lean) / Σ a_e  (lean side)
+
 The sensitivities ``a_e`` come from one extra vectorised ``compute`` per route family
 over the nominal states with one element moved to its maximum (one block per
 element: the same family ``compute`` the expansion uses, so they follow any model
@@ -72,8 +81,9 @@ import functools
 
 import numpy as np
 import pandas as pd
-from scipy import stats
+from scipy import special
 
+from ..cache import disk_arrays, disk_table
 from ..catalogue.grades import default_catalogue
 from ..models import conversions
 from ..routes import bands
@@ -89,7 +99,7 @@ SEED = 20261203
 #: σ of the composition draw in units of the half-range (limits at ±2σ)
 SIGMA_HALF_RANGES = 0.5
 #: the 95 % point of the standard normal (a 90 % two-sided band spans ±1.645 σ)
-Z95 = float(stats.norm.ppf(0.95))
+Z95 = float(special.ndtri(0.95))
 #: correlation of the elongation error score with the strength error score (chosen: a
 #: heat stronger than estimated is usually less ductile; common practice)
 ELONGATION_STRENGTH_RHO = -0.5
@@ -114,14 +124,24 @@ def draws(elements, n_draws: int = N_DRAWS, seed: int = SEED) -> dict:
     positions (truncated normal, σ = :data:`SIGMA_HALF_RANGES`, on [−1, 1]),
     ``eps_s`` and ``eps_e`` (n_draws,) standard normal error scores of strength and
     elongation (correlation :data:`ELONGATION_STRENGTH_RHO`)."""
+    z, e1, e2 = _draw_table(tuple(elements), int(n_draws), int(seed))
+    rho = ELONGATION_STRENGTH_RHO
+    return {"z": np.atleast_2d(z).reshape(n_draws, len(elements)), "eps_s": e1,
+            "eps_e": rho * e1 + np.sqrt(1.0 - rho * rho) * e2}
+
+
+@disk_table      # constants of the seed: drawn once per machine (scipy.stats costs ~0.5 s to import)
+def _draw_table(elements: tuple, n_draws: int, seed: int) -> tuple:
+    """(z, e1, e2): the truncated-normal element positions and two standard normal score
+    vectors of :func:`draws`, from one generator seeded with ``seed``."""
+    from scipy import stats      # lazy: only when the table is built, not in every process
+
     rng = np.random.default_rng(seed)
     b = 1.0 / SIGMA_HALF_RANGES
     z = stats.truncnorm.rvs(-b, b, scale=SIGMA_HALF_RANGES, size=(n_draws, len(elements)), random_state=rng)
     e1 = rng.standard_normal(n_draws)
     e2 = rng.standard_normal(n_draws)
-    rho = ELONGATION_STRENGTH_RHO
-    return {"z": np.atleast_2d(z).reshape(n_draws, len(elements)), "eps_s": e1,
-            "eps_e": rho * e1 + np.sqrt(1.0 - rho * rho) * e2}
+    return np.asarray(z, float), np.asarray(e1, float), np.asarray(e2, float)
 
 
 def _half_ranges(batch: Batch, element: str) -> np.ndarray:
@@ -148,11 +168,14 @@ def _thinned(batch: Batch, main: str | None) -> tuple[np.ndarray, np.ndarray, np
     if not main or main not in batch.params or THIN <= 1:
         return idx, idx, idx, np.ones(n)
     mv = np.asarray(batch.params[main], float)
-    cols = {"g": batch.gidx}
+    # group: the grade and every other parameter (codes of their distinct values, as text)
+    cols = [np.asarray(batch.gidx, float)]
     for k, v in batch.params.items():
         if k != main:
-            cols[k] = np.asarray(v).astype(str)
-    group = pd.DataFrame(cols).groupby(list(cols), sort=False).ngroup().to_numpy()
+            cols.append(np.unique(np.asarray(v).astype(str), return_inverse=True)[1].reshape(-1).astype(float))
+    table = np.ascontiguousarray(np.column_stack(cols))
+    group = np.unique(table.view(np.dtype((np.void, table.dtype.itemsize * table.shape[1]))).ravel(),
+                      return_inverse=True)[1].reshape(-1)
     order = np.lexsort((mv, group))
     g_s, m_s = group[order], mv[order]
     first = np.r_[True, g_s[1:] != g_s[:-1]]
@@ -205,15 +228,52 @@ def _family_effects(fam, d, t, nominal: dict):
                  batch.diameter_mm[idx], batch.thickness_mm[idx])
     res = fam.compute(pert)       # the sampled properties come from compute itself (no band, no HRC)
     out = {}
+    at = nominal["index"].get_indexer(keys[idx])       # rows of the moved states' nominal values
     for p in SAMPLED:
         if p not in res:
             continue
-        base = nominal[p].reindex(keys[idx]).to_numpy(float)
+        base = np.where(at >= 0, nominal[p][at], np.nan)
         delta = np.asarray(res[p], float) - base
         full = np.zeros((n, k))
         full[idx, col] = np.where(np.isfinite(delta), delta, 0.0)
         out[p] = w[:, None] * full[left] + (1.0 - w)[:, None] * full[right]
     return keys, elements, out
+
+
+@disk_arrays     # kept in the user's cache directory, keyed by the arguments and all code and data
+def _effect_blocks(diameter_mm: float | None, thickness_mm: float | None) -> dict:
+    """The sensitivities of :func:`effects` as plain arrays, one block per route family:
+    ``f<i>_keys`` (m_i,) state keys, ``f<i>_elements`` (K_i,), ``f<i>_a_<prop>`` (m_i, K_i)."""
+    states = expand(diameter_mm, thickness_mm)
+    nom = states[states["corner"] == "nominal"]
+    nominal = {p: nom[p].to_numpy(float) for p in SAMPLED}
+    nominal["index"] = pd.Index(nom["state_key"].to_numpy(object))
+    corner = {}
+    for c in ("lean", "rich"):
+        blk = states[states["corner"] == c]
+        corner[c] = ({p: blk[p].to_numpy(float) for p in SAMPLED}, pd.Index(blk["state_key"].to_numpy(object)))
+    out = {}
+    i = 0
+    for fam in fam_registry.available():
+        res = _family_effects(fam, diameter_mm, thickness_mm, nominal)
+        if res is None:
+            continue
+        keys, els, deltas = res
+        out[f"f{i}_keys"] = np.asarray(keys, dtype=str)
+        out[f"f{i}_elements"] = np.asarray(list(els), dtype=str)
+        for p, delta in deltas.items():
+            out[f"f{i}_a_{p}"] = np.ascontiguousarray(delta, dtype=float)
+        # the exact corners of the expansion, as changes from the nominal state (the anchors)
+        at = nominal["index"].get_indexer(keys)
+        for c, sign in (("lean", -1.0), ("rich", 1.0)):
+            vals, index = corner[c]
+            ci = index.get_indexer(keys)
+            for p in SAMPLED:
+                y0 = np.where(at >= 0, nominal[p][at], np.nan)
+                yc = np.where(ci >= 0, vals[p][ci], np.nan)
+                out[f"f{i}_d{c}_{p}"] = sign * (yc - y0)
+        i += 1
+    return out
 
 
 @functools.lru_cache(maxsize=8)
@@ -225,16 +285,19 @@ def effects(diameter_mm: float | None, thickness_mm: float | None) -> dict:
     mid-range to its maximum (0 where the grade does not specify it; 0 where the moved
     state's value is undefined, e.g. off the hardness table, so such a state keeps its
     nominal value).  Computed at every :data:`THIN`-th value of the route's main
-    parameter and interpolated linearly in between.  Cached per section (treat as
+    parameter and interpolated linearly in between.  Cached per section, in memory and
+    in the user's cache directory (:func:`selector.cache.disk_arrays`; treat as
     read-only)."""
-    states = expand(diameter_mm, thickness_mm)
-    nom = states[states["corner"] == "nominal"]
-    nominal = {p: pd.Series(nom[p].to_numpy(float), index=nom["state_key"].to_numpy()) for p in SAMPLED}
+    blocks = _effect_blocks(diameter_mm, thickness_mm)
     parts = []
-    for fam in fam_registry.available():
-        out = _family_effects(fam, diameter_mm, thickness_mm, nominal)
-        if out is not None:
-            parts.append(out)
+    i = 0
+    while f"f{i}_keys" in blocks:
+        els = [str(e) for e in blocks[f"f{i}_elements"]]
+        res = {p: blocks[f"f{i}_a_{p}"] for p in SAMPLED if f"f{i}_a_{p}" in blocks}
+        parts.append((blocks[f"f{i}_keys"].astype(object), els, res))
+        i += 1
+    anchors = {c: {p: np.concatenate([blocks[f"f{j}_d{c}_{p}"] for j in range(i)]) if i else np.zeros(0)
+                   for p in SAMPLED} for c in ("lean", "rich")}
     elements = tuple(sorted({e for _, els, _ in parts for e in els}))
     kpos = {e: i for i, e in enumerate(elements)}
     keys = np.concatenate([k for k, _, _ in parts])
@@ -245,26 +308,63 @@ def effects(diameter_mm: float | None, thickness_mm: float | None) -> dict:
         for p, delta in res.items():
             a[p][start:start + len(k), cols] = delta
         start += len(k)
-    return {"state_key": keys, "index": pd.Index(keys), "elements": elements, "a": a}
+    return {"state_key": keys, "index": pd.Index(keys), "elements": elements, "a": a,
+            "d_lean": anchors["lean"], "d_rich": anchors["rich"]}
+
+
+#: the corner anchoring is used where the linear predictor points one way:
+#: |Σ a_e| >= ANCHOR_MIN_SHARE · Σ |a_e| (else the plain linearisation)
+ANCHOR_MIN_SHARE = 0.5
+#: largest factor applied to the linear predictor by the anchoring (a safety cap)
+ANCHOR_MAX_FACTOR = 10.0
+
+
+def anchor_factors(a_rows: np.ndarray, d_lean: np.ndarray, d_rich: np.ndarray) -> tuple:
+    """(f_pos, f_neg) per state: the factors on the linear predictor ``s = Σ a_e z_e`` where
+    s >= 0 and where s < 0 that make the drawn property exact at the rich corner (every z_e = +1:
+    ``s = Σ a_e``) and at the lean corner (every z_e = −1), ``f_up = d_rich / Σ a_e``,
+    ``f_down = d_lean / Σ a_e`` (``d_rich = y_rich − y_nom``, ``d_lean = y_nom − y_lean``,
+    both exact, from the expansion).  1 (the plain linearisation) where a corner is
+    undefined or the sensitivities do not point one way (:data:`ANCHOR_MIN_SHARE`);
+    capped at ±:data:`ANCHOR_MAX_FACTOR`."""
+    tot = a_rows.sum(axis=1)
+    mag = np.abs(a_rows).sum(axis=1)
+    one_way = (np.abs(tot) >= ANCHOR_MIN_SHARE * mag) & (mag > 0)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        up = np.where(one_way, d_rich / np.where(one_way, tot, 1.0), np.nan)
+        dn = np.where(one_way, d_lean / np.where(one_way, tot, 1.0), np.nan)
+    up = np.where(np.isfinite(up), np.clip(up, -ANCHOR_MAX_FACTOR, ANCHOR_MAX_FACTOR), 1.0)
+    dn = np.where(np.isfinite(dn), np.clip(dn, -ANCHOR_MAX_FACTOR, ANCHOR_MAX_FACTOR), 1.0)
+    # the rich corner sits at s = Σ a_e: on the side s >= 0 when Σ a_e > 0, else on s < 0
+    rich_up = tot >= 0.0
+    return np.where(rich_up, up, dn), np.where(rich_up, dn, up)
 
 
 def _band_quantiles(frame: pd.DataFrame, section_mm: float) -> dict:
     """(q05, q95) per row and banded property (0, 0 where the band table has none)."""
     out = {}
-    fams = frame["family"].to_numpy(object)
-    routes = frame["route"].to_numpy(object)
+    # the band table is looked up once per distinct (family, route) and spread to the rows
+    fcode, fams = pd.factorize(frame["family"].to_numpy(object))
+    rcode, routes = pd.factorize(frame["route"].to_numpy(object))
+    combo, inv = np.unique(rcode * len(fams) + fcode, return_inverse=True)
+    inv = inv.reshape(-1)
     for prop in BANDED:
-        lo, hi = np.zeros(len(frame)), np.zeros(len(frame))
-        for r in pd.unique(routes):
-            m = routes == r
-            ql, qh, _ = bands.quantiles(fams[m], r, np.full(int(m.sum()), section_mm), prop)
-            lo[m], hi[m] = ql, qh
+        lo_u, hi_u = np.zeros(len(combo)), np.zeros(len(combo))
+        for ri in np.unique(combo // len(fams)):
+            m = combo // len(fams) == ri
+            ql, qh, _ = bands.quantiles(np.asarray(fams, object)[combo[m] % len(fams)], routes[ri],
+                                        np.full(int(m.sum()), section_mm), prop)
+            lo_u[m], hi_u[m] = ql, qh
+        lo, hi = lo_u[inv], hi_u[inv]
         ok = np.isfinite(lo) & np.isfinite(hi)
         if bands.BAND_FREE in frame:      # a standard's guaranteed minimum: no model error
             ok &= ~(frame[bands.BAND_FREE].to_numpy(float) > 0.5)
         out[prop] = (np.where(ok, lo, 0.0), np.where(ok, hi, 0.0))
     return out
 
+
+#: rows of states drawn at once in :func:`sample` (bounds its (rows, N_DRAWS) intermediates)
+SAMPLE_BLOCK_ROWS = 2048
 
 #: columns :func:`sample` can draw, and the drawn property each needs
 DRAWABLE = {**{p: p for p in SAMPLED}, "hardness_hrc": "hardness_hv", "surface_hardness_hrc": "surface_hardness_hv"}
@@ -324,22 +424,44 @@ def sample(nominal: pd.DataFrame, section_mm: float, diameter_mm, thickness_mm,
     want = list(DRAWABLE) if columns is None else [c for c in columns if c in DRAWABLE]
     need = {DRAWABLE[c] for c in want}
     out = {}
+    m, d = len(nominal), int(n_draws)
     for p in SAMPLED:
         if p not in need:
             continue
         base = nominal[p].to_numpy(float)[:, None]
-        y = base + eff["a"][p][rows] @ zt                  # (m, D)
+        a_p = eff["a"][p]
+        f_up, f_dn = anchor_factors(a_p[rows], eff["d_lean"][p][rows], eff["d_rich"][p][rows])
         if p in BANDED:
             lo, hi = q[p]
             mu, sig = 0.5 * (lo + hi), (hi - lo) / (2.0 * Z95)
             eps = dr["eps_e"] if p == "elongation_pct" else dr["eps_s"]
+            # the band error per draw takes one row per distinct (mu, sig): a few dozen rows,
+            # computed once and gathered (the same numbers as per state, at a fraction of the cost)
+            ms, inv = np.unique(np.column_stack([mu, sig]), axis=0, return_inverse=True)
+            inv = inv.reshape(-1)
             if BANDED[p] == "relative":
-                y = y * np.exp(mu[:, None] + sig[:, None] * eps[None, :])
+                err = np.exp(ms[:, :1] + ms[:, 1:] * eps[None, :])
             else:
-                y = np.maximum(y + mu[:, None] + sig[:, None] * eps[None, :], 0.0)
-        elif p == "case_depth_mm":
-            y = np.maximum(y, 0.0)
-        out[p] = y.astype(dtype)
+                err = ms[:, 1:] * eps[None, :]
+        res = np.empty((m, d), dtype)
+        # in blocks of rows: the (rows, D) intermediates stay small and are reused, instead of
+        # several fresh (m, D) float64 arrays per property (same operations, row by row)
+        for r0 in range(0, m, SAMPLE_BLOCK_ROWS):
+            r1 = min(m, r0 + SAMPLE_BLOCK_ROWS)
+            lin = a_p[rows[r0:r1]] @ zt                    # s = Σ a_e z_e  (rows, D)
+            y = lin * np.where(lin >= 0.0, f_up[r0:r1, None], f_dn[r0:r1, None])
+            y += base[r0:r1]                               # y_nom + f(s) · s
+            if p in BANDED:
+                if BANDED[p] == "relative":
+                    y *= err[inv[r0:r1]]
+                else:
+                    y += ms[inv[r0:r1], :1]
+                    y += err[inv[r0:r1]]
+                    np.maximum(y, 0.0, out=y)
+            elif p == "case_depth_mm":
+                np.maximum(y, 0.0, out=y)
+            res[r0:r1] = y
+        out[p] = res
     steel = np.isin(nominal["family"].to_numpy(object).astype(str), STEEL_SCALE_FAMILIES)[:, None]
     for key in ("hardness", "surface_hardness"):
         if key + "_hrc" not in want:

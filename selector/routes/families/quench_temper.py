@@ -35,7 +35,45 @@ CORRELATION_CLASS = {"carbon_steel": "carbon_steel", "alloy_steel": "alloy_steel
 
 
 def correlation_class(families: np.ndarray) -> np.ndarray:
-    return np.array([CORRELATION_CLASS.get(f, "alloy_steel") for f in families], dtype=object)
+    fam = np.asarray(families, dtype=object).astype(str)
+    uniq, inv = np.unique(fam, return_inverse=True)      # looked up once per distinct family
+    return np.array([CORRELATION_CLASS.get(f, "alloy_steel") for f in uniq.tolist()], dtype=object)[inv.reshape(-1)]
+
+
+#: per-state outputs of quench_response.as_quenched_profile that are not per state
+_PROFILE_SHARED = ("positions", "warnings")
+
+
+def _as_quenched_distinct(batch: Batch, quench, agitation, austenitize_c) -> dict:
+    """:func:`quench_response.as_quenched_profile` of the batch, evaluated once per distinct
+    (composition, medium, agitation, austenitizing temperature, section) and taken back per
+    state: the states of a grade differ by their temper only, so the catalogue's ~24 000
+    Q&T states share a few hundred quenches (the chain is row-wise: the same numbers).  The
+    batch-level ``warnings`` are only used for a batch of one, which is never reduced."""
+    n = batch.n
+    dia = None if np.all(np.isnan(batch.diameter_mm)) else batch.diameter_mm
+    thk = None if dia is not None else batch.thickness_mm
+    if n <= 1:
+        return quench_response.as_quenched_profile(batch.comp, quench, agitation, diameter_mm=dia,
+                                                   thickness_mm=thk, austenitize_c=austenitize_c)
+    q = np.broadcast_to(np.asarray(quench, dtype=object), (n,))
+    a = np.broadcast_to(np.asarray(agitation, dtype=object), (n,))
+    cols = [np.broadcast_to(np.asarray(v, float), (n,)) for _, v in sorted(batch.comp.items())]
+    cols += [np.unique(q.astype(str), return_inverse=True)[1].reshape(-1).astype(float),
+             np.unique(a.astype(str), return_inverse=True)[1].reshape(-1).astype(float),
+             np.broadcast_to(np.asarray(np.nan if austenitize_c is None else austenitize_c, float), (n,)),
+             np.asarray(batch.diameter_mm, float), np.asarray(batch.thickness_mm, float)]
+    table = np.ascontiguousarray(np.column_stack(cols))
+    rows = table.view(np.dtype((np.void, table.dtype.itemsize * table.shape[1]))).ravel()
+    _, first, inverse = np.unique(rows, return_index=True, return_inverse=True)
+    inverse = inverse.reshape(-1)
+    sub = {k: np.broadcast_to(np.asarray(v, float), (n,))[first] for k, v in batch.comp.items()}
+    prof = quench_response.as_quenched_profile(
+        sub, q[first], a[first], diameter_mm=None if dia is None else dia[first],
+        thickness_mm=None if thk is None else thk[first],
+        austenitize_c=None if austenitize_c is None else np.broadcast_to(np.asarray(austenitize_c, float),
+                                                                          (n,))[first])
+    return {k: v if k in _PROFILE_SHARED else np.asarray(v)[inverse] for k, v in prof.items()}
 
 
 def through_harden(batch: Batch, quench, agitation, austenitize_c, temper_temp_c, temper_hours) -> dict:
@@ -43,10 +81,7 @@ def through_harden(batch: Batch, quench, agitation, austenitize_c, temper_temp_c
     ``temper_temp_c`` is not NaN, tempered) steel at the batch's sections.  Shared
     by the case-hardening families for the core."""
     comp = batch.comp
-    prof = quench_response.as_quenched_profile(
-        comp, quench, agitation, diameter_mm=None if np.all(np.isnan(batch.diameter_mm)) else batch.diameter_mm,
-        thickness_mm=None if not np.all(np.isnan(batch.diameter_mm)) else batch.thickness_mm,
-        austenitize_c=austenitize_c)
+    prof = _as_quenched_distinct(batch, quench, agitation, austenitize_c)
     pos = np.asarray(prof["positions"], float)
     hv_aq = np.asarray(prof["hardness_hv"], float)
     mart = np.asarray(prof["martensite_pct"], float)
@@ -164,7 +199,7 @@ CORE_INPUTS = HARDENING_INPUTS + TEMPERING_INPUTS + STRENGTH_INPUTS
 
 def _by_class(fn, uts, cls):
     res = np.full(uts.shape, np.nan)
-    for c in np.unique(cls):
+    for c in sorted(set(cls.tolist())):      # the distinct classes (no sort of a per-state object array)
         m = cls == c
         res[m] = fn(uts[m], c)
     return res
@@ -173,7 +208,7 @@ def _by_class(fn, uts, cls):
 def _yield(uts, temper_c, cls):
     res = np.full(uts.shape, np.nan)
     t = np.where(np.isfinite(temper_c), temper_c, 150.0)
-    for c in np.unique(cls):
+    for c in sorted(set(cls.tolist())):
         m = cls == c
         res[m] = correlations.yield_from_uts(uts[m], t[m], c)
     return res
