@@ -29,7 +29,7 @@ def test_mid_composition_is_the_middle_of_the_standard_limits():
 
 def test_unknown_steel_is_an_input_error_naming_the_listed_ones():
     with pytest.raises(InputError, match="steel.*25CrMo4"):
-        steels.mid_composition("42CrMo4 (1.7225)")
+        steels.mid_composition("34CrNiMo6 (1.6582)")
 
 
 def test_every_steel_named_in_qt_steels_is_listed_and_on_its_own_grade():
@@ -37,9 +37,10 @@ def test_every_steel_named_in_qt_steels_is_listed_and_on_its_own_grade():
     assert cases, "qt_steels.csv names no published steel"
     named = {c.steel for c in cases}
     assert named <= set(steels.steels())
-    # the rows the notes describe as EN 25CrMo4 / 41Cr4 entered under 4130 / 5140
+    # the rows the notes describe as EN 25CrMo4 / 41Cr4 / 42CrMo4 entered under 4130 / 5140 / 4140
     assert {c.grade for c in cases if c.steel.startswith("25CrMo4")} == {"4130"}
     assert {c.grade for c in cases if c.steel.startswith("41Cr4")} == {"5140"}
+    assert {c.grade for c in cases if c.steel.startswith("42CrMo4")} == {"4140"}
     for c in cases:
         assert c.heat == steels.mid_composition(c.steel)
         assert any(c.steel in a for a in c.assumptions)
