@@ -43,7 +43,9 @@ REFERENCE_FILE = "data/reference/qt_steels.csv"
 #: fit: (catalogue grade, section_mm, text the row's source contains).  41Cr4 (EN 10083-3),
 #: entered as 5140: the only table of a Cr steel without Mo tempered 200-700 C on a section
 #: the chain fully hardens (10 mm round, oil: 95 % martensite), which the Cr term needs.
-#: Its rows are composition-keyed on the catalogue's 5140 (as the validation recomputes them).
+#: Its rows carry the published steel's own composition (the mid-range of EN 10083-3 41Cr4,
+#: data/reference/steel_compositions.csv, named by the row's ``steel`` column), as the
+#: validation recomputes them; the catalogue's 5140 (Cr 0.70-0.90) would misplace the Cr term.
 EXTRA_TABLES = (("5140", 10.0, "41Cr4"),)
 #: tempering time where a table states none (the validation report's default)
 DEFAULT_HOURS = 2.0
@@ -55,18 +57,23 @@ SOURCE = ("least squares on the fully hardened rows of data/tempering_points.csv
 
 def extra_points(path: Path = ROOT / REFERENCE_FILE) -> pd.DataFrame:
     """The rows of :data:`EXTRA_TABLES` from the reference file, in the columns of
-    :func:`tempering.load_points` (composition: the catalogue grade's nominal; hardness:
+    :func:`tempering.load_points` (composition: the mid-range of the published steel named by
+    the row's ``steel`` column, else the catalogue grade's nominal; hardness:
     the printed HRC by ASTM E140, else the printed HB; time: as printed, else
     :data:`DEFAULT_HOURS`)."""
     from selector.catalogue.grades import grade
+    from selector.validation import steels
 
-    ref = pd.read_csv(path, comment="#", dtype={"grade": str, "quench": str})
+    ref = pd.read_csv(path, comment="#", dtype={"grade": str, "quench": str, "steel": str})
     out = []
     for gid, section, text in EXTRA_TABLES:
-        comp = {k: float(v) for k, v in grade(gid).composition().items()}
+        nominal = {k: float(v) for k, v in grade(gid).composition().items()}
         sel = ref[(ref["grade"] == gid) & (ref["section_mm"] == section)
                   & ref["source"].str.contains(text, regex=False)]
         for r in sel.to_dict("records"):
+            steel = r.get("steel")
+            comp = {**nominal, **steels.mid_composition(steel)} if isinstance(steel, str) and steel.strip() \
+                else nominal
             hrc, hb = r["hardness_hrc"], r["hardness_hb"]
             hv = float(conversions.hrc_to_hv(hrc)) if hrc == hrc else float(conversions.hb_to_hv(hb))
             hours = float(r["temper_hours"]) if r["temper_hours"] == r["temper_hours"] else DEFAULT_HOURS

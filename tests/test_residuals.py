@@ -35,3 +35,20 @@ def test_breakdown_groups_by_temper_and_section():
     assert list(by_t["n"]) == [1, 2]
     assert np.isclose(by_t["bias"].iloc[1], 7.5)
     assert list(out["section_mm"]["n"]) == [2, 1]
+
+
+def test_yield_correlation_rows_use_the_published_tensile_strength():
+    # the chain's tensile error (predicted 900 vs published 1000) must not enter the check
+    comp = pd.DataFrame([{**_row("4140", "uts_mpa", 1000.0, 900.0), "case": "a"},
+                         {**_row("4140", "yield_mpa", 880.0, 700.0), "case": "a"},
+                         {**_row("4340", "uts_mpa", 1100.0, 1100.0), "case": "b"}])  # no yield: left out
+    rows = residuals.headline_rows(comp)
+    yc = residuals.yield_correlation_rows(rows)
+    assert list(yc["case"]) == ["a"]
+    # YS = UTS * (r0 + r1 T/100) with the shipped alloy-steel coefficients (data/fits/correlations_coefficients.csv)
+    from selector.models.correlations import coefficients
+    r0, r1 = coefficients("alloy_steel")["ratio"]
+    expected = 1000.0 * min(max(r0 + r1 * 5.40, 0.50), 0.98)
+    assert np.isclose(yc["yield_corr"].iloc[0], expected)
+    assert np.isclose(yc["err"].iloc[0], 100.0 * (expected - 880.0) / 880.0)
+    assert np.isclose(yc["ratio_pub"].iloc[0], 0.88)

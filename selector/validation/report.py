@@ -48,7 +48,7 @@ from ..errors import NotModelledError, SelectorError, UnknownGradeError
 from ..models.hardenability import jominy_curve_hrc
 from ..routes.evaluate import evaluate
 from ..routes.families.base import RouteFamily
-from . import calibration
+from . import calibration, steels
 from .thresholds import HEADROOM_NOTE, THRESHOLDS
 
 #: defaults used where a reference row leaves a treatment condition blank
@@ -101,7 +101,8 @@ QT_SCHEMA = Schema((Column("grade"), Column("quench", allow_blank=True))
                    + _num("austenitize_c", "section_mm", "temper_temp_c", "temper_hours")
                    + (Column("temper_hours_basis", allow_blank=True),)
                    + _num("uts_mpa", "yield_mpa", "elongation_pct", "reduction_area_pct",
-                          "hardness_hb", "hardness_hrc") + _COMMON)
+                          "hardness_hb", "hardness_hrc") + _COMMON
+                   + (Column("steel", required=False, allow_blank=True),))
 
 TEMPERS_SCHEMA = Schema((Column("grade"), Column("condition"),
                          Column("route", "choice", choices=("anneal", "cold_work", "age")),
@@ -148,6 +149,11 @@ class Case:
     calibration: str = ""
     #: the row's own join keys (published quench, section, tempering temperature)
     keys: dict = field(default_factory=dict)
+    #: the published steel's own composition (wt %) where the source prints another steel than
+    #: the catalogue grade (``steel`` column of qt_steels.csv); None: the grade's nominal
+    heat: dict | None = None
+    #: that steel's designation ("" when the row is the catalogue grade itself)
+    steel: str = ""
 
     @property
     def id(self) -> str:
@@ -209,6 +215,11 @@ def qt_case(rec: dict, file: str = QT_FILE) -> Case:
              "" if gid else "grade not in the catalogue")
     c.keys = {"quench": str(rec.get("quench") or "").strip(), "section_mm": _f(rec.get("section_mm")),
               "temp_c": _f(rec["temper_temp_c"])}
+    steel = str(rec.get("steel") or "").strip()
+    if steel and gid:
+        c.steel, c.heat = steel, steels.mid_composition(steel)
+        c.assumptions.append(f"published steel {steel}: recomputed on its own mid-range composition "
+                             f"({steels.STEELS_FILE}), not on {gid}'s")
     return c
 
 
@@ -384,7 +395,7 @@ def recompute_case(case: Case) -> list[dict]:
     first = None
     for steps in [case.steps] + list(case.alternatives):
         try:
-            res = evaluate(case.grade, steps, diameter_mm=case.diameter_mm)
+            res = evaluate(case.grade, steps, diameter_mm=case.diameter_mm, heat_composition=case.heat)
         except NotModelledError as exc:
             return _rows_for(case, {}, "not modelled", str(exc))
         except SelectorError as exc:
