@@ -37,38 +37,12 @@ LAYERS = (
 )
 
 # ---------------------------------------------------------------------------------------------
-# Views allow-list.  selector/views/ is being rewritten (CLI package selector/views/cli/, one
-# module per verb; page split into inputs, charts, units, cached calls).  Until that lands, the
-# views keep these in-function imports and this circle of CLI modules.  Each entry is
-# (importing module, imported module); the views rewrite empties both tables.  Nothing outside
-# selector/views/ may be added here.
-VIEWS_IN_FUNCTION_ALLOWED = frozenset({
-    ("selector.views.cli", "selector"), ("selector.views.cli", "selector.catalogue"),
-    ("selector.views.cli", "selector.catalogue.heat"), ("selector.views.cli", "selector.inputs"),
-    ("selector.views.cli", "selector.views.cli_batch"), ("selector.views.cli", "selector.views.cli_more"),
-    ("selector.views.cli_batch", "selector"), ("selector.views.cli_batch", "selector.views.cli_more"),
-    ("selector.views.cli_design", "selector"), ("selector.views.cli_design", "selector.design.capacity"),
-    ("selector.views.cli_design", "selector.design.pins"), ("selector.views.cli_design", "selector.design.sweep"),
-    ("selector.views.cli_design", "selector.inputs"), ("selector.views.cli_design", "selector.views.cli"),
-    ("selector.views.cli_design", "selector.views.cli_more"),
-    ("selector.views.cli_more", "selector"), ("selector.views.cli_more", "selector.studies"),
-    ("selector.views.cli_more", "selector.views.cli"), ("selector.views.cli_more", "selector.views.cli_design"),
-    ("selector.views.cli_more", "selector.views.cli_validate"), ("selector.views.cli_more", "selector.views.export"),
-    ("selector.views.cli_validate", "selector.errors"), ("selector.views.cli_validate", "selector.validation.report"),
-    ("selector.views.page", "selector.catalogue.grades"), ("selector.views.page", "selector.catalogue.heat"),
-    ("selector.views.page", "selector.catalogue.supply"), ("selector.views.page", "selector.design.pins"),
-    ("selector.views.page", "selector.design.sweep"), ("selector.views.page", "selector.inputs"),
-    ("selector.views.page", "selector.routes.families.austemper"), ("selector.views.page", "selector.rules.cautions"),
-    ("selector.views.page", "selector.selection.engine"), ("selector.views.page", "selector.selection.targets"),
-    ("selector.views.page", "selector.user_files"), ("selector.views.page", "selector.views.cli"),
-    ("selector.views.page", "selector.views.export"),
-    ("selector.views.page_parts", "selector"),
-})
-#: circles allowed among views modules (each a set of module names); the CLI split empties it
-VIEWS_CIRCLES_ALLOWED = (
-    frozenset({"selector.views.cli", "selector.views.cli_batch", "selector.views.cli_design",
-               "selector.views.cli_more"}),
-)
+# Views allow-list: empty since the views rewrite (CLI package selector/views/cli/, one module
+# per verb; page package selector/views/page/).  Each entry would be (importing module, imported
+# module); nothing may be added here without a reason written beside it.
+VIEWS_IN_FUNCTION_ALLOWED = frozenset()
+#: circles allowed among views modules (each a set of module names): none
+VIEWS_CIRCLES_ALLOWED = ()
 # ---------------------------------------------------------------------------------------------
 
 

@@ -38,7 +38,7 @@ def run(data: bytes, name: str, top: int | None, holding_cost: float, max_grades
         progress: Callable[[int, int], None] | None = None, price_sheet: dict | None = None) -> dict:
     """Batch (one row per grade: the cheapest route of each of the part's ``top``
     cheapest grades) and the rationalised stock list."""
-    from .. import batch, rationalise
+    from .. import batch, rationalise  # lazy: the public batch API loads Dask; the page needs it only for a parts list
 
     parts = read_parts(data, name)
     res = batch(parts, top=top, per_grade=True, progress=progress, price_sheet=price_sheet)
