@@ -419,15 +419,15 @@ def comparison_frame(cand: pd.DataFrame, ids: Sequence[str], system: str, hardne
     view's scale; the cost split into material and processing per kg where present)."""
     sub = cand[cand["id"].isin(list(ids))]
     rows = []
-    su, hs = unit("stress", system), hardness.lower()
+    su, hs, cu = unit("stress", system), hardness.lower(), unit("cost_per_mass", system)
     for _, r in sub.iterrows():
         for col, qty, group in (("yield_mpa", "yield", f"strength ({su})"), ("uts_mpa", "tensile", f"strength ({su})"),
                                 ("elongation_pct", "elongation", "elongation (%)"),
                                 (f"hardness_{hs}", "hardness", f"hardness ({hardness})"),
                                 (f"surface_hardness_{hs}", "surface hardness", f"hardness ({hardness})"),
-                                ("material_cost_per_kg", "material / kg", "relative cost"),
-                                ("processing_cost_per_kg", "processing / kg", "relative cost"),
-                                ("relative_cost", "per kg", "relative cost"),
+                                ("material_cost_per_kg", f"material {cu}", "relative cost"),
+                                ("processing_cost_per_kg", f"processing {cu}", "relative cost"),
+                                ("relative_cost", cu, "relative cost"),
                                 ("part_cost", "per part", "relative cost")):
             v = r.get(col)
             if v is None or v != v:
@@ -435,6 +435,8 @@ def comparison_frame(cand: pd.DataFrame, ids: Sequence[str], system: str, hardne
             v = float(v)
             if col.endswith("_mpa"):
                 v = float(to_display(v, "stress", system))
+            elif col.endswith("_per_kg") or col == "relative_cost":
+                v = float(to_display(v, "cost_per_mass", system))
             rows.append({"label": r["label"], "id": r["id"], "group": group, "quantity": qty, "value": v})
     return pd.DataFrame(rows, columns=["label", "id", "group", "quantity", "value"])
 

@@ -65,7 +65,7 @@ def comparison_table(cand: pd.DataFrame, ids: Sequence[str], system: str, hardne
     """One column per chosen candidate, one row per property, in display units and the
     view's hardness scale; the case in words where there is none."""
     sub = cand.set_index("id").loc[list(ids)]
-    su = unit("stress", system)
+    su, cu = unit("stress", system), unit("cost_per_mass", system)
     rows = {
         "grade": sub["grade"], "family": sub["family"],
         "route": [route_line(r, system, t) for r, t in zip(sub["route"], sub["route_text"])],
@@ -74,9 +74,12 @@ def comparison_table(cand: pd.DataFrame, ids: Sequence[str], system: str, hardne
         "elongation (%)": sub["elongation_pct"],
         f"hardness ({hardness})": [hardness_text(r, "hardness", hardness) for _, r in sub.iterrows()],
         "surface and case": [case_text(r, system, hardness) for _, r in sub.iterrows()],
-        "material / kg": sub["material_cost_per_kg"] if "material_cost_per_kg" in sub else [np.nan] * len(sub),
-        "processing / kg": sub["processing_cost_per_kg"] if "processing_cost_per_kg" in sub else [np.nan] * len(sub),
-        "relative cost per kg": sub["relative_cost"], "relative cost per part": sub["part_cost"],
+        f"material {cu}": (to_display(sub["material_cost_per_kg"].to_numpy(float), "cost_per_mass", system)
+                           if "material_cost_per_kg" in sub else [np.nan] * len(sub)),
+        f"processing {cu}": (to_display(sub["processing_cost_per_kg"].to_numpy(float), "cost_per_mass", system)
+                             if "processing_cost_per_kg" in sub else [np.nan] * len(sub)),
+        f"relative cost {cu}": to_display(sub["relative_cost"].to_numpy(float), "cost_per_mass", system),
+        "relative cost per part": sub["part_cost"],
         "robust over composition": sub["robust"], "Pareto set": sub["pareto"],
         "process window": [fmt_window(a, b, p, system) for a, b, p in
                            zip(sub["window_min"], sub["window_max"], sub["window_parameter"].astype(str))],
