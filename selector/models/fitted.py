@@ -25,7 +25,13 @@ COEFFICIENT_SCHEMA = Schema((
 def coefficients(name: str) -> dict:
     """``{(fit, coefficient): value}`` from ``data/fits/<name>_coefficients.csv``
     (validated by :mod:`selector.catalogue.loader`; a bad file raises
-    ``DataFileError`` naming its line and column)."""
+    ``DataFileError`` naming its line and column).
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> sorted({fit for fit, _ in coefficients("tempering")})
+    ['tempering_hv', 'tempering_hv_range']
+    """
     t = read_table(f"{FOLDER}/{name}_coefficients.csv", COEFFICIENT_SCHEMA)
     return {(str(f), str(c)): float(v) for f, c, v in zip(t["fit"], t["coefficient"], t["value"])}
 
