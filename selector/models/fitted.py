@@ -39,7 +39,17 @@ def coefficients(name: str) -> dict:
 def write_tables(name: str, result: dict, header: str, out) -> None:
     """Write ``<name>_coefficients.csv``, ``<name>_rows.csv`` and ``<name>_cv.csv`` of a fit
     script (``result[key]`` DataFrames) under ``out``, each led by the ``# `` line
-    ``header``; the one writer the ``scripts/fit_*.py`` scripts share."""
+    ``header``; the one writer the ``scripts/fit_*.py`` scripts share.
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> import tempfile, pandas as pd
+    >>> d = tempfile.mkdtemp()
+    >>> df = pd.DataFrame({"fit": ["f"], "coefficient": ["a"], "value": [1.5]})
+    >>> write_tables("demo", {"coefficients": df, "rows": df, "cv": df}, "# demo\n", d)
+    >>> open(f"{d}/demo_coefficients.csv").read().splitlines()[:2]
+    ['# demo', 'fit,coefficient,value']
+    """
     from pathlib import Path
 
     out = Path(out)
