@@ -46,7 +46,7 @@ def write_tables(name: str, result: dict, header: str, out) -> None:
     >>> import tempfile, pandas as pd
     >>> d = tempfile.mkdtemp()
     >>> df = pd.DataFrame({"fit": ["f"], "coefficient": ["a"], "value": [1.5]})
-    >>> write_tables("demo", {"coefficients": df, "rows": df, "cv": df}, "# demo\n", d)
+    >>> write_tables("demo", {"coefficients": df, "rows": df, "cv": df}, "# demo\\n", d)
     >>> open(f"{d}/demo_coefficients.csv").read().splitlines()[:2]
     ['# demo', 'fit,coefficient,value']
     """
