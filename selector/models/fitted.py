@@ -47,7 +47,8 @@ def write_tables(name: str, result: dict, header: str, out) -> None:
     >>> d = tempfile.mkdtemp()
     >>> df = pd.DataFrame({"fit": ["f"], "coefficient": ["a"], "value": [1.5]})
     >>> write_tables("demo", {"coefficients": df, "rows": df, "cv": df}, "# demo\\n", d)
-    >>> open(f"{d}/demo_coefficients.csv").read().splitlines()[:2]
+    >>> from pathlib import Path
+    >>> Path(d, "demo_coefficients.csv").read_text().splitlines()[:2]
     ['# demo', 'fit,coefficient,value']
     """
     from pathlib import Path
