@@ -159,6 +159,7 @@ def test_plate_and_bar_and_bad_input():
 def test_nan_austenitize_entries_take_the_default():
     r = qr.as_quenched_profile(_arr(S4140, 2), "oil", "moderate", diameter_mm=30.0,
                                austenitize_c=np.array([np.nan, 860.0]))
+    # the input given (860 °C) is kept
     assert r["austenitize_c"][1] == 860.0
     assert 780 < r["austenitize_c"][0] < 830
 
@@ -278,6 +279,7 @@ def test_martensite_from_hardness_is_continuous_at_50_percent():
     h50 = float(martensite_hardness_hrc(0.45, 50.0))
     lo = martensite_pct_from_hardness(0.45, h50 - 1e-6, 250.0)
     hi = martensite_pct_from_hardness(0.45, h50 + 1e-6, 250.0)
+    # hand calculation: continuity at the 50 % martensite hardness (ASTM A255 50 % curve)
     assert float(lo) == pytest.approx(50.0, abs=1e-3) and float(hi) == pytest.approx(50.0, abs=1e-3)
     # at the products' own hardness there is no martensite
     hv = 250.0
