@@ -46,3 +46,8 @@ AUSTEMPER_1095_CENTRE_PEARLITE_MAX = 0.2
 #: tests/test_scatter.py: median error of the linearised rich corner as a share of the
 #: nominal-to-rich change; measured about 0.1 for strength at 60 mm
 SCATTER_LINEARISATION_MEDIAN_REL_MAX = 0.25
+
+#: tests/test_pins.py: the targets of the invented demo pin (pins.DEMO_CASE) as docs/demo.md
+#: prints them, to 0.1 MPa; measured with selector.design.pins.pin_targets
+DEMO_PIN_MIN_YIELD_MPA = 743.2
+DEMO_PIN_MIN_UTS_MPA = 203.7
