@@ -51,3 +51,7 @@ SCATTER_LINEARISATION_MEDIAN_REL_MAX = 0.25
 #: prints them, to 0.1 MPa; measured with selector.design.pins.pin_targets
 DEMO_PIN_MIN_YIELD_MPA = 743.2
 DEMO_PIN_MIN_UTS_MPA = 203.7
+
+#: tests/test_supply.py: yield of cold-drawn 1045 (20 %) after a 400 °C, 1 h stress relief, as a
+#: ratio to the cold-drawn yield (a small gain); measured 1.050
+STRESS_RELIEVE_400C_YIELD_RATIO_MAX = 1.06
