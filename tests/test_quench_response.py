@@ -83,6 +83,7 @@ def test_thin_strip_cools_like_the_lumped_limit():
     assert r["conduction_rate_c_s"][0, 0] == pytest.approx(lumped, rel=0.03)
     assert r["conduction_rate_c_s"][0, -1] == pytest.approx(lumped, rel=0.03)
     # a strip that thin hardens like the first Jominy positions, not like J 3.5 mm
+    # ASTM A255: the first Jominy positions, J1-J2 (1.6-3.2 mm) from the quenched end
     assert r["jominy_mm"][0, -1] < 3.0
     assert r["martensite_pct"][0, -1] > 95.0
 
