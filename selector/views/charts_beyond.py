@@ -110,7 +110,7 @@ def fatigue_depth_diagram(data: Mapping, mpa_per_unit: float = 1.0, unit: str = 
     data : mapping
         The result of :func:`selector.routes.transformation_curves.fatigue_depth_curves`.
     mpa_per_unit : float
-        MPa per display unit of stress (6.894757 for ksi).
+        MPa per display unit of stress (``selector.models.conversions.MPA_PER_KSI`` for ksi).
     unit : str
         Display unit of stress.
     height, width : int
