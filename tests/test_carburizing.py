@@ -43,6 +43,7 @@ def test_diffusivity_bad_method_names_choices():
 def test_profile_boundaries_and_monotone():
     x = np.linspace(0, 5, 51)
     c = cz.carbon_profile_pct(x, 925.0, 8.0, 0.85, 0.20)
+    # boundary conditions of the erf solution (Crank 1975): surface carbon 0.85 % at x = 0, core 0.20 % deep inside
     assert c[0] == pytest.approx(0.85)
     assert c[-1] == pytest.approx(0.20, abs=1e-3)
     assert np.all(np.diff(c) < 0)
@@ -60,10 +61,12 @@ def test_half_carbon_depth_is_0954_sqrt_dt():
 def test_profile_depth_scales_with_root_time():
     x4 = cz.depth_at_carbon_mm(0.4, 925.0, 4.0, 0.9, 0.2)
     x16 = cz.depth_at_carbon_mm(0.4, 925.0, 16.0, 0.9, 0.2)
+    # hand calculation: the erf profile depends on x / sqrt(D t) only (Crank 1975), sqrt(16 / 4) = 2
     assert float(x16 / x4) == pytest.approx(2.0, rel=1e-9)
 
 
 def test_profile_zero_time_is_core():
+    # hand calculation: before any time at temperature the profile is the core carbon (Crank 1975 initial condition)
     assert float(cz.carbon_profile_pct(0.1, 925.0, 0.0, 0.9, 0.2)) == pytest.approx(0.2)
 
 
@@ -136,6 +139,7 @@ def test_retained_austenite_bounds_and_trends():
     assert float(cz.retained_austenite_pct(0.9, C8620, quench_temp_c=-80)) < float(
         cz.retained_austenite_pct(0.9, C8620))
     # quench stopped above Ms: all austenite
+    # Koistinen & Marburger (1959): no martensite forms above Ms, so all austenite remains (hand calculation)
     assert float(cz.retained_austenite_pct(0.9, C8620, quench_temp_c=400)) == 100.0
 
 
@@ -239,24 +243,28 @@ def test_case_as_quenched_uses_local_hardenability():
 def test_case_hardness_hv_never_raised_by_retained_austenite():
     hv = cz.case_hardness_hv(np.array([250.0, 500.0, 800.0]), np.array([0.2, 0.5, 1.0]), C8620, None)
     assert np.all(hv <= [250.0, 500.0, 800.0])
+    # a loose bound, not a golden value: retained austenite at 1 % C (Koistinen & Marburger 1959) lowers the hardness by more than 5 %
     assert hv[2] < 800.0 * 0.95     # about 19 % retained austenite at 1 %C
 
 
 def test_effective_case_depth_scales_with_root_time():
     # the erf profile depends on x/sqrt(t) only: ECD(4t) = 2 ECD(t) (grid interpolation 1 %)
     e = cz.effective_case_depth_mm(925.0, np.array([4.0, 16.0]), 0.85, C8620, 175.0, 2.0, 35.0)
+    # hand calculation (Crank 1975): sqrt(16 / 4) = 2
     assert e[1] / e[0] == pytest.approx(2.0, rel=0.01)
 
 
 def test_effective_case_depth_matches_profile():
     e = float(cz.effective_case_depth_mm(925.0, 8.0, 0.85, C8620, 175.0, 2.0, 35.0))
     h = cz.case_hardness_profile_hrc(np.array([0.98 * e, 1.02 * e]), 925.0, 8.0, 0.85, C8620, 175.0, 2.0, 35.0)
+    # effective case depth: the depth of 50 HRC (SAE J423; ISO 2639 uses 550 HV)
     assert h[0] > 50.0 > h[1]
 
 
 def test_effective_case_depth_edge_cases():
     # core at or above 50 HRC: no hardness boundary -> inf; surface below threshold -> 0
     assert np.isinf(cz.effective_case_depth_mm(925.0, 8.0, 0.85, C8620, 175.0, 2.0, 52.0))
+    # by the definition: a surface softer than the threshold gives no case depth
     assert cz.effective_case_depth_mm(925.0, 8.0, 0.85, C8620, 175.0, 2.0, 35.0, threshold_hrc=66.0) == 0.0
 
 
@@ -273,6 +281,7 @@ def test_profile_bounds():
     x = np.linspace(0, 4, 41)
     h = cz.case_hardness_profile_hrc(x, 925.0, 8.0, 0.85, C8620, 175.0, 2.0, 20.0, jominy_mm=8.0)
     assert np.all(np.diff(h) <= 1e-9)
+    # the core hardness given (20 HRC) is the floor of the profile (input, hand calculation)
     assert np.all(h >= 20.0)
     # deep below the case: the core alloy at its own carbon and the same cooling
     core = cz.case_hardness_hv(hrc_to_hv(cz.case_as_quenched_hrc(0.20, C8620, 8.0)), 0.20, C8620, 175.0, 2.0)

@@ -144,10 +144,12 @@ def test_scc_7xxx_t6_both_sides():
 
 # --- galvanic: anodic-index difference above the environment's limit (MIL-DTL-14072 Table VI) ---
 def test_anodic_index_lookup():
+    # MIL-DTL-14072 Table VI group "high brasses": 0.45 V (data/galvanic_series.csv)
     assert ca.anodic_index("brass")["anodic_index_v"] == pytest.approx(0.45)
     assert ca.anodic_index("Zinc-plated")["category"] == "zinc"
     assert ca.anodic_index("7075-T6")["category"] == "aluminium_wrought"
     assert ca.anodic_index("2024-T351")["category"] == "aluminium_2xxx"
+    # MIL-DTL-14072 Table VI group "plain carbon and low alloy steels": 0.85 V (data/galvanic_series.csv)
     assert ca.anodic_index("Mild steel")["anodic_index_v"] == pytest.approx(0.85)
     with pytest.raises(InputError) as exc:
         ca.anodic_index("unobtainium")

@@ -38,6 +38,7 @@ def test_cold_work_strength_rises_ductility_falls():
     r = [ev("304", [{"op": "cold_work", "reduction_pct": x}]) for x in (0.0, 20.0, 40.0)]
     assert r[0]["uts_mpa"] < r[1]["uts_mpa"] < r[2]["uts_mpa"]
     assert r[0]["elongation_pct"] > r[1]["elongation_pct"] > r[2]["elongation_pct"]
+    # annealed 304, typical 585 MPa (85 ksi; ASM Handbook Vol. 1 typical properties, from memory), from the Hollomon K, n of data/hollomon_constants.csv (Kalpakjian & Schmid)
     assert r[0]["uts_mpa"] == pytest.approx(585.0, rel=0.05)   # ~ annealed catalogue value
     assert any("magnetic" in w for w in r[1]["warnings"])
 
@@ -96,6 +97,7 @@ def test_age_overaging_warns_and_curve_peaks():
     assert ys[1]["yield_mpa"] > ys[0]["yield_mpa"] and ys[1]["yield_mpa"] > ys[2]["yield_mpa"]
     assert not any("over-aged" in w for w in ys[1]["warnings"])
     assert any("over-aged" in w for w in ys[2]["warnings"])
+    # hand calculation: 64 h at 175 °C is 8 x the 8 h peak time of 6061-T6 (data/aging_calibration.csv), so P/P_p well above 1
     assert ys[2]["peak_ratio"] > 1.1
 
 

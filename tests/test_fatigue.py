@@ -140,6 +140,7 @@ def test_case_hardened_governing_depth():
     assert f["governing_depth_mm"] in (0.0, pytest.approx(r["case_depth_mm"]))
     td = f["through_depth"]
     assert len(td["depth_mm"]) == len(td["strength_mpa"]) == len(td["stress_per_surface"])
+    # hand calculation: the stress ratio at the surface (depth 0) is 1 by definition
     assert td["stress_per_surface"][0] == pytest.approx(1.0)
     assert td["governing_depth_mm"] in td["depth_mm"]
 
@@ -152,6 +153,7 @@ def test_thin_case_in_a_thick_bar_governs_below_surface_in_axial_load():
 
 def test_residual_credit_raises_strength():
     assert float(fm.residual_stress_credit(500.0, -200.0, 1500.0)) > 500.0
+    # by the model's rule (docstring): a tensile residual stress gets no credit and no debit
     assert float(fm.residual_stress_credit(500.0, 100.0, 1500.0)) == 500.0
 
 
@@ -169,6 +171,7 @@ def test_select_min_fatigue_meets_target_and_agrees_with_evaluate():
     t = {"min_yield_mpa": 700.0, "min_fatigue_mpa": 420.0}
     cand = selector.select(t, 25.0, finish="ground", reliability=0.9)
     assert len(cand) > 0
+    # the target given above (420 MPa), not a golden value
     assert (cand["fatigue_limit_mpa"] >= 420.0).all()
     assert (cand["margin_min_fatigue_mpa"] >= 0).all()
     row = cand.iloc[0]

@@ -28,6 +28,7 @@ def test_reference_depth_cold_1khz():
 
 def test_reference_depth_inverse_root_frequency():
     d = ind.reference_depth_mm(np.array([1e3, 4e3]))
+    # hand calculation: reference depth ∝ 1 / sqrt(f) (skin-depth formula), sqrt(4e3 / 1e3) = 2
     assert d[0] / d[1] == pytest.approx(2.0, rel=1e-12)
 
 

@@ -69,6 +69,7 @@ def test_profile_passes_core_plus_50_at_case_depth():
 
 def test_profile_no_case_when_core_too_hard():
     h = nt.hardness_profile_hv(np.array([0.0, 0.2]), 525.0, 48.0, C1045, 280.0)
+    # hand calculation: no case, so the profile is the core hardness given (280 HV)
     np.testing.assert_allclose(h, 280.0)
 
 

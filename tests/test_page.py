@@ -379,6 +379,7 @@ def test_unit_conversions():
 def test_targets_from_inputs_converts_to_si():
     t = pg.targets_from_inputs({"min_yield": 100.0, "min_case_depth": 0.04, "min_elong": 12.0}, pg.US,
                                families=["alloy_steel"])
+    # exact unit definitions (NIST SP 811): 1 ksi = 6.894757 MPa, 1 in = 25.4 mm; 0.04 in = 1.016 mm
     assert t["min_yield_mpa"] == pytest.approx(689.4757)
     assert t["min_case_depth_mm"] == pytest.approx(1.016)
     assert t["min_elongation_pct"] == 12.0 and t["families"] == ["alloy_steel"]

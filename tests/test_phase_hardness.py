@@ -21,6 +21,7 @@ def test_check_values_4140_like():
 def test_order_and_mixture():
     hm, hb, hfp = ph.phase_hardness_hv(S, 10.0)
     assert hm > hb > hfp
+    # hand calculation: the linear mixture rule of Maynier et al. (1978)
     assert ph.mixture_hv([0.5, 0.5, 0.0], [hm, hb, hfp]) == pytest.approx(0.5 * (hm + hb))
     with pytest.raises(InputError):
         ph.phase_hardness_hv(S, 0.0)

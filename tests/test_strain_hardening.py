@@ -50,6 +50,7 @@ def test_annealed_uts_textbook_check():
 def test_considere_fallback_roundtrip():
     # K = UTS (e/n)^n reproduces the annealed UTS (Considère condition, the inverse of annealed_uts_mpa)
     k = sh.k_from_uts_mpa(np.array([300.0, 580.0]), np.array([0.3, 0.45]))
+    # hand calculation: the round trip returns its inputs
     np.testing.assert_allclose(sh.annealed_uts_mpa(k, np.array([0.3, 0.45])), [300.0, 580.0], rtol=1e-12)
 
 
@@ -176,19 +177,23 @@ def test_bad_input_names_field(kwargs, field):
 
 def test_constants_lookup_grade_then_family():
     c = sh.hollomon_constants("C26000", "copper_alloy", 325.0)
+    # data/hollomon_constants.csv row c26000_strip (K fitted to ASTM B36 Table 2 C26000 H04 / H08)
     assert c["key"] == "c26000_strip" and c["k_mpa"] == 675.0
     # 316 has no row: family n with K from its annealed UTS (Considère fallback)
     c = sh.hollomon_constants("316", "stainless_austenitic", 580.0)
     assert c["key"] == "ss_family"
+    # hand calculation: the Considère fallback reproduces the annealed UTS given
     assert float(sh.annealed_uts_mpa(c["k_mpa"], c["n"])) == pytest.approx(580.0, rel=1e-9)
     with pytest.raises(InputError):
         sh.hollomon_constants("Ti-6Al-4V", "titanium", 950.0)
 
 
 def test_temper_aliases():
+    # ASTM B258 gauge ratio: 4 B&S numbers, 1 - 92 ** (-4 / 39) = 37.11 % (hand calculation; data/temper_aliases.csv)
     assert sh.temper_reduction_pct("h04", "copper_alloy") == pytest.approx(37.11)
     assert sh.temper_reduction_pct("Half Hard", "stainless_austenitic") == \
         sh.temper_reduction_pct("1/2 hard", "stainless_austenitic")
+    # ANSI H35.1: Hx8 is about 75 % cold reduction (common practice; data/temper_aliases.csv)
     assert sh.temper_reduction_pct("H38", "aluminium") == 75.0
     with pytest.raises(InputError) as exc:
         sh.temper_reduction_pct("H05", "copper_alloy")

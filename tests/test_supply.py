@@ -5,6 +5,7 @@ import io
 
 import numpy as np
 import pytest
+import regression_guards as guards
 
 from selector.catalogue import grades as gr
 from selector.catalogue import supply as sup
@@ -141,6 +142,7 @@ def test_supply_then_surface_treatments():
                             {"op": "nitride", "temp_c": 525, "hours": 30}], diameter_mm=25)
     assert nit["route_family"] == "supply_nitride"
     assert nit["surface_hardness_hv"] > 500
+    # the pre-hardened 4140 bar of data/supply_conditions.csv, 28-32 HRC (distributor band, common practice); a nitride below its temper keeps the core
     assert 28.0 <= nit["hardness_hrc"] <= 32.0
     assert not any("without a prior harden" in w for w in nit["warnings"])
 
@@ -165,7 +167,7 @@ def test_stress_relieve_after_cold_work_recovers_ductility():
     g = gr.grade("1045")
     assert low["elongation_pct"] > cw["elongation_pct"]
     assert low["yield_mpa"] > cw["yield_mpa"]                  # low-temperature relief: small gain
-    assert low["yield_mpa"] < 1.06 * cw["yield_mpa"]
+    assert low["yield_mpa"] < guards.STRESS_RELIEVE_400C_YIELD_RATIO_MAX * cw["yield_mpa"]   # regression guard
     assert high["yield_mpa"] == pytest.approx(g.base_yield_mpa, rel=0.02)   # cold work lost
     assert low["route_text"].endswith("stress relieve 400 °C, 1 h")
 

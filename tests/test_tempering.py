@@ -41,6 +41,7 @@ def test_equivalent_hours_gives_equal_parameter():
     assert t2 > 1.0  # lower temperature needs longer
     assert tp.hollomon_jaffe_parameter(550.0, t2, c) == pytest.approx(
         tp.hollomon_jaffe_parameter(600.0, 1.0, c), rel=1e-12)
+    # hand calculation: at its own temperature the equivalent time is the time itself (equal P, Hollomon & Jaffe 1945)
     assert tp.equivalent_hours(500.0, 3.0, 500.0, c) == pytest.approx(3.0)
 
 
@@ -221,6 +222,7 @@ def test_validity_ranges_registered_from_the_fit():
     rng = tp.fitted_range()
     v = validity.get("tempering_hv")
     assert v.ranges["C"][:2] == (pytest.approx(rng["C"][0]), pytest.approx(rng["C"][1]))
+    # the carbon span of the fully hardened rows of data/tempering_points.csv (0.30 to 0.60 % C, read from the file)
     assert rng["C"][0] == pytest.approx(0.30) and rng["C"][1] == pytest.approx(0.60)
     assert validity.check("tempering_hv", Mo=0.5)
     assert validity.check("tempering_hv", C=0.8)   # high-carbon martensite: extrapolated, warned

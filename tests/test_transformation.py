@@ -109,6 +109,7 @@ def test_path_progress_constant_temperature_matches_isothermal_time():
     tau = float(tr.isothermal_time_s(S1045, 600.0, 0.01, "pearlite"))
     times = np.linspace(0.0, tau, 50)
     x, start = tr.path_progress(c, times, np.full((1, 50), 600.0), "pearlite")
+    # Scheil (1935) additivity: a hold for the isothermal start time sums to 1 (hand calculation)
     assert start[0] == pytest.approx(1.0, rel=1e-3)
     assert x[0] == pytest.approx(0.01, rel=0.05)
     # above Ae1 (Andrews Ac1) nothing happens

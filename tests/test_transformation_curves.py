@@ -87,6 +87,7 @@ def test_fatigue_depth_curves(carb):
     # at the allowable surface stress the governing depth just reaches its strength: margin 1
     assert f["margin"] == pytest.approx(1.0, rel=1e-6)
     twice = TC.fatigue_depth_curves(carb, surface_stress_mpa=2 * f["allowable_surface_mpa"])
+    # hand calculation: twice the stress halves the margin (strength / stress)
     assert twice["margin"] == pytest.approx(0.5, rel=1e-6)
     stress = t[t["curve"] == "bending stress"].sort_values("depth_mm")["stress_mpa"].to_numpy()
     assert np.all(np.diff(stress) <= 1e-9)                     # bending stress falls towards the axis

@@ -54,4 +54,5 @@ def test_a_mapped_row_is_recomputed_on_the_steels_composition():
     catalogue = evaluate("4130", case.steps, diameter_mm=case.diameter_mm)
     assert rows_uts["predicted"] == pytest.approx(own["uts_mpa"])
     assert not math.isclose(own["uts_mpa"], catalogue["uts_mpa"], rel_tol=1e-6)
+    # hand calculation: mid of EN 10083-3 25CrMo4 C 0.22-0.29 % (data/reference/steel_compositions.csv)
     assert own["heat_composition"]["C"] == pytest.approx(0.255)

@@ -390,7 +390,13 @@ def natural_aged_properties(c: AgingConstants, hours) -> dict:
 
 @functools.cache
 def calibration_table():
-    """``data/aging_calibration.csv`` (constants and published temper points), validated."""
+    """``data/aging_calibration.csv`` (constants and published temper points), validated.
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> list(calibration_table().columns[:3])
+    ['alloy', 'kind', 'name']
+    """
     def check(r):
         if r["kind"] == "constant" and r["name"] not in CONSTANT_NAMES + ("model",):
             return ("name", f"{r['name']!r} is not a constant of the model ({', '.join(CONSTANT_NAMES)})")
@@ -419,7 +425,13 @@ PH_FIT_FILE = "fits/aging_ph_coefficients.csv"
 @functools.cache
 def ph_coefficients() -> dict:
     """Constants of the PH stainless steels from ``data/fits/aging_ph_coefficients.csv``
-    (written by ``scripts/fit_aging_ph.py``; the package never fits), validated."""
+    (written by ``scripts/fit_aging_ph.py``; the package never fits), validated.
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> set(CONSTANT_NAMES) <= set(ph_coefficients())
+    True
+    """
     schema = Schema((Column("fit", "choice", choices=("aging_ph",)), Column("coefficient"),
                      Column("value", "float"), Column("unit", allow_blank=True), Column("source"),
                      Column("confidence", "choice", choices=CONFIDENCE)),

@@ -38,7 +38,13 @@ BATH_MEDIUM = ("oil", "strong")
 
 def bath_h_w_m2k() -> float:
     """Heat-transfer coefficient of the bath (W/m²K), from the Grossmann H of
-    :data:`BATH_MEDIUM`."""
+    :data:`BATH_MEDIUM`.
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> round(bath_h_w_m2k())
+    1382
+    """
     return float(quench_severity.heat_transfer_coefficient_w_m2k(quench_severity.grossmann_h_per_in(*BATH_MEDIUM)))
 #: times of the quench paths into the bath, s (log-spaced, to one hour)
 TIMES_S = np.geomspace(0.05, 3600.0, 120)
@@ -91,6 +97,12 @@ def path_temperature_c(h_w_m2k, times_s, diameter_mm=None, thickness_mm=None, po
     --------
     At long times the path ends at the bath temperature; at the surface of an ideal-quench
     limit (very large h) it drops to the bath at once.
+    
+    Example (illustrative: a value of this implementation, not a published one; centre of a
+    25 mm round from 850 °C into the 300 °C bath, 1 s, 60 s and 1 h after immersion)
+
+    >>> path_temperature_c(bath_h_w_m2k(), [1.0, 60.0, 3600.0], diameter_mm=[25.0]).round().tolist()
+    [[850.0, 353.0, 300.0]]
     """
     h = float(h_w_m2k)
     if not np.isfinite(h) or h <= 0:

@@ -423,6 +423,12 @@ def jominy_rate_factor() -> float:
     Textbook chart of equivalent Jominy positions against bar diameter (bar centres, H = ∞,
     1.0, 0.3), see the chart file for the copies read; Lamont, Iron Age 152 (1943) for the
     method of equivalence.
+
+    Example (illustrative: a value of this implementation, not a published one; the shipped
+    fitted factor)
+
+    >>> round(jominy_rate_factor(), 2)
+    1.45
     """
     schema = Schema((Column("fit"), Column("coefficient"), Column("value", "float", lo=0.1, hi=10.0),
                      Column("unit", allow_blank=True), Column("source"),
@@ -519,7 +525,12 @@ def jominy_rate_c_s(distance_mm):
     References
     ----------
     Jominy cooling rates at 705 °C (ASTM A255; textbook chart axis, Callister Fig. 14.9).
-    Example: 50.8 mm (J32) → 1.9 °C/s (the table's last row).
+
+    Example (from the source: Callister Fig. 14.9 cooling-rate axis, 50.8 mm (J32) → 1.9 °C/s,
+    the last row of ``data/jominy_cooling_rates.csv``)
+
+    >>> round(float(jominy_rate_c_s(50.8)), 1)
+    1.9
     """
     d = np.asarray(distance_mm, float)
     if np.any(np.isnan(d)) or np.any(d <= 0):

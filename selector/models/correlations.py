@@ -62,7 +62,14 @@ FIT_FAMILIES = ("carbon_steel", "alloy_steel")
 
 def fit_rows(points, fit_family: str):
     """The rows of the tempering table (``tempering.load_points()``) that the
-    ``fit_family`` correlations are fitted on: fully hardened, that family, with UTS."""
+    ``fit_family`` correlations are fitted on: fully hardened, that family, with UTS.
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> from selector.models import tempering
+    >>> bool(fit_rows(tempering.load_points(), "alloy_steel")["fully_hardened"].all())
+    True
+    """
     t = points
     return t[t["fully_hardened"] & (t["family"] == fit_family) & t["uts_mpa"].notna()]
 
@@ -74,7 +81,15 @@ def _lstsq(a, y):
 
 def solve(d, fit_family: str) -> dict:
     """Least-squares coefficients of the three correlations on the rows ``d`` (used by
-    ``scripts/fit_correlations.py``; the package reads the shipped values)."""
+    ``scripts/fit_correlations.py``; the package reads the shipped values).
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> from selector.models import tempering
+    >>> d = fit_rows(tempering.load_points(), "alloy_steel")
+    >>> solve(d, "alloy_steel")["n_rows"] == len(d)
+    True
+    """
     u = d["uts_mpa"].to_numpy(float) / 1000.0
     tt = d["temp_c"].to_numpy(float) / 100.0
     ratio = _lstsq(np.c_[np.ones_like(u), tt], d["yield_mpa"].to_numpy(float) / d["uts_mpa"].to_numpy(float))
@@ -98,7 +113,13 @@ def coefficients(fit_family: str) -> dict:
     """Shipped coefficients of ``fit_family`` (``carbon_steel`` or ``alloy_steel``), read
     from ``data/fits/correlations_coefficients.csv``: ``ratio`` (r0, r1),
     ``elongation`` (e0, e1), ``reduction_area`` (q0, q1), and the UTS and
-    tempering-temperature spans of the rows fitted."""
+    tempering-temperature spans of the rows fitted.
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> sorted(coefficients("alloy_steel"))
+    ['elongation', 'n_rows', 'ratio', 'reduction_area', 'temp_c', 'uts_mpa']
+    """
     check_choice("fit_family", fit_family, FIT_FAMILIES)
     k = fitted.coefficients(FIT_NAME)
     out = {key: tuple(k[(fit_family, n)] for n in names) for key, names in COEFFICIENT_NAMES.items()}
@@ -273,7 +294,14 @@ def fit_report(points) -> dict:
     """Per-family errors of the three correlations (shipped coefficients) on their
     fitted rows of ``points`` (``tempering.load_points()``): yield (median and max
     relative error), elongation and RA (median and max absolute error, percentage
-    points).  In-sample (calibration) figures."""
+    points).  In-sample (calibration) figures.
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> from selector.models import tempering
+    >>> sorted(fit_report(tempering.load_points()))
+    ['alloy_steel', 'carbon_steel']
+    """
     out = {}
     for fit in FIT_FAMILIES:
         d = fit_rows(points, fit)

@@ -104,14 +104,26 @@ _NONFE = Schema((Column("family"), Column("ratio", "float", lo=0.1, hi=1.0),
 
 @functools.cache
 def surface_table() -> dict:
-    """finish -> (a_mpa, b, source, confidence) from ``data/fatigue_surface.csv``."""
+    """finish -> (a_mpa, b, source, confidence) from ``data/fatigue_surface.csv``.
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> sorted(surface_table())
+    ['as_forged', 'ground', 'hot_rolled', 'machined']
+    """
     t = read_table("fatigue_surface.csv", _SURF)
     return {r.finish: (float(r.a_mpa), float(r.b), r.source, r.confidence) for r in t.itertuples()}
 
 
 @functools.cache
 def nonferrous_table() -> dict:
-    """family -> (ratio, cap_mpa, cycles, source, confidence) from ``data/fatigue_nonferrous.csv``."""
+    """family -> (ratio, cap_mpa, cycles, source, confidence) from ``data/fatigue_nonferrous.csv``.
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> sorted(nonferrous_table())
+    ['aluminium', 'copper_alloy', 'titanium']
+    """
     t = read_table("fatigue_nonferrous.csv", _NONFE)
     return {r.family: (float(r.ratio), float(r.cap_mpa), float(r.cycles), r.source, r.confidence)
             for r in t.itertuples()}

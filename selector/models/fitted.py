@@ -25,7 +25,13 @@ COEFFICIENT_SCHEMA = Schema((
 def coefficients(name: str) -> dict:
     """``{(fit, coefficient): value}`` from ``data/fits/<name>_coefficients.csv``
     (validated by :mod:`selector.catalogue.loader`; a bad file raises
-    ``DataFileError`` naming its line and column)."""
+    ``DataFileError`` naming its line and column).
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> sorted({fit for fit, _ in coefficients("tempering")})
+    ['tempering_hv', 'tempering_hv_range']
+    """
     t = read_table(f"{FOLDER}/{name}_coefficients.csv", COEFFICIENT_SCHEMA)
     return {(str(f), str(c)): float(v) for f, c, v in zip(t["fit"], t["coefficient"], t["value"])}
 
@@ -33,7 +39,18 @@ def coefficients(name: str) -> dict:
 def write_tables(name: str, result: dict, header: str, out) -> None:
     """Write ``<name>_coefficients.csv``, ``<name>_rows.csv`` and ``<name>_cv.csv`` of a fit
     script (``result[key]`` DataFrames) under ``out``, each led by the ``# `` line
-    ``header``; the one writer the ``scripts/fit_*.py`` scripts share."""
+    ``header``; the one writer the ``scripts/fit_*.py`` scripts share.
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> import tempfile, pandas as pd
+    >>> d = tempfile.mkdtemp()
+    >>> df = pd.DataFrame({"fit": ["f"], "coefficient": ["a"], "value": [1.5]})
+    >>> write_tables("demo", {"coefficients": df, "rows": df, "cv": df}, "# demo\\n", d)
+    >>> from pathlib import Path
+    >>> Path(d, "demo_coefficients.csv").read_text().splitlines()[:2]
+    ['# demo', 'fit,coefficient,value']
+    """
     from pathlib import Path
 
     out = Path(out)

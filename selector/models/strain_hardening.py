@@ -291,7 +291,13 @@ def reduction_for_uts_mpa(target_uts_mpa, k_mpa, n, base_yield_mpa):
 
 @functools.cache
 def hollomon_table():
-    """``data/hollomon_constants.csv`` as a DataFrame (validated, cached)."""
+    """``data/hollomon_constants.csv`` as a DataFrame (validated, cached).
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> {"k_mpa", "n", "source", "confidence"} <= set(hollomon_table().columns)
+    True
+    """
     schema = Schema((Column("key"), Column("scope", allow_blank=True), Column("material"),
                      Column("k_mpa", "float", allow_blank=True, lo=1.0, hi=5000.0),
                      Column("n", "float", lo=0.001, hi=1.0),
@@ -303,7 +309,13 @@ def hollomon_table():
 
 @functools.cache
 def temper_alias_table():
-    """``data/temper_aliases.csv`` as a DataFrame (validated, cached)."""
+    """``data/temper_aliases.csv`` as a DataFrame (validated, cached).
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> {"designation", "reduction_pct", "source"} <= set(temper_alias_table().columns)
+    True
+    """
     f = lambda name: Column(name, "float", allow_blank=True, lo=0.0, hi=5000.0)  # noqa: E731
     schema = Schema((Column("family"), Column("designation"),
                      Column("reduction_pct", "float", lo=0.0, hi=95.0), Column("basis"),

@@ -73,6 +73,16 @@ def constituents(comp, martensite_pct, cooling_rate_c_s) -> dict:
     References
     ----------
     Maynier, Jungmann & Dollet (1978); Li et al. (1998) for the bainite share.
+
+    Example (illustrative: a value of this implementation, not a published one; a 0.40 % C
+    Cr-Mo steel, half martensite, cooled at 20 °C/s: the rest is mostly bainite)
+
+    >>> s = {"C": 0.40, "Mn": 0.80, "Si": 0.25, "Cr": 1.0, "Mo": 0.20}
+    >>> p = constituents(s, 50.0, 20.0)
+    >>> [round(float(p[k]), 3) for k in ("x_m", "x_b", "x_fp")]
+    [0.5, 0.475, 0.025]
+    >>> round(float(p["hv_m"]))
+    614
     """
     m = np.asarray(martensite_pct, float)
     if np.any(m < -1e-9) or np.any(m > 100 + 1e-9):
@@ -127,6 +137,14 @@ def mixture_hv(parts: dict, temp_c=None, hours=None, comp=None) -> np.ndarray:
     References
     ----------
     Maynier, Jungmann & Dollet (1978); Hollomon & Jaffe (1945).
+
+    Example (illustrative: a value of this implementation, not a published one; the same
+    steel fully martensitic, as quenched and after 540 °C for 2 h)
+
+    >>> s = {"C": 0.40, "Mn": 0.80, "Si": 0.25, "Cr": 1.0, "Mo": 0.20}
+    >>> p = constituents(s, 100.0, 50.0)
+    >>> round(float(mixture_hv(p))), round(float(mixture_hv(p, 540.0, 2.0, s)))
+    (614, 358)
     """
     x_m, x_b, x_fp = parts["x_m"], parts["x_b"], parts["x_fp"]
     hv_m, hv_b, hv_fp = parts["hv_m"], parts["hv_b"], parts["hv_fp"]

@@ -130,6 +130,12 @@ def hollomon_jaffe_parameter(temp_c, hours, c_const):
     References
     ----------
     J.H. Hollomon, L.D. Jaffe, Trans. AIME 162 (1945) 223.
+
+    Example (from the source: the definition of Hollomon & Jaffe 1945, 538 °C for 1 h with
+    C = 20: 811.15 K × 20 = 16 223 K (hand evaluation))
+
+    >>> float(hollomon_jaffe_parameter(538.0, 1.0, 20.0))
+    16223.0
     """
     t_k = _kelvin(temp_c)
     h = _positive_hours(hours)
@@ -161,6 +167,12 @@ def hollomon_jaffe_constant(carbon_pct):
     Hollomon & Jaffe, Trans. AIME 162 (1945) 223; the linear form as summarised by
     Canale et al., Int. J. Microstructure and Materials Properties 3 (2008) 474 —
     coefficients ``from memory`` (reference sheet §5, tag M).
+
+    Example (from the source: the linear form above, 21.3 − 5.8 × 0.40 = 18.98 at 0.40 % C
+    (hand evaluation; coefficients from memory))
+
+    >>> round(float(hollomon_jaffe_constant(0.40)), 2)
+    18.98
     """
     c = _carbon(carbon_pct)
     return np.clip(C_INTERCEPT - C_SLOPE * c, *C_RANGE)
@@ -191,6 +203,12 @@ def equivalent_hours(temp_c, hours, to_temp_c, c_const):
     References
     ----------
     Hollomon & Jaffe, Trans. AIME 162 (1945) 223 (equal P, equal hardness).
+
+    Example (from the source: equal P (Hollomon & Jaffe 1945), 1 h at 538 °C with C = 20
+    equals 10 ** (16 223 / 839.15 − 20) = 0.215 h at 566 °C (hand evaluation))
+
+    >>> round(float(equivalent_hours(538.0, 1.0, 566.0, 20.0)), 3)
+    0.215
     """
     p = hollomon_jaffe_parameter(temp_c, hours, c_const)
     return 10.0 ** (p / _kelvin(to_temp_c) - np.asarray(c_const, float))
@@ -205,6 +223,12 @@ def tempering_features(c, mo, v, p, cr=0.0):
     ``s = P/1000 − 16``, ``a = max(P/1000 − 12, 0)``; Mo, V and Cr are held at
     :data:`MO_MAX` / :data:`V_MAX` / :data:`CR_MAX`.  Shared by the package and the fit
     script so that the two can never use different forms.
+
+    Example (illustrative: a value of this implementation, not a published one; 0.40 % C,
+    0.20 % Mo at P = 16 000, so s = 0 and a = 4)
+
+    >>> tempering_features(0.40, 0.20, 0.0, 16000.0).round(3).tolist()
+    [1.0, 0.4, 0.0, 0.0, 0.8, 0.0, 0.0]
     """
     c, mo, v, p, cr = (np.asarray(x, float) for x in (c, mo, v, p, cr))
     s = p / 1000.0 - 16.0
@@ -220,7 +244,13 @@ def load_points():
     """The tempering data table ``data/tempering_points.csv``, validated, with
     ``hardness_hv`` (HRC by ASTM E140, else HB by E140) and ``P`` (Hollomon–Jaffe
     parameter with the carbon-dependent constant) added.  Read by the fit scripts
-    and the tests only: the package itself reads fitted coefficients."""
+    and the tests only: the package itself reads fitted coefficients.
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> t = load_points()
+    >>> {"hardness_hv", "P"} <= set(t.columns), bool((t["hardness_hv"] > 0).all())
+    (True, True)"""
     t = read_table(FILE, _SCHEMA)
     hv = np.where(t["hardness_hrc"].notna(), conversions.hrc_to_hv(t["hardness_hrc"].to_numpy(float)),
                   conversions.hb_to_hv(t["hardness_hb"].to_numpy(float)))
@@ -232,7 +262,12 @@ def load_points():
 
 def surface_hv(coef, c, mo, v, p, cr=0.0):
     """The master surface with coefficients ``coef`` (in :data:`FEATURES` order),
-    clipped to [HV_FLOOR, HV_M(C)]."""
+    clipped to [HV_FLOOR, HV_M(C)].
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> round(float(surface_hv(coefficients(), 0.40, 0.20, 0.0, 16000.0)))
+    314"""
     hv = tempering_features(c, mo, v, p, cr) @ np.asarray(coef, float)
     cap = conversions.hrc_to_hv(martensite_hardness_hrc(c, 99.9))
     return np.clip(hv, HV_FLOOR, cap)
@@ -245,7 +280,12 @@ def _fit() -> dict:
 
 def coefficients() -> tuple:
     """The shipped coefficients (``data/fits/tempering_coefficients.csv``) in
-    :data:`FEATURES` order."""
+    :data:`FEATURES` order.
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> len(coefficients()) == len(FEATURES)
+    True"""
     k = _fit()
     return tuple(float(k[("tempering_hv", name)]) for name in FEATURES)
 
@@ -253,7 +293,13 @@ def coefficients() -> tuple:
 def fitted_range() -> dict:
     """Span of the data the surface was fitted on: ``{variable: (lo, hi)}`` for C, Mn,
     Si, Ni, Cr, Mo, V (wt %), temp_c (°C), hours (h) and P_1000 (P/1000), as written
-    by the fit script."""
+    by the fit script.
+
+    Example (illustrative: a value of this implementation, not a published one; the
+    carbon span of the fitted rows)
+
+    >>> fitted_range()["C"]
+    (0.3, 0.6)"""
     k = _fit()
     out = {}
     for (fit, name), val in k.items():
@@ -305,10 +351,14 @@ def tempered_martensite_hv(comp, temp_c, hours):
     temperature); data: ASM Metals Handbook Vol. 1 (1990) Q&T table and the other
     sources named in ``data/tempering_points.csv``.
 
-    Examples
-    --------
-    4340 oil quenched, 1 in. round, tempered 538 °C: 38 HRC (vendor sheet in
-    ``data/tempering_points.csv``; a calibration row).
+    Example (calibration, not validation: ASM Metals Handbook Vol. 1 (1990) Q&T table, 4340
+    oil quenched, 25 mm bar, tempered 540 °C: 360 HB (from memory; a row the fit used, 2 h
+    assumed); this implementation gives 340 HB (by ASTM E140), about 2 HRC below it)
+
+    >>> from selector.models import conversions
+    >>> s = {"C": 0.405, "Mn": 0.70, "Si": 0.25, "Ni": 1.825, "Cr": 0.80, "Mo": 0.25}
+    >>> round(float(conversions.hv_to_hb(tempered_martensite_hv(s, 540.0, 2.0))))
+    340
     """
     c = _carbon(el(comp, "C"))
     p = hollomon_jaffe_parameter(temp_c, hours, hollomon_jaffe_constant(c))
@@ -349,6 +399,13 @@ def tempered_hv(hardness_hv_as_quenched, hardness_hv_martensite, comp, temp_c, h
     ----------
     Hollomon & Jaffe, Trans. AIME 162 (1945) 223; the reading of the as-quenched
     hardness as a mixture is this project's (docs/methods/tempering.md).
+
+    Example (illustrative: a value of this implementation, not a published one; a 4340
+    location quenched to 600 HV against 650 HV for full martensite, tempered 540 °C 2 h)
+
+    >>> s = {"C": 0.405, "Mn": 0.70, "Si": 0.25, "Ni": 1.825, "Cr": 0.80, "Mo": 0.25}
+    >>> round(float(tempered_hv(600.0, 650.0, s, 540.0, 2.0)))
+    343
     """
     hv_aq = _hardness("hardness_hv_as_quenched", hardness_hv_as_quenched)
     hv_m = _hardness("hardness_hv_martensite", hardness_hv_martensite)
@@ -361,7 +418,13 @@ def tempered_hv(hardness_hv_as_quenched, hardness_hv_martensite, comp, temp_c, h
 
 def check_validity(comp, temp_c, hours) -> list[str]:
     """Warnings (``selector.models.validity``) for the values outside the ranges of
-    ``hollomon_jaffe`` and ``tempering_hv`` (NaN tempers are ignored)."""
+    ``hollomon_jaffe`` and ``tempering_hv`` (NaN tempers are ignored).
+
+    Example (illustrative: a value of this implementation, not a published one; 0.965 % C
+    lies outside the fitted 0.30–0.60 % C)
+
+    >>> [m.split(":")[0] for m in check_validity({"C": 0.965}, 200.0, 1.0)]
+    ['tempering_hv', 'tempering_hv']"""
     t = np.asarray(temp_c, float)
     h = np.asarray(hours, float)
     ok = np.isfinite(t) & np.isfinite(h)

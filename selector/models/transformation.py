@@ -434,9 +434,14 @@ def path_progress(comp, times_s, temps_c, reaction, grain_size_astm=8.0, active=
     Li, Niebuhr, Meekisho & Atteridge, Metall. Mater. Trans. B 29B (1998) 661;
     Scheil, Arch. Eisenhüttenwes. 8 (1935) 565.
 
-    Examples
-    --------
-    Held at a constant temperature for the isothermal 1 % start time, the start sum is 1.
+    Example (from the source: Scheil's additivity (1935) gives a start sum of exactly 1 for a
+    hold at constant temperature for the isothermal 1 % start time)
+
+    >>> s = {"C": 0.40, "Mn": 0.80, "Si": 0.25, "Cr": 1.0, "Mo": 0.20}
+    >>> t1 = float(isothermal_time_s(s, 650.0, 0.01, "pearlite"))
+    >>> x, start = path_progress(s, [0.0, t1], np.full((1, 2), 650.0), "pearlite")
+    >>> round(float(start[0]), 6)
+    1.0
     """
     temps = np.asarray(temps_c, float)
     if temps.ndim != 2:

@@ -45,7 +45,14 @@ def register(model: str, ranges: Mapping[str, tuple], reference: str,
              beyond: str = "the result is extrapolated") -> Validity:
     """Declare the validity ranges of ``model``; ``ranges`` maps a variable name to
     ``(lo, hi, unit)`` where ``lo`` or ``hi`` may be ``None`` for an open side;
-    ``beyond`` says what the model does outside (default: it extrapolates)."""
+    ``beyond`` says what the model does outside (default: it extrapolates).
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> register("example_model", {"temp_c": (100.0, 700.0, "°C")}, "a reference").model
+    'example_model'
+    >>> _ = _REGISTRY.pop("example_model")
+    """
     v = Validity(model, dict(ranges), reference, beyond)
     _REGISTRY[model] = v
     return v
@@ -186,6 +193,12 @@ def notes(model: str, name: str, values, on=None) -> list[tuple[str, np.ndarray]
     ------
     KeyError
         ``model`` or ``name`` is not registered (a family declaring an input that does not exist).
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> from selector.models import tempering
+    >>> [(m.split(":")[0], mask.tolist()) for m, mask in notes("tempering_hv", "C", [0.4, 0.965])]
+    [('tempering_hv', [False, True])]
     """
     v = get(model)
     lo, hi, _unit = v.ranges[name]
