@@ -281,13 +281,18 @@ def evaluation_metrics(ev: dict, prefix: str = "", extra: tuple | None = None) -
             c.metric(label, value)
 
 
-def candidate_view(cand, states):
+def pick_candidate(cand, key):
+    """A select box of the candidates (kept in ``ss[key]``, the first by default); the chosen row."""
     ids = list(cand["variant"])
     labels = dict(zip(cand["variant"], cand["label"]))
-    if ss.get("pick") not in ids:
-        ss["pick"] = ids[0]
-    st.selectbox("Candidate", ids, key="pick", format_func=lambda v: labels.get(v, v))
-    row = cand.set_index("variant").loc[ss["pick"]]
+    if ss.get(key) not in ids:
+        ss[key] = ids[0]
+    st.selectbox("Candidate", ids, key=key, format_func=lambda v: labels.get(v, v))
+    return cand.set_index("variant").loc[ss[key]]
+
+
+def candidate_view(cand, states):
+    row = pick_candidate(cand, "pick")
     ev = pg.cached_evaluate(row["grade"], pg.route_json(row["route"]), d_si, t_si)
     g = selector.grade(row["grade"])
     st.subheader(f"{row['id']} · {g.name} · {pg.route_line(row['route'], system, row['route_text'])}")
@@ -594,12 +599,7 @@ def alternatives_view(cand):
         ss["alt_mode"] = modes[0]
     st.radio("Alternatives to", modes, key="alt_mode", horizontal=True)
     if ss["alt_mode"] == "a candidate of the list":
-        ids = list(cand["variant"])
-        labels = dict(zip(cand["variant"], cand["label"]))
-        if ss.get("alt_pick") not in ids:
-            ss["alt_pick"] = ids[0]
-        st.selectbox("Candidate", ids, key="alt_pick", format_func=lambda v: labels.get(v, v))
-        row = cand.set_index("variant").loc[ss["alt_pick"]]
+        row = pick_candidate(cand, "alt_pick")
         grade, route = row["grade"], list(row["route"])
     else:
         c = st.columns(2)

@@ -363,33 +363,7 @@ def disk_frame(func):
     (the caller keeps its own); at most :data:`MAX_FRAME_FILES` files are kept.
     ``wrapper.build`` builds from scratch; a frame whose columns this layout cannot
     hold exactly is returned but not written."""
-
-    @functools.wraps(func)
-    def wrapper(*args, **kwargs):
-        if not disk_enabled():
-            return wrapper.build(*args, **kwargs)
-        key = frame_key(func, args, kwargs)
-        path = cache_dir() / f"{func.__module__}.{func.__qualname__}-{key[:32]}.npz"
-        loaded = _load(path, key)
-        if loaded is not None:
-            try:
-                return arrays_to_frame(_unflatten(loaded[0]))
-            except (KeyError, ValueError, TypeError):
-                pass
-        df = wrapper.build(*args, **kwargs)
-        arrays = frame_to_arrays(df)
-        if arrays is not None:
-            flat = {f"arr_{i}": v for i, v in enumerate(_flatten(arrays))}
-            if _save(path, key, flat, True):
-                try:
-                    os.utime(path)
-                except OSError:
-                    pass
-                _prune(path.parent, f"{func.__module__}.{func.__qualname__}-*.npz", MAX_FRAME_FILES)
-        return df
-
-    wrapper.build = func
-    return wrapper
+    return _disk_named(func, frame_to_arrays, arrays_to_frame)
 
 
 def _flatten(arrays: dict) -> list:
@@ -413,30 +387,46 @@ def disk_arrays(func):
     no in-memory copy is kept (the caller keeps its own); at most
     :data:`MAX_FRAME_FILES` files are kept.  ``wrapper.build`` builds from scratch."""
 
+    return _disk_named(func, _checked_arrays, lambda arrays: arrays)
+
+
+def _checked_arrays(arrays) -> dict:
+    if not isinstance(arrays, dict) or not all(isinstance(v, np.ndarray) and v.dtype != object
+                                               for v in arrays.values()):
+        raise TypeError("disk_arrays builders return a dict of numeric or text ndarrays")
+    return arrays
+
+
+def _disk_named(func, to_arrays, from_arrays):
+    """The disk cache behind :func:`disk_frame` and :func:`disk_arrays`: keyed by
+    :func:`frame_key`, stored as named arrays (``arr_i`` layout), pruned to
+    :data:`MAX_FRAME_FILES`.  ``to_arrays(value)`` gives the named arrays to write (None:
+    not written); ``from_arrays(arrays)`` rebuilds the value from a file."""
+
     @functools.wraps(func)
     def wrapper(*args, **kwargs):
         if not disk_enabled():
             return wrapper.build(*args, **kwargs)
         key = frame_key(func, args, kwargs)
-        path = cache_dir() / f"{func.__module__}.{func.__qualname__}-{key[:32]}.npz"
+        stem = f"{func.__module__}.{func.__qualname__}-"
+        path = cache_dir() / f"{stem}{key[:32]}.npz"
         loaded = _load(path, key)
         if loaded is not None:
             try:
-                return _unflatten(loaded[0])
+                return from_arrays(_unflatten(loaded[0]))
             except (KeyError, ValueError, TypeError):
                 pass
-        arrays = wrapper.build(*args, **kwargs)
-        if not isinstance(arrays, dict) or not all(isinstance(v, np.ndarray) and v.dtype != object
-                                                   for v in arrays.values()):
-            raise TypeError("disk_arrays builders return a dict of numeric or text ndarrays")
-        flat = {f"arr_{i}": v for i, v in enumerate(_flatten(arrays))}
-        if _save(path, key, flat, True):
-            try:
-                os.utime(path)
-            except OSError:
-                pass
-            _prune(path.parent, f"{func.__module__}.{func.__qualname__}-*.npz", MAX_FRAME_FILES)
-        return arrays
+        value = wrapper.build(*args, **kwargs)
+        arrays = to_arrays(value)
+        if arrays is not None:
+            flat = {f"arr_{i}": v for i, v in enumerate(_flatten(arrays))}
+            if _save(path, key, flat, True):
+                try:
+                    os.utime(path)
+                except OSError:
+                    pass
+                _prune(path.parent, f"{stem}*.npz", MAX_FRAME_FILES)
+        return value
 
     wrapper.build = func
     return wrapper

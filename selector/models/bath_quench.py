@@ -24,7 +24,6 @@ H.S. Carslaw and J.C. Jaeger, *Conduction of Heat in Solids*, 2nd ed., Oxford 19
 from __future__ import annotations
 
 import numpy as np
-from scipy import special
 
 from ..errors import InputError
 from . import cooling, quench_severity
@@ -46,19 +45,10 @@ def bath_h_w_m2k() -> float:
     1382
     """
     return float(quench_severity.heat_transfer_coefficient_w_m2k(quench_severity.grossmann_h_per_in(*BATH_MEDIUM)))
+
+
 #: times of the quench paths into the bath, s (log-spaced, to one hour)
 TIMES_S = np.geomspace(0.05, 3600.0, 120)
-
-
-def _coefficients(kind, lam):
-    if kind == "cylinder":
-        j0, j1 = special.j0(lam), special.j1(lam)
-        return 2.0 * j1 / (lam * (j0 ** 2 + j1 ** 2))
-    return 4.0 * np.sin(lam) / (2.0 * lam + np.sin(2.0 * lam))
-
-
-def _shape(kind, lam, xi):
-    return special.j0(lam * xi) if kind == "cylinder" else np.cos(lam * xi)
 
 
 def path_temperature_c(h_w_m2k, times_s, diameter_mm=None, thickness_mm=None, position=0.0,
@@ -130,7 +120,7 @@ def path_temperature_c(h_w_m2k, times_s, diameter_mm=None, thickness_mm=None, po
         # θ depends on the size only (h is one number): one series per distinct size
         uh, inv = np.unique(half[mask], return_inverse=True)
         lam = cooling.eigenvalues(kind, h * uh / cooling.K_STEEL_W_MK, n_terms)   # (u, N)
-        a = _coefficients(kind, lam) * _shape(kind, lam, float(position))        # (u, N)
+        a = cooling.series_terms(kind, lam, float(position))                     # (u, N)
         fo = alpha * t[None, :] / uh[:, None] ** 2                                 # (u, m)
         e = np.exp(-np.minimum(lam[:, None, :] ** 2 * fo[..., None], 700.0))      # (u, m, N)
         theta[mask] = np.einsum("un,umn->um", a, e)[inv]

@@ -134,6 +134,32 @@ def _shape(kind, lam, xi):
     return special.j0(lam * xi) if kind == "cylinder" else np.cos(lam * xi)
 
 
+def series_terms(kind, lam, xi):
+    """Terms C_n·X(λ_n ξ) of the exact conduction series at the position ξ = r/R (or x/L)
+    (Carslaw & Jaeger 1959, §3.11 and §7.8): θ = Σ terms·exp(−λ_n² Fo).
+
+    Parameters
+    ----------
+    kind : {"cylinder", "plate"}
+    lam : ndarray
+        Eigenvalues from :func:`eigenvalues`, shape (..., N).
+    xi : float or ndarray
+        Position, 0 (centre) to 1 (surface), broadcast against ``lam``.
+
+    Returns
+    -------
+    ndarray
+        The terms, shape of ``lam`` broadcast with ``xi``.
+
+    Example (from the source: at Fo = 0 the series gives θ = 1 everywhere; 200 terms)
+
+    >>> lam = eigenvalues("plate", np.array([1.0]), 200)
+    >>> round(float(series_terms("plate", lam, 0.0).sum()), 4)
+    1.0
+    """
+    return _coefficients(kind, lam) * _shape(kind, lam, xi)
+
+
 def theta(kind: str, bi, xi, fo, n_terms: int = N_TERMS):
     """Dimensionless temperature θ = (T − Tb)/(T0 − Tb) of the exact series.
 
@@ -174,7 +200,7 @@ def _crossing(kind, bi, xi, theta_star, n_terms=N_TERMS):
     """Fo at which θ(ξ) falls to θ*, and −dθ/dFo there (exact series; scalar-free arrays)."""
     bi, xi, ts = np.broadcast_arrays(np.asarray(bi, float), np.asarray(xi, float), np.asarray(theta_star, float))
     lam = eigenvalues(kind, bi, n_terms)
-    a = _coefficients(kind, lam) * _shape(kind, lam, xi[..., None])
+    a = series_terms(kind, lam, xi[..., None])
     lam2 = lam ** 2
     # bracket on the log-Fo grid (θ falls with Fo), then bisection in log Fo
     lo = np.full(bi.shape, np.log(_FO_GRID[0]))

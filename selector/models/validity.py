@@ -103,13 +103,20 @@ def out_of_range_mask(model: str, **values) -> np.ndarray:
     for name, x in values.items():
         if name not in v.ranges:
             continue
-        lo, hi, _unit = v.ranges[name]
-        x = np.asarray(x, float)
-        if lo is not None:
-            mask = mask | (x < lo - 1e-9)
-        if hi is not None:
-            mask = mask | (x > hi + 1e-9)
+        mask = mask | _outside(np.asarray(x, float), v.ranges[name])
     return mask
+
+
+def _outside(x: np.ndarray, limits) -> np.ndarray:
+    """True where ``x`` lies outside the registered ``(lo, hi, unit)`` (None: open end),
+    with a tolerance of 1e-9 for values written at the limit."""
+    lo, hi, _unit = limits
+    bad = np.zeros(x.shape, bool)
+    if lo is not None:
+        bad |= x < lo - 1e-9
+    if hi is not None:
+        bad |= x > hi + 1e-9
+    return bad
 
 
 def _fmt(x: float) -> str:
@@ -129,18 +136,10 @@ def check(model: str, **values) -> list[str]:
     for name, x in values.items():
         if name not in v.ranges:
             continue
-        lo, hi, unit = v.ranges[name]
         arr = np.atleast_1d(np.asarray(x, float))
-        bad = np.zeros(arr.shape, bool)
-        if lo is not None:
-            bad |= arr < lo - 1e-9
-        if hi is not None:
-            bad |= arr > hi + 1e-9
+        bad = _outside(arr, v.ranges[name])
         if bad.any():
-            val = _fmt(float(arr[bad][0]))
-            rng = f"{'' if lo is None else _fmt(lo)}–{'' if hi is None else _fmt(hi)}"
-            u = f" {unit}" if unit else ""
-            msgs.append(f"{model}: {name} = {val}{u} is outside {rng}{u} ({v.reference}); {v.beyond}")
+            msgs.append(_message(model, name, _fmt(float(arr[bad][0]))))
     return msgs
 
 
@@ -201,13 +200,8 @@ def notes(model: str, name: str, values, on=None) -> list[tuple[str, np.ndarray]
     [('tempering_hv', [False, True])]
     """
     v = get(model)
-    lo, hi, _unit = v.ranges[name]
     x = np.atleast_1d(np.asarray(values, float))
-    bad = np.zeros(x.shape, bool)
-    if lo is not None:
-        bad |= x < lo - 1e-9
-    if hi is not None:
-        bad |= x > hi + 1e-9
+    bad = _outside(x, v.ranges[name])
     if on is not None:
         bad &= np.broadcast_to(np.asarray(on, bool), x.shape)
     if not bad.any():

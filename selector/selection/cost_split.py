@@ -41,15 +41,12 @@ def processing_cost_per_kg(route_family, family=None) -> np.ndarray:
     """
     adders = route_adders()
     fams = np.asarray(route_family, dtype=object).ravel()
-    out = np.empty(len(fams), float)
-    for i, f in enumerate(fams):
-        if f not in adders:
-            raise InputError("route_family", f, f"a route with a cost adder in data/route_costs.csv "
-                                                f"({', '.join(adders)})")
-        out[i] = adders[f]
-    if family is not None:
-        out = relative_cost_per_kg(np.zeros(len(fams)), fams, np.asarray(family, dtype=object).ravel())
-    return out
+    unknown = [f for f in fams if f not in adders]
+    if unknown:
+        raise InputError("route_family", unknown[0], f"a route with a cost adder in data/route_costs.csv "
+                                                     f"({', '.join(adders)})")
+    fam = None if family is None else np.asarray(family, dtype=object).ravel()
+    return relative_cost_per_kg(np.zeros(len(fams)), fams, fam)
 
 
 def split_cost(candidates: pd.DataFrame) -> pd.DataFrame:

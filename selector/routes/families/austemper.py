@@ -70,7 +70,6 @@ from ...models import (bath_quench, conversions, cooling, correlations, phase_ha
                        tempering, transformation, validity)
 from ...models.composition import el
 from ...models.martensite import ih_hrc, martensite_hardness_hrc
-from .. import transformation_curves as _curves
 from ..model_inputs import uses
 from .base import Batch, RouteFamily, product_grid
 from .quench_temper import _by_class, _yield, correlation_class, default_austenitize_c
@@ -532,14 +531,3 @@ class Martemper(_BathRoute):
 
 FAMILIES = [Austemper(), Martemper()]
 
-
-def transformation_curves(comp, temps_c=None, start=0.01, finish=0.99) -> dict:
-    """Isothermal start and finish curves for one composition (see
-    :func:`selector.routes.transformation_curves.transformation_curves`; kept here for the page)."""
-    return _curves.transformation_curves(comp, temps_c, start, finish)
-
-
-def cooling_path(comp, austenitize_c, bath_c, diameter_mm, hold_hours=None, positions=(1.0, 0.0)) -> dict:
-    """Surface and centre temperature paths into the bath (see
-    :func:`selector.routes.transformation_curves.bath_cooling_path`; kept here for the page)."""
-    return _curves.bath_cooling_path(austenitize_c, bath_c, diameter_mm, hold_hours, positions)

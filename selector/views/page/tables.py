@@ -9,7 +9,7 @@ import numpy as np
 import pandas as pd
 
 from selector.views.columns import all_columns_view, default_view
-from selector.views.units import SI, US, display_name, quantity_of, significant, to_display, unit
+from selector.views.units import SI, US, convert_frame, quantity_of, significant, to_display, unit
 
 from .inputs import FIELD_LABELS, route_json
 from .text import mass_unit, case_text, hardness_text, param_label, param_unit, route_line
@@ -107,14 +107,7 @@ def miss_table(misses: pd.DataFrame, system: str) -> pd.DataFrame:
     if "p_meet" in df:
         df["p_meet_pct"] = (100.0 * df["p_meet"].to_numpy(float)).round(1)
         keep.append("p_meet_pct")
-    df = df[keep]
-    rename = {}
-    for c in df.columns:
-        q = quantity_of(c)
-        if q and system == US:
-            df[c] = to_display(df[c].to_numpy(float), q, system)
-            rename[c] = display_name(c, system)
-    return df.rename(columns=rename)
+    return convert_frame(df[keep], system)
 
 
 def pin_stress_table(report: Mapping, system: str) -> pd.DataFrame:
@@ -143,14 +136,7 @@ def sweep_table(sw: pd.DataFrame, system: str) -> pd.DataFrame:
         df["route_text"] = [route_line(json.loads(r) if isinstance(r, str) else r, system)
                             if (r is not None and len(r)) else t
                             for r, t in zip(df["route"], df["route_text"])]
-    df = df[[c for c in SWEEP_SHOWN if c in df]]
-    rename = {}
-    for col in df.columns:
-        q = quantity_of(col)
-        if q and system == US:
-            df[col] = to_display(df[col].to_numpy(float), q, system)
-            rename[col] = display_name(col, system)
-    return df.rename(columns=rename)
+    return convert_frame(df[[c for c in SWEEP_SHOWN if c in df]], system)
 
 
 # --------------------------------------------------------------------------- nearest misses: what can be reached
