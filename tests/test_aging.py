@@ -116,13 +116,16 @@ def _ph_predict(alloy, temp_c, hours):
 
 
 def test_ph_coefficients_equal_what_the_fit_script_produces():
-    # fit convention: the shipped file can never drift from its script (rel 1e-9)
+    # fit convention: the shipped file can never drift from its script.  rel 1e-6: the
+    # least-squares optimum agrees to ~3e-8 between BLAS builds (measured: sigma_i
+    # 642.80293 shipped vs 642.80291 refitted on the 2-core CI machine), far below any
+    # change of data or script, which moves the coefficients by percent
     fit = _fit_script()
     d = fit.fit(fit.load_rows())
     shipped = _csv("fits/aging_ph_coefficients.csv").set_index("coefficient")["value"]
     for name in ag.CONSTANT_NAMES:
-        assert float(shipped[name]) == pytest.approx(d[name], rel=1e-9), name
-    assert ag.ph_coefficients()["s0_mpa"] == pytest.approx(d["s0_mpa"], rel=1e-9)
+        assert float(shipped[name]) == pytest.approx(d[name], rel=1e-6), name
+    assert ag.ph_coefficients()["s0_mpa"] == pytest.approx(d["s0_mpa"], rel=1e-6)
     rows = _csv("fits/aging_ph_rows.csv")
     assert set(zip(rows["grade"], rows["condition"])) == set(
         zip(fit.load_rows()["grade"], fit.load_rows()["condition"]))
