@@ -12,6 +12,7 @@ from __future__ import annotations
 
 import importlib.util
 import math
+import re
 from collections import defaultdict
 from pathlib import Path
 
@@ -148,9 +149,12 @@ def test_reference_values_are_physically_possible(name):
 def test_qt_strength_falls_and_ductility_rises_with_tempering_temperature():
     # Within one source, grade, quench and section, tempering softens martensite: UTS and HB fall,
     # reduction of area rises (ASM Handbook Vol. 4, tempering of steel; no secondary-hardening grades here).
+    # a source that gives several heats of one grade (the NIMS data sheets) is one series per heat:
+    # the heat analysis its note records keeps the heats apart
     groups = defaultdict(list)
     for r in _rows("qt_steels.csv"):
-        groups[(r["source"], r["grade"], r["quench"], r["section_mm"])].append(r)
+        heat = re.search(r"heat analysis (.*?) \(wt %\)", r["note"] or "")
+        groups[(r["source"], r["grade"], r["quench"], r["section_mm"], heat.group(1) if heat else "")].append(r)
     checked = 0
     for key, rows in groups.items():
         rows.sort(key=lambda r: _num(r["temper_temp_c"]))

@@ -580,6 +580,28 @@ def parity_plots(comparisons: pd.DataFrame, out_dir: Path) -> list[Path]:
     return written
 
 
+def worst(compared: pd.DataFrame, n: int = 20) -> pd.DataFrame:
+    """The ``n`` comparisons with the largest error relative to the published value, largest first.
+
+    Ties (two rows with the same published and predicted value, e.g. the H1150M minimums of
+    17-4PH and 15-5PH) are broken by file, line and property with a stable sort, so the
+    listing does not depend on the order the comparisons arrive in.
+
+    Example (two tied rows given in either order come out in file/line order):
+
+    >>> import pandas as pd
+    >>> c = pd.DataFrame({"file": ["b.csv", "a.csv", "a.csv"], "line": [3, 9, 2], "property": ["uts_mpa"] * 3,
+    ...                   "published": [500.0, 500.0, 400.0], "abs_error": [50.0, 50.0, 10.0]})
+    >>> [f"{r.file}:{r.line}" for r in worst(c).itertuples()]
+    ['a.csv:9', 'b.csv:3', 'a.csv:2']
+    >>> [f"{r.file}:{r.line}" for r in worst(c.iloc[::-1]).itertuples()]
+    ['a.csv:9', 'b.csv:3', 'a.csv:2']
+    """
+    w = compared.assign(rel=compared["abs_error"] / compared["published"].abs().clip(lower=1e-9))
+    return w.sort_values(["rel", "file", "line", "property"], ascending=[False, True, True, True],
+                         kind="mergesort").head(n)
+
+
 def render(comparisons: pd.DataFrame, stats: pd.DataFrame, plots: Sequence[Path], out_path: Path,
            sources: Sequence[str] = (), n_worst: int = 20) -> str:
     """The Markdown text of ``docs/validation.md``."""
@@ -699,8 +721,7 @@ def render(comparisons: pd.DataFrame, stats: pd.DataFrame, plots: Sequence[Path]
               "compared); their thresholds apply as soon as they are.", "",
               _md_table(pd.DataFrame(th_rows), {"median limit": "{:g}", "p90 limit": "{:g}"}), ""]
     if not compared.empty:
-        w = compared.assign(rel=compared["abs_error"] / compared["published"].abs().clip(lower=1e-9))
-        w = w.sort_values("rel", ascending=False).head(n_worst)
+        w = worst(compared, n_worst)
         w = w[["case", "grade", "route", "condition", "kind", "property", "published", "predicted", "error",
                "confidence"]].copy()
         w["property"] = [f"{PROPERTIES[p][0]} ({PROPERTIES[p][1]})" for p in w["property"]]
