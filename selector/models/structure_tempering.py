@@ -144,7 +144,7 @@ def mixture_hv(parts: dict, temp_c=None, hours=None, comp=None) -> np.ndarray:
     >>> s = {"C": 0.40, "Mn": 0.80, "Si": 0.25, "Cr": 1.0, "Mo": 0.20}
     >>> p = constituents(s, 100.0, 50.0)
     >>> round(float(mixture_hv(p))), round(float(mixture_hv(p, 540.0, 2.0, s)))
-    (614, 358)
+    (614, 360)
     """
     x_m, x_b, x_fp = parts["x_m"], parts["x_b"], parts["x_fp"]
     hv_m, hv_b, hv_fp = parts["hv_m"], parts["hv_b"], parts["hv_fp"]
