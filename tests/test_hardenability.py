@@ -110,7 +110,7 @@ def test_validity_registration():
 
 
 # --------------------------------------------------------------------------- residual elements (item: real heats)
-CARBON = ("1018", "1020", "1035", "1040", "1045", "1050", "1060", "1080", "1095", "1144")
+CARBON = ("1018", "1020", "1030", "1035", "1040", "1045", "1050", "1060", "1080", "1095", "1137", "1144", "1541")
 # SAE J403 / ASTM A29 note on incidental elements of carbon steels (from memory, as tagged in
 # data/compositions.csv): maxima when not specified
 J403_RESIDUAL_MAX = {"Cu": 0.20, "Ni": 0.20, "Cr": 0.15, "Mo": 0.06}
@@ -143,6 +143,24 @@ def test_residuals_raise_di_by_the_a255_factors():
     assert hd.ideal_critical_diameter_in(heat) < hd.ideal_critical_diameter_in(nominal)
 
 
+# SAE J404 / ASTM A29 note on incidental elements of alloy steels (from memory, as tagged in data/compositions.csv)
+J404_RESIDUAL_MAX = {"Cu": 0.35, "Ni": 0.25, "Cr": 0.20, "Mo": 0.06}
+
+
+def test_carbon_manganese_1340_carries_the_alloy_steel_residual_limits():
+    import selector
+    g = selector.grade("1340")
+    for e, mx in J404_RESIDUAL_MAX.items():
+        # J404 incidental maxima (J404_RESIDUAL_MAX above, from memory), minimum 0
+        assert g.comp_min[e] == 0.0 and g.comp_max[e] == pytest.approx(mx), e
+    nominal = g.composition("nominal")
+    bare = {k: v for k, v in nominal.items() if k not in J404_RESIDUAL_MAX}
+    ratio = hd.ideal_critical_diameter_in(nominal) / hd.ideal_critical_diameter_in(bare)
+    # A255 factor forms at the mid-points Cu 0.175, Ni 0.125, Cr 0.10, Mo 0.03 (hand calculation):
+    # (1 + 0.365*0.175)(1 + 0.363*0.125)(1 + 2.16*0.10)(1 + 3.00*0.03) = 1.4742
+    assert ratio == pytest.approx(1.063875 * 1.045375 * 1.216 * 1.09, rel=1e-3)
+
+
 def test_jominy_curve_honours_the_di_definition_and_keeps_j1():
     # Grossmann 1952 / ASTM A255: the curve reaches the 50 %-martensite hardness at the Jominy
     # distance of the centre of an ideally quenched DI round; J1 stays the initial hardness IH.
@@ -158,3 +176,25 @@ def test_jominy_curve_honours_the_di_definition_and_keeps_j1():
     assert ok.sum() >= 2
     assert np.allclose(h[ok], martensite_hardness_hrc(comp["C"], 50.0)[ok], atol=0.6)
     assert np.allclose(hd.jominy_hardness_hrc(comp, hd.J1_MM), ih_hrc(comp["C"]))
+
+
+
+# --------------------------------------------------------------------------- carbon in austenite
+def test_chromium_keeps_carbon_in_undissolved_carbide():
+    # anchor (from memory: Stickels, Metall. Trans. 5 (1974) 865; Bhadeshia, Prog. Mater. Sci. 57 (2012) 268):
+    # 1 % C - 1.45 % Cr bearing steel hardened from 845 C holds about 0.60 % C in solution
+    assert float(hd.austenite_carbon_pct(1.04, 845.0, 1.45)) == pytest.approx(0.60, abs=1e-9)
+    # no chromium: the Fe-Fe3C Acm line, 0.77 + 53 x 1.34 / 421 = 0.939 % at 780 C (hand calculation)
+    assert float(hd.austenite_carbon_pct(0.965, 780.0)) == pytest.approx(0.9387, abs=1e-4)
+    assert float(hd.austenite_carbon_pct(0.965, 780.0, 0.0)) == pytest.approx(0.9387, abs=1e-4)
+    # hypoeutectoid Cr steels keep all their carbon (4140 at 845 C, 5160 at 800 C)
+    assert float(hd.austenite_carbon_pct(0.40, 845.0, 0.95)) == pytest.approx(0.40)
+    assert float(hd.austenite_carbon_pct(0.60, 800.0, 0.80)) == pytest.approx(0.60)
+    # more chromium holds more carbon in carbide; a hotter austenite dissolves more
+    c = hd.austenite_carbon_pct(1.04, 845.0, np.array([0.0, 0.5, 1.0, 1.5]))
+    assert np.all(np.diff(c) < 0)
+    t = hd.austenite_carbon_pct(1.04, np.array([800.0, 845.0, 900.0]), 1.45)
+    assert np.all(np.diff(t) > 0)
+    # above 2 % Cr (tool and stainless steels) the binary line is kept
+    assert float(hd.austenite_carbon_pct(1.0, 845.0, 5.0)) == pytest.approx(
+        float(hd.austenite_carbon_pct(1.0, 845.0)))

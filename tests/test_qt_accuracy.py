@@ -46,3 +46,19 @@ def test_statistics_in_percent_and_hrc_points():
     assert s["n"] == 2 and s["median_abs"] == pytest.approx(7.5) and s["bias"] == pytest.approx(2.5)
     h = qa.stats(pred, "hardness_hrc", "HRC")
     assert h["n"] == 2 and h["median_abs"] == pytest.approx(1.5) and h["bias"] == pytest.approx(0.5)
+
+
+def test_report_keeps_minimum_rows_apart_from_the_headline_set():
+    # the headline set of docs/validation.md: typical values of carbon and alloy steels; specification
+    # minimums are reported apart (the model estimates typical values, so it should lie above them)
+    pred = pd.DataFrame({"family": ["alloy_steel", "carbon_steel", "alloy_steel", "stainless_martensitic"],
+                         "carbon": ["C < 0.55"] * 4, "kind": ["typical", "typical", "minimum", "typical"],
+                         "uts_mpa_pub": [1000.0, 800.0, 900.0, 700.0], "uts_mpa_pred": [1100.0, 760.0, 1000.0, 700.0]})
+    for p, _ in qa.PROPS[1:]:
+        pred[p + "_pub"], pred[p + "_pred"] = np.nan, np.nan
+    lines = qa.report(pred)
+    head = next(x for x in lines if "all typical" in x)
+    # hand calculation: +10 % and -5 % -> n 2, median |e| 7.5 %, bias +2.5 %
+    assert "n=  2" in head and "median   7.5" in head and "bias  +2.5" in head
+    mins = next(x for x in lines if "minimum rows" in x)
+    assert "n=  1" in mins and "bias +11.1" in mins     # (1000 - 900) / 900 = +11.1 % (hand calculation)

@@ -66,7 +66,8 @@ def test_the_one_ksi_constant():
         rel = path.relative_to(ROOT).as_posix()
         if rel == "selector/models/conversions.py" or rel in pending:
             continue
-        if re.search(r"\b6\.89\d*", path.read_text(encoding="utf-8")):
+        # a percentage (a measured figure in a generated comment, "6.89 %") is not the factor
+        if re.search(r"\b6\.89\d*(?!\d|\s*%)", path.read_text(encoding="utf-8")):
             found.append(rel)
     assert found == []
 

@@ -144,7 +144,7 @@ def mixture_hv(parts: dict, temp_c=None, hours=None, comp=None) -> np.ndarray:
     >>> s = {"C": 0.40, "Mn": 0.80, "Si": 0.25, "Cr": 1.0, "Mo": 0.20}
     >>> p = constituents(s, 100.0, 50.0)
     >>> round(float(mixture_hv(p))), round(float(mixture_hv(p, 540.0, 2.0, s)))
-    (614, 358)
+    (614, 360)
     """
     x_m, x_b, x_fp = parts["x_m"], parts["x_b"], parts["x_fp"]
     hv_m, hv_b, hv_fp = parts["hv_m"], parts["hv_b"], parts["hv_fp"]
@@ -167,3 +167,75 @@ def mixture_hv(parts: dict, temp_c=None, hours=None, comp=None) -> np.ndarray:
     hv_tb = np.minimum(np.minimum(hv_b, hv_tb), hv_tm)
     tempered = x_m * hv_tm + x_b * hv_tb + x_fp * hv_tfp
     return np.where(ok, np.minimum(tempered, aq), aq)
+
+
+#: hardness of cementite, HV (about 1000-1100 HV measured on bulk Fe3C: K. Umemoto, Z.G. Liu, K.
+#: Tsuchiya et al., Mater. Sci. Technol. 17 (2001) 505; from memory)
+CEMENTITE_HV = 1050.0
+#: carbon of cementite Fe3C, wt % (stoichiometry)
+CEMENTITE_C_PCT = 6.67
+
+
+def undissolved_carbide_fraction(c_steel_pct, c_austenite_pct):
+    """Mass fraction of cementite left undissolved when a hypereutectoid steel is hardened from
+    between Ac1 and Acm (lever rule between the carbon in austenite and Fe3C).
+
+        f = (C_steel − C_γ) / (6.67 − C_γ),  0 where C_γ ≥ C_steel
+
+    Parameters
+    ----------
+    c_steel_pct, c_austenite_pct : array_like
+        Carbon of the steel and carbon in austenite at the hardening temperature, wt %
+        (:func:`selector.models.hardenability.austenite_carbon_pct`).
+
+    Returns
+    -------
+    ndarray, mass fraction (about the volume fraction: densities within 2 %).
+
+    References
+    ----------
+    Lever rule on the Fe–Fe3C diagram (common practice).
+
+    Example (from the source: the lever rule, 1.04 % C steel with 0.60 % C in austenite:
+    (1.04 − 0.60) / (6.67 − 0.60) = 0.0725 (hand evaluation))
+
+    >>> round(float(undissolved_carbide_fraction(1.04, 0.60)), 4)
+    0.0725
+    """
+    c = np.asarray(c_steel_pct, float)
+    ca = np.asarray(c_austenite_pct, float)
+    if np.any(c < 0) or np.any(ca < 0):
+        raise InputError("C", c_steel_pct, "carbon >= 0 wt %")
+    return np.clip((c - ca) / (CEMENTITE_C_PCT - ca), 0.0, 1.0)
+
+
+def with_undissolved_carbide_hv(hardness_hv, carbide_fraction):
+    """Hardness of a matrix holding undissolved cementite, by the linear mixture rule of
+    Maynier, Jungmann & Dollet (1978) extended to the carbide:
+
+        HV = (1 − f)·HV_matrix + f·HV_Fe3C,   HV_Fe3C = 1050 (Umemoto et al. 2001, from memory)
+
+    Parameters
+    ----------
+    hardness_hv : array_like
+        Hardness of the matrix (quenched or tempered structure), HV.
+    carbide_fraction : array_like
+        Undissolved carbide fraction (:func:`undissolved_carbide_fraction`).
+
+    Returns
+    -------
+    ndarray, HV (the matrix hardness where the fraction is 0).
+
+    References
+    ----------
+    Maynier, Jungmann & Dollet (1978) (linear mixture rule); K. Umemoto et al., Mater. Sci.
+    Technol. 17 (2001) 505 (hardness of cementite; from memory).
+
+    Example (from the source: the linear mixture rule, 7 % carbide in a 600 HV matrix:
+    0.93 × 600 + 0.07 × 1050 = 631.5 HV (hand evaluation; carbide hardness from memory))
+
+    >>> round(float(with_undissolved_carbide_hv(600.0, 0.07)), 1)
+    631.5
+    """
+    f = np.asarray(carbide_fraction, float)
+    return (1.0 - f) * np.asarray(hardness_hv, float) + f * CEMENTITE_HV

@@ -33,7 +33,7 @@ those elements act through carbon and hardenability only; a carbon term in max(P
 instead of C·s scored slightly better (1.91 against 2.07 HRC) but extrapolates to
 60.5 HRC for 0.85 % C tempered at 175 °C, below the 62–64 HRC of high-carbon martensite
 after such a temper (from memory), so C·s is kept.  Mo, V and Cr are
-held at the top of the fitted range (0.25 % Mo, 0.15 % V, 0.95 % Cr) so the curve always softens
+held at the top of the fitted range (0.25 % Mo, 0.15 % V, 1.05 % Cr) so the curve always softens
 with P; tool steels with secondary hardening are outside the model.
 
 The hardness of a partly martensitic structure after tempering is the mixture rule
@@ -74,7 +74,7 @@ C_INTERCEPT, C_SLOPE, C_RANGE = 21.3, 5.8, (15.0, 21.3)
 #: P/1000 from which the Mo and V terms act (chosen by leave-one-grade-out error)
 P_ALLOY_ONSET = 12.0
 #: Mo, V and Cr are held at these values (top of the fitted data) in the fit's alloy terms
-MO_MAX, V_MAX, CR_MAX = 0.25, 0.15, 0.95
+MO_MAX, V_MAX, CR_MAX = 0.25, 0.15, 1.05
 #: lowest hardness returned for tempered martensite, HV (spheroidized low-carbon
 #: steel is about 120-150 HV: common practice)
 HV_FLOOR = 120.0
@@ -267,7 +267,7 @@ def surface_hv(coef, c, mo, v, p, cr=0.0):
     Example (illustrative: a value of this implementation, not a published one)
 
     >>> round(float(surface_hv(coefficients(), 0.40, 0.20, 0.0, 16000.0)))
-    314"""
+    313"""
     hv = tempering_features(c, mo, v, p, cr) @ np.asarray(coef, float)
     cap = conversions.hrc_to_hv(martensite_hardness_hrc(c, 99.9))
     return np.clip(hv, HV_FLOOR, cap)
@@ -340,7 +340,7 @@ def tempered_martensite_hv(comp, temp_c, hours):
     Validity
     --------
     Registered as ``tempering_hv``: the span of the fitted rows (C 0.30–0.60 %,
-    P/1000 8.7–18.3, Mn 0.5–1.75, Si ≤ 2.0, Ni ≤ 1.83, Cr ≤ 0.95, Mo ≤ 0.25, V ≤ 0.15 %;
+    P/1000 8.7–18.3, Mn 0.5–1.75, Si ≤ 2.0, Ni ≤ 1.83, Cr ≤ 1.05, Mo ≤ 0.25, V ≤ 0.15 %;
     :func:`fitted_range`), and ``hollomon_jaffe``.  The route checks both
     (:func:`check_validity`) and warns outside.
 

@@ -209,7 +209,7 @@ def as_quenched_profile(comp, quench, agitation="moderate", diameter_mm=None, th
     # carbon in austenite: the steel's carbon, or for hypereutectoid steels what the Acm line lets
     # the austenite hold at t0 (hardenability.austenite_carbon_pct; the fallback above 0.70 % C)
     c_steel = el(comp1, "C") * np.ones(n)
-    c = hardenability.austenite_carbon_pct(c_steel, t0)
+    c = hardenability.austenite_carbon_pct(c_steel, t0, el(comp1, "Cr") * np.ones(n))
     comp_aus = dict(comp1, C=c)
     di = np.asarray(hardenability.di_mm(comp_aus, g), float) * np.ones(n)
     # bar-to-Jominy equivalence on the chart-anchored effective rate (cooling.jominy_rate_factor)

@@ -93,9 +93,16 @@ def through_harden(batch: Batch, quench, agitation, austenitize_c, temper_temp_c
         # structure-aware tempering (models/structure_tempering.py): the chain's martensite
         # fraction, Maynier bainite / ferrite-pearlite at the local cooling rate, each
         # constituent tempered by its own law; never above the as-quenched hardness reported
+        # the martensite tempers with the carbon it holds: the carbon in austenite (below the steel's
+        # where carbides stay undissolved, hypereutectoid steels; hardenability.austenite_carbon_pct)
         c2 = {k: np.asarray(v, float)[:, None] for k, v in comp.items()}
+        c2["C"] = np.broadcast_to(np.asarray(prof["austenite_carbon_pct"], float), (batch.n,))[:, None]
         parts = structure_tempering.constituents(c2, mart, np.asarray(prof["cooling_rate_c_s"], float))
         tt = structure_tempering.mixture_hv(parts, t[:, None], np.where(np.isfinite(h), h, 1.0)[:, None], c2)
+        # a hypereutectoid steel keeps undissolved cementite: linear mixture with its hardness
+        f_carb = structure_tempering.undissolved_carbide_fraction(
+            np.broadcast_to(el(comp, "C"), (batch.n,))[:, None], c2["C"])
+        tt = structure_tempering.with_undissolved_carbide_hv(tt, f_carb)
         hv_t = np.where(tempered[:, None], np.minimum(tt, hv_aq), hv_aq)
     where = tension_test_position(batch.section_mm)
     non_m = 100.0 - at_position(mart, pos, where)
@@ -136,7 +143,7 @@ def core_model_inputs(prof: dict, comp, pos, where, temper_temp_c, temper_hours,
     n = t.shape[0]
     tempered = np.isfinite(t)
     h = np.where(np.isfinite(np.asarray(temper_hours, float)), temper_hours, 1.0)
-    c_hj = np.broadcast_to(el(comp, "C"), (n,))
+    c_hj = np.broadcast_to(np.asarray(prof["austenite_carbon_pct"], float), (n,))
     t1 = np.where(tempered, t, 200.0)
     at = lambda key: at_position(np.asarray(prof[key], float), pos, where)  # noqa: E731
     one = lambda key: np.broadcast_to(np.asarray(prof[key], float), (n,))  # noqa: E731
@@ -152,6 +159,7 @@ def core_model_inputs(prof: dict, comp, pos, where, temper_temp_c, temper_hours,
         "a255_carbon_pct": np.where(c_steel <= hardenability.A255_C_MAX + 1e-9, c_steel, np.nan),
         "fallback_carbon_pct": np.where(c_steel > hardenability.A255_C_MAX + 1e-9, c_steel, np.nan),
         "austenite_carbon_pct": one("austenite_carbon_pct"),
+        "tempering_carbon_pct": c_hj,
         "martensite_pct": at("martensite_pct"),
         "core_temper_c": np.where(tempered, t, np.nan), "core_temper_hours": np.where(tempered, h, np.nan),
         "P_1000": np.where(tempered, tempering.hollomon_jaffe_parameter(
@@ -180,8 +188,10 @@ HARDENING_INPUTS = (
 #: tempering of the core's structure (structure_tempering: Hollomon-Jaffe master surface for the
 #: martensite; Maynier et al. and Li et al. for the non-martensitic products)
 TEMPERING_INPUTS = (
-    uses("hollomon_jaffe", "C", temp_c="core_temper_c", hours="core_temper_hours", where=("core", "core_tempered"))
-    + uses("tempering_hv", *tempering.ALLOY_CHECKED, "P_1000", where=("core", "core_tempered"))
+    uses("hollomon_jaffe", C="tempering_carbon_pct", temp_c="core_temper_c", hours="core_temper_hours",
+         where=("core", "core_tempered"))
+    + uses("tempering_hv", *tempering.ALLOY_CHECKED[1:], "P_1000", C="tempering_carbon_pct",
+           where=("core", "core_tempered"))
     + uses("maynier_1978", "C", "Si", "Mn", "Ni", "Cr", "Mo", "V", where=("core", "core_mixed_tempered"))
     + uses("li_1998", "C", "Mn", "Ni", "Cr", "Mo", where=("core", "core_mixed_tempered"))
 )
