@@ -76,6 +76,15 @@ READ = {
     "2014": ((27 * KSI, 14 * KSI, 18, 45), 3.5),
     "2024": ((27 * KSI, 11 * KSI, 20, 47), 3.5),
     "3003": ((16 * KSI, 6 * KSI, 30, 28), 3.5),
+    # textbook appendix table of carbon and alloy steel properties (from the ASM Metals Handbook), scribd 403205949:
+    # AISI 1020 annealed 60 ksi / 414 MPa, 43 ksi / 296 MPa, 38 %, 121 HB
+    "1020": ((414, 296, 38.0, 121), 1.0),
+    # kmac-distribution.com 316L data sheet: 81 200 psi, 34 100 psi, 55 %, 146 HB
+    "316L": ((81.2 * KSI, 34.1 * KSI, 55, 146), 1.0),
+    # rolledmetalproducts.com martensitic table, annealed bar: 420 95 / 50 ksi, 25 %, B92; 440C 110 / 65 ksi, 14 %, B97
+    # (no Brinell value); 440C 758 / 448 MPa also at nickelalloys.in
+    "420": ((655, 345, 25, None), 1.0),
+    "440C": ((758, 448, 14, None), 1.0),
 }
 
 
