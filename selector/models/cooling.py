@@ -254,27 +254,35 @@ def _rate_table(kind: str, positions: tuple):
     return np.log(np.maximum(out, 1e-300))
 
 
-def _interp_table(kind, bi, theta_star, positions):
-    """Table rate at each position; ``bi`` is per state (...) or per state and position (..., n_pos)."""
+def _interp_table(kind, bi, theta_star, positions, log10_bi=None):
+    """Table rate at each position; ``bi`` is per state (...) or per state and position (..., n_pos);
+    or give ``log10_bi`` (..., n_pos) directly."""
     tab = _rate_table(kind, tuple(float(p) for p in positions))   # (nb, nt, npos)
     npos = len(positions)
     tt = np.clip(np.asarray(theta_star, float), _THETA_GRID[0], _THETA_GRID[-1])
-    bi = np.asarray(bi, float)
-    if bi.ndim == tt.ndim:
-        bi = bi[..., None]
-    bi = np.broadcast_to(bi, tt.shape + (npos,))
-    lb = np.log10(np.clip(bi, _BI_GRID[0], _BI_GRID[-1]))
+    if log10_bi is None:
+        bi = np.asarray(bi, float)
+        if bi.ndim == tt.ndim:
+            bi = bi[..., None]
+        with np.errstate(divide="ignore"):
+            log10_bi = np.log10(bi)
     gb = np.log10(_BI_GRID)
+    lb = np.clip(np.broadcast_to(log10_bi, tt.shape + (npos,)), gb[0], gb[-1])
     fb = (lb - gb[0]) / (gb[1] - gb[0])
     ib = np.clip(np.floor(fb).astype(int), 0, len(gb) - 2)
     wb = fb - ib
     ft = (tt - _THETA_GRID[0]) / (_THETA_GRID[1] - _THETA_GRID[0])
     it0 = np.clip(np.floor(ft).astype(int), 0, len(_THETA_GRID) - 2)
-    it, wt = it0[..., None], (ft - it0)[..., None]
-    p = np.arange(npos)
-    v = ((1 - wb) * (1 - wt) * tab[ib, it, p] + wb * (1 - wt) * tab[ib + 1, it, p]
-         + (1 - wb) * wt * tab[ib, it + 1, p] + wb * wt * tab[ib + 1, it + 1, p])
-    return np.exp(v)
+    wt = (ft - it0)[..., None]
+    # flat indices into the C-ordered table: one np.take per corner
+    nt = len(_THETA_GRID)
+    k00 = (ib * nt + it0[..., None]) * npos + np.arange(npos)
+    flat = tab.reshape(-1)
+    step_b, step_t = nt * npos, npos
+    v00, v10 = np.take(flat, k00), np.take(flat, k00 + step_b)
+    v01, v11 = np.take(flat, k00 + step_t), np.take(flat, k00 + step_b + step_t)
+    lo = v00 + wb * (v10 - v00)
+    return np.exp(lo + wt * (v01 + wb * (v11 - v01) - lo))
 
 
 # --------------------------------------------------------------------------- public API
@@ -476,11 +484,18 @@ def cooling_rate_at_c_s(h_w_m2k, diameter_mm=None, thickness_mm=None, positions=
                                                  np.asarray(peak_depth_mm, float))
     xi = np.asarray(positions, float)
     depth = (1.0 - xi) * half[..., None] * 1e3                            # mm below the surface
-    bi_pos = boiling_biot(bi[..., None], depth, m[..., None], delta[..., None])
     if exact:
+        bi_pos = boiling_biot(bi[..., None], depth, m[..., None], delta[..., None])
         _f0, g = _crossing(kind, bi_pos, xi, ts[..., None])
     else:
-        g = _interp_table(kind, bi_pos, ts, positions)
+        if np.any(~np.isfinite(m)) or np.any(m < 1.0):
+            raise InputError("peak_ratio", peak_ratio, "finite ratios >= 1")
+        if np.any(~np.isfinite(delta)) or np.any(delta <= 0):
+            raise InputError("peak_depth_mm", peak_depth_mm, "finite depths > 0 mm")
+        # the same Bi_local in log space (one exp instead of a power and a logarithm per position)
+        with np.errstate(divide="ignore"):
+            lg = np.log10(bi)[..., None] + np.exp(-depth / delta[..., None]) * np.log10(m)[..., None]
+        g = _interp_table(kind, None, ts, positions, log10_bi=lg)
     return ((t0 - tb)[..., None] * alpha / half[..., None] ** 2) * g
 
 
