@@ -295,3 +295,18 @@ def test_martensite_from_hardness_is_continuous_at_50_percent():
     hv = 250.0
     from selector.models import conversions
     assert float(martensite_pct_from_hardness(0.45, float(conversions.hv_to_hrc(hv)), hv)) == pytest.approx(0.0, abs=0.5)
+
+
+def test_plate_positions_each_their_own_distance_and_thin_plate_hardens_through():
+    # a 20 mm plate in oil: surface, x/L = 0.75, 0.5 and the mid-plane in increasing Jominy
+    # distance; the surface lies in the boiling stage's depth (cooling.boiling_biot)
+    r = qr.as_quenched_profile(S4140, "oil", "moderate", thickness_mm=20.0, positions=(1.0, 0.75, 0.5, 0.0))
+    j = r["jominy_mm"][0]
+    assert np.all(np.diff(j) > 0.2)
+    # a plate cools more slowly than a round bar of the same size (one face pair against the whole
+    # circumference; Carslaw & Jaeger: the plate's first eigenvalue is the smaller), centre to centre
+    bar = qr.as_quenched_profile(S4140, "oil", "moderate", diameter_mm=20.0, positions=(1.0, 0.75, 0.5, 0.0))
+    assert j[-1] > bar["jominy_mm"][0, -1]
+    # a 3 mm plate hardens through like the first Jominy positions (ASTM A255 J1-J2: 1.6-3.2 mm)
+    thin = qr.as_quenched_profile(S4140, "oil", "moderate", thickness_mm=3.0)
+    assert np.all(thin["jominy_mm"][0] < 3.2)
