@@ -101,3 +101,11 @@ def test_boiling_peak_of_liquids_and_not_of_air():
     assert np.allclose(m, [qs.boiling_peak(x, "mild")[0] for x in q])
     with pytest.raises(InputError):
         qs.boiling_peak("mercury", "none")
+
+
+def test_agitated_water_against_a_measured_severity():
+    # Water in a draft tube at 6 ft/s (1.8 m/s) on a 2-in 8620 bar: H = 1.45 in^-1 by the Kern
+    # method and by hardness-profile matching (ASM Heat Treating 2021 proceedings, "quench
+    # severity ... Kern methodology", abstract at dl.asminternational.org, HT 2021 p. 79).  A flow
+    # of that order is between the table's "moderate" and "strong" water agitation.
+    assert qs.grossmann_h_per_in("water", "moderate") <= 1.45 <= qs.grossmann_h_per_in("water", "strong")
