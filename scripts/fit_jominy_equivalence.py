@@ -10,6 +10,8 @@ one effective factor F multiplies the conduction rate before the Jominy table is
 
     J(bar point) = J_table(F * rate_conduction(H, D, r/R))
 
+(rate_conduction with each point at its boiling-stage Biot number, ``cooling.boiling_biot``; at the bar
+centres of the fit rows the boiling stage changes the rate by under 1 %).
 (equivalently an effective diffusivity F * alpha at fixed Biot number).  F is the least-squares fit,
 in log distance, to the readings of ``data/reference/jominy_equivalence_charts.csv`` with role ``fit``;
 rows with role ``check`` are never used.
@@ -49,6 +51,7 @@ def load_charts():
 
     schema = Schema((
         Column("chart"), Column("h_per_in", "float", allow_blank=True, lo=0.01, hi=10.0),
+        Column("quench", allow_blank=True),
         Column("diameter_mm", "float", lo=1.0, hi=500.0), Column("position_r_r", "float", lo=0.0, hi=1.0),
         Column("jominy_mm", "float", lo=1.0, hi=100.0), Column("tolerance_mm", "float", lo=0.0, hi=20.0),
         Column("role", "choice", choices=("fit", "check")), Column("kind"), Column("table"), Column("source"),
@@ -57,10 +60,15 @@ def load_charts():
 
 
 def conduction_rates_c_s(table) -> np.ndarray:
-    """Conduction-model cooling rate at 700 C of each chart point (F = 1)."""
-    from selector.models import cooling
+    """Conduction-model cooling rate at 700 C of each chart point (F = 1), each point at its
+    boiling-stage Biot number (``cooling.boiling_biot`` with the chart quench's ``quench_severity.boiling_peak``;
+    ratio 1 for the ideal quench)."""
+    from selector.models import cooling, quench_severity
 
     h_in = table["h_per_in"].to_numpy(float)
+    peak = []
+    for q in table["quench"].fillna("").astype(str):
+        peak.append(quench_severity.boiling_peak(*q.split("/")) if q else (1.0, 4.0))
     d = table["diameter_mm"].to_numpy(float)
     pos = table["position_r_r"].to_numpy(float)
     ideal = ~np.isfinite(h_in)
@@ -70,7 +78,7 @@ def conduction_rates_c_s(table) -> np.ndarray:
     for i in range(len(d)):         # a handful of rows: one exact series evaluation each
         out[i] = float(np.asarray(cooling.cooling_rate_at_c_s(
             h_w[i], diameter_mm=d[i], positions=(float(pos[i]),), austenitize_c=AUSTENITIZE_C,
-            bath_c=BATH_C, exact=True)).ravel()[0])
+            bath_c=BATH_C, exact=True, peak_ratio=peak[i][0], peak_depth_mm=peak[i][1])).ravel()[0])
     return out
 
 

@@ -76,12 +76,19 @@ def test_each_radius_has_its_own_jominy_distance():
 def test_thin_strip_cools_like_the_lumped_limit():
     # A 1.5 mm strip has Bi = hL/k << 0.1: the exact series tends to the lumped-capacitance limit
     # rate = h (T - Tb) / (rho c L) (Incropera & DeWitt, section 5.1, a textbook identity), then x F.
+    # The whole strip lies within the boiling stage's depth (0.75 mm << 4 mm): h is the surface
+    # coefficient of that stage, M x 2kH at the surface (cooling.boiling_biot); the mid-plane,
+    # 0.75 mm deep, sees M ** exp(-0.75/4) of it.
     from selector.models import cooling, quench_severity as qs
     r = qr.as_quenched_profile(S4140, "oil", "moderate", thickness_mm=1.5, austenitize_c=850.0)
     h = qs.heat_transfer_coefficient_w_m2k(qs.grossmann_h_per_in("oil", "moderate"))
+    m, delta = qs.boiling_peak("oil", "moderate")
     lumped = h * (700.0 - cooling.BATH_C) / (cooling.RHO_C_J_M3K * 0.75e-3)
-    assert r["conduction_rate_c_s"][0, 0] == pytest.approx(lumped, rel=0.03)
-    assert r["conduction_rate_c_s"][0, -1] == pytest.approx(lumped, rel=0.03)
+    assert r["conduction_rate_c_s"][0, 0] == pytest.approx(m * lumped, rel=0.03)
+    assert r["conduction_rate_c_s"][0, -1] == pytest.approx(m ** np.exp(-0.75 / delta) * lumped, rel=0.03)
+    # and with the constant-h series (no boiling stage) the lumped limit itself
+    plain = cooling.cooling_rate_at_c_s(h, thickness_mm=1.5, positions=(1.0, 0.0), austenitize_c=850.0)
+    assert np.allclose(plain, lumped, rtol=0.03)
     # a strip that thin hardens like the first Jominy positions, not like J 3.5 mm
     # ASTM A255: the first Jominy positions, J1-J2 (1.6-3.2 mm) from the quenched end
     assert r["jominy_mm"][0, -1] < 3.0
@@ -250,7 +257,9 @@ def test_partly_hardened_fraction_read_against_the_products_hardness():
     comp = {k: float(v) for k, v in grade("1045").composition().items()}
     p = qr.as_quenched_profile(comp, "water", diameter_mm=25.4)
     m = p["martensite_pct"][0]
-    assert np.all(m[1:] < 50.0) and np.all(m[1:] > 20.0)     # partly hardened, not "no martensite"
+    # mid-radius to centre partly hardened, not "no martensite" (the outer 3 mm, inside the boiling
+    # stage's depth, is mostly martensite)
+    assert np.all(m[2:] < 50.0) and np.all(m[2:] > 20.0)
     parts = st.constituents({k: np.array([[v]]) for k, v in comp.items()}, p["martensite_pct"],
                             p["cooling_rate_c_s"])
     below = p["martensite_pct"] < 50.0
@@ -286,3 +295,18 @@ def test_martensite_from_hardness_is_continuous_at_50_percent():
     hv = 250.0
     from selector.models import conversions
     assert float(martensite_pct_from_hardness(0.45, float(conversions.hv_to_hrc(hv)), hv)) == pytest.approx(0.0, abs=0.5)
+
+
+def test_plate_positions_each_their_own_distance_and_thin_plate_hardens_through():
+    # a 20 mm plate in oil: surface, x/L = 0.75, 0.5 and the mid-plane in increasing Jominy
+    # distance; the surface lies in the boiling stage's depth (cooling.boiling_biot)
+    r = qr.as_quenched_profile(S4140, "oil", "moderate", thickness_mm=20.0, positions=(1.0, 0.75, 0.5, 0.0))
+    j = r["jominy_mm"][0]
+    assert np.all(np.diff(j) > 0.2)
+    # a plate cools more slowly than a round bar of the same size (one face pair against the whole
+    # circumference; Carslaw & Jaeger: the plate's first eigenvalue is the smaller), centre to centre
+    bar = qr.as_quenched_profile(S4140, "oil", "moderate", diameter_mm=20.0, positions=(1.0, 0.75, 0.5, 0.0))
+    assert j[-1] > bar["jominy_mm"][0, -1]
+    # a 3 mm plate hardens through like the first Jominy positions (ASTM A255 J1-J2: 1.6-3.2 mm)
+    thin = qr.as_quenched_profile(S4140, "oil", "moderate", thickness_mm=3.0)
+    assert np.all(thin["jominy_mm"][0] < 3.2)

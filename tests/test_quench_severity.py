@@ -87,3 +87,25 @@ def test_still_media_agree_with_the_chart_curves_the_cooling_is_anchored_on():
     # "still water (H = 1)" and "still oil (H = 0.3)": the table's unagitated rows are within 10 %
     assert qs.grossmann_h_per_in("water", "none") == pytest.approx(1.0, rel=0.10)
     assert qs.grossmann_h_per_in("oil", "none") == pytest.approx(0.3, rel=0.10)
+
+
+def test_boiling_peak_of_liquids_and_not_of_air():
+    # liquids have a nucleate-boiling stage whose coefficient exceeds the effective 2kH (Totten,
+    # Bates & Clinton 1993, ch. 3, from memory); air has none
+    for medium in ("water", "oil", "polymer", "brine"):
+        m, d = qs.boiling_peak(medium, "moderate")
+        assert m > 1.0 and d > 0.0
+    assert qs.boiling_peak("air", "none")[0] == 1.0
+    q = np.array(["oil", "air", "water"], dtype=object)
+    m, d = qs.boiling_peak(q, "mild")
+    assert np.allclose(m, [qs.boiling_peak(x, "mild")[0] for x in q])
+    with pytest.raises(InputError):
+        qs.boiling_peak("mercury", "none")
+
+
+def test_agitated_water_against_a_measured_severity():
+    # Water in a draft tube at 6 ft/s (1.8 m/s) on a 2-in 8620 bar: H = 1.45 in^-1 by the Kern
+    # method and by hardness-profile matching (ASM Heat Treating 2021 proceedings, "quench
+    # severity ... Kern methodology", abstract at dl.asminternational.org, HT 2021 p. 79).  A flow
+    # of that order is between the table's "moderate" and "strong" water agitation.
+    assert qs.grossmann_h_per_in("water", "moderate") <= 1.45 <= qs.grossmann_h_per_in("water", "strong")

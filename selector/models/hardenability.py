@@ -468,7 +468,7 @@ def di_distance_scale(c_pct, di_mm_value):
     Example (illustrative: a value of this implementation, not a published one)
 
     >>> round(float(di_distance_scale(0.40, 100.0)), 3)
-    0.976
+    0.975
     """
     c, di = np.broadcast_arrays(np.asarray(c_pct, float), np.asarray(di_mm_value, float))
     j50 = j50_mm(c, di)

@@ -52,6 +52,8 @@ _SCHEMA = Schema((
     Column("h_min_per_in", "float", lo=0.0, hi=10.0),
     Column("h_max_per_in", "float", lo=0.0, hi=10.0),
     Column("h_per_in", "float", lo=0.001, hi=10.0),
+    Column("peak_ratio", "float", lo=1.0, hi=10.0),
+    Column("peak_depth_mm", "float", lo=0.1, hi=50.0),
     Column("note", allow_blank=True),
     Column("source"),
     Column("confidence", "choice", choices=("verified", "partial", "from memory", "common practice", "demo")),
@@ -60,14 +62,31 @@ _SCHEMA = Schema((
 
 
 @functools.cache
-def _table() -> dict:
+def _table(column: str = "h_per_in") -> dict:
     t = read_table("quench_severity.csv", schema=_SCHEMA)
-    out = {(m, a): float(h) for m, a, h in zip(t["medium"], t["agitation"], t["h_per_in"])}
+    out = {(m, a): float(h) for m, a, h in zip(t["medium"], t["agitation"], t[column])}
     missing = [(m, a) for m in MEDIA for a in AGITATIONS if (m, a) not in out]
     if missing:
         raise DataFileError("quench_severity.csv", None, "medium",
                             f"no row for {missing[0][0]!r} with agitation {missing[0][1]!r}")
     return out
+
+
+def _column(column: str, quench, agitation):
+    """One column of the table for a medium and agitation (scalars or broadcast arrays)."""
+    tab = _table(column)
+    if isinstance(quench, str) and isinstance(agitation, str):
+        check_choice("quench", quench, MEDIA)
+        check_choice("agitation", agitation, AGITATIONS)
+        return tab[(quench, agitation)]
+    q = np.asarray(quench, dtype=object)
+    a = np.asarray(agitation, dtype=object)
+    q, a = np.broadcast_arrays(q, a)
+    # one sorted look-up per array (no np.unique over the states): index, then check the match
+    qi = _lookup_index("quench", q, MEDIA)
+    ai = _lookup_index("agitation", a, AGITATIONS)
+    grid = np.array([[tab[(m, g)] for g in sorted(AGITATIONS)] for m in sorted(MEDIA)])
+    return grid[qi, ai]
 
 
 def table_rows():
@@ -130,19 +149,48 @@ def grossmann_h_per_in(quench, agitation="moderate"):
     >>> float(grossmann_h_per_in("oil", "moderate"))
     0.375
     """
-    tab = _table()
-    if isinstance(quench, str) and isinstance(agitation, str):
-        check_choice("quench", quench, MEDIA)
-        check_choice("agitation", agitation, AGITATIONS)
-        return tab[(quench, agitation)]
-    q = np.asarray(quench, dtype=object)
-    a = np.asarray(agitation, dtype=object)
-    q, a = np.broadcast_arrays(q, a)
-    # one sorted look-up per array (no np.unique over the states): index, then check the match
-    qi = _lookup_index("quench", q, MEDIA)
-    ai = _lookup_index("agitation", a, AGITATIONS)
-    grid = np.array([[tab[(m, g)] for g in sorted(AGITATIONS)] for m in sorted(MEDIA)])
-    return grid[qi, ai]
+    return _column("h_per_in", quench, agitation)
+
+
+def boiling_peak(quench, agitation="moderate"):
+    """Nucleate-boiling stage of a liquid quench: peak-to-effective ratio of the surface
+    heat-transfer coefficient and the depth over which that stage governs the cooling at 700 °C.
+
+    The Grossmann H of a liquid is an effective value, fitted to where 50 % martensite lies in
+    quenched bar series, so to the cooling of the interior.  The surface of a part passes
+    700 °C within the first seconds of the quench, in the nucleate-boiling stage, where the
+    heat-transfer coefficient is several times the effective 2kH (boiling curves of quench
+    oils and water: Totten, Bates & Clinton 1993, ch. 3); air has no boiling stage.  Values
+    from ``data/quench_severity.csv`` (``peak_ratio``, ``peak_depth_mm``; from memory), used by
+    :func:`selector.models.cooling.boiling_biot`.
+
+    Parameters
+    ----------
+    quench, agitation : str or array_like of str
+        As :func:`grossmann_h_per_in`.
+
+    Returns
+    -------
+    (peak_ratio, peak_depth_mm) : floats or ndarrays
+        Ratio (dimensionless, >= 1) and depth (mm).
+
+    Raises
+    ------
+    InputError
+        Unknown medium or agitation.
+
+    References
+    ----------
+    G.E. Totten, C.E. Bates, N.A. Clinton, *Handbook of Quenchants and Quenching
+    Technology*, ASM International 1993, ch. 3 (boiling stages and heat-transfer
+    coefficients of quenchants), values from memory.
+
+    Example (illustrative: the shipped from-memory values, oil and still air)
+
+    >>> [float(x) for x in boiling_peak("oil", "moderate")], float(boiling_peak("air", "none")[0])
+    ([3.0, 4.0], 1.0)
+    """
+    return _column("peak_ratio", quench, agitation), _column("peak_depth_mm", quench, agitation)
 
 
 def heat_transfer_coefficient_w_m2k(h_per_in, conductivity_w_mk=K_STEEL_W_MK):

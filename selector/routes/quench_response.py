@@ -3,10 +3,14 @@
 Chain (each step its own published model):
 
 1. Grossmann severity H of the medium and agitation (:mod:`selector.models.quench_severity`)
-   → surface heat-transfer coefficient h = 2kH;
+   → surface heat-transfer coefficient h = 2kH, and for a boiling liquid the ratio of its
+   nucleate-boiling coefficient to 2kH;
 2. transient conduction in the round bar or plate from the austenitizing temperature
    into a 40 °C bath (:mod:`selector.models.cooling`, Fourier–Bessel series) → cooling
-   rate at 700 °C at each position r/R;
+   rate at 700 °C at each position r/R, each position at its own Biot number
+   (:func:`selector.models.cooling.boiling_biot`: the outer millimetres pass 700 °C while
+   the surface boils, the interior under the effective H), so surface, 3/4 radius,
+   mid-radius and centre each get their own Jominy-equivalent distance;
 3. the Jominy distance that cools at the same rate (Jominy cooling-rate table);
 4. the ASTM A255 Jominy curve of the composition at that distance
    (:mod:`selector.models.hardenability`: IH(C) / DF(DI, d)) → as-quenched HRC;
@@ -130,7 +134,8 @@ def as_quenched_profile(comp, quench, agitation="moderate", diameter_mm=None, th
         ``positions`` (n_pos,); ``hardness_hrc``, ``hardness_hv``, ``martensite_pct``,
         ``jominy_mm``, ``cooling_rate_c_s`` (n, n_pos: the effective rate at 700 °C, conduction
         rate × the chart-anchored factor of :func:`cooling.jominy_rate_factor`, the rate the Jominy
-        table is read with), ``conduction_rate_c_s`` (n, n_pos: the constant-property series alone);
+        table is read with), ``conduction_rate_c_s`` (n, n_pos: the constant-property series alone,
+        each position at its boiling-stage Biot number, :func:`cooling.boiling_biot`);
         ``di_mm``, ``ms_c``, ``ac1_c``,
         ``ac3_c``, ``austenitize_c`` (n,); ``warnings`` (list of str naming the states).
 
@@ -199,8 +204,12 @@ def as_quenched_profile(comp, quench, agitation="moderate", diameter_mm=None, th
     # quench severity -> cooling
     h_in = np.asarray(quench_severity.grossmann_h_per_in(q, a), float)
     h_w = quench_severity.heat_transfer_coefficient_w_m2k(h_in, cooling.K_STEEL_W_MK)
+    # the boiling stage of a liquid quench governs the cooling of the outer millimetres
+    # (quench_severity.boiling_peak, cooling.boiling_biot): each position its own Biot number
+    peak_ratio, peak_depth = quench_severity.boiling_peak(q, a)
     kw = {size_name: size}
-    rate_conduction = cooling.cooling_rate_at_c_s(h_w, positions=tuple(pos), austenitize_c=t0, **kw)
+    rate_conduction = cooling.cooling_rate_at_c_s(h_w, positions=tuple(pos), austenitize_c=t0,
+                                                  peak_ratio=peak_ratio, peak_depth_mm=peak_depth, **kw)
     bi = cooling.biot_number(h_w, **kw)
     # Bi outside the conduction table and the chart-anchored rate factor: the route's
     # model_inputs (quench_cooling, jominy_rate_factor), checked by routes.evaluate.finish
@@ -261,6 +270,7 @@ def as_quenched_profile(comp, quench, agitation="moderate", diameter_mm=None, th
         # the inputs of the chain's models, for the route's validity checks
         "h_per_in": h_in,
         "biot": bi,
+        "peak_ratio": np.asarray(peak_ratio, float) * np.ones(n),
         "theta": (700.0 - cooling.BATH_C) / (t0 - cooling.BATH_C),   # rate taken at 700 C (cooling_rate_at_c_s)
         "steel_carbon_pct": c_steel,
         "austenite_carbon_pct": c,
