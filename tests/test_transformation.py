@@ -131,3 +131,19 @@ def test_path_progress_bad_input():
         tr.path_progress(S1045, [0.0, 1.0], np.array([600.0, 590.0]), "pearlite")
     with pytest.raises(InputError):
         tr.path_progress(S1045, [0.0, 1.0], np.array([[600.0, 590.0]]), "martensite")
+
+
+def test_share_cache_overflow_keeps_the_rows_of_the_current_call(monkeypatch):
+    # regression: when a call overflowed the cache it was cleared after the call had found
+    # some of its rows already cached, and those rows then raised KeyError
+    monkeypatch.setattr(tr, "_SHARE_CACHE", {})
+    monkeypatch.setattr(tr, "_SHARE_CACHE_MAX", 3)
+    base = {"C": 0.40, "Mn": 0.80, "Si": 0.25, "Ni": 0.0, "Cr": 1.0, "Mo": 0.2}
+    first = {k: np.full(2, v) for k, v in base.items()}
+    first["C"] = np.array([0.38, 0.40])
+    a = tr.bainite_share(first, np.full(2, 10.0))
+    second = {k: np.full(3, v) for k, v in base.items()}
+    second["C"] = np.array([0.40, 0.42, 0.44])      # one cached row, two new: 2 + 2 > 3
+    b = tr.bainite_share(second, np.full(3, 10.0))
+    assert b[0] == a[1]                             # the same composition, the same share
+    assert len(tr._SHARE_CACHE) <= 3

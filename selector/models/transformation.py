@@ -303,7 +303,8 @@ def _share_tables(uniq, grain_size_astm, step_c):
     todo = [i for i, k in enumerate(keys) if k not in _SHARE_CACHE]
     if todo:
         if len(_SHARE_CACHE) + len(todo) > _SHARE_CACHE_MAX:
-            _SHARE_CACHE.clear()
+            _SHARE_CACHE.clear()                # everything this call needs is rebuilt below
+            todo = list(range(len(keys)))
         new = uniq[todo]
         grid = SHARE_GRID_C_S
         k, g = len(new), len(grid)
