@@ -32,9 +32,16 @@ def _run(at: AppTest) -> AppTest:
     return at
 
 
+def _every_view() -> AppTest:
+    """The page with every view computed in each run (the browser computes only the open one)."""
+    at = AppTest.from_file(APP, default_timeout=TIMEOUT)
+    at.session_state["_all_views"] = True
+    return at
+
+
 @pytest.fixture
 def at():
-    return _run(AppTest.from_file(APP, default_timeout=TIMEOUT))
+    return _run(_every_view())
 
 
 def _readable(at) -> pd.DataFrame | None:
@@ -298,6 +305,50 @@ def test_unit_switch_recomputes_nothing(at, monkeypatch):
     at.number_input(key="min_yield").set_value(at.number_input(key="min_yield").value + 1.0)
     _run(at)
     assert "rank" in calls and "prepare" not in calls
+
+
+def _library_calls(at) -> int:
+    """The footer's count of library computations of the server process."""
+    line = next(c.value for c in at.caption if "Library computations" in c.value)
+    return int(line.split("Library computations of this server: ")[1].split()[0])
+
+
+def test_only_the_open_view_is_computed_and_closed_views_keep_their_inputs():
+    at = _run(AppTest.from_file(APP, default_timeout=TIMEOUT))
+    assert [t.label for t in at.tabs] == ["Map and list", "One candidate", "Side by side", "Alternatives",
+                                          "Clevis pin", "Parts list"]
+    keys = {w.key for w in at.selectbox} | {b.key for b in at.button}
+    assert _readable(at) is not None                       # the answer: the candidate table
+    assert "pick" not in keys and "pin_apply" not in keys and "parts_run" not in keys
+    assert len(at.get("vega_lite_chart")) == 1              # the map only
+    calls = _library_calls(at)
+    # a unit switch and back: display only, no library computation (the footer's count)
+    at.radio(key="units").set_value(pg.US)
+    _run(at)
+    at.radio(key="units").set_value(pg.SI)
+    _run(at)
+    assert _library_calls(at) == calls
+    # the candidate view: computed when opened
+    at.session_state["view"] = "One candidate"
+    _run(at)
+    assert at.selectbox(key="pick").value is not None and len(at.get("vega_lite_chart")) >= 2
+    at.text_input(key="heat_text").input("C=0.41")
+    _run(at)
+    # the pin view: an input changed there survives a visit to another view
+    at.session_state["view"] = "Clevis pin"
+    _run(at)
+    at.number_input(key="pin_load").set_value(51.0)
+    _run(at)
+    at.session_state["view"] = "Map and list"
+    _run(at)
+    assert "pin_apply" not in {b.key for b in at.button}
+    at.session_state["view"] = "Clevis pin"
+    _run(at)
+    assert at.number_input(key="pin_load").value == 51.0
+    at.session_state["view"] = "One candidate"
+    _run(at)
+    assert at.text_input(key="heat_text").value == "C=0.41"
+    assert not at.exception and not any("Session State" in w.value for w in at.warning)
 
 
 def test_si_keys_survive_a_round_trip_through_us_units():
