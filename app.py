@@ -103,11 +103,19 @@ def _apply_pin():
 
 _defaults()
 ss = st.session_state
+ss["_runs"] = ss.get("_runs", 0) + 1        # this session's runs (the footer's "This run: #n")
 for _k in VIEW_KEYS:              # the state of the closed views' widgets stays
     if _k in ss:
         ss[_k] = ss[_k]
 T0 = time.perf_counter()
 timings = {}
+
+
+def draw(chart, where=None) -> None:
+    """One chart at the width of its column, sent as its Vega-Lite spec (built without
+    Altair's schema check, which costs a few tenths of a second per chart and run; the
+    tests check the specs)."""
+    (where or st).vega_lite_chart(pg.chart_spec(chart), width="stretch")
 
 
 def message(text: str) -> None:
@@ -380,7 +388,7 @@ def candidate_view(cand, states):
             for chart in pg.parameter_charts(pf, param, (row["window_min"], row["window_max"]),
                                              (row["robust_window_min"], row["robust_window_max"]), targets,
                                              system, row["main_value"]):
-                st.altair_chart(chart, width="stretch")
+                draw(chart)
             st.caption("Line: nominal composition; band: lean to rich corner; light shading: the window that "
                        "meets the targets; darker: where it holds at every corner.")
         else:
@@ -388,19 +396,18 @@ def candidate_view(cand, states):
     with st.container():
         if ev.get("profile"):
             pfr = pg.profile_frame({row["label"]: ev["profile"]}, system, {row["label"]: row["family"]})
-            st.altair_chart(pg.profile_chart(pfr, system, [row["label"]], scale=hs), width="stretch")
+            draw(pg.profile_chart(pfr, system, [row["label"]], scale=hs))
         else:
             st.info("This route family reports no hardness profile across the section.")
         ffr = pg.fatigue_depth_frame(ev, system)
         if len(ffr):
-            st.altair_chart(pg.fatigue_depth_chart(ffr, system), width="stretch")
+            draw(pg.fatigue_depth_chart(ffr, system))
             st.caption("Rotating bending, machined surface, 50 % reliability; compressive residual stress of a "
                        "hardened case credited (data/residual_stress.csv).  The curves touch at the governing depth.")
         curves = candidate_curves(ev)
         if len(curves["curves"]):
-            st.altair_chart(transformation_diagram(curves, fahrenheit=system == pg.US,
-                                                   title="Transformation start and finish, and this route's cooling"),
-                            width="stretch")
+            draw(transformation_diagram(curves, fahrenheit=system == pg.US,
+                                                   title="Transformation start and finish, and this route's cooling"))
             st.caption("Shaded: each reaction from its start to its finish (Li et al. 1998 kinetics); lines: the "
                        "surface and centre cooling paths of this route at this section.")
     st.markdown("**Sources**")
@@ -427,22 +434,21 @@ def comparison_view(cand):
     st.dataframe(pg.comparison_table(cand, cids, system, hs), width="stretch")
     frame = pg.comparison_frame(cand, cids, system, hs)
     b1, b2 = st.columns(2)
-    b1.altair_chart(pg.comparison_bars(frame, f"strength ({su})", lab, legend=True), width="stretch")
-    b2.altair_chart(pg.comparison_bars(frame, "relative cost", lab, legend=True), width="stretch")
+    draw(pg.comparison_bars(frame, f"strength ({su})", lab, legend=True), where=b1)
+    draw(pg.comparison_bars(frame, "relative cost", lab, legend=True), where=b2)
     b3, b4 = st.columns(2)
-    b3.altair_chart(pg.comparison_bars(frame, "elongation (%)", lab, height=200), width="stretch")
-    b4.altair_chart(pg.comparison_bars(frame, f"hardness ({hs})", lab, height=200), width="stretch")
+    draw(pg.comparison_bars(frame, "elongation (%)", lab, height=200), where=b3)
+    draw(pg.comparison_bars(frame, f"hardness ({hs})", lab, height=200), where=b4)
     profiles = {}
     for _, r in sub.iterrows():
         ev = pg.cached_evaluate(r["grade"], pg.route_json(r["route"]), d_si, t_si)
         if ev.get("profile"):
             profiles[r["label"]] = ev["profile"]
     if profiles:
-        st.altair_chart(pg.profile_chart(pg.profile_frame(profiles, system, dict(zip(sub["label"], sub["family"]))), system,
+        draw(pg.profile_chart(pg.profile_frame(profiles, system, dict(zip(sub["label"], sub["family"]))), system,
                                          list(profiles),
                                          title="Hardness across the section (shared axes)", scale=hs,
-                                         colours=[pg.COMPARE_COLOURS[lab.index(k)] for k in profiles]),
-                        width="stretch")
+                                         colours=[pg.COMPARE_COLOURS[lab.index(k)] for k in profiles]))
     for _, r in sub.iterrows():
         ev = pg.cached_evaluate(r["grade"], pg.route_json(r["route"]), d_si, t_si)
         cautions = pg.candidate_cautions(r, ev.get("warnings", []), service)
@@ -586,7 +592,7 @@ def pin_view():
     if res["args"] != args:
         st.info("The inputs have changed since this sweep was run; press **Run the sweep** to update it.")
     sw = res["table"]
-    st.altair_chart(pg.sweep_chart(sw, system), width="stretch")
+    draw(pg.sweep_chart(sw, system))
     ch = changes(sw)
     moves = [f"**{pg.to_display(r['diameter_mm'], 'length', system):.4g} {lu}**: "
              f"{pg.pick_label(r['grade'], r['route_family'])}" for _, r in ch.iloc[1:].iterrows()]
@@ -711,7 +717,7 @@ def parts_view():
                    + " (their nearest misses are in the per-part table).")
     left, right = st.columns([2, 3])
     left.dataframe(pp.stock_table(stock), hide_index=True, width="stretch", key="parts_stock")
-    right.altair_chart(pp.cost_by_count_chart(stock["cost_by_count"], len(stock["grades"])), width="stretch")
+    draw(pp.cost_by_count_chart(stock["cost_by_count"], len(stock["grades"])), where=right)
     st.dataframe(stock["assignment"], hide_index=True, width="stretch", key="parts_assignment")
     st.download_button("Download the assignment (CSV)", pg.to_csv(stock["assignment"]), file_name="stock_list.csv",
                        mime="text/csv", key="parts_stock_download")
@@ -763,7 +769,7 @@ def misses_view():
                      key="reachable")
         fchart = pg.frontier_chart(report["frontier"], report["axes"], targets, system)
         if fchart is not None:
-            st.altair_chart(fchart, width="stretch")
+            draw(fchart)
         if len(misses):
             labels = {i: f"{r['grade']} · {pg.route_line(r['route'], system, r['route_text'])}"
                       for i, r in misses.iterrows()}
@@ -788,8 +794,7 @@ def map_view(cand):
     y = "yield_mpa" if ss.get("chart_y", "yield") == "yield" else "uts_mpa"
     picked_id = cand.set_index("variant").loc[pick, "id"]
     frames = pg.chart_frames(states, top, y, system, picked=picked_id)
-    st.altair_chart(pg.strength_elongation_chart(frames, targets, y, system, picked=picked_id),
-                    width="stretch")
+    draw(pg.strength_elongation_chart(frames, targets, y, system, picked=picked_id))
     timings["map"] = time.perf_counter() - t
     st.caption(f"Each line is a candidate's process path at the nominal composition, its main parameter "
                f"written at the ends (along the whole path for the candidate in focus, marked ✛); the dotted "
@@ -841,6 +846,6 @@ st.divider()
 notice("footer")
 st.caption("Catalogue values carry a confidence tag (verified, partial, from memory, common practice); "
            "models and their publications are listed in docs/methods.md.  "
-           "This run: " + ", ".join(f"{k} {v:.2f} s" for k, v in timings.items())
+           f"This run: #{ss['_runs']}, " + ", ".join(f"{k} {v:.2f} s" for k, v in timings.items())
            + f", page {time.perf_counter() - T0:.2f} s (expansion and ranking are cached).  "
            f"Library computations of this server: {pg.library_calls()} (a unit switch adds none).")

@@ -351,6 +351,24 @@ def test_only_the_open_view_is_computed_and_closed_views_keep_their_inputs():
     assert not at.exception and not any("Session State" in w.value for w in at.warning)
 
 
+def test_every_chart_of_the_page_is_a_valid_vega_lite_spec(at):
+    """The page sends its charts without Altair's schema check (speed): the specs it sends
+    are checked here against the Vega-Lite schema that Altair ships."""
+    import altair as alt
+    from altair.utils.schemapi import validate_jsonschema
+    from altair.vegalite.v6.schema.core import load_schema
+
+    schema = load_schema()
+    charts = at.get("vega_lite_chart")
+    assert len(charts) >= 5          # map, parameter curve, profile, comparison bars
+    for c in charts:
+        validate_jsonschema(json.loads(c.proto.spec), schema)
+    # the check can fail: a mark the schema does not know
+    with pytest.raises(Exception):
+        validate_jsonschema({**json.loads(charts[0].proto.spec), "mark": "no-such-mark"}, schema)
+    assert alt.utils.schemapi.DEBUG_MODE is False
+
+
 def test_si_keys_survive_a_round_trip_through_us_units():
     for v in (30.0, 12.5, 47.63, 101.6):
         us = pg.convert_inputs({"diameter": v}, pg.SI, pg.US)["diameter"]

@@ -19,6 +19,20 @@ from selector.views.units import display_name, quantity_of, to_display, unit
 from .text import family_label, param_label, param_unit, percent, pick_label, route_line
 
 
+# the page builds its charts without Altair's check of every object against the
+# Vega-Lite schema at creation (a few tenths of a second per chart on each run);
+# ``chart_spec`` skips the check at export too; the tests export with the check
+try:
+    alt.utils.schemapi.disable_debug_mode()
+except AttributeError:             # pragma: no cover - an Altair without the switch checks as before
+    pass
+
+
+def chart_spec(chart) -> dict:
+    """The Vega-Lite spec of an Altair chart, without the schema check (see above)."""
+    return chart.to_dict(validate=False)
+
+
 PALETTE = ["#1b6f8a", "#c2571a", "#5b8c2a", "#8e3b74", "#b3922b", "#3f4fa3", "#a8323e", "#2f8f7b",
            "#6b5a3e", "#d07fa8", "#4d7ea8", "#7c8a1f", "#9b5fc0", "#c0873f", "#355c4a"]
 TARGET_FILL = "#f1e6c8"
