@@ -730,12 +730,15 @@ def parts_view():
 
 
 cand = None
+prepare_args = (d_si, t_si, len_si, price_items)
+rank_args = prepare_args + (pg.targets_key(targets), bool(ss.get("robust_only")),
+                            float(ss.get("min_p_pct") or 90.0) / 100.0, tuple(ss.get("allow") or ()),
+                            pg.targets_key(service))
+ss["_rank_args"] = rank_args          # the ranking's cache key (serve.py's warm start computes the example's)
 if prepared_ok:
     try:
         t = time.perf_counter()
-        cand = pg.cached_rank(d_si, t_si, len_si, price_items, pg.targets_key(targets),
-                              bool(ss.get("robust_only")), float(ss.get("min_p_pct") or 90.0) / 100.0,
-                              tuple(ss.get("allow") or ()), pg.targets_key(service))
+        cand = pg.cached_rank(*rank_args)
         timings["ranking"] = time.perf_counter() - t
     except SelectorError as exc:
         st.error(pg.explain(exc, system))
@@ -790,11 +793,9 @@ def map_view(cand):
     """The answer: the strength-elongation map of the first candidates and the candidate table."""
     t = time.perf_counter()
     top = cand.head(int(ss.get("chart_n", 15)))
-    states = candidate_states(set(top["variant"]) | {pick})
     y = "yield_mpa" if ss.get("chart_y", "yield") == "yield" else "uts_mpa"
-    picked_id = cand.set_index("variant").loc[pick, "id"]
-    frames = pg.chart_frames(states, top, y, system, picked=picked_id)
-    draw(pg.strength_elongation_chart(frames, targets, y, system, picked=picked_id))
+    st.vega_lite_chart(pg.cached_map(prepare_args, rank_args, pg.targets_key(targets), len(top), y, system, pick),
+                       width="stretch")
     timings["map"] = time.perf_counter() - t
     st.caption(f"Each line is a candidate's process path at the nominal composition, its main parameter "
                f"written at the ends (along the whole path for the candidate in focus, marked ✛); the dotted "

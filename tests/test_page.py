@@ -351,6 +351,24 @@ def test_only_the_open_view_is_computed_and_closed_views_keep_their_inputs():
     assert not at.exception and not any("Session State" in w.value for w in at.warning)
 
 
+def test_the_warm_start_computes_the_example_page_answer():
+    """serve.py computes the answer of the page's first run before the first visit: the
+    same cache keys as the page's own first run, and the answer the page then shows."""
+    from selector.views.page import warm
+
+    at = _run(AppTest.from_file(APP, default_timeout=TIMEOUT))
+    prep, rank_args, targets = warm.example_args()
+    assert at.session_state["_rank_args"] == rank_args and rank_args[:4] == prep
+    assert json.loads(rank_args[4]) == targets and targets["min_yield_mpa"] == pytest.approx(
+        pg.DEMO["targets"]["min_yield_mpa"], abs=0.05)
+    pg.cached_rank.clear()
+    before = pg.library_calls()
+    assert warm.warm_up() > 0
+    assert pg.library_calls() > before                 # it did compute (the ranking was cleared)
+    shown = _readable(at)
+    assert len(pg.cached_rank(*rank_args)) == len(shown) > 0
+
+
 def test_every_chart_of_the_page_is_a_valid_vega_lite_spec(at):
     """The page sends its charts without Altair's schema check (speed): the specs it sends
     are checked here against the Vega-Lite schema that Altair ships."""

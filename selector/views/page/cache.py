@@ -21,6 +21,7 @@ from selector.design.sweep_picks import sweep_with_picks
 from selector.selection import engine
 from selector.selection.cost_split import split_cost
 
+from . import charts
 from .text import label_candidates
 
 #: library computations of this server process, per cached wrapper (its cache misses)
@@ -142,3 +143,20 @@ def cached_alternatives(grade: str, route_json: str, diameter_mm, thickness_mm, 
     out = split_cost(alt)
     out.attrs["reference"] = ref
     return out
+
+
+@st.cache_data(show_spinner=False, max_entries=32)
+def cached_map(prepare_args: tuple, rank_args: tuple, targets_json: str, n_drawn: int, y: str, system: str,
+               picked_variant: str) -> dict:
+    """The Vega-Lite spec of the strength-elongation map (:func:`~selector.views.page.charts.strength_elongation_chart`)
+    of the first ``n_drawn`` candidates of ``cached_rank(*rank_args)`` and the one in
+    focus, in the display units of ``system``: a display, not a library computation
+    (built from the cached ranking and states; kept so that a second visit or a
+    return to earlier inputs draws it at once)."""
+    cand = cached_rank(*rank_args)
+    top = cand.head(n_drawn)
+    states = cached_variant_states(*prepare_args, tuple(sorted(set(top["variant"]) | {picked_variant})))
+    picked_id = cand.set_index("variant").loc[picked_variant, "id"]
+    frames = charts.chart_frames(states, top, y, system, picked=picked_id)
+    return charts.chart_spec(charts.strength_elongation_chart(frames, json.loads(targets_json), y, system,
+                                                              picked=picked_id))
