@@ -14,13 +14,25 @@ import selector
 from selector.catalogue.grades import FAMILIES
 from selector.design.sweep import changes
 from selector.errors import SelectorError
-from selector.selection.cost_split import split_cost
 from selector.selection.targets import validate_targets
 from selector.routes.transformation_curves import candidate_curves
 from selector.views import page as pg
 from selector.views.charts_beyond import transformation_diagram
 
 st.set_page_config(page_title="selector · grade and route finder", page_icon="🔩", layout="wide")
+
+#: the views; only the open one is computed (``st.tabs`` tracks the open tab in ``ss["view"]``)
+TAB_LABELS = ["Map and list", "One candidate", "Side by side", "Alternatives", "Clevis pin", "Parts list"]
+#: widgets that live inside a view: kept across runs in which their view is closed
+#: (Streamlit drops the state of a widget that a run does not draw unless the script
+#: writes it back, "Widget behavior" in the Streamlit documentation)
+VIEW_KEYS = ("pick", "heat_text", "compare", "alt_mode", "alt_pick", "alt_grade", "alt_steps", *pg.PIN_INPUT_KEYS,
+             "cap_grade", "cap_steps", "cap_hrc", "sweep_mode", "sweep_list", "sweep_from", "sweep_to", "sweep_step",
+             "parts_top", "parts_holding", "parts_max", "all_columns", "miss_pick")
+#: first values of the view widgets that are not part of a scenario (set once per session)
+VIEW_DEFAULTS = {"alt_grade": "4140", "alt_steps": "harden quench=oil; temper temp_c=540", "cap_grade": "4140",
+                 "cap_steps": "harden quench=oil; temper temp_c=540", "cap_hrc": None, "parts_top": 10,
+                 "parts_max": 0, "all_columns": False}
 
 
 # ----------------------------------------------------------------------------- state defaults
@@ -41,6 +53,10 @@ def _defaults():
     ss["_scenario"] = "example"
     ss["_upload_gen"] = 0
     ss["hardness_scale"] = "HRC"
+    for k, v in VIEW_DEFAULTS.items():
+        ss[k] = v
+    from selector.views import page_parts as pp      # lazy: the parts list is a view of its own
+    ss["parts_holding"] = pp.DEMO_HOLDING_COST
 
 
 def _new_part():
@@ -87,8 +103,19 @@ def _apply_pin():
 
 _defaults()
 ss = st.session_state
+ss["_runs"] = ss.get("_runs", 0) + 1        # this session's runs (the footer's "This run: #n")
+for _k in VIEW_KEYS:              # the state of the closed views' widgets stays
+    if _k in ss:
+        ss[_k] = ss[_k]
 T0 = time.perf_counter()
 timings = {}
+
+
+def draw(chart, where=None) -> None:
+    """One chart at the width of its column, sent as its Vega-Lite spec (built without
+    Altair's schema check, which costs a few tenths of a second per chart and run; the
+    tests check the specs)."""
+    (where or st).vega_lite_chart(pg.chart_spec(chart), width="stretch")
 
 
 def message(text: str) -> None:
@@ -361,7 +388,7 @@ def candidate_view(cand, states):
             for chart in pg.parameter_charts(pf, param, (row["window_min"], row["window_max"]),
                                              (row["robust_window_min"], row["robust_window_max"]), targets,
                                              system, row["main_value"]):
-                st.altair_chart(chart, width="stretch")
+                draw(chart)
             st.caption("Line: nominal composition; band: lean to rich corner; light shading: the window that "
                        "meets the targets; darker: where it holds at every corner.")
         else:
@@ -369,19 +396,18 @@ def candidate_view(cand, states):
     with st.container():
         if ev.get("profile"):
             pfr = pg.profile_frame({row["label"]: ev["profile"]}, system, {row["label"]: row["family"]})
-            st.altair_chart(pg.profile_chart(pfr, system, [row["label"]], scale=hs), width="stretch")
+            draw(pg.profile_chart(pfr, system, [row["label"]], scale=hs))
         else:
             st.info("This route family reports no hardness profile across the section.")
         ffr = pg.fatigue_depth_frame(ev, system)
         if len(ffr):
-            st.altair_chart(pg.fatigue_depth_chart(ffr, system), width="stretch")
+            draw(pg.fatigue_depth_chart(ffr, system))
             st.caption("Rotating bending, machined surface, 50 % reliability; compressive residual stress of a "
                        "hardened case credited (data/residual_stress.csv).  The curves touch at the governing depth.")
         curves = candidate_curves(ev)
         if len(curves["curves"]):
-            st.altair_chart(transformation_diagram(curves, fahrenheit=system == pg.US,
-                                                   title="Transformation start and finish, and this route's cooling"),
-                            width="stretch")
+            draw(transformation_diagram(curves, fahrenheit=system == pg.US,
+                                                   title="Transformation start and finish, and this route's cooling"))
             st.caption("Shaded: each reaction from its start to its finish (Li et al. 1998 kinetics); lines: the "
                        "surface and centre cooling paths of this route at this section.")
     st.markdown("**Sources**")
@@ -408,22 +434,21 @@ def comparison_view(cand):
     st.dataframe(pg.comparison_table(cand, cids, system, hs), width="stretch")
     frame = pg.comparison_frame(cand, cids, system, hs)
     b1, b2 = st.columns(2)
-    b1.altair_chart(pg.comparison_bars(frame, f"strength ({su})", lab, legend=True), width="stretch")
-    b2.altair_chart(pg.comparison_bars(frame, "relative cost", lab, legend=True), width="stretch")
+    draw(pg.comparison_bars(frame, f"strength ({su})", lab, legend=True), where=b1)
+    draw(pg.comparison_bars(frame, "relative cost", lab, legend=True), where=b2)
     b3, b4 = st.columns(2)
-    b3.altair_chart(pg.comparison_bars(frame, "elongation (%)", lab, height=200), width="stretch")
-    b4.altair_chart(pg.comparison_bars(frame, f"hardness ({hs})", lab, height=200), width="stretch")
+    draw(pg.comparison_bars(frame, "elongation (%)", lab, height=200), where=b3)
+    draw(pg.comparison_bars(frame, f"hardness ({hs})", lab, height=200), where=b4)
     profiles = {}
     for _, r in sub.iterrows():
         ev = pg.cached_evaluate(r["grade"], pg.route_json(r["route"]), d_si, t_si)
         if ev.get("profile"):
             profiles[r["label"]] = ev["profile"]
     if profiles:
-        st.altair_chart(pg.profile_chart(pg.profile_frame(profiles, system, dict(zip(sub["label"], sub["family"]))), system,
+        draw(pg.profile_chart(pg.profile_frame(profiles, system, dict(zip(sub["label"], sub["family"]))), system,
                                          list(profiles),
                                          title="Hardness across the section (shared axes)", scale=hs,
-                                         colours=[pg.COMPARE_COLOURS[lab.index(k)] for k in profiles]),
-                        width="stretch")
+                                         colours=[pg.COMPARE_COLOURS[lab.index(k)] for k in profiles]))
     for _, r in sub.iterrows():
         ev = pg.cached_evaluate(r["grade"], pg.route_json(r["route"]), d_si, t_si)
         cautions = pg.candidate_cautions(r, ev.get("warnings", []), service)
@@ -435,9 +460,8 @@ def capacity_view(case):
     """What a given pin (grade and route, or a specified hardness) can carry, at the pin tab's geometry."""
     with st.expander("Capacity of a given pin (grade and route, or the drawing's hardness)"):
         c = st.columns(3)
-        c[0].text_input("Pin grade", key="cap_grade", value="4140")
+        c[0].text_input("Pin grade", key="cap_grade")
         c[1].text_input("Route steps (';'-separated)", key="cap_steps",
-                        value="harden quench=oil; temper temp_c=540",
                         help="Leave blank and give a hardness when the drawing specifies one.")
         c[2].number_input("Specified hardness (HRC)", key="cap_hrc", value=None, format="%.1f",
                           help="The bottom of the drawing's range; only with blank route steps.")
@@ -568,7 +592,7 @@ def pin_view():
     if res["args"] != args:
         st.info("The inputs have changed since this sweep was run; press **Run the sweep** to update it.")
     sw = res["table"]
-    st.altair_chart(pg.sweep_chart(sw, system), width="stretch")
+    draw(pg.sweep_chart(sw, system))
     ch = changes(sw)
     moves = [f"**{pg.to_display(r['diameter_mm'], 'length', system):.4g} {lu}**: "
              f"{pg.pick_label(r['grade'], r['route_family'])}" for _, r in ch.iloc[1:].iterrows()]
@@ -603,8 +627,8 @@ def alternatives_view(cand):
         grade, route = row["grade"], list(row["route"])
     else:
         c = st.columns(2)
-        c[0].text_input("Grade", key="alt_grade", value="4140", help="Any designation of a catalogue grade.")
-        c[1].text_input("Route steps (';'-separated)", key="alt_steps", value="harden quench=oil; temper temp_c=540")
+        c[0].text_input("Grade", key="alt_grade", help="Any designation of a catalogue grade.")
+        c[1].text_input("Route steps (';'-separated)", key="alt_steps")
         grade = (ss.get("alt_grade") or "").strip()
         route, msg = pg.read_route_steps(ss.get("alt_steps"))
         if msg or not grade:
@@ -654,12 +678,12 @@ def parts_view():
     st.caption(f"{name}: {len(parts)} parts at {parts[['diameter_mm', 'thickness_mm']].drop_duplicates().shape[0]} "
                "sections.")
     c = st.columns(3)
-    c[0].number_input("Grades considered per part", key="parts_top", min_value=1, max_value=100, value=10,
+    c[0].number_input("Grades considered per part", key="parts_top", min_value=1, max_value=100,
                       help="The cheapest route of each of the part's N cheapest grades is offered to the stock choice.")
     c[1].number_input("Holding cost per grade a year (relative units)", key="parts_holding", min_value=0.0,
-                      value=pp.DEMO_HOLDING_COST, help="Same unit as the part cost (1018 bar = 1 per kg, or your "
+                      help="Same unit as the part cost (1018 bar = 1 per kg, or your "
                       "price sheet's currency).  The default is an invented demo value.")
-    c[2].number_input("At most this many grades (0: no limit)", key="parts_max", min_value=0, max_value=50, value=0)
+    c[2].number_input("At most this many grades (0: no limit)", key="parts_max", min_value=0, max_value=50)
     args = (name, len(data), hash(data), int(ss["parts_top"]), float(ss["parts_holding"]), int(ss["parts_max"]),
             price_items)
     if st.button(f"Run the parts list ({len(parts)} parts)", key="parts_run", type="primary"):
@@ -693,7 +717,7 @@ def parts_view():
                    + " (their nearest misses are in the per-part table).")
     left, right = st.columns([2, 3])
     left.dataframe(pp.stock_table(stock), hide_index=True, width="stretch", key="parts_stock")
-    right.altair_chart(pp.cost_by_count_chart(stock["cost_by_count"], len(stock["grades"])), width="stretch")
+    draw(pp.cost_by_count_chart(stock["cost_by_count"], len(stock["grades"])), where=right)
     st.dataframe(stock["assignment"], hide_index=True, width="stretch", key="parts_assignment")
     st.download_button("Download the assignment (CSV)", pg.to_csv(stock["assignment"]), file_name="stock_list.csv",
                        mime="text/csv", key="parts_stock_download")
@@ -705,110 +729,124 @@ def parts_view():
     st.caption(selector.CAUTION)
 
 
-TAB_LABELS = ["Map and list", "One candidate", "Side by side", "Alternatives", "Clevis pin", "Parts list"]
 cand = None
+prepare_args = (d_si, t_si, len_si, price_items)
+rank_args = prepare_args + (pg.targets_key(targets), bool(ss.get("robust_only")),
+                            float(ss.get("min_p_pct") or 90.0) / 100.0, tuple(ss.get("allow") or ()),
+                            pg.targets_key(service))
+ss["_rank_args"] = rank_args          # the ranking's cache key (serve.py's warm start computes the example's)
 if prepared_ok:
     try:
         t = time.perf_counter()
-        cand = pg.cached_rank(d_si, t_si, len_si, price_items, pg.targets_key(targets),
-                              bool(ss.get("robust_only")), float(ss.get("min_p_pct") or 90.0) / 100.0,
-                              tuple(ss.get("allow") or ()), pg.targets_key(service))
+        cand = pg.cached_rank(*rank_args)
         timings["ranking"] = time.perf_counter() - t
     except SelectorError as exc:
         st.error(pg.explain(exc, system))
         cand = None
+pick = None
 if cand is not None and len(cand):
-    cand = split_cost(pg.label_candidates(cand))
-    n_chart = int(ss.get("chart_n", 15))
-    top = cand.head(n_chart)
     pick = ss.get("pick") if ss.get("pick") in set(cand["variant"]) else cand["variant"].iloc[0]
-    t = time.perf_counter()
-    states = pg.cached_variant_states(d_si, t_si, len_si, price_items,
-                                      tuple(sorted(set(top["variant"]) | {pick})))
-    timings["regions"] = time.perf_counter() - t
     st.markdown(pg.ranking_summary(cand))
-tab_map, tab_one, tab_two, tab_alt, tab_pin, tab_parts = st.tabs(TAB_LABELS)
+
+
+def candidate_states(variants) -> "pd.DataFrame":
+    """The reachable region (every corner and main value) of ``variants`` (cached)."""
+    t = time.perf_counter()
+    out = pg.cached_variant_states(d_si, t_si, len_si, price_items, tuple(sorted(set(variants))))
+    timings["regions"] = timings.get("regions", 0.0) + time.perf_counter() - t
+    return out
+
+
+def misses_view():
+    st.subheader("No candidate meets every target")
+    st.markdown("The nearest misses: how far each target would have to move for the candidate to "
+                "qualify at the nominal composition (`move_*`, in the units shown), smallest total first.")
+    try:
+        misses = pg.cached_nearest_misses(d_si, t_si, len_si, price_items, pg.targets_key(targets))
+        st.dataframe(pg.miss_table(misses, system), width="stretch", hide_index=True,
+                     key="misses")
+        report = pg.cached_miss_analysis(d_si, t_si, len_si, price_items, pg.targets_key(targets))
+        st.markdown("**What can be reached**: the best value of each target with the other targets met "
+                    "(at the nominal composition).")
+        st.dataframe(pg.reachable_table(report["reachable"], system), width="stretch", hide_index=True,
+                     key="reachable")
+        fchart = pg.frontier_chart(report["frontier"], report["axes"], targets, system)
+        if fchart is not None:
+            draw(fchart)
+        if len(misses):
+            labels = {i: f"{r['grade']} · {pg.route_line(r['route'], system, r['route_text'])}"
+                      for i, r in misses.iterrows()}
+            i = st.selectbox("Open a near miss", list(labels), key="miss_pick", format_func=labels.get)
+            r = misses.loc[i]
+            ev = pg.cached_evaluate(r["grade"], pg.route_json(r["route"]), d_si, t_si)
+            evaluation_metrics(ev, extra=("Meets the targets", pg.percent(r.get("p_meet"))))
+            st.caption(pg.band_text(ev, system))
+            st.markdown("\n".join(pg.route_steps(r["route"], system)))
+            mc = pg.candidate_cautions(r, ev.get("warnings", []), service)
+            if mc:
+                st.warning("\n".join(f"- {c}" for c in mc))
+    except SelectorError as exc:
+        st.error(pg.explain(exc, system))
+
+
+def map_view(cand):
+    """The answer: the strength-elongation map of the first candidates and the candidate table."""
+    t = time.perf_counter()
+    top = cand.head(int(ss.get("chart_n", 15)))
+    y = "yield_mpa" if ss.get("chart_y", "yield") == "yield" else "uts_mpa"
+    st.vega_lite_chart(pg.cached_map(prepare_args, rank_args, pg.targets_key(targets), len(top), y, system, pick),
+                       width="stretch")
+    timings["map"] = time.perf_counter() - t
+    st.caption(f"Each line is a candidate's process path at the nominal composition, its main parameter "
+               f"written at the ends (along the whole path for the candidate in focus, marked ✛); the dotted "
+               f"edges bound its scatter over the composition range and the window; colour: route family; "
+               f"■ Pareto set, □ other candidates, each at its chosen state; dashed: the targets.  "
+               f"Top {len(top)} of {len(cand)} drawn.")
+    st.toggle("All columns", key="all_columns",
+              help="Every column of the library's table after the readable ones: internal names, full "
+                   "precision, the route steps as JSON (docs/columns.md).")
+    table = pg.display_table(cand, system, hs, all_columns=bool(ss.get("all_columns")))
+    st.dataframe(table, width="stretch", hide_index=True, key="candidates")
+    st.download_button("Download the table (CSV)", pg.to_csv(table), file_name="candidates.csv",
+                       mime="text/csv", key="download")
+
+
+# only the open view is computed; the others cost nothing until opened (``ss["_all_views"]``,
+# set by the AppTest suite only, computes every view in one run)
+views = dict(zip(TAB_LABELS, st.tabs(TAB_LABELS, key="view", on_change="rerun")))
 no_table = "No candidate table: see the messages above."
-if cand is not None and len(cand) == 0:
-    with tab_map:
-        st.subheader("No candidate meets every target")
-        st.markdown("The nearest misses: how far each target would have to move for the candidate to "
-                    "qualify at the nominal composition (`move_*`, in the units shown), smallest total first.")
-        try:
-            misses = pg.cached_nearest_misses(d_si, t_si, len_si, price_items, pg.targets_key(targets))
-            st.dataframe(pg.miss_table(misses, system), width="stretch", hide_index=True,
-                         key="misses")
-            report = pg.cached_miss_analysis(d_si, t_si, len_si, price_items, pg.targets_key(targets))
-            st.markdown("**What can be reached**: the best value of each target with the other targets met "
-                        "(at the nominal composition).")
-            st.dataframe(pg.reachable_table(report["reachable"], system), width="stretch", hide_index=True,
-                         key="reachable")
-            fchart = pg.frontier_chart(report["frontier"], report["axes"], targets, system)
-            if fchart is not None:
-                st.altair_chart(fchart, width="stretch")
-            if len(misses):
-                labels = {i: f"{r['grade']} · {pg.route_line(r['route'], system, r['route_text'])}"
-                          for i, r in misses.iterrows()}
-                i = st.selectbox("Open a near miss", list(labels), key="miss_pick", format_func=labels.get)
-                r = misses.loc[i]
-                ev = pg.cached_evaluate(r["grade"], pg.route_json(r["route"]), d_si, t_si)
-                evaluation_metrics(ev, extra=("Meets the targets", pg.percent(r.get("p_meet"))))
-                st.caption(pg.band_text(ev, system))
-                st.markdown("\n".join(pg.route_steps(r["route"], system)))
-                mc = pg.candidate_cautions(r, ev.get("warnings", []), service)
-                if mc:
-                    st.warning("\n".join(f"- {c}" for c in mc))
-        except SelectorError as exc:
-            st.error(pg.explain(exc, system))
-    for tab in (tab_one, tab_two):
-        with tab:
-            st.info("No candidate meets every target: see the nearest misses under Map and list.")
-elif cand is not None:
-    with tab_map:
-        t = time.perf_counter()
-        y = "yield_mpa" if ss.get("chart_y", "yield") == "yield" else "uts_mpa"
-        picked_id = cand.set_index("variant").loc[pick, "id"]
-        frames = pg.chart_frames(states, top, y, system, picked=picked_id)
-        st.altair_chart(pg.strength_elongation_chart(frames, targets, y, system, picked=picked_id),
-                        width="stretch")
-        timings["map"] = time.perf_counter() - t
-        st.caption(f"Each line is a candidate's process path at the nominal composition, its main parameter "
-                   f"written at the ends (along the whole path for the candidate in focus, marked ✛); the dotted "
-                   f"edges bound its scatter over the composition range and the window; colour: route family; "
-                   f"■ Pareto set, □ other candidates, each at its chosen state; dashed: the targets.  "
-                   f"Top {len(top)} of {len(cand)} drawn.")
-        st.toggle("All columns", key="all_columns",
-                  help="Every column of the library's table after the readable ones: internal names, full "
-                       "precision, the route steps as JSON (docs/columns.md).")
-        table = pg.display_table(cand, system, hs, all_columns=bool(ss.get("all_columns")))
-        st.dataframe(table, width="stretch", hide_index=True, key="candidates")
-        st.download_button("Download the table (CSV)", pg.to_csv(table), file_name="candidates.csv",
-                           mime="text/csv", key="download")
+for label, tab in views.items():
+    if not (tab.open or ss.get("_all_views")):
+        continue
     t = time.perf_counter()
-    with tab_one:
-        candidate_view(cand, states)
-    timings["candidate"] = time.perf_counter() - t
-    t = time.perf_counter()
-    with tab_two:
-        comparison_view(cand)
-    timings["comparison"] = time.perf_counter() - t
-else:
-    for tab in (tab_map, tab_one, tab_two):
-        with tab:
-            st.info(no_table)
-with tab_alt:
-    alternatives_view(cand)
-t = time.perf_counter()
-with tab_pin:
-    pin_view()
-timings["pin"] = time.perf_counter() - t
-with tab_parts:
-    parts_view()
+    with tab:
+        if label in ("Map and list", "One candidate", "Side by side"):
+            if cand is None:
+                st.info(no_table)
+            elif len(cand) == 0:
+                if label == "Map and list":
+                    misses_view()
+                else:
+                    st.info("No candidate meets every target: see the nearest misses under Map and list.")
+            elif label == "Map and list":
+                map_view(cand)
+            elif label == "One candidate":
+                candidate_view(cand, candidate_states([pick]))
+            else:
+                comparison_view(cand)
+        elif label == "Alternatives":
+            alternatives_view(cand)
+        elif label == "Clevis pin":
+            pin_view()
+        else:
+            parts_view()
+    timings[label] = time.perf_counter() - t
 
 # ----------------------------------------------------------------------------- footer
 st.divider()
 notice("footer")
 st.caption("Catalogue values carry a confidence tag (verified, partial, from memory, common practice); "
            "models and their publications are listed in docs/methods.md.  "
-           "This run: " + ", ".join(f"{k} {v:.2f} s" for k, v in timings.items())
-           + f", page {time.perf_counter() - T0:.2f} s (expansion and ranking are cached).")
+           f"This run: #{ss['_runs']}, " + ", ".join(f"{k} {v:.2f} s" for k, v in timings.items())
+           + f", page {time.perf_counter() - T0:.2f} s (expansion and ranking are cached).  "
+           f"Library computations of this server: {pg.library_calls()} (a unit switch adds none).")

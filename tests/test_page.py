@@ -32,9 +32,16 @@ def _run(at: AppTest) -> AppTest:
     return at
 
 
+def _every_view() -> AppTest:
+    """The page with every view computed in each run (the browser computes only the open one)."""
+    at = AppTest.from_file(APP, default_timeout=TIMEOUT)
+    at.session_state["_all_views"] = True
+    return at
+
+
 @pytest.fixture
 def at():
-    return _run(AppTest.from_file(APP, default_timeout=TIMEOUT))
+    return _run(_every_view())
 
 
 def _readable(at) -> pd.DataFrame | None:
@@ -298,6 +305,86 @@ def test_unit_switch_recomputes_nothing(at, monkeypatch):
     at.number_input(key="min_yield").set_value(at.number_input(key="min_yield").value + 1.0)
     _run(at)
     assert "rank" in calls and "prepare" not in calls
+
+
+def _library_calls(at) -> int:
+    """The footer's count of library computations of the server process."""
+    line = next(c.value for c in at.caption if "Library computations" in c.value)
+    return int(line.split("Library computations of this server: ")[1].split()[0])
+
+
+def test_only_the_open_view_is_computed_and_closed_views_keep_their_inputs():
+    at = _run(AppTest.from_file(APP, default_timeout=TIMEOUT))
+    assert [t.label for t in at.tabs] == ["Map and list", "One candidate", "Side by side", "Alternatives",
+                                          "Clevis pin", "Parts list"]
+    keys = {w.key for w in at.selectbox} | {b.key for b in at.button}
+    assert _readable(at) is not None                       # the answer: the candidate table
+    assert "pick" not in keys and "pin_apply" not in keys and "parts_run" not in keys
+    assert len(at.get("vega_lite_chart")) == 1              # the map only
+    calls = _library_calls(at)
+    # a unit switch and back: display only, no library computation (the footer's count)
+    at.radio(key="units").set_value(pg.US)
+    _run(at)
+    at.radio(key="units").set_value(pg.SI)
+    _run(at)
+    assert _library_calls(at) == calls
+    # the candidate view: computed when opened
+    at.session_state["view"] = "One candidate"
+    _run(at)
+    assert at.selectbox(key="pick").value is not None and len(at.get("vega_lite_chart")) >= 2
+    at.text_input(key="heat_text").input("C=0.41")
+    _run(at)
+    # the pin view: an input changed there survives a visit to another view
+    at.session_state["view"] = "Clevis pin"
+    _run(at)
+    at.number_input(key="pin_load").set_value(51.0)
+    _run(at)
+    at.session_state["view"] = "Map and list"
+    _run(at)
+    assert "pin_apply" not in {b.key for b in at.button}
+    at.session_state["view"] = "Clevis pin"
+    _run(at)
+    assert at.number_input(key="pin_load").value == 51.0
+    at.session_state["view"] = "One candidate"
+    _run(at)
+    assert at.text_input(key="heat_text").value == "C=0.41"
+    assert not at.exception and not any("Session State" in w.value for w in at.warning)
+
+
+def test_the_warm_start_computes_the_example_page_answer():
+    """serve.py computes the answer of the page's first run before the first visit: the
+    same cache keys as the page's own first run, and the answer the page then shows."""
+    from selector.views.page import warm
+
+    at = _run(AppTest.from_file(APP, default_timeout=TIMEOUT))
+    prep, rank_args, targets = warm.example_args()
+    assert at.session_state["_rank_args"] == rank_args and rank_args[:4] == prep
+    assert json.loads(rank_args[4]) == targets and targets["min_yield_mpa"] == pytest.approx(
+        pg.DEMO["targets"]["min_yield_mpa"], abs=0.05)
+    pg.cached_rank.clear()
+    before = pg.library_calls()
+    assert warm.warm_up() > 0
+    assert pg.library_calls() > before                 # it did compute (the ranking was cleared)
+    shown = _readable(at)
+    assert len(pg.cached_rank(*rank_args)) == len(shown) > 0
+
+
+def test_every_chart_of_the_page_is_a_valid_vega_lite_spec(at):
+    """The page sends its charts without Altair's schema check (speed): the specs it sends
+    are checked here against the Vega-Lite schema that Altair ships."""
+    import altair as alt
+    from altair.utils.schemapi import validate_jsonschema
+    from altair.vegalite.v6.schema.core import load_schema
+
+    schema = load_schema()
+    charts = at.get("vega_lite_chart")
+    assert len(charts) >= 5          # map, parameter curve, profile, comparison bars
+    for c in charts:
+        validate_jsonschema(json.loads(c.proto.spec), schema)
+    # the check can fail: a mark the schema does not know
+    with pytest.raises(Exception):
+        validate_jsonschema({**json.loads(charts[0].proto.spec), "mark": "no-such-mark"}, schema)
+    assert alt.utils.schemapi.DEBUG_MODE is False
 
 
 def test_si_keys_survive_a_round_trip_through_us_units():

@@ -47,8 +47,15 @@ def test_bad_upload_lists_every_problem():
     assert all(m.startswith("up.csv: line") for m in msgs)
 
 
+def _parts_view(timeout: int) -> AppTest:
+    """The page with its parts-list view open (only the open view is computed)."""
+    at = AppTest.from_file(APP, default_timeout=timeout)
+    at.session_state["view"] = "Parts list"
+    return at.run(timeout=timeout)
+
+
 def test_page_has_the_parts_list_view_with_the_demo():
-    at = AppTest.from_file(APP, default_timeout=180).run(timeout=180)
+    at = _parts_view(180)
     assert not at.exception, [e.value for e in at.exception]
     labels = [t.label for t in at.tabs]
     assert "Parts list" in labels
@@ -58,7 +65,7 @@ def test_page_has_the_parts_list_view_with_the_demo():
 
 @pytest.mark.slow
 def test_page_runs_the_demo_parts_list():
-    at = AppTest.from_file(APP, default_timeout=600).run(timeout=600)
+    at = _parts_view(600)
     at.number_input(key="parts_top").set_value(3)
     at.button(key="parts_run").click().run(timeout=600)
     assert not at.exception, [e.value for e in at.exception]

@@ -5,7 +5,7 @@ module      role
 ==========  ===============================================================
 units       display units: labels, conversion of shown and typed values
 inputs      the sidebar and pin inputs -> SI values, targets, contexts; the demo
-cache       the cached calls of the library (``st.cache_data``)
+cache       the cached calls of the library (``st.cache_resource``/``st.cache_data``)
 text        labels, readable route, band line, cautions, ranking summary
 tables      tables in display units
 charts      Altair charts (the strength-elongation map and the others)
@@ -35,9 +35,9 @@ from .tables import (  # noqa: F401
     SWEEP_SHOWN, alternatives_table, capacity_table, comparison_table, display_table, fmt_window,
     miss_table, pin_stress_table, reachable_table, sweep_table)
 from .cache import (  # noqa: F401
-    cached_alternatives, cached_evaluate, cached_miss_analysis, cached_nearest_misses, cached_prepare,
-    cached_rank, cached_sweep, cached_variant_states)
+    cached_alternatives, cached_evaluate, cached_map, cached_miss_analysis, cached_nearest_misses, cached_prepare,
+    cached_rank, cached_sweep, cached_variant_states, library_calls)
 from .charts import (  # noqa: F401
-    COMPARE_COLOURS, chart_frames, comparison_bars, comparison_frame, fatigue_depth_chart,
+    COMPARE_COLOURS, chart_frames, chart_spec, comparison_bars, comparison_frame, fatigue_depth_chart,
     fatigue_depth_frame, frontier_chart, hull_band, parameter_charts, parameter_frame, profile_chart,
     profile_frame, strength_elongation_chart, sweep_chart)

@@ -1,11 +1,17 @@
-"""The page's cached calls of the library (``st.cache_data``, keyed by hashable
-arguments: SI values rounded by :func:`~selector.views.page.units.si_key`, targets
-and contexts as sorted JSON).  The expensive, target-independent expansion is
-cached per section, length and price sheet, so that a change of targets only
-re-ranks and a unit switch recomputes nothing."""
+"""The page's cached calls of the library (keyed by hashable arguments: SI values
+rounded by :func:`~selector.views.page.units.si_key`, targets and contexts as
+sorted JSON).  The expensive, target-independent expansion is cached per section,
+length and price sheet as one shared object of the server process
+(``st.cache_resource``: no copy per run, and the library's own memos of that table,
+the Monte Carlo draws and the caution masks, stay valid), so that a change of
+targets only re-ranks; the smaller results are ``st.cache_data``.  A unit switch
+recomputes nothing: every wrapper counts its cache misses in :data:`CALLS`, which
+the page shows in its footer and the tests read."""
 from __future__ import annotations
 
 import json
+import threading
+from collections import Counter
 
 import pandas as pd
 import streamlit as st
@@ -15,6 +21,25 @@ from selector.design.sweep_picks import sweep_with_picks
 from selector.selection import engine
 from selector.selection.cost_split import split_cost
 
+from . import charts
+from .text import label_candidates
+
+#: library computations of this server process, per cached wrapper (its cache misses)
+CALLS: Counter = Counter()
+_CALLS_LOCK = threading.Lock()
+
+
+def _count(name: str) -> None:
+    with _CALLS_LOCK:
+        CALLS[name] += 1
+
+
+def library_calls() -> int:
+    """Library computations made by the page's cached wrappers in this process so far
+    (a re-run that finds every result in the cache adds none)."""
+    with _CALLS_LOCK:
+        return sum(CALLS.values())
+
 
 # --------------------------------------------------------------------------- cached library calls
 
@@ -22,10 +47,12 @@ def _prices(price_items) -> dict | None:
     return dict(price_items) if price_items else None
 
 
-@st.cache_data(show_spinner="Expanding the catalogue over every process window…", max_entries=8)
+@st.cache_resource(show_spinner="Expanding the catalogue over every process window…", max_entries=8)
 def cached_prepare(diameter_mm, thickness_mm, length_mm, price_items=()) -> pd.DataFrame:
     """:func:`~selector.selection.engine.prepare`, cached per section, length and
-    price sheet (``price_items``: sorted ``(grade, price)`` pairs)."""
+    price sheet (``price_items``: sorted ``(grade, price)`` pairs).  One shared,
+    read-only table per key (never copied, never modified by the page)."""
+    _count("prepare")
     return engine.prepare(diameter_mm, thickness_mm, length_mm, _prices(price_items))
 
 
@@ -35,15 +62,20 @@ def cached_rank(diameter_mm, thickness_mm, length_mm, price_items, targets_json,
     """:func:`~selector.selection.engine.rank` on the cached prepared table
     (``targets_json``: the SI targets as sorted JSON, so the cache key is stable;
     ``allow``: a tuple of caution codes; ``service_json``: the caution context as
-    JSON, see :func:`service_context`)."""
+    JSON, see :func:`service_context`), labelled (``id``, ``label``) and with the
+    material and processing parts of the cost (:func:`~selector.selection.cost_split.split_cost`)
+    when it has rows."""
     prepared = cached_prepare(diameter_mm, thickness_mm, length_mm, price_items)
-    return engine.rank(prepared, json.loads(targets_json), robust_only=robust_only, min_p_meet=min_p_meet,
-                allow=list(allow), service=json.loads(service_json) or None)
+    _count("rank")
+    cand = engine.rank(prepared, json.loads(targets_json), robust_only=robust_only, min_p_meet=min_p_meet,
+                       allow=list(allow), service=json.loads(service_json) or None)
+    return split_cost(label_candidates(cand)) if len(cand) else cand
 
 
 @st.cache_data(show_spinner="Looking for what can be reached…", max_entries=16)
 def cached_miss_analysis(diameter_mm, thickness_mm, length_mm, price_items, targets_json, n=10) -> dict:
     """:func:`~selector.selection.engine.miss_analysis`, cached."""
+    _count("miss_analysis")
     return engine.miss_analysis(json.loads(targets_json), diameter_mm, thickness_mm=thickness_mm,
                          length_mm=length_mm, price_sheet=_prices(price_items), n=n)
 
@@ -51,6 +83,7 @@ def cached_miss_analysis(diameter_mm, thickness_mm, length_mm, price_items, targ
 @st.cache_data(show_spinner="Looking for the nearest misses…", max_entries=16)
 def cached_nearest_misses(diameter_mm, thickness_mm, length_mm, price_items, targets_json, n=10):
     """:func:`~selector.selection.engine.nearest_misses`, cached."""
+    _count("nearest_misses")
     return engine.nearest_misses(json.loads(targets_json), diameter_mm, thickness_mm=thickness_mm,
                           length_mm=length_mm, price_sheet=_prices(price_items), n=n)
 
@@ -59,6 +92,7 @@ def cached_nearest_misses(diameter_mm, thickness_mm, length_mm, price_items, tar
 def cached_variant_states(diameter_mm, thickness_mm, length_mm, price_items, variants: tuple) -> pd.DataFrame:
     """The rows of the prepared table that belong to ``variants`` (every corner and
     every value of the main parameter): the reachable region of each candidate."""
+    _count("variant_states")
     prepared = cached_prepare(diameter_mm, thickness_mm, length_mm, price_items)
     cols = [c for c in ("variant", "grade", "route", "corner", "main_value", "yield_mpa", "uts_mpa",
                         "elongation_pct", "hardness_hv", "hardness_hrc", "surface_hardness_hv",
@@ -72,6 +106,7 @@ def cached_evaluate(grade: str, route_json: str, diameter_mm, thickness_mm, comp
                     heat_json: str | None = None) -> dict:
     """:func:`selector.evaluate` of one candidate (``route_json``: its steps as JSON;
     ``heat_json``: a heat analysis as JSON, element → wt %)."""
+    _count("evaluate")
     return selector.evaluate(grade, json.loads(route_json), diameter_mm=diameter_mm,
                              thickness_mm=thickness_mm, composition=composition,
                              heat_composition=None if heat_json is None else json.loads(heat_json))
@@ -85,6 +120,7 @@ def cached_sweep(diameters_mm: tuple, case_json: str, extra_json: str = "{}", pr
     sidebar's other targets (``extra_json``), the price sheet and the service
     conditions for the cautions; ``route`` holds the steps of each pick.  Cached per
     argument set: the sweep runs the selection once per diameter."""
+    _count("sweep")
     return sweep_with_picks(list(diameters_mm), **json.loads(case_json),
                             extra_targets=json.loads(extra_json) or None,
                             price_sheet=_prices(price_items), caution_context=json.loads(context_json))
@@ -96,6 +132,7 @@ def cached_alternatives(grade: str, route_json: str, diameter_mm, thickness_mm, 
     section, length and price sheet in force, with the material and processing parts
     of each cost (:func:`selector.selection.cost_split.split_cost`); the reference's
     own split in ``attrs["reference"]``."""
+    _count("alternatives")
     alt = engine.alternatives(grade, json.loads(route_json), diameter_mm,
                               thickness_mm=thickness_mm, length_mm=length_mm, price_sheet=_prices(price_items))
     ref = dict(alt.attrs["reference"])
@@ -106,3 +143,20 @@ def cached_alternatives(grade: str, route_json: str, diameter_mm, thickness_mm, 
     out = split_cost(alt)
     out.attrs["reference"] = ref
     return out
+
+
+@st.cache_data(show_spinner=False, max_entries=32)
+def cached_map(prepare_args: tuple, rank_args: tuple, targets_json: str, n_drawn: int, y: str, system: str,
+               picked_variant: str) -> dict:
+    """The Vega-Lite spec of the strength-elongation map (:func:`~selector.views.page.charts.strength_elongation_chart`)
+    of the first ``n_drawn`` candidates of ``cached_rank(*rank_args)`` and the one in
+    focus, in the display units of ``system``: a display, not a library computation
+    (built from the cached ranking and states; kept so that a second visit or a
+    return to earlier inputs draws it at once)."""
+    cand = cached_rank(*rank_args)
+    top = cand.head(n_drawn)
+    states = cached_variant_states(*prepare_args, tuple(sorted(set(top["variant"]) | {picked_variant})))
+    picked_id = cand.set_index("variant").loc[picked_variant, "id"]
+    frames = charts.chart_frames(states, top, y, system, picked=picked_id)
+    return charts.chart_spec(charts.strength_elongation_chart(frames, json.loads(targets_json), y, system,
+                                                              picked=picked_id))

@@ -19,6 +19,20 @@ from selector.views.units import display_name, quantity_of, to_display, unit
 from .text import family_label, param_label, param_unit, percent, pick_label, route_line
 
 
+# the page builds its charts without Altair's check of every object against the
+# Vega-Lite schema at creation (a few tenths of a second per chart on each run);
+# ``chart_spec`` skips the check at export too; the tests export with the check
+try:
+    alt.utils.schemapi.disable_debug_mode()
+except AttributeError:             # pragma: no cover - an Altair without the switch checks as before
+    pass
+
+
+def chart_spec(chart) -> dict:
+    """The Vega-Lite spec of an Altair chart, without the schema check (see above)."""
+    return chart.to_dict(validate=False)
+
+
 PALETTE = ["#1b6f8a", "#c2571a", "#5b8c2a", "#8e3b74", "#b3922b", "#3f4fa3", "#a8323e", "#2f8f7b",
            "#6b5a3e", "#d07fa8", "#4d7ea8", "#7c8a1f", "#9b5fc0", "#c0873f", "#355c4a"]
 TARGET_FILL = "#f1e6c8"
@@ -76,16 +90,25 @@ def chart_frames(states: pd.DataFrame, cand: pd.DataFrame, y: str, system: str,
     family's name from the library) for the colour.  ``y``: ``yield_mpa`` or ``uts_mpa``."""
     regions, paths = [], []
     fam_of = dict(zip(cand["id"], [family_label(f) for f in cand["route_family"]]))
-    drawn = states[states["variant"].isin(list(cand["variant"]))]
+    wanted = set(cand["variant"])
+    # one pass over the states: the rows of each drawn candidate (a mask per candidate costs more)
+    by_variant = {v: g for v, g in states.groupby("variant", sort=False) if v in wanted}
+    empty = states.iloc[:0]
+    drawn = [g for g in by_variant.values()]
+    ex_all = np.concatenate([g["elongation_pct"].to_numpy(float) for g in drawn]) if drawn else np.zeros(0)
+    ey_all = np.concatenate([g[y].to_numpy(float) for g in drawn]) if drawn else np.zeros(0)
     # a path shorter than this share of the drawn spread carries no end labels (they would overlap)
-    span_x = float(np.nanmax(drawn["elongation_pct"]) - np.nanmin(drawn["elongation_pct"])) if len(drawn) else 0.0
-    span_y = float(np.nanmax(drawn[y]) - np.nanmin(drawn[y])) if len(drawn) else 0.0
-    for _, c in cand.iterrows():
-        s = states[states["variant"] == c["variant"]]
+    span_x = float(np.nanmax(ex_all) - np.nanmin(ex_all)) if len(ex_all) else 0.0
+    span_y = float(np.nanmax(ey_all) - np.nanmin(ey_all)) if len(ey_all) else 0.0
+    for c in cand[["variant", "id", "label"] + (["window_parameter"] if "window_parameter" in cand else [])
+                  ].to_dict("records"):
+        s = by_variant.get(c["variant"], empty)
         focus = c["id"] == picked
         band = hull_band(s["elongation_pct"], s[y])
         if len(band):
-            regions.append(band.assign(label=c["label"], id=c["id"], family=fam_of[c["id"]], focus=focus))
+            regions.append({"x": band["x"].to_numpy(), "lo": band["lo"].to_numpy(), "hi": band["hi"].to_numpy(),
+                            "label": c["label"], "id": c["id"], "family": fam_of[c["id"]], "focus": focus,
+                            "n": len(band)})
         nom = s[s["corner"] == "nominal"].dropna(subset=["elongation_pct", y])
         nom = nom.sort_values("main_value") if nom["main_value"].notna().any() else nom
         if len(nom):
@@ -102,14 +125,21 @@ def chart_frames(states: pd.DataFrame, cand: pd.DataFrame, y: str, system: str,
             if focus:
                 keep[::max(1, int(math.ceil(n / 8)))] = True    # and along the focus path
             text = [_param_text(v, q, u) if (k and v == v) else "" for v, k in zip(shown, keep)]
-            paths.append(pd.DataFrame({"x": nom["elongation_pct"].to_numpy(float),
-                                       "y": nom[y].to_numpy(float), "order": np.arange(n),
-                                       "text": text, "param": shown, "label": c["label"], "id": c["id"],
-                                       "family": fam_of[c["id"]], "focus": focus}))
-    reg = pd.concat(regions, ignore_index=True) if regions else pd.DataFrame(
+            paths.append({"x": ex, "y": ey, "order": np.arange(n), "text": text, "param": shown,
+                          "label": c["label"], "id": c["id"], "family": fam_of[c["id"]], "focus": focus, "n": n})
+
+    def stacked(parts, arrays, scalars):
+        """One frame of the per-candidate pieces: array columns joined, scalar columns repeated."""
+        out = {k: np.concatenate([np.asarray(pc[k]) for pc in parts]) for k in arrays}
+        for k in scalars:
+            out[k] = np.repeat(np.array([pc[k] for pc in parts], dtype=object if k != "focus" else bool),
+                               [pc["n"] for pc in parts])
+        return pd.DataFrame(out)
+
+    reg = stacked(regions, ("x", "lo", "hi"), ("label", "id", "family", "focus")) if regions else pd.DataFrame(
         columns=["x", "lo", "hi", "label", "id", "family", "focus"])
-    pth = pd.concat(paths, ignore_index=True) if paths else pd.DataFrame(
-        columns=["x", "y", "order", "text", "param", "label", "id", "family", "focus"])
+    pth = stacked(paths, ("x", "y", "order", "text", "param"), ("label", "id", "family", "focus")) if paths \
+        else pd.DataFrame(columns=["x", "y", "order", "text", "param", "label", "id", "family", "focus"])
     pts = pd.DataFrame({"x": cand["elongation_pct"].to_numpy(float), "y": cand[y].to_numpy(float),
                         "label": cand["label"], "id": cand["id"], "grade": cand["grade"],
                         "tag": [f"{i} {g}" if (p or i == picked) else i
