@@ -315,3 +315,21 @@ def test_columns_read_cover_every_frame_attribute():
     f = ca._Frame(df)
     attrs = {k for k in vars(f) if k != "n"}
     assert attrs <= cols | {"route"}
+
+
+def test_shallow_hardening_on_martemper_and_bought_quenched_and_tempered_bar():
+    # Grossmann's 50 % martensite criterion at the centre (Grossmann 1952, ASTM A255; from memory,
+    # common practice): a martemper hardens to martensite like a quench, and a bar bought quenched
+    # and tempered was hardened by the mill; both are judged on their centre martensite
+    base = dict(grade="4140", family="alloy_steel", c_pct=0.40, uts_mpa=1000.0)
+    rows = frame(dict(base, route="martemper", center_martensite_pct=44.0),
+                 dict(base, route="martemper", center_martensite_pct=50.0),
+                 dict(base, route="supply", quench="oil", center_martensite_pct=49.9),
+                 dict(base, route="supply", quench="oil", center_martensite_pct=59.0),
+                 dict(base, route="supply", quench="", center_martensite_pct=np.nan),    # not quenched
+                 dict(base, route="supply_nitride", quench="oil", center_martensite_pct=30.0),
+                 dict(base, route="austemper", center_martensite_pct=0.1))              # bainite by design
+    got = [("shallow_hardening" in c) for c in fired(rows, strength_target=True)]
+    assert got == [True, False, True, False, False, True, False]
+    # no strength target: the rule does not apply
+    assert not any("shallow_hardening" in c for c in fired(rows, strength_target=False))
