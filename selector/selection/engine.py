@@ -92,15 +92,19 @@ def _main_param(route: str):
     return fam_registry.get(route).main_parameter
 
 
-def _follows_main(states: pd.DataFrame, idx: np.ndarray, main: str | None, param: str) -> bool:
-    """True where ``param`` is set by the grade and the main parameter on the states
-    ``idx`` of one route (e.g. the hold of an austemper grid, chosen per bath temperature):
-    it then does not split a variant, whose main parameter already tells its states apart."""
-    if not main or main not in states:
+def _follows_main(grade: np.ndarray, main: np.ndarray | None, param: np.ndarray) -> bool:
+    """True where ``param`` is set by the grade and the main parameter on the states of one
+    route (arrays over those states; e.g. the hold of an austemper grid, chosen per bath
+    temperature): it then does not split a variant, whose main parameter already tells
+    its states apart."""
+    if main is None:
         return False
-    sub = pd.DataFrame({"g": states["grade"].to_numpy()[idx], "m": states[main].to_numpy()[idx],
-                        "p": states[param].to_numpy()[idx]})
-    return bool((sub.groupby(["g", "m"], sort=False, dropna=False)["p"].nunique(dropna=False) <= 1).all())
+    g = pd.factorize(grade)[0].astype(np.int64)
+    m, n_m = pd.factorize(main, use_na_sentinel=False)
+    v, n_v = pd.factorize(param, use_na_sentinel=False)
+    gm = g * len(n_m) + m
+    # as many distinct (grade, main, param) as distinct (grade, main): one param value per pair
+    return len(np.unique(gm * len(n_v) + v)) == len(np.unique(gm))
 
 
 def _variant_keys(states: pd.DataFrame) -> np.ndarray:
@@ -108,16 +112,25 @@ def _variant_keys(states: pd.DataFrame) -> np.ndarray:
     grade = states["grade"].to_numpy(dtype=object)
     route = states["route"].to_numpy(dtype=object)
     out = np.empty(len(states), dtype=object)
+    arrays: dict = {}
+
+    def column(c):                       # each column converted once (string columns are costly)
+        if c not in arrays:
+            arrays[c] = states[c].to_numpy()
+        return arrays[c]
+
     for r in pd.unique(route):
         idx = np.flatnonzero(route == r)
         fam = fam_registry.get(r)
+        mp = fam.main_parameter if fam.main_parameter in states else None
+        main = column(mp)[idx] if mp else None
         others = [p for p in fam.parameters if p != fam.main_parameter and p in states
-                  and not _follows_main(states, idx, fam.main_parameter, p)]
+                  and not _follows_main(grade[idx], main, column(p)[idx])]
         # the key text is built once per distinct combination, then taken per state
         combo = np.zeros(len(idx), dtype=np.int64)
         texts = [np.asarray([f"{r}"], dtype=object)]
         codes_all = [np.zeros(len(idx), dtype=np.int64)]
-        for col in [grade[idx]] + [states[c].to_numpy()[idx] for c in others]:
+        for col in [grade[idx]] + [column(c)[idx] for c in others]:
             codes, uniq = pd.factorize(col, use_na_sentinel=False)
             codes_all.append(codes)
             texts.append(np.asarray(uniq).astype(str).astype(object))
