@@ -60,8 +60,11 @@ def test_tme_only_for_hardened_plain_and_low_alloy_steels():
                dict(base, grade="1045", family="carbon_steel", route="induction"),
                dict(base, grade="420", family="stainless_martensitic"),     # own embrittlement range
                dict(base, grade="6061", family="aluminium", route="age"),
-               dict(base, grade="4140", family="alloy_steel", route="nitride"))
-    assert only("tme", df) == [True, True, True, False, False, False]
+               dict(base, grade="4140", family="alloy_steel", route="nitride"),
+               dict(base, grade="4140", family="alloy_steel", route="martemper"),
+               dict(base, grade="4140", family="alloy_steel", route="martemper", temper_temp_c=400.0),
+               dict(base, grade="4140", family="alloy_steel", route="austemper", temper_temp_c=np.nan))
+    assert only("tme", df) == [True, True, True, False, False, False, True, False, False]
 
 
 # --- hydrogen embrittlement when plated: >= 320 HV (32.2 HRC), or >= 1000 MPa (ISO 4042 §6) ---

@@ -21,8 +21,9 @@ families leaves the columns of the others empty.
 The rules (thresholds and sources in ``data/cautions.csv``):
 
 =======================  =====================================================
-tme                      hardened steel tempered at 260-370 °C (final temper, or
-                         the prior temper of an induction-hardened core)
+tme                      hardened steel tempered at 260-370 °C (final temper of
+                         Q&T, martemper, induction or carburize, or the prior
+                         temper of an induction-hardened core)
 hydrogen_embrittlement   plated steel (not austenitic) at >= 320 HV core or
                          surface (32.2 HRC, ASTM E140) or >= 1000 MPa
                          (ISO 4042:1999 §6)
@@ -138,7 +139,9 @@ SERVICE_MARGIN_C = 50.0
 GALVANIC_LIMITS_V = MappingProxyType({"harsh": 0.15, "normal": 0.25, "controlled": 0.50})
 
 HARDENED_STEELS = ("carbon_steel", "alloy_steel", "carburizing_steel", "nitriding_steel")
-HARDENING_ROUTES = ("quench_temper", "induction", "carburize")
+#: routes whose final temper follows a hardening to martensite (a martemper's temper too: the bath only
+#: delays the martensite, its temper embrittles in the same range)
+HARDENING_ROUTES = ("quench_temper", "induction", "carburize", "martemper")
 HE_FAMILIES = ("carbon_steel", "alloy_steel", "carburizing_steel", "nitriding_steel",
                "stainless_martensitic", "stainless_ph", "tool_steel", "maraging_steel")
 DECARB_FAMILIES = ("carbon_steel", "alloy_steel", "carburizing_steel", "nitriding_steel",
