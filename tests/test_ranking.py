@@ -213,15 +213,18 @@ def test_bad_min_p_meet(value):
     with pytest.raises(InputError) as e:
         selector.select(SHAFT, diameter_mm=60, min_p_meet=value)
     msg = str(e.value)
-    assert "min_p_meet" in msg and "(0, 1]" in msg
+    # the field, the value and what is allowed
+    assert f"min_p_meet={value!r}" in msg and "(0, 1]" in msg
 
 
-@pytest.mark.parametrize("value", [["water_quench"], ["tme", "nope"], [3], "bogus", 5])
-def test_bad_allow(value):
+@pytest.mark.parametrize("value, bad", [(["water_quench"], "water_quench"), (["tme", "nope"], "nope"), ([3], 3),
+                                        ("bogus", "bogus"), (5, 5)])
+def test_bad_allow(value, bad):
     with pytest.raises(InputError) as e:
         selector.select(SHAFT, diameter_mm=60, allow=value)
     msg = str(e.value)
-    assert "allow" in msg and "quench_cracking" in msg
+    # the field, the offending value and the accepted rule codes
+    assert f"allow={bad!r}" in msg and "quench_cracking" in msg and "shallow_hardening" in msg
 
 
 def test_min_p_meet_one_is_accepted_and_stricter():
