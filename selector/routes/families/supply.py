@@ -56,9 +56,10 @@ from ...models import conversions, stress_relief
 from ..model_inputs import restrict, uses
 from .. import bands
 from . import get
-from .base import Batch, RouteFamily
+from .base import Batch, RouteFamily, at_position, tension_test_position
 from .cold_work import stress_relief_steps
-from .quench_temper import HARDENING_INPUTS, default_austenitize_c, through_harden
+from .quench_temper import (HARDENING_INPUTS, _as_quenched_distinct, core_model_inputs, correlation_class,
+                            default_austenitize_c)
 
 STEEL_SCALE = ("carbon_steel", "alloy_steel", "carburizing_steel", "nitriding_steel", "stainless_martensitic",
                "stainless_ph", "tool_steel", "maraging_steel")
@@ -107,8 +108,8 @@ def mill_structure(batch: Batch, quench) -> dict:
         (:data:`~selector.routes.families.quench_temper.HARDENING_INPUTS`) on the mill-quenched
         states (mask ``core``), for ``routes.evaluate.finish`` to check.
 
-    Method: :func:`selector.routes.families.quench_temper.through_harden` (untempered: the
-    as-quenched profile; Grossmann H, conduction cooling, ASTM A255) with the mill's medium,
+    Method: the as-quenched chain of :func:`selector.routes.families.quench_temper.through_harden`
+    (Grossmann H, conduction cooling, ASTM A255, martensite %) with the mill's medium,
     :data:`MILL_AGITATION` agitation and the grade's default austenitizing temperature.
     Validity: that of the chain (declared through ``HARDENING_INPUTS``).
 
@@ -128,13 +129,17 @@ def mill_structure(batch: Batch, quench) -> dict:
     mi: dict = {"core": on.copy()}
     if on.any():
         sub = batch.subset(on)
-        used = np.unique(sub.gidx)
-        aust_g = np.full(len(batch.grades), np.nan)
-        aust_g[used] = [default_austenitize_c(batch.grades[i]) for i in used]
+        aust = np.array([_austenitize_c(g) for g in sub.grades], float)[sub.gidx]
+        # the as-quenched part of through_harden (no temper: the strength is the row's)
+        prof = _as_quenched_distinct(sub, q[on], np.full(sub.n, MILL_AGITATION, dtype=object), aust)
+        pos = np.asarray(prof["positions"], float)
+        mart = np.asarray(prof["martensite_pct"], float)
+        cm[on] = at_position(mart, pos, np.zeros(sub.n))
+        where = tension_test_position(sub.section_mm)
         nan = np.full(sub.n, np.nan)
-        r = through_harden(sub, q[on], np.full(sub.n, MILL_AGITATION, dtype=object), aust_g[sub.gidx], nan, nan)
-        cm[on] = np.asarray(r["center_martensite_pct"], float)
-        for k, v in r["model_inputs"].items():
+        sub_mi = core_model_inputs(prof, sub.comp, pos, where, nan, nan, 100.0 - at_position(mart, pos, where),
+                                   correlation_class(sub.attr("family")))
+        for k, v in sub_mi.items():
             v = np.asarray(v)
             if v.shape != (sub.n,):
                 continue
@@ -146,6 +151,17 @@ def mill_structure(batch: Batch, quench) -> dict:
     for k in ("core_tempered", "core_mixed_tempered", "alloy_class", "carbon_class"):
         mi[k] = np.zeros(n, bool)
     return {"center_martensite_pct": cm, "model_inputs": mi}
+
+
+_AUSTENITIZE: dict = {}
+
+
+def _austenitize_c(grade) -> float:
+    """:func:`~selector.routes.families.quench_temper.default_austenitize_c`, kept per grade id."""
+    key = (grade.id, grade.family)
+    if key not in _AUSTENITIZE:
+        _AUSTENITIZE[key] = default_austenitize_c(grade)
+    return _AUSTENITIZE[key]
 
 
 def _mill_quenches(batch: Batch) -> np.ndarray:
