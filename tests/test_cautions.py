@@ -60,8 +60,11 @@ def test_tme_only_for_hardened_plain_and_low_alloy_steels():
                dict(base, grade="1045", family="carbon_steel", route="induction"),
                dict(base, grade="420", family="stainless_martensitic"),     # own embrittlement range
                dict(base, grade="6061", family="aluminium", route="age"),
-               dict(base, grade="4140", family="alloy_steel", route="nitride"))
-    assert only("tme", df) == [True, True, True, False, False, False]
+               dict(base, grade="4140", family="alloy_steel", route="nitride"),
+               dict(base, grade="4140", family="alloy_steel", route="martemper"),
+               dict(base, grade="4140", family="alloy_steel", route="martemper", temper_temp_c=400.0),
+               dict(base, grade="4140", family="alloy_steel", route="austemper", temper_temp_c=np.nan))
+    assert only("tme", df) == [True, True, True, False, False, False, True, False, False]
 
 
 # --- hydrogen embrittlement when plated: >= 320 HV (32.2 HRC), or >= 1000 MPa (ISO 4042 §6) ---
@@ -315,3 +318,21 @@ def test_columns_read_cover_every_frame_attribute():
     f = ca._Frame(df)
     attrs = {k for k in vars(f) if k != "n"}
     assert attrs <= cols | {"route"}
+
+
+def test_shallow_hardening_on_martemper_and_bought_quenched_and_tempered_bar():
+    # Grossmann's 50 % martensite criterion at the centre (Grossmann 1952, ASTM A255; from memory,
+    # common practice): a martemper hardens to martensite like a quench, and a bar bought quenched
+    # and tempered was hardened by the mill; both are judged on their centre martensite
+    base = dict(grade="4140", family="alloy_steel", c_pct=0.40, uts_mpa=1000.0)
+    rows = frame(dict(base, route="martemper", center_martensite_pct=44.0),
+                 dict(base, route="martemper", center_martensite_pct=50.0),
+                 dict(base, route="supply", quench="oil", center_martensite_pct=49.9),
+                 dict(base, route="supply", quench="oil", center_martensite_pct=59.0),
+                 dict(base, route="supply", quench="", center_martensite_pct=np.nan),    # not quenched
+                 dict(base, route="supply_nitride", quench="oil", center_martensite_pct=30.0),
+                 dict(base, route="austemper", center_martensite_pct=0.1))              # bainite by design
+    got = [("shallow_hardening" in c) for c in fired(rows, strength_target=True)]
+    assert got == [True, False, True, False, False, True, False]
+    # no strength target: the rule does not apply
+    assert not any("shallow_hardening" in c for c in fired(rows, strength_target=False))

@@ -131,3 +131,21 @@ def test_alternatives_are_cheaper_and_sorted():
     assert (alt["elongation_pct"] >= ref["elongation_pct"] - 1.0 - 1e-6).all()
     assert ref["targets"]["min_yield_mpa"] == pytest.approx(ref["yield_mpa"])
     assert not ((alt["grade"] == "4340") & (alt["route_family"] == "quench_temper")).any()
+
+
+def test_a_parameter_set_by_the_main_one_does_not_split_a_variant():
+    # the austemper grid chooses its hold per bath temperature (austemper.hold_for): the hold does
+    # not make each bath temperature a candidate of its own; one candidate per grade and route
+    # with a window over the bath temperature
+    res = selector.select({"min_yield_mpa": 800, "min_elongation_pct": 12}, diameter_mm=60)
+    aus = res[res["route_family"] == "austemper"]
+    assert len(aus) >= 3
+    assert not aus["grade"].duplicated().any()
+    p = prepare(60)
+    nom = p.iloc[:len(p) // 3]
+    a = nom[nom["route"] == "austemper"]
+    assert (a.groupby("grade")["hold_hours"].nunique() > 1).any()      # the hold does vary with the bath
+    assert (a.groupby("grade")["variant"].nunique() == 1).all()
+    # a real choice (the quench of a Q&T route) still splits variants
+    qt = nom[nom["route"] == "quench_temper"]
+    assert (qt.groupby("grade")["variant"].nunique() == qt.groupby("grade")["quench"].nunique()).all()

@@ -216,3 +216,101 @@ def test_every_supply_row_has_source_and_known_grade():
         for r in grade_rows:
             assert r.source.strip() and r.standard.strip()
             assert r.condition in sup.CONDITIONS
+
+
+QT_BD = [{"op": "supply", "condition": "quenched_tempered", "designation": "ASTM A434 class BD"}]
+
+
+def test_bought_quenched_and_tempered_bar_has_the_mill_quench_and_its_centre_martensite():
+    # ASTM A434 leaves the quench medium to the producer; the row names oil (common practice for
+    # alloy bar), and the bar's centre martensite is the hardenability chain's for that quench at
+    # the part's section: the same as the in-house oil quench of the grade (moderate agitation,
+    # the grade's default austenitizing temperature)
+    bought = evaluate("4140", QT_BD, diameter_mm=60)
+    in_house = evaluate("4140", [{"op": "harden", "quench": "oil"}], diameter_mm=60)
+    assert sup.mill_quench(gr.default_catalogue().lookup("4140"), "quenched_tempered", "ASTM A434 class BD") == "oil"
+    assert bought["center_martensite_pct"] == pytest.approx(in_house["center_martensite_pct"], rel=1e-9)
+    # 4140 in oil through-hardens a 60 mm round to at least 50 % martensite at the centre, while
+    # plain carbon C45/1045 quenched in water does not (critical diameters of Grossmann's charts,
+    # ASM Handbook Vol. 4, 1991, hardenability of steels: 4140 oil about 2.5 in, 1045 water about
+    # 1 in; from memory)
+    assert bought["center_martensite_pct"] >= 50.0
+    c45 = evaluate("1045", [{"op": "supply", "condition": "quenched_tempered"}], diameter_mm=60)
+    assert c45["center_martensite_pct"] < 50.0
+    # the properties stay those of the row (the standard's guarantee), not the chain's
+    assert bought["yield_mpa"] == pytest.approx(896.0)
+    assert any("mill quench" in w for w in bought["warnings"])
+    # a bar not quenched by the mill has no centre martensite
+    cd = evaluate("1045", [{"op": "supply", "condition": "cold_drawn"}], diameter_mm=25)
+    assert cd.get("center_martensite_pct") is None or np.isnan(cd["center_martensite_pct"])
+
+
+def test_bought_quenched_and_tempered_bar_in_the_selection_is_judged_on_its_centre():
+    shaft = select({"min_yield_mpa": 350, "min_elongation_pct": 12}, diameter_mm=60)
+    bought = shaft[(shaft["route_family"] == "supply") & (shaft["route_text"].str.contains("quenched and tempered"))]
+    assert len(bought) >= 2
+    assert set(bought["quench"]) <= {"oil", "water"}
+    slack = bought["center_martensite_pct"] < 50.0
+    assert slack.any() and (~slack).any()
+    # the centre-martensite avoid rule applies as to an in-house quench and temper
+    assert bought.loc[slack, "avoid"].str.contains("shallow_hardening").all()
+    assert not bought.loc[~slack, "avoid"].str.contains("shallow_hardening").any()
+    # a bar bought cold drawn, hot rolled or normalized carries neither a quench nor the rule
+    other = shaft[(shaft["route_family"] == "supply") & ~shaft.index.isin(bought.index)]
+    assert len(other) and other["center_martensite_pct"].isna().all()
+    assert not other["avoid"].str.contains("shallow_hardening").any()
+
+
+def test_bought_quenched_and_tempered_core_under_a_surface_treatment():
+    for steps in (QT_BD + [{"op": "nitride", "temp_c": 525, "hours": 20}],
+                  QT_BD + [{"op": "induction_harden", "case_depth_mm": 2, "quench": "polymer"}]):
+        r = evaluate("4140", steps, diameter_mm=60)
+        assert r["center_martensite_pct"] == pytest.approx(evaluate("4140", QT_BD, diameter_mm=60)
+                                                           ["center_martensite_pct"], rel=1e-9)
+    r = evaluate("4140", [{"op": "supply", "condition": "normalized"},
+                          {"op": "induction_harden", "case_depth_mm": 2, "quench": "polymer"}], diameter_mm=60)
+    assert r.get("center_martensite_pct") is None or np.isnan(r["center_martensite_pct"])
+
+
+@pytest.mark.parametrize("condition, quench, basis, column, fragment", [
+    ("quenched_tempered", "", "x", "mill_quench", "is empty"),
+    ("quenched_tempered", "oil", "", "mill_quench_basis", "is empty"),
+    ("quenched_tempered", "brine", "x", "mill_quench", "is not one of"),
+    ("cold_drawn", "oil", "x", "mill_quench", "only quenched_tempered rows"),
+])
+def test_bad_mill_quench_rejected(tmp_path, condition, quench, basis, column, fragment):
+    src = data_dir() / "supply_conditions.csv"
+    lines = src.read_text(encoding="utf-8").splitlines()
+    first = next(i for i, l in enumerate(lines) if l.strip() and not l.startswith("#")) + 2
+    header = next(csv.reader([lines[first - 2]]))
+    cells = next(csv.reader([lines[first - 1]]))
+    for k, v in (("condition", condition), ("mill_quench", quench), ("mill_quench_basis", basis),
+                 ("designation", "test row")):
+        cells[header.index(k)] = v
+    buf = io.StringIO()
+    csv.writer(buf, lineterminator="").writerow(cells)
+    lines[first - 1] = buf.getvalue()
+    p = tmp_path / "supply_conditions.csv"
+    p.write_text("\n".join(lines) + "\n", encoding="utf-8")
+    with pytest.raises(DataFileError) as exc:
+        sup.read_supply(p)
+    assert exc.value.line == first and exc.value.column == column
+    assert fragment in str(exc.value)
+
+
+def test_one_mill_quench_per_designation(tmp_path):
+    src = data_dir() / "supply_conditions.csv"
+    lines = src.read_text(encoding="utf-8").splitlines()
+    header = next(csv.reader([next(l for l in lines if l.startswith("grade,"))]))
+    rows = [i for i, l in enumerate(lines) if l.startswith("4140,quenched_tempered,EN 10083-3")]
+    assert len(rows) >= 2
+    cells = next(csv.reader([lines[rows[1]]]))
+    cells[header.index("mill_quench")] = "water"
+    buf = io.StringIO()
+    csv.writer(buf, lineterminator="").writerow(cells)
+    lines[rows[1]] = buf.getvalue()
+    p = tmp_path / "supply_conditions.csv"
+    p.write_text("\n".join(lines) + "\n", encoding="utf-8")
+    with pytest.raises(DataFileError) as exc:
+        sup.read_supply(p)
+    assert exc.value.column == "mill_quench" and "one mill quench" in str(exc.value)

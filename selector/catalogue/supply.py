@@ -11,6 +11,13 @@ bar); otherwise the hardness follows from the tensile strength (ASTM A370 Table 
 
 The ``annealed`` condition needs no row: it is the catalogue's baseline of every grade
 whose ``base_condition`` is an annealed one (:func:`conditions_for`).
+
+A ``quenched_tempered`` row also names the medium the bar maker is taken to quench in
+(``mill_quench``, with its ``mill_quench_basis``: the product standards, e.g. ASTM A434
+and EN 10083, leave the medium to the producer, so the basis is common practice or a
+recalled table).  The route family runs the grade's hardenability chain at the part's
+section with it (:func:`mill_quench`), so a bought quenched-and-tempered bar reports its
+quench and its centre martensite like a bar hardened in-house.
 """
 from __future__ import annotations
 
@@ -34,6 +41,8 @@ CONDITIONS = {
     "aged": "solution treated and aged (temper as bought)",
 }
 BASES = ("minimum", "typical")
+#: media a mill quench may name (quench_severity names; data/supply_conditions.csv, mill_quench)
+MILL_QUENCHES = ("oil", "water", "polymer")
 #: conditions a bar leaves with residual cold work (stress relieving applies to them)
 COLD_WORKED = ("cold_drawn",)
 
@@ -50,6 +59,15 @@ def _check_row(r):
         return ("hardness_hrc_min", f"{lo} is above hardness_hrc_max {hi}")
     if r["condition"] == "annealed":
         return ("condition", "'annealed' is the catalogue baseline (data/grades.csv); give no row for it")
+    if r["condition"] == "quenched_tempered":
+        if not r["mill_quench"]:
+            return ("mill_quench", f"is empty; a quenched_tempered row names the mill's medium "
+                    f"({', '.join(MILL_QUENCHES)})")
+        if not str(r["mill_quench_basis"]).strip():
+            return ("mill_quench_basis", "is empty; say why that medium (common practice or a source)")
+    elif r["mill_quench"]:
+        return ("mill_quench", f"{r['mill_quench']!r} on a {r['condition']} row; only quenched_tempered rows "
+                "name a mill quench (leave it blank)")
     return None
 
 
@@ -60,7 +78,9 @@ SUPPLY_SCHEMA = Schema((
     Column("elongation_pct", "float", lo=0, hi=80),
     Column("hardness_hrc_min", "float", lo=0, hi=70, allow_blank=True),
     Column("hardness_hrc_max", "float", lo=0, hi=70, allow_blank=True),
-    Column("basis", "choice", choices=BASES), Column("standard"),
+    Column("basis", "choice", choices=BASES),
+    Column("mill_quench", "choice", choices=MILL_QUENCHES, allow_blank=True),
+    Column("mill_quench_basis", allow_blank=True), Column("standard"),
     Column("source"), Column("confidence", "choice", choices=CONFIDENCE),
 ), row_check=_check_row)
 
@@ -81,6 +101,8 @@ class SupplyRow:
     standard: str
     source: str
     confidence: str
+    mill_quench: str = ""
+    mill_quench_basis: str = ""
 
 
 def read_supply(path=None, grade_ids=None) -> dict:
@@ -90,6 +112,7 @@ def read_supply(path=None, grade_ids=None) -> dict:
     df = read_file(p, SUPPLY_SCHEMA)
     out: dict = {}
     seen = {}
+    quench_of: dict = {}
     for r in df.itertuples(index=False):
         if grade_ids is not None and r.grade not in grade_ids:
             raise DataFileError(str(p), r.line, "grade", f"{r.grade!r} is not an id in grades.csv")
@@ -99,10 +122,15 @@ def read_supply(path=None, grade_ids=None) -> dict:
                                 f"{r.grade} {r.condition} {r.designation} from {r.size_min_mm:g} mm "
                                 f"already on line {seen[key]}")
         seen[key] = r.line
+        first = quench_of.setdefault((r.grade, r.condition, r.designation), (r.mill_quench, r.line))
+        if first[0] != r.mill_quench:
+            raise DataFileError(str(p), r.line, "mill_quench",
+                                f"{r.mill_quench!r} differs from {first[0]!r} on line {first[1]}: one mill quench "
+                                f"per grade, condition and designation ({r.grade} {r.designation})")
         out.setdefault(r.grade, []).append(SupplyRow(
             r.grade, r.condition, r.designation, float(r.size_min_mm), float(r.size_max_mm), float(r.uts_mpa),
             float(r.yield_mpa), float(r.elongation_pct), float(r.hardness_hrc_min), float(r.hardness_hrc_max),
-            r.basis, r.standard, r.source, r.confidence))
+            r.basis, r.standard, r.source, r.confidence, r.mill_quench, r.mill_quench_basis))
     return out
 
 
@@ -149,3 +177,19 @@ def pick_row(grade, condition: str, designation: str, size_mm: float):
 
 def designations(grade, condition: str) -> list[str]:
     return [d for c, d in conditions_for(grade) if c == condition]
+
+
+def mill_quench(grade, condition: str, designation: str) -> str:
+    """The medium the bar maker is taken to quench ``grade`` in for ``condition`` /
+    ``designation`` (``data/supply_conditions.csv``, column ``mill_quench``), or ``""``
+    where the bar is not quenched (any condition but ``quenched_tempered``).
+
+    >>> from selector.catalogue.grades import default_catalogue
+    >>> g = default_catalogue().lookup("4140")
+    >>> mill_quench(g, "quenched_tempered", "ASTM A434 class BD"), mill_quench(g, "normalized", "ASM typical 25 mm")
+    ('oil', '')
+    """
+    for r in default_supply().get(grade.id, []):
+        if r.condition == condition and r.designation == designation:
+            return r.mill_quench
+    return ""

@@ -21,8 +21,9 @@ families leaves the columns of the others empty.
 The rules (thresholds and sources in ``data/cautions.csv``):
 
 =======================  =====================================================
-tme                      hardened steel tempered at 260-370 °C (final temper, or
-                         the prior temper of an induction-hardened core)
+tme                      hardened steel tempered at 260-370 °C (final temper of
+                         Q&T, martemper, induction or carburize, or the prior
+                         temper of an induction-hardened core)
 hydrogen_embrittlement   plated steel (not austenitic) at >= 320 HV core or
                          surface (32.2 HRC, ASTM E140) or >= 1000 MPa
                          (ISO 4042:1999 §6)
@@ -39,9 +40,10 @@ galvanic                 anodic-index difference to the named mating material
                          controlled), MIL-DTL-14072 Table VI groups
 service_temperature      service temperature >= tempering, aging or nitriding
                          temperature - 50 °C
-shallow_hardening        through-hardening route (Q&T, the Q&T core of nitride
-                         or induction) with centre martensite < 50 %, when a
-                         minimum strength or hardness is a target
+shallow_hardening        through-hardening route (Q&T, martemper, the Q&T core
+                         of nitride or induction, a bar bought quenched and
+                         tempered: its mill quench) with centre martensite
+                         < 50 %, when a minimum strength or hardness is a target
 =======================  =====================================================
 
 Severity
@@ -120,8 +122,13 @@ DECARB_C_PCT = 0.30
 #: martensite criterion of the critical diameter, ASTM A255; common practice)
 CENTRE_MARTENSITE_MIN_PCT = 50.0
 #: route families that through-harden the section (the centre of a nitride route is its Q&T core;
-#: an induction route's core is its prior quench-and-temper)
-THROUGH_HARDENING_ROUTES = ("quench_temper", "nitride")
+#: an induction route's core is its prior quench-and-temper; a martemper hardens the whole section
+#: to martensite after the bath)
+THROUGH_HARDENING_ROUTES = ("quench_temper", "nitride", "martemper")
+#: route families of a bought bar: through-hardened by the mill where the bar was bought quenched and
+#: tempered (then its ``center_martensite_pct`` is the mill quench's, routes/families/supply.py; NaN
+#: for every other supply condition, which the rule reads as "not through-hardened")
+BOUGHT_ROUTES = ("supply", "supply_nitride", "supply_induction")
 #: severities, mildest first
 SEVERITIES = ("note", "caution", "avoid")
 #: other accepted names of a rule in ``allow=[...]``
@@ -132,7 +139,9 @@ SERVICE_MARGIN_C = 50.0
 GALVANIC_LIMITS_V = MappingProxyType({"harsh": 0.15, "normal": 0.25, "controlled": 0.50})
 
 HARDENED_STEELS = ("carbon_steel", "alloy_steel", "carburizing_steel", "nitriding_steel")
-HARDENING_ROUTES = ("quench_temper", "induction", "carburize")
+#: routes whose final temper follows a hardening to martensite (a martemper's temper too: the bath only
+#: delays the martensite, its temper embrittles in the same range)
+HARDENING_ROUTES = ("quench_temper", "induction", "carburize", "martemper")
 HE_FAMILIES = ("carbon_steel", "alloy_steel", "carburizing_steel", "nitriding_steel",
                "stainless_martensitic", "stainless_ph", "tool_steel", "maraging_steel")
 DECARB_FAMILIES = ("carbon_steel", "alloy_steel", "carburizing_steel", "nitriding_steel",
@@ -302,7 +311,8 @@ def _service_temperature(f: _Frame, ctx: dict) -> np.ndarray:
 def _shallow_hardening(f: _Frame, ctx: dict) -> np.ndarray:
     if not ctx.get("strength_target"):
         return np.zeros(f.n, bool)
-    through = f.isin("route", THROUGH_HARDENING_ROUTES) | ((f.route == "induction") & (f.prior == "quench_temper"))
+    through = (f.isin("route", THROUGH_HARDENING_ROUTES) | ((f.route == "induction") & (f.prior == "quench_temper"))
+               | f.isin("route", BOUGHT_ROUTES))
     with np.errstate(invalid="ignore"):
         slack = np.nan_to_num(f.center_martensite_pct, nan=np.inf) < CENTRE_MARTENSITE_MIN_PCT - 1e-9
     return f.isin("family", HARDENED_STEELS) & through & slack

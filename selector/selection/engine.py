@@ -35,8 +35,18 @@ Definitions (documented in docs/methods/selection.md):
 * The Pareto set is taken over the candidates without an avoid caution (over all
   when every one has one) on the chosen objectives (default: minimise part cost,
   maximise ``p_meet``, maximise elongation).
-* Order (``rank``, 1 = first): candidates without an avoid caution first, then
-  robust first, then Pareto first, then part cost (lowest first), then ``p_meet``.
+* Order (``rank``, 1 = first), risk-aware:
+
+  1. clean (no avoid caution) and robust (``p_meet >= min_p_meet``): by part cost,
+     lowest first;
+  2. clean and not robust: by ``p_meet``, highest first, compared in steps of
+     :data:`P_MEET_STEP` (0.05, about 1.4 Monte Carlo standard errors at 200 draws),
+     then by part cost within a step;
+  3. then the candidates with an avoid caution, in the same two tiers.
+
+  Ties: ``p_meet`` (higher first), then elongation and yield (higher first).  With the
+  default objectives (cost, p_meet, elongation) a candidate never ranks after one it
+  dominates inside a tier.  The Pareto mark is shown, not used to order.
 """
 from __future__ import annotations
 
@@ -82,20 +92,45 @@ def _main_param(route: str):
     return fam_registry.get(route).main_parameter
 
 
+def _follows_main(grade: np.ndarray, main: np.ndarray | None, param: np.ndarray) -> bool:
+    """True where ``param`` is set by the grade and the main parameter on the states of one
+    route (arrays over those states; e.g. the hold of an austemper grid, chosen per bath
+    temperature): it then does not split a variant, whose main parameter already tells
+    its states apart."""
+    if main is None:
+        return False
+    g = pd.factorize(grade)[0].astype(np.int64)
+    m, n_m = pd.factorize(main, use_na_sentinel=False)
+    v, n_v = pd.factorize(param, use_na_sentinel=False)
+    gm = g * len(n_m) + m
+    # as many distinct (grade, main, param) as distinct (grade, main): one param value per pair
+    return len(np.unique(gm * len(n_v) + v)) == len(np.unique(gm))
+
+
 def _variant_keys(states: pd.DataFrame) -> np.ndarray:
     """``grade|route[|other parameter values]`` per state (object array of str)."""
     grade = states["grade"].to_numpy(dtype=object)
     route = states["route"].to_numpy(dtype=object)
     out = np.empty(len(states), dtype=object)
+    arrays: dict = {}
+
+    def column(c):                       # each column converted once (string columns are costly)
+        if c not in arrays:
+            arrays[c] = states[c].to_numpy()
+        return arrays[c]
+
     for r in pd.unique(route):
         idx = np.flatnonzero(route == r)
         fam = fam_registry.get(r)
-        others = [p for p in fam.parameters if p != fam.main_parameter and p in states]
+        mp = fam.main_parameter if fam.main_parameter in states else None
+        main = column(mp)[idx] if mp else None
+        others = [p for p in fam.parameters if p != fam.main_parameter and p in states
+                  and not _follows_main(grade[idx], main, column(p)[idx])]
         # the key text is built once per distinct combination, then taken per state
         combo = np.zeros(len(idx), dtype=np.int64)
         texts = [np.asarray([f"{r}"], dtype=object)]
         codes_all = [np.zeros(len(idx), dtype=np.int64)]
-        for col in [grade[idx]] + [states[c].to_numpy()[idx] for c in others]:
+        for col in [grade[idx]] + [column(c)[idx] for c in others]:
             codes, uniq = pd.factorize(col, use_na_sentinel=False)
             codes_all.append(codes)
             texts.append(np.asarray(uniq).astype(str).astype(object))
@@ -492,6 +527,28 @@ def _route_of(fam, params: tuple) -> tuple:
     return hit
 
 
+#: resolution at which ``p_meet`` orders candidates that are not robust: two candidates whose
+#: ``p_meet`` fall in the same step of 0.05 are ordered by part cost.  A step is about 1.4
+#: Monte Carlo standard errors at N_DRAWS = 200 and p = 0.5 (0.035,
+#: :func:`selector.states.scatter.standard_error`), so that a difference the draws cannot
+#: resolve does not put a dearer candidate first (chosen here; docs/methods/selection.md).
+P_MEET_STEP = 0.05
+
+
+def p_meet_step(p: np.ndarray, robust: np.ndarray) -> np.ndarray:
+    """The ordering key of ``p_meet`` (higher first): ``floor(p / P_MEET_STEP)`` for the
+    candidates that are not robust, one common value (above every step) for the robust
+    ones, which are ordered by cost alone; NaN ``p_meet`` sorts last.
+
+    >>> p_meet_step(np.array([0.54, 0.52, 0.31, 0.97]), np.array([False, False, False, True])).tolist()
+    [10.0, 10.0, 6.0, 21.0]
+    """
+    p = np.asarray(p, float)
+    with np.errstate(invalid="ignore"):
+        step = np.floor(p / P_MEET_STEP + 1e-9)
+    return np.where(np.asarray(robust, bool), np.floor(1.0 / P_MEET_STEP) + 1.0, step)
+
+
 def _finish(cand: pd.DataFrame, t: dict, objectives, service: dict | None = None, allowed=()) -> pd.DataFrame:
     cand = cand.reset_index(drop=True)
     lists = cautions_mod.cautions_for(cand, **(service or {}))
@@ -534,9 +591,11 @@ def _finish(cand: pd.DataFrame, t: dict, objectives, service: dict | None = None
     for c in m.columns:
         cand[c] = m[c].to_numpy()
     cand["_avoid"] = ~clean
-    cand = cand.sort_values(["_avoid", "robust", "pareto", "part_cost", "p_meet", "yield_mpa"],
-                            ascending=[True, False, False, True, False, False], kind="stable").reset_index(drop=True)
-    cand = cand.drop(columns="_avoid")
+    cand["_step"] = p_meet_step(cand["p_meet"].to_numpy(float), cand["robust"].to_numpy(bool))
+    cand = cand.sort_values(["_avoid", "robust", "_step", "part_cost", "p_meet", "elongation_pct", "yield_mpa"],
+                            ascending=[True, False, False, True, False, False, False],
+                            kind="stable", na_position="last").reset_index(drop=True)
+    cand = cand.drop(columns=["_avoid", "_step"])
     cand["rank"] = np.arange(1, len(cand) + 1)
     cols = OUTPUT_COLUMNS + list(m.columns) + [c for c in cand.columns
                                                if c not in OUTPUT_COLUMNS and c not in m.columns]

@@ -20,7 +20,21 @@ What is modelled:
 * induction hardening and nitriding after supply: the induction and nitride families'
   own case models, on a core equal to the supply condition (the core is left as it
   was: induction heats only the case; nitriding below the prior temper leaves a
-  quenched-and-tempered core unchanged, common practice).
+  quenched-and-tempered core unchanged, common practice);
+* the structure of a bar bought quenched and tempered (:func:`mill_structure`): the
+  mill made it by harden and temper, so its ``quench`` is the medium of the row's
+  ``mill_quench`` (oil for the alloy grades, water for plain carbon C45; ASTM A434 and
+  EN 10083 leave the medium to the producer, so this is common practice, stated per
+  row in ``mill_quench_basis``) and its ``center_martensite_pct`` is what the
+  hardenability chain of :func:`selector.routes.families.quench_temper.through_harden`
+  (Grossmann H → conduction cooling → ASTM A255 Jominy curve → martensite %) gives
+  for the grade's composition at the part's section with that medium, moderate
+  agitation and the grade's default austenitizing temperature.  The tensile
+  properties stay those of the row (the standard's guarantee at its test location);
+  the centre martensite lets the caution rules treat the bar like a bar hardened
+  in-house (``shallow_hardening``: centre below 50 % martensite under a strength
+  target).  The tempering temperature of a bought bar is not known: the rules that
+  read it (tempered-martensite embrittlement, service temperature) do not fire on it.
 
 What is not modelled (``NotModelledError``): stress relieving anything but a cold-drawn
 bar (``cold_drawn_stress_relieved`` is already relieved; a quenched-and-tempered bar is
@@ -39,11 +53,13 @@ from ...catalogue import supply as sup
 from ...catalogue.grades import FAMILIES as FAMILIES_ALL
 from ...errors import NotModelledError, RouteError
 from ...models import conversions, stress_relief
-from ..model_inputs import uses
+from ..model_inputs import restrict, uses
 from .. import bands
 from . import get
-from .base import Batch, RouteFamily
+from .base import Batch, RouteFamily, at_position, tension_test_position
 from .cold_work import stress_relief_steps
+from .quench_temper import (HARDENING_INPUTS, _as_quenched_distinct, core_model_inputs, correlation_class,
+                            default_austenitize_c)
 
 STEEL_SCALE = ("carbon_steel", "alloy_steel", "carburizing_steel", "nitriding_steel", "stainless_martensitic",
                "stainless_ph", "tool_steel", "maraging_steel")
@@ -53,6 +69,114 @@ REFERENCES = (
     "ASTM A434, EN 10083 +QT, EN 10277; each row names its table and confidence)",
     "ASTM E140-12b Table 1 / ASTM A370 Table 3 (hardness from tensile strength)",
 )
+
+
+#: grade families whose bar bought quenched and tempered is given the mill's structure
+#: (the hardenability chain; other families are not through-hardened by a quench)
+MILL_HARDENED = ("carbon_steel", "alloy_steel", "carburizing_steel", "nitriding_steel")
+#: agitation of the mill quench (the chain's default; common practice)
+MILL_AGITATION = "moderate"
+MILL_NOTE = ("bought quenched and tempered: centre martensite from the hardenability chain of the grade at this "
+             "section with the mill quench of data/supply_conditions.csv (mill_quench; the product standard leaves "
+             "the medium to the producer: common practice); ask the mill for its quench and the test report")
+
+
+def mill_quench_of(grade, condition: str, designation: str) -> str:
+    """The mill's quench medium of a supply state (``""`` where the bar was not quenched
+    by the mill, or its family is not through-hardened by a quench)."""
+    if grade.family not in MILL_HARDENED:
+        return ""
+    return sup.mill_quench(grade, condition, designation)
+
+
+def mill_structure(batch: Batch, quench) -> dict:
+    """The structure of the bar as the mill made it, for the states whose ``quench``
+    (the mill's medium, ``""`` for none) is given.
+
+    Parameters
+    ----------
+    batch : Batch
+        Supply states (any family of this module).
+    quench : array of str, shape (n,)
+        The mill quench of each state (:func:`mill_quench_of`), ``""`` where none.
+
+    Returns
+    -------
+    dict
+        ``center_martensite_pct`` (n,), NaN where the bar was not quenched by the mill;
+        ``model_inputs``: the inputs of the hardenability chain
+        (:data:`~selector.routes.families.quench_temper.HARDENING_INPUTS`) on the mill-quenched
+        states (mask ``core``), for ``routes.evaluate.finish`` to check.
+
+    Method: the as-quenched chain of :func:`selector.routes.families.quench_temper.through_harden`
+    (Grossmann H, conduction cooling, ASTM A255, martensite %) with the mill's medium,
+    :data:`MILL_AGITATION` agitation and the grade's default austenitizing temperature.
+    Validity: that of the chain (declared through ``HARDENING_INPUTS``).
+
+    Example (illustrative: a 4140 bar bought to ASTM A434 class BD, Ø60 mm; the chain's
+    centre martensite with an oil quench)
+
+    >>> from selector.catalogue.grades import default_catalogue
+    >>> g = default_catalogue().lookup("4140")
+    >>> b = Batch.single(g, g.composition(), {}, 60.0, None)
+    >>> bool(mill_structure(b, ["oil"])["center_martensite_pct"][0] > 50.0)
+    True
+    """
+    n = batch.n
+    q = np.asarray(quench, dtype=object).astype(str)
+    on = q != ""
+    cm = np.full(n, np.nan)
+    mi: dict = {"core": on.copy()}
+    if on.any():
+        sub = batch.subset(on)
+        aust = np.array([_austenitize_c(g) for g in sub.grades], float)[sub.gidx]
+        # the as-quenched part of through_harden (no temper: the strength is the row's)
+        prof = _as_quenched_distinct(sub, q[on], np.full(sub.n, MILL_AGITATION, dtype=object), aust)
+        pos = np.asarray(prof["positions"], float)
+        mart = np.asarray(prof["martensite_pct"], float)
+        cm[on] = at_position(mart, pos, np.zeros(sub.n))
+        where = tension_test_position(sub.section_mm)
+        nan = np.full(sub.n, np.nan)
+        sub_mi = core_model_inputs(prof, sub.comp, pos, where, nan, nan, 100.0 - at_position(mart, pos, where),
+                                   correlation_class(sub.attr("family")))
+        for k, v in sub_mi.items():
+            v = np.asarray(v)
+            if v.shape != (sub.n,):
+                continue
+            full = np.zeros(n, bool) if v.dtype == bool else np.full(n, np.nan)
+            full[on] = v
+            mi[k] = full
+        restrict({"model_inputs": mi}, "core", on)
+    # the bar's strength is the supply row's, not computed here: no tempering or strength model runs
+    for k in ("core_tempered", "core_mixed_tempered", "alloy_class", "carbon_class"):
+        mi[k] = np.zeros(n, bool)
+    return {"center_martensite_pct": cm, "model_inputs": mi}
+
+
+_AUSTENITIZE: dict = {}
+
+
+def _austenitize_c(grade) -> float:
+    """:func:`~selector.routes.families.quench_temper.default_austenitize_c`, kept per grade id."""
+    key = (grade.id, grade.family)
+    if key not in _AUSTENITIZE:
+        _AUSTENITIZE[key] = default_austenitize_c(grade)
+    return _AUSTENITIZE[key]
+
+
+def _mill_quenches(batch: Batch) -> np.ndarray:
+    """:func:`mill_quench_of` of every state of ``batch`` (looked up once per distinct grade,
+    condition and designation)."""
+    cond = np.asarray(batch.params["condition"]).astype(str).tolist()
+    des = np.asarray(batch.params["designation"]).astype(str).tolist()
+    seen: dict = {}
+    out = np.empty(batch.n, dtype=object)
+    for i, key in enumerate(zip(batch.gidx.tolist(), cond, des)):
+        q = seen.get(key)
+        if q is None:
+            q = seen[key] = mill_quench_of(batch.grades[key[0]], key[1], key[2])
+        out[i] = q
+    return out
 
 
 def _designation(grade, condition: str, given):
@@ -140,11 +264,16 @@ class Supply(RouteFamily):
     label = "bar as supplied"
     patterns = (("supply",), ("supply", "stress_relieve"))
     main_parameter = None
-    parameters = ("condition", "designation", "stress_relieve_temp_c", "stress_relieve_hours")
+    #: ``quench``: the mill's medium of a bar bought quenched and tempered (set by the supply row,
+    #: not by the user; ``""`` for the other conditions): :func:`mill_structure`
+    parameters = ("condition", "designation", "stress_relieve_temp_c", "stress_relieve_hours", "quench")
     #: every grade family: a grade admits the route from its supply rows (catalogue/supply.py)
     families = FAMILIES_ALL
-    references = REFERENCES + (stress_relief.REFERENCE,)
-    model_inputs = uses("stress_relief", temp_c="stress_relieve_temp_c", hours="stress_relieve_hours")
+    references = REFERENCES + (stress_relief.REFERENCE,
+                               "hardenability chain of the mill-quenched bar: see selector.routes.families."
+                               "quench_temper (Grossmann H, conduction cooling, ASTM A255)")
+    model_inputs = uses("stress_relief", temp_c="stress_relieve_temp_c", hours="stress_relieve_hours") \
+        + HARDENING_INPUTS
 
     def parse(self, steps, grade):
         s = steps[0]
@@ -154,7 +283,7 @@ class Supply(RouteFamily):
                              f"{grade.base_condition!r}, not an annealed steel bar", "supply")
         des = "catalogue baseline" if cond == "annealed" else _designation(grade, cond, s.get("designation"))
         params = {"condition": cond, "designation": des, "stress_relieve_temp_c": float("nan"),
-                  "stress_relieve_hours": float("nan")}
+                  "stress_relieve_hours": float("nan"), "quench": mill_quench_of(grade, cond, des)}
         warns = []
         if len(steps) > 1:
             if cond not in sup.COLD_WORKED:
@@ -178,7 +307,8 @@ class Supply(RouteFamily):
         n = len(pairs)
         return {"condition": np.array([c for c, _ in pairs], dtype=object),
                 "designation": np.array([d for _, d in pairs], dtype=object),
-                "stress_relieve_temp_c": np.full(n, np.nan), "stress_relieve_hours": np.full(n, np.nan)}
+                "stress_relieve_temp_c": np.full(n, np.nan), "stress_relieve_hours": np.full(n, np.nan),
+                "quench": np.array([mill_quench_of(grade, c, d) for c, d in pairs], dtype=object)}
 
     def compute(self, batch: Batch):
         n = batch.n
@@ -203,9 +333,13 @@ class Supply(RouteFamily):
                # a standard's guaranteed minimum at a size the row covers, not relieved here: no model band
                bands.BAND_FREE: (np.asarray(props["minimum"], bool) & ~np.asarray(props["outside"], bool)
                                  & ~relieved).astype(float)}
+        mill = mill_structure(batch, _mill_quenches(batch))
+        out["center_martensite_pct"] = mill["center_martensite_pct"]
+        out["model_inputs"] = mill["model_inputs"]
         notes = _supply_notes(props, batch)
         notes.append(("stress relieving model: ASM Handbook cold-finished bar practice (from memory) on the "
                       "Hollomon-Jaffe time-temperature parameter", relieved))
+        notes.append((MILL_NOTE, np.isfinite(mill["center_martensite_pct"])))
         out["notes"] = notes
         return out
 
@@ -237,6 +371,9 @@ class _SupplyThen(RouteFamily):
                 f"not modelled (modelled supply conditions: {', '.join(self.conditions)})")
         des = "catalogue baseline" if cond == "annealed" else _designation(grade, cond, s.get("designation"))
         inner_params, warns = self._inner().parse(steps[1:], grade)
+        mq = mill_quench_of(grade, cond, des)
+        if mq and self.mill_quench_param in inner_params:
+            inner_params[self.mill_quench_param] = mq
         return {"condition": cond, "designation": des, **inner_params}, warns
 
     def parse(self, steps, grade):
@@ -253,6 +390,9 @@ class _SupplyThen(RouteFamily):
 
     #: inner parameters that describe a prior cycle of ours (none: the bar is bought)
     prior_numeric: tuple = ()
+    #: the inner parameter that names the prior hardening's medium: the mill's, for a bar bought
+    #: quenched and tempered (:func:`mill_quench_of`)
+    mill_quench_param: str = ""
 
     def grid(self, grade):
         pairs = self._pairs(grade)
@@ -275,13 +415,23 @@ class _SupplyThen(RouteFamily):
                "designation": np.array([d for _, d in pairs for _ in range(m)], dtype=object)}
         for k, v in inner.items():
             out[k] = np.concatenate([v] * len(pairs)) if pairs else v[:0]
+        # the prior cycle's quench of a bar bought quenched and tempered is the mill's
+        mq = np.array([mill_quench_of(grade, c, d) for c, d in pairs for _ in range(m)], dtype=object)
+        if self.mill_quench_param in out and len(mq):
+            out[self.mill_quench_param] = np.where(mq != "", mq, out[self.mill_quench_param]).astype(object)
         return out
 
     def compute(self, batch: Batch):
         props = supply_properties(batch)
         res = self._inner().compute(_with_core(batch, props))
+        # the core of a bar bought quenched and tempered has the mill's structure (the inner
+        # family's own core chain did not run: the core is the bought bar)
+        mill = mill_structure(batch, _mill_quenches(batch))
+        res["center_martensite_pct"] = mill["center_martensite_pct"]
+        res.setdefault("model_inputs", {}).update(mill["model_inputs"])
         res["notes"] = [(m, k) for m, k in res.get("notes", []) if not m.startswith(self.drop_note)]
         res["notes"] += _supply_notes(props, batch)
+        res["notes"].append((MILL_NOTE, np.isfinite(mill["center_martensite_pct"])))
         res["notes"].append((f"core: the supplied bar ({self.core_note})", np.ones(batch.n, bool)))
         return res
 
@@ -299,6 +449,7 @@ class SupplyInduction(_SupplyThen):
                   "prior_temper_temp_c", "prior_temper_hours")
     references = REFERENCES + ("induction family references (selector.routes.families.induction)",)
     drop_note = "\u0000"   # no induction note refers to the annealed core
+    mill_quench_param = "prior_quench"
     prior_numeric = ("prior_austenitize_c", "prior_temper_temp_c", "prior_temper_hours")
     core_note = "induction heats only the hardened layer; the core keeps the supply condition's properties"
 
@@ -318,6 +469,7 @@ class SupplyNitride(_SupplyThen):
                   "austenitize_c", "temper_temp_c", "temper_hours")
     references = REFERENCES + ("nitride family references (selector.routes.families.nitride)",)
     drop_note = "nitrided without a prior harden and temper"
+    mill_quench_param = "quench"
     prior_numeric = ("austenitize_c", "temper_temp_c", "temper_hours")
     core_note = ("quenched and tempered by the bar maker; nitriding below its tempering temperature leaves it "
                  "unchanged (common practice); the tempering temperature of a bought bar is not known, so check "
