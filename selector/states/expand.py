@@ -128,42 +128,164 @@ def _computed(fam, batch):
         yield slice(a, b), finish(fam.compute(sub), sub, fam.name)
 
 
-def expand_family(fam, diameter_mm=25.0, thickness_mm=None, grades=None, corners=CORNERS) -> pd.DataFrame:
-    """States table of one route family over ``grades`` (default: the catalogue)."""
-    built = _family_batch(fam, grades or None, diameter_mm, thickness_mm, corners)
-    if built is None:
-        return pd.DataFrame()
-    batch, state_no, corner = built
+class Text:
+    """A text column as integer codes into its distinct values (``codes`` -1: missing): the
+    expansion builds every text column this way and writes each distinct text once."""
+
+    __slots__ = ("codes", "uniques")
+
+    def __init__(self, codes: np.ndarray, uniques):
+        self.codes = np.asarray(codes, np.int64)
+        self.uniques = list(uniques)
+
+    @classmethod
+    def of(cls, values) -> "Text | None":
+        """Codes of an object array whose values are all text or missing; None otherwise."""
+        values = np.asarray(values, dtype=object)
+        codes, uniq = pd.factorize(values, use_na_sentinel=True)
+        if not all(isinstance(u, str) for u in uniq):
+            return None
+        return cls(codes, uniq)
+
+    def series(self) -> pd.Series:
+        """The column as pandas builds it from the object array of its values (str dtype)."""
+        if not self.uniques:
+            return pd.Series(np.full(len(self.codes), np.nan, dtype=object))
+        arr = pd.array(np.asarray(self.uniques, dtype=object), dtype="str")
+        return pd.Series(arr.take(self.codes, allow_fill=True))
+
+    def values(self) -> np.ndarray:
+        """The column as an object array of its texts (NaN where missing)."""
+        uniq = np.asarray(self.uniques + [np.nan], dtype=object)
+        return uniq[self.codes]
+
+
+def note_codes(notes, n: int, texts: dict) -> np.ndarray:
+    """Codes (n,) of the joined notes of each state into ``texts`` (text -> code, extended in
+    place; code 0 is the empty text): every ``(message, mask)`` pair that applies to a state, in
+    the order of ``notes``, joined by " | ".  The messages of a state are gathered as a padded
+    row of message numbers, and the text is written once per distinct row (a family's
+    thousands of validity messages made the per-message string concatenation over every state
+    the largest cost of the expansion)."""
+    texts.setdefault("", 0)
+    states, msg_no, msgs = [], [], []
+    for j, (msg, mask) in enumerate(notes):
+        idx = np.flatnonzero(np.broadcast_to(np.asarray(mask, bool), (n,)))
+        msgs.append(msg)
+        if len(idx):
+            states.append(idx)
+            msg_no.append(np.full(len(idx), j, np.int64))
+    out = np.zeros(n, np.int64)
+    if not states:
+        return out
+    st, mj = np.concatenate(states), np.concatenate(msg_no)
+    order = np.lexsort((mj, st))
+    st, mj = st[order], mj[order]
+    counts = np.bincount(st, minlength=n)
+    start = np.cumsum(counts) - counts
+    rows = np.full((n, int(counts.max())), -1, np.int64)
+    rows[st, np.arange(len(st)) - start[st]] = mj
+    has = counts > 0
+    sub = np.ascontiguousarray(rows[has])
+    uniq, inv = np.unique(sub.view(np.dtype((np.void, sub.dtype.itemsize * sub.shape[1]))).ravel(),
+                          return_inverse=True)
+    first = np.unique(inv.reshape(-1), return_index=True)[1]
+    code_of = np.empty(len(uniq), np.int64)
+    for u, i in enumerate(first):
+        text = " | ".join(msgs[j] for j in sub[i] if j >= 0)
+        code_of[u] = texts.setdefault(text, len(texts))
+    out[has] = code_of[inv.reshape(-1)]
+    return out
+
+
+def family_columns(fam, batch, state_no, corner, notes_texts: dict) -> dict:
+    """The columns of one family's states: name -> numeric ndarray or :class:`Text`
+    (``notes``: codes into ``notes_texts``, see :func:`note_codes`), computed in chunks of
+    :data:`CHUNK_STATES`."""
     n = batch.n
     results: dict = {}
-    cautions = np.full(n, "", dtype=object)
+    notes = np.zeros(n, np.int64)
     for rows, res in _computed(fam, batch):
         for col in RESULT_COLUMNS:
             if col in res:
                 if col not in results:
                     results[col] = np.full(n, np.nan)
                 results[col][rows] = np.asarray(res[col], float)
-        part = cautions[rows]
-        k = rows.stop - rows.start
-        for msg, mask in res.get("notes", []):
-            m = np.broadcast_to(np.asarray(mask, bool), (k,))
-            if m.any():
-                part[m] = np.where(part[m] == "", msg, part[m] + " | " + msg)
+        notes[rows] = note_codes(res.get("notes", []), rows.stop - rows.start, notes_texts)
         del res
-    cols = {"grade": batch.attr("id"), "family": batch.attr("family"),
-            "route": np.full(n, fam.name, dtype=object), "corner": corner, "state": state_no}
+    gcodes = np.asarray(batch.gidx, np.int64)
+    cols = {"grade": Text(gcodes, [g.id for g in batch.grades]),
+            "family": Text.of(batch.attr("family")),
+            "route": Text(np.zeros(n, np.int64), [fam.name]), "corner": corner, "state": state_no}
     for name in fam.parameters:
         if name in batch.params:
-            cols[name] = batch.params[name]
+            v = np.asarray(batch.params[name])
+            cols[name] = (Text.of(v) or v) if v.dtype == object else v
     for col in RESULT_COLUMNS:
         if col in results:
             cols[col] = results[col]
-    cols["notes"] = cautions
+    cols["notes"] = notes
     cols["c_pct"] = batch.comp.get("C", np.zeros(n))
     cols["corrosion_resistant"] = batch.attr("corrosion_resistant").astype(bool)
     cols["relative_price"] = batch.attr("relative_price")
     cols["density_g_cm3"] = batch.attr("density_g_cm3")
-    return pd.DataFrame(cols)
+    return cols
+
+
+def _frame(cols: dict, notes_texts: dict) -> pd.DataFrame:
+    texts = list(notes_texts)
+    data = {}
+    for k, v in cols.items():
+        if k == "notes":
+            v = Text(v, texts)
+        data[k] = v.series() if isinstance(v, Text) else v
+    return pd.DataFrame(data)
+
+
+def expand_family(fam, diameter_mm=25.0, thickness_mm=None, grades=None, corners=CORNERS) -> pd.DataFrame:
+    """States table of one route family over ``grades`` (default: the catalogue)."""
+    built = _family_batch(fam, grades or None, diameter_mm, thickness_mm, corners)
+    if built is None:
+        return pd.DataFrame()
+    batch, state_no, corner = built
+    texts: dict = {}
+    return _frame(family_columns(fam, batch, state_no, Text.of(corner), texts), texts)
+
+
+def _concat(parts: list, n: int) -> dict | None:
+    """One column set from the families' column sets (rows in family order, a column absent
+    from a family NaN / missing there, columns in order of first appearance, as ``pd.concat``);
+    None where a column would change kind across families (then pandas concatenates)."""
+    names: dict = {}
+    for cols in parts:
+        for k in cols:
+            names.setdefault(k, None)
+    sizes = [len(c["state"]) for c in parts]
+    starts = np.cumsum(sizes) - sizes
+    out = {}
+    for k in names:
+        have = [(i, c[k]) for i, c in enumerate(parts) if k in c]
+        text = [isinstance(v, Text) for _, v in have]
+        if any(text):
+            if not all(text):
+                return None
+            uniq: dict = {}
+            codes = np.full(n, -1, np.int64)
+            for i, v in have:
+                remap = np.array([uniq.setdefault(u, len(uniq)) for u in v.uniques] + [-1], np.int64)
+                codes[starts[i]:starts[i] + sizes[i]] = remap[v.codes]
+            out[k] = Text(codes, list(uniq))
+            continue
+        kinds = {np.asarray(v).dtype.kind for _, v in have}
+        if len(have) < len(parts) and not kinds <= {"f"}:
+            return None
+        if len(kinds) > 1 or kinds & {"O", "U", "S"}:
+            return None
+        arr = np.full(n, np.nan) if len(have) < len(parts) else np.empty(n, np.asarray(have[0][1]).dtype)
+        for i, v in have:
+            arr[starts[i]:starts[i] + sizes[i]] = v
+        out[k] = arr
+    return out
 
 
 def expand_states(diameter_mm: float | None = 25.0, thickness_mm: float | None = None, grades=None,
@@ -172,9 +294,21 @@ def expand_states(diameter_mm: float | None = 25.0, thickness_mm: float | None =
     ``grades`` (default: the catalogue) at one section; not cached."""
     d, t = section_args(diameter_mm, thickness_mm)
     fams = fam_registry.available() if families is None else families
-    parts = [expand_family(f, d, t, grades=grades) for f in fams]
-    parts = [p for p in parts if len(p)]
-    df = pd.concat(parts, ignore_index=True, sort=False)
+    texts: dict = {}
+    parts = []
+    for f in fams:
+        built = _family_batch(f, grades or None, d, t, CORNERS)
+        if built is None:
+            continue
+        batch, state_no, corner = built
+        parts.append(family_columns(f, batch, state_no, Text.of(corner), texts))
+    n = sum(len(c["state"]) for c in parts)
+    cols = _concat(parts, n)
+    if cols is None:
+        df = pd.concat([_frame(c, texts) for c in parts], ignore_index=True, sort=False)
+    else:
+        cols["notes"] = Text(cols["notes"], list(texts))
+        df = pd.DataFrame({k: v.series() if isinstance(v, Text) else v for k, v in cols.items()})
     for col in RESULT_COLUMNS:
         if col not in df:
             df[col] = np.nan
