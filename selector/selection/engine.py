@@ -49,6 +49,7 @@ from .. import inputs
 from ..cache import disk_frame
 from ..catalogue.grades import FAMILIES, default_catalogue
 from ..errors import InputError, NotModelledError
+from ..routes import bands
 from ..routes import families as fam_registry
 from ..routes import fatigue as fatigue_mod
 from ..routes.evaluate import evaluate, section_args
@@ -193,44 +194,101 @@ def _evict(store: dict, most: int) -> None:
             break
 
 
-def samples(prepared: pd.DataFrame, columns=None) -> dict:
+#: the columns of the nominal block that :func:`selector.states.scatter.sample` reads
+_SAMPLE_INPUTS = ("state_key", "family", "route", bands.BAND_FREE) + tuple(scatter.SAMPLED)
+
+
+def _sample_store(prepared: pd.DataFrame) -> dict:
+    """The draws kept with ``prepared`` (a few recent tables): the narrow nominal block that
+    :func:`selector.states.scatter.sample` reads, each state's row of the sensitivities, and
+    per column the (m, N_DRAWS) draws with the mask of the rows drawn so far."""
+    key = id(prepared)
+    hit = _SAMPLES.get(key)
+    if hit is not None and hit[0] is prepared:
+        return hit[1]
+    sec = prepared.attrs.get("section") or {}
+    d, t = sec.get("diameter_mm"), sec.get("thickness_mm")
+    nom = prepared.iloc[:len(prepared) // 3]
+    nom = nom[[c for c in _SAMPLE_INPUTS if c in nom.columns]]
+    eff = scatter.effects(d, t)
+    store = {"nominal": nom, "section": (float(d if t is None else t), d, t),
+             "effect_rows": eff["index"].get_indexer(nom["state_key"].to_numpy()), "draws": {}, "done": {}}
+    _evict(_SAMPLES, 8)
+    _SAMPLES[key] = (prepared, store)
+    return store
+
+
+def samples(prepared: pd.DataFrame, columns=None, rows=None) -> dict:
     """Monte Carlo draws (:func:`selector.states.scatter.sample`) of the nominal block
     of ``prepared``, row-aligned with it: ``{column: (m, N_DRAWS) array}`` for
     ``columns`` (default every drawable column), each drawn on first use and kept with
-    the prepared table (a few recent ones), so that a re-rank only re-thresholds them."""
+    the prepared table (a few recent ones), so that a re-rank only re-thresholds them.
+    ``rows`` (a boolean mask or indices of the nominal block) draws only those states
+    (the others are NaN until drawn); a state's draws do not depend on which others are
+    drawn with it (:data:`selector.states.scatter.SAMPLE_BLOCK_ROWS`)."""
     cols = list(scatter.DRAWABLE) if columns is None else list(columns)
-    key = id(prepared)
-    hit = _SAMPLES.get(key)
-    if hit is None or hit[0] is not prepared:
-        hit = (prepared, {})
-        _evict(_SAMPLES, 8)
-        _SAMPLES[key] = hit
-    store = hit[1]
-    missing = [c for c in cols if c not in store]
-    if missing:
-        sec = prepared.attrs.get("section") or {}
-        d, t = sec.get("diameter_mm"), sec.get("thickness_mm")
-        section = d if t is None else t
-        store.update(scatter.sample(prepared.iloc[:len(prepared) // 3], float(section), d, t, columns=missing))
-    return {c: store[c] for c in cols}
+    store = _sample_store(prepared)
+    nom = store["nominal"]
+    m = len(nom)
+    if rows is None:
+        want = np.ones(m, bool)
+    else:
+        rows = np.asarray(rows)
+        want = rows.astype(bool) if rows.dtype == bool else np.isin(np.arange(m), rows)
+    for c in cols:
+        if c not in store["draws"]:
+            store["draws"][c] = np.full((m, scatter.N_DRAWS), np.nan, np.float32)
+            store["done"][c] = np.zeros(m, bool)
+    todo = {c: want & ~store["done"][c] for c in cols}
+    for c in cols:
+        need = np.flatnonzero(todo[c])
+        if not len(need):
+            continue
+        # the other columns that need the same rows are drawn in the same call
+        same = [k for k in cols if np.array_equal(todo[k], todo[c]) and len(np.flatnonzero(todo[k]))]
+        section, d, t = store["section"]
+        sub = nom if len(need) == m else nom.iloc[need]
+        drawn = scatter.sample(sub, section, d, t, columns=same, effect_rows=store["effect_rows"][need])
+        for k in same:
+            if len(need) == m:
+                store["draws"][k] = drawn[k]
+            else:
+                store["draws"][k][need] = drawn[k]
+            store["done"][k][need] = True
+            todo[k] = np.zeros(m, bool)
+    return {c: store["draws"][c] for c in cols}
 
 
-def p_meet(prepared: pd.DataFrame, targets: dict | None) -> np.ndarray:
+def p_meet(prepared: pd.DataFrame, targets: dict | None, rows=None) -> np.ndarray:
     """Probability that each nominal state of ``prepared`` meets every target: the
     share of the Monte Carlo draws (composition scatter and model band) that meet
     every numeric target (NaN rules of :mod:`selector.selection.targets`), times the
-    hard filters (family, corrosion resistance), shape (len(prepared) // 3,)."""
+    hard filters (family, corrosion resistance), shape (len(prepared) // 3,).
+    ``rows`` (a boolean mask of the nominal block): only those states are drawn and
+    counted, the others are NaN (the selection needs ``p_meet`` only where the targets
+    are met at the nominal composition)."""
     t = validate_targets(targets, FAMILIES)
     m = len(prepared) // 3
     nom = prepared.iloc[:m]
+    if rows is None:
+        idx = None
+    else:
+        rows = np.asarray(rows, bool)
+        if rows.shape != (m,):
+            raise ValueError(f"rows: a mask of the {m} nominal states, not shape {rows.shape}")
+        idx = np.flatnonzero(rows)
     sm = samples(prepared, sorted({NUMERIC_TARGETS[k][0] for k in t if k in NUMERIC_TARGETS}
-                                  & set(scatter.DRAWABLE)))
+                                  & set(scatter.DRAWABLE)), rows=idx)
     ok = None
     for key in NUMERIC_TARGETS:
         if key not in t:
             continue
         col, side = NUMERIC_TARGETS[key]
-        v = sm[col] if col in sm else nom[col].to_numpy(float)[:, None]
+        if col in sm:
+            v = sm[col] if idx is None else sm[col][idx]
+        else:
+            v = nom[col].to_numpy(float)[:, None]
+            v = v if idx is None else v[idx]
         lim = t[key]
         with np.errstate(invalid="ignore"):
             if side == "min":
@@ -240,8 +298,14 @@ def p_meet(prepared: pd.DataFrame, targets: dict | None) -> np.ndarray:
             else:
                 r = v <= lim
         ok = r if ok is None else ok & r
-    p = np.ones(m) if ok is None else np.broadcast_to(ok, (m, ok.shape[1])).mean(axis=1)
-    hard = {k: v for k, v in t.items() if k not in NUMERIC_TARGETS}
+    k = m if idx is None else len(idx)
+    p_k = np.ones(k) if ok is None else np.broadcast_to(ok, (k, ok.shape[1])).mean(axis=1)
+    if idx is None:
+        p = p_k
+    else:
+        p = np.full(m, np.nan)
+        p[idx] = p_k
+    hard = {k_: v_ for k_, v_ in t.items() if k_ not in NUMERIC_TARGETS}
     if hard:
         p = p * meets(nom, hard)
     return p
@@ -361,7 +425,7 @@ def rank(prepared: pd.DataFrame, targets: dict | None = None, objectives=DEFAULT
     ok = np.asarray(meets(prepared, t), bool)
     nominal = ok[:m]
     corners = ok.reshape(3, m).all(axis=0)
-    p = p_meet(prepared, t)
+    p = p_meet(prepared, t, rows=nominal)     # needed only where the targets are met at nominal
     # a candidate state meets every target at its estimate; p_meet grades how surely
     likely = (p >= min_p - 1e-12) & nominal
     nom = prepared.iloc[:m]
