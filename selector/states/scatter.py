@@ -363,12 +363,25 @@ def _band_quantiles(frame: pd.DataFrame, section_mm: float) -> dict:
     return out
 
 
-#: rows of states drawn at once in :func:`sample` (bounds its (rows, N_DRAWS) intermediates).
-#: Every block is a (SAMPLE_BLOCK_ROWS, K) @ (K, N_DRAWS) product, the last one padded with rows
-#: of zeros: a state's draws then come from a product of the same shape whatever other states
-#: are drawn with it (a BLAS product's last bits depend on the shape), so drawing a subset of
-#: the states gives exactly their rows of drawing them all (tests/test_speed_equivalence.py)
+#: most rows of states drawn at once in :func:`sample` (bounds its (rows, N_DRAWS) intermediates).
+#: Every block is a (rows, K) @ (K, N_DRAWS) product of one shape for a given K and N_DRAWS
+#: (:func:`block_rows`), the last one padded with rows of zeros: a state's draws then come from
+#: a product of the same shape whatever other states are drawn with it (a BLAS product's last
+#: bits depend on its shape), so drawing a subset of the states gives exactly their rows of
+#: drawing them all (tests/test_speed_equivalence.py)
 SAMPLE_BLOCK_ROWS = 256
+#: largest rows·K·N_DRAWS of one block product: OpenBLAS computes a product up to 65536 × 4
+#: multiply-adds on one thread (interface/gemm.c, SMP_THRESHOLD_MIN × GEMM_MULTITHREAD_THRESHOLD);
+#: above it wakes its thread pool, which on the shared 2-core machine cost about 100 times the
+#: CPU per row (measured: 16 µs against 0.15 µs per row of 12 × 200)
+BLOCK_PRODUCT_MAX = 65536 * 4
+
+
+def block_rows(n_elements: int, n_draws: int) -> int:
+    """Rows of one block product of :func:`sample`: a multiple of 16 (whole kernel tiles),
+    at most :data:`SAMPLE_BLOCK_ROWS`, within :data:`BLOCK_PRODUCT_MAX` where it can be."""
+    rows = BLOCK_PRODUCT_MAX // max(1, int(n_elements) * int(n_draws))
+    return int(min(SAMPLE_BLOCK_ROWS, max(16, rows - rows % 16)))
 
 #: columns :func:`sample` can draw, and the drawn property each needs
 DRAWABLE = {**{p: p for p in SAMPLED}, "hardness_hrc": "hardness_hv", "surface_hardness_hrc": "surface_hardness_hv"}
@@ -455,9 +468,10 @@ def sample(nominal: pd.DataFrame, section_mm: float, diameter_mm, thickness_mm,
         res = np.empty((m, d), dtype)
         # in blocks of rows: the (rows, D) intermediates stay small and are reused, instead of
         # several fresh (m, D) float64 arrays per property (same operations, row by row)
-        blk = np.zeros((SAMPLE_BLOCK_ROWS, a_p.shape[1]))
-        for r0 in range(0, m, SAMPLE_BLOCK_ROWS):
-            r1 = min(m, r0 + SAMPLE_BLOCK_ROWS)
+        step = block_rows(a_p.shape[1], d)
+        blk = np.zeros((step, a_p.shape[1]))
+        for r0 in range(0, m, step):
+            r1 = min(m, r0 + step)
             blk[:r1 - r0] = a_p[rows[r0:r1]]
             blk[r1 - r0:] = 0.0
             lin = (blk @ zt)[:r1 - r0]                     # s = Σ a_e z_e  (rows, D)
