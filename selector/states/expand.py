@@ -147,8 +147,11 @@ class Text:
             return None
         return cls(codes, uniq)
 
-    def series(self) -> pd.Series:
-        """The column as pandas builds it from the object array of its values (str dtype)."""
+    def series(self, dtype: str = "str") -> pd.Series:
+        """The column as pandas builds it from the object array of its values (str dtype), or
+        with ``dtype="object"`` as an object column whose rows share one str per distinct text."""
+        if dtype == "object":
+            return pd.Series(self.values(), dtype=object)
         if not self.uniques:
             return pd.Series(np.full(len(self.codes), np.nan, dtype=object))
         arr = pd.array(np.asarray(self.uniques, dtype=object), dtype="str")
@@ -191,8 +194,8 @@ def note_codes(notes, n: int, texts: dict) -> np.ndarray:
                           return_inverse=True)
     first = np.unique(inv.reshape(-1), return_index=True)[1]
     code_of = np.empty(len(uniq), np.int64)
-    for u, i in enumerate(first):
-        text = " | ".join(msgs[j] for j in sub[i] if j >= 0)
+    for u, row in enumerate(sub[first].tolist()):
+        text = " | ".join([msgs[j] for j in row if j >= 0])
         code_of[u] = texts.setdefault(text, len(texts))
     out[has] = code_of[inv.reshape(-1)]
     return out
@@ -232,13 +235,22 @@ def family_columns(fam, batch, state_no, corner, notes_texts: dict) -> dict:
     return cols
 
 
+def _series(name: str, v):
+    """A column of the states table: text as str columns, except ``notes``: an object column
+    whose states share one str per distinct text (the joined notes run to thousands of
+    characters; a str column copies them for every state and on every reordering)."""
+    if not isinstance(v, Text):
+        return v
+    return v.series("object" if name == "notes" else "str")
+
+
 def _frame(cols: dict, notes_texts: dict) -> pd.DataFrame:
     texts = list(notes_texts)
     data = {}
     for k, v in cols.items():
         if k == "notes":
             v = Text(v, texts)
-        data[k] = v.series() if isinstance(v, Text) else v
+        data[k] = _series(k, v)
     return pd.DataFrame(data)
 
 
@@ -308,7 +320,7 @@ def expand_states(diameter_mm: float | None = 25.0, thickness_mm: float | None =
         df = pd.concat([_frame(c, texts) for c in parts], ignore_index=True, sort=False)
     else:
         cols["notes"] = Text(cols["notes"], list(texts))
-        df = pd.DataFrame({k: v.series() if isinstance(v, Text) else v for k, v in cols.items()})
+        df = pd.DataFrame({k: _series(k, v) for k, v in cols.items()})
     for col in RESULT_COLUMNS:
         if col not in df:
             df[col] = np.nan

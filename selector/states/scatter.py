@@ -197,10 +197,8 @@ def _thinned(batch: Batch, main: str | None) -> tuple[np.ndarray, np.ndarray, np
 def _family_effects(fam, d, t, nominal: dict):
     """(state keys, elements, {prop: (n, K) change of prop when the element moves from
     mid-range to its maximum}) for the nominal states of one route family."""
-    cat = default_catalogue()
-    grades = [g for g in cat.grades.values()
-              if fam.name in g.routes and (not fam.families or g.family in fam.families)]
-    built = _family_batch(fam, grades, d, t, ("nominal",))
+    # the catalogue's grid and compositions, kept per family (expand._catalogue_blocks)
+    built = _family_batch(fam, None, d, t, ("nominal",))
     if built is None:
         return None
     batch, state_no, _ = built
