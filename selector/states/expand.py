@@ -114,14 +114,31 @@ def _family_batch(fam, grades, diameter_mm, thickness_mm, corners):
 CHUNK_STATES = 65_536
 
 
+#: states per chunk of the families whose models hold large per-state intermediates (peak traced
+#: memory measured with tracemalloc in chunks of 4096 states, grids refined x10: austemper about
+#: 71 kB per state (the transformation path in the bath), carburize about 18 kB (the case
+#: profile), quench_temper about 6 kB); the others use :data:`CHUNK_STATES`
+FAMILY_CHUNK_STATES = {"austemper": 1024, "carburize": 2048}
+#: states per chunk of :func:`expand_narrow` (about 100 MB of quench_temper intermediates)
+NARROW_CHUNK_STATES = 16_384
+
+
+def chunk_states(fam, default: int | None = None) -> int:
+    """States per chunk for ``fam``: :data:`FAMILY_CHUNK_STATES`, at most ``default``
+    (:data:`CHUNK_STATES` when None)."""
+    top = CHUNK_STATES if default is None else int(default)
+    return max(1, min(top, FAMILY_CHUNK_STATES.get(fam.name, top)))
+
+
 def _computed(fam, batch):
     """``(rows, result)`` of ``fam.compute`` + :func:`finish` over ``batch``, in chunks."""
     n = batch.n
-    if n <= CHUNK_STATES:
+    size = chunk_states(fam)
+    if n <= size:
         yield slice(0, n), finish(fam.compute(batch), batch, fam.name)
         return
-    for a in range(0, n, CHUNK_STATES):
-        b = min(n, a + CHUNK_STATES)
+    for a in range(0, n, size):
+        b = min(n, a + size)
         mask = np.zeros(n, bool)
         mask[a:b] = True
         sub = batch.subset(mask)
@@ -342,3 +359,124 @@ def expand(diameter_mm: float | None = 25.0, thickness_mm: float | None = None) 
 
 
 expand.cache_clear = _expand_cached.cache_clear
+
+
+# --------------------------------------------------------------------------- narrow, streamed
+#: the properties kept per state by :func:`expand_narrow` (float32): those a target can test,
+#: and the centre martensite of the through-hardening caution
+NARROW_COLUMNS = ("uts_mpa", "yield_mpa", "elongation_pct", "hardness_hrc", "surface_hardness_hrc",
+                  "case_depth_mm", "center_martensite_pct")
+
+
+def _lean_blocks(fam, grades, corners):
+    """The blocks (a grade at a corner) of ``fam`` over ``grades`` without any per-state array:
+    ``(grades, blocks, elements, object_params)``, each block ``(grade no, corner no, grid,
+    composition)``; ``elements`` and ``object_params`` over the whole family, as
+    :func:`_family_blocks` decides them (so a batch of some blocks equals their rows of the
+    batch of all)."""
+    glist, blocks = [], []
+    for g in grades:
+        try:
+            grid = fam.grid(g)
+        except NotModelledError:
+            continue
+        if len(next(iter(grid.values()))) == 0:
+            continue
+        k = len(glist)
+        glist.append(g)
+        for ci, corner in enumerate(corners):
+            blocks.append((k, ci, grid, g.composition(corner)))
+    elements = sorted({e for b in blocks for e in b[3]})
+    names = list(blocks[0][2]) if blocks else []
+    obj = {n for n in names if any(np.asarray(b[2][n]).dtype == object or np.asarray(b[2][n]).dtype.kind in "US"
+                                  for b in blocks)}
+    return glist, blocks, elements, obj
+
+
+def _blocks_batch(glist, blocks, elements, obj, diameter_mm, thickness_mm):
+    """(Batch, state numbers, corner numbers) of some blocks of :func:`_lean_blocks`."""
+    sizes = np.array([len(next(iter(b[2].values()))) for b in blocks], np.int64)
+    n = int(sizes.sum())
+    gidx = np.repeat(np.array([b[0] for b in blocks], np.int64), sizes)
+    comp = {e: np.repeat(np.array([float(b[3].get(e, 0.0)) for b in blocks], float), sizes) for e in elements}
+    par = {name: np.concatenate([np.asarray(b[2][name]).astype(object if name in obj else float) for b in blocks])
+           for name in blocks[0][2]}
+    state_no = np.arange(n, dtype=np.int64) - np.repeat(np.cumsum(sizes) - sizes, sizes)
+    corner_no = np.repeat(np.array([b[1] for b in blocks], np.int8), sizes)
+    d = np.full(n, np.nan if diameter_mm is None else diameter_mm)
+    t = np.full(n, np.nan if thickness_mm is None else thickness_mm)
+    return Batch(list(glist), gidx, comp, par, d, t), state_no, corner_no
+
+
+_chunk_for = chunk_states
+
+
+def expand_narrow(diameter_mm: float | None = 25.0, thickness_mm: float | None = None, grades=None,
+                  families=None, chunk_states: int | None = None) -> dict:
+    """A narrow states table, streamed: every route family over ``grades`` (default: the
+    catalogue) at one section, computed in chunks of whole blocks (a grade at a composition
+    corner) of about ``chunk_states`` states (default :data:`NARROW_CHUNK_STATES`, fewer for
+    the families of :data:`FAMILY_CHUNK_STATES`), keeping per state
+    only the float32 properties of :data:`NARROW_COLUMNS`, the family's main parameter, the
+    number of model notes and integer codes; each chunk's batch and results are dropped
+    before the next is built, so the peak memory is the narrow table (about 45 bytes per
+    state) and one chunk's intermediates, whatever the number of states.
+
+    Returns
+    -------
+    dict
+        ``grade`` (int32 codes into ``grades``), ``route`` (int16 codes into ``routes``),
+        ``corner`` (int8 codes into ``corners``), ``state`` (int32, the state's number in its
+        grade's grid, as :func:`expand_states`), ``main_value`` (float32), ``n_notes``
+        (int16), and each of :data:`NARROW_COLUMNS` (float32, NaN where undefined; each
+        value is its :func:`expand_states` value rounded to float32:
+        ``tests/test_scale.py``), with ``grades``, ``routes``, ``corners`` (lists of str).
+    """
+    d, t = section_args(diameter_mm, thickness_mm)
+    fams = fam_registry.available() if families is None else families
+    top = NARROW_CHUNK_STATES if chunk_states is None else max(1, int(chunk_states))
+    grade_ids: dict = {}
+    routes: list = []
+    parts: dict = {k: [] for k in ("grade", "route", "corner", "state", "main_value", "n_notes") + NARROW_COLUMNS}
+    for fam in fams:
+        pool = default_catalogue().grades.values() if grades is None else grades
+        admitted = [g for g in pool if fam.name in g.routes and (not fam.families or g.family in fam.families)]
+        glist, blocks, elements, obj = _lean_blocks(fam, admitted, CORNERS)
+        if not blocks:
+            continue
+        ri = len(routes)
+        routes.append(fam.name)
+        gcode = np.array([grade_ids.setdefault(g.id, len(grade_ids)) for g in glist], np.int32)
+        main = fam.main_parameter
+        chunk = _chunk_for(fam, top)
+        i = 0
+        while i < len(blocks):
+            j, rows = i, 0
+            while j < len(blocks) and (rows == 0 or rows + len(next(iter(blocks[j][2].values()))) <= chunk):
+                rows += len(next(iter(blocks[j][2].values())))
+                j += 1
+            batch, state_no, corner_no = _blocks_batch(glist, blocks[i:j], elements, obj, d, t)
+            res = finish(fam.compute(batch), batch, fam.name)
+            n = batch.n
+            count = np.zeros(n, np.int64)
+            for _msg, mask in res.get("notes", []):
+                count += np.broadcast_to(np.asarray(mask, bool), (n,))
+            parts["grade"].append(gcode[batch.gidx])
+            parts["route"].append(np.full(n, ri, np.int16))
+            parts["corner"].append(corner_no)
+            parts["state"].append(state_no.astype(np.int32))
+            mv = batch.params.get(main) if main else None
+            parts["main_value"].append(np.full(n, np.nan, np.float32) if mv is None
+                                       else np.asarray(mv, float).astype(np.float32))
+            parts["n_notes"].append(count.astype(np.int16))
+            for col in NARROW_COLUMNS:
+                v = res.get(col)
+                parts[col].append(np.full(n, np.nan, np.float32) if v is None
+                                  else np.broadcast_to(np.asarray(v, float), (n,)).astype(np.float32))
+            del batch, res
+            i = j
+    out = {k: (np.concatenate(v) if v else np.zeros(0)) for k, v in parts.items()}
+    if "case_depth_mm" in out:
+        out["case_depth_mm"] = np.where(np.isnan(out["case_depth_mm"]), np.float32(0.0), out["case_depth_mm"])
+    out.update(grades=list(grade_ids), routes=routes, corners=list(CORNERS))
+    return out
