@@ -10,9 +10,10 @@ columns, about 700 bytes per state before its text) is what the selection of one
 catalogue uses.
 
 Each case runs in a fresh process (``python scripts/bench_scale.py --case k r``) so
-its peak resident memory is its own; the figure reported is the peak RSS growth over
-the process after imports, the cooling tables and one narrow expansion of the plain
-catalogue (``resource.getrusage``), beside the narrow table's own size.
+its peak resident memory is its own; the figure reported is the peak RSS during the
+expansion (``VmHWM``, reset before it through ``/proc/self/clear_refs`` on Linux) less the
+RSS after imports and the models' tables (a one-grade-per-family expansion), beside the
+narrow table's own size.
 
 Usage: python scripts/bench_scale.py [--quick]   (cases: catalogue x1, x10; window x10; and
 x4 with window x8, about 10^6 states)
@@ -59,12 +60,16 @@ def refine_grid(grid: dict, main: str | None, factor: int) -> dict:
         return grid
     vals = np.asarray(grid[main], float)
     others = [k for k in grid if k != main]
-    keys = [tuple(str(grid[k][i]) for k in others) for i in range(len(vals))]
-    groups: dict = {}
-    for i, key in enumerate(keys):
-        groups.setdefault(key, []).append(i)
+    # one code per combination of the other parameters (vectorised: this runs inside the timed
+    # expansion, once per grade and family), groups in order of first appearance
+    codes = np.zeros(len(vals), np.int64)
+    for k in others:
+        u, inv = np.unique(np.asarray(grid[k]).astype(str), return_inverse=True)
+        codes = codes * len(u) + inv.reshape(-1)
+    uniq, first = np.unique(codes, return_index=True)
     parts = {k: [] for k in grid}
-    for idx in groups.values():
+    for c in uniq[np.argsort(first)]:
+        idx = np.flatnonzero(codes == c)
         v = vals[idx]
         lo, hi = np.nanmin(v), np.nanmax(v)
         n = max(1, (len(idx) - 1) * factor + 1) if hi > lo else 1
@@ -91,14 +96,44 @@ class RefinedFamily:
         return refine_grid(self._fam.grid(grade), self._fam.main_parameter, self._factor)
 
 
+def _memory_kb(field: str):
+    """``VmRSS`` / ``VmHWM`` of this process in kB from /proc/self/status (Linux), else None."""
+    try:
+        for line in Path("/proc/self/status").read_text().splitlines():
+            if line.startswith(field + ":"):
+                return float(line.split()[1])
+    except OSError:
+        pass
+    return None
+
+
+def _peak_kb() -> float:
+    """Peak resident memory of this process, kB: VmHWM of its own address space (getrusage's
+    ru_maxrss keeps the parent's peak across fork and exec, so a child started by a large
+    benchmark process would report the parent's peak)."""
+    hwm = _memory_kb("VmHWM")
+    if hwm is not None:
+        return hwm
+    import resource
+    return float(resource.getrusage(resource.RUSAGE_SELF).ru_maxrss)
+
+
+def _reset_peak() -> bool:
+    """Reset the peak-RSS mark of this process (Linux: write 5 to /proc/self/clear_refs)."""
+    try:
+        with open("/proc/self/clear_refs", "w") as f:
+            f.write("5")
+        return _memory_kb("VmRSS") is not None
+    except OSError:
+        return False
+
+
 def run_case(copies: int, factor: int, diameter_mm: float = 40.0) -> dict:
     """One case in this process: the streamed narrow expansion
     (:func:`selector.states.expand.expand_narrow`) of the catalogue ×``copies`` with every
     grid refined ×``factor``: states, CPU and wall time, peak RSS growth over the process
     after imports, tables and one expansion of the plain catalogue, and the narrow table's
     own size."""
-    import resource
-
     from selector.routes import families as fam_registry
     from selector.states.expand import expand_narrow
 
@@ -112,13 +147,14 @@ def run_case(copies: int, factor: int, diameter_mm: float = 40.0) -> dict:
     expand_narrow(diameter_mm, grades=[default_catalogue().grades[k] for k in warm])
     grades = synthetic_grades(copies)
     fams = [RefinedFamily(f, factor) for f in fam_registry.available()]
-    rss0 = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss
+    reset = _reset_peak()
+    rss0 = _memory_kb("VmRSS") if reset else _peak_kb()
     t0 = time.perf_counter()
     c0 = time.process_time()
     table = expand_narrow(diameter_mm, None, grades=grades, families=fams)
     cpu = time.process_time() - c0
     wall = time.perf_counter() - t0
-    rss1 = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss
+    rss1 = _peak_kb()
     nbytes = sum(v.nbytes for v in table.values() if hasattr(v, "nbytes"))
     return {"copies": copies, "refine": factor, "states": int(len(table["grade"])), "wall_s": wall, "cpu_s": cpu,
             "rss_growth_mb": (rss1 - rss0) / 1024.0, "frame_mb": nbytes / 2**20}
