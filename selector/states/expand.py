@@ -186,7 +186,17 @@ def note_codes(notes, n: int, texts: dict) -> np.ndarray:
     the order of ``notes``, joined by " | ".  The messages of a state are gathered as a padded
     row of message numbers, and the text is written once per distinct row (a family's
     thousands of validity messages made the per-message string concatenation over every state
-    the largest cost of the expansion)."""
+    the largest cost of the expansion).
+
+    Example (illustrative)
+
+    >>> import numpy as np
+    >>> texts = {}
+    >>> note_codes([("a", np.array([True, False, True])), ("b", np.array([True, False, False]))], 3, texts).tolist()
+    [1, 0, 2]
+    >>> list(texts)
+    ['', 'a | b', 'a']
+    """
     texts.setdefault("", 0)
     states, msg_no, msgs = [], [], []
     for j, (msg, mask) in enumerate(notes):
