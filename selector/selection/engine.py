@@ -84,28 +84,36 @@ def _main_param(route: str):
 
 
 def _variant_keys(states: pd.DataFrame) -> np.ndarray:
-    """``grade|route[|other parameter values]`` per state (object array of str)."""
+    """``grade|route[|other parameter values]`` per state (object array of str).
+
+    Each column is read and factorized once over the whole table (not once per route
+    family), each distinct combination's text written once; a value's text is
+    ``str`` of the value as numpy writes it, the same whichever rows it is read with."""
     grade = states["grade"].to_numpy(dtype=object)
     route = states["route"].to_numpy(dtype=object)
     out = np.empty(len(states), dtype=object)
+    coded: dict = {}
+
+    def codes_of(name, values=None):
+        if name not in coded:
+            vals = states[name].to_numpy() if values is None else values
+            codes, uniq = pd.factorize(vals, use_na_sentinel=False)
+            coded[name] = (np.asarray(codes, np.int64), np.asarray(uniq).astype(str).astype(object))
+        return coded[name]
+
+    codes_of("grade", grade)
     for r in pd.unique(route):
         idx = np.flatnonzero(route == r)
         fam = fam_registry.get(r)
         others = [p for p in fam.parameters if p != fam.main_parameter and p in states]
-        # the key text is built once per distinct combination, then taken per state
-        combo = np.zeros(len(idx), dtype=np.int64)
-        texts = [np.asarray([f"{r}"], dtype=object)]
-        codes_all = [np.zeros(len(idx), dtype=np.int64)]
-        for col in [grade[idx]] + [states[c].to_numpy()[idx] for c in others]:
-            codes, uniq = pd.factorize(col, use_na_sentinel=False)
-            codes_all.append(codes)
-            texts.append(np.asarray(uniq).astype(str).astype(object))
-            combo = pd.factorize(combo * len(uniq) + codes)[0]
-        first = np.unique(combo, return_index=True)[1]
+        parts = [codes_of(c) for c in ["grade"] + others]
+        table = np.ascontiguousarray(np.column_stack([c[idx] for c, _ in parts]))
+        rows = table.view(np.dtype((np.void, table.dtype.itemsize * table.shape[1]))).ravel()
+        _, first, inv = np.unique(rows, return_index=True, return_inverse=True)
         # order of the parts: grade, route, the other parameters
-        order = [1, 0] + list(range(2, len(texts)))
-        keys = np.array(["|".join(texts[j][codes_all[j][i]] for j in order) for i in first], dtype=object)
-        out[idx] = keys[combo]
+        keys = np.array(["|".join([parts[0][1][row[0]], str(r)] + [parts[j][1][row[j]] for j in range(1, len(parts))])
+                         for row in table[first].tolist()], dtype=object)
+        out[idx] = keys[inv.reshape(-1)]
     return out
 
 
@@ -113,7 +121,7 @@ def costed(states: pd.DataFrame, length_mm: float = 100.0, price_sheet: dict | N
            diameter_mm=None, thickness_mm=None) -> pd.DataFrame:
     """Add ``relative_cost`` (per kg: grade price + route adder), ``mass_kg`` and
     ``part_cost`` to a states table (returns a new frame)."""
-    df = states.copy()
+    df = states.copy(deep=False)     # only new columns are added: the caller's frame is never changed
     price = df["relative_price"].to_numpy(float).copy()
     src = np.full(len(df), "catalogue (indicative)", dtype=object)
     price_sheet = cost_mod.check_price_sheet(price_sheet)
