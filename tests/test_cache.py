@@ -154,11 +154,11 @@ def test_corrupt_prepared_table_is_rebuilt(cache_dir, monkeypatch):
     (path,) = cache_dir.glob("selector.selection.engine._prepare_table-*.npz")
     with np.load(path) as z:
         data = {k: z[k] for k in z.files}
-    # damage one float column of the stored table, keep the archive valid
+    # damage one float of the stored table (the stacked float64 columns), keep the archive valid
     names = [str(n) for n in data["arr_0"]]
-    i = next(i for i, n in enumerate(names) if n.startswith("c") and data[f"arr_{i + 1}"].dtype == np.float64)
+    i = next(i for i, n in enumerate(names) if n.startswith("g") and data[f"arr_{i + 1}"].dtype == np.float64)
     arr = data[f"arr_{i + 1}"].copy()
-    arr[0] = -1.0
+    arr[0, 0] = -1.0 if arr[0, 0] != -1.0 else -2.0
     data[f"arr_{i + 1}"] = arr
     np.savez(path, **data)
     calls = []
@@ -190,3 +190,22 @@ def test_frame_layout_round_trip_keeps_text_missing_values_and_dtypes():
 def test_frame_layout_refuses_what_it_cannot_hold():
     assert cache.frame_to_arrays(pd.DataFrame({"a": [1.0]}, index=[5])) is None
     assert cache.frame_to_arrays(pd.DataFrame({"a": [[1, 2]]})) is None
+
+
+def test_frame_file_holds_a_few_stacked_arrays_not_several_per_column():
+    df = pd.DataFrame({f"x{i}": np.arange(4, dtype=float) + i for i in range(30)}
+                      | {f"t{i}": ["a", "b", None, "a"] for i in range(10)} | {"n": [1, 2, 3, 4]})
+    arrays = cache.frame_to_arrays(df)
+    assert len(arrays) < 15                                  # 41 columns
+    back = cache.arrays_to_frame(arrays)
+    pd.testing.assert_frame_equal(back, df, check_exact=True)
+    assert list(back.dtypes) == list(df.dtypes)
+
+
+def test_texts_pack_and_unpack_exactly():
+    texts = ["", "ä | µm", "x" * 5000, "line\nbreak", "\x00inner"]
+    blob, off = cache.pack_texts(texts)
+    assert blob.dtype == np.uint8 and len(off) == len(texts) + 1
+    assert cache.unpack_texts(blob, off) == texts
+    with pytest.raises(ValueError):
+        cache.unpack_texts(blob, off[:-1])

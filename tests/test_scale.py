@@ -51,3 +51,31 @@ def test_synthetic_catalogue_copies_and_refined_grid():
     assert len(fine["t"]) == 2 * 21
     assert fine["t"].min() == 400.0 and fine["t"].max() == 600.0
     assert sorted(set(fine["q"])) == ["oil", "water"]
+
+
+def test_narrow_streamed_expansion_equals_the_full_table_in_float32():
+    """expand_narrow keeps, per state, the full table's values rounded to float32 (and the
+    number of model notes), whatever the chunk size (small chunks split every family)."""
+    full = X.expand_states(36.0)
+    nar = X.expand_narrow(36.0, chunk_states=700)
+    assert len(nar["grade"]) == len(full)
+    key = lambda g, r, c, s: pd.Series(g) + "|" + pd.Series(r) + "|" + pd.Series(c) + "|" + pd.Series(s).astype(str)  # noqa: E731
+    k_full = key(full["grade"].to_numpy(object), full["route"].to_numpy(object), full["corner"].to_numpy(object),
+                 full["state"].to_numpy())
+    k_nar = key(np.array(nar["grades"], object)[nar["grade"]], np.array(nar["routes"], object)[nar["route"]],
+                np.array(nar["corners"], object)[nar["corner"]], nar["state"])
+    at = pd.Index(k_full).get_indexer(k_nar)
+    assert (at >= 0).all() and len(np.unique(at)) == len(at)
+    for col in X.NARROW_COLUMNS:
+        assert nar[col].dtype == np.float32
+        assert np.array_equal(full[col].to_numpy(float)[at].astype(np.float32), nar[col], equal_nan=True), col
+    n_notes = np.array([0 if not x else x.count(" | ") + 1 for x in full["notes"]])[at]
+    assert np.array_equal(n_notes, nar["n_notes"]) and n_notes.max() > 1
+    qt = np.array(nar["routes"], object)[nar["route"]] == "quench_temper"
+    assert np.array_equal(full["temper_temp_c"].to_numpy(float)[at][qt].astype(np.float32), nar["main_value"][qt])
+
+
+def test_chunk_sizes_of_the_heavy_families_are_smaller():
+    fam = fam_registry.get("austemper")
+    assert X.chunk_states(fam) == X.FAMILY_CHUNK_STATES["austemper"] < X.CHUNK_STATES
+    assert X.chunk_states(fam_registry.get("quench_temper"), 5000) == 5000

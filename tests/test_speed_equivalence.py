@@ -48,3 +48,37 @@ def test_sensitivities_from_the_disk_cache_equal_a_fresh_build():
     for k in fresh:
         assert again[k].dtype == fresh[k].dtype, k
         assert np.array_equal(again[k], fresh[k], equal_nan=fresh[k].dtype.kind == "f"), k
+
+
+def test_draws_of_a_subset_of_states_equal_their_rows_of_drawing_all():
+    """p_meet is drawn only where the targets are met at nominal: a state's draws must not
+    depend on which other states are drawn with it (fixed-shape blocks, scatter.SAMPLE_BLOCK_ROWS)."""
+    from selector.selection import engine
+
+    prepared = engine.prepare(41.3)
+    m = len(prepared) // 3
+    nom = prepared.iloc[:m]
+    full = scatter.sample(nom, 41.3, 41.3, None, columns=["yield_mpa", "elongation_pct"])
+    rows = np.flatnonzero(np.arange(m) % 5 == 3)[::-1]       # scattered, in reverse order
+    part = scatter.sample(nom.iloc[rows], 41.3, 41.3, None, columns=["yield_mpa", "elongation_pct"])
+    assert len(rows) > 2 * scatter.SAMPLE_BLOCK_ROWS > 2 * scatter.block_rows(len(scatter.effects(41.3, None)["elements"]), 200)
+    for k in ("yield_mpa", "elongation_pct"):
+        assert part[k].dtype == full[k].dtype
+        assert np.array_equal(part[k], full[k][rows], equal_nan=True), k
+
+
+def test_p_meet_on_the_nominal_rows_equals_p_meet_of_all_rows():
+    from selector.selection import engine
+    from selector.selection.targets import meets
+
+    t = {"min_yield_mpa": 650, "min_elongation_pct": 14}
+    engine._SAMPLES.clear()
+    prepared = engine.prepare(43.7)
+    m = len(prepared) // 3
+    nominal = np.asarray(meets(prepared, t), bool)[:m]
+    part = engine.p_meet(prepared, t, rows=nominal)          # draws only the nominal rows
+    assert np.isnan(part[~nominal]).all() and np.isfinite(part[nominal]).all()
+    engine._SAMPLES.clear()
+    whole = engine.p_meet(prepared, t)                       # draws every row
+    assert np.array_equal(part[nominal], whole[nominal])
+    assert 0.0 < whole[nominal].mean() < 1.0                 # the comparison is not between constants

@@ -59,6 +59,7 @@ from .. import inputs
 from ..cache import disk_frame
 from ..catalogue.grades import FAMILIES, default_catalogue
 from ..errors import InputError, NotModelledError
+from ..routes import bands
 from ..routes import families as fam_registry
 from ..routes import fatigue as fatigue_mod
 from ..routes.evaluate import evaluate, section_args
@@ -108,38 +109,40 @@ def _follows_main(grade: np.ndarray, main: np.ndarray | None, param: np.ndarray)
 
 
 def _variant_keys(states: pd.DataFrame) -> np.ndarray:
-    """``grade|route[|other parameter values]`` per state (object array of str)."""
+    """``grade|route[|other parameter values]`` per state (object array of str).
+
+    Each column is read and factorized once over the whole table (not once per route
+    family), each distinct combination's text written once; a value's text is
+    ``str`` of the value as numpy writes it, the same whichever rows it is read with."""
     grade = states["grade"].to_numpy(dtype=object)
     route = states["route"].to_numpy(dtype=object)
     out = np.empty(len(states), dtype=object)
-    arrays: dict = {}
+    coded: dict = {}
 
-    def column(c):                       # each column converted once (string columns are costly)
-        if c not in arrays:
-            arrays[c] = states[c].to_numpy()
-        return arrays[c]
+    def codes_of(name, values=None):
+        if name not in coded:
+            vals = states[name].to_numpy() if values is None else values
+            codes, uniq = pd.factorize(vals, use_na_sentinel=False)
+            coded[name] = (np.asarray(codes, np.int64), np.asarray(uniq).astype(str).astype(object))
+        return coded[name]
 
+    codes_of("grade", grade)
     for r in pd.unique(route):
         idx = np.flatnonzero(route == r)
         fam = fam_registry.get(r)
         mp = fam.main_parameter if fam.main_parameter in states else None
-        main = column(mp)[idx] if mp else None
+        main = codes_of(mp)[0][idx] if mp else None
+        # a parameter the grid sets from the main one (e.g. the austemper hold) does not split
         others = [p for p in fam.parameters if p != fam.main_parameter and p in states
-                  and not _follows_main(grade[idx], main, column(p)[idx])]
-        # the key text is built once per distinct combination, then taken per state
-        combo = np.zeros(len(idx), dtype=np.int64)
-        texts = [np.asarray([f"{r}"], dtype=object)]
-        codes_all = [np.zeros(len(idx), dtype=np.int64)]
-        for col in [grade[idx]] + [column(c)[idx] for c in others]:
-            codes, uniq = pd.factorize(col, use_na_sentinel=False)
-            codes_all.append(codes)
-            texts.append(np.asarray(uniq).astype(str).astype(object))
-            combo = pd.factorize(combo * len(uniq) + codes)[0]
-        first = np.unique(combo, return_index=True)[1]
+                  and not _follows_main(grade[idx], main, codes_of(p)[0][idx])]
+        parts = [codes_of(c) for c in ["grade"] + others]
+        table = np.ascontiguousarray(np.column_stack([c[idx] for c, _ in parts]))
+        rows = table.view(np.dtype((np.void, table.dtype.itemsize * table.shape[1]))).ravel()
+        _, first, inv = np.unique(rows, return_index=True, return_inverse=True)
         # order of the parts: grade, route, the other parameters
-        order = [1, 0] + list(range(2, len(texts)))
-        keys = np.array(["|".join(texts[j][codes_all[j][i]] for j in order) for i in first], dtype=object)
-        out[idx] = keys[combo]
+        keys = np.array(["|".join([parts[0][1][row[0]], str(r)] + [parts[j][1][row[j]] for j in range(1, len(parts))])
+                         for row in table[first].tolist()], dtype=object)
+        out[idx] = keys[inv.reshape(-1)]
     return out
 
 
@@ -147,7 +150,7 @@ def costed(states: pd.DataFrame, length_mm: float = 100.0, price_sheet: dict | N
            diameter_mm=None, thickness_mm=None) -> pd.DataFrame:
     """Add ``relative_cost`` (per kg: grade price + route adder), ``mass_kg`` and
     ``part_cost`` to a states table (returns a new frame)."""
-    df = states.copy()
+    df = states.copy(deep=False)     # only new columns are added: the caller's frame is never changed
     price = df["relative_price"].to_numpy(float).copy()
     src = np.full(len(df), "catalogue (indicative)", dtype=object)
     price_sheet = cost_mod.check_price_sheet(price_sheet)
@@ -228,44 +231,101 @@ def _evict(store: dict, most: int) -> None:
             break
 
 
-def samples(prepared: pd.DataFrame, columns=None) -> dict:
+#: the columns of the nominal block that :func:`selector.states.scatter.sample` reads
+_SAMPLE_INPUTS = ("state_key", "family", "route", bands.BAND_FREE) + tuple(scatter.SAMPLED)
+
+
+def _sample_store(prepared: pd.DataFrame) -> dict:
+    """The draws kept with ``prepared`` (a few recent tables): the narrow nominal block that
+    :func:`selector.states.scatter.sample` reads, each state's row of the sensitivities, and
+    per column the (m, N_DRAWS) draws with the mask of the rows drawn so far."""
+    key = id(prepared)
+    hit = _SAMPLES.get(key)
+    if hit is not None and hit[0] is prepared:
+        return hit[1]
+    sec = prepared.attrs.get("section") or {}
+    d, t = sec.get("diameter_mm"), sec.get("thickness_mm")
+    nom = prepared.iloc[:len(prepared) // 3]
+    nom = nom[[c for c in _SAMPLE_INPUTS if c in nom.columns]]
+    eff = scatter.effects(d, t)
+    store = {"nominal": nom, "section": (float(d if t is None else t), d, t),
+             "effect_rows": eff["index"].get_indexer(nom["state_key"].to_numpy()), "draws": {}, "done": {}}
+    _evict(_SAMPLES, 8)
+    _SAMPLES[key] = (prepared, store)
+    return store
+
+
+def samples(prepared: pd.DataFrame, columns=None, rows=None) -> dict:
     """Monte Carlo draws (:func:`selector.states.scatter.sample`) of the nominal block
     of ``prepared``, row-aligned with it: ``{column: (m, N_DRAWS) array}`` for
     ``columns`` (default every drawable column), each drawn on first use and kept with
-    the prepared table (a few recent ones), so that a re-rank only re-thresholds them."""
+    the prepared table (a few recent ones), so that a re-rank only re-thresholds them.
+    ``rows`` (a boolean mask or indices of the nominal block) draws only those states
+    (the others are NaN until drawn); a state's draws do not depend on which others are
+    drawn with it (:data:`selector.states.scatter.SAMPLE_BLOCK_ROWS`)."""
     cols = list(scatter.DRAWABLE) if columns is None else list(columns)
-    key = id(prepared)
-    hit = _SAMPLES.get(key)
-    if hit is None or hit[0] is not prepared:
-        hit = (prepared, {})
-        _evict(_SAMPLES, 8)
-        _SAMPLES[key] = hit
-    store = hit[1]
-    missing = [c for c in cols if c not in store]
-    if missing:
-        sec = prepared.attrs.get("section") or {}
-        d, t = sec.get("diameter_mm"), sec.get("thickness_mm")
-        section = d if t is None else t
-        store.update(scatter.sample(prepared.iloc[:len(prepared) // 3], float(section), d, t, columns=missing))
-    return {c: store[c] for c in cols}
+    store = _sample_store(prepared)
+    nom = store["nominal"]
+    m = len(nom)
+    if rows is None:
+        want = np.ones(m, bool)
+    else:
+        rows = np.asarray(rows)
+        want = rows.astype(bool) if rows.dtype == bool else np.isin(np.arange(m), rows)
+    for c in cols:
+        if c not in store["draws"]:
+            store["draws"][c] = np.full((m, scatter.N_DRAWS), np.nan, np.float32)
+            store["done"][c] = np.zeros(m, bool)
+    todo = {c: want & ~store["done"][c] for c in cols}
+    for c in cols:
+        need = np.flatnonzero(todo[c])
+        if not len(need):
+            continue
+        # the other columns that need the same rows are drawn in the same call
+        same = [k for k in cols if np.array_equal(todo[k], todo[c]) and len(np.flatnonzero(todo[k]))]
+        section, d, t = store["section"]
+        sub = nom if len(need) == m else nom.iloc[need]
+        drawn = scatter.sample(sub, section, d, t, columns=same, effect_rows=store["effect_rows"][need])
+        for k in same:
+            if len(need) == m:
+                store["draws"][k] = drawn[k]
+            else:
+                store["draws"][k][need] = drawn[k]
+            store["done"][k][need] = True
+            todo[k] = np.zeros(m, bool)
+    return {c: store["draws"][c] for c in cols}
 
 
-def p_meet(prepared: pd.DataFrame, targets: dict | None) -> np.ndarray:
+def p_meet(prepared: pd.DataFrame, targets: dict | None, rows=None) -> np.ndarray:
     """Probability that each nominal state of ``prepared`` meets every target: the
     share of the Monte Carlo draws (composition scatter and model band) that meet
     every numeric target (NaN rules of :mod:`selector.selection.targets`), times the
-    hard filters (family, corrosion resistance), shape (len(prepared) // 3,)."""
+    hard filters (family, corrosion resistance), shape (len(prepared) // 3,).
+    ``rows`` (a boolean mask of the nominal block): only those states are drawn and
+    counted, the others are NaN (the selection needs ``p_meet`` only where the targets
+    are met at the nominal composition)."""
     t = validate_targets(targets, FAMILIES)
     m = len(prepared) // 3
     nom = prepared.iloc[:m]
+    if rows is None:
+        idx = None
+    else:
+        rows = np.asarray(rows, bool)
+        if rows.shape != (m,):
+            raise ValueError(f"rows: a mask of the {m} nominal states, not shape {rows.shape}")
+        idx = np.flatnonzero(rows)
     sm = samples(prepared, sorted({NUMERIC_TARGETS[k][0] for k in t if k in NUMERIC_TARGETS}
-                                  & set(scatter.DRAWABLE)))
+                                  & set(scatter.DRAWABLE)), rows=idx)
     ok = None
     for key in NUMERIC_TARGETS:
         if key not in t:
             continue
         col, side = NUMERIC_TARGETS[key]
-        v = sm[col] if col in sm else nom[col].to_numpy(float)[:, None]
+        if col in sm:
+            v = sm[col] if idx is None else sm[col][idx]
+        else:
+            v = nom[col].to_numpy(float)[:, None]
+            v = v if idx is None else v[idx]
         lim = t[key]
         with np.errstate(invalid="ignore"):
             if side == "min":
@@ -275,8 +335,14 @@ def p_meet(prepared: pd.DataFrame, targets: dict | None) -> np.ndarray:
             else:
                 r = v <= lim
         ok = r if ok is None else ok & r
-    p = np.ones(m) if ok is None else np.broadcast_to(ok, (m, ok.shape[1])).mean(axis=1)
-    hard = {k: v for k, v in t.items() if k not in NUMERIC_TARGETS}
+    k = m if idx is None else len(idx)
+    p_k = np.ones(k) if ok is None else np.broadcast_to(ok, (k, ok.shape[1])).mean(axis=1)
+    if idx is None:
+        p = p_k
+    else:
+        p = np.full(m, np.nan)
+        p[idx] = p_k
+    hard = {k_: v_ for k_, v_ in t.items() if k_ not in NUMERIC_TARGETS}
     if hard:
         p = p * meets(nom, hard)
     return p
@@ -396,7 +462,7 @@ def rank(prepared: pd.DataFrame, targets: dict | None = None, objectives=DEFAULT
     ok = np.asarray(meets(prepared, t), bool)
     nominal = ok[:m]
     corners = ok.reshape(3, m).all(axis=0)
-    p = p_meet(prepared, t)
+    p = p_meet(prepared, t, rows=nominal)     # needed only where the targets are met at nominal
     # a candidate state meets every target at its estimate; p_meet grades how surely
     likely = (p >= min_p - 1e-12) & nominal
     nom = prepared.iloc[:m]

@@ -114,18 +114,171 @@ def _family_batch(fam, grades, diameter_mm, thickness_mm, corners):
 CHUNK_STATES = 65_536
 
 
+#: states per chunk of the families whose models hold large per-state intermediates (peak traced
+#: memory measured with tracemalloc in chunks of 4096 states, grids refined x10: austemper about
+#: 71 kB per state (the transformation path in the bath), carburize about 18 kB (the case
+#: profile), quench_temper about 6 kB); the others use :data:`CHUNK_STATES`
+FAMILY_CHUNK_STATES = {"austemper": 1024, "carburize": 2048}
+#: states per chunk of :func:`expand_narrow` (about 100 MB of quench_temper intermediates)
+NARROW_CHUNK_STATES = 16_384
+
+
+def chunk_states(fam, default: int | None = None) -> int:
+    """States per chunk for ``fam``: :data:`FAMILY_CHUNK_STATES`, at most ``default``
+    (:data:`CHUNK_STATES` when None)."""
+    top = CHUNK_STATES if default is None else int(default)
+    return max(1, min(top, FAMILY_CHUNK_STATES.get(fam.name, top)))
+
+
 def _computed(fam, batch):
     """``(rows, result)`` of ``fam.compute`` + :func:`finish` over ``batch``, in chunks."""
     n = batch.n
-    if n <= CHUNK_STATES:
+    size = chunk_states(fam)
+    if n <= size:
         yield slice(0, n), finish(fam.compute(batch), batch, fam.name)
         return
-    for a in range(0, n, CHUNK_STATES):
-        b = min(n, a + CHUNK_STATES)
+    for a in range(0, n, size):
+        b = min(n, a + size)
         mask = np.zeros(n, bool)
         mask[a:b] = True
         sub = batch.subset(mask)
         yield slice(a, b), finish(fam.compute(sub), sub, fam.name)
+
+
+class Text:
+    """A text column as integer codes into its distinct values (``codes`` -1: missing): the
+    expansion builds every text column this way and writes each distinct text once."""
+
+    __slots__ = ("codes", "uniques")
+
+    def __init__(self, codes: np.ndarray, uniques):
+        self.codes = np.asarray(codes, np.int64)
+        self.uniques = list(uniques)
+
+    @classmethod
+    def of(cls, values) -> "Text | None":
+        """Codes of an object array whose values are all text or missing; None otherwise."""
+        values = np.asarray(values, dtype=object)
+        codes, uniq = pd.factorize(values, use_na_sentinel=True)
+        if not all(isinstance(u, str) for u in uniq):
+            return None
+        return cls(codes, uniq)
+
+    def series(self, dtype: str = "str") -> pd.Series:
+        """The column as pandas builds it from the object array of its values (str dtype), or
+        with ``dtype="object"`` as an object column whose rows share one str per distinct text."""
+        if dtype == "object":
+            return pd.Series(self.values(), dtype=object)
+        if not self.uniques:
+            return pd.Series(np.full(len(self.codes), np.nan, dtype=object))
+        arr = pd.array(np.asarray(self.uniques, dtype=object), dtype="str")
+        return pd.Series(arr.take(self.codes, allow_fill=True))
+
+    def values(self) -> np.ndarray:
+        """The column as an object array of its texts (NaN where missing)."""
+        uniq = np.asarray(self.uniques + [np.nan], dtype=object)
+        return uniq[self.codes]
+
+
+def note_codes(notes, n: int, texts: dict) -> np.ndarray:
+    """Codes (n,) of the joined notes of each state into ``texts`` (text -> code, extended in
+    place; code 0 is the empty text): every ``(message, mask)`` pair that applies to a state, in
+    the order of ``notes``, joined by " | ".  The messages of a state are gathered as a padded
+    row of message numbers, and the text is written once per distinct row (a family's
+    thousands of validity messages made the per-message string concatenation over every state
+    the largest cost of the expansion).
+
+    Example (illustrative)
+
+    >>> import numpy as np
+    >>> texts = {}
+    >>> note_codes([("a", np.array([True, False, True])), ("b", np.array([True, False, False]))], 3, texts).tolist()
+    [1, 0, 2]
+    >>> list(texts)
+    ['', 'a | b', 'a']
+    """
+    texts.setdefault("", 0)
+    states, msg_no, msgs = [], [], []
+    for j, (msg, mask) in enumerate(notes):
+        idx = np.flatnonzero(np.broadcast_to(np.asarray(mask, bool), (n,)))
+        msgs.append(msg)
+        if len(idx):
+            states.append(idx)
+            msg_no.append(np.full(len(idx), j, np.int64))
+    out = np.zeros(n, np.int64)
+    if not states:
+        return out
+    st, mj = np.concatenate(states), np.concatenate(msg_no)
+    order = np.lexsort((mj, st))
+    st, mj = st[order], mj[order]
+    counts = np.bincount(st, minlength=n)
+    start = np.cumsum(counts) - counts
+    rows = np.full((n, int(counts.max())), -1, np.int64)
+    rows[st, np.arange(len(st)) - start[st]] = mj
+    has = counts > 0
+    sub = np.ascontiguousarray(rows[has])
+    uniq, inv = np.unique(sub.view(np.dtype((np.void, sub.dtype.itemsize * sub.shape[1]))).ravel(),
+                          return_inverse=True)
+    first = np.unique(inv.reshape(-1), return_index=True)[1]
+    code_of = np.empty(len(uniq), np.int64)
+    for u, row in enumerate(sub[first].tolist()):
+        text = " | ".join([msgs[j] for j in row if j >= 0])
+        code_of[u] = texts.setdefault(text, len(texts))
+    out[has] = code_of[inv.reshape(-1)]
+    return out
+
+
+def family_columns(fam, batch, state_no, corner, notes_texts: dict) -> dict:
+    """The columns of one family's states: name -> numeric ndarray or :class:`Text`
+    (``notes``: codes into ``notes_texts``, see :func:`note_codes`), computed in chunks of
+    :data:`CHUNK_STATES`."""
+    n = batch.n
+    results: dict = {}
+    notes = np.zeros(n, np.int64)
+    for rows, res in _computed(fam, batch):
+        for col in RESULT_COLUMNS:
+            if col in res:
+                if col not in results:
+                    results[col] = np.full(n, np.nan)
+                results[col][rows] = np.asarray(res[col], float)
+        notes[rows] = note_codes(res.get("notes", []), rows.stop - rows.start, notes_texts)
+        del res
+    gcodes = np.asarray(batch.gidx, np.int64)
+    cols = {"grade": Text(gcodes, [g.id for g in batch.grades]),
+            "family": Text.of(batch.attr("family")),
+            "route": Text(np.zeros(n, np.int64), [fam.name]), "corner": corner, "state": state_no}
+    for name in fam.parameters:
+        if name in batch.params:
+            v = np.asarray(batch.params[name])
+            cols[name] = (Text.of(v) or v) if v.dtype == object else v
+    for col in RESULT_COLUMNS:
+        if col in results:
+            cols[col] = results[col]
+    cols["notes"] = notes
+    cols["c_pct"] = batch.comp.get("C", np.zeros(n))
+    cols["corrosion_resistant"] = batch.attr("corrosion_resistant").astype(bool)
+    cols["relative_price"] = batch.attr("relative_price")
+    cols["density_g_cm3"] = batch.attr("density_g_cm3")
+    return cols
+
+
+def _series(name: str, v):
+    """A column of the states table: text as str columns, except ``notes``: an object column
+    whose states share one str per distinct text (the joined notes run to thousands of
+    characters; a str column copies them for every state and on every reordering)."""
+    if not isinstance(v, Text):
+        return v
+    return v.series("object" if name == "notes" else "str")
+
+
+def _frame(cols: dict, notes_texts: dict) -> pd.DataFrame:
+    texts = list(notes_texts)
+    data = {}
+    for k, v in cols.items():
+        if k == "notes":
+            v = Text(v, texts)
+        data[k] = _series(k, v)
+    return pd.DataFrame(data)
 
 
 def expand_family(fam, diameter_mm=25.0, thickness_mm=None, grades=None, corners=CORNERS) -> pd.DataFrame:
@@ -134,36 +287,44 @@ def expand_family(fam, diameter_mm=25.0, thickness_mm=None, grades=None, corners
     if built is None:
         return pd.DataFrame()
     batch, state_no, corner = built
-    n = batch.n
-    results: dict = {}
-    cautions = np.full(n, "", dtype=object)
-    for rows, res in _computed(fam, batch):
-        for col in RESULT_COLUMNS:
-            if col in res:
-                if col not in results:
-                    results[col] = np.full(n, np.nan)
-                results[col][rows] = np.asarray(res[col], float)
-        part = cautions[rows]
-        k = rows.stop - rows.start
-        for msg, mask in res.get("notes", []):
-            m = np.broadcast_to(np.asarray(mask, bool), (k,))
-            if m.any():
-                part[m] = np.where(part[m] == "", msg, part[m] + " | " + msg)
-        del res
-    cols = {"grade": batch.attr("id"), "family": batch.attr("family"),
-            "route": np.full(n, fam.name, dtype=object), "corner": corner, "state": state_no}
-    for name in fam.parameters:
-        if name in batch.params:
-            cols[name] = batch.params[name]
-    for col in RESULT_COLUMNS:
-        if col in results:
-            cols[col] = results[col]
-    cols["notes"] = cautions
-    cols["c_pct"] = batch.comp.get("C", np.zeros(n))
-    cols["corrosion_resistant"] = batch.attr("corrosion_resistant").astype(bool)
-    cols["relative_price"] = batch.attr("relative_price")
-    cols["density_g_cm3"] = batch.attr("density_g_cm3")
-    return pd.DataFrame(cols)
+    texts: dict = {}
+    return _frame(family_columns(fam, batch, state_no, Text.of(corner), texts), texts)
+
+
+def _concat(parts: list, n: int) -> dict | None:
+    """One column set from the families' column sets (rows in family order, a column absent
+    from a family NaN / missing there, columns in order of first appearance, as ``pd.concat``);
+    None where a column would change kind across families (then pandas concatenates)."""
+    names: dict = {}
+    for cols in parts:
+        for k in cols:
+            names.setdefault(k, None)
+    sizes = [len(c["state"]) for c in parts]
+    starts = np.cumsum(sizes) - sizes
+    out = {}
+    for k in names:
+        have = [(i, c[k]) for i, c in enumerate(parts) if k in c]
+        text = [isinstance(v, Text) for _, v in have]
+        if any(text):
+            if not all(text):
+                return None
+            uniq: dict = {}
+            codes = np.full(n, -1, np.int64)
+            for i, v in have:
+                remap = np.array([uniq.setdefault(u, len(uniq)) for u in v.uniques] + [-1], np.int64)
+                codes[starts[i]:starts[i] + sizes[i]] = remap[v.codes]
+            out[k] = Text(codes, list(uniq))
+            continue
+        kinds = {np.asarray(v).dtype.kind for _, v in have}
+        if len(have) < len(parts) and not kinds <= {"f"}:
+            return None
+        if len(kinds) > 1 or kinds & {"O", "U", "S"}:
+            return None
+        arr = np.full(n, np.nan) if len(have) < len(parts) else np.empty(n, np.asarray(have[0][1]).dtype)
+        for i, v in have:
+            arr[starts[i]:starts[i] + sizes[i]] = v
+        out[k] = arr
+    return out
 
 
 def expand_states(diameter_mm: float | None = 25.0, thickness_mm: float | None = None, grades=None,
@@ -172,9 +333,21 @@ def expand_states(diameter_mm: float | None = 25.0, thickness_mm: float | None =
     ``grades`` (default: the catalogue) at one section; not cached."""
     d, t = section_args(diameter_mm, thickness_mm)
     fams = fam_registry.available() if families is None else families
-    parts = [expand_family(f, d, t, grades=grades) for f in fams]
-    parts = [p for p in parts if len(p)]
-    df = pd.concat(parts, ignore_index=True, sort=False)
+    texts: dict = {}
+    parts = []
+    for f in fams:
+        built = _family_batch(f, grades or None, d, t, CORNERS)
+        if built is None:
+            continue
+        batch, state_no, corner = built
+        parts.append(family_columns(f, batch, state_no, Text.of(corner), texts))
+    n = sum(len(c["state"]) for c in parts)
+    cols = _concat(parts, n)
+    if cols is None:
+        df = pd.concat([_frame(c, texts) for c in parts], ignore_index=True, sort=False)
+    else:
+        cols["notes"] = Text(cols["notes"], list(texts))
+        df = pd.DataFrame({k: _series(k, v) for k, v in cols.items()})
     for col in RESULT_COLUMNS:
         if col not in df:
             df[col] = np.nan
@@ -196,3 +369,124 @@ def expand(diameter_mm: float | None = 25.0, thickness_mm: float | None = None) 
 
 
 expand.cache_clear = _expand_cached.cache_clear
+
+
+# --------------------------------------------------------------------------- narrow, streamed
+#: the properties kept per state by :func:`expand_narrow` (float32): those a target can test,
+#: and the centre martensite of the through-hardening caution
+NARROW_COLUMNS = ("uts_mpa", "yield_mpa", "elongation_pct", "hardness_hrc", "surface_hardness_hrc",
+                  "case_depth_mm", "center_martensite_pct")
+
+
+def _lean_blocks(fam, grades, corners):
+    """The blocks (a grade at a corner) of ``fam`` over ``grades`` without any per-state array:
+    ``(grades, blocks, elements, object_params)``, each block ``(grade no, corner no, grid,
+    composition)``; ``elements`` and ``object_params`` over the whole family, as
+    :func:`_family_blocks` decides them (so a batch of some blocks equals their rows of the
+    batch of all)."""
+    glist, blocks = [], []
+    for g in grades:
+        try:
+            grid = fam.grid(g)
+        except NotModelledError:
+            continue
+        if len(next(iter(grid.values()))) == 0:
+            continue
+        k = len(glist)
+        glist.append(g)
+        for ci, corner in enumerate(corners):
+            blocks.append((k, ci, grid, g.composition(corner)))
+    elements = sorted({e for b in blocks for e in b[3]})
+    names = list(blocks[0][2]) if blocks else []
+    obj = {n for n in names if any(np.asarray(b[2][n]).dtype == object or np.asarray(b[2][n]).dtype.kind in "US"
+                                  for b in blocks)}
+    return glist, blocks, elements, obj
+
+
+def _blocks_batch(glist, blocks, elements, obj, diameter_mm, thickness_mm):
+    """(Batch, state numbers, corner numbers) of some blocks of :func:`_lean_blocks`."""
+    sizes = np.array([len(next(iter(b[2].values()))) for b in blocks], np.int64)
+    n = int(sizes.sum())
+    gidx = np.repeat(np.array([b[0] for b in blocks], np.int64), sizes)
+    comp = {e: np.repeat(np.array([float(b[3].get(e, 0.0)) for b in blocks], float), sizes) for e in elements}
+    par = {name: np.concatenate([np.asarray(b[2][name]).astype(object if name in obj else float) for b in blocks])
+           for name in blocks[0][2]}
+    state_no = np.arange(n, dtype=np.int64) - np.repeat(np.cumsum(sizes) - sizes, sizes)
+    corner_no = np.repeat(np.array([b[1] for b in blocks], np.int8), sizes)
+    d = np.full(n, np.nan if diameter_mm is None else diameter_mm)
+    t = np.full(n, np.nan if thickness_mm is None else thickness_mm)
+    return Batch(list(glist), gidx, comp, par, d, t), state_no, corner_no
+
+
+_chunk_for = chunk_states
+
+
+def expand_narrow(diameter_mm: float | None = 25.0, thickness_mm: float | None = None, grades=None,
+                  families=None, chunk_states: int | None = None) -> dict:
+    """A narrow states table, streamed: every route family over ``grades`` (default: the
+    catalogue) at one section, computed in chunks of whole blocks (a grade at a composition
+    corner) of about ``chunk_states`` states (default :data:`NARROW_CHUNK_STATES`, fewer for
+    the families of :data:`FAMILY_CHUNK_STATES`), keeping per state
+    only the float32 properties of :data:`NARROW_COLUMNS`, the family's main parameter, the
+    number of model notes and integer codes; each chunk's batch and results are dropped
+    before the next is built, so the peak memory is the narrow table (about 45 bytes per
+    state) and one chunk's intermediates, whatever the number of states.
+
+    Returns
+    -------
+    dict
+        ``grade`` (int32 codes into ``grades``), ``route`` (int16 codes into ``routes``),
+        ``corner`` (int8 codes into ``corners``), ``state`` (int32, the state's number in its
+        grade's grid, as :func:`expand_states`), ``main_value`` (float32), ``n_notes``
+        (int16), and each of :data:`NARROW_COLUMNS` (float32, NaN where undefined; each
+        value is its :func:`expand_states` value rounded to float32:
+        ``tests/test_scale.py``), with ``grades``, ``routes``, ``corners`` (lists of str).
+    """
+    d, t = section_args(diameter_mm, thickness_mm)
+    fams = fam_registry.available() if families is None else families
+    top = NARROW_CHUNK_STATES if chunk_states is None else max(1, int(chunk_states))
+    grade_ids: dict = {}
+    routes: list = []
+    parts: dict = {k: [] for k in ("grade", "route", "corner", "state", "main_value", "n_notes") + NARROW_COLUMNS}
+    for fam in fams:
+        pool = default_catalogue().grades.values() if grades is None else grades
+        admitted = [g for g in pool if fam.name in g.routes and (not fam.families or g.family in fam.families)]
+        glist, blocks, elements, obj = _lean_blocks(fam, admitted, CORNERS)
+        if not blocks:
+            continue
+        ri = len(routes)
+        routes.append(fam.name)
+        gcode = np.array([grade_ids.setdefault(g.id, len(grade_ids)) for g in glist], np.int32)
+        main = fam.main_parameter
+        chunk = _chunk_for(fam, top)
+        i = 0
+        while i < len(blocks):
+            j, rows = i, 0
+            while j < len(blocks) and (rows == 0 or rows + len(next(iter(blocks[j][2].values()))) <= chunk):
+                rows += len(next(iter(blocks[j][2].values())))
+                j += 1
+            batch, state_no, corner_no = _blocks_batch(glist, blocks[i:j], elements, obj, d, t)
+            res = finish(fam.compute(batch), batch, fam.name)
+            n = batch.n
+            count = np.zeros(n, np.int64)
+            for _msg, mask in res.get("notes", []):
+                count += np.broadcast_to(np.asarray(mask, bool), (n,))
+            parts["grade"].append(gcode[batch.gidx])
+            parts["route"].append(np.full(n, ri, np.int16))
+            parts["corner"].append(corner_no)
+            parts["state"].append(state_no.astype(np.int32))
+            mv = batch.params.get(main) if main else None
+            parts["main_value"].append(np.full(n, np.nan, np.float32) if mv is None
+                                       else np.asarray(mv, float).astype(np.float32))
+            parts["n_notes"].append(count.astype(np.int16))
+            for col in NARROW_COLUMNS:
+                v = res.get(col)
+                parts[col].append(np.full(n, np.nan, np.float32) if v is None
+                                  else np.broadcast_to(np.asarray(v, float), (n,)).astype(np.float32))
+            del batch, res
+            i = j
+    out = {k: (np.concatenate(v) if v else np.zeros(0)) for k, v in parts.items()}
+    if "case_depth_mm" in out:
+        out["case_depth_mm"] = np.where(np.isnan(out["case_depth_mm"]), np.float32(0.0), out["case_depth_mm"])
+    out.update(grades=list(grade_ids), routes=routes, corners=list(CORNERS))
+    return out

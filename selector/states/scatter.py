@@ -197,10 +197,8 @@ def _thinned(batch: Batch, main: str | None) -> tuple[np.ndarray, np.ndarray, np
 def _family_effects(fam, d, t, nominal: dict):
     """(state keys, elements, {prop: (n, K) change of prop when the element moves from
     mid-range to its maximum}) for the nominal states of one route family."""
-    cat = default_catalogue()
-    grades = [g for g in cat.grades.values()
-              if fam.name in g.routes and (not fam.families or g.family in fam.families)]
-    built = _family_batch(fam, grades, d, t, ("nominal",))
+    # the catalogue's grid and compositions, kept per family (expand._catalogue_blocks)
+    built = _family_batch(fam, None, d, t, ("nominal",))
     if built is None:
         return None
     batch, state_no, _ = built
@@ -363,15 +361,33 @@ def _band_quantiles(frame: pd.DataFrame, section_mm: float) -> dict:
     return out
 
 
-#: rows of states drawn at once in :func:`sample` (bounds its (rows, N_DRAWS) intermediates)
-SAMPLE_BLOCK_ROWS = 2048
+#: most rows of states drawn at once in :func:`sample` (bounds its (rows, N_DRAWS) intermediates).
+#: Every block is a (rows, K) @ (K, N_DRAWS) product of one shape for a given K and N_DRAWS
+#: (:func:`block_rows`), the last one padded with rows of zeros: a state's draws then come from
+#: a product of the same shape whatever other states are drawn with it (a BLAS product's last
+#: bits depend on its shape), so drawing a subset of the states gives exactly their rows of
+#: drawing them all (tests/test_speed_equivalence.py)
+SAMPLE_BLOCK_ROWS = 256
+#: largest rows·K·N_DRAWS of one block product: OpenBLAS computes a product up to 65536 × 4
+#: multiply-adds on one thread (interface/gemm.c, SMP_THRESHOLD_MIN × GEMM_MULTITHREAD_THRESHOLD);
+#: above it wakes its thread pool, which on the shared 2-core machine cost about 100 times the
+#: CPU per row (measured: 16 µs against 0.15 µs per row of 12 × 200)
+BLOCK_PRODUCT_MAX = 65536 * 4
+
+
+def block_rows(n_elements: int, n_draws: int) -> int:
+    """Rows of one block product of :func:`sample`: a multiple of 16 (whole kernel tiles),
+    at most :data:`SAMPLE_BLOCK_ROWS`, within :data:`BLOCK_PRODUCT_MAX` where it can be."""
+    rows = BLOCK_PRODUCT_MAX // max(1, int(n_elements) * int(n_draws))
+    return int(min(SAMPLE_BLOCK_ROWS, max(16, rows - rows % 16)))
 
 #: columns :func:`sample` can draw, and the drawn property each needs
 DRAWABLE = {**{p: p for p in SAMPLED}, "hardness_hrc": "hardness_hv", "surface_hardness_hrc": "surface_hardness_hv"}
 
 
 def sample(nominal: pd.DataFrame, section_mm: float, diameter_mm, thickness_mm,
-           n_draws: int = N_DRAWS, seed: int = SEED, dtype=np.float32, columns=None) -> dict:
+           n_draws: int = N_DRAWS, seed: int = SEED, dtype=np.float32, columns=None,
+           effect_rows=None) -> dict:
     """Monte Carlo draws of every state of ``nominal`` (rows of the nominal corner of
     :func:`expand`, in any order).
 
@@ -392,6 +408,9 @@ def sample(nominal: pd.DataFrame, section_mm: float, diameter_mm, thickness_mm,
         Of the returned arrays (default float32: 200 draws of 5 000 states are 4 MB).
     columns : sequence of str, optional
         Only these columns (out of :data:`DRAWABLE`); default all.
+    effect_rows : array of int, optional
+        The row of each state of ``nominal`` in :func:`effects` (default: looked up by
+        ``state_key``; a caller that draws subsets of one table looks them up once).
 
     Returns
     -------
@@ -414,7 +433,8 @@ def sample(nominal: pd.DataFrame, section_mm: float, diameter_mm, thickness_mm,
     (5007, 200)
     """
     eff = effects(diameter_mm, thickness_mm)
-    rows = eff["index"].get_indexer(nominal["state_key"].to_numpy())
+    rows = (eff["index"].get_indexer(nominal["state_key"].to_numpy()) if effect_rows is None
+            else np.asarray(effect_rows, np.int64))
     if (rows < 0).any():
         raise KeyError("states missing from the sensitivities: " + ", ".join(
             nominal["state_key"].to_numpy()[rows < 0][:3]))
@@ -446,9 +466,13 @@ def sample(nominal: pd.DataFrame, section_mm: float, diameter_mm, thickness_mm,
         res = np.empty((m, d), dtype)
         # in blocks of rows: the (rows, D) intermediates stay small and are reused, instead of
         # several fresh (m, D) float64 arrays per property (same operations, row by row)
-        for r0 in range(0, m, SAMPLE_BLOCK_ROWS):
-            r1 = min(m, r0 + SAMPLE_BLOCK_ROWS)
-            lin = a_p[rows[r0:r1]] @ zt                    # s = Σ a_e z_e  (rows, D)
+        step = block_rows(a_p.shape[1], d)
+        blk = np.zeros((step, a_p.shape[1]))
+        for r0 in range(0, m, step):
+            r1 = min(m, r0 + step)
+            blk[:r1 - r0] = a_p[rows[r0:r1]]
+            blk[r1 - r0:] = 0.0
+            lin = (blk @ zt)[:r1 - r0]                     # s = Σ a_e z_e  (rows, D)
             y = lin * np.where(lin >= 0.0, f_up[r0:r1, None], f_dn[r0:r1, None])
             y += base[r0:r1]                               # y_nom + f(s) · s
             if p in BANDED:
