@@ -149,3 +149,26 @@ def test_a_parameter_set_by_the_main_one_does_not_split_a_variant():
     # a real choice (the quench of a Q&T route) still splits variants
     qt = nom[nom["route"] == "quench_temper"]
     assert (qt.groupby("grade")["variant"].nunique() == qt.groupby("grade")["quench"].nunique()).all()
+
+
+def test_representative_point_matches_a_run_by_run_search():
+    # the one-pass choice of a window's point equals the run-by-run rule it replaced: fewest
+    # model notes first, then nearest the run's middle, the first such state on a tie
+    import numpy as np
+    from selector.selection.engine import _representative
+
+    def by_run(starts, ends, notes):
+        out = []
+        for a, b in zip(starts, ends):
+            seg = notes[a:b + 1]
+            cost = (seg - seg.min()) * 10_000 + np.abs(np.arange(a, b + 1) - (a + b) / 2.0)
+            out.append(a + int(np.argmin(cost)))
+        return out
+
+    rng = np.random.default_rng(7)
+    for _ in range(200):
+        n = int(rng.integers(1, 60))
+        notes = rng.integers(0, 3, n)
+        starts = np.sort(rng.choice(n, size=int(rng.integers(1, n + 1)), replace=False))
+        ends = np.r_[starts[1:] - 1, n - 1]
+        assert _representative(starts, ends, notes).tolist() == by_run(starts, ends, notes)
