@@ -251,7 +251,9 @@ MAX_FRAME_FILES = 48
 def code_and_data_hash() -> str:
     """SHA-256 over every source file of the package and every file under ``data/``
     (relative path and bytes): a key part for results that depend on all the models
-    and the whole catalogue."""
+    and the whole catalogue.  ``selector/views/`` is left out: the faces sit above every
+    layer a cached table is computed in (tests/test_layers.py), so an edit of the page
+    or the CLI keeps the tables."""
     pkg = Path(__file__).resolve().parent
     h = hashlib.sha256()
     roots = [pkg]
@@ -263,7 +265,7 @@ def code_and_data_hash() -> str:
     for root in roots:
         for p in sorted(root.rglob("*")):
             if p.is_file() and p.suffix in (".py", ".csv", ".json", ".toml", ".txt", ".md") \
-                    and "__pycache__" not in p.parts:
+                    and "__pycache__" not in p.parts and not (root == pkg and "views" in p.relative_to(root).parts[:1]):
                 h.update(str(p.relative_to(root)).encode())
                 h.update(b"\0")
                 h.update(p.read_bytes())

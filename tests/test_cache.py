@@ -209,3 +209,23 @@ def test_texts_pack_and_unpack_exactly():
     assert cache.unpack_texts(blob, off) == texts
     with pytest.raises(ValueError):
         cache.unpack_texts(blob, off[:-1])
+
+
+def test_code_and_data_hash_leaves_the_views_out(monkeypatch):
+    # an edit of the page or the CLI must not throw the cached tables away; every model,
+    # route, state, rule and selection module and every data file still counts
+    from pathlib import Path
+    from selector import cache as cache_mod
+    read = []
+    real = Path.read_bytes
+    monkeypatch.setattr(Path, "read_bytes", lambda self: read.append(self) or real(self))
+    cache_mod.code_and_data_hash.cache_clear()
+    try:
+        cache_mod.code_and_data_hash()
+    finally:
+        cache_mod.code_and_data_hash.cache_clear()
+    parts = [p.parts for p in read]
+    assert not any("views" in ps and "selector" in ps for ps in parts)
+    for layer in ("models", "routes", "states", "rules", "selection", "catalogue"):
+        assert any(layer in ps for ps in parts), layer
+    assert any(p.suffix == ".csv" for p in read)
