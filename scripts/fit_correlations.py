@@ -4,7 +4,7 @@ Per family (``carbon_steel``, ``alloy_steel``), least squares on the fully harde
 rows of ``data/tempering_points.csv`` that give a tensile strength
 (:func:`selector.models.correlations.solve`; forms in that module):
 
-    YS/UTS = r0 + r1·T/100 + r2·(T/100)² (r2 = 0 for carbon steels);   ln EL = e0 + e1·UTS/1000;
+    YS/UTS = r0 + r1·T/100;   ln EL = e0 + e1·UTS/1000;
     RA = q0 + q1·UTS/1000 (alloy) or ln RA = q0 + q1·UTS/1000 (carbon)
 
 Writes ``data/fits/correlations_coefficients.csv`` (fit = family), ``_rows.csv`` (the
@@ -30,7 +30,7 @@ from selector.models import correlations as cr, tempering as tp  # noqa: E402
 NAME = "correlations"
 SOURCE_FILE = "data/tempering_points.csv"
 OUT = ROOT / "data" / "fits"
-UNITS = {"r0": "1", "r1": "1/(100 degC)", "r2": "1/(100 degC)^2", "e0": "ln %", "e1": "ln %/(1000 MPa)", "q0": "% or ln %",
+UNITS = {"r0": "1", "r1": "1/(100 degC)", "e0": "ln %", "e1": "ln %/(1000 MPa)", "q0": "% or ln %",
          "q1": "%/(1000 MPa) or ln %/(1000 MPa)", "uts_min": "MPa", "uts_max": "MPa", "temp_min": "degC",
          "temp_max": "degC", "n_rows": "rows"}
 CV_SOURCE = "leave-one-grade-out refit by scripts/fit_correlations.py"
@@ -39,9 +39,8 @@ SOURCE = "least squares on the fully hardened rows with UTS of data/tempering_po
 
 def _predict(k: dict, fam: str, d: pd.DataFrame) -> dict:
     u = d["uts_mpa"].to_numpy(float)
-    r0, r1, r2 = k["ratio"]
-    t = d["temp_c"].to_numpy(float) / 100.0
-    ys = u * np.clip(r0 + r1 * t + r2 * t * t, *cr.RATIO_RANGE)
+    r0, r1 = k["ratio"]
+    ys = u * np.clip(r0 + r1 * d["temp_c"].to_numpy(float) / 100.0, *cr.RATIO_RANGE)
     e0, e1 = k["elongation"]
     el = np.exp(e0 + e1 * u / 1000.0)
     q0, q1 = k["reduction_area"]

@@ -6,7 +6,7 @@ fitted OFFLINE by ``scripts/fit_correlations.py`` (least squares, per family) to
 fully hardened rows of ``data/tempering_points.csv`` (ASM Metals Handbook Vol. 1 (1990) table of typical
 properties of quenched and tempered 25 mm bars, plus a 4340 vendor sheet):
 
-    yield        YS  = UTS · clip(r0 + r1·T/100 + r2·(T/100)², 0.50, 0.98)   (T = tempering °C)
+    yield        YS  = UTS · clip(r0 + r1·T/100, 0.50, 0.98)           (T = tempering °C)
     elongation   EL  = exp(e0 + e1·UTS/1000)                           (% in 50 mm)
     red. of area RA  = alloy_steel:  clip(q0 + q1·UTS/1000, 2, 80)
                        carbon_steel: min(exp(q0 + q1·UTS/1000), RA_alloy(UTS))
@@ -25,13 +25,6 @@ Families: ``carbon_steel``, ``alloy_steel``; ``carburizing_steel`` and
 ``nitriding_steel`` (their cores) use the alloy-steel coefficients, and so does
 ``stainless_martensitic`` (no martensitic-stainless rows were fitted: a documented
 approximation).
-
-The yield ratio of the alloy steels is quadratic in the tempering temperature (r2 fitted):
-in the fitted rows it is lowest after low tempers (about 0.89 at 205 °C), highest near
-425 °C (about 0.93) and falls again above 540 °C; the quadratic term lowers the
-leave-one-grade-out error of the ratio from 2.2 % to 1.7 % median (scripts/fit_correlations.py).
-The carbon-steel rows (two grades) keep the straight line (r2 = 0): with two grades the
-leave-one-grade-out error cannot support a third coefficient (7.3 % linear, 7.5 % quadratic).
 
 Measured in the data (the recalled YS/UTS "rising with tempering
 temperature" is not borne out by these rows): YS/UTS ≈ 0.90 for the alloy steels
@@ -65,9 +58,6 @@ RA_RANGE = (2.0, 80.0)
 
 FIT_NAME = "correlations"
 FIT_FAMILIES = ("carbon_steel", "alloy_steel")
-#: families whose yield ratio is fitted with the quadratic tempering term r2 (the others: r2 = 0);
-#: chosen by the leave-one-grade-out error on the fit rows (module docstring)
-QUADRATIC_RATIO_FAMILIES = ("alloy_steel",)
 
 
 def fit_rows(points, fit_family: str):
@@ -102,11 +92,7 @@ def solve(d, fit_family: str) -> dict:
     """
     u = d["uts_mpa"].to_numpy(float) / 1000.0
     tt = d["temp_c"].to_numpy(float) / 100.0
-    ys_ratio = d["yield_mpa"].to_numpy(float) / d["uts_mpa"].to_numpy(float)
-    if fit_family in QUADRATIC_RATIO_FAMILIES:
-        ratio = _lstsq(np.c_[np.ones_like(u), tt, tt * tt], ys_ratio)
-    else:
-        ratio = np.r_[_lstsq(np.c_[np.ones_like(u), tt], ys_ratio), 0.0]
+    ratio = _lstsq(np.c_[np.ones_like(u), tt], d["yield_mpa"].to_numpy(float) / d["uts_mpa"].to_numpy(float))
     m = d["elongation_pct"].notna().to_numpy()
     el = _lstsq(np.c_[np.ones(m.sum()), u[m]], np.log(d["elongation_pct"].to_numpy(float)[m]))
     ra_y = d["reduction_area_pct"].to_numpy(float)[m]
@@ -118,14 +104,14 @@ def solve(d, fit_family: str) -> dict:
 
 
 #: coefficient names in data/fits/correlations_coefficients.csv
-COEFFICIENT_NAMES = {"ratio": ("r0", "r1", "r2"), "elongation": ("e0", "e1"), "reduction_area": ("q0", "q1"),
+COEFFICIENT_NAMES = {"ratio": ("r0", "r1"), "elongation": ("e0", "e1"), "reduction_area": ("q0", "q1"),
                      "uts_mpa": ("uts_min", "uts_max"), "temp_c": ("temp_min", "temp_max")}
 
 
 @functools.cache
 def coefficients(fit_family: str) -> dict:
     """Shipped coefficients of ``fit_family`` (``carbon_steel`` or ``alloy_steel``), read
-    from ``data/fits/correlations_coefficients.csv``: ``ratio`` (r0, r1, r2),
+    from ``data/fits/correlations_coefficients.csv``: ``ratio`` (r0, r1),
     ``elongation`` (e0, e1), ``reduction_area`` (q0, q1), and the UTS and
     tempering-temperature spans of the rows fitted.
 
@@ -174,7 +160,7 @@ def yield_from_uts(uts_mpa, temper_temp_c, family):
     """Yield (0.2 % offset) strength of a Q&T steel from its tensile strength
     (correlation fitted to the ASM Metals Handbook Vol. 1 (1990) Q&T table).
 
-    YS = UTS · clip(r0 + r1·T/100 + r2·(T/100)², 0.50, 0.98)   (r2 = 0 for carbon steels)
+    YS = UTS · clip(r0 + r1·T/100, 0.50, 0.98)
 
     Parameters
     ----------
@@ -205,7 +191,7 @@ def yield_from_uts(uts_mpa, temper_temp_c, family):
     Example (illustrative: a value of this implementation, not a published one)
 
     >>> round(float(yield_from_uts(1000.0, 540.0, "alloy_steel")))
-    904
+    893
     """
     u = _uts(uts_mpa)
     tt = np.asarray(temper_temp_c, float)
@@ -213,8 +199,8 @@ def yield_from_uts(uts_mpa, temper_temp_c, family):
         raise InputError("temper_temp_c", temper_temp_c, "finite temperatures, °C (NaN for none)")
 
     def f(fit):
-        r0, r1, r2 = coefficients(fit)["ratio"]
-        return u * np.clip(r0 + r1 * tt / 100.0 + r2 * (tt / 100.0) ** 2, *RATIO_RANGE)
+        r0, r1 = coefficients(fit)["ratio"]
+        return u * np.clip(r0 + r1 * tt / 100.0, *RATIO_RANGE)
     return _by_family(family, np.empty(np.broadcast(u, tt).shape), f)
 
 
