@@ -183,23 +183,29 @@ def test_stress_relief_model_is_monotone_in_time_and_temperature():
     assert p10 - p1 == pytest.approx(753.15, rel=1e-9)
 
 
-def test_bad_supply_rows_rejected_with_file_line_and_column(tmp_path):
-    src = data_dir() / "supply_conditions.csv"
-    lines = src.read_text(encoding="utf-8").splitlines()
+def _supply_file_with(tmp_path, changes: dict):
+    """A copy of data/supply_conditions.csv whose first data row has ``changes`` (column ->
+    text) applied; returns (path, 1-based line of that row)."""
+    lines = (data_dir() / "supply_conditions.csv").read_text(encoding="utf-8").splitlines()
     first = next(i for i, l in enumerate(lines) if l.strip() and not l.startswith("#")) + 2  # 1-based first row
+    header = next(csv.reader([lines[first - 2]]))
+    cells = next(csv.reader([lines[first - 1]]))
+    for k, v in changes.items():
+        cells[header.index(k)] = v
+    buf = io.StringIO()
+    csv.writer(buf, lineterminator="").writerow(cells)
+    lines[first - 1] = buf.getvalue()
+    p = tmp_path / "supply_conditions.csv"
+    p.write_text("\n".join(lines) + "\n", encoding="utf-8")
+    return p, first
+
+
+def test_bad_supply_rows_rejected_with_file_line_and_column(tmp_path):
     for column, value, fragment in (("condition", "forged", "is not one of"),
                                     ("yield_mpa", "2900", "above uts_mpa"),
                                     ("grade", "NOPE-1", "not an id"),
                                     ("confidence", "sure", "is not one of")):
-        bad = list(lines)
-        cells = next(csv.reader([bad[first - 1]]))
-        header = next(csv.reader([bad[first - 2]]))
-        cells[header.index(column)] = value
-        buf = io.StringIO()
-        csv.writer(buf, lineterminator="").writerow(cells)
-        bad[first - 1] = buf.getvalue()
-        p = tmp_path / "supply_conditions.csv"
-        p.write_text("\n".join(bad) + "\n", encoding="utf-8")
+        p, first = _supply_file_with(tmp_path, {column: value})
         with pytest.raises(DataFileError) as exc:
             gr.build_catalogue(data_dir() / "grades.csv", data_dir() / "compositions.csv",
                                data_dir() / "route_windows.csv", p)
@@ -279,19 +285,8 @@ def test_bought_quenched_and_tempered_core_under_a_surface_treatment():
     ("cold_drawn", "oil", "x", "mill_quench", "only quenched_tempered rows"),
 ])
 def test_bad_mill_quench_rejected(tmp_path, condition, quench, basis, column, fragment):
-    src = data_dir() / "supply_conditions.csv"
-    lines = src.read_text(encoding="utf-8").splitlines()
-    first = next(i for i, l in enumerate(lines) if l.strip() and not l.startswith("#")) + 2
-    header = next(csv.reader([lines[first - 2]]))
-    cells = next(csv.reader([lines[first - 1]]))
-    for k, v in (("condition", condition), ("mill_quench", quench), ("mill_quench_basis", basis),
-                 ("designation", "test row")):
-        cells[header.index(k)] = v
-    buf = io.StringIO()
-    csv.writer(buf, lineterminator="").writerow(cells)
-    lines[first - 1] = buf.getvalue()
-    p = tmp_path / "supply_conditions.csv"
-    p.write_text("\n".join(lines) + "\n", encoding="utf-8")
+    p, first = _supply_file_with(tmp_path, {"condition": condition, "mill_quench": quench,
+                                            "mill_quench_basis": basis, "designation": "test row"})
     with pytest.raises(DataFileError) as exc:
         sup.read_supply(p)
     assert exc.value.line == first and exc.value.column == column
