@@ -112,8 +112,12 @@ class _Soften(RouteFamily):
         for k in ("uts_mpa", "yield_mpa", "elongation_pct"):
             out["center_" + k] = out[k]
         steel = np.isin(fam, STEEL_SCALE)
-        hv_base = np.where(np.isfinite(batch.attr("base_hardness_hb")),
-                           conversions.hb_to_hv(np.nan_to_num(batch.attr("base_hardness_hb"), nan=150.0)), np.nan)
+        base_hb = batch.attr("base_hardness_hb")
+        # a baseline whose source prints no Brinell value (e.g. Rockwell B only): the steel's
+        # hardness from its tensile strength by the ASTM A370 Table 3 conversion, as for modelled rows
+        no_hb = ~np.isfinite(base_hb)
+        hv_base = np.where(no_hb, conversions.uts_to_hv(np.where(no_hb, out["uts_mpa"], 500.0)),
+                           conversions.hb_to_hv(np.nan_to_num(base_hb, nan=150.0)))
         hv = np.where(modelled, conversions.uts_to_hv(np.where(modelled, out["uts_mpa"], 500.0)), hv_base)
         hv = np.where(steel, hv, np.nan)
         out.update(hardness_hv=hv, surface_hardness_hv=hv, center_hardness_hv=hv, case_depth_mm=np.zeros(n), **micro)
@@ -122,6 +126,8 @@ class _Soften(RouteFamily):
              "(data/grades.csv)", ~modelled),
             ("soak below Ac3 (Andrews 1965): not a full anneal / normalize; the catalogue baseline is given",
              np.isin(fam, MODELLED) & (temp < ac3)),
+            ("hardness converted from the catalogue tensile strength (ASTM A370 Table 3): the baseline's "
+             "source prints no Brinell value", ~modelled & no_hb & steel),
             ("alloy steel: strength scaled from the catalogue anneal by the ferrite-pearlite model "
              "(Gladman, McIvor & Pickering 1972 has no Cr, Mo, Ni terms)", modelled & np.isin(fam, ANCHORED)),
         ]
