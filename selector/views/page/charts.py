@@ -96,35 +96,41 @@ def chart_frames(states: pd.DataFrame, cand: pd.DataFrame, y: str, system: str,
     regions, paths = [], []
     fam_of = dict(zip(cand["id"], [family_label(f) for f in cand["route_family"]]))
     wanted = set(cand["variant"])
-    # one pass over the states: the rows of each drawn candidate (a mask per candidate costs more)
-    by_variant = {v: g for v, g in states.groupby("variant", sort=False) if v in wanted}
-    empty = states.iloc[:0]
-    drawn = [g for g in by_variant.values()]
-    ex_all = np.concatenate([g["elongation_pct"].to_numpy(float) for g in drawn]) if drawn else np.zeros(0)
-    ey_all = np.concatenate([g[y].to_numpy(float) for g in drawn]) if drawn else np.zeros(0)
+    # one pass over the states: the row positions of each drawn candidate, and the columns
+    # as arrays (a mask or a frame per candidate costs more)
+    sub = states[states["variant"].isin(wanted)]
+    rows_of = sub.groupby("variant", sort=False).indices if len(sub) else {}
+    ex_col, ey_col = sub["elongation_pct"].to_numpy(float), sub[y].to_numpy(float)
+    mv_col, nominal = sub["main_value"].to_numpy(float), (sub["corner"] == "nominal").to_numpy()
+    none = np.zeros(0, int)
     # a path shorter than this share of the drawn spread carries no end labels (they would overlap)
-    span_x = float(np.nanmax(ex_all) - np.nanmin(ex_all)) if len(ex_all) else 0.0
-    span_y = float(np.nanmax(ey_all) - np.nanmin(ey_all)) if len(ey_all) else 0.0
+    span_x = float(np.nanmax(ex_col) - np.nanmin(ex_col)) if len(ex_col) else 0.0
+    span_y = float(np.nanmax(ey_col) - np.nanmin(ey_col)) if len(ey_col) else 0.0
     for c in cand[["variant", "id", "label"] + (["window_parameter"] if "window_parameter" in cand else [])
                   ].to_dict("records"):
-        s = by_variant.get(c["variant"], empty)
+        pos = rows_of.get(c["variant"], none)
         focus = c["id"] == picked
-        band = hull_band(s["elongation_pct"], s[y])
+        band = hull_band(ex_col[pos], ey_col[pos])
         if len(band):
             regions.append({"x": band["x"].to_numpy(), "lo": band["lo"].to_numpy(), "hi": band["hi"].to_numpy(),
                             "label": c["label"], "id": c["id"], "family": fam_of[c["id"]], "focus": focus,
                             "n": len(band)})
-        nom = s[s["corner"] == "nominal"].dropna(subset=["elongation_pct", y])
-        nom = nom.sort_values("main_value") if nom["main_value"].notna().any() else nom
+        # the nominal composition along the main parameter (NaN values last, as a sort of the frame)
+        pos = pos[nominal[pos] & ~np.isnan(ex_col[pos]) & ~np.isnan(ey_col[pos])]
+        mv = mv_col[pos]
+        if (~np.isnan(mv)).any():
+            ok = np.flatnonzero(~np.isnan(mv))
+            pos = pos[np.concatenate([ok[mv[ok].argsort(kind="quicksort")], np.flatnonzero(np.isnan(mv))])]
+        nom = pos
         if len(nom):
             param = c.get("window_parameter") or ""
             q = quantity_of(param) if param else None
-            mv = nom["main_value"].to_numpy(float)
+            mv = mv_col[nom]
             shown = np.atleast_1d(to_display(mv, q, system) if q else mv)
             u = param_unit(param, system)
             n = len(nom)
             keep = np.zeros(n, bool)
-            ex, ey = nom["elongation_pct"].to_numpy(float), nom[y].to_numpy(float)
+            ex, ey = ex_col[nom], ey_col[nom]
             if focus or np.ptp(ex) > 0.15 * span_x or np.ptp(ey) > 0.15 * span_y:
                 keep[[0, -1]] = True                   # both ends of a path long enough to read
             if focus:
