@@ -1,7 +1,9 @@
-"""Charts of the page (Altair): the strength-elongation map, the process-parameter
+"""Charts of the page: the strength-elongation map, the process-parameter
 curves, hardness profiles, the side-by-side bars, the diameter sweep, the
 trade-off frontier of a near miss and the fatigue strength through the depth.
-Each builder takes DataFrames in SI and the unit system, and draws; no physics."""
+Each builder takes DataFrames in SI and the unit system, and draws; no physics.
+The map, redrawn at every change of targets, section or units, is written directly
+as a Vega-Lite spec (a dict); the other charts are Altair charts."""
 from __future__ import annotations
 
 import math
