@@ -521,8 +521,58 @@ def test_chart_frames_hold_each_candidate_region_and_path():
     for _, p in f["points"].iterrows():
         b = f["regions"][f["regions"]["id"] == p["id"]]
         assert np.interp(p["x"], b["x"], b["lo"]) - 1e-6 <= p["y"] <= np.interp(p["x"], b["x"], b["hi"]) + 1e-6
-    spec = pg.strength_elongation_chart(f, d["targets"], "yield_mpa", pg.SI, picked="C1").to_dict()
+    spec = pg.strength_elongation_chart(f, d["targets"], "yield_mpa", pg.SI, picked="C1")
     assert len(spec["layer"]) >= 6
+
+
+def test_map_spec_is_valid_lean_and_keeps_its_encoding():
+    """The map's spec is written as a dict (speed): valid Vega-Lite with and without each
+    kind of target, in both unit systems; its data only the rounded columns the layers
+    use (a region or path row names its candidate by id and looks the rest up on its
+    point); the page's own encoding kept (dotted edges, colour by route family,
+    dashed named limits, squares filled for the Pareto set, a cross on the focus)."""
+    from altair.utils.schemapi import validate_jsonschema
+    from altair.vegalite.v6.schema.core import load_schema
+
+    schema = load_schema()
+    d = pg.DEMO
+    prep = prepare(d["diameter_mm"], None, d["length_mm"])
+    cand = pg.label_candidates(rank(prep, d["targets"])).head(8)
+    states = prep[prep["variant"].isin(cand["variant"])]
+    picked = cand["id"].iloc[1]
+    full = {**d["targets"], "min_elongation_pct": 12.0, "max_yield_mpa": 1400.0, "max_uts_mpa": 1500.0}
+    for system in pg.UNIT_SYSTEMS:
+        for y in ("yield_mpa", "uts_mpa"):
+            f = pg.chart_frames(states, cand, y, system, picked=picked)
+            for targets in ({}, d["targets"], full):
+                spec = pg.strength_elongation_chart(f, targets, y, system, picked=picked)
+                validate_jsonschema(spec, schema)
+                assert pg.chart_spec(spec) is spec
+            ds = spec["datasets"]
+            assert set(ds["regions"][0]) == {"x", "lo", "hi", "id"}
+            assert set(ds["paths"][0]) == {"x", "y", "order", "text", "param", "id"}
+            ids = {r["id"] for r in ds["points"]}
+            assert {r["id"] for r in ds["regions"]} <= ids and {r["id"] for r in ds["paths"]} <= ids
+            # rounded for display: stress to 0.1 MPa or 0.01 ksi, elongation to 0.01 %
+            dec = 1 if system == pg.SI else 2
+            assert all(round(r["lo"], dec) == r["lo"] and round(r["x"], 2) == r["x"] for r in ds["regions"])
+            np.testing.assert_allclose([r["y"] for r in ds["points"]], f["points"]["y"], atol=0.5 * 10 ** -dec)
+            marks = [(lay["mark"]["type"], lay["mark"].get("strokeDash")) for lay in spec["layer"]]
+            # one dashed rule for the stress limits (a dataset row each), one for the elongation
+            assert marks.count(("line", [1.5, 2.5])) == 2 and marks.count(("rule", [8, 4])) == 2
+            named = [r["t"] for r in ds["targets"]]
+            assert any(t.startswith("min elongation 12") for t in named)
+            shown, other = ("max yield", "max tensile") if y == "yield_mpa" else ("max tensile", "max yield")
+            assert any(t.startswith(shown) for t in named) and not any(t.startswith(other) for t in named)
+            squares = [lay for lay in spec["layer"] if lay["mark"].get("shape") == "square"][0]
+            assert squares["encoding"]["color"]["field"] == "family"
+            assert squares["encoding"]["fill"]["condition"]["test"] == "datum.set == 'Pareto set'"
+            cross = [lay for lay in spec["layer"] if lay["mark"].get("shape") == "cross"]
+            assert len(cross) == 1 and [r["id"] for r in ds["points"] if r["focus"]] == [picked]
+    # the check can fail: a lookup from a dataset the spec does not name is still valid
+    # Vega-Lite, so the test of the data above is what guards the ids
+    with pytest.raises(Exception):
+        validate_jsonschema({**spec, "layer": [{**spec["layer"][0], "mark": "no-such-mark"}]}, schema)
 
 
 def test_service_conditions_reach_the_cautions(at):

@@ -1,7 +1,9 @@
-"""Charts of the page (Altair): the strength-elongation map, the process-parameter
+"""Charts of the page: the strength-elongation map, the process-parameter
 curves, hardness profiles, the side-by-side bars, the diameter sweep, the
 trade-off frontier of a near miss and the fatigue strength through the depth.
-Each builder takes DataFrames in SI and the unit system, and draws; no physics."""
+Each builder takes DataFrames in SI and the unit system, and draws; no physics.
+The map, redrawn at every change of targets, section or units, is written directly
+as a Vega-Lite spec (a dict); the other charts are Altair charts."""
 from __future__ import annotations
 
 import math
@@ -14,7 +16,7 @@ import pandas as pd
 from selector.catalogue.grades import default_catalogue
 from selector.selection.targets import NUMERIC_TARGETS
 from selector.routes.evaluate import scale_hardness
-from selector.views.units import display_name, quantity_of, to_display, unit
+from selector.views.units import US, display_name, quantity_of, to_display, unit
 
 from .text import family_label, param_label, param_unit, percent, pick_label, route_line
 
@@ -29,8 +31,13 @@ except AttributeError:             # pragma: no cover - an Altair without the sw
 
 
 def chart_spec(chart) -> dict:
-    """The Vega-Lite spec of an Altair chart, without the schema check (see above)."""
-    return chart.to_dict(validate=False)
+    """The Vega-Lite spec of an Altair chart, without the schema check (see above); a
+    spec already written as a dict (the map, :func:`strength_elongation_chart`) as is."""
+    return chart if isinstance(chart, dict) else chart.to_dict(validate=False)
+
+
+#: the Vega-Lite schema the page's specs follow (the one of the installed Altair)
+VEGA_LITE_SCHEMA = alt.SCHEMA_URL
 
 
 PALETTE = ["#1b6f8a", "#c2571a", "#5b8c2a", "#8e3b74", "#b3922b", "#3f4fa3", "#a8323e", "#2f8f7b",
@@ -91,35 +98,41 @@ def chart_frames(states: pd.DataFrame, cand: pd.DataFrame, y: str, system: str,
     regions, paths = [], []
     fam_of = dict(zip(cand["id"], [family_label(f) for f in cand["route_family"]]))
     wanted = set(cand["variant"])
-    # one pass over the states: the rows of each drawn candidate (a mask per candidate costs more)
-    by_variant = {v: g for v, g in states.groupby("variant", sort=False) if v in wanted}
-    empty = states.iloc[:0]
-    drawn = [g for g in by_variant.values()]
-    ex_all = np.concatenate([g["elongation_pct"].to_numpy(float) for g in drawn]) if drawn else np.zeros(0)
-    ey_all = np.concatenate([g[y].to_numpy(float) for g in drawn]) if drawn else np.zeros(0)
+    # one pass over the states: the row positions of each drawn candidate, and the columns
+    # as arrays (a mask or a frame per candidate costs more)
+    sub = states[states["variant"].isin(wanted)]
+    rows_of = sub.groupby("variant", sort=False).indices if len(sub) else {}
+    ex_col, ey_col = sub["elongation_pct"].to_numpy(float), sub[y].to_numpy(float)
+    mv_col, nominal = sub["main_value"].to_numpy(float), (sub["corner"] == "nominal").to_numpy()
+    none = np.zeros(0, int)
     # a path shorter than this share of the drawn spread carries no end labels (they would overlap)
-    span_x = float(np.nanmax(ex_all) - np.nanmin(ex_all)) if len(ex_all) else 0.0
-    span_y = float(np.nanmax(ey_all) - np.nanmin(ey_all)) if len(ey_all) else 0.0
+    span_x = float(np.nanmax(ex_col) - np.nanmin(ex_col)) if len(ex_col) else 0.0
+    span_y = float(np.nanmax(ey_col) - np.nanmin(ey_col)) if len(ey_col) else 0.0
     for c in cand[["variant", "id", "label"] + (["window_parameter"] if "window_parameter" in cand else [])
                   ].to_dict("records"):
-        s = by_variant.get(c["variant"], empty)
+        pos = rows_of.get(c["variant"], none)
         focus = c["id"] == picked
-        band = hull_band(s["elongation_pct"], s[y])
+        band = hull_band(ex_col[pos], ey_col[pos])
         if len(band):
             regions.append({"x": band["x"].to_numpy(), "lo": band["lo"].to_numpy(), "hi": band["hi"].to_numpy(),
                             "label": c["label"], "id": c["id"], "family": fam_of[c["id"]], "focus": focus,
                             "n": len(band)})
-        nom = s[s["corner"] == "nominal"].dropna(subset=["elongation_pct", y])
-        nom = nom.sort_values("main_value") if nom["main_value"].notna().any() else nom
+        # the nominal composition along the main parameter (NaN values last, as a sort of the frame)
+        pos = pos[nominal[pos] & ~np.isnan(ex_col[pos]) & ~np.isnan(ey_col[pos])]
+        mv = mv_col[pos]
+        if (~np.isnan(mv)).any():
+            ok = np.flatnonzero(~np.isnan(mv))
+            pos = pos[np.concatenate([ok[mv[ok].argsort(kind="quicksort")], np.flatnonzero(np.isnan(mv))])]
+        nom = pos
         if len(nom):
             param = c.get("window_parameter") or ""
             q = quantity_of(param) if param else None
-            mv = nom["main_value"].to_numpy(float)
+            mv = mv_col[nom]
             shown = np.atleast_1d(to_display(mv, q, system) if q else mv)
             u = param_unit(param, system)
             n = len(nom)
             keep = np.zeros(n, bool)
-            ex, ey = nom["elongation_pct"].to_numpy(float), nom[y].to_numpy(float)
+            ex, ey = ex_col[nom], ey_col[nom]
             if focus or np.ptp(ex) > 0.15 * span_x or np.ptp(ey) > 0.15 * span_y:
                 keep[[0, -1]] = True                   # both ends of a path long enough to read
             if focus:
@@ -205,9 +218,45 @@ FAMILY_COLOURS = ["#0f5e7a", "#b24a12", "#4a7a1c", "#7b2f66", "#8f6f10", "#34449
 LIMIT_COLOUR = "#6d5a12"
 
 
+#: decimals of the map's data in the spec (display units): elongation in %, stress in MPa or ksi
+MAP_DECIMALS = {"x": 2, "stress": {"SI": 1, "US": 2}, "cost": 3}
+
+
+def _rounded(values, decimals: int | None) -> list:
+    """Floats of ``values`` rounded to ``decimals`` (``None``: 4 significant digits), NaN as null."""
+    v = np.asarray(values, float)
+    if decimals is None:
+        with np.errstate(divide="ignore", invalid="ignore"):
+            mag = np.where(np.isfinite(v) & (v != 0), np.floor(np.log10(np.abs(np.where(v == 0, 1, v)))), 0)
+        scale = 10.0 ** (3 - mag)
+        v = np.round(v * scale) / scale
+    else:
+        v = np.round(v, decimals)
+    return [None if x != x else x for x in v.tolist()]
+
+
+def _records(frame: pd.DataFrame, columns: Mapping[str, int | None | str]) -> list:
+    """Rows of ``frame`` as JSON records with only ``columns`` (name -> decimals for
+    floats, ``None`` for 4 significant digits, ``"text"``, ``"int"`` or ``"bool"``)."""
+    cols = {}
+    for name, kind in columns.items():
+        col = frame[name]
+        if kind == "text":
+            cols[name] = [str(v) for v in col]
+        elif kind == "bool":
+            cols[name] = [bool(v) for v in col]
+        elif kind == "int":
+            cols[name] = [int(v) for v in col]
+        else:
+            cols[name] = _rounded(col.to_numpy(float), kind)
+    names = list(cols)
+    return [dict(zip(names, row)) for row in zip(*cols.values())]
+
+
 def strength_elongation_chart(frames: dict, targets: Mapping, y: str, system: str,
-                              picked: str | None = None, height: int = 500) -> alt.Chart:
-    """Strength (yield or tensile) against elongation, drawn as process paths.
+                              picked: str | None = None, height: int = 500) -> dict:
+    """Strength (yield or tensile) against elongation, drawn as process paths: the
+    map's Vega-Lite spec (a dict; see below for why no Altair objects).
 
     Encoding (the page's own): each candidate is its **process path** at the nominal
     composition, a line through the states of its main parameter with the parameter
@@ -220,9 +269,29 @@ def strength_elongation_chart(frames: dict, targets: Mapping, y: str, system: st
     crowded corner only the first label is written); the
     candidate in focus has a heavy path
     and a cross-hair on its chosen state; the **targets** are dashed limit lines, each
-    named at its end, with a check-mark text in the corner that meets them all."""
+    named at its end, with a check-mark text in the corner that meets them all.
+
+    The spec is written directly as a dict (Vega-Lite 6 grammar): building it through
+    Altair objects cost several tenths of a second per draw on the page (the map is
+    redrawn at every change of targets, section or units).  Its data carry only the
+    columns the layers use, rounded for display (:data:`MAP_DECIMALS`), in four named
+    datasets that the layers share (``regions``, ``paths``, ``points``, ``targets``);
+    the rows of a region or path name their candidate by id and take its label, family
+    and focus from its point (a lookup), not repeated on every row.  The tests check
+    the spec against the Vega-Lite schema.
+
+    >>> f = {"regions": pd.DataFrame(columns=["x", "lo", "hi", "label", "id", "family", "focus"]),
+    ...      "paths": pd.DataFrame(columns=["x", "y", "order", "text", "param", "label", "id", "family", "focus"]),
+    ...      "points": pd.DataFrame({"x": [10.0], "y": [800.04], "label": ["C1 4140"], "id": ["C1"],
+    ...                              "tag": ["C1 4140"], "family": ["harden + temper"], "route": ["r"],
+    ...                              "window": ["w"], "set": ["Pareto set"], "focus": [True], "cost": [1.5]})}
+    >>> spec = strength_elongation_chart(f, {"min_yield_mpa": 700.0}, "yield_mpa", "SI", picked="C1")
+    >>> spec["datasets"]["points"][0]["y"], [l["mark"]["type"] for l in spec["layer"]]
+    (800.0, ['rule', 'text', 'text', 'point', 'text', 'point'])
+    """
     reg, pth, pts = frames["regions"], frames["paths"], frames["points"]
     su = unit("stress", system)
+    sd = MAP_DECIMALS["stress"]["US" if system == US else "SI"]
     ytitle = ("Yield strength" if y == "yield_mpa" else "Tensile strength") + f" ({su})"
     which = "yield" if y == "yield_mpa" else "uts"
     tmin, tmax = targets.get(f"min_{which}_mpa"), targets.get(f"max_{which}_mpa")
@@ -232,79 +301,126 @@ def strength_elongation_chart(frames: dict, targets: Mapping, y: str, system: st
     ys += [to_display(v, "stress", system) for v in (tmin, tmax) if v is not None]
     xs += [emin] if emin is not None else []
     xdom, ydom = _domain(xs, floor=0.0), _domain(ys, floor=0.0)
+    xdom, ydom = [round(v, 3) for v in xdom], [round(v, 3) for v in ydom]
     fams = list(dict.fromkeys(list(pts["family"])))
-    colour = alt.Color("family:N", title="route family",
-                       scale=alt.Scale(domain=fams, range=[FAMILY_COLOURS[i % len(FAMILY_COLOURS)]
-                                                           for i in range(len(fams))]),
-                       legend=alt.Legend(orient="top", direction="horizontal", labelLimit=0, title=None,
-                                         symbolType="stroke", symbolStrokeWidth=3, columns=2))
-    x = alt.X("x:Q", title="Elongation (%)", scale=alt.Scale(domain=xdom, nice=False))
-    yy = alt.Y("y:Q", title=ytitle, scale=alt.Scale(domain=ydom, nice=False))
-    layers = []
+    colour = {"field": "family", "type": "nominal", "title": "route family",
+              "scale": {"domain": fams, "range": [FAMILY_COLOURS[i % len(FAMILY_COLOURS)] for i in range(len(fams))]},
+              "legend": {"orient": "top", "direction": "horizontal", "labelLimit": 0, "title": None,
+                         "symbolType": "stroke", "symbolStrokeWidth": 3, "columns": 2}}
+    xscale, yscale = {"domain": xdom, "nice": False}, {"domain": ydom, "nice": False}
+    x = {"field": "x", "type": "quantitative", "title": "Elongation (%)", "scale": xscale}
+    yy = {"field": "y", "type": "quantitative", "title": ytitle, "scale": yscale}
+
+    def when_focus(on, off):
+        return {"condition": {"test": "datum.focus", "value": on}, "value": off}
+
+    def only(test):
+        return [{"filter": test}]
+
+    # the rows of the regions and paths carry the candidate's id only; its label, family and
+    # focus come from its point (every drawn candidate has one)
+    from_points = [{"lookup": "id", "from": {"data": {"name": "points"}, "key": "id",
+                                             "fields": ["label", "family", "focus"]}}]
+
+    datasets, layers = {}, []
     # the targets: dashed limits named at their ends, a check mark in the corner that meets them all
     limits = []
     for v, name in ((tmin, f"min {which if which == 'yield' else 'tensile'}"),
                     (tmax, f"max {which if which == 'yield' else 'tensile'}")):
         if v is not None:
-            limits.append({"y": float(to_display(v, "stress", system)), "t": f"{name} {to_display(v, 'stress', system):.4g}"})
-    if limits:
-        lf = pd.DataFrame(limits)
-        layers.append(alt.Chart(lf).mark_rule(color=LIMIT_COLOUR, strokeDash=[8, 4], strokeWidth=1.4)
-                      .encode(y=alt.Y("y:Q", scale=alt.Scale(domain=ydom, nice=False))))
-        layers.append(alt.Chart(lf.assign(xr=xdom[1])).mark_text(align="right", dx=-4, dy=-6, color=LIMIT_COLOUR,
-                                                                 fontSize=11)
-                      .encode(x=alt.X("xr:Q", scale=alt.Scale(domain=xdom, nice=False)), y="y:Q", text="t:N"))
+            shown = float(to_display(v, "stress", system))
+            limits.append({"kind": "stress", "x": xdom[1], "y": round(shown, sd), "t": f"{name} {shown:.4g}"})
     if emin is not None:
-        ef = pd.DataFrame({"x": [float(emin)], "t": [f"min elongation {emin:.3g} %"]})
-        layers.append(alt.Chart(ef).mark_rule(color=LIMIT_COLOUR, strokeDash=[8, 4], strokeWidth=1.4)
-                      .encode(x=alt.X("x:Q", scale=alt.Scale(domain=xdom, nice=False))))
-        layers.append(alt.Chart(ef).mark_text(align="left", dx=4, dy=10, color=LIMIT_COLOUR, fontSize=11,
-                                              angle=0).encode(x="x:Q", y=alt.value(0), text="t:N"))
-    if limits or emin is not None:
-        corner = pd.DataFrame({"x": [xdom[1]], "y": [float(to_display(tmax, "stress", system)) if tmax is not None
-                                                     else ydom[1]], "t": ["✓ meets the targets"]})
-        layers.append(alt.Chart(corner).mark_text(align="right", baseline="top", dx=-6, dy=6, color=LIMIT_COLOUR,
-                                                  fontStyle="italic", fontSize=12)
-                      .encode(x=alt.X("x:Q", scale=alt.Scale(domain=xdom, nice=False)),
-                              y=alt.Y("y:Q", scale=alt.Scale(domain=ydom, nice=False)), text="t:N"))
+        limits.append({"kind": "elongation", "x": round(float(emin), 3), "y": None,
+                       "t": f"min elongation {emin:.3g} %"})
+    if limits:
+        top_y = round(float(to_display(tmax, "stress", system)), sd) if tmax is not None else ydom[1]
+        limits.append({"kind": "corner", "x": xdom[1], "y": top_y, "t": "✓ meets the targets"})
+        datasets["targets"] = limits
+        rule = {"type": "rule", "color": LIMIT_COLOUR, "strokeDash": [8, 4], "strokeWidth": 1.4}
+        if tmin is not None or tmax is not None:
+            stress = only("datum.kind == 'stress'")
+            layers.append({"data": {"name": "targets"}, "transform": stress, "mark": rule,
+                           "encoding": {"y": {"field": "y", "type": "quantitative", "scale": yscale}}})
+            layers.append({"data": {"name": "targets"}, "transform": stress,
+                           "mark": {"type": "text", "align": "right", "dx": -4, "dy": -6, "color": LIMIT_COLOUR,
+                                    "fontSize": 11},
+                           "encoding": {"x": {"field": "x", "type": "quantitative", "scale": xscale},
+                                        "y": {"field": "y", "type": "quantitative", "scale": yscale},
+                                        "text": {"field": "t", "type": "nominal"}}})
+        if emin is not None:
+            elong = only("datum.kind == 'elongation'")
+            layers.append({"data": {"name": "targets"}, "transform": elong, "mark": rule,
+                           "encoding": {"x": {"field": "x", "type": "quantitative", "scale": xscale}}})
+            layers.append({"data": {"name": "targets"}, "transform": elong,
+                           "mark": {"type": "text", "align": "left", "dx": 4, "dy": 10, "color": LIMIT_COLOUR,
+                                    "fontSize": 11, "angle": 0},
+                           "encoding": {"x": {"field": "x", "type": "quantitative", "scale": xscale},
+                                        "y": {"value": 0}, "text": {"field": "t", "type": "nominal"}}})
+        layers.append({"data": {"name": "targets"}, "transform": only("datum.kind == 'corner'"),
+                       "mark": {"type": "text", "align": "right", "baseline": "top", "dx": -6, "dy": 6,
+                                "color": LIMIT_COLOUR, "fontStyle": "italic", "fontSize": 12},
+                       "encoding": {"x": {"field": "x", "type": "quantitative", "scale": xscale},
+                                    "y": {"field": "y", "type": "quantitative", "scale": yscale},
+                                    "text": {"field": "t", "type": "nominal"}}})
     # the scatter over composition and window: two thin dotted edges per candidate
     if len(reg):
+        datasets["regions"] = _records(reg, {"x": MAP_DECIMALS["x"], "lo": sd, "hi": sd, "id": "text"})
         for edge in ("lo", "hi"):
-            layers.append(alt.Chart(reg).mark_line(strokeDash=[1.5, 2.5], interpolate="linear")
-                          .encode(x=x, y=alt.Y(f"{edge}:Q", title=ytitle, scale=alt.Scale(domain=ydom, nice=False)),
-                                  color=colour, detail="id:N",
-                                  strokeWidth=alt.condition("datum.focus", alt.value(1.4), alt.value(0.7)),
-                                  opacity=alt.condition("datum.focus", alt.value(0.9), alt.value(0.45)),
-                                  tooltip=[alt.Tooltip("label:N", title="candidate")]))
+            layers.append({"data": {"name": "regions"}, "transform": from_points,
+                           "mark": {"type": "line", "strokeDash": [1.5, 2.5], "interpolate": "linear"},
+                           "encoding": {"x": x, "y": {**yy, "field": edge}, "color": colour,
+                                        "detail": {"field": "id", "type": "nominal"},
+                                        "strokeWidth": when_focus(1.4, 0.7), "opacity": when_focus(0.9, 0.45),
+                                        "tooltip": [{"field": "label", "type": "nominal", "title": "candidate"}]}})
     # the process paths, labelled with the parameter value
     if len(pth):
-        layers.append(alt.Chart(pth).mark_line()
-                      .encode(x=x, y=yy, order="order:Q", color=colour, detail="id:N",
-                              strokeWidth=alt.condition("datum.focus", alt.value(3.2), alt.value(1.3)),
-                              opacity=alt.condition("datum.focus", alt.value(1.0), alt.value(0.6)),
-                              tooltip=[alt.Tooltip("label:N", title="candidate"),
-                                       alt.Tooltip("param:Q", title="process value", format=".4g"),
-                                       alt.Tooltip("x:Q", title="elongation %", format=".1f"),
-                                       alt.Tooltip("y:Q", title=su, format=".4g")]))
-        layers.append(alt.Chart(pth[pth["text"] != ""]).mark_text(dx=6, dy=8, fontSize=10, align="left")
-                      .encode(x=x, y=yy, text="text:N", color=colour))
+        datasets["paths"] = _records(pth, {"x": MAP_DECIMALS["x"], "y": sd, "order": "int", "text": "text",
+                                           "param": None, "id": "text"})
+        layers.append({"data": {"name": "paths"}, "transform": from_points, "mark": {"type": "line"},
+                       "encoding": {"x": x, "y": yy, "order": {"field": "order", "type": "quantitative"},
+                                    "color": colour, "detail": {"field": "id", "type": "nominal"},
+                                    "strokeWidth": when_focus(3.2, 1.3), "opacity": when_focus(1.0, 0.6),
+                                    "tooltip": [{"field": "label", "type": "nominal", "title": "candidate"},
+                                                {"field": "param", "type": "quantitative", "title": "process value",
+                                                 "format": ".4g"},
+                                                {"field": "x", "type": "quantitative", "title": "elongation %",
+                                                 "format": ".1f"},
+                                                {"field": "y", "type": "quantitative", "title": su,
+                                                 "format": ".4g"}]}})
+        layers.append({"data": {"name": "paths"}, "transform": only("datum.text != ''") + from_points,
+                       "mark": {"type": "text", "dx": 6, "dy": 8, "fontSize": 10, "align": "left"},
+                       "encoding": {"x": x, "y": yy, "text": {"field": "text", "type": "nominal"},
+                                    "color": colour}})
     # the chosen states: squares, filled for the Pareto set, labelled directly
-    layers.append(alt.Chart(pts).mark_point(shape="square", size=110, strokeWidth=1.8)
-                  .encode(x=x, y=yy, color=colour,
-                          fill=alt.condition("datum.set == 'Pareto set'", colour, alt.value("white")),
-                          tooltip=[alt.Tooltip("label:N", title="candidate"), alt.Tooltip("route:N"),
-                                   alt.Tooltip("window:N"), alt.Tooltip("set:N", title="status"),
-                                   alt.Tooltip("x:Q", title="elongation %", format=".1f"),
-                                   alt.Tooltip("y:Q", title=su, format=".4g"),
-                                   alt.Tooltip("cost:Q", title="relative cost/kg", format=".2f")]))
-    layers.append(alt.Chart(pts[pts["tag"] != ""]).mark_text(align="left", dx=8, dy=-8, fontWeight="bold",
-                                                             fontSize=11)
-                  .encode(x=x, y=yy, text="tag:N", color=colour))
+    datasets["points"] = _records(pts, {"x": MAP_DECIMALS["x"], "y": sd, "label": "text", "id": "text",
+                                        "tag": "text", "family": "text", "route": "text", "window": "text",
+                                        "set": "text", "focus": "bool", "cost": MAP_DECIMALS["cost"]})
+    layers.append({"data": {"name": "points"}, "mark": {"type": "point", "shape": "square", "size": 110,
+                                                        "strokeWidth": 1.8},
+                   "encoding": {"x": x, "y": yy, "color": colour,
+                                "fill": {"condition": {"test": "datum.set == 'Pareto set'", **colour},
+                                         "value": "white"},
+                                "tooltip": [{"field": "label", "type": "nominal", "title": "candidate"},
+                                            {"field": "route", "type": "nominal"},
+                                            {"field": "window", "type": "nominal"},
+                                            {"field": "set", "type": "nominal", "title": "status"},
+                                            {"field": "x", "type": "quantitative", "title": "elongation %",
+                                             "format": ".1f"},
+                                            {"field": "y", "type": "quantitative", "title": su, "format": ".4g"},
+                                            {"field": "cost", "type": "quantitative", "title": "relative cost/kg",
+                                             "format": ".2f"}]}})
+    layers.append({"data": {"name": "points"}, "transform": only("datum.tag != ''"),
+                   "mark": {"type": "text", "align": "left", "dx": 8, "dy": -8, "fontWeight": "bold",
+                            "fontSize": 11},
+                   "encoding": {"x": x, "y": yy, "text": {"field": "tag", "type": "nominal"}, "color": colour}})
     if picked is not None and (pts["id"] == picked).any():
-        layers.append(alt.Chart(pts[pts["id"] == picked]).mark_point(shape="cross", size=520, filled=False,
-                                                                     strokeWidth=1.6, color="#111111")
-                      .encode(x=x, y=yy))
-    return alt.layer(*layers).properties(height=height)
+        layers.append({"data": {"name": "points"}, "transform": only("datum.focus"),
+                       "mark": {"type": "point", "shape": "cross", "size": 520, "filled": False,
+                                "strokeWidth": 1.6, "color": "#111111"},
+                       "encoding": {"x": x, "y": yy}})
+    return {"$schema": VEGA_LITE_SCHEMA, "config": {"view": {"continuousWidth": 300, "continuousHeight": 300}},
+            "height": height, "datasets": datasets, "layer": layers}
 
 
 def profile_frame(profiles: Mapping[str, list], system: str, families: Mapping[str, str] | None = None
