@@ -117,3 +117,19 @@ def test_structure_digest_changes_with_the_states_not_the_section():
     one = X.expand_states(33.0, grades=[next(iter(_family_batch(fam, None, 33.0, None, CORNERS)[0].grades))])
     assert X.structure_of(one) not in (None, X.structure_of(a))
     assert X.structure_of(a.copy()) is None                   # a copy is not a known table
+
+
+def test_sensitivities_from_a_kept_plan_equal_a_build_with_none(monkeypatch):
+    """The section-independent plan of the sensitivity pass (thinned rows, moved
+    compositions, key rows), kept from another section, gives the arrays of a build that
+    makes its plan afresh, bit for bit."""
+    monkeypatch.setenv("SELECTOR_DISK_CACHE", "0")
+    scatter._effect_blocks.build(27.4, None)                     # keeps the plan
+    assert scatter._PLANS
+    kept = scatter._effect_blocks.build(63.5, None)
+    monkeypatch.setattr(scatter, "_PLANS", {})
+    fresh = scatter._effect_blocks.build(63.5, None)
+    assert set(kept) == set(fresh) and any(k.endswith("_a_uts_mpa") for k in fresh)
+    for k in fresh:
+        assert kept[k].dtype == fresh[k].dtype, k
+        assert np.array_equal(kept[k], fresh[k], equal_nan=fresh[k].dtype.kind == "f"), k
