@@ -94,11 +94,18 @@ def test_prepared_table_from_the_kept_layout_equals_a_fresh_layout(monkeypatch):
     from selector.states import expand as X
 
     monkeypatch.setenv("SELECTOR_DISK_CACHE", "0")
-    engine._prepare_table.build(41.3, None, 100.0, ())          # fills the memos at another section
+    # sections where the induction case depth reached (a window parameter that is also a
+    # result) differs: a layout kept from one must not serve another
+    for d in (12.0, 41.3, 95.0):
+        engine._prepare_table.build(d, None, 100.0, ())      # fills the memos at other sections
+    engine._prepare_table.build(52.9, None, 250.0, ())         # the same section, another length
     st = X.expand_states(52.9)
     digest = X.structure_of(st)
     assert digest is not None and any(k[0] == digest for k in engine._LAYOUTS)
+    real, calls = engine._layout, []
+    monkeypatch.setattr(engine, "_layout", lambda df: calls.append(1) or real(df))
     kept = engine._prepare_table.build(52.9, None, 100.0, ())
+    assert not calls                                            # the kept layout served it
     monkeypatch.setattr(engine, "_LAYOUTS", {})
     monkeypatch.setattr(X, "_STATE_KEYS", {})
     fresh = engine._prepare_table.build(52.9, None, 100.0, ())

@@ -51,6 +51,7 @@ Definitions (documented in docs/methods/selection.md):
 from __future__ import annotations
 
 import functools
+import hashlib
 
 import numpy as np
 import pandas as pd
@@ -67,7 +68,7 @@ from ..routes.steps import describe
 from ..rules import cautions as cautions_mod
 from ..rules.cautions import check_context
 from ..states import scatter
-from ..states.expand import expand
+from ..states.expand import RESULT_COLUMNS, expand
 from ..states.expand import structure_of as expand_structure
 from . import cost as cost_mod
 from .pareto import pareto_mask
@@ -181,12 +182,21 @@ def _prepare_table(diameter_mm, thickness_mm, length_mm, prices: tuple) -> pd.Da
     # the variant keys, main values and row order depend only on the states (grade, route,
     # window parameters, corner), the same at every section: kept per structure digest
     digest = expand_structure(st)
-    hit = _LAYOUTS.get((digest, tuple(df.columns))) if digest is not None else None
+    key = None
+    if digest is not None:
+        # a window parameter that is also a model result (the induction case depth: the depth
+        # reached) depends on the section: its values join the key
+        h = hashlib.blake2b(digest_size=20)
+        for c in _result_parameters():
+            if c in df:
+                h.update(c.encode() + np.ascontiguousarray(df[c].to_numpy(float)).tobytes())
+        key = (digest, tuple(df.columns), h.hexdigest())
+    hit = _LAYOUTS.get(key) if key is not None else None
     if hit is None:
         hit = _layout(df)
-        if digest is not None:
+        if key is not None:
             _evict(_LAYOUTS, 4)
-            _LAYOUTS[(digest, tuple(df.columns))] = hit
+            _LAYOUTS[key] = hit
     variant, main, vcode, order = hit
     df["variant"] = variant.copy()
     df["main_value"] = main.copy()
@@ -202,8 +212,15 @@ def _prepare_table(diameter_mm, thickness_mm, length_mm, prices: tuple) -> pd.Da
     return out
 
 
-#: (structure digest, columns) -> the layout of :func:`_layout` (a few recent ones)
+#: (structure digest, columns, digest of the result parameters) -> the layout of
+#: :func:`_layout` (a few recent ones)
 _LAYOUTS: dict = {}
+
+
+def _result_parameters() -> list:
+    """Window parameters of the route families that the states table holds as a model
+    result (the column is overwritten by the result, so it depends on the section)."""
+    return sorted({p for f in fam_registry.available() for p in f.parameters if p in RESULT_COLUMNS})
 
 
 def _layout(df: pd.DataFrame) -> tuple:

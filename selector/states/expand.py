@@ -11,6 +11,7 @@ from __future__ import annotations
 
 import functools
 import hashlib
+import weakref
 
 import numpy as np
 import pandas as pd
@@ -365,14 +366,15 @@ def expand_states(diameter_mm: float | None = 25.0, thickness_mm: float | None =
             _STATE_KEYS[digest] = kept
     df["state_key"] = pd.Series(kept.copy())
     if digest is not None:
-        _evict(_STRUCTURES, 32)
-        _STRUCTURES[id(df)] = (df, digest)
+        _evict(_STRUCTURES, 64)
+        _STRUCTURES[id(df)] = (weakref.ref(df), digest)     # never keeps a table alive
     return df
 
 
 #: per structure digest: the state_key column (see :func:`structure_of`)
 _STATE_KEYS: dict = {}
-#: id(table) -> (table, structure digest) of the recent tables of :func:`expand_states`
+#: id(table) -> (weak reference to the table, structure digest) of the recent tables of
+#: :func:`expand_states`
 _STRUCTURES: dict = {}
 
 
@@ -412,7 +414,7 @@ def structure_of(states: pd.DataFrame) -> str | None:
     e.g. for a copy or a table built another way): tables with equal digests hold the same
     states (grade, route, window parameters, corner) in the same rows, whatever the section."""
     hit = _STRUCTURES.get(id(states))
-    return hit[1] if hit is not None and hit[0] is states else None
+    return hit[1] if hit is not None and hit[0]() is states else None
 
 
 @functools.lru_cache(maxsize=16)
