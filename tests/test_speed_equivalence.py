@@ -82,3 +82,61 @@ def test_p_meet_on_the_nominal_rows_equals_p_meet_of_all_rows():
     whole = engine.p_meet(prepared, t)                       # draws every row
     assert np.array_equal(part[nominal], whole[nominal])
     assert 0.0 < whole[nominal].mean() < 1.0                 # the comparison is not between constants
+
+
+def test_prepared_table_from_the_kept_layout_equals_a_fresh_layout(monkeypatch):
+    """The variant keys, main values and row order kept per structure digest (from an
+    earlier section) give the prepared table of a build with no kept layout, bit for bit;
+    and the kept state_key column equals the one written from grade, route and state."""
+    import pandas as pd
+
+    from selector.selection import engine
+    from selector.states import expand as X
+
+    monkeypatch.setenv("SELECTOR_DISK_CACHE", "0")
+    # sections where the induction case depth reached (a window parameter that is also a
+    # result) differs: a layout kept from one must not serve another
+    for d in (12.0, 41.3, 95.0):
+        engine._prepare_table.build(d, None, 100.0, ())      # fills the memos at other sections
+    engine._prepare_table.build(52.9, None, 250.0, ())         # the same section, another length
+    st = X.expand_states(52.9)
+    digest = X.structure_of(st)
+    assert digest is not None and any(k[0] == digest for k in engine._LAYOUTS)
+    real, calls = engine._layout, []
+    monkeypatch.setattr(engine, "_layout", lambda df: calls.append(1) or real(df))
+    kept = engine._prepare_table.build(52.9, None, 100.0, ())
+    assert not calls                                            # the kept layout served it
+    monkeypatch.setattr(engine, "_LAYOUTS", {})
+    monkeypatch.setattr(X, "_STATE_KEYS", {})
+    fresh = engine._prepare_table.build(52.9, None, 100.0, ())
+    pd.testing.assert_frame_equal(kept, fresh, check_exact=True)
+    assert kept.attrs == fresh.attrs
+    written = st["grade"] + "|" + st["route"] + "|" + st["state"].astype(str)
+    pd.testing.assert_series_equal(st["state_key"], written, check_names=False)
+
+
+def test_structure_digest_changes_with_the_states_not_the_section():
+    from selector.states import expand as X
+
+    a, b = X.expand_states(33.0), X.expand_states(71.0)
+    assert X.structure_of(a) == X.structure_of(b) is not None
+    fam = fam_registry.get("quench_temper")
+    one = X.expand_states(33.0, grades=[next(iter(_family_batch(fam, None, 33.0, None, CORNERS)[0].grades))])
+    assert X.structure_of(one) not in (None, X.structure_of(a))
+    assert X.structure_of(a.copy()) is None                   # a copy is not a known table
+
+
+def test_sensitivities_from_a_kept_plan_equal_a_build_with_none(monkeypatch):
+    """The section-independent plan of the sensitivity pass (thinned rows, moved
+    compositions, key rows), kept from another section, gives the arrays of a build that
+    makes its plan afresh, bit for bit."""
+    monkeypatch.setenv("SELECTOR_DISK_CACHE", "0")
+    scatter._effect_blocks.build(27.4, None)                     # keeps the plan
+    assert scatter._PLANS
+    kept = scatter._effect_blocks.build(63.5, None)
+    monkeypatch.setattr(scatter, "_PLANS", {})
+    fresh = scatter._effect_blocks.build(63.5, None)
+    assert set(kept) == set(fresh) and any(k.endswith("_a_uts_mpa") for k in fresh)
+    for k in fresh:
+        assert kept[k].dtype == fresh[k].dtype, k
+        assert np.array_equal(kept[k], fresh[k], equal_nan=fresh[k].dtype.kind == "f"), k

@@ -51,6 +51,7 @@ Definitions (documented in docs/methods/selection.md):
 from __future__ import annotations
 
 import functools
+import hashlib
 
 import numpy as np
 import pandas as pd
@@ -67,7 +68,8 @@ from ..routes.steps import describe
 from ..rules import cautions as cautions_mod
 from ..rules.cautions import check_context
 from ..states import scatter
-from ..states.expand import expand
+from ..states.expand import RESULT_COLUMNS, expand
+from ..states.expand import structure_of as expand_structure
 from . import cost as cost_mod
 from .pareto import pareto_mask
 from .targets import NUMERIC_TARGETS, _NAN_PASSES_MAX, margins, meets, shortfalls, validate_targets
@@ -177,7 +179,56 @@ def _prepare_table(diameter_mm, thickness_mm, length_mm, prices: tuple) -> pd.Da
     st = expand(diameter_mm, thickness_mm)
     d = None if thickness_mm is not None else float(diameter_mm)
     df = costed(st, float(length_mm), dict(prices) or None, d, thickness_mm)
-    df["variant"] = _variant_keys(df)
+    # the variant keys, main values and row order depend only on the states (grade, route,
+    # window parameters, corner), the same at every section: kept per structure digest
+    digest = expand_structure(st)
+    key = None
+    if digest is not None:
+        # a window parameter that is also a model result (the induction case depth: the depth
+        # reached) depends on the section: its values join the key
+        h = hashlib.blake2b(digest_size=20)
+        for c in _result_parameters():
+            if c in df:
+                h.update(c.encode() + np.ascontiguousarray(df[c].to_numpy(float)).tobytes())
+        key = (digest, tuple(df.columns), h.hexdigest())
+    hit = _LAYOUTS.get(key) if key is not None else None
+    if hit is None:
+        hit = _layout(df)
+        if key is not None:
+            _evict(_LAYOUTS, 4)
+            _LAYOUTS[key] = hit
+    variant, main, vcode, order = hit
+    df["variant"] = variant.copy()
+    df["main_value"] = main.copy()
+    df["variant_code"] = vcode.copy()
+    out = df.take(order).reset_index(drop=True)
+    codes, uniq = pd.factorize(out["notes"])
+    if len(uniq) and not np.any(codes < 0):
+        per = np.array([0 if not x else x.count(" | ") + 1 for x in uniq], dtype=np.int64)
+        out["n_notes"] = per[codes]
+    else:
+        out["n_notes"] = [0 if not x else x.count(" | ") + 1 for x in out["notes"]]
+    out.attrs["section"] = {"diameter_mm": d, "thickness_mm": thickness_mm, "length_mm": float(length_mm)}
+    return out
+
+
+#: (structure digest, columns, digest of the result parameters) -> the layout of
+#: :func:`_layout` (a few recent ones)
+_LAYOUTS: dict = {}
+
+
+def _result_parameters() -> list:
+    """Window parameters of the route families that the states table holds as a model
+    result (the column is overwritten by the result, so it depends on the section)."""
+    return sorted({p for f in fam_registry.available() for p in f.parameters if p in RESULT_COLUMNS})
+
+
+def _layout(df: pd.DataFrame) -> tuple:
+    """``(variant keys, main values, variant codes, row order)`` of a costed states table:
+    the order used by rank(), the nominal block sorted by variant and main value, then the
+    lean and the rich blocks in the same state order (numpy index arithmetic on codes).
+    Reads only the columns that do not depend on the section."""
+    variant = _variant_keys(df)
     route = df["route"].to_numpy(dtype=object)
     main = np.full(len(df), np.nan)
     for r in pd.unique(route):
@@ -185,11 +236,7 @@ def _prepare_table(diameter_mm, thickness_mm, length_mm, prices: tuple) -> pd.Da
         if mp and mp in df:
             m_r = route == r
             main[m_r] = df[mp].to_numpy()[m_r].astype(float)
-    df["main_value"] = main
-    # layout used by rank(): the nominal block sorted by variant and main value, then the
-    # lean and the rich blocks in the same state order (numpy index arithmetic on codes)
-    vcode = pd.factorize(df["variant"])[0]
-    df["variant_code"] = vcode
+    vcode = pd.factorize(pd.Series(variant, dtype=object))[0]
     corner = df["corner"].to_numpy(dtype=object)
     key_rank = pd.factorize(df["state_key"], sort=True)[0]       # lexicographic rank of state_key
     nom_idx = np.flatnonzero(corner == "nominal")
@@ -203,19 +250,12 @@ def _prepare_table(diameter_mm, thickness_mm, length_mm, prices: tuple) -> pd.Da
         if len(idx) != len(nom_order) or np.any(blk < 0):
             raise RuntimeError("states table is not aligned by composition corner")
         take.append(blk)
-    out = df.take(np.concatenate(take)).reset_index(drop=True)
+    order = np.concatenate(take)
     m = len(nom_order)
-    keys = out["state_key"].to_numpy()
-    if len(out) != 3 * m or not (np.array_equal(keys[:m], keys[m:2 * m]) and np.array_equal(keys[:m], keys[2 * m:])):
+    keys = df["state_key"].to_numpy()[order]
+    if len(order) != 3 * m or not (np.array_equal(keys[:m], keys[m:2 * m]) and np.array_equal(keys[:m], keys[2 * m:])):
         raise RuntimeError("states table is not aligned by composition corner")
-    codes, uniq = pd.factorize(out["notes"])
-    if len(uniq) and not np.any(codes < 0):
-        per = np.array([0 if not x else x.count(" | ") + 1 for x in uniq], dtype=np.int64)
-        out["n_notes"] = per[codes]
-    else:
-        out["n_notes"] = [0 if not x else x.count(" | ") + 1 for x in out["notes"]]
-    out.attrs["section"] = {"diameter_mm": d, "thickness_mm": thickness_mm, "length_mm": float(length_mm)}
-    return out
+    return variant, main, vcode, order
 
 
 _SAMPLES: dict = {}

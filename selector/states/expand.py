@@ -10,6 +10,8 @@ one, so a row of this table and ``evaluate`` of its ``route`` agree exactly.
 from __future__ import annotations
 
 import functools
+import hashlib
+import weakref
 
 import numpy as np
 import pandas as pd
@@ -343,18 +345,76 @@ def expand_states(diameter_mm: float | None = 25.0, thickness_mm: float | None =
         parts.append(family_columns(f, batch, state_no, Text.of(corner), texts))
     n = sum(len(c["state"]) for c in parts)
     cols = _concat(parts, n)
+    digest = None
     if cols is None:
         df = pd.concat([_frame(c, texts) for c in parts], ignore_index=True, sort=False)
     else:
+        digest = _structure_digest(cols)
         cols["notes"] = Text(cols["notes"], list(texts))
         df = pd.DataFrame({k: _series(k, v) for k, v in cols.items()})
     for col in RESULT_COLUMNS:
         if col not in df:
             df[col] = np.nan
     df["case_depth_mm"] = df["case_depth_mm"].fillna(0.0)
-    # a key per state (grade, route, parameter point), shared by its corners
-    df["state_key"] = df["grade"] + "|" + df["route"] + "|" + df["state"].astype(str)
+    # a key per state (grade, route, parameter point), shared by its corners; the same at
+    # every section (written once per structure, a copy of the kept column after that)
+    kept = _STATE_KEYS.get(digest) if digest is not None else None
+    if kept is None:
+        kept = (df["grade"] + "|" + df["route"] + "|" + df["state"].astype(str)).array
+        if digest is not None:
+            _evict(_STATE_KEYS, 8)
+            _STATE_KEYS[digest] = kept
+    df["state_key"] = pd.Series(kept.copy())
+    if digest is not None:
+        _evict(_STRUCTURES, 64)
+        _STRUCTURES[id(df)] = (weakref.ref(df), digest)     # never keeps a table alive
     return df
+
+
+#: per structure digest: the state_key column (see :func:`structure_of`)
+_STATE_KEYS: dict = {}
+#: id(table) -> (weak reference to the table, structure digest) of the recent tables of
+#: :func:`expand_states`
+_STRUCTURES: dict = {}
+
+
+def _evict(store: dict, most: int) -> None:
+    """Drop the oldest entries of a small per-process memo above ``most``."""
+    while len(store) >= most:
+        try:
+            store.pop(next(iter(store)), None)
+        except (RuntimeError, StopIteration):
+            break
+
+
+def _structure_digest(cols: dict) -> str | None:
+    """A digest of every column of a states table that is not a model result (grade,
+    family, route, corner, state number, window parameters, composition and price
+    columns, and the column names in order): two tables with the same digest have the same
+    states in the same rows.  None where a column is neither numeric nor :class:`Text`."""
+    h = hashlib.blake2b(digest_size=20)
+    h.update("\x1f".join(cols).encode())
+    for k, v in cols.items():
+        if k == "notes" or k in RESULT_COLUMNS:
+            continue
+        h.update(b"\x1e" + k.encode())
+        if isinstance(v, Text):
+            h.update(b"T" + np.ascontiguousarray(v.codes).tobytes())
+            h.update("\x1f".join(v.uniques).encode())
+            continue
+        a = np.asarray(v)
+        if a.dtype.kind not in "biuf":
+            return None
+        h.update(a.dtype.str.encode() + str(a.shape).encode() + np.ascontiguousarray(a).tobytes())
+    return h.hexdigest()
+
+
+def structure_of(states: pd.DataFrame) -> str | None:
+    """The structure digest of a table returned by :func:`expand_states` (None when unknown,
+    e.g. for a copy or a table built another way): tables with equal digests hold the same
+    states (grade, route, window parameters, corner) in the same rows, whatever the section."""
+    hit = _STRUCTURES.get(id(states))
+    return hit[1] if hit is not None and hit[0]() is states else None
 
 
 @functools.lru_cache(maxsize=16)

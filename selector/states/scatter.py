@@ -90,7 +90,7 @@ from ..routes import bands
 from ..routes import families as fam_registry
 from ..routes.evaluate import STEEL_SCALE_FAMILIES
 from ..routes.families.base import Batch
-from .expand import _family_batch, expand
+from .expand import _evict, _family_batch, expand, structure_of
 
 #: draws per state (at least 200: standard error of p_meet <= 0.035)
 N_DRAWS = 200
@@ -194,9 +194,12 @@ def _thinned(batch: Batch, main: str | None) -> tuple[np.ndarray, np.ndarray, np
     return np.sort(order[keep_s]), left, right, w
 
 
-def _family_effects(fam, d, t, nominal: dict):
-    """(state keys, elements, {prop: (n, K) change of prop when the element moves from
-    mid-range to its maximum}) for the nominal states of one route family."""
+def _family_plan(fam, d, t, nominal_index):
+    """The section-independent part of :func:`_family_effects` for one route family: the
+    catalogue's states of the family (grid and compositions do not depend on the section),
+    their keys, the moved elements and half-ranges, the thinned rows and their
+    neighbours, the moved compositions, and the rows of the moved states in
+    ``nominal_index``.  None when the family has no states."""
     # the catalogue's grid and compositions, kept per family (expand._catalogue_blocks)
     built = _family_batch(fam, None, d, t, ("nominal",))
     if built is None:
@@ -206,11 +209,11 @@ def _family_effects(fam, d, t, nominal: dict):
     elements = sorted(e for e in batch.comp if e not in FIXED_RESIDUALS)
     h = {e: _half_ranges(batch, e) for e in elements}
     elements = [e for e in elements if (h[e] > 0).any()]
-    n, k = batch.n, len(elements)
+    plan = {"keys": keys, "elements": elements, "n": batch.n}
     if not elements:
-        return keys, elements, {}
+        return plan
     sub, left, right, w = _thinned(batch, fam.main_parameter)
-    on_sub = np.zeros(n, bool)
+    on_sub = np.zeros(batch.n, bool)
     on_sub[sub] = True
     idx, col = [], []
     for j, e in enumerate(elements):
@@ -222,11 +225,33 @@ def _family_effects(fam, d, t, nominal: dict):
     for j, e in enumerate(elements):
         m = col == j
         comp[e][m] += h[e][idx[m]]
-    pert = Batch(batch.grades, batch.gidx[idx], comp, {p: np.asarray(v)[idx] for p, v in batch.params.items()},
-                 batch.diameter_mm[idx], batch.thickness_mm[idx])
+    plan.update(grades=batch.grades, gidx=batch.gidx[idx], comp=comp,
+                params={p: np.asarray(v)[idx] for p, v in batch.params.items()},
+                idx=idx, col=col, left=left, right=right, w=w,
+                at=nominal_index.get_indexer(keys[idx]))      # rows of the moved states' nominal values
+    return plan
+
+
+def _family_effects(fam, d, t, nominal: dict, plan=None):
+    """(state keys, elements, {prop: (n, K) change of prop when the element moves from
+    mid-range to its maximum}) for the nominal states of one route family (``plan``: its
+    :func:`_family_plan`, built here when not given)."""
+    if plan is None:
+        plan = _family_plan(fam, d, t, nominal["index"])
+    if plan is None:
+        return None
+    keys, elements, n = plan["keys"], plan["elements"], plan["n"]
+    k = len(elements)
+    if not elements:
+        return keys, elements, {}
+    idx, col, left, right, w, at = (plan[x] for x in ("idx", "col", "left", "right", "w", "at"))
+    m = len(idx)
+    # arrays of its own for compute (a kept plan is never changed)
+    pert = Batch(plan["grades"], plan["gidx"].copy(), {e: v.copy() for e, v in plan["comp"].items()},
+                 {p: v.copy() for p, v in plan["params"].items()},
+                 np.full(m, np.nan if d is None else d), np.full(m, np.nan if t is None else t))
     res = fam.compute(pert)       # the sampled properties come from compute itself (no band, no HRC)
     out = {}
-    at = nominal["index"].get_indexer(keys[idx])       # rows of the moved states' nominal values
     for p in SAMPLED:
         if p not in res:
             continue
@@ -238,37 +263,63 @@ def _family_effects(fam, d, t, nominal: dict):
     return keys, elements, out
 
 
+#: per structure digest of the states table (:func:`selector.states.expand.structure_of`):
+#: the rows of each corner, the nominal state-key index, and per family its
+#: :func:`_family_plan` with the rows of its keys in each corner block (the same at every section)
+_PLANS: dict = {}
+
+
+def _structure_plan(states: pd.DataFrame, d, t) -> dict:
+    digest = structure_of(states)
+    hit = _PLANS.get(digest) if digest is not None else None
+    if hit is not None:
+        return hit
+    corner = states["corner"].to_numpy(dtype=object)
+    key = states["state_key"].to_numpy(object)
+    rows = {c: np.flatnonzero(corner == c) for c in CORNER_NAMES}
+    index = {c: pd.Index(key[rows[c]]) for c in CORNER_NAMES}
+    fams = []
+    for fam in fam_registry.available():
+        plan = _family_plan(fam, d, t, index["nominal"])
+        if plan is None:
+            continue
+        plan["in_corner"] = {c: index[c].get_indexer(plan["keys"]) for c in CORNER_NAMES}
+        fams.append((fam, plan))
+    out = {"rows": rows, "index": index["nominal"], "families": fams}
+    if digest is not None:
+        _evict(_PLANS, 4)
+        _PLANS[digest] = out
+    return out
+
+
+CORNER_NAMES = ("nominal", "lean", "rich")
+
+
 @disk_arrays     # kept in the user's cache directory, keyed by the arguments and all code and data
 def _effect_blocks(diameter_mm: float | None, thickness_mm: float | None) -> dict:
     """The sensitivities of :func:`effects` as plain arrays, one block per route family:
     ``f<i>_keys`` (m_i,) state keys, ``f<i>_elements`` (K_i,), ``f<i>_a_<prop>`` (m_i, K_i)."""
     states = expand(diameter_mm, thickness_mm)
-    nom = states[states["corner"] == "nominal"]
-    nominal = {p: nom[p].to_numpy(float) for p in SAMPLED}
-    nominal["index"] = pd.Index(nom["state_key"].to_numpy(object))
-    corner = {}
-    for c in ("lean", "rich"):
-        blk = states[states["corner"] == c]
-        corner[c] = ({p: blk[p].to_numpy(float) for p in SAMPLED}, pd.Index(blk["state_key"].to_numpy(object)))
+    sp = _structure_plan(states, diameter_mm, thickness_mm)
+    vals = {c: {p: states[p].to_numpy(float)[sp["rows"][c]] for p in SAMPLED} for c in CORNER_NAMES}
+    nominal = dict(vals["nominal"])
+    nominal["index"] = sp["index"]
     out = {}
     i = 0
-    for fam in fam_registry.available():
-        res = _family_effects(fam, diameter_mm, thickness_mm, nominal)
-        if res is None:
-            continue
+    for fam, plan in sp["families"]:
+        res = _family_effects(fam, diameter_mm, thickness_mm, nominal, plan)
         keys, els, deltas = res
         out[f"f{i}_keys"] = np.asarray(keys, dtype=str)
         out[f"f{i}_elements"] = np.asarray(list(els), dtype=str)
         for p, delta in deltas.items():
             out[f"f{i}_a_{p}"] = np.ascontiguousarray(delta, dtype=float)
         # the exact corners of the expansion, as changes from the nominal state (the anchors)
-        at = nominal["index"].get_indexer(keys)
+        at = plan["in_corner"]["nominal"]
         for c, sign in (("lean", -1.0), ("rich", 1.0)):
-            vals, index = corner[c]
-            ci = index.get_indexer(keys)
+            ci = plan["in_corner"][c]
             for p in SAMPLED:
                 y0 = np.where(at >= 0, nominal[p][at], np.nan)
-                yc = np.where(ci >= 0, vals[p][ci], np.nan)
+                yc = np.where(ci >= 0, vals[c][p][ci], np.nan)
                 out[f"f{i}_d{c}_{p}"] = sign * (yc - y0)
         i += 1
     return out
