@@ -7,7 +7,6 @@ import math
 import os
 import sys
 import threading
-from contextlib import redirect_stderr, redirect_stdout
 
 import numpy as np
 import pandas as pd
@@ -22,17 +21,10 @@ from selector.errors import (DataFileError, InputError, NotModelledError, Select
                              check_choice, safe_repr)
 from selector.selection.engine import prepare
 from selector.selection.targets import targets_from_toml
-from selector.views.cli import main
+from cli_runner import run
 
 PIN = dict(load_kn=20.0, lug_thickness_mm=30.0, clevis_thickness_mm=12.0, gap_mm=2.0)
 QT = [{"op": "harden", "quench": "oil"}, {"op": "temper", "temp_c": 540, "hours": 2}]
-
-
-def run(*argv):
-    out, err = io.StringIO(), io.StringIO()
-    with redirect_stdout(out), redirect_stderr(err):
-        code = main([str(a) for a in argv])
-    return code, out.getvalue(), err.getvalue()
 
 
 def assert_usage_error(code, err, *words):

@@ -1,28 +1,19 @@
 """The command-line package (selector.views.cli): the parser, the exit codes, the entry
 points, and the layout (one module per verb, no private imports between them, no circle)."""
 import ast
-import io
 import json
 import shutil
 import subprocess
 import sys
-from contextlib import redirect_stderr, redirect_stdout
 from pathlib import Path
 
 import pytest
 
 from selector.views import cli
-from selector.views.cli import main
+from cli_runner import run
 
 PACKAGE = Path(cli.__file__).parent
 OLD_MODULES = ("cli.py", "cli_more.py", "cli_design.py", "cli_batch.py", "cli_validate.py")
-
-
-def run(*argv):
-    out, err = io.StringIO(), io.StringIO()
-    with redirect_stdout(out), redirect_stderr(err):
-        code = main([str(a) for a in argv])
-    return code, out.getvalue(), err.getvalue()
 
 
 def test_one_module_per_verb_and_every_verb_registered():

@@ -1,16 +1,7 @@
 """``selector alternatives`` (selector.views.cli.alternatives)."""
-import io
 import json
-from contextlib import redirect_stderr, redirect_stdout
 
-from selector.views.cli import main
-
-
-def run(*argv):
-    out, err = io.StringIO(), io.StringIO()
-    with redirect_stdout(out), redirect_stderr(err):
-        code = main([str(a) for a in argv])
-    return code, out.getvalue(), err.getvalue()
+from cli_runner import run
 
 
 def test_alternatives_cheaper_in_order():

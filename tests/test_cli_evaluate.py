@@ -1,21 +1,12 @@
 """``selector evaluate`` (selector.views.cli.evaluate)."""
-import io
 import json
-from contextlib import redirect_stderr, redirect_stdout
 
 import pytest
 
 import selector
-from selector.views.cli import main
+from cli_runner import run
 
 QT = [{"op": "harden", "quench": "oil"}, {"op": "temper", "temp_c": 540, "hours": 2}]
-
-
-def run(*argv):
-    out, err = io.StringIO(), io.StringIO()
-    with redirect_stdout(out), redirect_stderr(err):
-        code = main([str(a) for a in argv])
-    return code, out.getvalue(), err.getvalue()
 
 
 def test_evaluate_readable_with_cautions():

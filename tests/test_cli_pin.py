@@ -1,21 +1,12 @@
 """``selector pin`` (selector.views.cli.pin)."""
-import io
 import json
-from contextlib import redirect_stderr, redirect_stdout
 
 import pytest
 
 import selector
-from selector.views.cli import main
+from cli_runner import run
 
 CASE = ("--load-kn", "60", "--diameter", "25", "--gap", "1.5", "--lug", "38", "--clevis", "16")
-
-
-def run(*argv):
-    out, err = io.StringIO(), io.StringIO()
-    with redirect_stdout(out), redirect_stderr(err):
-        code = main([str(a) for a in argv])
-    return code, out.getvalue(), err.getvalue()
 
 
 def test_pin_targets_match_library():

@@ -2,22 +2,14 @@
 with --all-columns, the chosen units, the nearest misses."""
 import io
 import json
-from contextlib import redirect_stderr, redirect_stdout
 
 import pandas as pd
 import pytest
 
 import selector
-from selector.views.cli import main
+from cli_runner import run
 
 MPA_PER_KSI = 6.894757   # NIST SP 811 (2008) Appendix B.8
-
-
-def run(*argv):
-    out, err = io.StringIO(), io.StringIO()
-    with redirect_stdout(out), redirect_stderr(err):
-        code = main([str(a) for a in argv])
-    return code, out.getvalue(), err.getvalue()
 
 
 TARGET = ("--min-yield-mpa", "700", "--min-elongation-pct", "12", "--diameter", "30")

@@ -1,23 +1,14 @@
 """``selector sweep`` (selector.views.cli.sweep) and the sweep with its picks
 (selector.design.sweep_picks)."""
-import io
 import json
-from contextlib import redirect_stderr, redirect_stdout
 
 import pytest
 
 import selector
 from selector.design.sweep_picks import sweep_with_picks
-from selector.views.cli import main
+from cli_runner import run
 
 CASE = dict(load_kn=60, gap_mm=1.5, lug_thickness_mm=38, clevis_thickness_mm=16)
-
-
-def run(*argv):
-    out, err = io.StringIO(), io.StringIO()
-    with redirect_stdout(out), redirect_stderr(err):
-        code = main([str(a) for a in argv])
-    return code, out.getvalue(), err.getvalue()
 
 
 @pytest.fixture(scope="module")

@@ -4,7 +4,7 @@ Hypothesis draws from invalid and odd spaces (wrong types, NaN and infinities,
 huge integers, deep nesting, control characters, numpy scalars and arrays, text
 where numbers go and numbers where text goes) as well as valid ones, over
 ``evaluate``, ``select``, ``alternatives``, ``pin_targets``, ``diameter_sweep``,
-the user-file readers and every CLI verb through ``main([...])``, and asserts:
+the user-file readers and every CLI verb through ``main([...])`` (tests/cli_runner.py), and asserts:
 
 * only :class:`~selector.errors.SelectorError` subclasses escape;
 * no NaN, infinity or negative value where a physical quantity is expected
@@ -22,11 +22,9 @@ only: a valid one recomputes the whole validation report (tests/test_validation.
 from __future__ import annotations
 
 import copy
-import io
 import json
 import math
 import os
-from contextlib import redirect_stderr, redirect_stdout
 
 import numpy as np
 import pandas as pd
@@ -37,7 +35,7 @@ import selector
 from selector import user_files as studies
 from selector.catalogue.grades import FAMILIES, default_catalogue
 from selector.errors import SelectorError
-from selector.views.cli import main
+from cli_runner import run
 from test_properties import valid_states   # valid points of every family's own process window
 
 pytestmark = pytest.mark.slow
@@ -455,10 +453,7 @@ def test_fuzz_failed_load_leaves_the_state_as_it_was(loaded_state, which, data):
 # ----------------------------------------------------------------------------- the command line
 
 def run_cli(argv) -> tuple[int, str, str]:
-    out, err = io.StringIO(), io.StringIO()
-    with redirect_stdout(out), redirect_stderr(err):
-        code = main(list(argv))
-    o, e = out.getvalue(), err.getvalue()
+    code, o, e = run(*argv)
     assert code in (0, 1, 2), (argv, code, e)
     event(f"exit {code}")
     assert "Traceback" not in o + e
