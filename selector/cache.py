@@ -522,3 +522,21 @@ def _disk_named(func, to_arrays, from_arrays):
 
     wrapper.build = func
     return wrapper
+
+
+def evict_oldest(store: dict, most: int) -> None:
+    """Drop the oldest entries of a small per-process memo until it holds fewer than
+    ``most`` (tolerant of another thread of the batch run doing the same at once).
+
+    Example (illustrative)
+
+    >>> memo = {1: "a", 2: "b", 3: "c"}
+    >>> evict_oldest(memo, 2)
+    >>> memo
+    {3: 'c'}
+    """
+    while len(store) >= most:
+        try:
+            store.pop(next(iter(store)), None)
+        except (RuntimeError, StopIteration):
+            break

@@ -5,7 +5,7 @@ import numpy as np
 
 from selector.routes import bands, families as fam_registry, quench_response
 from selector.routes.evaluate import _band_columns
-from selector.routes.families.quench_temper import _as_quenched_distinct
+from selector.routes.families.quench_temper import as_quenched_distinct
 from selector.states import scatter
 from selector.states.expand import CORNERS, _family_batch
 
@@ -30,7 +30,7 @@ def test_quench_profile_per_distinct_quench_equals_the_per_state_chain():
     fam, batch = _qt_batch(60.0)
     sub = batch.subset(np.arange(batch.n) % 7 == 0)          # a mix of grades, corners, media, tempers
     p = sub.params
-    fast = _as_quenched_distinct(sub, p["quench"], p["agitation"], np.asarray(p["austenitize_c"], float))
+    fast = as_quenched_distinct(sub, p["quench"], p["agitation"], np.asarray(p["austenitize_c"], float))
     slow = quench_response.as_quenched_profile(sub.comp, p["quench"], p["agitation"], diameter_mm=sub.diameter_mm,
                                                austenitize_c=np.asarray(p["austenitize_c"], float))
     for k in slow:

@@ -57,7 +57,7 @@ import numpy as np
 import pandas as pd
 
 from .. import inputs
-from ..cache import disk_frame
+from ..cache import disk_frame, evict_oldest
 from ..catalogue.grades import FAMILIES, default_catalogue
 from ..errors import InputError, NotModelledError
 from ..routes import bands
@@ -195,7 +195,7 @@ def _prepare_table(diameter_mm, thickness_mm, length_mm, prices: tuple) -> pd.Da
     if hit is None:
         hit = _layout(df)
         if key is not None:
-            _evict(_LAYOUTS, 4)
+            evict_oldest(_LAYOUTS, 4)
             _LAYOUTS[key] = hit
     variant, main, vcode, order = hit
     df["variant"] = variant.copy()
@@ -261,16 +261,6 @@ def _layout(df: pd.DataFrame) -> tuple:
 _SAMPLES: dict = {}
 
 
-def _evict(store: dict, most: int) -> None:
-    """Drop the oldest entries of a small per-process memo above ``most`` (tolerant of
-    another thread of the batch run doing the same at once)."""
-    while len(store) >= most:
-        try:
-            store.pop(next(iter(store)), None)
-        except (RuntimeError, StopIteration):
-            break
-
-
 #: the columns of the nominal block that :func:`selector.states.scatter.sample` reads
 _SAMPLE_INPUTS = ("state_key", "family", "route", bands.BAND_FREE) + tuple(scatter.SAMPLED)
 
@@ -290,7 +280,7 @@ def _sample_store(prepared: pd.DataFrame) -> dict:
     eff = scatter.effects(d, t)
     store = {"nominal": nom, "section": (float(d if t is None else t), d, t),
              "effect_rows": eff["index"].get_indexer(nom["state_key"].to_numpy()), "draws": {}, "done": {}}
-    _evict(_SAMPLES, 8)
+    evict_oldest(_SAMPLES, 8)
     _SAMPLES[key] = (prepared, store)
     return store
 
@@ -423,7 +413,7 @@ def _avoid_masks(prepared: pd.DataFrame, allowed, ctx: dict) -> dict:
     masks = cautions_mod.avoid_masks(_caution_view(prepared), allowed, **ctx)
     for v in masks.values():
         v.setflags(write=False)
-    _evict(_AVOID, 32)
+    evict_oldest(_AVOID, 32)
     _AVOID[key] = (prepared, masks)
     return masks
 

@@ -16,6 +16,7 @@ import weakref
 import numpy as np
 import pandas as pd
 
+from ..cache import evict_oldest
 from ..catalogue.grades import default_catalogue
 from ..errors import NotModelledError
 from ..routes import families as fam_registry
@@ -362,11 +363,11 @@ def expand_states(diameter_mm: float | None = 25.0, thickness_mm: float | None =
     if kept is None:
         kept = (df["grade"] + "|" + df["route"] + "|" + df["state"].astype(str)).array
         if digest is not None:
-            _evict(_STATE_KEYS, 8)
+            evict_oldest(_STATE_KEYS, 8)
             _STATE_KEYS[digest] = kept
     df["state_key"] = pd.Series(kept.copy())
     if digest is not None:
-        _evict(_STRUCTURES, 64)
+        evict_oldest(_STRUCTURES, 64)
         _STRUCTURES[id(df)] = (weakref.ref(df), digest)     # never keeps a table alive
     return df
 
@@ -376,15 +377,6 @@ _STATE_KEYS: dict = {}
 #: id(table) -> (weak reference to the table, structure digest) of the recent tables of
 #: :func:`expand_states`
 _STRUCTURES: dict = {}
-
-
-def _evict(store: dict, most: int) -> None:
-    """Drop the oldest entries of a small per-process memo above ``most``."""
-    while len(store) >= most:
-        try:
-            store.pop(next(iter(store)), None)
-        except (RuntimeError, StopIteration):
-            break
 
 
 def _structure_digest(cols: dict) -> str | None:

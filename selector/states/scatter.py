@@ -83,14 +83,14 @@ import numpy as np
 import pandas as pd
 from scipy import special
 
-from ..cache import disk_arrays, disk_table
+from ..cache import disk_arrays, disk_table, evict_oldest
 from ..catalogue.grades import default_catalogue
 from ..models import conversions
 from ..routes import bands
 from ..routes import families as fam_registry
 from ..routes.evaluate import STEEL_SCALE_FAMILIES
 from ..routes.families.base import Batch
-from .expand import _evict, _family_batch, expand, structure_of
+from .expand import _family_batch, expand, structure_of
 
 #: draws per state (at least 200: standard error of p_meet <= 0.035)
 N_DRAWS = 200
@@ -287,7 +287,7 @@ def _structure_plan(states: pd.DataFrame, d, t) -> dict:
         fams.append((fam, plan))
     out = {"rows": rows, "index": index["nominal"], "families": fams}
     if digest is not None:
-        _evict(_PLANS, 4)
+        evict_oldest(_PLANS, 4)
         _PLANS[digest] = out
     return out
 

@@ -44,7 +44,7 @@ def correlation_class(families: np.ndarray) -> np.ndarray:
 _PROFILE_SHARED = ("positions", "warnings")
 
 
-def _as_quenched_distinct(batch: Batch, quench, agitation, austenitize_c) -> dict:
+def as_quenched_distinct(batch: Batch, quench, agitation, austenitize_c) -> dict:
     """:func:`quench_response.as_quenched_profile` of the batch, evaluated once per distinct
     (composition, medium, agitation, austenitizing temperature, section) and taken back per
     state: the states of a grade differ by their temper only, so the catalogue's ~24 000
@@ -81,7 +81,7 @@ def through_harden(batch: Batch, quench, agitation, austenitize_c, temper_temp_c
     ``temper_temp_c`` is not NaN, tempered) steel at the batch's sections.  Shared
     by the case-hardening families for the core."""
     comp = batch.comp
-    prof = _as_quenched_distinct(batch, quench, agitation, austenitize_c)
+    prof = as_quenched_distinct(batch, quench, agitation, austenitize_c)
     pos = np.asarray(prof["positions"], float)
     hv_aq = np.asarray(prof["hardness_hv"], float)
     mart = np.asarray(prof["martensite_pct"], float)

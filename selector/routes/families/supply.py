@@ -58,7 +58,7 @@ from .. import bands
 from . import get
 from .base import Batch, RouteFamily, at_position, tension_test_position
 from .cold_work import stress_relief_steps
-from .quench_temper import (HARDENING_INPUTS, _as_quenched_distinct, core_model_inputs, correlation_class,
+from .quench_temper import (HARDENING_INPUTS, as_quenched_distinct, core_model_inputs, correlation_class,
                             default_austenitize_c)
 
 STEEL_SCALE = ("carbon_steel", "alloy_steel", "carburizing_steel", "nitriding_steel", "stainless_martensitic",
@@ -131,7 +131,7 @@ def mill_structure(batch: Batch, quench) -> dict:
         sub = batch.subset(on)
         aust = np.array([_austenitize_c(g) for g in sub.grades], float)[sub.gidx]
         # the as-quenched part of through_harden (no temper: the strength is the row's)
-        prof = _as_quenched_distinct(sub, q[on], np.full(sub.n, MILL_AGITATION, dtype=object), aust)
+        prof = as_quenched_distinct(sub, q[on], np.full(sub.n, MILL_AGITATION, dtype=object), aust)
         pos = np.asarray(prof["positions"], float)
         mart = np.asarray(prof["martensite_pct"], float)
         cm[on] = at_position(mart, pos, np.zeros(sub.n))
