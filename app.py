@@ -232,15 +232,13 @@ if len_si is None:
 fam_msg = pg.check_families(ss["families"])
 if fam_msg:
     errors.append(fam_msg)
-targets = pg.si_targets(pg.targets_from_inputs({k: ss.get(k) for k in [w for w, _, _ in pg.TARGET_FIELDS.values()]},
-                                               system, ss["families"] or None, bool(ss.get("corrosion"))))
+targets = pg.page_targets(ss, system)
 try:
     targets = validate_targets(targets, FAMILIES)
 except SelectorError as exc:
     errors.append(pg.explain(exc, system))
 
-service = pg.service_context(ss.get("plated"), ss.get("plating"), ss.get("mating"), ss.get("environment", "normal"),
-                             pg.si_key(pg.to_si(ss.get("service_temp"), "temperature", system), "temperature"))
+service = pg.page_service(ss, system)
 svc_msg = pg.check_service(service)
 if svc_msg:
     errors.append(svc_msg)
@@ -731,9 +729,7 @@ def parts_view():
 
 cand = None
 prepare_args = (d_si, t_si, len_si, price_items)
-rank_args = prepare_args + (pg.targets_key(targets), bool(ss.get("robust_only")),
-                            float(ss.get("min_p_pct") or 90.0) / 100.0, tuple(ss.get("allow") or ()),
-                            pg.targets_key(service))
+rank_args = pg.rank_args_of(prepare_args, targets, service, ss)
 ss["_rank_args"] = rank_args          # the ranking's cache key (serve.py's warm start computes the example's)
 if prepared_ok:
     try:

@@ -24,9 +24,9 @@ from .inputs import (  # noqa: F401
     DEMO, ENVIRONMENTS, LOAD_MODEL_LABELS, PIN_INPUT_KEYS, PIN_TARGET_KEYS, SHEAR_PLANE_LABELS,
     SWEEP_LABELS, SWEEP_MODES, SWEEP_SECONDS_PER_DIAMETER, TARGET_FIELDS, blank_inputs, capacity_for,
     check_families, check_service, convert_length_text, demo_title, example_inputs, explain, format_lengths,
-    inputs_from_pin, parse_lengths, pin_case_from_inputs, pin_grip_mm, pin_report_for, read_heat,
-    read_price_sheet, read_route_steps, route_json, service_context, si_targets, sweep_diameters,
-    targets_from_inputs, targets_key)
+    inputs_from_pin, page_service, page_targets, parse_lengths, pin_case_from_inputs, pin_grip_mm,
+    pin_report_for, rank_args_of, read_heat, read_price_sheet, read_route_steps, route_json, service_context,
+    si_targets, sweep_diameters, targets_from_inputs, targets_key)
 from .text import (  # noqa: F401
     avoid_rule_label, avoid_rules, band_text, candidate_cautions, case_text, family_label,
     first_through_and_case, hardness_text, label_candidates, mass_unit, per_mass_text, percent, pick_label,

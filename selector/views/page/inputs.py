@@ -200,6 +200,28 @@ def targets_key(targets: Mapping) -> str:
     return json.dumps(dict(targets), sort_keys=True)
 
 
+def page_targets(values: Mapping, system: str) -> dict:
+    """The SI targets of a run of the page from its inputs (widget key -> value in the
+    display units), rounded like the cache keys; not yet validated."""
+    return si_targets(targets_from_inputs({w: values.get(w) for w, _, _ in TARGET_FIELDS.values()}, system,
+                                          values.get("families") or None, bool(values.get("corrosion"))))
+
+
+def page_service(values: Mapping, system: str) -> dict:
+    """The service conditions of a run of the page from its inputs (see :func:`service_context`)."""
+    return service_context(values.get("plated"), values.get("plating"), values.get("mating"),
+                           values.get("environment", "normal"),
+                           si_key(to_si(values.get("service_temp"), "temperature", system), "temperature"))
+
+
+def rank_args_of(prepare_args: tuple, targets: Mapping, service: Mapping, values: Mapping) -> tuple:
+    """The arguments (and cache key) of the page's ranking: ``prepare_args`` then the
+    targets, the robust-only switch, the required p_meet, the allowed rules and the service."""
+    return prepare_args + (targets_key(targets), bool(values.get("robust_only")),
+                           float(values.get("min_p_pct") or 90.0) / 100.0, tuple(values.get("allow") or ()),
+                           targets_key(service))
+
+
 def route_json(route) -> str:
     return json.dumps(list(route), sort_keys=True)
 

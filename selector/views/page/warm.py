@@ -17,7 +17,7 @@ from selector.selection.targets import validate_targets
 from selector.views.units import SI, to_si
 
 from . import cache, text
-from .inputs import TARGET_FIELDS, example_inputs, service_context, si_targets, targets_from_inputs, targets_key
+from .inputs import example_inputs, page_service, page_targets, rank_args_of, targets_key
 from .units import si_key
 
 
@@ -28,14 +28,9 @@ def example_args() -> tuple:
     v = example_inputs(SI)
     d = si_key(to_si(v["diameter"], "length", SI), "length")
     length = si_key(to_si(v["length"], "length", SI), "length")
-    targets = si_targets(targets_from_inputs({w: v.get(w) for w, _, _ in TARGET_FIELDS.values()}, SI,
-                                             v["families"] or None, bool(v.get("corrosion"))))
-    targets = validate_targets(targets, FAMILIES)
-    service = service_context(v.get("plated"), v.get("plating"), v.get("mating"), v.get("environment", "normal"),
-                              si_key(to_si(v.get("service_temp"), "temperature", SI), "temperature"))
+    targets = validate_targets(page_targets(v, SI), FAMILIES)
     prep = (d, None, length, ())
-    rank = prep + (targets_key(targets), bool(v.get("robust_only")), float(v.get("min_p_pct") or 90.0) / 100.0,
-                   tuple(v.get("allow") or ()), targets_key(service))
+    rank = rank_args_of(prep, targets, page_service(v, SI), v)
     return prep, rank, targets
 
 
