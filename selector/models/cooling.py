@@ -190,11 +190,6 @@ def theta(kind: str, bi, xi, fo, n_terms: int = N_TERMS):
                   axis=-1)
 
 
-def _check_kind(kind):
-    if kind not in GEOMETRIES:
-        raise InputError("geometry", kind, ", ".join(GEOMETRIES))
-
-
 # --------------------------------------------------------------------------- exact crossing
 def _crossing(kind, bi, xi, theta_star, n_terms=N_TERMS):
     """Fo at which θ(ξ) falls to θ*, and −dθ/dFo there (exact series; scalar-free arrays)."""
