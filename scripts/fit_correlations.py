@@ -4,7 +4,8 @@ Per family (``carbon_steel``, ``alloy_steel``), least squares on the fully harde
 rows of ``data/tempering_points.csv`` that give a tensile strength
 (:func:`selector.models.correlations.solve`; forms in that module):
 
-    YS/UTS = r0 + r1·T/100;   ln EL = e0 + e1·UTS/1000;
+    YS/UTS = s0 + s1·u + s2·u² (alloy, u = UTS/1000) or r0 + r1·T/100 (carbon);
+    ln EL = e0 + e1·UTS/1000;
     RA = q0 + q1·UTS/1000 (alloy) or ln RA = q0 + q1·UTS/1000 (carbon)
 
 Writes ``data/fits/correlations_coefficients.csv`` (fit = family), ``_rows.csv`` (the
@@ -30,7 +31,7 @@ from selector.models import correlations as cr, tempering as tp  # noqa: E402
 NAME = "correlations"
 SOURCE_FILE = "data/tempering_points.csv"
 OUT = ROOT / "data" / "fits"
-UNITS = {"r0": "1", "r1": "1/(100 degC)", "e0": "ln %", "e1": "ln %/(1000 MPa)", "q0": "% or ln %",
+UNITS = {"r0": "1", "r1": "1/(100 degC)", "s0": "1", "s1": "1/(1000 MPa)", "s2": "1/(1000 MPa)^2", "e0": "ln %", "e1": "ln %/(1000 MPa)", "q0": "% or ln %",
          "q1": "%/(1000 MPa) or ln %/(1000 MPa)", "uts_min": "MPa", "uts_max": "MPa", "temp_min": "degC",
          "temp_max": "degC", "n_rows": "rows"}
 CV_SOURCE = "leave-one-grade-out refit by scripts/fit_correlations.py"
@@ -39,8 +40,7 @@ SOURCE = "least squares on the fully hardened rows with UTS of data/tempering_po
 
 def _predict(k: dict, fam: str, d: pd.DataFrame) -> dict:
     u = d["uts_mpa"].to_numpy(float)
-    r0, r1 = k["ratio"]
-    ys = u * np.clip(r0 + r1 * d["temp_c"].to_numpy(float) / 100.0, *cr.RATIO_RANGE)
+    ys = u * cr.ratio_of(k, fam, u, d["temp_c"].to_numpy(float))
     e0, e1 = k["elongation"]
     el = np.exp(e0 + e1 * u / 1000.0)
     q0, q1 = k["reduction_area"]
@@ -55,7 +55,7 @@ def fit(points: pd.DataFrame | None = None) -> dict:
     for fam in cr.FIT_FAMILIES:
         d = cr.fit_rows(pts, fam).reset_index(drop=True)
         k = cr.solve(d, fam)
-        for key, names in cr.COEFFICIENT_NAMES.items():
+        for key, names in cr.coefficient_names(fam).items():
             for n, v in zip(names, k[key]):
                 recs.append({"fit": fam, "coefficient": n, "value": float(v), "unit": UNITS[n],
                              "source": SOURCE if key not in ("uts_mpa", "temp_c") else "span of the fitted rows",

