@@ -97,7 +97,7 @@ def test_yield_ratio_in_qt_band():
 
 
 # Lucefin Group technical card 42CrMo4 (1.7225), table of tempering values on rounds of 10 mm
-# oil quenched from 850 C (reproduction: scribd 903475645; data/reference/qt_steels.csv): an
+# oil quenched from 850 C (EN 10083-3:2006 edition; reproductions it.scribd 237722216, ru.scribd 353943968; data/reference/qt_steels.csv): an
 # INDEPENDENT source (no fit has seen it).  temp_c, uts, yield.  The 200 C row (ratio 0.80) is
 # a known miss of +10.3 % (docs/methods/correlations.md), left out here.
 LUCEFIN_42CRMO4 = [(250, 1910, 1590), (300, 1800, 1560), (500, 1350, 1230), (600, 1100, 1000),
