@@ -9,7 +9,11 @@ time and temperature only through
 so that two tempers with the same P give the same hardness.  On that basis a
 hardness master surface for fully martensitic steel, HV_TM(P, composition), is fitted
 OFFLINE by ``scripts/fit_tempering.py`` to the fully hardened rows of
-``data/tempering_points.csv``; the package reads its coefficients from
+``data/tempering_points.csv`` (and the 41Cr4 table of the reference file), in two stages: every
+row read as tempered martensite (linear least squares), then the rows the route's hardening
+chain makes at least 50 % martensite refitted so that the route's mixture rule
+(:mod:`selector.models.structure_tempering`, with this surface for the martensite) matches
+them (docs/methods/tempering.md, section 2a); the package reads its coefficients from
 ``data/fits/tempering_coefficients.csv`` (never fits at import or first call).  It is
 capped at the as-quenched martensite hardness of :mod:`selector.models.martensite`.
 
