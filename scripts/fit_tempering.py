@@ -75,7 +75,8 @@ NON_NEGATIVE = ("Mo*a", "V*a")
 RANGE_UNITS = {"temp_c": "degC", "hours": "h", "P_1000": "K/1000"}
 CV_SOURCE = "leave-one-grade-out refit by scripts/fit_tempering.py"
 SOURCE = ("least squares on the fully hardened rows of data/tempering_points.csv and the EXTRA_TABLES rows of "
-          "data/reference/qt_steels.csv (scripts/fit_tempering.py)")
+          "data/reference/qt_steels.csv; rows >= 50 % martensite in the route's chain fitted through its mixture rule "
+          "(scripts/fit_tempering.py)")
 
 
 def extra_points(path: Path = ROOT / REFERENCE_FILE) -> pd.DataFrame:
