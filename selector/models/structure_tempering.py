@@ -111,7 +111,7 @@ def constituents(comp, martensite_pct, cooling_rate_c_s) -> dict:
     return {key: np.asarray(v)[inverse].reshape(shape) for key, v in out.items()}
 
 
-def mixture_hv(parts: dict, temp_c=None, hours=None, comp=None) -> np.ndarray:
+def mixture_hv(parts: dict, temp_c=None, hours=None, comp=None, coef=None) -> np.ndarray:
     """Hardness of the structure ``parts`` (from :func:`constituents`), as quenched
     (``temp_c`` None) or after tempering ``temp_c`` °C for ``hours`` h.
 
@@ -128,6 +128,10 @@ def mixture_hv(parts: dict, temp_c=None, hours=None, comp=None) -> np.ndarray:
         Time at temperature, h (> 0; ignored where ``temp_c`` is NaN).
     comp : mapping, optional
         Composition (required when tempering).
+    coef : sequence of float, optional
+        Coefficients of the tempered-martensite surface
+        (:func:`selector.models.tempering.tempered_martensite_hv`); None reads the shipped
+        ones.  The fit script passes trial coefficients to fit the surface through this rule.
 
     Returns
     -------
@@ -144,7 +148,7 @@ def mixture_hv(parts: dict, temp_c=None, hours=None, comp=None) -> np.ndarray:
     >>> s = {"C": 0.40, "Mn": 0.80, "Si": 0.25, "Cr": 1.0, "Mo": 0.20}
     >>> p = constituents(s, 100.0, 50.0)
     >>> round(float(mixture_hv(p))), round(float(mixture_hv(p, 540.0, 2.0, s)))
-    (614, 360)
+    (614, 366)
     """
     x_m, x_b, x_fp = parts["x_m"], parts["x_b"], parts["x_fp"]
     hv_m, hv_b, hv_fp = parts["hv_m"], parts["hv_b"], parts["hv_fp"]
@@ -158,7 +162,7 @@ def mixture_hv(parts: dict, temp_c=None, hours=None, comp=None) -> np.ndarray:
     ok = np.isfinite(t)
     t1 = np.where(ok, t, 200.0)
     h1 = np.where(ok & np.isfinite(h), h, 1.0)
-    hv_tm = np.minimum(tempering.tempered_martensite_hv(comp, t1, h1), hv_m)
+    hv_tm = np.minimum(tempering.tempered_martensite_hv(comp, t1, h1, coef), hv_m)
     hv_tfp = np.minimum(hv_fp, hv_tm)
     # bainite never loses more than the martensite of the same steel at the same temper, and
     # never ends softer than its ferrite-pearlite at the same temper

@@ -9,7 +9,11 @@ time and temperature only through
 so that two tempers with the same P give the same hardness.  On that basis a
 hardness master surface for fully martensitic steel, HV_TM(P, composition), is fitted
 OFFLINE by ``scripts/fit_tempering.py`` to the fully hardened rows of
-``data/tempering_points.csv``; the package reads its coefficients from
+``data/tempering_points.csv`` (and the 41Cr4 table of the reference file), in two stages: every
+row read as tempered martensite (linear least squares), then the rows the route's hardening
+chain makes at least 50 % martensite refitted so that the route's mixture rule
+(:mod:`selector.models.structure_tempering`, with this surface for the martensite) matches
+them (docs/methods/tempering.md, section 2a); the package reads its coefficients from
 ``data/fits/tempering_coefficients.csv`` (never fits at import or first call).  It is
 capped at the as-quenched martensite hardness of :mod:`selector.models.martensite`.
 
@@ -267,7 +271,7 @@ def surface_hv(coef, c, mo, v, p, cr=0.0):
     Example (illustrative: a value of this implementation, not a published one)
 
     >>> round(float(surface_hv(coefficients(), 0.40, 0.20, 0.0, 16000.0)))
-    313"""
+    307"""
     hv = tempering_features(c, mo, v, p, cr) @ np.asarray(coef, float)
     cap = conversions.hrc_to_hv(martensite_hardness_hrc(c, 99.9))
     return np.clip(hv, HV_FLOOR, cap)
@@ -310,7 +314,7 @@ def fitted_range() -> dict:
     return out
 
 
-def tempered_martensite_hv(comp, temp_c, hours):
+def tempered_martensite_hv(comp, temp_c, hours, coef=None):
     """Hardness of fully martensitic steel after tempering (master surface on the
     Hollomon–Jaffe parameter, Hollomon & Jaffe 1945; alloy terms after Grange,
     Hribal & Porter 1977).
@@ -331,6 +335,9 @@ def tempered_martensite_hv(comp, temp_c, hours):
         Tempering temperature, °C.
     hours : array_like
         Time at temperature, h (> 0).
+    coef : sequence of float, optional
+        Coefficients in :data:`FEATURES` order; None (the package's use) reads the shipped
+        ones (:func:`coefficients`).  The fit script passes trial coefficients here.
 
     Returns
     -------
@@ -353,16 +360,17 @@ def tempered_martensite_hv(comp, temp_c, hours):
 
     Example (calibration, not validation: ASM Metals Handbook Vol. 1 (1990) Q&T table, 4340
     oil quenched, 25 mm bar, tempered 540 °C: 360 HB (from memory; a row the fit used, 2 h
-    assumed); this implementation gives 340 HB (by ASTM E140), about 2 HRC below it)
+    assumed); this implementation gives 343 HB (by ASTM E140), about 2 HRC below it)
 
     >>> from selector.models import conversions
     >>> s = {"C": 0.405, "Mn": 0.70, "Si": 0.25, "Ni": 1.825, "Cr": 0.80, "Mo": 0.25}
     >>> round(float(conversions.hv_to_hb(tempered_martensite_hv(s, 540.0, 2.0))))
-    340
+    343
     """
     c = _carbon(el(comp, "C"))
     p = hollomon_jaffe_parameter(temp_c, hours, hollomon_jaffe_constant(c))
-    return surface_hv(coefficients(), c, el(comp, "Mo"), el(comp, "V"), p, el(comp, "Cr"))
+    return surface_hv(coefficients() if coef is None else coef, c, el(comp, "Mo"), el(comp, "V"), p,
+                      el(comp, "Cr"))
 
 
 
@@ -405,7 +413,7 @@ def tempered_hv(hardness_hv_as_quenched, hardness_hv_martensite, comp, temp_c, h
 
     >>> s = {"C": 0.405, "Mn": 0.70, "Si": 0.25, "Ni": 1.825, "Cr": 0.80, "Mo": 0.25}
     >>> round(float(tempered_hv(600.0, 650.0, s, 540.0, 2.0)))
-    343
+    346
     """
     hv_aq = _hardness("hardness_hv_as_quenched", hardness_hv_as_quenched)
     hv_m = _hardness("hardness_hv_martensite", hardness_hv_martensite)
