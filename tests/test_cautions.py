@@ -105,6 +105,27 @@ def test_quench_cracking_both_sides():
     assert got == [True, False, True, False, False, True, False, True, False]
 
 
+# --- quench cracking at the top of the carbon range: nominal below the limit, maximum at it ---
+def test_quench_cracking_range_fires_only_below_the_limit_when_the_range_reaches_it():
+    # carbon ranges of the grades (data/compositions.csv): 34CrMo4 0.30-0.37 (EN 10083-3),
+    # 4130 0.28-0.33 (SAE J404), 4140 0.38-0.43 (SAE J404)
+    from selector.catalogue.grades import grade
+    assert grade("34CrMo4").comp_max["C"] >= 0.35 > grade("34CrMo4").composition()["C"]
+    assert grade("4130").comp_max["C"] < 0.35
+    q = dict(route="quench_temper", temper_temp_c=550.0, family="alloy_steel")
+    df = frame(dict(q, grade="34CrMo4", quench="water", c_pct=grade("34CrMo4").composition()["C"]),
+               dict(q, grade="34CrMo4", quench="oil", c_pct=grade("34CrMo4").composition()["C"]),
+               dict(q, grade="4130", quench="water", c_pct=grade("4130").composition()["C"]),
+               dict(q, grade="4140", quench="water", c_pct=grade("4140").composition()["C"]),
+               dict(q, grade="NOT-A-GRADE", quench="water", c_pct=0.30))
+    codes = fired(df)
+    assert [("quench_cracking_range" in c) for c in codes] == [True, False, False, False, False]
+    # the nominal-carbon rule keeps firing on 4140 (above the limit) and not on 34CrMo4
+    assert [("quench_cracking" in c) for c in codes] == [False, False, False, True, False]
+    sev = {d["code"]: d["severity"] for row in ca.cautions_for(df) for d in row}
+    assert sev["quench_cracking_range"] == "caution" and sev["quench_cracking"] == "avoid"
+
+
 # --- decarburization: steels, C >= 0.30 %, quench_temper / normalize / anneal ---
 def test_decarburization_both_sides():
     df = frame(dict(grade="1030", c_pct=0.30, route="normalize"),

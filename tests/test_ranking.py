@@ -102,14 +102,17 @@ def test_an_unlikely_cheap_candidate_ranks_below_likelier_clean_ones(shaft):
 
 
 def test_no_candidate_ranks_after_one_it_dominates_in_its_tier(shaft):
-    # the default objectives (part cost, p_meet, elongation): inside a tier the order is a linear
-    # extension of dominance, so a candidate that dominates another never ranks below it
+    # the default objectives (part cost, p_meet, elongation) and the worst live caution (milder
+    # is better): inside a tier the order is a linear extension of dominance, so a candidate that
+    # dominates another never ranks below it
     tier = _tier(shaft)
     v = shaft[["part_cost", "p_meet", "elongation_pct"]].to_numpy(float)
+    sev = shaft["severity"].map({"": 0, "note": 1, "caution": 2, "avoid": 3}).to_numpy(float)
     r = shaft["rank"].to_numpy()
     for i in range(len(shaft)):
-        dom = ((v[:, 0] <= v[i, 0]) & (v[:, 1] >= v[i, 1]) & (v[:, 2] >= v[i, 2])
-               & ((v[:, 0] < v[i, 0]) | (v[:, 1] > v[i, 1]) | (v[:, 2] > v[i, 2])) & (tier == tier[i]))
+        dom = ((v[:, 0] <= v[i, 0]) & (v[:, 1] >= v[i, 1]) & (v[:, 2] >= v[i, 2]) & (sev <= sev[i])
+               & ((v[:, 0] < v[i, 0]) | (v[:, 1] > v[i, 1]) | (v[:, 2] > v[i, 2]) | (sev < sev[i]))
+               & (tier == tier[i]))
         assert (r[dom] < r[i]).all(), shaft.iloc[i][["grade", "route_family", "rank"]].to_dict()
 
 

@@ -30,6 +30,9 @@ hydrogen_embrittlement   plated steel (not austenitic) at >= 320 HV core or
 quench_cracking          water/brine quench (the route's or the prior one) of
                          alloy steel with C >= 0.35 % or of carbon steel with
                          C >= 0.60 %
+quench_cracking_range    the same quench of a grade whose nominal C is below
+                         those limits but whose specification maximum reaches
+                         them (severity caution)
 decarburization          steel with C >= 0.30 % austenitized in a furnace:
                          quench_temper, normalize, anneal, the Q&T before
                          nitriding, or the prior hardening of induction
@@ -243,6 +246,28 @@ def _quench_cracking(f: _Frame, ctx: dict) -> np.ndarray:
     return severe & _ge(f.c_pct - limit, -1e-9)
 
 
+@functools.lru_cache(maxsize=512)
+def _c_max_pct(grade: str) -> float:
+    """The specification maximum of carbon of a catalogue grade, wt % (NaN if not catalogued)."""
+    try:
+        g = default_catalogue().lookup(grade)
+    except (UnknownGradeError, DataFileError):
+        return float("nan")
+    return float(g.comp_max.get("C", np.nan))
+
+
+def _quench_cracking_range(f: _Frame, ctx: dict) -> np.ndarray:
+    # the same severe quench of a steel whose nominal carbon is below the limit of quench_cracking
+    # but whose specification range reaches it: a heat bought to the grade can be at the limit
+    severe = _severe(f.quench) | _severe(f.prior_quench)
+    u, inv = np.unique(f.family.astype(str), return_inverse=True)
+    limit = np.array([QUENCH_CRACK_C_PCT.get(fam, np.inf) for fam in u], float)[inv]
+    g, ginv = np.unique(f.grade.astype(str), return_inverse=True)
+    c_max = np.array([_c_max_pct(x) for x in g], float)[ginv]
+    below = ~_ge(f.c_pct - limit, -1e-9)
+    return severe & below & _ge(c_max - limit, -1e-9)
+
+
 def _decarb(f: _Frame, ctx: dict) -> np.ndarray:
     # furnace austenitizing: the route itself, the quench-and-temper before nitriding,
     # or the prior through-hardening of an induction route
@@ -343,6 +368,7 @@ TRIGGERS: Mapping[str, Callable] = MappingProxyType({
     "tme": _tme,
     "hydrogen_embrittlement": _hydrogen,
     "quench_cracking": _quench_cracking,
+    "quench_cracking_range": _quench_cracking_range,
     "decarburization": _decarb,
     "over_aging": _over_aging,
     "scc_7xxx_t6": _scc_7xxx,

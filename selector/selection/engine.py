@@ -698,10 +698,13 @@ def _finish(cand: pd.DataFrame, t: dict, objectives, service: dict | None = None
         cand[c] = m[c].to_numpy()
     cand["_avoid"] = ~clean
     cand["_step"] = p_meet_step(cand["p_meet"].to_numpy(float), cand["robust"].to_numpy(bool))
-    cand = cand.sort_values(["_avoid", "robust", "_step", "part_cost", "p_meet", "elongation_pct", "yield_mpa"],
-                            ascending=[True, False, False, True, False, False, False],
+    # at equal cost and p_meet step, a candidate whose worst live caution is milder comes first
+    cand["_sev"] = cand["severity"].map(order).fillna(-1).to_numpy(float)
+    cand = cand.sort_values(["_avoid", "robust", "_step", "part_cost", "_sev", "p_meet", "elongation_pct",
+                             "yield_mpa"],
+                            ascending=[True, False, False, True, True, False, False, False],
                             kind="stable", na_position="last").reset_index(drop=True)
-    cand = cand.drop(columns=["_avoid", "_step"])
+    cand = cand.drop(columns=["_avoid", "_step", "_sev"])
     cand["rank"] = np.arange(1, len(cand) + 1)
     cols = OUTPUT_COLUMNS + list(m.columns) + [c for c in cand.columns
                                                if c not in OUTPUT_COLUMNS and c not in m.columns]
