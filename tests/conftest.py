@@ -1,12 +1,18 @@
 """Test-session settings shared by every test file."""
 import os
+import shutil
 import tempfile
 
 import pytest
 
 # The suite writes its on-disk tables (selector/cache.py) to a directory of its own, so a
 # test that patches a model can never leave a table in the user's cache directory.
-os.environ["SELECTOR_CACHE_DIR"] = tempfile.mkdtemp(prefix="selector-test-cache-")
+os.environ["SELECTOR_CACHE_DIR"] = _CACHE_DIR = tempfile.mkdtemp(prefix="selector-test-cache-")
+
+
+def pytest_unconfigure(config):
+    """Remove the session's table cache (hundreds of MB after a full run) when pytest ends."""
+    shutil.rmtree(_CACHE_DIR, ignore_errors=True)
 
 
 def pytest_collection_modifyitems(config, items):
