@@ -575,6 +575,37 @@ def test_map_spec_is_valid_lean_and_keeps_its_encoding():
         validate_jsonschema({**spec, "layer": [{**spec["layer"][0], "mark": "no-such-mark"}]}, schema)
 
 
+def test_map_spec_keeps_its_form_when_targets_or_section_change():
+    """Only the datasets of the map's spec depend on the candidates: at a new minimum yield
+    or a new diameter the rest of the spec is the same (so the browser replaces the
+    chart's data and keeps the chart), while the datasets, which draw the new answer and
+    the axes' extent, differ; a unit switch changes the rest too (axis titles)."""
+    d = pg.DEMO
+
+    def spec(diameter_mm, min_yield_mpa, system=pg.SI):
+        prep = prepare(diameter_mm, None, d["length_mm"])
+        targets = {**d["targets"], "min_yield_mpa": min_yield_mpa}
+        cand = pg.label_candidates(rank(prep, targets)).head(15)
+        states = prep[prep["variant"].isin(cand["variant"])]
+        f = pg.chart_frames(states, cand, "yield_mpa", system, picked="C1")
+        return pg.strength_elongation_chart(f, targets, "yield_mpa", system, picked="C1")
+
+    def form(s):
+        return json.dumps({k: v for k, v in s.items() if k != "datasets"}, sort_keys=True)
+
+    base = spec(d["diameter_mm"], d["targets"]["min_yield_mpa"])
+    for other in (spec(d["diameter_mm"], 1000.0), spec(41.0, d["targets"]["min_yield_mpa"])):
+        assert form(other) == form(base)
+        assert other["datasets"] != base["datasets"]
+        assert other["datasets"]["frame"] != base["datasets"]["frame"]
+    # the extent holds every drawn value: the frame's corners bound the points and the regions
+    ds = base["datasets"]
+    (x0, y0), (x1, y1) = [(r["x"], r["y"]) for r in ds["frame"]]
+    assert all(x0 <= r["x"] <= x1 and y0 <= r["y"] <= y1 for r in ds["points"])
+    assert all(y0 <= r["lo"] and r["hi"] <= y1 for r in ds["regions"])
+    assert form(spec(d["diameter_mm"], d["targets"]["min_yield_mpa"], pg.US)) != form(base)
+
+
 def test_service_conditions_reach_the_cautions(at):
     warn = " ".join(w.value for w in at.warning)
     if pg.DEMO["service"].get("plated"):
