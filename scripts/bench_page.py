@@ -4,8 +4,9 @@ same step measured by the same harness in the same run: prints, asserts nothing.
 Three apps are served by ``streamlit run`` on free local ports and opened in Debian's
 headless Chromium through Playwright (no browser is downloaded):
 
-* **empty**: a title, one number input and a caption: Streamlit's own cost of drawing a
-  page and of re-running a script (the floor under any Streamlit page on this machine);
+* **bare**: a title, one number input, the example's candidate table (read from a file)
+  and a caption: Streamlit's own cost of drawing a page that shows a candidate row, and
+  of re-running a script (the floor under any Streamlit page with the answer, here);
 * **same widgets**: the page's sidebar widgets, header, notices, tabs, summary line,
   map and candidate table with the page's own labels, showing the example's table and
   map spec as read from files (computed once by this script through the page's own
@@ -74,11 +75,22 @@ N_CAND = """() => { for (const e of document.querySelectorAll("[data-testid='stM
 # ----------------------------------------------------------------------------- the floor apps
 
 EMPTY_APP = textwrap.dedent('''\
-    """Floor: an (almost) empty Streamlit page."""
+    """Floor: a bare Streamlit page with the candidate table: a title, one number input,
+    the example's table read from a file (no computation) and a caption."""
+    import os, pickle
     import streamlit as st
+
     st.session_state["_runs"] = st.session_state.get("_runs", 0) + 1
-    st.title("floor: empty page")
-    st.number_input("Min yield (MPa)", key="min_yield", value=None)
+
+    @st.cache_resource
+    def load():
+        with open(os.path.join(os.environ["SELECTOR_BENCH_FLOOR"], "tables.pkl"), "rb") as f:
+            return pickle.load(f)["table"]
+
+    table = load()
+    st.title("floor: a bare page with the table")
+    y = st.number_input("Min yield (MPa)", key="min_yield", value=None) or 0
+    st.dataframe(table.head(max(1, len(table) - int(y) // 10)), hide_index=True)
     st.caption(f"This run: #{st.session_state['_runs']}")
 ''')
 
@@ -263,7 +275,7 @@ def launch(playwright, profile: Path):
                                                          args=LAUNCH_ARGS, viewport={"width": WIDTH, "height": 2600})
 
 
-def first_answer(page, url: str, answer: str = FIRST_ROW, timeout_ms: int = 180_000) -> dict:
+def first_answer(page, url: str, answer: str = FIRST_ROW, with_map: bool = True, timeout_ms: int = 180_000) -> dict:
     """Open ``url``; seconds from navigation start until Streamlit's own page is attached
     (``shell``), the ``answer`` condition holds (``answer``: the first candidate row in the
     table), the map is drawn (``map``, when there is one) and the run has ended (``idle``)."""
@@ -273,7 +285,7 @@ def first_answer(page, url: str, answer: str = FIRST_ROW, timeout_ms: int = 180_
     out = {"shell": time.monotonic() - t0}
     page.wait_for_function(answer, timeout=timeout_ms, polling="raf")
     out["answer"] = time.monotonic() - t0
-    if answer == FIRST_ROW:
+    if with_map:
         page.wait_for_function(MAP_DRAWN, timeout=timeout_ms, polling="raf")
         out["map"] = time.monotonic() - t0
     page.get_by_text(re.compile("This run:")).first.wait_for(timeout=timeout_ms)
@@ -324,19 +336,17 @@ def run_seconds(line: str, what: str) -> float | None:
 # ----------------------------------------------------------------------------- one round
 
 def measure_floors(playwright, work: Path, tag: str = "") -> dict:
-    """The empty app's and the same-widgets app's first paint and re-runs."""
+    """The bare app's and the same-widgets app's first answer and re-runs."""
     env = dict(os.environ, SELECTOR_BENCH_FLOOR=str(work))
     res = {}
     with serve(work / "empty_app.py", env, cwd=ROOT) as (url, _):
-        browser = launch(playwright, work / f"profile_empty{tag}")
+        browser = launch(playwright, work / f"profile_bare{tag}")
         try:
             page = browser.new_page()
-            first = first_answer(page, url, answer="""() => !!document.querySelector("h1")""")
-            res["empty"] = {"first answer": first["answer"], "shell": first["shell"],
+            first = first_answer(page, url, answer=FIRST_ROW, with_map=False)
+            res["bare"] = {"first answer": first["answer"], "shell": first["shell"],
                             "target change": timed_rerun(page, type_value(page, "Min yield (MPa)", "1000"))[0]}
-            page2 = browser.new_page()
-            res["empty"]["second visit"] = first_answer(page2, url, answer="""() => !!document.querySelector("h1")""")[
-                "answer"]
+            res["bare"]["second visit"] = first_answer(browser.new_page(), url, with_map=False)["answer"]
         finally:
             browser.close()
     with serve(work / "widgets_app.py", env, cwd=ROOT) as (url, _):
@@ -393,23 +403,22 @@ def table(pages: list[dict], floors: list[dict]) -> str:
     def f(v, fmt="{:.2f}"):
         return "—" if v is None else fmt.format(v)
 
-    lines = [f"{'step':<16} {'page s':>7} {'widgets floor':>13} {'ratio':>6} {'empty floor':>11} "
+    lines = [f"{'step':<16} {'page s':>7} {'widgets floor':>13} {'ratio':>6} {'bare floor':>10} "
              f"{'script s':>8} {'library s':>9} {'browser-script':>14} {'target':>7}"]
     for step in STEPS:
         b = _median([p[step]["browser"] for p in pages])
         s = _median([p[step]["script"] for p in pages])
         lib = _median([p[step]["library"] for p in pages])
         wf = _median([fl["widgets"].get(step) for fl in floors])
-        ef = _median([fl["empty"].get(step if step != "diameter change" else "target change") for fl in floors]) \
-            if step in ("first answer", "second visit", "target change", "diameter change") else \
-            _median([fl["empty"].get("target change") for fl in floors])
+        ef = _median([fl["bare"].get(step if step in ("first answer", "second visit") else "target change")
+                      for fl in floors])
         target = TARGETS.get(step)
         lines.append(f"{step:<16} {f(b):>7} {f(wf):>13} {f(b / wf if b and wf else None, '{:.2f}×'):>6} "
-                     f"{f(ef):>11} {f(s):>8} {f(lib):>9} {f(b - s if b is not None and s is not None else None):>14} "
+                     f"{f(ef):>10} {f(s):>8} {f(lib):>9} {f(b - s if b is not None and s is not None else None):>14} "
                      f"{'≤ ' + format(target, 'g') + ' s' if target else '—':>7}")
     lines.append(f"(first answer: navigation start to the first candidate row; map drawn at "
                  f"{_median([p['map'] for p in pages]):.2f} s (floor {_median([fl['widgets']['map'] for fl in floors]):.2f} s), "
-                 f"Streamlit's own page at {_median([p['shell'] for p in pages]):.2f} s; empty floor of a change: "
+                 f"Streamlit's own page at {_median([p['shell'] for p in pages]):.2f} s; bare floor of a change: "
                  f"its re-run after a number input; server start with the warm start "
                  f"{_median([p['start'] for p in pages]):.1f} s)")
     return "\n".join(lines)
