@@ -27,8 +27,10 @@ For the page, the server's own timings of each run are read from its footer ("Th
 run: … page x s, library y s"): the script's time and the library's part of it (the
 cached wrappers' cache misses); browser − script is the front end and transport.
 
-Usage: ``python scripts/bench_page.py [--rounds N]`` (median of N rounds, default 3).
-The table cache is a fresh temporary directory (``SELECTOR_CACHE_DIR``).
+Usage: ``python scripts/bench_page.py [--rounds N] [--compare REV]`` (median of N rounds,
+default 3; ``--compare``: the page of an earlier git revision measured in the same rounds,
+printed in a second table).  The table cache is a fresh temporary directory
+(``SELECTOR_CACHE_DIR``); each round changes the diameter to a section not computed before.
 """
 from __future__ import annotations
 
@@ -241,15 +243,15 @@ def wait_healthy(url: str, proc: subprocess.Popen, timeout_s: float = 180.0) -> 
 
 
 @contextlib.contextmanager
-def serve(script: str | Path, env: dict | None = None, cwd: Path = ROOT):
-    """``streamlit run <script>`` on a free local port (the project's ``.streamlit/config.toml``
-    applies: it is read from ``cwd``); yields (url, seconds from the process start to its
-    health check answering)."""
+def serve(script: str | Path, env: dict | None = None, cwd: Path = ROOT, root: Path = ROOT):
+    """``streamlit run <script>`` on a free local port, the package imported from ``root``
+    (the project's ``.streamlit/config.toml`` applies: it is read from ``cwd``); yields
+    (url, seconds from the process start to its health check answering)."""
     if not shutil.which("streamlit"):
         raise RuntimeError("the streamlit command is not on PATH")
     port = free_port()
     env = dict(os.environ if env is None else env)
-    env["PYTHONPATH"] = str(ROOT) + os.pathsep + env.get("PYTHONPATH", "")
+    env["PYTHONPATH"] = str(root) + os.pathsep + env.get("PYTHONPATH", "")
     log = tempfile.TemporaryFile()
     t0 = time.monotonic()
     proc = subprocess.Popen([sys.executable, "-m", "streamlit", "run", str(script), "--server.port", str(port),
@@ -363,14 +365,15 @@ def measure_floors(playwright, work: Path, tag: str = "") -> dict:
     return res
 
 
-def measure_page(playwright, work: Path, env: dict, tag: str = "") -> dict:
-    """The page served by ``serve.py`` (warm start): first answer, second visit, changes."""
-    with serve("serve.py", env) as (url, start_s):
-        browser = launch(playwright, work / f"profile_page{tag}")
+def measure_page(playwright, work: Path, env: dict, tag: str = "", root: Path = ROOT, diameter: str = "41") -> dict:
+    """The page served by ``serve.py`` (warm start) from the tree at ``root``: first answer,
+    second visit, changes (the diameter changed to ``diameter`` mm)."""
+    with serve("serve.py", env, cwd=root, root=root) as (url, start_s):
+        browser = launch(playwright, work / f"profile_page{tag}{root.name}")
         try:
             page = browser.new_page()
             first = first_answer(page, url)
-            ch = changes(page)
+            ch = changes(page, diameter=diameter)
             second = first_answer(browser.new_page(), url)
         finally:
             browser.close()
@@ -429,9 +432,19 @@ def machine() -> str:
             f"{time.strftime('%Y-%m-%d %H:%M UTC', time.gmtime())}")
 
 
+def checkout(rev: str, folder: Path) -> Path:
+    """The project's files at git revision ``rev`` in ``folder`` (``git archive``)."""
+    folder.mkdir()
+    archive = subprocess.run(["git", "archive", rev], cwd=ROOT, check=True, capture_output=True).stdout
+    subprocess.run(["tar", "-x", "-C", str(folder)], input=archive, check=True)
+    return folder
+
+
 def main(argv=None) -> int:
     ap = argparse.ArgumentParser(description=__doc__.split("\n\n")[0])
     ap.add_argument("--rounds", type=int, default=3, help="rounds; medians are printed (default 3)")
+    ap.add_argument("--compare", metavar="REV", help="also measure the page of git revision REV in each round "
+                    "(a second table; the same floors)")
     args = ap.parse_args(argv)
     from playwright.sync_api import sync_playwright
 
@@ -442,16 +455,23 @@ def main(argv=None) -> int:
         env = dict(os.environ, SELECTOR_CACHE_DIR=str(work / "cache"))
         os.environ["SELECTOR_CACHE_DIR"] = env["SELECTOR_CACHE_DIR"]
         n = prepare_work(work)
+        other = checkout(args.compare, work / "compare") if args.compare else None
         print(f"page benchmark: {machine()}; the example has {n} candidates", flush=True)
-        pages, floors = [], []
+        pages, floors, others = [], [], []
         with sync_playwright() as p:
             for i in range(args.rounds):
                 floors.append(measure_floors(p, work, tag=str(i)))
-                pages.append(measure_page(p, work, env, tag=str(i)))
+                # a new section at every round: the table cache on disk holds the sections measured before
+                pages.append(measure_page(p, work, env, tag=str(i), diameter=str(41 + 2 * i)))
+                if other is not None:
+                    others.append(measure_page(p, work, env, tag=str(i), root=other, diameter=str(42 + 2 * i)))
                 print(f"round {i + 1}: page first answer {pages[-1]['first answer']['browser']:.2f} s, "
                       f"floor {floors[-1]['widgets']['first answer']:.2f} s", flush=True)
         print(f"\nmedians of {args.rounds} round(s); {machine()}")
         print(table(pages, floors))
+        if others:
+            print(f"\nthe page at {args.compare}, in the same rounds:")
+            print(table(others, floors))
     return 0
 
 
