@@ -313,6 +313,12 @@ def _library_calls(at) -> int:
     return int(line.split("Library computations of this server: ")[1].split()[0])
 
 
+def _run_library_seconds(at) -> float:
+    """The footer's seconds of library computation in this run ("This run: … library x s")."""
+    line = next(c.value for c in at.caption if "This run:" in c.value)
+    return float(line.split(" library ")[1].split(" s")[0])
+
+
 def test_only_the_open_view_is_computed_and_closed_views_keep_their_inputs():
     at = _run(AppTest.from_file(APP, default_timeout=TIMEOUT))
     assert [t.label for t in at.tabs] == ["Map and list", "One candidate", "Side by side", "Alternatives",
@@ -325,9 +331,18 @@ def test_only_the_open_view_is_computed_and_closed_views_keep_their_inputs():
     # a unit switch and back: display only, no library computation (the footer's count)
     at.radio(key="units").set_value(pg.US)
     _run(at)
+    assert _run_library_seconds(at) == 0.0           # the run's library time (the footer's "library x s")
     at.radio(key="units").set_value(pg.SI)
     _run(at)
     assert _library_calls(at) == calls
+    # a new minimum yield re-ranks: one library computation, timed in the run's line
+    first_yield = at.number_input(key="min_yield").value
+    at.number_input(key="min_yield").set_value(first_yield + 50.0)
+    _run(at)
+    assert _library_calls(at) == calls + 1 and _run_library_seconds(at) > 0.0
+    at.number_input(key="min_yield").set_value(first_yield)      # back: the cached ranking, nothing computed
+    _run(at)
+    assert _library_calls(at) == calls + 1 and _run_library_seconds(at) == 0.0
     # the candidate view: computed when opened
     at.session_state["view"] = "One candidate"
     _run(at)
