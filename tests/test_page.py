@@ -7,6 +7,7 @@ expansion is reused by the later runs of the same process, as on the page.
 from __future__ import annotations
 
 import json
+import os
 from pathlib import Path
 
 import numpy as np
@@ -382,6 +383,30 @@ def test_the_warm_start_computes_the_example_page_answer():
     assert pg.library_calls() > before                 # it did compute (the ranking was cleared)
     shown = _readable(at)
     assert len(pg.cached_rank(*rank_args)) == len(shown) > 0
+
+
+def test_the_warm_start_builds_a_new_section_in_the_process_and_writes_nothing(tmp_path, monkeypatch):
+    """serve.py also ranks the example about one preferred size up (25 -> 28.05 mm) with the
+    library's disk cache off: computed in the process (a library call of the page's
+    wrappers, then a cache hit for that key), no file written to the cache directory, and
+    the switch of the disk cache restored after (set or not set before)."""
+    from selector.views.page import warm
+
+    monkeypatch.setenv("SELECTOR_CACHE_DIR", str(tmp_path))
+    monkeypatch.setenv("SELECTOR_DISK_CACHE", "1")
+    prep, rank_args, _ = warm.example_args()
+    key = (round(prep[0] * 10 ** (1 / 20), 3),) + rank_args[1:]
+    assert key[0] == pytest.approx(28.05, abs=0.01)
+    before = pg.library_calls()
+    assert warm.build_process_tables() > 0
+    assert pg.library_calls() > before
+    assert os.environ["SELECTOR_DISK_CACHE"] == "1" and not any(tmp_path.iterdir())
+    again = pg.library_calls()
+    assert len(pg.cached_rank(*key)) > 0 and pg.library_calls() == again      # the page's cache holds it
+    monkeypatch.delenv("SELECTOR_DISK_CACHE")
+    with warm._disk_cache_off():
+        assert os.environ["SELECTOR_DISK_CACHE"] == "0"
+    assert "SELECTOR_DISK_CACHE" not in os.environ
 
 
 def test_every_chart_of_the_page_is_a_valid_vega_lite_spec(at):
