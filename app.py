@@ -108,6 +108,7 @@ for _k in VIEW_KEYS:              # the state of the closed views' widgets stays
     if _k in ss:
         ss[_k] = ss[_k]
 T0 = time.perf_counter()
+LIB0 = pg.library_seconds()        # the library's part of this run: the cached wrappers' misses
 timings = {}
 
 
@@ -844,5 +845,6 @@ notice("footer")
 st.caption("Catalogue values carry a confidence tag (verified, partial, from memory, common practice); "
            "models and their publications are listed in docs/methods.md.  "
            f"This run: #{ss['_runs']}, " + ", ".join(f"{k} {v:.2f} s" for k, v in timings.items())
-           + f", page {time.perf_counter() - T0:.2f} s (expansion and ranking are cached).  "
+           + f", page {time.perf_counter() - T0:.2f} s, library {pg.library_seconds() - LIB0:.3f} s "
+             "(expansion and ranking are cached).  "
            f"Library computations of this server: {pg.library_calls()} (a unit switch adds none).")

@@ -4,118 +4,54 @@ strength–elongation map and the candidate table render with data, that no metr
 and no legend text is cut (an element's scroll width beyond its client width, or a
 chart label ending in an ellipsis), and save a screenshot of each view to ``docs/``
 (``docs/screenshot.png`` is the README's; ``docs/page_*.png`` one per tab), and print
-the page's speed: the first answer (cold; a second visit; a new server started with
-``serve.py``, the warm start, on the table cache the first wrote), a target change, a
-diameter change, a re-run with every result cached (the floor of any change in the
-browser) and a unit switch, with the server's own timings of each run.  Times are
-printed, not asserted (issue 13); the unit switch is asserted to make no library
-computation (the footer's count).
+the page's speed (issue 13) with the harness of ``scripts/bench_page.py``: on this
+cold server (empty table cache) the first answer (navigation start to the first
+candidate row on screen), a target change, a diameter change, a re-run with every
+result cached and a unit switch, with the server's own timings of each run; then one
+round of the benchmark's table: the same steps on a ``serve.py`` server (the warm
+start) beside two floors measured in the same run by the same harness (a bare page
+with the candidate table, and the page's widgets, map and table computing nothing),
+with the script's and the library's seconds.  Times are printed, not asserted; the
+unit switch is asserted to make no library computation (the footer's count).
 
 Needs ``/usr/bin/chromium`` (Debian package ``chromium``; ``.ci/run`` installs it)
 and the ``playwright`` Python package; no browser is downloaded.
 """
 from __future__ import annotations
 
-import contextlib
 import os
 import re
-import shutil
-import socket
-import subprocess
 import sys
-import tempfile
 import time
-import urllib.request
 from pathlib import Path
 
 import pytest
 
 ROOT = Path(__file__).resolve().parents[1]
-CHROMIUM = "/usr/bin/chromium"
+sys.path.insert(0, str(ROOT / "scripts"))
+import bench_page as bench  # noqa: E402  (the page benchmark's harness: serving, timing, floors)
+
+CHROMIUM = bench.CHROMIUM
 SCREENSHOT = ROOT / "docs" / "screenshot.png"
 #: the narrow screen of issue 15: nothing may be cut at this width
-WIDTH = 1024
-LAUNCH_ARGS = ["--headless", "--no-sandbox", "--disable-gpu", "--disable-background-networking",
-               "--disable-component-update", "--disable-sync", "--no-first-run"]
+WIDTH = bench.WIDTH
 
 pytestmark = pytest.mark.slow
 
-#: the page's script has finished its run (the attribute Streamlit sets on its root element)
-IDLE = """() => document.querySelector("[data-testid='stApp']")?.dataset.testScriptState === 'notRunning'"""
-
-
-def _free_port() -> int:
-    with socket.socket(socket.AF_INET, socket.SOCK_STREAM) as s:
-        s.bind(("127.0.0.1", 0))
-        return s.getsockname()[1]
-
-
-def _wait_healthy(url: str, proc: subprocess.Popen, timeout_s: float = 90.0) -> None:
-    end = time.monotonic() + timeout_s
-    while time.monotonic() < end:
-        if proc.poll() is not None:
-            raise RuntimeError(f"streamlit exited with code {proc.returncode}")
-        try:
-            with urllib.request.urlopen(url + "/_stcore/health", timeout=2) as r:
-                if r.status == 200 and r.read().strip() == b"ok":
-                    return
-        except OSError:
-            pass
-        time.sleep(0.3)
-    raise TimeoutError(f"{url}/_stcore/health did not answer within {timeout_s} s")
-
-
-@contextlib.contextmanager
-def _serve(script: str = "app.py"):
-    """``streamlit run <script>`` on a free local port (``app.py``, or ``serve.py``: the same
-    page with a warm start); yields (url, seconds from the start of the process to its
-    health check answering).  The table cache directory is the
-    test session's (``SELECTOR_CACHE_DIR``, fresh per session, see conftest.py)."""
-    if not shutil.which("streamlit"):
-        pytest.fail("the streamlit command is not on PATH")
-    port = _free_port()
-    env = dict(os.environ, PYTHONPATH=str(ROOT) + os.pathsep + os.environ.get("PYTHONPATH", ""))
-    log = tempfile.TemporaryFile()
-    t0 = time.monotonic()
-    proc = subprocess.Popen([sys.executable, "-m", "streamlit", "run", script, "--server.port", str(port),
-                             "--server.address", "127.0.0.1", "--server.headless", "true",
-                             "--browser.gatherUsageStats", "false"],
-                            cwd=ROOT, env=env, stdout=log, stderr=subprocess.STDOUT)
-    url = f"http://127.0.0.1:{port}"
-    try:
-        _wait_healthy(url, proc)
-        yield url, time.monotonic() - t0
-    finally:
-        proc.terminate()
-        try:
-            proc.wait(timeout=15)
-        except subprocess.TimeoutExpired:
-            proc.kill()
-        log.close()
+IDLE, RUN_LINE = bench.IDLE, bench.RUN_LINE
 
 
 @pytest.fixture(scope="module")
 def server():
-    with _serve() as (url, _):
+    """``streamlit run app.py`` on a free local port, on the test session's table cache
+    directory (``SELECTOR_CACHE_DIR``, fresh per session, see conftest.py): cold."""
+    with bench.serve("app.py") as (url, _):
         yield url
 
 
-#: the footer's "This run:" line; read from the captions' textContent, not the page's innerText
-#: (innerText lays the whole page out at every poll, which would add to the times measured)
-RUN_LINE = """() => ([...document.querySelectorAll("[data-testid='stCaption'], [data-testid='stCaptionContainer']")]
-                     .map(e => (e.textContent.match(/This run:[^\\n]*/) || [""])[0]).find(t => t) || "")"""
-
-
 def _timed_rerun(page, action) -> float:
-    """Seconds from ``action`` until the page has run again and is idle (the "This run:"
-    line, which holds the run's own timings, has changed)."""
-    before = page.evaluate(RUN_LINE)
-    t0 = time.monotonic()
-    action()
-    page.wait_for_function(f"(before) => ({RUN_LINE})() !== '' && ({RUN_LINE})() !== before",
-                           arg=before, timeout=120_000)
-    page.wait_for_function(IDLE, timeout=120_000)
-    return time.monotonic() - t0
+    """Seconds from ``action`` until the page has run again and is idle."""
+    return bench.timed_rerun(page, action)[0]
 
 
 #: metric labels and values whose text is wider than their box (cut by CSS ellipsis or overflow), and
@@ -154,27 +90,15 @@ CALLS = """() => +((document.body.innerText.match(/Library computations of this 
 
 
 def _first_answer(page, url: str) -> tuple:
-    """Open the page; seconds until the answer (the map drawn from data and the candidate
-    table) is on screen, seconds until the page's run has ended, the number of candidates,
-    the server's timings of the run (its "This run:" line) and the seconds until Streamlit's
-    own page was drawn (the browser's floor, before any of this page's content)."""
-    t0 = time.monotonic()
-    page.goto(url, wait_until="domcontentloaded")
-    page.locator("[data-testid='stApp']").first.wait_for(state="attached", timeout=180_000)
-    shell_s = time.monotonic() - t0          # the browser's floor: Streamlit's own page drawn, before any answer
-    page.locator("[data-testid='stVegaLiteChart'] svg .mark-symbol path").first.wait_for(
-        state="attached", timeout=180_000)
-    page.locator("[data-testid='stDataFrame']").first.wait_for(state="visible", timeout=180_000)
-    page.get_by_text(re.compile(r"\d+ candidates meet the targets")).first.wait_for(timeout=180_000)
-    answer_s = time.monotonic() - t0
-    page.get_by_text(re.compile("This run:")).first.wait_for(timeout=180_000)
-    page.wait_for_function(IDLE, timeout=180_000)
-    idle_s = time.monotonic() - t0
-    text = page.locator("[data-testid='stMarkdownContainer']").all_inner_texts()
-    summary = [t for t in text if "candidates meet the targets" in t]
-    assert summary, "the summary line of the candidates is missing"
-    return (answer_s, idle_s, int(re.search(r"(\d+)\s+candidates meet", summary[0]).group(1)),
-            page.evaluate(RUN_LINE), shell_s)
+    """Open the page; seconds until the first candidate row is on screen (the answer), until
+    the map is drawn, until the page's run has ended, the number of candidates, the server's
+    timings of the run (its "This run:" line) and the seconds until Streamlit's own page was
+    attached (before any of this page's content)."""
+    t = bench.first_answer(page, url)
+    page.locator("[data-testid='stDataFrame']").first.wait_for(state="visible", timeout=60_000)
+    n = page.evaluate(bench.N_CAND)
+    assert n >= 0, "the summary line of the candidates is missing"
+    return t["answer"], t["map"], t["idle"], n, t["run"], t["shell"]
 
 
 def _shot(page, name: str) -> Path:
@@ -187,8 +111,7 @@ def _shot(page, name: str) -> Path:
 
 def _launch(playwright, profile: Path):
     # a new, throw-away profile directory (Playwright passes it as --user-data-dir)
-    return playwright.chromium.launch_persistent_context(str(profile), executable_path=CHROMIUM, headless=True,
-                                                         args=LAUNCH_ARGS, viewport={"width": WIDTH, "height": 2600})
+    return bench.launch(playwright, profile)
 
 
 def test_page_at_1024_px_renders_views_and_cuts_no_text(server, tmp_path):
@@ -204,7 +127,7 @@ def test_page_at_1024_px_renders_views_and_cuts_no_text(server, tmp_path):
         try:
             page = browser.new_page()
             # a new server and an empty table cache: everything is built on this first visit
-            cold_s, cold_idle_s, n_cand, first_run, cold_shell_s = _first_answer(page, server)
+            cold_s, cold_map_s, cold_idle_s, n_cand, first_run, cold_shell_s = _first_answer(page, server)
             assert n_cand > 0
             # the strength-elongation map: a vega-embed svg with nonzero size
             chart = page.locator("[data-testid='stVegaLiteChart'] canvas, "
@@ -246,7 +169,7 @@ def test_page_at_1024_px_renders_views_and_cuts_no_text(server, tmp_path):
             _tab(page, "Map and list")
             # a second visit to the same server (a reload): the server's caches are warm
             reload_page = browser.new_page()
-            reload_s, _, n_again, reload_run, reload_shell_s = _first_answer(reload_page, server)
+            reload_s, reload_map_s, _, n_again, reload_run, reload_shell_s = _first_answer(reload_page, server)
             reload_page.close()
             assert n_again == n_cand
             # a change of targets re-ranks: the summary line changes to fewer candidates
@@ -283,33 +206,33 @@ def test_page_at_1024_px_renders_views_and_cuts_no_text(server, tmp_path):
             cut["map, US units"] = page.evaluate(CUT)
         finally:
             browser.close()
-    # a new server process with the warm start (serve.py), on the table cache that the first one
-    # wrote (a later start of the page): the example's answer is computed before the first visit
-    with _serve("serve.py") as (url, start_s), playwright.sync_playwright() as p:
-        browser = _launch(p, tmp_path / "profile2")
-        try:
-            warm_s, warm_idle_s, n_warm, warm_run, warm_shell_s = _first_answer(browser.new_page(), url)
-        finally:
-            browser.close()
-    assert n_warm == n_cand
-
+    # one round of the page benchmark (scripts/bench_page.py): the two floors, then a new server process
+    # with the warm start (serve.py) on the table cache that the first one wrote (a later start of the
+    # page), the same harness and steps for each
+    work = tmp_path / "bench"
+    work.mkdir()
+    n_bench = bench.prepare_work(work)
+    with playwright.sync_playwright() as p:
+        floors = bench.measure_floors(p, work)
+        warm = bench.measure_page(p, work, dict(os.environ), diameter="43")   # a section not computed yet
+    assert n_bench == n_cand
     def run_of(line):
         return line.split("This run:")[1].strip() if "This run:" in line else "?"
 
-    print(f"\nat {WIDTH} px ({os.cpu_count()} cores, load average {os.getloadavg()[0]:.1f}):\n"
-          f"  first answer (map and table on screen), new server, empty table cache: {cold_s:.1f} s "
-          f"(run ended {cold_idle_s:.1f} s; Streamlit's own page drawn at {cold_shell_s:.1f} s; {n_cand} candidates); server side: {run_of(first_run)}\n"
-          f"  first answer, new server with the warm start (serve.py), table cache on disk: {warm_s:.2f} s "
-          f"(run ended {warm_idle_s:.2f} s; Streamlit's own page drawn at {warm_shell_s:.2f} s; the server computed the example and answered its health check "
-          f"{start_s:.1f} s after its start, before the browser opened the page); "
-          f"server side: {run_of(warm_run)}\n"
-          f"  first answer, second visit to the same server: {reload_s:.2f} s (Streamlit's own page drawn at {reload_shell_s:.2f} s); server side: {run_of(reload_run)}\n"
+    print(f"\nat {WIDTH} px ({bench.machine()}):\n"
+          f"  first answer (the first candidate row on screen), new server, empty table cache: {cold_s:.1f} s "
+          f"(map drawn {cold_map_s:.1f} s, run ended {cold_idle_s:.1f} s; Streamlit's own page at {cold_shell_s:.1f} s; "
+          f"{n_cand} candidates); server side: {run_of(first_run)}\n"
+          f"  first answer, second visit to the same server: {reload_s:.2f} s (map drawn {reload_map_s:.2f} s; "
+          f"Streamlit's own page at {reload_shell_s:.2f} s); server side: {run_of(reload_run)}\n"
           f"  target change (re-rank): {rerank_s:.2f} s ({n_after} candidates); server side: {run_of(rerank_run)}\n"
           f"  diameter change: {diameter_s:.2f} s; server side: {run_of(diameter_run)}\n"
-          f"  a re-run with every result cached (floor: the table's 'All columns' switched back off): "
+          f"  a re-run with every result cached (the table's 'All columns' switched back off): "
           f"{floor_s:.2f} s; server side: {run_of(floor_run)}\n"
           f"  unit switch: {units_s:.2f} s; library computations before/after: {calls_before}/{calls_after}; "
-          f"server side: {run_of(units_run)}")
+          f"server side: {run_of(units_run)}\n"
+          f"page benchmark, one round (scripts/bench_page.py; the page on a serve.py server, table cache on disk):\n"
+          + bench.table([warm], [floors]))
     print("cut:", {k: v for k, v in cut.items() if v})
     # units are display only: the switch computes nothing in the library
     assert calls_before >= 3 and calls_after == calls_before, (calls_before, calls_after)

@@ -7,6 +7,7 @@ expansion is reused by the later runs of the same process, as on the page.
 from __future__ import annotations
 
 import json
+import os
 from pathlib import Path
 
 import numpy as np
@@ -313,6 +314,12 @@ def _library_calls(at) -> int:
     return int(line.split("Library computations of this server: ")[1].split()[0])
 
 
+def _run_library_seconds(at) -> float:
+    """The footer's seconds of library computation in this run ("This run: … library x s")."""
+    line = next(c.value for c in at.caption if "This run:" in c.value)
+    return float(line.split(" library ")[1].split(" s")[0])
+
+
 def test_only_the_open_view_is_computed_and_closed_views_keep_their_inputs():
     at = _run(AppTest.from_file(APP, default_timeout=TIMEOUT))
     assert [t.label for t in at.tabs] == ["Map and list", "One candidate", "Side by side", "Alternatives",
@@ -325,9 +332,18 @@ def test_only_the_open_view_is_computed_and_closed_views_keep_their_inputs():
     # a unit switch and back: display only, no library computation (the footer's count)
     at.radio(key="units").set_value(pg.US)
     _run(at)
+    assert _run_library_seconds(at) == 0.0           # the run's library time (the footer's "library x s")
     at.radio(key="units").set_value(pg.SI)
     _run(at)
     assert _library_calls(at) == calls
+    # a new minimum yield re-ranks: one library computation, timed in the run's line
+    first_yield = at.number_input(key="min_yield").value
+    at.number_input(key="min_yield").set_value(first_yield + 50.0)
+    _run(at)
+    assert _library_calls(at) == calls + 1 and _run_library_seconds(at) > 0.0
+    at.number_input(key="min_yield").set_value(first_yield)      # back: the cached ranking, nothing computed
+    _run(at)
+    assert _library_calls(at) == calls + 1 and _run_library_seconds(at) == 0.0
     # the candidate view: computed when opened
     at.session_state["view"] = "One candidate"
     _run(at)
@@ -367,6 +383,30 @@ def test_the_warm_start_computes_the_example_page_answer():
     assert pg.library_calls() > before                 # it did compute (the ranking was cleared)
     shown = _readable(at)
     assert len(pg.cached_rank(*rank_args)) == len(shown) > 0
+
+
+def test_the_warm_start_builds_a_new_section_in_the_process_and_writes_nothing(tmp_path, monkeypatch):
+    """serve.py also ranks the example about one preferred size up (25 -> 28.05 mm) with the
+    library's disk cache off: computed in the process (a library call of the page's
+    wrappers, then a cache hit for that key), no file written to the cache directory, and
+    the switch of the disk cache restored after (set or not set before)."""
+    from selector.views.page import warm
+
+    monkeypatch.setenv("SELECTOR_CACHE_DIR", str(tmp_path))
+    monkeypatch.setenv("SELECTOR_DISK_CACHE", "1")
+    prep, rank_args, _ = warm.example_args()
+    key = (round(prep[0] * 10 ** (1 / 20), 3),) + rank_args[1:]
+    assert key[0] == pytest.approx(28.05, abs=0.01)
+    before = pg.library_calls()
+    assert warm.build_process_tables() > 0
+    assert pg.library_calls() > before
+    assert os.environ["SELECTOR_DISK_CACHE"] == "1" and not any(tmp_path.iterdir())
+    again = pg.library_calls()
+    assert len(pg.cached_rank(*key)) > 0 and pg.library_calls() == again      # the page's cache holds it
+    monkeypatch.delenv("SELECTOR_DISK_CACHE")
+    with warm._disk_cache_off():
+        assert os.environ["SELECTOR_DISK_CACHE"] == "0"
+    assert "SELECTOR_DISK_CACHE" not in os.environ
 
 
 def test_every_chart_of_the_page_is_a_valid_vega_lite_spec(at):
@@ -573,6 +613,37 @@ def test_map_spec_is_valid_lean_and_keeps_its_encoding():
     # Vega-Lite, so the test of the data above is what guards the ids
     with pytest.raises(Exception):
         validate_jsonschema({**spec, "layer": [{**spec["layer"][0], "mark": "no-such-mark"}]}, schema)
+
+
+def test_map_spec_keeps_its_form_when_targets_or_section_change():
+    """Only the datasets of the map's spec depend on the candidates: at a new minimum yield
+    or a new diameter the rest of the spec is the same (so the browser replaces the
+    chart's data and keeps the chart), while the datasets, which draw the new answer and
+    the axes' extent, differ; a unit switch changes the rest too (axis titles)."""
+    d = pg.DEMO
+
+    def spec(diameter_mm, min_yield_mpa, system=pg.SI):
+        prep = prepare(diameter_mm, None, d["length_mm"])
+        targets = {**d["targets"], "min_yield_mpa": min_yield_mpa}
+        cand = pg.label_candidates(rank(prep, targets)).head(15)
+        states = prep[prep["variant"].isin(cand["variant"])]
+        f = pg.chart_frames(states, cand, "yield_mpa", system, picked="C1")
+        return pg.strength_elongation_chart(f, targets, "yield_mpa", system, picked="C1")
+
+    def form(s):
+        return json.dumps({k: v for k, v in s.items() if k != "datasets"}, sort_keys=True)
+
+    base = spec(d["diameter_mm"], d["targets"]["min_yield_mpa"])
+    for other in (spec(d["diameter_mm"], 1000.0), spec(41.0, d["targets"]["min_yield_mpa"])):
+        assert form(other) == form(base)
+        assert other["datasets"] != base["datasets"]
+        assert other["datasets"]["frame"] != base["datasets"]["frame"]
+    # the extent holds every drawn value: the frame's corners bound the points and the regions
+    ds = base["datasets"]
+    (x0, y0), (x1, y1) = [(r["x"], r["y"]) for r in ds["frame"]]
+    assert all(x0 <= r["x"] <= x1 and y0 <= r["y"] <= y1 for r in ds["points"])
+    assert all(y0 <= r["lo"] and r["hi"] <= y1 for r in ds["regions"])
+    assert form(spec(d["diameter_mm"], d["targets"]["min_yield_mpa"], pg.US)) != form(base)
 
 
 def test_service_conditions_reach_the_cautions(at):

@@ -36,7 +36,7 @@ from .tables import (  # noqa: F401
     miss_table, pin_stress_table, reachable_table, sweep_table)
 from .cache import (  # noqa: F401
     cached_alternatives, cached_evaluate, cached_map, cached_miss_analysis, cached_nearest_misses, cached_prepare,
-    cached_rank, cached_sweep, cached_variant_states, library_calls)
+    cached_rank, cached_sweep, cached_variant_states, library_calls, library_seconds)
 from .charts import (  # noqa: F401
     COMPARE_COLOURS, chart_frames, chart_spec, comparison_bars, comparison_frame, fatigue_depth_chart,
     fatigue_depth_frame, frontier_chart, hull_band, parameter_charts, parameter_frame, profile_chart,

@@ -9,8 +9,10 @@ recomputes nothing: every wrapper counts its cache misses in :data:`CALLS`, whic
 the page shows in its footer and the tests read."""
 from __future__ import annotations
 
+import contextlib
 import json
 import threading
+import time
 from collections import Counter
 
 import pandas as pd
@@ -26,12 +28,22 @@ from .text import label_candidates
 
 #: library computations of this server process, per cached wrapper (its cache misses)
 CALLS: Counter = Counter()
+#: seconds spent in them, per cached wrapper
+SECONDS: Counter = Counter()
 _CALLS_LOCK = threading.Lock()
 
 
-def _count(name: str) -> None:
+@contextlib.contextmanager
+def _count(name: str):
+    """Count one cache miss of ``name`` and add the seconds of its body to :data:`SECONDS`."""
     with _CALLS_LOCK:
         CALLS[name] += 1
+    t0 = time.perf_counter()
+    try:
+        yield
+    finally:
+        with _CALLS_LOCK:
+            SECONDS[name] += time.perf_counter() - t0
 
 
 def library_calls() -> int:
@@ -39,6 +51,13 @@ def library_calls() -> int:
     (a re-run that finds every result in the cache adds none)."""
     with _CALLS_LOCK:
         return sum(CALLS.values())
+
+
+def library_seconds() -> float:
+    """Seconds spent in the library computations of :func:`library_calls` so far (each
+    wrapper times its own library call only, never another wrapper's)."""
+    with _CALLS_LOCK:
+        return sum(SECONDS.values())
 
 
 # --------------------------------------------------------------------------- cached library calls
@@ -52,8 +71,8 @@ def cached_prepare(diameter_mm, thickness_mm, length_mm, price_items=()) -> pd.D
     """:func:`~selector.selection.engine.prepare`, cached per section, length and
     price sheet (``price_items``: sorted ``(grade, price)`` pairs).  One shared,
     read-only table per key (never copied, never modified by the page)."""
-    _count("prepare")
-    return engine.prepare(diameter_mm, thickness_mm, length_mm, _prices(price_items))
+    with _count("prepare"):
+        return engine.prepare(diameter_mm, thickness_mm, length_mm, _prices(price_items))
 
 
 @st.cache_data(show_spinner="Ranking…", max_entries=64)
@@ -66,39 +85,39 @@ def cached_rank(diameter_mm, thickness_mm, length_mm, price_items, targets_json,
     material and processing parts of the cost (:func:`~selector.selection.cost_split.split_cost`)
     when it has rows."""
     prepared = cached_prepare(diameter_mm, thickness_mm, length_mm, price_items)
-    _count("rank")
-    cand = engine.rank(prepared, json.loads(targets_json), robust_only=robust_only, min_p_meet=min_p_meet,
-                       allow=list(allow), service=json.loads(service_json) or None)
-    return split_cost(label_candidates(cand)) if len(cand) else cand
+    with _count("rank"):
+        cand = engine.rank(prepared, json.loads(targets_json), robust_only=robust_only, min_p_meet=min_p_meet,
+                           allow=list(allow), service=json.loads(service_json) or None)
+        return split_cost(label_candidates(cand)) if len(cand) else cand
 
 
 @st.cache_data(show_spinner="Looking for what can be reached…", max_entries=16)
 def cached_miss_analysis(diameter_mm, thickness_mm, length_mm, price_items, targets_json, n=10) -> dict:
     """:func:`~selector.selection.engine.miss_analysis`, cached."""
-    _count("miss_analysis")
-    return engine.miss_analysis(json.loads(targets_json), diameter_mm, thickness_mm=thickness_mm,
-                         length_mm=length_mm, price_sheet=_prices(price_items), n=n)
+    with _count("miss_analysis"):
+        return engine.miss_analysis(json.loads(targets_json), diameter_mm, thickness_mm=thickness_mm,
+                                    length_mm=length_mm, price_sheet=_prices(price_items), n=n)
 
 
 @st.cache_data(show_spinner="Looking for the nearest misses…", max_entries=16)
 def cached_nearest_misses(diameter_mm, thickness_mm, length_mm, price_items, targets_json, n=10):
     """:func:`~selector.selection.engine.nearest_misses`, cached."""
-    _count("nearest_misses")
-    return engine.nearest_misses(json.loads(targets_json), diameter_mm, thickness_mm=thickness_mm,
-                          length_mm=length_mm, price_sheet=_prices(price_items), n=n)
+    with _count("nearest_misses"):
+        return engine.nearest_misses(json.loads(targets_json), diameter_mm, thickness_mm=thickness_mm,
+                                     length_mm=length_mm, price_sheet=_prices(price_items), n=n)
 
 
 @st.cache_data(show_spinner=False, max_entries=64)
 def cached_variant_states(diameter_mm, thickness_mm, length_mm, price_items, variants: tuple) -> pd.DataFrame:
     """The rows of the prepared table that belong to ``variants`` (every corner and
     every value of the main parameter): the reachable region of each candidate."""
-    _count("variant_states")
     prepared = cached_prepare(diameter_mm, thickness_mm, length_mm, price_items)
-    cols = [c for c in ("variant", "grade", "route", "corner", "main_value", "yield_mpa", "uts_mpa",
-                        "elongation_pct", "hardness_hv", "hardness_hrc", "surface_hardness_hv",
-                        "case_depth_mm") if c in prepared.columns]
-    sub = prepared.loc[prepared["variant"].isin(list(variants)), cols]
-    return sub.reset_index(drop=True)
+    with _count("variant_states"):
+        cols = [c for c in ("variant", "grade", "route", "corner", "main_value", "yield_mpa", "uts_mpa",
+                            "elongation_pct", "hardness_hv", "hardness_hrc", "surface_hardness_hv",
+                            "case_depth_mm") if c in prepared.columns]
+        sub = prepared.loc[prepared["variant"].isin(list(variants)), cols]
+        return sub.reset_index(drop=True)
 
 
 @st.cache_data(show_spinner=False, max_entries=128)
@@ -106,10 +125,10 @@ def cached_evaluate(grade: str, route_json: str, diameter_mm, thickness_mm, comp
                     heat_json: str | None = None) -> dict:
     """:func:`selector.evaluate` of one candidate (``route_json``: its steps as JSON;
     ``heat_json``: a heat analysis as JSON, element → wt %)."""
-    _count("evaluate")
-    return selector.evaluate(grade, json.loads(route_json), diameter_mm=diameter_mm,
-                             thickness_mm=thickness_mm, composition=composition,
-                             heat_composition=None if heat_json is None else json.loads(heat_json))
+    with _count("evaluate"):
+        return selector.evaluate(grade, json.loads(route_json), diameter_mm=diameter_mm,
+                                 thickness_mm=thickness_mm, composition=composition,
+                                 heat_composition=None if heat_json is None else json.loads(heat_json))
 
 
 @st.cache_data(show_spinner=False, max_entries=16)
@@ -120,10 +139,10 @@ def cached_sweep(diameters_mm: tuple, case_json: str, extra_json: str = "{}", pr
     sidebar's other targets (``extra_json``), the price sheet and the service
     conditions for the cautions; ``route`` holds the steps of each pick.  Cached per
     argument set: the sweep runs the selection once per diameter."""
-    _count("sweep")
-    return sweep_with_picks(list(diameters_mm), **json.loads(case_json),
-                            extra_targets=json.loads(extra_json) or None,
-                            price_sheet=_prices(price_items), caution_context=json.loads(context_json))
+    with _count("sweep"):
+        return sweep_with_picks(list(diameters_mm), **json.loads(case_json),
+                                extra_targets=json.loads(extra_json) or None,
+                                price_sheet=_prices(price_items), caution_context=json.loads(context_json))
 
 
 @st.cache_data(show_spinner="Looking for cheaper alternatives…", max_entries=32)
@@ -132,9 +151,9 @@ def cached_alternatives(grade: str, route_json: str, diameter_mm, thickness_mm, 
     section, length and price sheet in force, with the material and processing parts
     of each cost (:func:`selector.selection.cost_split.split_cost`); the reference's
     own split in ``attrs["reference"]``."""
-    _count("alternatives")
-    alt = engine.alternatives(grade, json.loads(route_json), diameter_mm,
-                              thickness_mm=thickness_mm, length_mm=length_mm, price_sheet=_prices(price_items))
+    with _count("alternatives"):
+        alt = engine.alternatives(grade, json.loads(route_json), diameter_mm,
+                                  thickness_mm=thickness_mm, length_mm=length_mm, price_sheet=_prices(price_items))
     ref = dict(alt.attrs["reference"])
     ref_split = split_cost(pd.DataFrame({"route_family": [ref["route_family"]],
                                          "relative_cost": [ref["relative_cost"]]}))

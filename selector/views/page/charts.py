@@ -210,8 +210,8 @@ def _domain(values, pad=0.06, floor=None):
     return [lo, hi]
 
 
-#: colours of the route families on the map, given in order of appearance (so a new family
-#: needs no entry here); dark enough for thin lines and text on white
+#: colours of the route families on the map, given to the families drawn in alphabetical order
+#: (so a new family needs no entry here); dark enough for thin lines and text on white
 FAMILY_COLOURS = ["#0f5e7a", "#b24a12", "#4a7a1c", "#7b2f66", "#8f6f10", "#34449a", "#9a2a35", "#1f7a68",
                   "#5c4b30", "#5a5a5a"]
 #: colour of the target limits on the map
@@ -274,11 +274,15 @@ def strength_elongation_chart(frames: dict, targets: Mapping, y: str, system: st
     The spec is written directly as a dict (Vega-Lite 6 grammar): building it through
     Altair objects cost several tenths of a second per draw on the page (the map is
     redrawn at every change of targets, section or units).  Its data carry only the
-    columns the layers use, rounded for display (:data:`MAP_DECIMALS`), in four named
-    datasets that the layers share (``regions``, ``paths``, ``points``, ``targets``);
+    columns the layers use, rounded for display (:data:`MAP_DECIMALS`), in named
+    datasets that the layers share (``regions``, ``paths``, ``points``, ``targets``, and
+    ``frame``: the two corners of the axes' extent, drawn as empty text);
     the rows of a region or path name their candidate by id and take its label, family
-    and focus from its point (a lookup), not repeated on every row.  The tests check
-    the spec against the Vega-Lite schema.
+    and focus from its point (a lookup), not repeated on every row.  Every value that
+    depends on the candidates is in the datasets, none in the rest of the spec, so that
+    a change of targets or section that keeps the kinds of target only replaces the
+    data of the chart in the browser.  The tests check the spec against the Vega-Lite
+    schema.
 
     >>> f = {"regions": pd.DataFrame(columns=["x", "lo", "hi", "label", "id", "family", "focus"]),
     ...      "paths": pd.DataFrame(columns=["x", "y", "order", "text", "param", "label", "id", "family", "focus"]),
@@ -287,7 +291,7 @@ def strength_elongation_chart(frames: dict, targets: Mapping, y: str, system: st
     ...                              "window": ["w"], "set": ["Pareto set"], "focus": [True], "cost": [1.5]})}
     >>> spec = strength_elongation_chart(f, {"min_yield_mpa": 700.0}, "yield_mpa", "SI", picked="C1")
     >>> spec["datasets"]["points"][0]["y"], [l["mark"]["type"] for l in spec["layer"]]
-    (800.0, ['rule', 'text', 'text', 'point', 'text', 'point'])
+    (800.0, ['text', 'rule', 'text', 'text', 'point', 'text', 'point'])
     """
     reg, pth, pts = frames["regions"], frames["paths"], frames["points"]
     su = unit("stress", system)
@@ -302,12 +306,16 @@ def strength_elongation_chart(frames: dict, targets: Mapping, y: str, system: st
     xs += [emin] if emin is not None else []
     xdom, ydom = _domain(xs, floor=0.0), _domain(ys, floor=0.0)
     xdom, ydom = [round(v, 3) for v in xdom], [round(v, 3) for v in ydom]
-    fams = list(dict.fromkeys(list(pts["family"])))
-    colour = {"field": "family", "type": "nominal", "title": "route family",
-              "scale": {"domain": fams, "range": [FAMILY_COLOURS[i % len(FAMILY_COLOURS)] for i in range(len(fams))]},
+    # no value of the data in the spec itself (domains, the families present): after a change of
+    # targets or section only the datasets differ, and the browser replaces the data of the chart
+    # it has drawn instead of building a new one (Streamlit keeps the chart while its spec without
+    # the datasets is unchanged); the axes' extent is the ``frame`` dataset (two invisible corners),
+    # the colours follow the families present, in alphabetical order
+    colour = {"field": "family", "type": "nominal", "title": "route family", "sort": "ascending",
+              "scale": {"range": FAMILY_COLOURS},
               "legend": {"orient": "top", "direction": "horizontal", "labelLimit": 0, "title": None,
                          "symbolType": "stroke", "symbolStrokeWidth": 3, "columns": 2}}
-    xscale, yscale = {"domain": xdom, "nice": False}, {"domain": ydom, "nice": False}
+    xscale, yscale = {"nice": False, "zero": False}, {"nice": False, "zero": False}
     x = {"field": "x", "type": "quantitative", "title": "Elongation (%)", "scale": xscale}
     yy = {"field": "y", "type": "quantitative", "title": ytitle, "scale": yscale}
 
@@ -322,7 +330,10 @@ def strength_elongation_chart(frames: dict, targets: Mapping, y: str, system: st
     from_points = [{"lookup": "id", "from": {"data": {"name": "points"}, "key": "id",
                                              "fields": ["label", "family", "focus"]}}]
 
-    datasets, layers = {}, []
+    datasets, layers = {"frame": [{"x": xdom[0], "y": ydom[0]}, {"x": xdom[1], "y": ydom[1]}]}, []
+    layers.append({"data": {"name": "frame"}, "mark": {"type": "text", "text": ""},
+                   "encoding": {"x": {"field": "x", "type": "quantitative", "scale": xscale},
+                                "y": {"field": "y", "type": "quantitative", "scale": yscale}}})
     # the targets: dashed limits named at their ends, a check mark in the corner that meets them all
     limits = []
     for v, name in ((tmin, f"min {which if which == 'yield' else 'tensile'}"),
