@@ -103,14 +103,23 @@ def test_prepared_table_from_the_kept_layout_equals_a_fresh_layout(monkeypatch):
     digest = X.structure_of(st)
     assert digest is not None and any(k[0] == digest for k in engine._LAYOUTS)
     real, calls = engine._layout, []
-    monkeypatch.setattr(engine, "_layout", lambda df: calls.append(1) or real(df))
+    monkeypatch.setattr(engine, "_layout", lambda *a: calls.append(1) or real(*a))
     kept = engine._prepare_table.build(52.9, None, 100.0, ())
     assert not calls                                            # the kept layout served it
+    # the whole layout made again from the parts kept at the other sections (column codes,
+    # keys of the families with no model result among their columns, state-key ranks)
+    assert digest in engine._LAYOUT_PARTS and engine._LAYOUT_PARTS[digest]["routes"]
     monkeypatch.setattr(engine, "_LAYOUTS", {})
+    from_parts = engine._prepare_table.build(52.9, None, 100.0, ())
+    assert calls
+    monkeypatch.setattr(engine, "_LAYOUTS", {})
+    monkeypatch.setattr(engine, "_LAYOUT_PARTS", {})
     monkeypatch.setattr(X, "_STATE_KEYS", {})
+    monkeypatch.setattr(X, "_STRUCTURES", {})                   # no notes codes: counted from the texts
     fresh = engine._prepare_table.build(52.9, None, 100.0, ())
     pd.testing.assert_frame_equal(kept, fresh, check_exact=True)
-    assert kept.attrs == fresh.attrs
+    pd.testing.assert_frame_equal(from_parts, fresh, check_exact=True)
+    assert kept.attrs == fresh.attrs == from_parts.attrs
     written = st["grade"] + "|" + st["route"] + "|" + st["state"].astype(str)
     pd.testing.assert_series_equal(st["state_key"], written, check_names=False)
 

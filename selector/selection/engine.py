@@ -69,6 +69,7 @@ from ..rules import cautions as cautions_mod
 from ..rules.cautions import check_context
 from ..states import scatter
 from ..states.expand import RESULT_COLUMNS, expand
+from ..states.expand import notes_of as expand_notes
 from ..states.expand import structure_of as expand_structure
 from . import cost as cost_mod
 from .pareto import pareto_mask
@@ -110,42 +111,74 @@ def _follows_main(grade: np.ndarray, main: np.ndarray | None, param: np.ndarray)
     return len(np.unique(gm * len(n_v) + v)) == len(np.unique(gm))
 
 
-def _variant_keys(states: pd.DataFrame) -> np.ndarray:
-    """``grade|route[|other parameter values]`` per state (object array of str).
+def _variant_keys(states: pd.DataFrame, memo: dict | None = None) -> tuple[np.ndarray, np.ndarray]:
+    """``(keys, codes)``: ``grade|route[|other parameter values]`` per state (object array of
+    str) and the code of each state's key in order of first appearance (as ``pd.factorize``).
 
     Each column is read and factorized once over the whole table (not once per route
     family), each distinct combination's text written once; a value's text is
-    ``str`` of the value as numpy writes it, the same whichever rows it is read with."""
-    grade = states["grade"].to_numpy(dtype=object)
-    route = states["route"].to_numpy(dtype=object)
-    out = np.empty(len(states), dtype=object)
-    coded: dict = {}
+    ``str`` of the value as numpy writes it, the same whichever rows it is read with.
+    ``memo`` (a dict kept per structure digest of the table) keeps the codes of the columns
+    that are not model results and the keys of the route families none of whose columns is a
+    model result: those are the same at every section."""
+    memo = {} if memo is None else memo
+    coded = memo.setdefault("codes", {})
+    per_route = memo.setdefault("routes", {})
+    results = set(_result_parameters())
+    if "route" not in memo:
+        memo["route"] = states["route"].to_numpy(dtype=object)
+        memo["route_rows"] = {r: np.flatnonzero(memo["route"] == r) for r in pd.unique(memo["route"])}
+    grade = memo.get("grade")
+    if grade is None:
+        grade = memo["grade"] = states["grade"].to_numpy(dtype=object)
+    fresh: dict = {}
 
     def codes_of(name, values=None):
-        if name not in coded:
+        store = fresh if name in results else coded
+        if name not in store:
             vals = states[name].to_numpy() if values is None else values
             codes, uniq = pd.factorize(vals, use_na_sentinel=False)
-            coded[name] = (np.asarray(codes, np.int64), np.asarray(uniq).astype(str).astype(object))
-        return coded[name]
+            store[name] = (np.asarray(codes, np.int64), np.asarray(uniq).astype(str).astype(object))
+        return store[name]
 
     codes_of("grade", grade)
-    for r in pd.unique(route):
-        idx = np.flatnonzero(route == r)
+    out = np.empty(len(states), dtype=object)
+    firsts, locals_ = [], []
+    for r, idx in memo["route_rows"].items():
         fam = fam_registry.get(r)
-        mp = fam.main_parameter if fam.main_parameter in states else None
-        main = codes_of(mp)[0][idx] if mp else None
-        # a parameter the grid sets from the main one (e.g. the austemper hold) does not split
-        others = [p for p in fam.parameters if p != fam.main_parameter and p in states
-                  and not _follows_main(grade[idx], main, codes_of(p)[0][idx])]
-        parts = [codes_of(c) for c in ["grade"] + others]
-        table = np.ascontiguousarray(np.column_stack([c[idx] for c, _ in parts]))
-        rows = table.view(np.dtype((np.void, table.dtype.itemsize * table.shape[1]))).ravel()
-        _, first, inv = np.unique(rows, return_index=True, return_inverse=True)
-        # order of the parts: grade, route, the other parameters
-        keys = np.array(["|".join([parts[0][1][row[0]], str(r)] + [parts[j][1][row[j]] for j in range(1, len(parts))])
-                         for row in table[first].tolist()], dtype=object)
-        out[idx] = keys[inv.reshape(-1)]
-    return out
+        cols = [fam.main_parameter] + list(fam.parameters)
+        hit = per_route.get(r)
+        if hit is None:
+            mp = fam.main_parameter if fam.main_parameter in states else None
+            main = codes_of(mp)[0][idx] if mp else None
+            # a parameter the grid sets from the main one (e.g. the austemper hold) does not split
+            others = [p for p in fam.parameters if p != fam.main_parameter and p in states
+                      and not _follows_main(grade[idx], main, codes_of(p)[0][idx])]
+            parts = [codes_of(c) for c in ["grade"] + others]
+            table = np.ascontiguousarray(np.column_stack([c[idx] for c, _ in parts]))
+            rows = table.view(np.dtype((np.void, table.dtype.itemsize * table.shape[1]))).ravel()
+            _, first, inv = np.unique(rows, return_index=True, return_inverse=True)
+            # order of the parts: grade, route, the other parameters
+            keys = np.array(["|".join([parts[0][1][row[0]], str(r)] + [parts[j][1][row[j]]
+                                                                        for j in range(1, len(parts))])
+                             for row in table[first].tolist()], dtype=object)
+            hit = (keys, first, inv.reshape(-1))
+            if not any(c in results for c in cols if c):
+                per_route[r] = hit
+        keys, first, inv = hit
+        out[idx] = keys[inv]
+        firsts.append(idx[first])
+        locals_.append((idx, inv))
+    # codes in order of first appearance over the whole table: a key names its route, so the
+    # keys of two routes never coincide
+    rank = np.empty(sum(len(f) for f in firsts), np.int64)
+    rank[np.argsort(np.concatenate(firsts), kind="stable")] = np.arange(len(rank))
+    vcode = np.empty(len(states), np.int64)
+    at = 0
+    for f, (idx, inv) in zip(firsts, locals_):
+        vcode[idx] = rank[at:at + len(f)][inv]
+        at += len(f)
+    return out, vcode
 
 
 def costed(states: pd.DataFrame, length_mm: float = 100.0, price_sheet: dict | None = None,
@@ -193,7 +226,7 @@ def _prepare_table(diameter_mm, thickness_mm, length_mm, prices: tuple) -> pd.Da
         key = (digest, tuple(df.columns), h.hexdigest())
     hit = _LAYOUTS.get(key) if key is not None else None
     if hit is None:
-        hit = _layout(df)
+        hit = _layout(df, digest)
         if key is not None:
             evict_oldest(_LAYOUTS, 4)
             _LAYOUTS[key] = hit
@@ -202,12 +235,22 @@ def _prepare_table(diameter_mm, thickness_mm, length_mm, prices: tuple) -> pd.Da
     df["main_value"] = main.copy()
     df["variant_code"] = vcode.copy()
     out = df.take(order).reset_index(drop=True)
+    notes = expand_notes(st)
+    if notes is not None and len(notes.uniques) and not np.any(notes.codes < 0):
+        # the count of each distinct text, taken per state from the expansion's codes
+        per = np.array([0 if not x else x.count(" | ") + 1 for x in notes.uniques], dtype=np.int64)
+        out["n_notes"] = per[notes.codes[order]]
+        return _with_section(out, d, thickness_mm, length_mm)
     codes, uniq = pd.factorize(out["notes"])
     if len(uniq) and not np.any(codes < 0):
         per = np.array([0 if not x else x.count(" | ") + 1 for x in uniq], dtype=np.int64)
         out["n_notes"] = per[codes]
     else:
         out["n_notes"] = [0 if not x else x.count(" | ") + 1 for x in out["notes"]]
+    return _with_section(out, d, thickness_mm, length_mm)
+
+
+def _with_section(out: pd.DataFrame, d, thickness_mm, length_mm) -> pd.DataFrame:
     out.attrs["section"] = {"diameter_mm": d, "thickness_mm": thickness_mm, "length_mm": float(length_mm)}
     return out
 
@@ -223,27 +266,40 @@ def _result_parameters() -> list:
     return sorted({p for f in fam_registry.available() for p in f.parameters if p in RESULT_COLUMNS})
 
 
-def _layout(df: pd.DataFrame) -> tuple:
+#: structure digest -> the section-independent parts of :func:`_layout` (a few recent ones)
+_LAYOUT_PARTS: dict = {}
+
+
+def _layout(df: pd.DataFrame, digest: str | None = None) -> tuple:
     """``(variant keys, main values, variant codes, row order)`` of a costed states table:
     the order used by rank(), the nominal block sorted by variant and main value, then the
     lean and the rich blocks in the same state order (numpy index arithmetic on codes).
-    Reads only the columns that do not depend on the section."""
-    variant = _variant_keys(df)
-    route = df["route"].to_numpy(dtype=object)
+    ``digest``: the table's structure digest (:func:`selector.states.expand.structure_of`),
+    under which the parts that do not depend on the section are kept (the column codes, the
+    keys of the route families with no model result among their columns, the rank of the
+    state keys and the rows of each corner)."""
+    memo = _LAYOUT_PARTS.get(digest) if digest is not None else None
+    if memo is None:
+        memo = {}
+        if digest is not None:
+            evict_oldest(_LAYOUT_PARTS, 4)
+            _LAYOUT_PARTS[digest] = memo
+    variant, vcode = _variant_keys(df, memo)
     main = np.full(len(df), np.nan)
-    for r in pd.unique(route):
+    for r, idx in memo["route_rows"].items():
         mp = _main_param(r)
         if mp and mp in df:
-            m_r = route == r
-            main[m_r] = df[mp].to_numpy()[m_r].astype(float)
-    vcode = pd.factorize(pd.Series(variant, dtype=object))[0]
-    corner = df["corner"].to_numpy(dtype=object)
-    key_rank = pd.factorize(df["state_key"], sort=True)[0]       # lexicographic rank of state_key
-    nom_idx = np.flatnonzero(corner == "nominal")
+            main[idx] = df[mp].to_numpy()[idx].astype(float)
+    if "key_rank" not in memo:
+        corner = df["corner"].to_numpy(dtype=object)
+        memo["key_rank"] = pd.factorize(df["state_key"], sort=True)[0]      # lexicographic rank of state_key
+        memo["corner_rows"] = {c: np.flatnonzero(corner == c) for c in ("nominal", "lean", "rich")}
+    key_rank, rows = memo["key_rank"], memo["corner_rows"]
+    nom_idx = rows["nominal"]
     nom_order = nom_idx[np.lexsort((key_rank[nom_idx], main[nom_idx], vcode[nom_idx]))]
     take = [nom_order]
     for c in ("lean", "rich"):
-        idx = np.flatnonzero(corner == c)
+        idx = rows[c]
         pos = np.full(int(key_rank.max()) + 1, -1, dtype=np.int64)
         pos[key_rank[idx]] = idx
         blk = pos[key_rank[nom_order]]
@@ -252,7 +308,7 @@ def _layout(df: pd.DataFrame) -> tuple:
         take.append(blk)
     order = np.concatenate(take)
     m = len(nom_order)
-    keys = df["state_key"].to_numpy()[order]
+    keys = key_rank[order]            # equal ranks are equal state keys
     if len(order) != 3 * m or not (np.array_equal(keys[:m], keys[m:2 * m]) and np.array_equal(keys[:m], keys[2 * m:])):
         raise RuntimeError("states table is not aligned by composition corner")
     return variant, main, vcode, order

@@ -368,14 +368,15 @@ def expand_states(diameter_mm: float | None = 25.0, thickness_mm: float | None =
     df["state_key"] = pd.Series(kept.copy())
     if digest is not None:
         evict_oldest(_STRUCTURES, 64)
-        _STRUCTURES[id(df)] = (weakref.ref(df), digest)     # never keeps a table alive
+        # never keeps a table alive; the notes as codes into their distinct texts beside it
+        _STRUCTURES[id(df)] = (weakref.ref(df), digest, cols["notes"])
     return df
 
 
 #: per structure digest: the state_key column (see :func:`structure_of`)
 _STATE_KEYS: dict = {}
-#: id(table) -> (weak reference to the table, structure digest) of the recent tables of
-#: :func:`expand_states`
+#: id(table) -> (weak reference to the table, structure digest, notes as :class:`Text`) of the
+#: recent tables of :func:`expand_states`
 _STRUCTURES: dict = {}
 
 
@@ -407,6 +408,14 @@ def structure_of(states: pd.DataFrame) -> str | None:
     states (grade, route, window parameters, corner) in the same rows, whatever the section."""
     hit = _STRUCTURES.get(id(states))
     return hit[1] if hit is not None and hit[0]() is states else None
+
+
+def notes_of(states: pd.DataFrame) -> "Text | None":
+    """The ``notes`` column of a table returned by :func:`expand_states` as codes into its
+    distinct texts (None when unknown, as :func:`structure_of`): a reader that needs a
+    property of each text (e.g. its number of notes) computes it once per distinct text."""
+    hit = _STRUCTURES.get(id(states))
+    return hit[2] if hit is not None and hit[0]() is states else None
 
 
 @functools.lru_cache(maxsize=16)
