@@ -72,7 +72,7 @@ from ...models.composition import el
 from ...models.martensite import ih_hrc, martensite_hardness_hrc
 from ..model_inputs import uses
 from .base import Batch, RouteFamily, product_grid
-from .quench_temper import _by_class, _yield, correlation_class, default_austenitize_c
+from .quench_temper import _by_class, _yield, batch_class, default_austenitize_c
 
 STEEL = ("carbon_steel", "alloy_steel")
 #: the salt bath is taken as strongly agitated oil (see the module docstring)
@@ -344,7 +344,7 @@ class _BathRoute(RouteFamily):
                 "over": section > limit, "notes": notes}
 
     def _finish(self, batch, c, hv, temper_c):
-        cls = correlation_class(batch.attr("family"))
+        cls = batch_class(batch)
         uts = conversions.hv_to_uts_mpa(hv)
         res = {"hardness_hv": hv, "surface_hardness_hv": hv, "center_hardness_hv": hv,
                "uts_mpa": uts, "yield_mpa": _yield(uts, temper_c, cls),

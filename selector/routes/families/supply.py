@@ -58,7 +58,7 @@ from .. import bands
 from . import get
 from .base import Batch, RouteFamily, at_position, tension_test_position
 from .cold_work import stress_relief_steps
-from .quench_temper import (HARDENING_INPUTS, as_quenched_distinct, core_model_inputs, correlation_class,
+from .quench_temper import (HARDENING_INPUTS, as_quenched_distinct, batch_class, core_model_inputs,
                             default_austenitize_c)
 
 STEEL_SCALE = ("carbon_steel", "alloy_steel", "carburizing_steel", "nitriding_steel", "stainless_martensitic",
@@ -138,7 +138,7 @@ def mill_structure(batch: Batch, quench) -> dict:
         where = tension_test_position(sub.section_mm)
         nan = np.full(sub.n, np.nan)
         sub_mi = core_model_inputs(prof, sub.comp, pos, where, nan, nan, 100.0 - at_position(mart, pos, where),
-                                   correlation_class(sub.attr("family")))
+                                   batch_class(sub))
         for k, v in sub_mi.items():
             v = np.asarray(v)
             if v.shape != (sub.n,):
