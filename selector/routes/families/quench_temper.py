@@ -54,42 +54,58 @@ _PROFILE_SHARED = ("positions", "warnings")
 
 
 def _text_codes(values: np.ndarray) -> np.ndarray:
-    """Codes of text values in sorted order of the distinct texts (as the inverse of
-    ``np.unique(values.astype(str))``), as floats, by hashing instead of sorting the states."""
-    codes, _ = pd.factorize(np.asarray(values, dtype=object).astype(str).astype(object), sort=True)
-    return codes.astype(float)
+    """Codes of values in sorted order of their distinct texts (as the inverse of
+    ``np.unique(values.astype(str))``), as floats: the states are hashed, only the few
+    distinct values are written as text and sorted."""
+    codes, uniq = pd.factorize(np.asarray(values, dtype=object), use_na_sentinel=False)
+    _, text_code = np.unique(np.asarray(uniq, dtype=object).astype(str), return_inverse=True)
+    return text_code.reshape(-1)[codes].astype(float)
 
 
-def distinct_quenches(batch: Batch, quench, agitation, austenitize_c) -> tuple:
+def quench_profile_distinct(comp, quench, agitation, austenitize_c, diameter_mm=None, thickness_mm=None,
+                            positions=None) -> tuple:
     """``(profile, inverse)``: :func:`quench_response.as_quenched_profile` evaluated once per
-    distinct (composition, medium, agitation, austenitizing temperature, section) of the
-    batch (arrays over the distinct quenches) and the distinct quench of each state
-    (``profile[k][inverse]`` is the per-state value).  A batch of one is not reduced
-    (``inverse`` None: the profile is the state's, with its batch-level ``warnings``)."""
-    n = batch.n
-    dia = None if np.all(np.isnan(batch.diameter_mm)) else batch.diameter_mm
-    thk = None if dia is not None else batch.thickness_mm
-    if n <= 1:
-        return quench_response.as_quenched_profile(batch.comp, quench, agitation, diameter_mm=dia,
-                                                   thickness_mm=thk, austenitize_c=austenitize_c), None
+    distinct (composition, medium, agitation, austenitizing temperature, section) of ``n``
+    states given as arrays (n,) (arrays over the distinct quenches, with their
+    ``composition``) and the distinct quench of each state (``profile[k][inverse]`` is the
+    per-state value; the chain is row-wise, so the numbers are those of the per-state call).
+    The batch-level ``warnings`` name distinct quenches, not states."""
+    size = np.asarray(diameter_mm if diameter_mm is not None else thickness_mm, float)
+    n = size.shape[0]
     q = np.broadcast_to(np.asarray(quench, dtype=object), (n,))
     a = np.broadcast_to(np.asarray(agitation, dtype=object), (n,))
-    cols = [np.broadcast_to(np.asarray(v, float), (n,)) for _, v in sorted(batch.comp.items())]
+    nan = np.full(n, np.nan)
+    cols = [np.broadcast_to(np.asarray(v, float), (n,)) for _, v in sorted(comp.items())]
     cols += [_text_codes(q), _text_codes(a),
              np.broadcast_to(np.asarray(np.nan if austenitize_c is None else austenitize_c, float), (n,)),
-             np.asarray(batch.diameter_mm, float), np.asarray(batch.thickness_mm, float)]
+             nan if diameter_mm is None else np.asarray(diameter_mm, float),
+             nan if thickness_mm is None else np.asarray(thickness_mm, float)]
     table = np.ascontiguousarray(np.column_stack(cols))
     rows = table.view(np.dtype((np.void, table.dtype.itemsize * table.shape[1]))).ravel()
     _, first, inverse = np.unique(rows, return_index=True, return_inverse=True)
     inverse = inverse.reshape(-1)
-    sub = {k: np.broadcast_to(np.asarray(v, float), (n,))[first] for k, v in batch.comp.items()}
+    sub = {k: np.broadcast_to(np.asarray(v, float), (n,))[first] for k, v in comp.items()}
+    extra = {} if positions is None else {"positions": positions}
     prof = quench_response.as_quenched_profile(
-        sub, q[first], a[first], diameter_mm=None if dia is None else dia[first],
-        thickness_mm=None if thk is None else thk[first],
+        sub, q[first], a[first], diameter_mm=None if diameter_mm is None else np.asarray(diameter_mm, float)[first],
+        thickness_mm=None if thickness_mm is None else np.asarray(thickness_mm, float)[first],
         austenitize_c=None if austenitize_c is None else np.broadcast_to(np.asarray(austenitize_c, float),
-                                                                          (n,))[first])
+                                                                          (n,))[first], **extra)
     prof["composition"] = sub
     return prof, inverse
+
+
+def distinct_quenches(batch: Batch, quench, agitation, austenitize_c) -> tuple:
+    """``(profile, inverse)`` of :func:`quench_profile_distinct` over the batch's states (the
+    states of a grade differ by their temper only, so the catalogue's ~24 000 Q&T states
+    share a few hundred quenches).  A batch of one is not reduced (``inverse`` None: the
+    profile is the state's, with its batch-level ``warnings``)."""
+    dia = None if np.all(np.isnan(batch.diameter_mm)) else batch.diameter_mm
+    thk = None if dia is not None else batch.thickness_mm
+    if batch.n <= 1:
+        return quench_response.as_quenched_profile(batch.comp, quench, agitation, diameter_mm=dia,
+                                                   thickness_mm=thk, austenitize_c=austenitize_c), None
+    return quench_profile_distinct(batch.comp, quench, agitation, austenitize_c, dia, thk)
 
 
 def as_quenched_distinct(batch: Batch, quench, agitation, austenitize_c) -> dict:
