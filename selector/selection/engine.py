@@ -68,8 +68,7 @@ from ..routes.steps import describe
 from ..rules import cautions as cautions_mod
 from ..rules.cautions import check_context
 from ..states import scatter
-from ..states.expand import RESULT_COLUMNS, expand
-from ..states.expand import notes_of as expand_notes
+from ..states.expand import RESULT_COLUMNS, StatesColumns, Text, column_series, expand_columns
 from ..states.expand import structure_of as expand_structure
 from . import cost as cost_mod
 from .pareto import pareto_mask
@@ -209,12 +208,34 @@ def _prepare_cached(diameter_mm, thickness_mm, length_mm, prices: tuple) -> pd.D
 
 @disk_frame      # kept in the user's cache directory, keyed by the arguments and all code and data
 def _prepare_table(diameter_mm, thickness_mm, length_mm, prices: tuple) -> pd.DataFrame:
-    st = expand(diameter_mm, thickness_mm)
+    st = expand_columns(diameter_mm, thickness_mm)
     d = None if thickness_mm is not None else float(diameter_mm)
+    if isinstance(st, StatesColumns):
+        return _prepared_from_columns(st, d, thickness_mm, float(length_mm), dict(prices) or None)
     df = costed(st, float(length_mm), dict(prices) or None, d, thickness_mm)
+    variant, main, vcode, order = _kept_layout(df, expand_structure(st))
+    df["variant"] = variant.copy()
+    df["main_value"] = main.copy()
+    df["variant_code"] = vcode.copy()
+    out = df.take(order).reset_index(drop=True)
+    codes, uniq = pd.factorize(out["notes"])
+    if len(uniq) and not np.any(codes < 0):
+        per = np.array([0 if not x else x.count(" | ") + 1 for x in uniq], dtype=np.int64)
+        out["n_notes"] = per[codes]
+    else:
+        out["n_notes"] = [0 if not x else x.count(" | ") + 1 for x in out["notes"]]
+    return _with_section(out, d, thickness_mm, length_mm)
+
+
+#: the columns :func:`costed` adds, in order
+COST_COLUMNS = ("relative_cost", "mass_kg", "part_cost", "price_source")
+
+
+def _kept_layout(df, digest) -> tuple:
+    """:func:`_layout` of a costed states table (or of :class:`StatesColumns`), kept per
+    structure digest and the values of the result parameters."""
     # the variant keys, main values and row order depend only on the states (grade, route,
     # window parameters, corner), the same at every section: kept per structure digest
-    digest = expand_structure(st)
     key = None
     if digest is not None:
         # a window parameter that is also a model result (the induction case depth: the depth
@@ -223,31 +244,60 @@ def _prepare_table(diameter_mm, thickness_mm, length_mm, prices: tuple) -> pd.Da
         for c in _result_parameters():
             if c in df:
                 h.update(c.encode() + np.ascontiguousarray(df[c].to_numpy(float)).tobytes())
-        key = (digest, tuple(df.columns), h.hexdigest())
+        cols = tuple(df.columns)
+        if isinstance(df, StatesColumns):
+            cols += COST_COLUMNS
+        key = (digest, cols, h.hexdigest())
     hit = _LAYOUTS.get(key) if key is not None else None
     if hit is None:
         hit = _layout(df, digest)
         if key is not None:
             evict_oldest(_LAYOUTS, 4)
             _LAYOUTS[key] = hit
-    variant, main, vcode, order = hit
-    df["variant"] = variant.copy()
-    df["main_value"] = main.copy()
-    df["variant_code"] = vcode.copy()
-    out = df.take(order).reset_index(drop=True)
-    notes = expand_notes(st)
-    if notes is not None and len(notes.uniques) and not np.any(notes.codes < 0):
-        # the count of each distinct text, taken per state from the expansion's codes
-        per = np.array([0 if not x else x.count(" | ") + 1 for x in notes.uniques], dtype=np.int64)
-        out["n_notes"] = per[notes.codes[order]]
-        return _with_section(out, d, thickness_mm, length_mm)
-    codes, uniq = pd.factorize(out["notes"])
-    if len(uniq) and not np.any(codes < 0):
-        per = np.array([0 if not x else x.count(" | ") + 1 for x in uniq], dtype=np.int64)
-        out["n_notes"] = per[codes]
-    else:
-        out["n_notes"] = [0 if not x else x.count(" | ") + 1 for x in out["notes"]]
-    return _with_section(out, d, thickness_mm, length_mm)
+    return hit
+
+
+def _prepared_from_columns(st: StatesColumns, d, thickness_mm, length_mm: float, price_sheet) -> pd.DataFrame:
+    """The prepared table from the expansion's columns: each column taken in the layout's
+    order once (numeric columns by numpy, text columns as codes), the cost columns computed
+    on the ordered arrays; the same frame as costing, laying out and taking the states table
+    (tests/test_speed_equivalence.py)."""
+    variant, main, vcode, order = _kept_layout(st, st.digest)
+    data = {}
+    for k, v in st.cols.items():
+        data[k] = column_series(k, Text(v.codes[order], v.uniques)) if isinstance(v, Text) else np.asarray(v)[order]
+    data["state_key"] = pd.Series(st.state_key.take(order))
+    cost = _cost_columns(data["relative_price"], st.cols["grade"], order, data["route"], data["family"],
+                         data["density_g_cm3"], length_mm, price_sheet, d, thickness_mm)
+    data.update(cost)
+    data["variant"] = variant[order]
+    data["main_value"] = main[order]
+    data["variant_code"] = vcode[order]
+    notes = st.cols["notes"]
+    per = np.array([0 if not x else x.count(" | ") + 1 for x in notes.uniques], dtype=np.int64)
+    codes = notes.codes[order]
+    data["n_notes"] = (per[codes] if len(per) and not np.any(codes < 0)
+                       else [0 if not x else x.count(" | ") + 1 for x in data["notes"]])
+    return _with_section(pd.DataFrame(data), d, thickness_mm, length_mm)
+
+
+def _cost_columns(price, grade: Text, order, route, family, density, length_mm, price_sheet, d, thickness_mm
+                  ) -> dict:
+    """The columns of :func:`costed` over arrays in the prepared order (``grade`` the
+    expansion's codes, taken by ``order``)."""
+    price = np.asarray(price, float).copy()
+    src = np.full(len(price), "catalogue (indicative)", dtype=object)
+    price_sheet = cost_mod.check_price_sheet(price_sheet)
+    if price_sheet:
+        gcodes = grade.codes[order]
+        where = {g: i for i, g in enumerate(grade.uniques)}
+        for gid, p in price_sheet.items():
+            m = gcodes == where.get(gid, -2)
+            price[m] = p
+            src[m] = "price sheet"
+    rel = cost_mod.relative_cost_per_kg(price, route.to_numpy(dtype=object), family.to_numpy(dtype=object))
+    mass = cost_mod.part_mass_kg(np.asarray(density, float), d, thickness_mm, length_mm)
+    return {"relative_cost": rel, "mass_kg": mass, "part_cost": rel * mass, "price_source": src}
 
 
 def _with_section(out: pd.DataFrame, d, thickness_mm, length_mm) -> pd.DataFrame:

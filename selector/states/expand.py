@@ -274,6 +274,10 @@ def _series(name: str, v):
     return v.series("object" if name == "notes" else "str")
 
 
+#: public name of :func:`_series` (the selection builds its prepared table from the columns)
+column_series = _series
+
+
 def _frame(cols: dict, notes_texts: dict) -> pd.DataFrame:
     texts = list(notes_texts)
     data = {}
@@ -330,11 +334,49 @@ def _concat(parts: list, n: int) -> dict | None:
     return out
 
 
-def expand_states(diameter_mm: float | None = 25.0, thickness_mm: float | None = None, grades=None,
-                  families=None) -> pd.DataFrame:
-    """States table of ``families`` (default: every modelled route family) over
-    ``grades`` (default: the catalogue) at one section; not cached."""
-    d, t = section_args(diameter_mm, thickness_mm)
+class StatesColumns:
+    """The states table of one section as columns (name -> numeric ndarray or :class:`Text`,
+    ``notes`` a :class:`Text`, every column of :data:`RESULT_COLUMNS`), its structure digest
+    (:func:`structure_of`) and its ``state_key`` column: the form the selection reads, without
+    building the DataFrame (:meth:`frame` builds the table of :func:`expand_states`).
+    ``view[name]`` is the column as that table holds it (a Series); treat as read-only."""
+
+    __slots__ = ("cols", "digest", "state_key", "n")
+
+    def __init__(self, cols: dict, digest: str, state_key):
+        self.cols = cols
+        self.digest = digest
+        self.state_key = state_key
+        self.n = len(cols["state"])
+
+    def __len__(self) -> int:
+        return self.n
+
+    def __contains__(self, name) -> bool:
+        return name in self.cols or name == "state_key"
+
+    @property
+    def columns(self) -> list:
+        return list(self.cols) + ["state_key"]
+
+    def __getitem__(self, name) -> pd.Series:
+        if name == "state_key":
+            return pd.Series(self.state_key)
+        return pd.Series(_series(name, self.cols[name]))
+
+    def frame(self) -> pd.DataFrame:
+        """The states table (as :func:`expand_states` returns it)."""
+        df = pd.DataFrame({k: _series(k, v) for k, v in self.cols.items()})
+        df["state_key"] = pd.Series(self.state_key.copy())
+        evict_oldest(_STRUCTURES, 64)
+        # never keeps a table alive; the notes as codes into their distinct texts beside it
+        _STRUCTURES[id(df)] = (weakref.ref(df), self.digest, self.cols["notes"])
+        return df
+
+
+def _expand_built(d, t, grades=None, families=None):
+    """:class:`StatesColumns` of ``families`` over ``grades`` at one section; a DataFrame
+    (the states table) where a column changes kind across families."""
     fams = fam_registry.available() if families is None else families
     texts: dict = {}
     parts = []
@@ -346,31 +388,54 @@ def expand_states(diameter_mm: float | None = 25.0, thickness_mm: float | None =
         parts.append(family_columns(f, batch, state_no, Text.of(corner), texts))
     n = sum(len(c["state"]) for c in parts)
     cols = _concat(parts, n)
-    digest = None
     if cols is None:
         df = pd.concat([_frame(c, texts) for c in parts], ignore_index=True, sort=False)
-    else:
-        digest = _structure_digest(cols)
-        cols["notes"] = Text(cols["notes"], list(texts))
-        df = pd.DataFrame({k: _series(k, v) for k, v in cols.items()})
+        for col in RESULT_COLUMNS:
+            if col not in df:
+                df[col] = np.nan
+        df["case_depth_mm"] = df["case_depth_mm"].fillna(0.0)
+        df["state_key"] = pd.Series((df["grade"] + "|" + df["route"] + "|" + df["state"].astype(str)).array)
+        return df
+    digest = _structure_digest(cols)
+    cols["notes"] = Text(cols["notes"], list(texts))
     for col in RESULT_COLUMNS:
-        if col not in df:
-            df[col] = np.nan
-    df["case_depth_mm"] = df["case_depth_mm"].fillna(0.0)
+        if col not in cols:
+            cols[col] = np.full(n, np.nan)
+    cd = cols["case_depth_mm"]
+    if not isinstance(cd, Text) and np.asarray(cd).dtype.kind == "f":
+        cols["case_depth_mm"] = np.where(np.isnan(cd), 0.0, cd)          # as fillna(0.0)
+    else:
+        cols["case_depth_mm"] = _series("case_depth_mm", cd).fillna(0.0).to_numpy()
     # a key per state (grade, route, parameter point), shared by its corners; the same at
-    # every section (written once per structure, a copy of the kept column after that)
-    kept = _STATE_KEYS.get(digest) if digest is not None else None
+    # every section (written once per structure, the kept column after that)
+    kept = _STATE_KEYS.get(digest)
     if kept is None:
-        kept = (df["grade"] + "|" + df["route"] + "|" + df["state"].astype(str)).array
-        if digest is not None:
-            evict_oldest(_STATE_KEYS, 8)
-            _STATE_KEYS[digest] = kept
-    df["state_key"] = pd.Series(kept.copy())
-    if digest is not None:
-        evict_oldest(_STRUCTURES, 64)
-        # never keeps a table alive; the notes as codes into their distinct texts beside it
-        _STRUCTURES[id(df)] = (weakref.ref(df), digest, cols["notes"])
-    return df
+        g, r = _series("grade", cols["grade"]), _series("route", cols["route"])
+        kept = (g + "|" + r + "|" + pd.Series(cols["state"]).astype(str)).array
+        evict_oldest(_STATE_KEYS, 8)
+        _STATE_KEYS[digest] = kept
+    return StatesColumns(cols, digest, kept)
+
+
+def expand_states(diameter_mm: float | None = 25.0, thickness_mm: float | None = None, grades=None,
+                  families=None) -> pd.DataFrame:
+    """States table of ``families`` (default: every modelled route family) over
+    ``grades`` (default: the catalogue) at one section; not cached."""
+    d, t = section_args(diameter_mm, thickness_mm)
+    built = _expand_built(d, t, grades, families)
+    return built.frame() if isinstance(built, StatesColumns) else built
+
+
+@functools.lru_cache(maxsize=8)
+def _columns_cached(diameter_mm, thickness_mm):
+    return _expand_built(diameter_mm, thickness_mm)
+
+
+def expand_columns(diameter_mm: float | None = 25.0, thickness_mm: float | None = None):
+    """The states table of :func:`expand` as :class:`StatesColumns` (cached per section; the
+    selection reads it without building the DataFrame), or the DataFrame itself where the
+    table cannot be held as columns."""
+    return _columns_cached(*section_args(diameter_mm, thickness_mm))
 
 
 #: per structure digest: the state_key column (see :func:`structure_of`)
@@ -420,7 +485,8 @@ def notes_of(states: pd.DataFrame) -> "Text | None":
 
 @functools.lru_cache(maxsize=16)
 def _expand_cached(diameter_mm, thickness_mm) -> pd.DataFrame:
-    return expand_states(diameter_mm, thickness_mm)
+    built = _columns_cached(diameter_mm, thickness_mm)
+    return built.frame() if isinstance(built, StatesColumns) else built
 
 
 def expand(diameter_mm: float | None = 25.0, thickness_mm: float | None = None) -> pd.DataFrame:
@@ -429,7 +495,12 @@ def expand(diameter_mm: float | None = 25.0, thickness_mm: float | None = None) 
     return _expand_cached(*section_args(diameter_mm, thickness_mm))
 
 
-expand.cache_clear = _expand_cached.cache_clear
+def _clear_expand_caches():
+    _expand_cached.cache_clear()
+    _columns_cached.cache_clear()
+
+
+expand.cache_clear = _clear_expand_caches
 
 
 # --------------------------------------------------------------------------- narrow, streamed
