@@ -278,7 +278,7 @@ def _prepared_from_columns(st: StatesColumns, d, thickness_mm, length_mm: float,
     codes = notes.codes[order]
     data["n_notes"] = (per[codes] if len(per) and not np.any(codes < 0)
                        else [0 if not x else x.count(" | ") + 1 for x in data["notes"]])
-    return _with_section(pd.DataFrame(data), d, thickness_mm, length_mm)
+    return _with_section(pd.DataFrame(data, copy=False), d, thickness_mm, length_mm)
 
 
 def _cost_columns(price, grade: Text, order, route, family, density, length_mm, price_sheet, d, thickness_mm

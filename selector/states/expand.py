@@ -89,15 +89,22 @@ def _catalogue_blocks(family_name: str, corners: tuple):
     return _family_blocks(fam, grades, corners)
 
 
-def _family_batch(fam, grades, diameter_mm, thickness_mm, corners):
-    """One :class:`Batch` of every grade × grid point × corner of ``fam`` (``grades``
-    None: the catalogue, from :func:`_catalogue_blocks`)."""
+def _blocks_of(fam, grades, corners):
+    """``(blocks, kept)``: :func:`_family_blocks` of ``fam`` over ``grades`` (None: the
+    catalogue, the blocks kept by :func:`_catalogue_blocks`, ``kept`` True)."""
     if grades is None and fam_registry.get(fam.name) is fam:
-        blocks = _catalogue_blocks(fam.name, tuple(corners))
-    else:
-        cat_grades = default_catalogue().grades.values() if grades is None else grades
-        blocks = _family_blocks(fam, [g for g in cat_grades if fam.name in g.routes and
-                                      (not fam.families or g.family in fam.families)], corners)
+        return _catalogue_blocks(fam.name, tuple(corners)), True
+    cat_grades = default_catalogue().grades.values() if grades is None else grades
+    return _family_blocks(fam, [g for g in cat_grades if fam.name in g.routes and
+                                (not fam.families or g.family in fam.families)], corners), False
+
+
+def _family_batch(fam, grades, diameter_mm, thickness_mm, corners, blocks=None):
+    """One :class:`Batch` of every grade × grid point × corner of ``fam`` (``grades``
+    None: the catalogue, from :func:`_catalogue_blocks`; ``blocks``: those of
+    :func:`_blocks_of`, when the caller has them)."""
+    if blocks is None:
+        blocks = _blocks_of(fam, grades, corners)[0]
     if blocks is None:
         return None
     glist, gidx, comp_arr, par, state_no, corner_col = blocks
@@ -379,9 +386,11 @@ def _expand_built(d, t, grades=None, families=None):
     (the states table) where a column changes kind across families."""
     fams = fam_registry.available() if families is None else families
     texts: dict = {}
-    parts = []
+    parts, kept = [], []
     for f in fams:
-        built = _family_batch(f, grades or None, d, t, CORNERS)
+        blocks, is_kept = _blocks_of(f, grades or None, CORNERS)
+        kept.append(blocks if is_kept else _FRESH)
+        built = _family_batch(f, grades or None, d, t, CORNERS, blocks)
         if built is None:
             continue
         batch, state_no, corner = built
@@ -396,7 +405,7 @@ def _expand_built(d, t, grades=None, families=None):
         df["case_depth_mm"] = df["case_depth_mm"].fillna(0.0)
         df["state_key"] = pd.Series((df["grade"] + "|" + df["route"] + "|" + df["state"].astype(str)).array)
         return df
-    digest = _structure_digest(cols)
+    digest = _kept_digest(cols, kept)
     cols["notes"] = Text(cols["notes"], list(texts))
     for col in RESULT_COLUMNS:
         if col not in cols:
@@ -443,6 +452,29 @@ _STATE_KEYS: dict = {}
 #: id(table) -> (weak reference to the table, structure digest, notes as :class:`Text`) of the
 #: recent tables of :func:`expand_states`
 _STRUCTURES: dict = {}
+
+
+#: (ids of the kept blocks of every family, column names) -> (the blocks, the structure digest)
+_DIGESTS: dict = {}
+#: marks blocks built for the call (not kept): no digest is kept for them
+_FRESH = object()
+
+
+def _kept_digest(cols: dict, kept: list) -> str | None:
+    """:func:`_structure_digest` of ``cols``, kept per the blocks of the catalogue the columns
+    were built from (every column it reads comes from those blocks: the same digest at every
+    section); computed where a family's blocks are not the kept ones.  The memo holds the
+    blocks, so their ids cannot be reused by other objects while it names them."""
+    if any(b is _FRESH for b in kept):
+        return _structure_digest(cols)
+    key = (tuple(id(b) for b in kept), tuple(cols))
+    hit = _DIGESTS.get(key)
+    if hit is not None and all(a is b for a, b in zip(hit[0], kept)):
+        return hit[1]
+    digest = _structure_digest(cols)
+    evict_oldest(_DIGESTS, 8)
+    _DIGESTS[key] = (tuple(kept), digest)
+    return digest
 
 
 def _structure_digest(cols: dict) -> str | None:
