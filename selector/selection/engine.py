@@ -642,17 +642,13 @@ def rank(prepared: pd.DataFrame, targets: dict | None = None, objectives=DEFAULT
     pick = _representative(starts, ends, nom["n_notes"].to_numpy())
     cand = nom.iloc[pick].copy()
     cand.attrs = {}      # pandas deep-copies attrs on every operation: ~30 % of a re-rank
-    cand["nominal"] = nominal[pick]
-    cand["p_meet"] = p[pick]
-    cand["min_p_meet"] = min_p
-    cand["robust"] = likely[pick]
-    cand["corners_meet"] = corners[pick]
     has_window = np.array([tiers[k][1] for k in tier_no], bool)
-    cand["window_min"] = np.where(has_window, main[starts], np.nan)
-    cand["window_max"] = np.where(has_window, main[ends], np.nan)
-    cand["robust_window_min"] = np.where(has_window & likely[pick], main[starts], np.nan)
-    cand["robust_window_max"] = np.where(has_window & likely[pick], main[ends], np.nan)
-    cand["feasible_min"], cand["feasible_max"] = main[starts], main[ends]
+    add = {"nominal": nominal[pick], "p_meet": p[pick], "min_p_meet": min_p, "robust": likely[pick],
+           "corners_meet": corners[pick], "window_min": np.where(has_window, main[starts], np.nan),
+           "window_max": np.where(has_window, main[ends], np.nan),
+           "robust_window_min": np.where(has_window & likely[pick], main[starts], np.nan),
+           "robust_window_max": np.where(has_window & likely[pick], main[ends], np.nan),
+           "feasible_min": main[starts], "feasible_max": main[ends]}
     subs = []
     for v, k, ok_w in zip(vcode[starts], tier_no, has_window):
         if not ok_w:
@@ -661,8 +657,25 @@ def rank(prepared: pd.DataFrame, targets: dict | None = None, objectives=DEFAULT
         s_all, e_all = all_runs[k]
         mine = vcode[s_all] == v
         subs.append("; ".join(_range_text(main[a], main[b]) for a, b in zip(s_all[mine], e_all[mine])))
-    cand["sub_windows"] = subs
-    return _finish(cand, t, objectives, ctx, allowed)
+    add["sub_windows"] = subs
+    return _finish(_with_columns(cand, add), t, objectives, ctx, allowed)
+
+
+def _with_columns(frame: pd.DataFrame, columns: dict) -> pd.DataFrame:
+    """``frame`` with ``columns`` set as by assigning them one by one (``frame[name] =
+    value``: a column of that name replaced in place, the others added at the end in order,
+    the same dtypes), with one concatenation instead of one insertion per column."""
+    new = {k: v for k, v in columns.items() if k not in frame.columns}
+    out = frame
+    if new:
+        add = pd.DataFrame({k: (np.full(len(frame), v) if np.ndim(v) == 0 and not isinstance(v, str) else v)
+                            for k, v in new.items()}, index=frame.index)
+        out = pd.concat([frame, add], axis=1)
+        out.attrs = dict(frame.attrs)
+    for k, v in columns.items():
+        if k not in new:
+            out[k] = v
+    return out
 
 
 def _range_text(lo, hi) -> str:
@@ -764,11 +777,11 @@ def p_meet_step(p: np.ndarray, robust: np.ndarray) -> np.ndarray:
 def _finish(cand: pd.DataFrame, t: dict, objectives, service: dict | None = None, allowed=()) -> pd.DataFrame:
     cand = cand.reset_index(drop=True)
     lists = cautions_mod.cautions_for(cand, **(service or {}))
-    cand["cautions"] = ["; ".join(d["title"] for d in row) for row in lists]
+    cautions = ["; ".join(d["title"] for d in row) for row in lists]
     order = {s_: i for i, s_ in enumerate(cautions_mod.SEVERITIES)}
     live = [[d for d in row if d["code"] not in allowed] for row in lists]
-    cand["severity"] = [max((d["severity"] for d in row), key=order.get, default="") for row in live]
-    cand["avoid"] = [";".join(d["code"] for d in row if d["severity"] == "avoid") for row in live]
+    severity = [max((d["severity"] for d in row), key=order.get, default="") for row in live]
+    avoid = [";".join(d["code"] for d in row if d["severity"] == "avoid") for row in live]
     routes, texts, wparam, wtext = [], [], [], []
     need = {"route", "window_min", "window_max", "robust", "robust_window_min", "robust_window_max",
             "feasible_min", "feasible_max", "sub_windows"}
@@ -783,32 +796,30 @@ def _finish(cand: pd.DataFrame, t: dict, objectives, service: dict | None = None
         texts.append(text)
         wparam.append(fam.main_parameter or "")
         wtext.append(_window_text(r))
-    cand["route_family"] = cand["route"]
-    cand["route"] = routes
-    cand["route_text"] = texts
-    cand["window_parameter"] = wparam
-    cand["window"] = wtext
+    add = {"cautions": cautions, "severity": severity, "avoid": avoid, "route_family": cand["route"],
+           "route": routes, "route_text": texts, "window_parameter": wparam, "window": wtext}
     for col in ("p_meet", "corners_meet"):
         if col not in cand:
-            cand[col] = np.nan
-    cand["margin_bands"] = _margin_bands(cand, t)
+            add[col] = np.nan
+    add["margin_bands"] = _margin_bands(cand, t)
+    cand = _with_columns(cand, add)
     vals = np.column_stack([cand[c].to_numpy(float) for c, _ in objectives])
-    clean = (cand["avoid"] == "").to_numpy()
+    clean = np.array([a == "" for a in avoid], bool)
     pool = clean if clean.any() else np.ones(len(cand), bool)
     par = np.zeros(len(cand), bool)
     if pool.any():
         par[pool] = pareto_mask(vals[pool], [s_ == "max" for _, s_ in objectives])
-    cand["pareto"] = par
     m = margins(cand, t)
-    for c in m.columns:
-        cand[c] = m[c].to_numpy()
-    cand["_avoid"] = ~clean
-    cand["_step"] = p_meet_step(cand["p_meet"].to_numpy(float), cand["robust"].to_numpy(bool))
-    cand = cand.sort_values(["_avoid", "robust", "_step", "part_cost", "p_meet", "elongation_pct", "yield_mpa"],
-                            ascending=[True, False, False, True, False, False, False],
-                            kind="stable", na_position="last").reset_index(drop=True)
-    cand = cand.drop(columns=["_avoid", "_step"])
-    cand["rank"] = np.arange(1, len(cand) + 1)
+    cand = _with_columns(cand, {"pareto": par, **{c: m[c].to_numpy() for c in m.columns}})
+    # the order of sorting the table by these keys, read from the keys alone
+    keys = pd.DataFrame({"_avoid": ~clean, "robust": cand["robust"].to_numpy(),
+                         "_step": p_meet_step(cand["p_meet"].to_numpy(float), cand["robust"].to_numpy(bool)),
+                         **{c: cand[c].to_numpy() for c in ("part_cost", "p_meet", "elongation_pct", "yield_mpa")}})
+    order = keys.sort_values(["_avoid", "robust", "_step", "part_cost", "p_meet", "elongation_pct", "yield_mpa"],
+                             ascending=[True, False, False, True, False, False, False],
+                             kind="stable", na_position="last").index.to_numpy()
+    cand = cand.take(order).reset_index(drop=True)
+    cand = _with_columns(cand, {"rank": np.arange(1, len(cand) + 1)})
     cols = OUTPUT_COLUMNS + list(m.columns) + [c for c in cand.columns
                                                if c not in OUTPUT_COLUMNS and c not in m.columns]
     return cand[[c for c in cols if c in cand.columns]]
