@@ -21,7 +21,7 @@ from ..catalogue.grades import default_catalogue
 from ..errors import NotModelledError
 from ..routes import families as fam_registry
 from ..routes.evaluate import BAND_KEYS, finish, section_args
-from ..routes.families.base import Batch
+from ..routes.families.base import Batch, distinct_rows
 
 CORNERS = ("lean", "nominal", "rich")
 
@@ -227,37 +227,13 @@ def note_codes(notes, n: int, texts: dict) -> np.ndarray:
     rows[st, np.arange(len(st)) - start[st]] = mj
     has = counts > 0
     sub = np.ascontiguousarray(rows[has])
-    first, inv = _distinct_rows(sub)
+    first, inv = distinct_rows(sub)
     code_of = np.empty(len(first), np.int64)
     for u, row in enumerate(sub[first].tolist()):
         text = " | ".join([msgs[j] for j in row if j >= 0])
         code_of[u] = texts.setdefault(text, len(texts))
     out[has] = code_of[inv]
     return out
-
-
-#: fixed odd multipliers of the row hash of :func:`_distinct_rows` (any fixed values do: every
-#: grouping is checked against the rows themselves)
-_ROW_HASH = np.random.default_rng(20261203).integers(1, 2**63, size=64, dtype=np.uint64) | np.uint64(1)
-
-
-def _distinct_rows(rows: np.ndarray) -> tuple:
-    """``(first, inverse)`` of the distinct rows of an int64 matrix: the row number of each
-    distinct row's first appearance, and each row's distinct row (``rows[first][inverse]`` is
-    ``rows``).  Rows are grouped by a 64-bit hash (hashing, not sorting the rows) and the
-    grouping is checked against the rows; on a hash collision, by sorting the rows."""
-    k = rows.shape[1]
-    if 0 < k <= len(_ROW_HASH):
-        with np.errstate(over="ignore"):
-            h = (rows.view(np.uint64) * _ROW_HASH[:k]).sum(axis=1, dtype=np.uint64)
-        inv, _ = pd.factorize(h)
-        inv = np.asarray(inv, np.int64)
-        first = np.unique(inv, return_index=True)[1]
-        if np.array_equal(rows[first][inv], rows):
-            return first, inv
-    _, first, inv = np.unique(rows.view(np.dtype((np.void, rows.dtype.itemsize * k))).ravel(),
-                              return_index=True, return_inverse=True)
-    return first, inv.reshape(-1)
 
 
 def family_columns(fam, batch, state_no, corner, notes_texts: dict) -> dict:

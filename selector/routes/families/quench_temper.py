@@ -26,7 +26,7 @@ from ...models import (conversions, correlations, critical_temperatures, hardena
 from ...models.composition import el
 from .. import quench_response
 from ..model_inputs import uses
-from .base import (Batch, RouteFamily, at_position, harden_step, product_grid, temper_steps,
+from .base import (Batch, RouteFamily, at_position, distinct_rows, harden_step, product_grid, temper_steps,
                    tension_test_position)
 
 TME_RANGE_C = (260.0, 370.0)
@@ -53,13 +53,11 @@ def batch_class(batch: Batch) -> np.ndarray:
 _PROFILE_SHARED = ("positions", "warnings")
 
 
-def _text_codes(values: np.ndarray) -> np.ndarray:
-    """Codes of values in sorted order of their distinct texts (as the inverse of
-    ``np.unique(values.astype(str))``), as floats: the states are hashed, only the few
-    distinct values are written as text and sorted."""
-    codes, uniq = pd.factorize(np.asarray(values, dtype=object), use_na_sentinel=False)
-    _, text_code = np.unique(np.asarray(uniq, dtype=object).astype(str), return_inverse=True)
-    return text_code.reshape(-1)[codes].astype(float)
+def _value_codes(values: np.ndarray) -> np.ndarray:
+    """Codes of values (equal values, equal codes; in order of first appearance), as floats:
+    the states are hashed, not written as text and sorted."""
+    codes, _ = pd.factorize(np.asarray(values, dtype=object), use_na_sentinel=False)
+    return np.asarray(codes, float)
 
 
 def quench_profile_distinct(comp, quench, agitation, austenitize_c, diameter_mm=None, thickness_mm=None,
@@ -76,14 +74,14 @@ def quench_profile_distinct(comp, quench, agitation, austenitize_c, diameter_mm=
     a = np.broadcast_to(np.asarray(agitation, dtype=object), (n,))
     nan = np.full(n, np.nan)
     cols = [np.broadcast_to(np.asarray(v, float), (n,)) for _, v in sorted(comp.items())]
-    cols += [_text_codes(q), _text_codes(a),
+    cols += [_value_codes(q), _value_codes(a),
              np.broadcast_to(np.asarray(np.nan if austenitize_c is None else austenitize_c, float), (n,)),
              nan if diameter_mm is None else np.asarray(diameter_mm, float),
              nan if thickness_mm is None else np.asarray(thickness_mm, float)]
     table = np.ascontiguousarray(np.column_stack(cols))
-    rows = table.view(np.dtype((np.void, table.dtype.itemsize * table.shape[1]))).ravel()
-    _, first, inverse = np.unique(rows, return_index=True, return_inverse=True)
-    inverse = inverse.reshape(-1)
+    # equal rows are equal bits (as np.unique of the rows' bytes); each distinct row in order of
+    # first appearance (the chain is row-wise: the order does not change a number)
+    first, inverse = distinct_rows(table.view(np.int64))
     sub = {k: np.broadcast_to(np.asarray(v, float), (n,))[first] for k, v in comp.items()}
     extra = {} if positions is None else {"positions": positions}
     prof = quench_response.as_quenched_profile(
