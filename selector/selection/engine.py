@@ -124,9 +124,11 @@ def _variant_keys(states: pd.DataFrame, memo: dict | None = None) -> tuple[np.nd
     coded = memo.setdefault("codes", {})
     per_route = memo.setdefault("routes", {})
     results = set(_result_parameters())
-    if "route" not in memo:
-        memo["route"] = states["route"].to_numpy(dtype=object)
-        memo["route_rows"] = {r: np.flatnonzero(memo["route"] == r) for r in pd.unique(memo["route"])}
+    route_rows = memo.get("route_rows")
+    if route_rows is None:
+        route = states["route"].to_numpy(dtype=object)
+        # one assignment of a whole value: a memo shared by threads is never read half made
+        route_rows = memo["route_rows"] = {r: np.flatnonzero(route == r) for r in pd.unique(route)}
     grade = memo.get("grade")
     if grade is None:
         grade = memo["grade"] = states["grade"].to_numpy(dtype=object)
@@ -143,7 +145,7 @@ def _variant_keys(states: pd.DataFrame, memo: dict | None = None) -> tuple[np.nd
     codes_of("grade", grade)
     out = np.empty(len(states), dtype=object)
     firsts, locals_ = [], []
-    for r, idx in memo["route_rows"].items():
+    for r, idx in route_rows.items():
         fam = fam_registry.get(r)
         cols = [fam.main_parameter] + list(fam.parameters)
         hit = per_route.get(r)
@@ -340,11 +342,12 @@ def _layout(df: pd.DataFrame, digest: str | None = None) -> tuple:
         mp = _main_param(r)
         if mp and mp in df:
             main[idx] = df[mp].to_numpy()[idx].astype(float)
-    if "key_rank" not in memo:
+    ranks = memo.get("key_rank")
+    if ranks is None:
         corner = df["corner"].to_numpy(dtype=object)
-        memo["key_rank"] = pd.factorize(df["state_key"], sort=True)[0]      # lexicographic rank of state_key
-        memo["corner_rows"] = {c: np.flatnonzero(corner == c) for c in ("nominal", "lean", "rich")}
-    key_rank, rows = memo["key_rank"], memo["corner_rows"]
+        ranks = memo["key_rank"] = (pd.factorize(df["state_key"], sort=True)[0],    # lexicographic rank
+                                    {c: np.flatnonzero(corner == c) for c in ("nominal", "lean", "rich")})
+    key_rank, rows = ranks
     nom_idx = rows["nominal"]
     nom_order = nom_idx[np.lexsort((key_rank[nom_idx], main[nom_idx], vcode[nom_idx]))]
     take = [nom_order]

@@ -505,14 +505,6 @@ def structure_of(states: pd.DataFrame) -> str | None:
     return hit[1] if hit is not None and hit[0]() is states else None
 
 
-def notes_of(states: pd.DataFrame) -> "Text | None":
-    """The ``notes`` column of a table returned by :func:`expand_states` as codes into its
-    distinct texts (None when unknown, as :func:`structure_of`): a reader that needs a
-    property of each text (e.g. its number of notes) computes it once per distinct text."""
-    hit = _STRUCTURES.get(id(states))
-    return hit[2] if hit is not None and hit[0]() is states else None
-
-
 @functools.lru_cache(maxsize=16)
 def _expand_cached(diameter_mm, thickness_mm) -> pd.DataFrame:
     built = _columns_cached(diameter_mm, thickness_mm)
