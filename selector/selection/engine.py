@@ -643,7 +643,7 @@ def rank(prepared: pd.DataFrame, targets: dict | None = None, objectives=DEFAULT
     if len(starts) == 0:
         return _empty(t)
     pick = _representative(starts, ends, nom["n_notes"].to_numpy())
-    cand = nom.iloc[pick].copy()
+    cand = nom.iloc[pick]              # a new frame (copy-on-write): nom is never changed through it
     cand.attrs = {}      # pandas deep-copies attrs on every operation: ~30 % of a re-rank
     has_window = np.array([tiers[k][1] for k in tier_no], bool)
     add = {"nominal": nominal[pick], "p_meet": p[pick], "min_p_meet": min_p, "robust": likely[pick],
