@@ -1,4 +1,5 @@
 """Test-session settings shared by every test file."""
+import atexit
 import os
 import shutil
 import tempfile
@@ -7,12 +8,10 @@ import pytest
 
 # The suite writes its on-disk tables (selector/cache.py) to a directory of its own, so a
 # test that patches a model can never leave a table in the user's cache directory.
-os.environ["SELECTOR_CACHE_DIR"] = _CACHE_DIR = tempfile.mkdtemp(prefix="selector-test-cache-")
-
-
-def pytest_unconfigure(config):
-    """Remove the session's table cache (hundreds of MB after a full run) when pytest ends."""
-    shutil.rmtree(_CACHE_DIR, ignore_errors=True)
+os.environ["SELECTOR_CACHE_DIR"] = tempfile.mkdtemp(prefix="selector-test-cache-")
+# removed when the session ends (a run writes up to about 2 GB of tables there; left behind,
+# the directories of many runs filled the disk)
+atexit.register(shutil.rmtree, os.environ["SELECTOR_CACHE_DIR"], ignore_errors=True)
 
 
 def pytest_collection_modifyitems(config, items):

@@ -103,14 +103,23 @@ def test_prepared_table_from_the_kept_layout_equals_a_fresh_layout(monkeypatch):
     digest = X.structure_of(st)
     assert digest is not None and any(k[0] == digest for k in engine._LAYOUTS)
     real, calls = engine._layout, []
-    monkeypatch.setattr(engine, "_layout", lambda df: calls.append(1) or real(df))
+    monkeypatch.setattr(engine, "_layout", lambda *a: calls.append(1) or real(*a))
     kept = engine._prepare_table.build(52.9, None, 100.0, ())
     assert not calls                                            # the kept layout served it
+    # the whole layout made again from the parts kept at the other sections (column codes,
+    # keys of the families with no model result among their columns, state-key ranks)
+    assert digest in engine._LAYOUT_PARTS and engine._LAYOUT_PARTS[digest]["routes"]
     monkeypatch.setattr(engine, "_LAYOUTS", {})
+    from_parts = engine._prepare_table.build(52.9, None, 100.0, ())
+    assert calls
+    monkeypatch.setattr(engine, "_LAYOUTS", {})
+    monkeypatch.setattr(engine, "_LAYOUT_PARTS", {})
     monkeypatch.setattr(X, "_STATE_KEYS", {})
+    monkeypatch.setattr(X, "_STRUCTURES", {})                   # no notes codes: counted from the texts
     fresh = engine._prepare_table.build(52.9, None, 100.0, ())
     pd.testing.assert_frame_equal(kept, fresh, check_exact=True)
-    assert kept.attrs == fresh.attrs
+    pd.testing.assert_frame_equal(from_parts, fresh, check_exact=True)
+    assert kept.attrs == fresh.attrs == from_parts.attrs
     written = st["grade"] + "|" + st["route"] + "|" + st["state"].astype(str)
     pd.testing.assert_series_equal(st["state_key"], written, check_names=False)
 
@@ -140,3 +149,158 @@ def test_sensitivities_from_a_kept_plan_equal_a_build_with_none(monkeypatch):
     for k in fresh:
         assert kept[k].dtype == fresh[k].dtype, k
         assert np.array_equal(kept[k], fresh[k], equal_nan=fresh[k].dtype.kind == "f"), k
+
+
+def _fresh_memos(monkeypatch):
+    """Empty every memo kept across sections (the next computation is from scratch)."""
+    from selector.routes import quench_response as QR
+    from selector.selection import engine
+    from selector.states import expand as X
+
+    for mod, name in ((engine, "_LAYOUTS"), (engine, "_LAYOUT_PARTS"), (engine, "_SAMPLES"), (engine, "_VIEWS"),
+                      (engine, "_AVOID"), (X, "_STATE_KEYS"), (X, "_STRUCTURES"), (X, "_DIGESTS"),
+                      (scatter, "_PLANS"), (QR, "_SECTION_FREE")):
+        monkeypatch.setattr(mod, name, {})
+    engine._prepare_cached.cache_clear()
+    X.expand.cache_clear()
+    scatter.effects.cache_clear()
+
+
+def test_select_at_a_section_after_others_equals_a_fresh_select(monkeypatch):
+    """Everything kept from earlier sections (layout parts, structure digest, state keys, the
+    composition-only parts of the quench chain, sensitivity plans) gives, at a new section,
+    the selection, prepared table and sensitivities of a process that saw no other section."""
+    import pandas as pd
+
+    import selector
+    from selector.selection import engine
+
+    monkeypatch.setenv("SELECTOR_DISK_CACHE", "0")
+    t = {"min_yield_mpa": 700, "min_elongation_pct": 12}
+    for d in (21.0, 47.5):                                     # section A (centre test location), then B
+        selector.select(t, diameter_mm=d)
+    after = selector.select(t, diameter_mm=63.1)
+    after_prep = engine.prepare(63.1)
+    after_eff = scatter.effects(63.1, None)
+    _fresh_memos(monkeypatch)
+    fresh = selector.select(t, diameter_mm=63.1)
+    fresh_prep = engine.prepare(63.1)
+    fresh_eff = scatter.effects(63.1, None)
+    assert len(fresh) > 10
+    pd.testing.assert_frame_equal(after, fresh, check_exact=True)
+    pd.testing.assert_frame_equal(after_prep, fresh_prep, check_exact=True)
+    assert list(after_prep.dtypes) == list(fresh_prep.dtypes) and after_prep.attrs == fresh_prep.attrs
+    for p_ in fresh_eff["a"]:
+        assert np.array_equal(after_eff["a"][p_], fresh_eff["a"][p_], equal_nan=True), p_
+
+
+def test_prepared_table_from_the_columns_equals_costing_and_taking_the_states_frame(monkeypatch):
+    """The prepared table built from the expansion's columns (one take per column) equals the
+    one built from the states DataFrame (cost, layout, take), column by column and dtype."""
+    import pandas as pd
+
+    from selector.selection import engine
+    from selector.states import expand as X
+
+    monkeypatch.setenv("SELECTOR_DISK_CACHE", "0")
+    prices = (("4140", 2.5), ("1045", 0.9))
+    from_cols = engine._prepare_table.build(38.5, None, 150.0, prices)
+    frame = X.expand_states(38.5)                             # the states DataFrame of the same section
+    monkeypatch.setattr(engine, "expand_columns", lambda d, t: frame)
+    from_frame = engine._prepare_table.build(38.5, None, 150.0, prices)
+    pd.testing.assert_frame_equal(from_cols, from_frame, check_exact=True)
+    assert list(from_cols.dtypes) == list(from_frame.dtypes) and from_cols.attrs == from_frame.attrs
+    assert (from_cols["price_source"] == "price sheet").any()
+
+
+def test_expand_frame_from_kept_columns_equals_expand_states():
+    import pandas as pd
+
+    from selector.states import expand as X
+
+    X.expand.cache_clear()
+    kept = X.expand(29.0)                                     # from the cached columns
+    fresh = X.expand_states(29.0)
+    pd.testing.assert_frame_equal(kept, fresh, check_exact=True)
+    assert X.structure_of(kept) == X.structure_of(fresh) is not None
+
+
+def test_quench_chain_with_kept_composition_parts_equals_a_fresh_chain(monkeypatch):
+    from selector.routes import quench_response as QR
+
+    fam, batch = _qt_batch(30.0)
+    sub = batch.subset(np.arange(batch.n) % 11 == 0)
+    p = sub.params
+    args = (sub.comp, p["quench"], p["agitation"])
+    kw = dict(austenitize_c=np.asarray(p["austenitize_c"], float))
+    QR.as_quenched_profile(*args, diameter_mm=np.full(sub.n, 30.0), **kw)      # keeps the parts
+    assert QR._SECTION_FREE
+    kept = QR.as_quenched_profile(*args, diameter_mm=np.full(sub.n, 71.0), **kw)
+    monkeypatch.setattr(QR, "_SECTION_FREE", {})
+    fresh = QR.as_quenched_profile(*args, diameter_mm=np.full(sub.n, 71.0), **kw)
+    assert set(kept) == set(fresh)
+    for k in fresh:
+        if k not in ("warnings", "positions"):
+            assert np.array_equal(np.asarray(kept[k]), np.asarray(fresh[k]), equal_nan=True), k
+    assert kept["warnings"] == fresh["warnings"]
+
+
+def test_case_table_per_distinct_quench_equals_the_per_row_chain():
+    """The carburized case table evaluates the quench chain once per distinct (carbon level,
+    quench): the same numbers as the chain over every (state, carbon level)."""
+    from selector.models import carburizing
+    from selector.models.composition import el
+    from selector.routes.families import carburize as C
+
+    fam = fam_registry.get("carburize")
+    batch = _family_batch(fam, None, 33.0, None, CORNERS)[0]
+    p = batch.params
+    cs = np.maximum(np.asarray(p["surface_carbon_pct"], float), el(batch.comp, "C") + 1e-6)
+    fast = C.case_table(batch, p["quench"], p["agitation"], np.asarray(p["austenitize_c"], float), cs,
+                        np.asarray(p["temper_temp_c"], float), np.asarray(p["temper_hours"], float))
+    # the chain over every row, as the case table computed it before
+    n, frac = batch.n, np.asarray(C.CARBON_FRACTIONS, float)
+    k = len(frac)
+    tile = lambda a: np.tile(np.broadcast_to(np.asarray(a), (n,)), k)  # noqa: E731
+    c0 = el(batch.comp, "C")
+    local = {e: tile(v) for e, v in batch.comp.items()}
+    local["C"] = (c0[None, :] + frac[:, None] * (cs - c0)[None, :]).reshape(-1)
+    prof = quench_response.as_quenched_profile(local, tile(p["quench"]), tile(p["agitation"]),
+                                               austenitize_c=tile(np.asarray(p["austenitize_c"], float)),
+                                               positions=C.TABLE_POSITIONS, diameter_mm=tile(batch.diameter_mm))
+    aq = np.asarray(prof["hardness_hv"], float).reshape(k, n, -1).transpose(1, 0, 2)
+    c_k = (c0[:, None] + frac[None, :] * (cs - c0)[:, None])[:, :, None]
+    comp3 = {e: np.asarray(v, float)[:, None, None] for e, v in batch.comp.items()}
+    h = np.asarray(p["temper_hours"], float)[:, None, None]
+    slow = carburizing.case_hardness_hv(aq, c_k, comp3, np.asarray(p["temper_temp_c"], float)[:, None, None],
+                                        np.where(np.isfinite(h), h, 1.0))
+    assert batch.n > 100 and np.array_equal(fast["hv"], slow, equal_nan=True)
+
+
+def test_supplied_core_records_per_distinct_bar_equal_one_record_per_state():
+    """The supplied-bar families compute on one grade record per distinct (grade, bar): the
+    same results as one record per state."""
+    import dataclasses
+
+    from selector.models import conversions
+    from selector.routes.families import supply as S
+    from selector.routes.families.base import Batch
+
+    fam = fam_registry.get("supply_induction")
+    batch = _family_batch(fam, None, 45.0, None, CORNERS)[0]
+    props = S.supply_properties(batch)
+    fast = fam._inner().compute(S._with_core(batch, props))
+    grades = []
+    for i in range(batch.n):                                  # the record of each state, as before
+        g = batch.grades[batch.gidx[i]]
+        hv = props["hardness_hv"][i]
+        hb = float(conversions.hv_to_hb(hv)) if np.isfinite(hv) else g.base_hardness_hb
+        grades.append(dataclasses.replace(g, base_uts_mpa=float(props["uts_mpa"][i]),
+                                          base_yield_mpa=float(props["yield_mpa"][i]),
+                                          base_elongation_pct=float(props["elongation_pct"][i]),
+                                          base_hardness_hb=hb))
+    slow = fam._inner().compute(Batch(grades, np.arange(batch.n), batch.comp, batch.params, batch.diameter_mm,
+                                      batch.thickness_mm))
+    assert len(S._with_core(batch, props).grades) < batch.n
+    for k in ("uts_mpa", "yield_mpa", "elongation_pct", "hardness_hv", "surface_hardness_hv", "case_depth_mm"):
+        assert np.array_equal(np.asarray(fast[k], float), np.asarray(slow[k], float), equal_nan=True), k

@@ -50,9 +50,11 @@ def resolve(grade, route) -> tuple[Grade, list, object]:
     return g, steps, fam
 
 
-def scale_hardness(hv: np.ndarray, families_: np.ndarray) -> dict:
-    """HRC and HB from HV on the ASTM E140 steel table; NaN for non-steels and off-scale."""
-    steel = np.isin(families_.astype(str), STEEL_SCALE_FAMILIES)
+def scale_hardness(hv: np.ndarray, families_: np.ndarray, steel: np.ndarray | None = None) -> dict:
+    """HRC and HB from HV on the ASTM E140 steel table; NaN for non-steels and off-scale
+    (``steel``: the mask of the states on the steel table, when the caller has it)."""
+    if steel is None:
+        steel = np.isin(families_.astype(str), STEEL_SCALE_FAMILIES)
     hv = np.asarray(hv, float)
     return {"hrc": np.where(steel, conversions.hv_to_hrc(hv), np.nan),
             "hb": np.where(steel, conversions.hv_to_hb(hv), np.nan)}
@@ -79,7 +81,9 @@ def finish(res: dict, batch: Batch, route: str = bands.ANY) -> dict:
         declared = families.get(route).model_inputs
         res.setdefault("notes", []).extend(model_inputs.validity_notes(declared, res, batch))
     res.pop("model_inputs", None)
-    fam = batch.attr("family")
+    # the steel-table mask looked up once per grade, not per state
+    steel = np.isin(np.array([str(g.family) for g in batch.grades] + [""], dtype=str)[:-1],
+                    STEEL_SCALE_FAMILIES)[np.asarray(batch.gidx, np.int64)]
     hv_test = np.asarray(res.get("hardness_hv", np.full(batch.n, np.nan)), float)
     uts = np.asarray(res.get("uts_mpa", np.full(batch.n, np.nan)), float)
     off = np.isfinite(hv_test) & ~np.isfinite(uts)
@@ -88,14 +92,14 @@ def finish(res: dict, batch: Batch, route: str = bands.ANY) -> dict:
     for key in ("hardness", "surface_hardness", "center_hardness"):
         hv = np.asarray(res.get(key + "_hv", np.full(batch.n, np.nan)), float)
         res[key + "_hv"] = hv
-        sc = scale_hardness(hv, fam)
+        sc = scale_hardness(hv, None, steel)
         res[key + "_hrc"] = sc["hrc"]
         res[key + "_hb"] = sc["hb"]
     section = np.where(np.isfinite(batch.diameter_mm), batch.diameter_mm, batch.thickness_mm)
     res.update(_band_columns(res, batch, route, section))
     for edge in ("lo", "hi"):
         if f"hardness_hv_{edge}" in res:
-            sc = scale_hardness(res[f"hardness_hv_{edge}"], fam)
+            sc = scale_hardness(res[f"hardness_hv_{edge}"], None, steel)
             res[f"hardness_hrc_{edge}"], res[f"hardness_hb_{edge}"] = sc["hrc"], sc["hb"]
     return res
 

@@ -27,8 +27,12 @@ checks.  Results are estimates for preliminary selection.
 """
 from __future__ import annotations
 
+import hashlib
+import threading
+
 import numpy as np
 
+from ..cache import evict_oldest
 from ..errors import InputError
 from ..models import (conversions, cooling, critical_temperatures, hardenability, quench_severity,
                       structure_tempering, validity)
@@ -101,6 +105,35 @@ def _hrc_to_hv(hrc):
     hv20 = conversions.hrc_to_hv(20.0)
     slope = (conversions.hrc_to_hv(22.0) - hv20) / 2.0
     return np.where(hrc < 20.0, np.maximum(hv20 + slope * (hrc - 20.0), 100.0), hv)
+
+
+#: content digest of the inputs -> the section-independent parts of :func:`as_quenched_profile`
+#: (a few recent batches: the catalogue's compositions recur at every section)
+_SECTION_FREE: dict = {}
+_SECTION_FREE_LOCK = threading.Lock()
+
+
+def _section_free(tag: str, comp: dict, arrays: tuple, build):
+    """``build()`` (a tuple of arrays that depend on ``comp`` and ``arrays`` only, not on the
+    section or the quench), kept under a digest of those inputs: a new section of the same
+    states reuses them.  Copies are returned (the kept arrays are never handed out)."""
+    h = hashlib.blake2b(digest_size=20)
+    h.update(tag.encode())
+    for k in sorted(comp):
+        v = np.ascontiguousarray(comp[k], float)
+        h.update(k.encode() + str(v.shape).encode() + v.tobytes())
+    for v in arrays:
+        v = np.ascontiguousarray(v, float)
+        h.update(b"|" + str(v.shape).encode() + v.tobytes())
+    key = h.hexdigest()
+    with _SECTION_FREE_LOCK:
+        hit = _SECTION_FREE.get(key)
+    if hit is None:
+        hit = tuple(np.array(v, copy=True) for v in build())
+        with _SECTION_FREE_LOCK:
+            evict_oldest(_SECTION_FREE, 32)
+            _SECTION_FREE[key] = hit
+    return tuple(v.copy() for v in hit)
 
 
 def as_quenched_profile(comp, quench, agitation="moderate", diameter_mm=None, thickness_mm=None,
@@ -179,11 +212,14 @@ def as_quenched_profile(comp, quench, agitation="moderate", diameter_mm=None, th
             i = _first(mask)
             warnings.append(f"{text} for {int(mask.sum())} of {n} states (first: state {i}, {detail(i)})")
 
-    # temperatures
-    ac1 = np.asarray(critical_temperatures.ac1_c(comp1), float) * np.ones(n)
-    ac3 = np.asarray(critical_temperatures.ac3_c(comp1), float) * np.ones(n)
-    ms = np.asarray(critical_temperatures.ms_c(comp1), float) * np.ones(n)
-    t_default = np.asarray(critical_temperatures.default_austenitize_c(comp1), float) * np.ones(n)
+    # temperatures (of the composition only: kept across sections, _section_free)
+    def temperatures():
+        return (np.asarray(critical_temperatures.ac1_c(comp1), float) * np.ones(n),
+                np.asarray(critical_temperatures.ac3_c(comp1), float) * np.ones(n),
+                np.asarray(critical_temperatures.ms_c(comp1), float) * np.ones(n),
+                np.asarray(critical_temperatures.default_austenitize_c(comp1), float) * np.ones(n))
+
+    ac1, ac3, ms, t_default = _section_free("temperatures", comp1, (), temperatures)
     if t0_in is None:
         t0 = t_default
     else:
@@ -218,23 +254,29 @@ def as_quenched_profile(comp, quench, agitation="moderate", diameter_mm=None, th
     # carbon in austenite: the steel's carbon, or for hypereutectoid steels what the Acm line lets
     # the austenite hold at t0 (hardenability.austenite_carbon_pct; the fallback above 0.70 % C)
     c_steel = el(comp1, "C") * np.ones(n)
-    c = hardenability.austenite_carbon_pct(c_steel, t0, el(comp1, "Cr") * np.ones(n))
-    comp_aus = dict(comp1, C=c)
-    di = np.asarray(hardenability.di_mm(comp_aus, g), float) * np.ones(n)
+
+    def hardenability_part():
+        c_ = hardenability.austenite_carbon_pct(c_steel, t0, el(comp1, "Cr") * np.ones(n))
+        comp_aus_ = dict(comp1, C=c_)
+        di_ = np.asarray(hardenability.di_mm(comp_aus_, g), float) * np.ones(n)
+        # below 50 % martensite the fraction is read against the Maynier (1978) hardness of the
+        # non-martensitic products (structure_tempering.constituents with no martensite) at the
+        # rate of the slow end of the A255 curve (J = 50 mm, where the chain holds its hardness):
+        # one anchor per composition, so the fraction falls monotonically with the rate, as the hardness
+        rate_slow = np.broadcast_to(cooling.jominy_rate_c_s(DF_MAX_MM), (n, 1))
+        rest = structure_tempering.constituents({k: np.asarray(v, float)[:, None] for k, v in comp_aus_.items()},
+                                                np.zeros((n, 1)), rate_slow)
+        return (c_, di_, ih_hrc(c_)[:, None], hardenability.di_distance_scale(c_, di_)[:, None],
+                rest["x_b"] * rest["hv_b"] + rest["x_fp"] * rest["hv_fp"])
+
+    # of the composition, austenitizing temperature and grain size only: kept across sections
+    c, di, ih_c, di_scale, slow_hv = _section_free("hardenability", comp1, (t0, g), hardenability_part)
     # bar-to-Jominy equivalence on the chart-anchored effective rate (cooling.jominy_rate_factor)
     rate = rate_conduction * cooling.jominy_rate_factor()
     jmm = cooling.jominy_equivalent_mm(rate)
     # A255 curve read at the DI-consistent distance (hardenability.di_distance_scale)
-    hrc = ih_hrc(c)[:, None] / hardenability.dividing_factor(
-        di[:, None], hardenability.scaled_distance_mm(jmm, hardenability.di_distance_scale(c, di)[:, None]))
-    # below 50 % martensite the fraction is read against the Maynier (1978) hardness of the
-    # non-martensitic products (structure_tempering.constituents with no martensite) at the rate
-    # of the slow end of the A255 curve (J = 50 mm, where the chain holds its hardness): one
-    # anchor per composition, so the fraction falls monotonically with the rate, as the hardness
-    rate_slow = np.broadcast_to(cooling.jominy_rate_c_s(DF_MAX_MM), (n, 1))
-    rest = structure_tempering.constituents({k: np.asarray(v, float)[:, None] for k, v in comp_aus.items()},
-                                            np.zeros((n, 1)), rate_slow)
-    mart = martensite_pct_from_hardness(c[:, None], hrc, rest["x_b"] * rest["hv_b"] + rest["x_fp"] * rest["hv_fp"])
+    hrc = ih_c / hardenability.dividing_factor(di[:, None], hardenability.scaled_distance_mm(jmm, di_scale))
+    mart = martensite_pct_from_hardness(c[:, None], hrc, slow_hv)
     hv = _hrc_to_hv(hrc)
 
     # metallurgical warnings, each naming the states (the registered validity ranges: the

@@ -68,7 +68,7 @@ from ..routes.steps import describe
 from ..rules import cautions as cautions_mod
 from ..rules.cautions import check_context
 from ..states import scatter
-from ..states.expand import RESULT_COLUMNS, expand
+from ..states.expand import RESULT_COLUMNS, StatesColumns, Text, column_series, expand_columns
 from ..states.expand import structure_of as expand_structure
 from . import cost as cost_mod
 from .pareto import pareto_mask
@@ -110,42 +110,76 @@ def _follows_main(grade: np.ndarray, main: np.ndarray | None, param: np.ndarray)
     return len(np.unique(gm * len(n_v) + v)) == len(np.unique(gm))
 
 
-def _variant_keys(states: pd.DataFrame) -> np.ndarray:
-    """``grade|route[|other parameter values]`` per state (object array of str).
+def _variant_keys(states: pd.DataFrame, memo: dict | None = None) -> tuple[np.ndarray, np.ndarray]:
+    """``(keys, codes)``: ``grade|route[|other parameter values]`` per state (object array of
+    str) and the code of each state's key in order of first appearance (as ``pd.factorize``).
 
     Each column is read and factorized once over the whole table (not once per route
     family), each distinct combination's text written once; a value's text is
-    ``str`` of the value as numpy writes it, the same whichever rows it is read with."""
-    grade = states["grade"].to_numpy(dtype=object)
-    route = states["route"].to_numpy(dtype=object)
-    out = np.empty(len(states), dtype=object)
-    coded: dict = {}
+    ``str`` of the value as numpy writes it, the same whichever rows it is read with.
+    ``memo`` (a dict kept per structure digest of the table) keeps the codes of the columns
+    that are not model results and the keys of the route families none of whose columns is a
+    model result: those are the same at every section."""
+    memo = {} if memo is None else memo
+    coded = memo.setdefault("codes", {})
+    per_route = memo.setdefault("routes", {})
+    results = set(_result_parameters())
+    route_rows = memo.get("route_rows")
+    if route_rows is None:
+        route = states["route"].to_numpy(dtype=object)
+        # one assignment of a whole value: a memo shared by threads is never read half made
+        route_rows = memo["route_rows"] = {r: np.flatnonzero(route == r) for r in pd.unique(route)}
+    grade = memo.get("grade")
+    if grade is None:
+        grade = memo["grade"] = states["grade"].to_numpy(dtype=object)
+    fresh: dict = {}
 
     def codes_of(name, values=None):
-        if name not in coded:
+        store = fresh if name in results else coded
+        if name not in store:
             vals = states[name].to_numpy() if values is None else values
             codes, uniq = pd.factorize(vals, use_na_sentinel=False)
-            coded[name] = (np.asarray(codes, np.int64), np.asarray(uniq).astype(str).astype(object))
-        return coded[name]
+            store[name] = (np.asarray(codes, np.int64), np.asarray(uniq).astype(str).astype(object))
+        return store[name]
 
     codes_of("grade", grade)
-    for r in pd.unique(route):
-        idx = np.flatnonzero(route == r)
+    out = np.empty(len(states), dtype=object)
+    firsts, locals_ = [], []
+    for r, idx in route_rows.items():
         fam = fam_registry.get(r)
-        mp = fam.main_parameter if fam.main_parameter in states else None
-        main = codes_of(mp)[0][idx] if mp else None
-        # a parameter the grid sets from the main one (e.g. the austemper hold) does not split
-        others = [p for p in fam.parameters if p != fam.main_parameter and p in states
-                  and not _follows_main(grade[idx], main, codes_of(p)[0][idx])]
-        parts = [codes_of(c) for c in ["grade"] + others]
-        table = np.ascontiguousarray(np.column_stack([c[idx] for c, _ in parts]))
-        rows = table.view(np.dtype((np.void, table.dtype.itemsize * table.shape[1]))).ravel()
-        _, first, inv = np.unique(rows, return_index=True, return_inverse=True)
-        # order of the parts: grade, route, the other parameters
-        keys = np.array(["|".join([parts[0][1][row[0]], str(r)] + [parts[j][1][row[j]] for j in range(1, len(parts))])
-                         for row in table[first].tolist()], dtype=object)
-        out[idx] = keys[inv.reshape(-1)]
-    return out
+        cols = [fam.main_parameter] + list(fam.parameters)
+        hit = per_route.get(r)
+        if hit is None:
+            mp = fam.main_parameter if fam.main_parameter in states else None
+            main = codes_of(mp)[0][idx] if mp else None
+            # a parameter the grid sets from the main one (e.g. the austemper hold) does not split
+            others = [p for p in fam.parameters if p != fam.main_parameter and p in states
+                      and not _follows_main(grade[idx], main, codes_of(p)[0][idx])]
+            parts = [codes_of(c) for c in ["grade"] + others]
+            table = np.ascontiguousarray(np.column_stack([c[idx] for c, _ in parts]))
+            rows = table.view(np.dtype((np.void, table.dtype.itemsize * table.shape[1]))).ravel()
+            _, first, inv = np.unique(rows, return_index=True, return_inverse=True)
+            # order of the parts: grade, route, the other parameters
+            keys = np.array(["|".join([parts[0][1][row[0]], str(r)] + [parts[j][1][row[j]]
+                                                                        for j in range(1, len(parts))])
+                             for row in table[first].tolist()], dtype=object)
+            hit = (keys, first, inv.reshape(-1))
+            if not any(c in results for c in cols if c):
+                per_route[r] = hit
+        keys, first, inv = hit
+        out[idx] = keys[inv]
+        firsts.append(idx[first])
+        locals_.append((idx, inv))
+    # codes in order of first appearance over the whole table: a key names its route, so the
+    # keys of two routes never coincide
+    rank = np.empty(sum(len(f) for f in firsts), np.int64)
+    rank[np.argsort(np.concatenate(firsts), kind="stable")] = np.arange(len(rank))
+    vcode = np.empty(len(states), np.int64)
+    at = 0
+    for f, (idx, inv) in zip(firsts, locals_):
+        vcode[idx] = rank[at:at + len(f)][inv]
+        at += len(f)
+    return out, vcode
 
 
 def costed(states: pd.DataFrame, length_mm: float = 100.0, price_sheet: dict | None = None,
@@ -176,28 +210,12 @@ def _prepare_cached(diameter_mm, thickness_mm, length_mm, prices: tuple) -> pd.D
 
 @disk_frame      # kept in the user's cache directory, keyed by the arguments and all code and data
 def _prepare_table(diameter_mm, thickness_mm, length_mm, prices: tuple) -> pd.DataFrame:
-    st = expand(diameter_mm, thickness_mm)
+    st = expand_columns(diameter_mm, thickness_mm)
     d = None if thickness_mm is not None else float(diameter_mm)
+    if isinstance(st, StatesColumns):
+        return _prepared_from_columns(st, d, thickness_mm, float(length_mm), dict(prices) or None)
     df = costed(st, float(length_mm), dict(prices) or None, d, thickness_mm)
-    # the variant keys, main values and row order depend only on the states (grade, route,
-    # window parameters, corner), the same at every section: kept per structure digest
-    digest = expand_structure(st)
-    key = None
-    if digest is not None:
-        # a window parameter that is also a model result (the induction case depth: the depth
-        # reached) depends on the section: its values join the key
-        h = hashlib.blake2b(digest_size=20)
-        for c in _result_parameters():
-            if c in df:
-                h.update(c.encode() + np.ascontiguousarray(df[c].to_numpy(float)).tobytes())
-        key = (digest, tuple(df.columns), h.hexdigest())
-    hit = _LAYOUTS.get(key) if key is not None else None
-    if hit is None:
-        hit = _layout(df)
-        if key is not None:
-            evict_oldest(_LAYOUTS, 4)
-            _LAYOUTS[key] = hit
-    variant, main, vcode, order = hit
+    variant, main, vcode, order = _kept_layout(df, expand_structure(st))
     df["variant"] = variant.copy()
     df["main_value"] = main.copy()
     df["variant_code"] = vcode.copy()
@@ -208,6 +226,83 @@ def _prepare_table(diameter_mm, thickness_mm, length_mm, prices: tuple) -> pd.Da
         out["n_notes"] = per[codes]
     else:
         out["n_notes"] = [0 if not x else x.count(" | ") + 1 for x in out["notes"]]
+    return _with_section(out, d, thickness_mm, length_mm)
+
+
+#: the columns :func:`costed` adds, in order
+COST_COLUMNS = ("relative_cost", "mass_kg", "part_cost", "price_source")
+
+
+def _kept_layout(df, digest) -> tuple:
+    """:func:`_layout` of a costed states table (or of :class:`StatesColumns`), kept per
+    structure digest and the values of the result parameters."""
+    # the variant keys, main values and row order depend only on the states (grade, route,
+    # window parameters, corner), the same at every section: kept per structure digest
+    key = None
+    if digest is not None:
+        # a window parameter that is also a model result (the induction case depth: the depth
+        # reached) depends on the section: its values join the key
+        h = hashlib.blake2b(digest_size=20)
+        for c in _result_parameters():
+            if c in df:
+                h.update(c.encode() + np.ascontiguousarray(df[c].to_numpy(float)).tobytes())
+        cols = tuple(df.columns)
+        if isinstance(df, StatesColumns):
+            cols += COST_COLUMNS
+        key = (digest, cols, h.hexdigest())
+    hit = _LAYOUTS.get(key) if key is not None else None
+    if hit is None:
+        hit = _layout(df, digest)
+        if key is not None:
+            evict_oldest(_LAYOUTS, 4)
+            _LAYOUTS[key] = hit
+    return hit
+
+
+def _prepared_from_columns(st: StatesColumns, d, thickness_mm, length_mm: float, price_sheet) -> pd.DataFrame:
+    """The prepared table from the expansion's columns: each column taken in the layout's
+    order once (numeric columns by numpy, text columns as codes), the cost columns computed
+    on the ordered arrays; the same frame as costing, laying out and taking the states table
+    (tests/test_speed_equivalence.py)."""
+    variant, main, vcode, order = _kept_layout(st, st.digest)
+    data = {}
+    for k, v in st.cols.items():
+        data[k] = column_series(k, Text(v.codes[order], v.uniques)) if isinstance(v, Text) else np.asarray(v)[order]
+    data["state_key"] = pd.Series(st.state_key.take(order))
+    cost = _cost_columns(data["relative_price"], st.cols["grade"], order, data["route"], data["family"],
+                         data["density_g_cm3"], length_mm, price_sheet, d, thickness_mm)
+    data.update(cost)
+    data["variant"] = variant[order]
+    data["main_value"] = main[order]
+    data["variant_code"] = vcode[order]
+    notes = st.cols["notes"]
+    per = np.array([0 if not x else x.count(" | ") + 1 for x in notes.uniques], dtype=np.int64)
+    codes = notes.codes[order]
+    data["n_notes"] = (per[codes] if len(per) and not np.any(codes < 0)
+                       else [0 if not x else x.count(" | ") + 1 for x in data["notes"]])
+    return _with_section(pd.DataFrame(data, copy=False), d, thickness_mm, length_mm)
+
+
+def _cost_columns(price, grade: Text, order, route, family, density, length_mm, price_sheet, d, thickness_mm
+                  ) -> dict:
+    """The columns of :func:`costed` over arrays in the prepared order (``grade`` the
+    expansion's codes, taken by ``order``)."""
+    price = np.asarray(price, float).copy()
+    src = np.full(len(price), "catalogue (indicative)", dtype=object)
+    price_sheet = cost_mod.check_price_sheet(price_sheet)
+    if price_sheet:
+        gcodes = grade.codes[order]
+        where = {g: i for i, g in enumerate(grade.uniques)}
+        for gid, p in price_sheet.items():
+            m = gcodes == where.get(gid, -2)
+            price[m] = p
+            src[m] = "price sheet"
+    rel = cost_mod.relative_cost_per_kg(price, route.to_numpy(dtype=object), family.to_numpy(dtype=object))
+    mass = cost_mod.part_mass_kg(np.asarray(density, float), d, thickness_mm, length_mm)
+    return {"relative_cost": rel, "mass_kg": mass, "part_cost": rel * mass, "price_source": src}
+
+
+def _with_section(out: pd.DataFrame, d, thickness_mm, length_mm) -> pd.DataFrame:
     out.attrs["section"] = {"diameter_mm": d, "thickness_mm": thickness_mm, "length_mm": float(length_mm)}
     return out
 
@@ -223,27 +318,41 @@ def _result_parameters() -> list:
     return sorted({p for f in fam_registry.available() for p in f.parameters if p in RESULT_COLUMNS})
 
 
-def _layout(df: pd.DataFrame) -> tuple:
+#: structure digest -> the section-independent parts of :func:`_layout` (a few recent ones)
+_LAYOUT_PARTS: dict = {}
+
+
+def _layout(df: pd.DataFrame, digest: str | None = None) -> tuple:
     """``(variant keys, main values, variant codes, row order)`` of a costed states table:
     the order used by rank(), the nominal block sorted by variant and main value, then the
     lean and the rich blocks in the same state order (numpy index arithmetic on codes).
-    Reads only the columns that do not depend on the section."""
-    variant = _variant_keys(df)
-    route = df["route"].to_numpy(dtype=object)
+    ``digest``: the table's structure digest (:func:`selector.states.expand.structure_of`),
+    under which the parts that do not depend on the section are kept (the column codes, the
+    keys of the route families with no model result among their columns, the rank of the
+    state keys and the rows of each corner)."""
+    memo = _LAYOUT_PARTS.get(digest) if digest is not None else None
+    if memo is None:
+        memo = {}
+        if digest is not None:
+            evict_oldest(_LAYOUT_PARTS, 4)
+            _LAYOUT_PARTS[digest] = memo
+    variant, vcode = _variant_keys(df, memo)
     main = np.full(len(df), np.nan)
-    for r in pd.unique(route):
+    for r, idx in memo["route_rows"].items():
         mp = _main_param(r)
         if mp and mp in df:
-            m_r = route == r
-            main[m_r] = df[mp].to_numpy()[m_r].astype(float)
-    vcode = pd.factorize(pd.Series(variant, dtype=object))[0]
-    corner = df["corner"].to_numpy(dtype=object)
-    key_rank = pd.factorize(df["state_key"], sort=True)[0]       # lexicographic rank of state_key
-    nom_idx = np.flatnonzero(corner == "nominal")
+            main[idx] = df[mp].to_numpy()[idx].astype(float)
+    ranks = memo.get("key_rank")
+    if ranks is None:
+        corner = df["corner"].to_numpy(dtype=object)
+        ranks = memo["key_rank"] = (pd.factorize(df["state_key"], sort=True)[0],    # lexicographic rank
+                                    {c: np.flatnonzero(corner == c) for c in ("nominal", "lean", "rich")})
+    key_rank, rows = ranks
+    nom_idx = rows["nominal"]
     nom_order = nom_idx[np.lexsort((key_rank[nom_idx], main[nom_idx], vcode[nom_idx]))]
     take = [nom_order]
     for c in ("lean", "rich"):
-        idx = np.flatnonzero(corner == c)
+        idx = rows[c]
         pos = np.full(int(key_rank.max()) + 1, -1, dtype=np.int64)
         pos[key_rank[idx]] = idx
         blk = pos[key_rank[nom_order]]
@@ -252,7 +361,7 @@ def _layout(df: pd.DataFrame) -> tuple:
         take.append(blk)
     order = np.concatenate(take)
     m = len(nom_order)
-    keys = df["state_key"].to_numpy()[order]
+    keys = key_rank[order]            # equal ranks are equal state keys
     if len(order) != 3 * m or not (np.array_equal(keys[:m], keys[m:2 * m]) and np.array_equal(keys[:m], keys[2 * m:])):
         raise RuntimeError("states table is not aligned by composition corner")
     return variant, main, vcode, order
@@ -534,19 +643,15 @@ def rank(prepared: pd.DataFrame, targets: dict | None = None, objectives=DEFAULT
     if len(starts) == 0:
         return _empty(t)
     pick = _representative(starts, ends, nom["n_notes"].to_numpy())
-    cand = nom.iloc[pick].copy()
+    cand = nom.iloc[pick]              # a new frame (copy-on-write): nom is never changed through it
     cand.attrs = {}      # pandas deep-copies attrs on every operation: ~30 % of a re-rank
-    cand["nominal"] = nominal[pick]
-    cand["p_meet"] = p[pick]
-    cand["min_p_meet"] = min_p
-    cand["robust"] = likely[pick]
-    cand["corners_meet"] = corners[pick]
     has_window = np.array([tiers[k][1] for k in tier_no], bool)
-    cand["window_min"] = np.where(has_window, main[starts], np.nan)
-    cand["window_max"] = np.where(has_window, main[ends], np.nan)
-    cand["robust_window_min"] = np.where(has_window & likely[pick], main[starts], np.nan)
-    cand["robust_window_max"] = np.where(has_window & likely[pick], main[ends], np.nan)
-    cand["feasible_min"], cand["feasible_max"] = main[starts], main[ends]
+    add = {"nominal": nominal[pick], "p_meet": p[pick], "min_p_meet": min_p, "robust": likely[pick],
+           "corners_meet": corners[pick], "window_min": np.where(has_window, main[starts], np.nan),
+           "window_max": np.where(has_window, main[ends], np.nan),
+           "robust_window_min": np.where(has_window & likely[pick], main[starts], np.nan),
+           "robust_window_max": np.where(has_window & likely[pick], main[ends], np.nan),
+           "feasible_min": main[starts], "feasible_max": main[ends]}
     subs = []
     for v, k, ok_w in zip(vcode[starts], tier_no, has_window):
         if not ok_w:
@@ -555,8 +660,25 @@ def rank(prepared: pd.DataFrame, targets: dict | None = None, objectives=DEFAULT
         s_all, e_all = all_runs[k]
         mine = vcode[s_all] == v
         subs.append("; ".join(_range_text(main[a], main[b]) for a, b in zip(s_all[mine], e_all[mine])))
-    cand["sub_windows"] = subs
-    return _finish(cand, t, objectives, ctx, allowed)
+    add["sub_windows"] = subs
+    return _finish(_with_columns(cand, add), t, objectives, ctx, allowed)
+
+
+def _with_columns(frame: pd.DataFrame, columns: dict) -> pd.DataFrame:
+    """``frame`` with ``columns`` set as by assigning them one by one (``frame[name] =
+    value``: a column of that name replaced in place, the others added at the end in order,
+    the same dtypes), with one concatenation instead of one insertion per column."""
+    new = {k: v for k, v in columns.items() if k not in frame.columns}
+    out = frame
+    if new:
+        add = pd.DataFrame({k: (np.full(len(frame), v) if np.ndim(v) == 0 and not isinstance(v, str) else v)
+                            for k, v in new.items()}, index=frame.index)
+        out = pd.concat([frame, add], axis=1)
+        out.attrs = dict(frame.attrs)
+    for k, v in columns.items():
+        if k not in new:
+            out[k] = v
+    return out
 
 
 def _range_text(lo, hi) -> str:
@@ -658,11 +780,11 @@ def p_meet_step(p: np.ndarray, robust: np.ndarray) -> np.ndarray:
 def _finish(cand: pd.DataFrame, t: dict, objectives, service: dict | None = None, allowed=()) -> pd.DataFrame:
     cand = cand.reset_index(drop=True)
     lists = cautions_mod.cautions_for(cand, **(service or {}))
-    cand["cautions"] = ["; ".join(d["title"] for d in row) for row in lists]
+    cautions = ["; ".join(d["title"] for d in row) for row in lists]
     order = {s_: i for i, s_ in enumerate(cautions_mod.SEVERITIES)}
     live = [[d for d in row if d["code"] not in allowed] for row in lists]
-    cand["severity"] = [max((d["severity"] for d in row), key=order.get, default="") for row in live]
-    cand["avoid"] = [";".join(d["code"] for d in row if d["severity"] == "avoid") for row in live]
+    severity = [max((d["severity"] for d in row), key=order.get, default="") for row in live]
+    avoid = [";".join(d["code"] for d in row if d["severity"] == "avoid") for row in live]
     routes, texts, wparam, wtext = [], [], [], []
     need = {"route", "window_min", "window_max", "robust", "robust_window_min", "robust_window_max",
             "feasible_min", "feasible_max", "sub_windows"}
@@ -677,35 +799,33 @@ def _finish(cand: pd.DataFrame, t: dict, objectives, service: dict | None = None
         texts.append(text)
         wparam.append(fam.main_parameter or "")
         wtext.append(_window_text(r))
-    cand["route_family"] = cand["route"]
-    cand["route"] = routes
-    cand["route_text"] = texts
-    cand["window_parameter"] = wparam
-    cand["window"] = wtext
+    add = {"cautions": cautions, "severity": severity, "avoid": avoid, "route_family": cand["route"],
+           "route": routes, "route_text": texts, "window_parameter": wparam, "window": wtext}
     for col in ("p_meet", "corners_meet"):
         if col not in cand:
-            cand[col] = np.nan
-    cand["margin_bands"] = _margin_bands(cand, t)
+            add[col] = np.nan
+    add["margin_bands"] = _margin_bands(cand, t)
+    cand = _with_columns(cand, add)
     vals = np.column_stack([cand[c].to_numpy(float) for c, _ in objectives])
-    clean = (cand["avoid"] == "").to_numpy()
+    clean = np.array([a == "" for a in avoid], bool)
     pool = clean if clean.any() else np.ones(len(cand), bool)
     par = np.zeros(len(cand), bool)
     if pool.any():
         par[pool] = pareto_mask(vals[pool], [s_ == "max" for _, s_ in objectives])
-    cand["pareto"] = par
     m = margins(cand, t)
-    for c in m.columns:
-        cand[c] = m[c].to_numpy()
-    cand["_avoid"] = ~clean
-    cand["_step"] = p_meet_step(cand["p_meet"].to_numpy(float), cand["robust"].to_numpy(bool))
-    # at equal cost and p_meet step, a candidate whose worst live caution is milder comes first
-    cand["_sev"] = cand["severity"].map(order).fillna(-1).to_numpy(float)
-    cand = cand.sort_values(["_avoid", "robust", "_step", "part_cost", "_sev", "p_meet", "elongation_pct",
-                             "yield_mpa"],
-                            ascending=[True, False, False, True, True, False, False, False],
-                            kind="stable", na_position="last").reset_index(drop=True)
-    cand = cand.drop(columns=["_avoid", "_step", "_sev"])
-    cand["rank"] = np.arange(1, len(cand) + 1)
+    cand = _with_columns(cand, {"pareto": par, **{c: m[c].to_numpy() for c in m.columns}})
+    # the order of sorting the table by these keys, read from the keys alone; at equal cost and
+    # p_meet step, a candidate whose worst live caution is milder comes first
+    keys = pd.DataFrame({"_avoid": ~clean, "robust": cand["robust"].to_numpy(),
+                         "_step": p_meet_step(cand["p_meet"].to_numpy(float), cand["robust"].to_numpy(bool)),
+                         "_sev": np.array([order.get(s_, -1) for s_ in severity], float),
+                         **{c: cand[c].to_numpy() for c in ("part_cost", "p_meet", "elongation_pct", "yield_mpa")}})
+    ranked = keys.sort_values(["_avoid", "robust", "_step", "part_cost", "_sev", "p_meet", "elongation_pct",
+                               "yield_mpa"],
+                              ascending=[True, False, False, True, True, False, False, False],
+                              kind="stable", na_position="last").index.to_numpy()
+    cand = cand.take(ranked).reset_index(drop=True)
+    cand = _with_columns(cand, {"rank": np.arange(1, len(cand) + 1)})
     cols = OUTPUT_COLUMNS + list(m.columns) + [c for c in cand.columns
                                                if c not in OUTPUT_COLUMNS and c not in m.columns]
     return cand[[c for c in cols if c in cand.columns]]

@@ -21,7 +21,7 @@ from ..catalogue.grades import default_catalogue
 from ..errors import NotModelledError
 from ..routes import families as fam_registry
 from ..routes.evaluate import BAND_KEYS, finish, section_args
-from ..routes.families.base import Batch
+from ..routes.families.base import Batch, distinct_rows
 
 CORNERS = ("lean", "nominal", "rich")
 
@@ -89,15 +89,22 @@ def _catalogue_blocks(family_name: str, corners: tuple):
     return _family_blocks(fam, grades, corners)
 
 
-def _family_batch(fam, grades, diameter_mm, thickness_mm, corners):
-    """One :class:`Batch` of every grade × grid point × corner of ``fam`` (``grades``
-    None: the catalogue, from :func:`_catalogue_blocks`)."""
+def _blocks_of(fam, grades, corners):
+    """``(blocks, kept)``: :func:`_family_blocks` of ``fam`` over ``grades`` (None: the
+    catalogue, the blocks kept by :func:`_catalogue_blocks`, ``kept`` True)."""
     if grades is None and fam_registry.get(fam.name) is fam:
-        blocks = _catalogue_blocks(fam.name, tuple(corners))
-    else:
-        cat_grades = default_catalogue().grades.values() if grades is None else grades
-        blocks = _family_blocks(fam, [g for g in cat_grades if fam.name in g.routes and
-                                      (not fam.families or g.family in fam.families)], corners)
+        return _catalogue_blocks(fam.name, tuple(corners)), True
+    cat_grades = default_catalogue().grades.values() if grades is None else grades
+    return _family_blocks(fam, [g for g in cat_grades if fam.name in g.routes and
+                                (not fam.families or g.family in fam.families)], corners), False
+
+
+def _family_batch(fam, grades, diameter_mm, thickness_mm, corners, blocks=None):
+    """One :class:`Batch` of every grade × grid point × corner of ``fam`` (``grades``
+    None: the catalogue, from :func:`_catalogue_blocks`; ``blocks``: those of
+    :func:`_blocks_of`, when the caller has them)."""
+    if blocks is None:
+        blocks = _blocks_of(fam, grades, corners)[0]
     if blocks is None:
         return None
     glist, gidx, comp_arr, par, state_no, corner_col = blocks
@@ -220,14 +227,12 @@ def note_codes(notes, n: int, texts: dict) -> np.ndarray:
     rows[st, np.arange(len(st)) - start[st]] = mj
     has = counts > 0
     sub = np.ascontiguousarray(rows[has])
-    uniq, inv = np.unique(sub.view(np.dtype((np.void, sub.dtype.itemsize * sub.shape[1]))).ravel(),
-                          return_inverse=True)
-    first = np.unique(inv.reshape(-1), return_index=True)[1]
-    code_of = np.empty(len(uniq), np.int64)
+    first, inv = distinct_rows(sub)
+    code_of = np.empty(len(first), np.int64)
     for u, row in enumerate(sub[first].tolist()):
         text = " | ".join([msgs[j] for j in row if j >= 0])
         code_of[u] = texts.setdefault(text, len(texts))
-    out[has] = code_of[inv.reshape(-1)]
+    out[has] = code_of[inv]
     return out
 
 
@@ -272,6 +277,10 @@ def _series(name: str, v):
     if not isinstance(v, Text):
         return v
     return v.series("object" if name == "notes" else "str")
+
+
+#: public name of :func:`_series` (the selection builds its prepared table from the columns)
+column_series = _series
 
 
 def _frame(cols: dict, notes_texts: dict) -> pd.DataFrame:
@@ -330,53 +339,140 @@ def _concat(parts: list, n: int) -> dict | None:
     return out
 
 
-def expand_states(diameter_mm: float | None = 25.0, thickness_mm: float | None = None, grades=None,
-                  families=None) -> pd.DataFrame:
-    """States table of ``families`` (default: every modelled route family) over
-    ``grades`` (default: the catalogue) at one section; not cached."""
-    d, t = section_args(diameter_mm, thickness_mm)
+class StatesColumns:
+    """The states table of one section as columns (name -> numeric ndarray or :class:`Text`,
+    ``notes`` a :class:`Text`, every column of :data:`RESULT_COLUMNS`), its structure digest
+    (:func:`structure_of`) and its ``state_key`` column: the form the selection reads, without
+    building the DataFrame (:meth:`frame` builds the table of :func:`expand_states`).
+    ``view[name]`` is the column as that table holds it (a Series); treat as read-only."""
+
+    __slots__ = ("cols", "digest", "state_key", "n")
+
+    def __init__(self, cols: dict, digest: str, state_key):
+        self.cols = cols
+        self.digest = digest
+        self.state_key = state_key
+        self.n = len(cols["state"])
+
+    def __len__(self) -> int:
+        return self.n
+
+    def __contains__(self, name) -> bool:
+        return name in self.cols or name == "state_key"
+
+    @property
+    def columns(self) -> list:
+        return list(self.cols) + ["state_key"]
+
+    def __getitem__(self, name) -> pd.Series:
+        if name == "state_key":
+            return pd.Series(self.state_key)
+        return pd.Series(_series(name, self.cols[name]))
+
+    def frame(self) -> pd.DataFrame:
+        """The states table (as :func:`expand_states` returns it)."""
+        df = pd.DataFrame({k: _series(k, v) for k, v in self.cols.items()})
+        df["state_key"] = pd.Series(self.state_key.copy())
+        evict_oldest(_STRUCTURES, 64)
+        # never keeps a table alive; the notes as codes into their distinct texts beside it
+        _STRUCTURES[id(df)] = (weakref.ref(df), self.digest, self.cols["notes"])
+        return df
+
+
+def _expand_built(d, t, grades=None, families=None):
+    """:class:`StatesColumns` of ``families`` over ``grades`` at one section; a DataFrame
+    (the states table) where a column changes kind across families."""
     fams = fam_registry.available() if families is None else families
     texts: dict = {}
-    parts = []
+    parts, kept = [], []
     for f in fams:
-        built = _family_batch(f, grades or None, d, t, CORNERS)
+        blocks, is_kept = _blocks_of(f, grades or None, CORNERS)
+        kept.append(blocks if is_kept else _FRESH)
+        built = _family_batch(f, grades or None, d, t, CORNERS, blocks)
         if built is None:
             continue
         batch, state_no, corner = built
         parts.append(family_columns(f, batch, state_no, Text.of(corner), texts))
     n = sum(len(c["state"]) for c in parts)
     cols = _concat(parts, n)
-    digest = None
     if cols is None:
         df = pd.concat([_frame(c, texts) for c in parts], ignore_index=True, sort=False)
-    else:
-        digest = _structure_digest(cols)
-        cols["notes"] = Text(cols["notes"], list(texts))
-        df = pd.DataFrame({k: _series(k, v) for k, v in cols.items()})
+        for col in RESULT_COLUMNS:
+            if col not in df:
+                df[col] = np.nan
+        df["case_depth_mm"] = df["case_depth_mm"].fillna(0.0)
+        df["state_key"] = pd.Series((df["grade"] + "|" + df["route"] + "|" + df["state"].astype(str)).array)
+        return df
+    digest = _kept_digest(cols, kept)
+    cols["notes"] = Text(cols["notes"], list(texts))
     for col in RESULT_COLUMNS:
-        if col not in df:
-            df[col] = np.nan
-    df["case_depth_mm"] = df["case_depth_mm"].fillna(0.0)
+        if col not in cols:
+            cols[col] = np.full(n, np.nan)
+    cd = cols["case_depth_mm"]
+    if not isinstance(cd, Text) and np.asarray(cd).dtype.kind == "f":
+        cols["case_depth_mm"] = np.where(np.isnan(cd), 0.0, cd)          # as fillna(0.0)
+    else:
+        cols["case_depth_mm"] = _series("case_depth_mm", cd).fillna(0.0).to_numpy()
     # a key per state (grade, route, parameter point), shared by its corners; the same at
-    # every section (written once per structure, a copy of the kept column after that)
-    kept = _STATE_KEYS.get(digest) if digest is not None else None
+    # every section (written once per structure, the kept column after that)
+    kept = _STATE_KEYS.get(digest)
     if kept is None:
-        kept = (df["grade"] + "|" + df["route"] + "|" + df["state"].astype(str)).array
-        if digest is not None:
-            evict_oldest(_STATE_KEYS, 8)
-            _STATE_KEYS[digest] = kept
-    df["state_key"] = pd.Series(kept.copy())
-    if digest is not None:
-        evict_oldest(_STRUCTURES, 64)
-        _STRUCTURES[id(df)] = (weakref.ref(df), digest)     # never keeps a table alive
-    return df
+        g, r = _series("grade", cols["grade"]), _series("route", cols["route"])
+        kept = (g + "|" + r + "|" + pd.Series(cols["state"]).astype(str)).array
+        evict_oldest(_STATE_KEYS, 8)
+        _STATE_KEYS[digest] = kept
+    return StatesColumns(cols, digest, kept)
+
+
+def expand_states(diameter_mm: float | None = 25.0, thickness_mm: float | None = None, grades=None,
+                  families=None) -> pd.DataFrame:
+    """States table of ``families`` (default: every modelled route family) over
+    ``grades`` (default: the catalogue) at one section; not cached."""
+    d, t = section_args(diameter_mm, thickness_mm)
+    built = _expand_built(d, t, grades, families)
+    return built.frame() if isinstance(built, StatesColumns) else built
+
+
+@functools.lru_cache(maxsize=8)
+def _columns_cached(diameter_mm, thickness_mm):
+    return _expand_built(diameter_mm, thickness_mm)
+
+
+def expand_columns(diameter_mm: float | None = 25.0, thickness_mm: float | None = None):
+    """The states table of :func:`expand` as :class:`StatesColumns` (cached per section; the
+    selection reads it without building the DataFrame), or the DataFrame itself where the
+    table cannot be held as columns."""
+    return _columns_cached(*section_args(diameter_mm, thickness_mm))
 
 
 #: per structure digest: the state_key column (see :func:`structure_of`)
 _STATE_KEYS: dict = {}
-#: id(table) -> (weak reference to the table, structure digest) of the recent tables of
-#: :func:`expand_states`
+#: id(table) -> (weak reference to the table, structure digest, notes as :class:`Text`) of the
+#: recent tables of :func:`expand_states`
 _STRUCTURES: dict = {}
+
+
+#: (ids of the kept blocks of every family, column names) -> (the blocks, the structure digest)
+_DIGESTS: dict = {}
+#: marks blocks built for the call (not kept): no digest is kept for them
+_FRESH = object()
+
+
+def _kept_digest(cols: dict, kept: list) -> str | None:
+    """:func:`_structure_digest` of ``cols``, kept per the blocks of the catalogue the columns
+    were built from (every column it reads comes from those blocks: the same digest at every
+    section); computed where a family's blocks are not the kept ones.  The memo holds the
+    blocks, so their ids cannot be reused by other objects while it names them."""
+    if any(b is _FRESH for b in kept):
+        return _structure_digest(cols)
+    key = (tuple(id(b) for b in kept), tuple(cols))
+    hit = _DIGESTS.get(key)
+    if hit is not None and all(a is b for a, b in zip(hit[0], kept)):
+        return hit[1]
+    digest = _structure_digest(cols)
+    evict_oldest(_DIGESTS, 8)
+    _DIGESTS[key] = (tuple(kept), digest)
+    return digest
 
 
 def _structure_digest(cols: dict) -> str | None:
@@ -411,7 +507,8 @@ def structure_of(states: pd.DataFrame) -> str | None:
 
 @functools.lru_cache(maxsize=16)
 def _expand_cached(diameter_mm, thickness_mm) -> pd.DataFrame:
-    return expand_states(diameter_mm, thickness_mm)
+    built = _columns_cached(diameter_mm, thickness_mm)
+    return built.frame() if isinstance(built, StatesColumns) else built
 
 
 def expand(diameter_mm: float | None = 25.0, thickness_mm: float | None = None) -> pd.DataFrame:
@@ -420,7 +517,12 @@ def expand(diameter_mm: float | None = 25.0, thickness_mm: float | None = None) 
     return _expand_cached(*section_args(diameter_mm, thickness_mm))
 
 
-expand.cache_clear = _expand_cached.cache_clear
+def _clear_expand_caches():
+    _expand_cached.cache_clear()
+    _columns_cached.cache_clear()
+
+
+expand.cache_clear = _clear_expand_caches
 
 
 # --------------------------------------------------------------------------- narrow, streamed

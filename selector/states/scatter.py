@@ -90,7 +90,7 @@ from ..routes import bands
 from ..routes import families as fam_registry
 from ..routes.evaluate import STEEL_SCALE_FAMILIES
 from ..routes.families.base import Batch
-from .expand import _family_batch, expand, structure_of
+from .expand import StatesColumns, _family_batch, expand_columns, structure_of
 
 #: draws per state (at least 200: standard error of p_meet <= 0.035)
 N_DRAWS = 200
@@ -269,8 +269,8 @@ def _family_effects(fam, d, t, nominal: dict, plan=None):
 _PLANS: dict = {}
 
 
-def _structure_plan(states: pd.DataFrame, d, t) -> dict:
-    digest = structure_of(states)
+def _structure_plan(states, d, t) -> dict:
+    digest = states.digest if isinstance(states, StatesColumns) else structure_of(states)
     hit = _PLANS.get(digest) if digest is not None else None
     if hit is not None:
         return hit
@@ -299,7 +299,7 @@ CORNER_NAMES = ("nominal", "lean", "rich")
 def _effect_blocks(diameter_mm: float | None, thickness_mm: float | None) -> dict:
     """The sensitivities of :func:`effects` as plain arrays, one block per route family:
     ``f<i>_keys`` (m_i,) state keys, ``f<i>_elements`` (K_i,), ``f<i>_a_<prop>`` (m_i, K_i)."""
-    states = expand(diameter_mm, thickness_mm)
+    states = expand_columns(diameter_mm, thickness_mm)      # columns: no DataFrame is built
     sp = _structure_plan(states, diameter_mm, thickness_mm)
     vals = {c: {p: states[p].to_numpy(float)[sp["rows"][c]] for p in SAMPLED} for c in CORNER_NAMES}
     nominal = dict(vals["nominal"])

@@ -71,8 +71,8 @@ from ...models import (bath_quench, conversions, cooling, correlations, phase_ha
 from ...models.composition import el
 from ...models.martensite import ih_hrc, martensite_hardness_hrc
 from ..model_inputs import uses
-from .base import Batch, RouteFamily, product_grid
-from .quench_temper import _by_class, _yield, correlation_class, default_austenitize_c
+from .base import Batch, RouteFamily, distinct_rows, product_grid
+from .quench_temper import _by_class, _yield, batch_class, default_austenitize_c
 
 STEEL = ("carbon_steel", "alloy_steel")
 #: the salt bath is taken as strongly agitated oil (see the module docstring)
@@ -131,6 +131,22 @@ def _states_comp(comp, n):
     return {k: np.broadcast_to(np.asarray(v, float), (n,)) for k, v in comp.items()}
 
 
+def _centre_paths(aust, bath, diameter_mm, thickness_mm, n) -> np.ndarray:
+    """:func:`bath_quench.path_temperature_c` at the centre of ``n`` states, computed once per
+    distinct (austenitizing temperature, bath, size): the path does not depend on the
+    composition (row-wise: the numbers of the per-state call)."""
+    cols = [aust, bath] + [np.broadcast_to(np.asarray(np.nan if v is None else v, float), (n,))
+                           for v in (diameter_mm, thickness_mm)]
+    key = np.ascontiguousarray(np.column_stack(cols))
+    first, inv = distinct_rows(key.view(np.int64))
+    if len(first) == n:
+        return bath_quench.path_temperature_c(_h_w_m2k(), TIMES_S, diameter_mm, thickness_mm, 0.0, aust, bath)
+    pick = lambda v: None if v is None else np.broadcast_to(np.asarray(v, float), (n,))[first]  # noqa: E731
+    temp = bath_quench.path_temperature_c(_h_w_m2k(), TIMES_S, pick(diameter_mm), pick(thickness_mm), 0.0,
+                                          aust[first], bath[first])
+    return temp[inv]
+
+
 def products_to_bath(comp, austenitize_c, bath_c, diameter_mm=None, thickness_mm=None):
     """Ferrite + pearlite formed at the centre before it reaches the bath, and the Scheil
     start sum, for ``n`` states (Li et al. 1998 kinetics, Scheil additivity).
@@ -155,7 +171,7 @@ def products_to_bath(comp, austenitize_c, bath_c, diameter_mm=None, thickness_mm
     n = max(len(aust), len(bath))
     aust, bath = np.broadcast_to(aust, (n,)), np.broadcast_to(bath, (n,))
     c = _states_comp(comp, n)
-    temp = bath_quench.path_temperature_c(_h_w_m2k(), TIMES_S, diameter_mm, thickness_mm, 0.0, aust, bath)
+    temp = _centre_paths(aust, bath, diameter_mm, thickness_mm, n)
     mid = 0.5 * (temp[:, 1:] + temp[:, :-1])
     moving = mid > bath[:, None] + AT_BATH_C
     with np.errstate(over="ignore", divide="ignore", invalid="ignore"):
@@ -344,7 +360,7 @@ class _BathRoute(RouteFamily):
                 "over": section > limit, "notes": notes}
 
     def _finish(self, batch, c, hv, temper_c):
-        cls = correlation_class(batch.attr("family"))
+        cls = batch_class(batch)
         uts = conversions.hv_to_uts_mpa(hv)
         res = {"hardness_hv": hv, "surface_hardness_hv": hv, "center_hardness_hv": hv,
                "uts_mpa": uts, "yield_mpa": _yield(uts, temper_c, cls),

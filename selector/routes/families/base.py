@@ -25,6 +25,7 @@ from dataclasses import dataclass
 from typing import Mapping, Sequence
 
 import numpy as np
+import pandas as pd
 
 from ...catalogue.grades import Grade
 from ...errors import RouteError
@@ -86,12 +87,46 @@ def at_position(profile: np.ndarray, positions: Sequence[float], where: np.ndarr
     from 1 to 0) at r/R = ``where`` (n,)."""
     pos = np.asarray(positions, float)
     order = np.argsort(pos)
-    pos, prof = pos[order], np.asarray(profile)[:, order]
+    pos = pos[order]
+    prof = np.asarray(profile)
     w = np.asarray(where, float)
     j = np.clip(np.searchsorted(pos, w) - 1, 0, len(pos) - 2)
     t = (w - pos[j]) / (pos[j + 1] - pos[j])
     rows = np.arange(prof.shape[0])
-    return prof[rows, j] * (1 - t) + prof[rows, j + 1] * t
+    # the two neighbouring columns read in place (no reordered copy of the profile)
+    return prof[rows, order[j]] * (1 - t) + prof[rows, order[j + 1]] * t
+
+
+#: fixed odd multipliers of the row hash of :func:`distinct_rows` (any fixed values do: every
+#: grouping is checked against the rows themselves)
+_ROW_HASH = np.random.default_rng(20261203).integers(1, 2**63, size=64, dtype=np.uint64) | np.uint64(1)
+
+
+def distinct_rows(rows: np.ndarray) -> tuple:
+    """``(first, inverse)`` of the distinct rows of a 2-D int64 array: the row number of each
+    distinct row's first appearance, and each row's distinct row (``rows[first][inverse]``
+    equals ``rows``).  Rows are grouped by a 64-bit hash of their values (hashing, not sorting
+    the rows) and the grouping is checked against the rows; on a hash collision, by sorting.
+
+    >>> distinct_rows(np.array([[1, 2], [3, 4], [1, 2]]))[1].tolist()
+    [0, 1, 0]
+    """
+    rows = np.ascontiguousarray(rows, np.int64)
+    k = rows.shape[1]
+    if 0 < k <= len(_ROW_HASH):
+        with np.errstate(over="ignore"):
+            h = (rows.view(np.uint64) * _ROW_HASH[:k]).sum(axis=1, dtype=np.uint64)
+        inv, _ = pd.factorize(h)
+        inv = np.asarray(inv, np.int64)
+        first = np.unique(inv, return_index=True)[1]
+        if np.array_equal(rows[first][inv], rows):
+            return first, inv
+    _, first, inv = np.unique(rows.view(np.dtype((np.void, rows.dtype.itemsize * k))).ravel(),
+                              return_index=True, return_inverse=True)
+    order = np.argsort(first, kind="stable")          # in order of first appearance
+    rank = np.empty(len(order), np.int64)
+    rank[order] = np.arange(len(order))
+    return first[order], rank[inv.reshape(-1)]
 
 
 class RouteFamily:

@@ -30,7 +30,7 @@ from ...models.composition import el
 from .. import quench_response
 from ..model_inputs import uses
 from .base import Batch, RouteFamily, at_position, harden_step, product_grid, temper_steps
-from .quench_temper import CORE_INPUTS, default_austenitize_c, through_harden
+from .quench_temper import CORE_INPUTS, default_austenitize_c, quench_profile_distinct, through_harden
 
 ROUTE = "carburize"
 #: lowest HRC the ASTM E140 Rockwell C scale gives (soft cores are floored here in the
@@ -260,10 +260,19 @@ def case_table(batch: Batch, quench, agitation, austenitize_c, surface_carbon_pc
     tile = lambda a: np.tile(np.broadcast_to(np.asarray(a), (n,)), k)  # noqa: E731
     local = {e: tile(v) for e, v in comp.items()}
     local["C"] = (c0[None, :] + frac[:, None] * (cs - c0)[None, :]).reshape(-1)
-    prof = quench_response.as_quenched_profile(local, tile(quench), tile(agitation),
-                                               austenitize_c=tile(austenitize_c), positions=TABLE_POSITIONS,
-                                               **{key: tile(v) for key, v in size.items()})
-    aq_hv = np.asarray(prof["hardness_hv"], float).reshape(k, n, -1).transpose(1, 0, 2)   # (n, k, p)
+    if n * k > 1:
+        # once per distinct (carbon level, quench): the carburizing time and temperature and the
+        # temper do not enter the quench chain (row-wise: the numbers of the per-row call)
+        prof, inverse = quench_profile_distinct(local, tile(quench), tile(agitation), tile(austenitize_c),
+                                                positions=TABLE_POSITIONS,
+                                                **{key: tile(v) for key, v in size.items()})
+        aq = np.asarray(prof["hardness_hv"], float)[inverse]
+    else:
+        prof = quench_response.as_quenched_profile(local, tile(quench), tile(agitation),
+                                                   austenitize_c=tile(austenitize_c), positions=TABLE_POSITIONS,
+                                                   **{key: tile(v) for key, v in size.items()})
+        aq = np.asarray(prof["hardness_hv"], float)
+    aq_hv = aq.reshape(k, n, -1).transpose(1, 0, 2)   # (n, k, p)
     c_k = (c0[:, None] + frac[None, :] * (cs - c0)[:, None])[:, :, None]
     comp3 = {k: np.asarray(v, float)[:, None, None] for k, v in comp.items()}
     t = np.asarray(temper_temp_c, float)[:, None, None]

@@ -18,6 +18,7 @@ from __future__ import annotations
 
 
 import numpy as np
+import pandas as pd
 
 from ...catalogue.grades import Grade
 from ...models import (conversions, correlations, critical_temperatures, hardenability, structure_tempering, tempering,
@@ -25,7 +26,7 @@ from ...models import (conversions, correlations, critical_temperatures, hardena
 from ...models.composition import el
 from .. import quench_response
 from ..model_inputs import uses
-from .base import (Batch, RouteFamily, at_position, harden_step, product_grid, temper_steps,
+from .base import (Batch, RouteFamily, at_position, distinct_rows, harden_step, product_grid, temper_steps,
                    tension_test_position)
 
 TME_RANGE_C = (260.0, 370.0)
@@ -40,8 +41,69 @@ def correlation_class(families: np.ndarray) -> np.ndarray:
     return np.array([CORRELATION_CLASS.get(f, "alloy_steel") for f in uniq.tolist()], dtype=object)[inv.reshape(-1)]
 
 
+def batch_class(batch: Batch) -> np.ndarray:
+    """:func:`correlation_class` of the batch's states, looked up once per grade (the same
+    object array as ``correlation_class(batch.attr("family"))``)."""
+    per = np.array([CORRELATION_CLASS.get(str(g.family), "alloy_steel") for g in batch.grades] + [""],
+                   dtype=object)[:-1]
+    return per[np.asarray(batch.gidx, np.int64)]
+
+
 #: per-state outputs of quench_response.as_quenched_profile that are not per state
 _PROFILE_SHARED = ("positions", "warnings")
+
+
+def _value_codes(values: np.ndarray) -> np.ndarray:
+    """Codes of values (equal values, equal codes; in order of first appearance), as floats:
+    the states are hashed, not written as text and sorted."""
+    codes, _ = pd.factorize(np.asarray(values, dtype=object), use_na_sentinel=False)
+    return np.asarray(codes, float)
+
+
+def quench_profile_distinct(comp, quench, agitation, austenitize_c, diameter_mm=None, thickness_mm=None,
+                            positions=None) -> tuple:
+    """``(profile, inverse)``: :func:`quench_response.as_quenched_profile` evaluated once per
+    distinct (composition, medium, agitation, austenitizing temperature, section) of ``n``
+    states given as arrays (n,) (arrays over the distinct quenches, with their
+    ``composition``) and the distinct quench of each state (``profile[k][inverse]`` is the
+    per-state value; the chain is row-wise, so the numbers are those of the per-state call).
+    The batch-level ``warnings`` name distinct quenches, not states."""
+    size = np.asarray(diameter_mm if diameter_mm is not None else thickness_mm, float)
+    n = size.shape[0]
+    q = np.broadcast_to(np.asarray(quench, dtype=object), (n,))
+    a = np.broadcast_to(np.asarray(agitation, dtype=object), (n,))
+    nan = np.full(n, np.nan)
+    cols = [np.broadcast_to(np.asarray(v, float), (n,)) for _, v in sorted(comp.items())]
+    cols += [_value_codes(q), _value_codes(a),
+             np.broadcast_to(np.asarray(np.nan if austenitize_c is None else austenitize_c, float), (n,)),
+             nan if diameter_mm is None else np.asarray(diameter_mm, float),
+             nan if thickness_mm is None else np.asarray(thickness_mm, float)]
+    table = np.ascontiguousarray(np.column_stack(cols))
+    # equal rows are equal bits (as np.unique of the rows' bytes); each distinct row in order of
+    # first appearance (the chain is row-wise: the order does not change a number)
+    first, inverse = distinct_rows(table.view(np.int64))
+    sub = {k: np.broadcast_to(np.asarray(v, float), (n,))[first] for k, v in comp.items()}
+    extra = {} if positions is None else {"positions": positions}
+    prof = quench_response.as_quenched_profile(
+        sub, q[first], a[first], diameter_mm=None if diameter_mm is None else np.asarray(diameter_mm, float)[first],
+        thickness_mm=None if thickness_mm is None else np.asarray(thickness_mm, float)[first],
+        austenitize_c=None if austenitize_c is None else np.broadcast_to(np.asarray(austenitize_c, float),
+                                                                          (n,))[first], **extra)
+    prof["composition"] = sub
+    return prof, inverse
+
+
+def distinct_quenches(batch: Batch, quench, agitation, austenitize_c) -> tuple:
+    """``(profile, inverse)`` of :func:`quench_profile_distinct` over the batch's states (the
+    states of a grade differ by their temper only, so the catalogue's ~24 000 Q&T states
+    share a few hundred quenches).  A batch of one is not reduced (``inverse`` None: the
+    profile is the state's, with its batch-level ``warnings``)."""
+    dia = None if np.all(np.isnan(batch.diameter_mm)) else batch.diameter_mm
+    thk = None if dia is not None else batch.thickness_mm
+    if batch.n <= 1:
+        return quench_response.as_quenched_profile(batch.comp, quench, agitation, diameter_mm=dia,
+                                                   thickness_mm=thk, austenitize_c=austenitize_c), None
+    return quench_profile_distinct(batch.comp, quench, agitation, austenitize_c, dia, thk)
 
 
 def as_quenched_distinct(batch: Batch, quench, agitation, austenitize_c) -> dict:
@@ -50,29 +112,10 @@ def as_quenched_distinct(batch: Batch, quench, agitation, austenitize_c) -> dict
     state: the states of a grade differ by their temper only, so the catalogue's ~24 000
     Q&T states share a few hundred quenches (the chain is row-wise: the same numbers).  The
     batch-level ``warnings`` are only used for a batch of one, which is never reduced."""
-    n = batch.n
-    dia = None if np.all(np.isnan(batch.diameter_mm)) else batch.diameter_mm
-    thk = None if dia is not None else batch.thickness_mm
-    if n <= 1:
-        return quench_response.as_quenched_profile(batch.comp, quench, agitation, diameter_mm=dia,
-                                                   thickness_mm=thk, austenitize_c=austenitize_c)
-    q = np.broadcast_to(np.asarray(quench, dtype=object), (n,))
-    a = np.broadcast_to(np.asarray(agitation, dtype=object), (n,))
-    cols = [np.broadcast_to(np.asarray(v, float), (n,)) for _, v in sorted(batch.comp.items())]
-    cols += [np.unique(q.astype(str), return_inverse=True)[1].reshape(-1).astype(float),
-             np.unique(a.astype(str), return_inverse=True)[1].reshape(-1).astype(float),
-             np.broadcast_to(np.asarray(np.nan if austenitize_c is None else austenitize_c, float), (n,)),
-             np.asarray(batch.diameter_mm, float), np.asarray(batch.thickness_mm, float)]
-    table = np.ascontiguousarray(np.column_stack(cols))
-    rows = table.view(np.dtype((np.void, table.dtype.itemsize * table.shape[1]))).ravel()
-    _, first, inverse = np.unique(rows, return_index=True, return_inverse=True)
-    inverse = inverse.reshape(-1)
-    sub = {k: np.broadcast_to(np.asarray(v, float), (n,))[first] for k, v in batch.comp.items()}
-    prof = quench_response.as_quenched_profile(
-        sub, q[first], a[first], diameter_mm=None if dia is None else dia[first],
-        thickness_mm=None if thk is None else thk[first],
-        austenitize_c=None if austenitize_c is None else np.broadcast_to(np.asarray(austenitize_c, float),
-                                                                          (n,))[first])
+    prof, inverse = distinct_quenches(batch, quench, agitation, austenitize_c)
+    if inverse is None:
+        return prof
+    prof.pop("composition")
     return {k: v if k in _PROFILE_SHARED else np.asarray(v)[inverse] for k, v in prof.items()}
 
 
@@ -81,7 +124,12 @@ def through_harden(batch: Batch, quench, agitation, austenitize_c, temper_temp_c
     ``temper_temp_c`` is not NaN, tempered) steel at the batch's sections.  Shared
     by the case-hardening families for the core."""
     comp = batch.comp
-    prof = as_quenched_distinct(batch, quench, agitation, austenitize_c)
+    per_quench, inverse = distinct_quenches(batch, quench, agitation, austenitize_c)
+    if inverse is None:
+        prof = per_quench
+    else:
+        u_comp = per_quench.pop("composition")
+        prof = {k: v if k in _PROFILE_SHARED else np.asarray(v)[inverse] for k, v in per_quench.items()}
     pos = np.asarray(prof["positions"], float)
     hv_aq = np.asarray(prof["hardness_hv"], float)
     mart = np.asarray(prof["martensite_pct"], float)
@@ -97,7 +145,17 @@ def through_harden(batch: Batch, quench, agitation, austenitize_c, temper_temp_c
         # where carbides stay undissolved, hypereutectoid steels; hardenability.austenite_carbon_pct)
         c2 = {k: np.asarray(v, float)[:, None] for k, v in comp.items()}
         c2["C"] = np.broadcast_to(np.asarray(prof["austenite_carbon_pct"], float), (batch.n,))[:, None]
-        parts = structure_tempering.constituents(c2, mart, np.asarray(prof["cooling_rate_c_s"], float))
+        if inverse is None:
+            parts = structure_tempering.constituents(c2, mart, np.asarray(prof["cooling_rate_c_s"], float))
+        else:
+            # the structure depends on the quench only: once per distinct quench, taken per state
+            u_c2 = {k: np.asarray(v, float)[:, None] for k, v in u_comp.items()}
+            u_mart = np.asarray(per_quench["martensite_pct"], float)
+            u_c2["C"] = np.broadcast_to(np.asarray(per_quench["austenite_carbon_pct"], float),
+                                        (u_mart.shape[0],))[:, None]
+            u_parts = structure_tempering.constituents(u_c2, u_mart,
+                                                       np.asarray(per_quench["cooling_rate_c_s"], float))
+            parts = {k: np.asarray(v)[inverse] for k, v in u_parts.items()}
         tt = structure_tempering.mixture_hv(parts, t[:, None], np.where(np.isfinite(h), h, 1.0)[:, None], c2)
         # a hypereutectoid steel keeps undissolved cementite: linear mixture with its hardness
         f_carb = structure_tempering.undissolved_carbide_fraction(
@@ -106,7 +164,7 @@ def through_harden(batch: Batch, quench, agitation, austenitize_c, temper_temp_c
         hv_t = np.where(tempered[:, None], np.minimum(tt, hv_aq), hv_aq)
     where = tension_test_position(batch.section_mm)
     non_m = 100.0 - at_position(mart, pos, where)
-    cls = correlation_class(batch.attr("family"))
+    cls = batch_class(batch)
     hv_test = at_position(hv_t, pos, where)
     hv_center = at_position(hv_t, pos, np.zeros(batch.n))
     out = {"profile_hv": hv_t, "profile_positions": pos, "profile_as_quenched_hv": hv_aq,
@@ -207,10 +265,25 @@ STRENGTH_INPUTS = (
 CORE_INPUTS = HARDENING_INPUTS + TEMPERING_INPUTS + STRENGTH_INPUTS
 
 
+#: the last (class array, its masks) of :func:`_class_masks` (one tuple, read and replaced whole)
+_SPLIT: list = [(None, None)]
+
+
+def _class_masks(cls) -> list:
+    """``[(class, mask)]`` of the distinct classes of ``cls`` in sorted order, the last one
+    kept (a family's correlations read the same class array several times)."""
+    kept, masks = _SPLIT[0]
+    if kept is cls:
+        return masks
+    codes, uniq = pd.factorize(np.asarray(cls, dtype=object), sort=True)
+    out = [(c, codes == i) for i, c in enumerate(uniq.tolist())]
+    _SPLIT[0] = (cls, out)
+    return out
+
+
 def _by_class(fn, uts, cls):
     res = np.full(uts.shape, np.nan)
-    for c in sorted(set(cls.tolist())):      # the distinct classes (no sort of a per-state object array)
-        m = cls == c
+    for c, m in _class_masks(cls):      # the distinct classes (no sort of a per-state object array)
         res[m] = fn(uts[m], c)
     return res
 
@@ -218,8 +291,7 @@ def _by_class(fn, uts, cls):
 def _yield(uts, temper_c, cls):
     res = np.full(uts.shape, np.nan)
     t = np.where(np.isfinite(temper_c), temper_c, 150.0)
-    for c in sorted(set(cls.tolist())):
-        m = cls == c
+    for c, m in _class_masks(cls):
         res[m] = correlations.yield_from_uts(uts[m], t[m], c)
     return res
 

@@ -58,7 +58,7 @@ from .. import bands
 from . import get
 from .base import Batch, RouteFamily, at_position, tension_test_position
 from .cold_work import stress_relief_steps
-from .quench_temper import (HARDENING_INPUTS, as_quenched_distinct, core_model_inputs, correlation_class,
+from .quench_temper import (HARDENING_INPUTS, as_quenched_distinct, batch_class, core_model_inputs,
                             default_austenitize_c)
 
 STEEL_SCALE = ("carbon_steel", "alloy_steel", "carburizing_steel", "nitriding_steel", "stainless_martensitic",
@@ -138,7 +138,7 @@ def mill_structure(batch: Batch, quench) -> dict:
         where = tension_test_position(sub.section_mm)
         nan = np.full(sub.n, np.nan)
         sub_mi = core_model_inputs(prof, sub.comp, pos, where, nan, nan, 100.0 - at_position(mart, pos, where),
-                                   correlation_class(sub.attr("family")))
+                                   batch_class(sub))
         for k, v in sub_mi.items():
             v = np.asarray(v)
             if v.shape != (sub.n,):
@@ -246,17 +246,27 @@ def _supply_notes(props: dict, batch: Batch) -> list:
 
 
 def _with_core(batch: Batch, props: dict) -> Batch:
-    """A batch whose per-state grade records carry the supplied bar's properties as
-    their baseline, so that a downstream family's 'supplied core' is the bar's."""
+    """A batch whose grade records carry the supplied bar's properties as their baseline, so
+    that a downstream family's 'supplied core' is the bar's: one record per distinct grade and
+    bar (the states of a grade and condition share it), the states pointing at theirs."""
+    n = batch.n
+    hv = np.asarray(props["hardness_hv"], float)
+    fin = np.isfinite(hv)
+    hb = np.array([g.base_hardness_hb for g in batch.grades] + [np.nan], float)[:-1][batch.gidx]
+    if fin.any():
+        hb[fin] = conversions.hv_to_hb(hv[fin])
+    table = np.ascontiguousarray(np.column_stack([np.asarray(batch.gidx, float)] + [
+        np.asarray(props[k], float) for k in ("uts_mpa", "yield_mpa", "elongation_pct")] + [hb]))
+    _, first, inverse = np.unique(table.view(np.dtype((np.void, table.dtype.itemsize * table.shape[1]))).ravel(),
+                                  return_index=True, return_inverse=True)
     grades = []
-    for i in range(batch.n):
+    for i in first.tolist():
         g = batch.grades[batch.gidx[i]]
-        hb = float(conversions.hv_to_hb(props["hardness_hv"][i])) if np.isfinite(props["hardness_hv"][i]) \
-            else g.base_hardness_hb
         grades.append(dataclasses.replace(
             g, base_uts_mpa=float(props["uts_mpa"][i]), base_yield_mpa=float(props["yield_mpa"][i]),
-            base_elongation_pct=float(props["elongation_pct"][i]), base_hardness_hb=hb))
-    return Batch(grades, np.arange(batch.n), batch.comp, batch.params, batch.diameter_mm, batch.thickness_mm)
+            base_elongation_pct=float(props["elongation_pct"][i]), base_hardness_hb=float(hb[i])))
+    return Batch(grades, inverse.reshape(-1).astype(np.int64) if n else np.zeros(0, np.int64), batch.comp,
+                 batch.params, batch.diameter_mm, batch.thickness_mm)
 
 
 class Supply(RouteFamily):
