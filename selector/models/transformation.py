@@ -444,6 +444,8 @@ def path_progress(comp, times_s, temps_c, reaction, grain_size_astm=8.0, active=
     >>> round(float(start[0]), 6)
     1.0
     """
+    if reaction not in ("ferrite", "pearlite", "bainite"):
+        raise InputError("reaction", reaction, "ferrite, pearlite, bainite")
     temps = np.asarray(temps_c, float)
     if temps.ndim != 2:
         raise InputError("temps_c", temps.shape, "a 2-D array (states, times)")
@@ -453,11 +455,24 @@ def path_progress(comp, times_s, temps_c, reaction, grain_size_astm=8.0, active=
         raise InputError("times_s", "decreasing", "increasing times")
     mid = 0.5 * (temps[:, 1:] + temps[:, :-1])
     col = {k: np.asarray(v, float)[..., None] if np.ndim(v) else v for k, v in comp.items()}
-    with np.errstate(over="ignore", divide="ignore", invalid="ignore"):
-        tau1 = isothermal_time_s(col, mid, 0.5, reaction, grain_size_astm, bainite_carbon_cap_pct) / s_integral(0.5)
     top = {"ferrite": ac3_c, "pearlite": ac1_c, "bainite": bs_li_c}[reaction](col)
-    on = (mid < top) & np.isfinite(tau1) & (tau1 > 0)
+    # τ₁ only on the intervals that can count (below the reaction's upper temperature and active):
+    # the same numbers, element by element, as isothermal_time_s(col, mid, 0.5, ...) / S(0.5) on
+    # the whole (n, m) table, the others adding 0 to the sum
+    cand = mid < top
     if active is not None:
-        on &= np.asarray(active, bool)
-    s = np.sum(np.where(on, dt / np.where(on, tau1, 1.0), 0.0), axis=1)
+        cand &= np.asarray(active, bool)
+    rows = np.nonzero(cand)[0]
+    k = {"ferrite": 0, "pearlite": 1, "bainite": 2}[reaction]
+    rate_k = np.broadcast_to(_rate_constants(col, grain_size_astm, bainite_carbon_cap_pct)[k], (len(temps), 1))
+    top_r = np.broadcast_to(top, (len(temps), 1))[rows, 0]
+    m = mid[cand]
+    with np.errstate(over="ignore", divide="ignore", invalid="ignore"):
+        arr = np.exp(-Q_CAL / (R_CAL * (m + 273.15)))
+        tau1 = rate_k[rows, 0] / (np.maximum(top_r - m, 1e-9) ** (2 if reaction == "bainite" else 3) * arr)
+        tau1 = tau1 * s_integral(0.5) / s_integral(0.5)
+        ok = np.isfinite(tau1) & (tau1 > 0)
+        terms = np.zeros(mid.shape)
+        terms[cand] = np.where(ok, dt[cand] / np.where(ok, tau1, 1.0), 0.0)
+    s = np.sum(terms, axis=1)
     return _x_of_s(s), s / s_integral(0.01)

@@ -218,12 +218,19 @@ def section_limit_mm(comp, austenitize_c, bath_c, plate=False):
     bath = np.atleast_1d(np.asarray(bath_c, float))
     n = max(len(aust), len(bath), *[np.size(v) for v in comp.values()])
     sizes = LIMIT_SIZES_MM
-    k = len(sizes)
-    rep = {e: np.repeat(np.broadcast_to(np.asarray(v, float), (n,)), k) for e, v in comp.items()}
-    dd = np.tile(sizes, n)
-    args = (None, dd) if plate else (dd, None)
-    s = scheil_to_bath(rep, np.repeat(np.broadcast_to(aust, (n,)), k), np.repeat(np.broadcast_to(bath, (n,)), k),
-                       *args).reshape(n, k)
+    comp_n = {e: np.broadcast_to(np.asarray(v, float), (n,)) for e, v in comp.items()}
+    aust, bath = np.broadcast_to(aust, (n,)), np.broadcast_to(bath, (n,))
+    # the sizes in increasing order, each on the rows whose sum has not yet reached 1: the limit
+    # reads the sums up to the first size at or over 1 only (entries after it stay +inf, "over")
+    s = np.full((n, len(sizes)), np.inf)
+    alive = np.arange(n)
+    for i, size in enumerate(sizes):
+        dd = np.full(len(alive), size)
+        args = (None, dd) if plate else (dd, None)
+        s[alive, i] = scheil_to_bath({e: v[alive] for e, v in comp_n.items()}, aust[alive], bath[alive], *args)
+        alive = alive[~(s[alive, i] >= 1.0)]
+        if len(alive) == 0:
+            break
     ls = np.log(np.maximum(s, 1e-12))
     over = s >= 1.0
     j = np.argmax(over, axis=1)
