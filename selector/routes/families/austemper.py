@@ -171,7 +171,11 @@ def products_to_bath(comp, austenitize_c, bath_c, diameter_mm=None, thickness_mm
     n = max(len(aust), len(bath))
     aust, bath = np.broadcast_to(aust, (n,)), np.broadcast_to(bath, (n,))
     c = _states_comp(comp, n)
-    temp = _centre_paths(aust, bath, diameter_mm, thickness_mm, n)
+    return _products_on_paths(c, bath, _centre_paths(aust, bath, diameter_mm, thickness_mm, n))
+
+
+def _products_on_paths(c, bath, temp):
+    """:func:`products_to_bath` of ``n`` states from their centre's paths ``temp`` (n, len(TIMES_S))."""
     mid = 0.5 * (temp[:, 1:] + temp[:, :-1])
     moving = mid > bath[:, None] + AT_BATH_C
     with np.errstate(over="ignore", divide="ignore", invalid="ignore"):
@@ -222,12 +226,18 @@ def section_limit_mm(comp, austenitize_c, bath_c, plate=False):
     aust, bath = np.broadcast_to(aust, (n,)), np.broadcast_to(bath, (n,))
     # the sizes in increasing order, each on the rows whose sum has not yet reached 1: the limit
     # reads the sums up to the first size at or over 1 only (entries after it stay +inf, "over")
-    s = np.full((n, len(sizes)), np.inf)
+    # (the centre's paths depend on the temperatures and the size only: computed once per distinct
+    # (austenitize_c, bath_c) pair and size, row p * k + i for pair p and size i)
+    k = len(sizes)
+    first, pair = distinct_rows(np.ascontiguousarray(np.column_stack([aust, bath])).view(np.int64))
+    dd = np.tile(sizes, len(first))
+    paths = _centre_paths(np.repeat(aust[first], k), np.repeat(bath[first], k), None if plate else dd,
+                          dd if plate else None, len(dd))
+    s = np.full((n, k), np.inf)
     alive = np.arange(n)
-    for i, size in enumerate(sizes):
-        dd = np.full(len(alive), size)
-        args = (None, dd) if plate else (dd, None)
-        s[alive, i] = scheil_to_bath({e: v[alive] for e, v in comp_n.items()}, aust[alive], bath[alive], *args)
+    for i in range(k):
+        c = {e: v[alive] for e, v in comp_n.items()}
+        s[alive, i] = _products_on_paths(c, bath[alive], paths[pair[alive] * k + i])["start_sum"]
         alive = alive[~(s[alive, i] >= 1.0)]
         if len(alive) == 0:
             break
