@@ -131,20 +131,45 @@ def _states_comp(comp, n):
     return {k: np.broadcast_to(np.asarray(v, float), (n,)) for k, v in comp.items()}
 
 
+#: the centre's relative temperature (T − bath)/(austenitize − bath), clipped to 0–1, on TIMES_S, keyed
+#: by (heat-transfer coefficient, round, size mm): it depends on the size only, so every bath, austenitizing
+#: temperature, composition and selection reuses it
+_THETA_CACHE: dict = {}
+_THETA_CACHE_MAX = 20_000
+
+
+def _centre_theta(size_mm: np.ndarray, round_: np.ndarray) -> np.ndarray:
+    """Relative centre temperatures (u, len(TIMES_S)) of distinct sizes (rounds where ``round_``,
+    else plates), from :func:`bath_quench.path_temperature_c` with austenitize 1 and bath 0
+    (which returns 0 + (1 − 0)·clip(θ), that is clip(θ) itself), cached."""
+    h = _h_w_m2k()
+    keys = [(h, bool(r), float(v)) for v, r in zip(size_mm, round_)]
+    todo = [i for i, k in enumerate(keys) if k not in _THETA_CACHE]
+    if todo:
+        if len(_THETA_CACHE) + len(todo) > _THETA_CACHE_MAX:
+            _THETA_CACHE.clear()
+            todo = list(range(len(keys)))
+        sz, rd = size_mm[todo], round_[todo]
+        theta = bath_quench.path_temperature_c(h, TIMES_S, np.where(rd, sz, np.nan), np.where(rd, np.nan, sz),
+                                               0.0, 1.0, 0.0)
+        for i, row in zip(todo, theta):
+            _THETA_CACHE[keys[i]] = row
+    return np.stack([_THETA_CACHE[k] for k in keys]) if keys else np.zeros((0, len(TIMES_S)))
+
+
 def _centre_paths(aust, bath, diameter_mm, thickness_mm, n) -> np.ndarray:
-    """:func:`bath_quench.path_temperature_c` at the centre of ``n`` states, computed once per
-    distinct (austenitizing temperature, bath, size): the path does not depend on the
-    composition (row-wise: the numbers of the per-state call)."""
-    cols = [aust, bath] + [np.broadcast_to(np.asarray(np.nan if v is None else v, float), (n,))
-                           for v in (diameter_mm, thickness_mm)]
-    key = np.ascontiguousarray(np.column_stack(cols))
-    first, inv = distinct_rows(key.view(np.int64))
-    if len(first) == n:
-        return bath_quench.path_temperature_c(_h_w_m2k(), TIMES_S, diameter_mm, thickness_mm, 0.0, aust, bath)
-    pick = lambda v: None if v is None else np.broadcast_to(np.asarray(v, float), (n,))[first]  # noqa: E731
-    temp = bath_quench.path_temperature_c(_h_w_m2k(), TIMES_S, pick(diameter_mm), pick(thickness_mm), 0.0,
-                                          aust[first], bath[first])
-    return temp[inv]
+    """:func:`bath_quench.path_temperature_c` at the centre of ``n`` states: the relative path
+    :func:`_centre_theta` of each distinct size, then bath + (austenitize − bath)·θ per state
+    (the numbers of the per-state call: the composition does not enter the path)."""
+    d = np.broadcast_to(np.asarray(np.nan if diameter_mm is None else diameter_mm, float), (n,))
+    t = np.broadcast_to(np.asarray(np.nan if thickness_mm is None else thickness_mm, float), (n,))
+    round_ = np.isfinite(d)
+    size = np.where(round_, d, t)
+    first, inv = distinct_rows(np.ascontiguousarray(np.column_stack([size, round_.astype(float)])).view(np.int64))
+    theta = _centre_theta(size[first], round_[first])
+    tb = np.broadcast_to(np.asarray(bath, float), (n,))[:, None]
+    t0 = np.broadcast_to(np.asarray(aust, float), (n,))[:, None]
+    return tb + (t0 - tb) * theta[inv]
 
 
 def products_to_bath(comp, austenitize_c, bath_c, diameter_mm=None, thickness_mm=None):
