@@ -105,6 +105,11 @@ def s_integral(x):
     return np.interp(np.asarray(x, float), xs, s)
 
 
+def _clip(x, lo, hi):
+    """``numpy.clip`` as the two comparisons it is defined by (the same numbers, less call overhead)."""
+    return np.minimum(np.maximum(x, lo), hi)
+
+
 def _x_of_s(s):
     xs, st = _s_table()
     return np.interp(s, st, xs)
@@ -226,6 +231,10 @@ def continuous_cooling_fractions(comp, cooling_rate_c_s, austenitize_c=845.0, ba
     fF = np.zeros(shape); fP = np.zeros(shape); fB = np.zeros(shape)
     aust_at_ms = np.full(shape, np.nan)
     temps = np.arange(austenitize_c, ROOM_C, -step_c)
+    # a reaction that runs in no row at a step changes nothing (its S, X and fraction stay, the
+    # austenite loses 0), so its block is skipped; once every row is below Ms and its austenite
+    # at Ms is kept, the later steps change nothing and the loop ends: the numbers of every step
+    ms_top = float(np.max(ms)) if ms.size else -np.inf
     for t_hi, t_lo in zip(temps[:-1], temps[1:]):
         tm = 0.5 * (t_hi + t_lo)
         dt = tau_c * np.log((t_hi - bath_c) / max(t_lo - bath_c, 1e-6))
@@ -234,27 +243,33 @@ def continuous_cooling_fractions(comp, cooling_rate_c_s, austenitize_c=845.0, ba
         avail = 1.0 - fF - fP - fB
         # ferrite, capped at the lever-rule fraction
         on = (tm < ae3) & above_ms
-        sF = np.where(on, sF + dt * np.maximum(ae3 - tm, 0) ** 3 * arr / kF, sF)
-        xF = _x_of_s(sF)
-        dF = np.where(on, np.clip(xeq * xF - fF, 0.0, avail), 0.0)
-        fF = fF + dF
-        avail = avail - dF
+        if on.any():
+            sF = np.where(on, sF + dt * np.maximum(ae3 - tm, 0) ** 3 * arr / kF, sF)
+            xF = _x_of_s(sF)
+            dF = np.where(on, _clip(xeq * xF - fF, 0.0, avail), 0.0)
+            fF = fF + dF
+            avail = avail - dF
         # pearlite and bainite convert the austenite present in proportion to normalised progress
         onP = (tm < ae1) & above_ms
-        sP = np.where(onP, sP + dt * np.maximum(ae1 - tm, 0) ** 3 * arr / kP, sP)
-        xPn = _x_of_s(sP)
-        dP = np.where(onP, avail * np.clip((xPn - xP) / np.maximum(1 - xP, 1e-9), 0, 1), 0.0)
-        xP = xPn
-        fP = fP + dP
-        avail = avail - dP
+        if onP.any():
+            sP = np.where(onP, sP + dt * np.maximum(ae1 - tm, 0) ** 3 * arr / kP, sP)
+            xPn = _x_of_s(sP)
+            dP = np.where(onP, avail * _clip((xPn - xP) / np.maximum(1 - xP, 1e-9), 0, 1), 0.0)
+            xP = xPn
+            fP = fP + dP
+            avail = avail - dP
         onB = (tm < bs) & above_ms
-        sB = np.where(onB, sB + dt * np.maximum(bs - tm, 0) ** 2 * arr / kB, sB)
-        xBn = _x_of_s(sB)
-        dB = np.where(onB, avail * np.clip((xBn - xB) / np.maximum(1 - xB, 1e-9), 0, 1), 0.0)
-        xB = xBn
-        fB = fB + dB
-        avail = avail - dB
-        aust_at_ms = np.where(np.isnan(aust_at_ms) & ~above_ms, avail, aust_at_ms)
+        if onB.any():
+            sB = np.where(onB, sB + dt * np.maximum(bs - tm, 0) ** 2 * arr / kB, sB)
+            xBn = _x_of_s(sB)
+            dB = np.where(onB, avail * _clip((xBn - xB) / np.maximum(1 - xB, 1e-9), 0, 1), 0.0)
+            xB = xBn
+            fB = fB + dB
+            avail = avail - dB
+        if tm <= ms_top or np.isnan(ms_top):
+            aust_at_ms = np.where(np.isnan(aust_at_ms) & ~above_ms, avail, aust_at_ms)
+            if tm <= ms_top and not np.isnan(aust_at_ms).any():
+                break
     aust_at_ms = np.where(np.isnan(aust_at_ms), 1.0 - fF - fP - fB, aust_at_ms)
     km = 1.0 - np.exp(-KM_ALPHA * np.maximum(ms - ROOM_C, 0.0))
     fM = aust_at_ms * km
