@@ -61,15 +61,22 @@ def refine_grid(grid: dict, main: str | None, factor: int) -> dict:
     vals = np.asarray(grid[main], float)
     others = [k for k in grid if k != main]
     # one code per combination of the other parameters (vectorised: this runs inside the timed
-    # expansion, once per grade and family), groups in order of first appearance
+    # expansion, once per grade and family), groups in order of first appearance; values compared
+    # as their text, as numpy prints them (so NaN equals NaN)
     codes = np.zeros(len(vals), np.int64)
     for k in others:
-        u, inv = np.unique(np.asarray(grid[k]).astype(str), return_inverse=True)
+        col = np.asarray(grid[k])
+        if col.dtype.kind == "f" and len(col) and np.all(col == col[0]):
+            continue                                    # one value (the usual case): one group
+        u, inv = np.unique(col.astype(str), return_inverse=True)
         codes = codes * len(u) + inv.reshape(-1)
-    uniq, first = np.unique(codes, return_index=True)
+    if len(vals) and np.all(codes == codes[0]):
+        groups = [np.arange(len(vals))]
+    else:
+        uniq, first = np.unique(codes, return_index=True)
+        groups = [np.flatnonzero(codes == c) for c in uniq[np.argsort(first)]]
     parts = {k: [] for k in grid}
-    for c in uniq[np.argsort(first)]:
-        idx = np.flatnonzero(codes == c)
+    for idx in groups:
         v = vals[idx]
         lo, hi = np.nanmin(v), np.nanmax(v)
         n = max(1, (len(idx) - 1) * factor + 1) if hi > lo else 1
