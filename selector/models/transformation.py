@@ -477,14 +477,16 @@ def path_progress(comp, times_s, temps_c, reaction, grain_size_astm=8.0, active=
     cand = mid < top
     if active is not None:
         cand &= np.asarray(active, bool)
-    rows = np.nonzero(cand)[0]
+    # per-row constants taken to the row's candidate intervals (boolean indexing reads row by row)
+    per_row = np.count_nonzero(cand, axis=1)
     k = {"ferrite": 0, "pearlite": 1, "bainite": 2}[reaction]
-    rate_k = np.broadcast_to(_rate_constants(col, grain_size_astm, bainite_carbon_cap_pct)[k], (len(temps), 1))
-    top_r = np.broadcast_to(top, (len(temps), 1))[rows, 0]
+    rate_k = _rate_constants(col, grain_size_astm, bainite_carbon_cap_pct)[k]
+    rate_r = np.repeat(np.broadcast_to(rate_k, (len(temps), 1))[:, 0], per_row)
+    top_r = np.repeat(np.broadcast_to(top, (len(temps), 1))[:, 0], per_row)
     m = mid[cand]
     with np.errstate(over="ignore", divide="ignore", invalid="ignore"):
         arr = np.exp(-Q_CAL / (R_CAL * (m + 273.15)))
-        tau1 = rate_k[rows, 0] / (np.maximum(top_r - m, 1e-9) ** (2 if reaction == "bainite" else 3) * arr)
+        tau1 = rate_r / (np.maximum(top_r - m, 1e-9) ** (2 if reaction == "bainite" else 3) * arr)
         tau1 = tau1 * s_integral(0.5) / s_integral(0.5)
         ok = np.isfinite(tau1) & (tau1 > 0)
         terms = np.zeros(mid.shape)
