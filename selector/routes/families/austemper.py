@@ -238,6 +238,11 @@ def section_limit_mm(comp, austenitize_c, bath_c, plate=False):
     :data:`LIMIT_SIZES_MM`, the crossing of the sum through 1 interpolated in log–log; the
     largest size when every size passes, 0 when the smallest fails.
 
+    The sizes are evaluated in increasing order, each on the rows whose sum is still below 1
+    (the limit reads the sums only up to the first size at or over 1, so this gives the numbers
+    of evaluating every size for every row), and the centre's path is taken once per distinct
+    (austenitize_c, bath_c) pair and size (:func:`_centre_paths`).
+
     Returns
     -------
     ndarray (n,), mm (a float for scalar input).
