@@ -443,26 +443,40 @@ class Sensitivities:
                 return None
             self.elements = tuple(str(e) for e in arr["elements"])
             self.done = np.array(arr["done"], bool)
-            self.a = {p: np.array(arr[f"a_{p}"], float) for p in SAMPLED}
-            if any(v.shape != (self.m, len(self.elements)) for v in self.a.values()) or self.done.shape != (self.m,):
+            if self.done.shape != (self.m,):
                 return None
+            k = len(self.elements)
+            self.a = {p: np.zeros((self.m, k)) for p in SAMPLED}
             i = 0
-            while f"f{i}_done" in arr:
-                self.fam_done[i] = np.array(arr[f"f{i}_done"], bool)
-                self.fam_raw[i] = {p: np.array(arr[f"f{i}_r_{p}"], float) for p in SAMPLED if f"f{i}_r_{p}" in arr}
+            while f"f{i}_pos" in arr:
+                pos, cols = np.asarray(arr[f"f{i}_pos"], np.int64), np.asarray(arr[f"f{i}_cols"], np.int64)
+                for p in SAMPLED:
+                    if f"f{i}_a_{p}" in arr:
+                        self.a[p][np.ix_(pos, cols)] = arr[f"f{i}_a_{p}"]
+                if f"f{i}_done" in arr:
+                    self.fam_done[i] = np.array(arr[f"f{i}_done"], bool)
+                    self.fam_raw[i] = {p: np.array(arr[f"f{i}_r_{p}"], float) for p in SAMPLED
+                                       if f"f{i}_r_{p}" in arr}
                 i += 1
-        except (KeyError, ValueError, TypeError):
+        except (KeyError, ValueError, TypeError, IndexError):
             self.fam_done, self.fam_raw = {}, {}
             return None
         return True
 
     def _save(self):
+        """Write what is known (per family: its rows' sensitivities over its own elements, and
+        the computed moved-element changes from which more states are interpolated)."""
         from ..cache import save_arrays
         arrays = {"keys": self.keys, "elements": np.asarray(self.elements, dtype=str), "done": self.done}
-        arrays.update({f"a_{p}": self.a[p] for p in SAMPLED})
-        for i, dn in self.fam_done.items():
-            arrays[f"f{i}_done"] = dn
-            arrays.update({f"f{i}_r_{p}": v for p, v in self.fam_raw[i].items()})
+        kpos = {e: j for j, e in enumerate(self.elements)}
+        for i, (_, plan, pos) in enumerate(self.plans):
+            cols = np.array([kpos[e] for e in plan["elements"]], np.int64)
+            arrays[f"f{i}_pos"], arrays[f"f{i}_cols"] = np.asarray(pos, np.int64), cols
+            for p in self.fam_raw.get(i, {}):
+                arrays[f"f{i}_a_{p}"] = np.ascontiguousarray(self.a[p][np.ix_(pos, cols)])
+            if i in self.fam_done:
+                arrays[f"f{i}_done"] = self.fam_done[i]
+                arrays.update({f"f{i}_r_{p}": v for p, v in self.fam_raw[i].items()})
         save_arrays(_disk_sensitivities, self.section, arrays)
 
     # -- computing ----------------------------------------------------------------------
