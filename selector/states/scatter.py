@@ -34,7 +34,10 @@ element: the same family ``compute`` the expansion uses, so they follow any mode
 change), at every :data:`THIN`-th value of the route's main parameter (and its last),
 interpolated linearly in between.  Full Monte Carlo through ``compute`` (200 compositions per state) costs about
 200 expansions and is out of the speed budget; the linearisation costs one expansion
-of the nominal block per element of the grade.  Its error is checked against the
+of the nominal block per element of the grade.  The selection computes them only for
+the states it draws (those that meet the targets at nominal; :class:`Sensitivities`,
+the same numbers as the pass over every state) and keeps them per section on disk as
+they grow.  Its error is checked against the
 rich corner (every element at its maximum at once, computed exactly by the
 expansion): see ``docs/methods/selection.md``.
 
@@ -389,8 +392,10 @@ def _row_plans(keys: np.ndarray) -> list:
     return out
 
 
-def _disk_sensitivities(diameter_mm, thickness_mm):      # the disk-file name and key of Sensitivities
-    raise NotImplementedError
+def _disk_sensitivities(diameter_mm, thickness_mm):
+    """Names the disk file of :class:`Sensitivities` (its qualified name and the section key the
+    file, :func:`selector.cache.save_arrays`); never called."""
+    raise NotImplementedError("a cache-file name only")
 
 
 class Sensitivities:
