@@ -81,12 +81,13 @@ ch. 13 (from memory).
 from __future__ import annotations
 
 import functools
+import hashlib
 
 import numpy as np
 import pandas as pd
 from scipy import special
 
-from ..cache import disk_arrays, disk_table, evict_oldest
+from ..cache import disk_arrays, disk_table, evict_oldest, load_arrays, save_arrays
 from ..catalogue.grades import default_catalogue
 from ..models import conversions
 from ..routes import bands
@@ -372,7 +373,6 @@ _ROW_PLANS: dict = {}
 
 def _row_plans(keys: np.ndarray) -> list:
     """(family, plan, rows of the plan's states in ``keys``) per route family, kept per key order."""
-    import hashlib
     h = hashlib.blake2b("\x00".join(keys.tolist()).encode(), digest_size=20).hexdigest()
     hit = _ROW_PLANS.get(h)
     if hit is not None:
@@ -441,7 +441,6 @@ class Sensitivities:
 
     # -- disk -------------------------------------------------------------------------
     def _load(self):
-        from ..cache import load_arrays
         arr = load_arrays(_disk_sensitivities, self.section)
         try:
             if arr is None or not np.array_equal(arr["keys"], self.keys):
@@ -471,7 +470,6 @@ class Sensitivities:
     def _save(self):
         """Write what is known (per family: its rows' sensitivities over its own elements, and
         the computed moved-element changes from which more states are interpolated)."""
-        from ..cache import save_arrays
         arrays = {"keys": self.keys, "elements": np.asarray(self.elements, dtype=str), "done": self.done}
         kpos = {e: j for j, e in enumerate(self.elements)}
         for i, (_, plan, pos) in enumerate(self.plans):
