@@ -410,3 +410,26 @@ def test_rerank_for_looser_targets_equals_a_fresh_select_with_them(monkeypatch):
     fresh = engine.rank(engine.prepare(36.2), loose)            # select() = rank() + the fatigue columns
     assert len(fresh) > 10 and fresh["p_meet"].notna().all()
     pd.testing.assert_frame_equal(again.reset_index(drop=True), fresh.reset_index(drop=True), check_exact=True)
+
+
+def test_notes_as_row_numbers_give_the_texts_and_counts_of_dense_masks():
+    """The validity notes carry their states as row numbers (NoteRows): the joined note texts
+    and note counts of a Q&T batch equal those built from the same notes as dense bool masks."""
+    from selector.routes.evaluate import finish
+    from selector.routes.model_inputs import NoteRows
+    from selector.states.expand import note_codes
+
+    fam, batch = _qt_batch(71.0)
+    res = finish(fam.compute(batch), batch, fam.name)
+    notes = res["notes"]
+    sparse = [m for _, m in notes if isinstance(m, NoteRows)]
+    assert len(sparse) > 100 and any(len(m.rows) for m in sparse)
+    dense = [(msg, np.asarray(m, bool).copy()) for msg, m in notes]
+    for (_, m), (_, d) in zip(notes, dense):
+        if isinstance(m, NoteRows):
+            assert np.array_equal(np.flatnonzero(d), m.rows)
+    ta, tb = {}, {}
+    ca, cb = note_codes(notes, batch.n, ta), note_codes(dense, batch.n, tb)
+    inv_a, inv_b = {v: k for k, v in ta.items()}, {v: k for k, v in tb.items()}
+    assert [inv_a[c] for c in ca.tolist()] == [inv_b[c] for c in cb.tolist()]
+    assert len(set(ca.tolist())) > 10
