@@ -420,7 +420,7 @@ def test_notes_as_row_numbers_give_the_texts_and_counts_of_dense_masks():
     from selector.states.expand import note_codes
 
     fam, batch = _qt_batch(71.0)
-    res = finish(fam.compute(batch), batch, fam.name)
+    res = finish(fam.compute(batch), batch, fam.name, note_rows=True)
     notes = res["notes"]
     sparse = [m for _, m in notes if isinstance(m, NoteRows)]
     assert len(sparse) > 100 and any(len(m.rows) for m in sparse)
@@ -433,3 +433,6 @@ def test_notes_as_row_numbers_give_the_texts_and_counts_of_dense_masks():
     inv_a, inv_b = {v: k for k, v in ta.items()}, {v: k for k, v in tb.items()}
     assert [inv_a[c] for c in ca.tolist()] == [inv_b[c] for c in cb.tolist()]
     assert len(set(ca.tolist())) > 10
+    plain = finish(fam.compute(batch), batch, fam.name)["notes"]          # the default: bool masks
+    assert [m for m, _ in plain] == [m for m, _ in notes]
+    assert all(isinstance(k, np.ndarray) and np.array_equal(k, d) for (_, k), (_, d) in zip(plain, dense))

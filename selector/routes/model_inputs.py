@@ -120,10 +120,10 @@ class NoteRows:
         return m if dtype is None else m.astype(dtype, copy=False)
 
 
-def validity_notes(inputs, res: dict, batch) -> list[tuple[str, np.ndarray]]:
+def validity_notes(inputs, res: dict, batch, rows: bool = False) -> list[tuple[str, np.ndarray]]:
     """``(message, mask)`` notes for every declared input outside its model's registered
-    range (:func:`selector.models.validity.notes`), vectorised over the batch; each mask a
-    :class:`NoteRows` (converts to the bool mask)."""
+    range (:func:`selector.models.validity.notes`), vectorised over the batch; with ``rows``
+    each mask is a :class:`NoteRows` (the states as row numbers; converts to the bool mask)."""
     out = []
     masks: dict = {}
     for inp in inputs:
@@ -132,6 +132,10 @@ def validity_notes(inputs, res: dict, batch) -> list[tuple[str, np.ndarray]]:
             masks[inp.where] = on if on.any() else None
         on = masks[inp.where]
         if on is not None:
-            out += [(msg, NoteRows(at, batch.n)) for msg, at in
-                    validity.notes(inp.model, inp.variable, value(inp.name, res, batch), on, rows=True)]
+            x = value(inp.name, res, batch)
+            if rows:
+                out += [(msg, NoteRows(at, batch.n)) for msg, at in
+                        validity.notes(inp.model, inp.variable, x, on, rows=True)]
+            else:
+                out += validity.notes(inp.model, inp.variable, x, on)
     return out

@@ -146,14 +146,14 @@ def _computed(fam, batch):
     n = batch.n
     size = chunk_states(fam)
     if n <= size:
-        yield slice(0, n), finish(fam.compute(batch), batch, fam.name)
+        yield slice(0, n), finish(fam.compute(batch), batch, fam.name, note_rows=True)
         return
     for a in range(0, n, size):
         b = min(n, a + size)
         mask = np.zeros(n, bool)
         mask[a:b] = True
         sub = batch.subset(mask)
-        yield slice(a, b), finish(fam.compute(sub), sub, fam.name)
+        yield slice(a, b), finish(fam.compute(sub), sub, fam.name, note_rows=True)
 
 
 class Text:
@@ -622,7 +622,7 @@ def expand_narrow(diameter_mm: float | None = 25.0, thickness_mm: float | None =
                 rows += len(next(iter(blocks[j][2].values())))
                 j += 1
             batch, state_no, corner_no = _blocks_batch(glist, blocks[i:j], elements, obj, d, t)
-            res = finish(fam.compute(batch), batch, fam.name)
+            res = finish(fam.compute(batch), batch, fam.name, note_rows=True)
             n = batch.n
             count = np.zeros(n, np.int64)
             for _msg, mask in res.get("notes", []):
