@@ -540,3 +540,35 @@ def evict_oldest(store: dict, most: int) -> None:
             store.pop(next(iter(store)), None)
         except (RuntimeError, StopIteration):
             break
+
+
+def load_arrays(func, args: tuple) -> dict | None:
+    """The named arrays that :func:`save_arrays` stored for ``func`` and ``args`` (keyed like
+    :func:`disk_arrays`: a hash of every source and data file), or None when the disk cache
+    is off or the file is missing, stale or corrupt (never trusted: key and checksum)."""
+    if not disk_enabled():
+        return None
+    key = frame_key(func, args, {})
+    loaded = _load(cache_dir() / f"{func.__module__}.{func.__qualname__}-{key[:32]}.npz", key)
+    if loaded is None:
+        return None
+    try:
+        return _text_arrays_back(_unflatten(loaded[0]))
+    except (KeyError, ValueError, TypeError, IndexError):
+        return None
+
+
+def save_arrays(func, args: tuple, arrays: dict) -> bool:
+    """Write ``arrays`` (numeric or text ndarrays) for ``func`` and ``args`` atomically, replacing
+    an earlier file of the same key (a store that grows: the partial sensitivities of
+    :class:`selector.states.scatter.Sensitivities`); at most :data:`MAX_FRAME_FILES` kept."""
+    if not disk_enabled():
+        return False
+    key = frame_key(func, args, {})
+    stem = f"{func.__module__}.{func.__qualname__}-"
+    path = cache_dir() / f"{stem}{key[:32]}.npz"
+    flat = {f"arr_{i}": v for i, v in enumerate(_flatten(_checked_arrays(arrays)))}
+    ok = _save(path, key, flat, True)
+    if ok:
+        _prune(path.parent, f"{stem}*.npz", MAX_FRAME_FILES)
+    return ok

@@ -159,7 +159,7 @@ def _fresh_memos(monkeypatch):
 
     for mod, name in ((engine, "_LAYOUTS"), (engine, "_LAYOUT_PARTS"), (engine, "_SAMPLES"), (engine, "_VIEWS"),
                       (engine, "_AVOID"), (X, "_STATE_KEYS"), (X, "_STRUCTURES"), (X, "_DIGESTS"),
-                      (scatter, "_PLANS"), (QR, "_SECTION_FREE")):
+                      (scatter, "_PLANS"), (scatter, "_ROW_PLANS"), (QR, "_SECTION_FREE")):
         monkeypatch.setattr(mod, name, {})
     engine._prepare_cached.cache_clear()
     X.expand.cache_clear()
@@ -304,3 +304,135 @@ def test_supplied_core_records_per_distinct_bar_equal_one_record_per_state():
     assert len(S._with_core(batch, props).grades) < batch.n
     for k in ("uts_mpa", "yield_mpa", "elongation_pct", "hardness_hv", "surface_hardness_hv", "case_depth_mm"):
         assert np.array_equal(np.asarray(fast[k], float), np.asarray(slow[k], float), equal_nan=True), k
+
+
+def _sensitivities(prepared):
+    from selector.selection import engine  # noqa: F401  (prepared comes from it)
+
+    m = len(prepared) // 3
+    sec = prepared.attrs["section"]
+    blocks = [{p: prepared[p].to_numpy(float)[k * m:(k + 1) * m] for p in scatter.SAMPLED} for k in range(3)]
+    return scatter.Sensitivities(prepared["state_key"].to_numpy()[:m], *blocks, sec["diameter_mm"],
+                                 sec["thickness_mm"])
+
+
+def _assert_rows_of_effects(sens, prepared, rows):
+    sec = prepared.attrs["section"]
+    eff = scatter.effects(sec["diameter_mm"], sec["thickness_mm"])
+    at = eff["index"].get_indexer(sens.keys[rows])
+    assert sens.elements == eff["elements"] and (at >= 0).all()
+    for p in scatter.SAMPLED:
+        assert np.array_equal(sens.a[p][rows], eff["a"][p][at]), p
+        assert np.array_equal(sens.d_lean[p][rows], eff["d_lean"][p][at], equal_nan=True), p
+        assert np.array_equal(sens.d_rich[p][rows], eff["d_rich"][p][at], equal_nan=True), p
+
+
+def test_sensitivities_of_some_states_then_more_equal_their_rows_of_all_states(monkeypatch):
+    """Sensitivities computed only for the states asked for (the moved-element compute on
+    the thinned rows they interpolate from), then grown to more states, equal those states'
+    rows of the pass over every state (effects), bit for bit."""
+    from selector.selection import engine
+    from selector.selection.targets import meets
+
+    monkeypatch.setenv("SELECTOR_DISK_CACHE", "0")
+    prepared = engine.prepare(52.3)
+    m = len(prepared) // 3
+    sens = _sensitivities(prepared)
+    tight = np.flatnonzero(np.asarray(meets(prepared, {"min_yield_mpa": 900}), bool)[:m])
+    assert 50 < len(tight) < m // 2
+    sens.ensure(tight)
+    assert sens.done.sum() == len(tight)
+    _assert_rows_of_effects(sens, prepared, tight)
+    loose = np.flatnonzero(np.asarray(meets(prepared, {"min_yield_mpa": 500}), bool)[:m])
+    sens.ensure(loose)
+    _assert_rows_of_effects(sens, prepared, np.union1d(tight, loose))
+    sens.ensure(np.arange(m))
+    _assert_rows_of_effects(sens, prepared, np.arange(m))
+
+
+def test_sensitivities_grown_by_a_later_process_from_the_disk_file_equal_a_fresh_pass(monkeypatch, tmp_path):
+    """The partial sensitivities are kept on disk: a later store reads what an earlier one
+    computed (no rows computed again), grows it, and equals the full pass; a corrupt file is
+    rebuilt, never trusted."""
+    from selector import cache
+    from selector.selection import engine
+    from selector.selection.targets import meets
+
+    monkeypatch.setenv("SELECTOR_CACHE_DIR", str(tmp_path))
+    monkeypatch.setenv("SELECTOR_DISK_CACHE", "1")
+    prepared = engine.prepare(38.9)
+    m = len(prepared) // 3
+    first = _sensitivities(prepared)
+    some = np.flatnonzero(np.asarray(meets(prepared, {"min_yield_mpa": 850}), bool)[:m])
+    first.ensure(some)
+    files = list(tmp_path.glob("*_disk_sensitivities*.npz"))
+    assert len(files) == 1
+    later = _sensitivities(prepared)                      # reads the file
+    assert later.plans is None and np.array_equal(later.done, first.done)
+    _assert_rows_of_effects(later, prepared, some)
+    calls = []
+    real = scatter.Batch
+    monkeypatch.setattr(scatter, "Batch", lambda *a, **k: calls.append(len(a[1])) or real(*a, **k))
+    later.ensure(some)                                     # nothing new: no compute
+    assert calls == []
+    more = np.flatnonzero(np.asarray(meets(prepared, {"min_yield_mpa": 600}), bool)[:m])
+    later.ensure(more)
+    assert calls and sum(calls) < sum(len(pl["idx"]) for _, pl, _ in later.plans)
+    monkeypatch.setattr(scatter, "Batch", real)
+    _assert_rows_of_effects(later, prepared, np.union1d(some, more))
+    files[0].write_bytes(files[0].read_bytes()[:-200] + b"x" * 200)   # corrupt
+    assert cache.load_arrays(scatter._disk_sensitivities, later.section) is None
+    again = _sensitivities(prepared)
+    assert not again.done.any() and again.plans is not None
+    again.ensure(more)
+    _assert_rows_of_effects(again, prepared, more)
+
+
+def test_rerank_for_looser_targets_equals_a_fresh_select_with_them(monkeypatch):
+    """Select at a section with tight targets (sensitivities and draws only for the states
+    that meet them), then re-rank the same prepared table for looser targets (more states:
+    only the missing ones computed): the result equals a fresh select with the looser targets."""
+    import pandas as pd
+
+    import selector
+    from selector.selection import engine
+
+    monkeypatch.setenv("SELECTOR_DISK_CACHE", "0")
+    tight = {"min_yield_mpa": 950, "min_elongation_pct": 10}
+    loose = {"min_yield_mpa": 600, "min_elongation_pct": 10}
+    selector.select(tight, diameter_mm=36.2)
+    prepared = engine.prepare(36.2)
+    sens = engine._sample_store(prepared)["sens"]
+    before = int(sens.done.sum())
+    again = engine.rank(prepared, loose)
+    assert sens.done.sum() > before > 0
+    _fresh_memos(monkeypatch)
+    fresh = engine.rank(engine.prepare(36.2), loose)            # select() = rank() + the fatigue columns
+    assert len(fresh) > 10 and fresh["p_meet"].notna().all()
+    pd.testing.assert_frame_equal(again.reset_index(drop=True), fresh.reset_index(drop=True), check_exact=True)
+
+
+def test_notes_as_row_numbers_give_the_texts_and_counts_of_dense_masks():
+    """The validity notes carry their states as row numbers (NoteRows): the joined note texts
+    and note counts of a Q&T batch equal those built from the same notes as dense bool masks."""
+    from selector.routes.evaluate import finish
+    from selector.routes.model_inputs import NoteRows
+    from selector.states.expand import note_codes
+
+    fam, batch = _qt_batch(71.0)
+    res = finish(fam.compute(batch), batch, fam.name, note_rows=True)
+    notes = res["notes"]
+    sparse = [m for _, m in notes if isinstance(m, NoteRows)]
+    assert len(sparse) > 100 and any(len(m.rows) for m in sparse)
+    dense = [(msg, np.asarray(m, bool).copy()) for msg, m in notes]
+    for (_, m), (_, d) in zip(notes, dense):
+        if isinstance(m, NoteRows):
+            assert np.array_equal(np.flatnonzero(d), m.rows)
+    ta, tb = {}, {}
+    ca, cb = note_codes(notes, batch.n, ta), note_codes(dense, batch.n, tb)
+    inv_a, inv_b = {v: k for k, v in ta.items()}, {v: k for k, v in tb.items()}
+    assert [inv_a[c] for c in ca.tolist()] == [inv_b[c] for c in cb.tolist()]
+    assert len(set(ca.tolist())) > 10
+    plain = finish(fam.compute(batch), batch, fam.name)["notes"]          # the default: bool masks
+    assert [m for m, _ in plain] == [m for m, _ in notes]
+    assert all(isinstance(k, np.ndarray) and np.array_equal(k, d) for (_, k), (_, d) in zip(plain, dense))

@@ -165,7 +165,7 @@ def _message(model: str, name: str, value_text: str) -> str:
     return f"{model}: {name} = {value_text}{u} is outside {rng}{u} ({v.reference}); {v.beyond}"
 
 
-def notes(model: str, name: str, values, on=None) -> list[tuple[str, np.ndarray]]:
+def notes(model: str, name: str, values, on=None, rows: bool = False) -> list[tuple[str, np.ndarray]]:
     """Per-state warnings for one input of ``model``, vectorised.
 
     Parameters
@@ -178,6 +178,10 @@ def notes(model: str, name: str, values, on=None) -> list[tuple[str, np.ndarray]
         The values the states actually used; NaN means the model was not used there.
     on : array_like of bool, shape (n,), optional
         The states that used the model (default: all).
+    rows : bool
+        Give each message's states as ascending row numbers instead of a mask (the
+        expansion joins thousands of messages per family; a mask per message costs the
+        whole batch each time).
 
     Returns
     -------
@@ -211,9 +215,12 @@ def notes(model: str, name: str, values, on=None) -> list[tuple[str, np.ndarray]
     order = np.argsort(inv, kind="stable")
     groups = np.split(idx[order], np.cumsum(np.bincount(inv, minlength=len(uniq)))[:-1])
     out = []
-    for u, rows in zip(uniq, groups):
+    for u, at in zip(uniq, groups):
+        if rows:
+            out.append((_message(model, name, _fmt(float(u))), np.sort(at)))
+            continue
         m = np.zeros(x.shape, bool)
-        m[rows] = True
+        m[at] = True
         out.append((_message(model, name, _fmt(float(u))), m))
     return out
 

@@ -68,7 +68,7 @@ BELOW_TABLE_NOTE = ("tensile strength below the lowest row of the tensile-streng
                     "Table 3 / E140 (about 386 MPa, HB 116): the hardness is not estimated from it")
 
 
-def finish(res: dict, batch: Batch, route: str = bands.ANY) -> dict:
+def finish(res: dict, batch: Batch, route: str = bands.ANY, note_rows: bool = False) -> dict:
     """Add what every family shares (in place) and return ``res``: the validity notes of
     every model input the route family ``route`` declares (``RouteFamily.model_inputs``,
     :mod:`selector.routes.model_inputs`: a visible warning, per state, naming the model,
@@ -76,10 +76,12 @@ def finish(res: dict, batch: Batch, route: str = bands.ANY) -> dict:
     for states whose strength is undefined because their hardness is off the conversion
     table, and the 90 % prediction band (``<key>_lo``/``<key>_hi``,
     :mod:`selector.routes.bands`) of tensile and yield strength, elongation and hardness
-    (HV, with its HRC/HB conversions) for the route family ``route``."""
+    (HV, with its HRC/HB conversions) for the route family ``route``.  ``note_rows``: the
+    validity notes carry their states as :class:`selector.routes.model_inputs.NoteRows`
+    (for the expansion, which only joins and counts them) instead of bool masks."""
     if route in families.MODULES:
         declared = families.get(route).model_inputs
-        res.setdefault("notes", []).extend(model_inputs.validity_notes(declared, res, batch))
+        res.setdefault("notes", []).extend(model_inputs.validity_notes(declared, res, batch, rows=note_rows))
     res.pop("model_inputs", None)
     # the steel-table mask looked up once per grade, not per state
     steel = np.isin(np.array([str(g.family) for g in batch.grades] + [""], dtype=str)[:-1],

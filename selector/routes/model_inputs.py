@@ -98,9 +98,32 @@ def mask(names: tuple, res: dict, n: int) -> np.ndarray:
     return out
 
 
-def validity_notes(inputs, res: dict, batch) -> list[tuple[str, np.ndarray]]:
+class NoteRows:
+    """The states a note applies to, kept as ascending row numbers of a batch of ``n``
+    states: ``np.asarray(note_rows, bool)`` gives the (n,) mask, so every reader of
+    ``(message, mask)`` notes works unchanged, and :func:`selector.states.expand.note_codes`
+    reads ``rows`` without building the mask.
+
+    >>> np.asarray(NoteRows(np.array([0, 2]), 4), bool).tolist()
+    [True, False, True, False]
+    """
+
+    __slots__ = ("rows", "n")
+
+    def __init__(self, rows, n: int):
+        self.rows = np.asarray(rows, np.int64)
+        self.n = int(n)
+
+    def __array__(self, dtype=None, copy=None):
+        m = np.zeros(self.n, bool)
+        m[self.rows] = True
+        return m if dtype is None else m.astype(dtype, copy=False)
+
+
+def validity_notes(inputs, res: dict, batch, rows: bool = False) -> list[tuple[str, np.ndarray]]:
     """``(message, mask)`` notes for every declared input outside its model's registered
-    range (:func:`selector.models.validity.notes`), vectorised over the batch."""
+    range (:func:`selector.models.validity.notes`), vectorised over the batch; with ``rows``
+    each mask is a :class:`NoteRows` (the states as row numbers; converts to the bool mask)."""
     out = []
     masks: dict = {}
     for inp in inputs:
@@ -109,5 +132,10 @@ def validity_notes(inputs, res: dict, batch) -> list[tuple[str, np.ndarray]]:
             masks[inp.where] = on if on.any() else None
         on = masks[inp.where]
         if on is not None:
-            out += validity.notes(inp.model, inp.variable, value(inp.name, res, batch), on)
+            x = value(inp.name, res, batch)
+            if rows:
+                out += [(msg, NoteRows(at, batch.n)) for msg, at in
+                        validity.notes(inp.model, inp.variable, x, on, rows=True)]
+            else:
+                out += validity.notes(inp.model, inp.variable, x, on)
     return out

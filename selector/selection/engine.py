@@ -384,11 +384,15 @@ def _sample_store(prepared: pd.DataFrame) -> dict:
         return hit[1]
     sec = prepared.attrs.get("section") or {}
     d, t = sec.get("diameter_mm"), sec.get("thickness_mm")
-    nom = prepared.iloc[:len(prepared) // 3]
+    m = len(prepared) // 3
+    nom = prepared.iloc[:m]
     nom = nom[[c for c in _SAMPLE_INPUTS if c in nom.columns]]
-    eff = scatter.effects(d, t)
-    store = {"nominal": nom, "section": (float(d if t is None else t), d, t),
-             "effect_rows": eff["index"].get_indexer(nom["state_key"].to_numpy()), "draws": {}, "done": {}}
+    # the sensitivities are computed only for the states drawn (scatter.Sensitivities): the
+    # corners are the lean and rich blocks of the prepared table, row-aligned with the nominal one
+    blocks = [{p: prepared[p].to_numpy(float)[k * m:(k + 1) * m] for p in scatter.SAMPLED} for k in range(3)]
+    sens = scatter.Sensitivities(nom["state_key"].to_numpy(), *blocks, d, t)
+    store = {"nominal": nom, "section": (float(d if t is None else t), d, t), "sens": sens,
+             "effect_rows": np.arange(m), "draws": {}, "done": {}}
     evict_oldest(_SAMPLES, 8)
     _SAMPLES[key] = (prepared, store)
     return store
@@ -424,7 +428,8 @@ def samples(prepared: pd.DataFrame, columns=None, rows=None) -> dict:
         same = [k for k in cols if np.array_equal(todo[k], todo[c]) and len(np.flatnonzero(todo[k]))]
         section, d, t = store["section"]
         sub = nom if len(need) == m else nom.iloc[need]
-        drawn = scatter.sample(sub, section, d, t, columns=same, effect_rows=store["effect_rows"][need])
+        drawn = scatter.sample(sub, section, d, t, columns=same, effect_rows=store["effect_rows"][need],
+                               sens=store["sens"])
         for k in same:
             if len(need) == m:
                 store["draws"][k] = drawn[k]

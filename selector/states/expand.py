@@ -22,6 +22,7 @@ from ..errors import NotModelledError
 from ..routes import families as fam_registry
 from ..routes.evaluate import BAND_KEYS, finish, section_args
 from ..routes.families.base import Batch, distinct_rows
+from ..routes.model_inputs import NoteRows
 
 CORNERS = ("lean", "nominal", "rich")
 
@@ -145,14 +146,14 @@ def _computed(fam, batch):
     n = batch.n
     size = chunk_states(fam)
     if n <= size:
-        yield slice(0, n), finish(fam.compute(batch), batch, fam.name)
+        yield slice(0, n), finish(fam.compute(batch), batch, fam.name, note_rows=True)
         return
     for a in range(0, n, size):
         b = min(n, a + size)
         mask = np.zeros(n, bool)
         mask[a:b] = True
         sub = batch.subset(mask)
-        yield slice(a, b), finish(fam.compute(sub), sub, fam.name)
+        yield slice(a, b), finish(fam.compute(sub), sub, fam.name, note_rows=True)
 
 
 class Text:
@@ -210,7 +211,8 @@ def note_codes(notes, n: int, texts: dict) -> np.ndarray:
     texts.setdefault("", 0)
     states, msg_no, msgs = [], [], []
     for j, (msg, mask) in enumerate(notes):
-        idx = np.flatnonzero(np.broadcast_to(np.asarray(mask, bool), (n,)))
+        idx = (mask.rows if isinstance(mask, NoteRows) and mask.n == n
+               else np.flatnonzero(np.broadcast_to(np.asarray(mask, bool), (n,))))
         msgs.append(msg)
         if len(idx):
             states.append(idx)
@@ -620,11 +622,14 @@ def expand_narrow(diameter_mm: float | None = 25.0, thickness_mm: float | None =
                 rows += len(next(iter(blocks[j][2].values())))
                 j += 1
             batch, state_no, corner_no = _blocks_batch(glist, blocks[i:j], elements, obj, d, t)
-            res = finish(fam.compute(batch), batch, fam.name)
+            res = finish(fam.compute(batch), batch, fam.name, note_rows=True)
             n = batch.n
             count = np.zeros(n, np.int64)
             for _msg, mask in res.get("notes", []):
-                count += np.broadcast_to(np.asarray(mask, bool), (n,))
+                if isinstance(mask, NoteRows) and mask.n == n:
+                    count[mask.rows] += 1            # ascending, distinct rows
+                else:
+                    count += np.broadcast_to(np.asarray(mask, bool), (n,))
             parts["grade"].append(gcode[batch.gidx])
             parts["route"].append(np.full(n, ri, np.int16))
             parts["corner"].append(corner_no)

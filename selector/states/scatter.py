@@ -34,7 +34,10 @@ element: the same family ``compute`` the expansion uses, so they follow any mode
 change), at every :data:`THIN`-th value of the route's main parameter (and its last),
 interpolated linearly in between.  Full Monte Carlo through ``compute`` (200 compositions per state) costs about
 200 expansions and is out of the speed budget; the linearisation costs one expansion
-of the nominal block per element of the grade.  Its error is checked against the
+of the nominal block per element of the grade.  The selection computes them only for
+the states it draws (those that meet the targets at nominal; :class:`Sensitivities`,
+the same numbers as the pass over every state) and keeps them per section on disk as
+they grow.  Its error is checked against the
 rich corner (every element at its maximum at once, computed exactly by the
 expansion): see ``docs/methods/selection.md``.
 
@@ -78,12 +81,13 @@ ch. 13 (from memory).
 from __future__ import annotations
 
 import functools
+import hashlib
 
 import numpy as np
 import pandas as pd
 from scipy import special
 
-from ..cache import disk_arrays, disk_table, evict_oldest
+from ..cache import disk_arrays, disk_table, evict_oldest, load_arrays, save_arrays
 from ..catalogue.grades import default_catalogue
 from ..models import conversions
 from ..routes import bands
@@ -361,6 +365,177 @@ def effects(diameter_mm: float | None, thickness_mm: float | None) -> dict:
             "d_lean": anchors["lean"], "d_rich": anchors["rich"]}
 
 
+
+#: hash of the nominal state keys (in a prepared table's order) -> the :func:`_family_plan` of
+#: every route family against those rows (section-independent; a few recent ones)
+_ROW_PLANS: dict = {}
+
+
+def _row_plans(keys: np.ndarray) -> list:
+    """(family, plan, rows of the plan's states in ``keys``) per route family, kept per key order."""
+    h = hashlib.blake2b("\x00".join(keys.tolist()).encode(), digest_size=20).hexdigest()
+    hit = _ROW_PLANS.get(h)
+    if hit is not None:
+        return hit
+    index = pd.Index(keys)
+    out = []
+    for fam in fam_registry.available():
+        plan = _family_plan(fam, None, None, index)
+        if plan is None:
+            continue
+        pos = index.get_indexer(plan["keys"])
+        if (pos < 0).any():
+            raise KeyError(f"states of {fam.name} missing from the prepared table")
+        out.append((fam, plan, pos))
+    evict_oldest(_ROW_PLANS, 4)
+    _ROW_PLANS[h] = out
+    return out
+
+
+def _disk_sensitivities(diameter_mm, thickness_mm):
+    """Names the disk file of :class:`Sensitivities` (its qualified name and the section key the
+    file, :func:`selector.cache.save_arrays`); never called."""
+    raise NotImplementedError("a cache-file name only")
+
+
+class Sensitivities:
+    """The sensitivities of :func:`effects`, computed only for the states asked for.
+
+    Row ``i`` is the ``i``-th of ``keys`` (the nominal block of a prepared table, in its
+    order).  :meth:`ensure` computes the sensitivities of the asked rows that are not yet
+    known: the moved-element ``compute`` runs only on the thinned rows (:data:`THIN`) that
+    those states interpolate from, and each computed thinned row is kept, so a later call
+    that needs more states computes only the missing ones.  ``a[p][rows]``, ``d_lean[p]``,
+    ``d_rich[p]`` and ``elements`` are then the rows of :func:`effects` of those states,
+    bit for bit (each state's value comes from the same element-wise operations on the same
+    inputs; tests/test_speed_equivalence.py).  The anchors come from the table's exact
+    corners.  The computed part is kept in the user's cache directory per section
+    (:func:`selector.cache.save_arrays`), so a later process reads what any earlier one
+    computed and computes only what is new.
+
+    Parameters
+    ----------
+    keys : array of str (M,)
+        State keys of the nominal states.
+    nominal, lean, rich : dict of str -> (M,) arrays
+        The :data:`SAMPLED` columns of the nominal, lean and rich corners, row-aligned.
+    diameter_mm, thickness_mm : float or None
+        The section as given to :func:`expand`.
+    """
+
+    def __init__(self, keys, nominal: dict, lean: dict, rich: dict, diameter_mm, thickness_mm):
+        self.keys = np.asarray(keys).astype(str)
+        self.section = (diameter_mm, thickness_mm)
+        self.m = m = len(self.keys)
+        self.nominal = {p: np.asarray(nominal[p], float) for p in SAMPLED}
+        self.d_lean = {p: -1.0 * (np.asarray(lean[p], float) - self.nominal[p]) for p in SAMPLED}
+        self.d_rich = {p: 1.0 * (np.asarray(rich[p], float) - self.nominal[p]) for p in SAMPLED}
+        self.plans = None
+        self.fam_done, self.fam_raw = {}, {}          # per family no: entries computed, their changes
+        loaded = self._load()
+        if loaded is None:
+            self._plans()
+            self.elements = tuple(sorted({e for _, pl, _ in self.plans for e in pl["elements"]}))
+            self.a = {p: np.zeros((m, len(self.elements))) for p in SAMPLED}
+            self.done = np.zeros(m, bool)
+
+    # -- disk -------------------------------------------------------------------------
+    def _load(self):
+        arr = load_arrays(_disk_sensitivities, self.section)
+        try:
+            if arr is None or not np.array_equal(arr["keys"], self.keys):
+                return None
+            self.elements = tuple(str(e) for e in arr["elements"])
+            self.done = np.array(arr["done"], bool)
+            if self.done.shape != (self.m,):
+                return None
+            k = len(self.elements)
+            self.a = {p: np.zeros((self.m, k)) for p in SAMPLED}
+            i = 0
+            while f"f{i}_pos" in arr:
+                pos, cols = np.asarray(arr[f"f{i}_pos"], np.int64), np.asarray(arr[f"f{i}_cols"], np.int64)
+                for p in SAMPLED:
+                    if f"f{i}_a_{p}" in arr:
+                        self.a[p][np.ix_(pos, cols)] = arr[f"f{i}_a_{p}"]
+                if f"f{i}_done" in arr:
+                    self.fam_done[i] = np.array(arr[f"f{i}_done"], bool)
+                    self.fam_raw[i] = {p: np.array(arr[f"f{i}_r_{p}"], float) for p in SAMPLED
+                                       if f"f{i}_r_{p}" in arr}
+                i += 1
+        except (KeyError, ValueError, TypeError, IndexError):
+            self.fam_done, self.fam_raw = {}, {}
+            return None
+        return True
+
+    def _save(self):
+        """Write what is known (per family: its rows' sensitivities over its own elements, and
+        the computed moved-element changes from which more states are interpolated)."""
+        arrays = {"keys": self.keys, "elements": np.asarray(self.elements, dtype=str), "done": self.done}
+        kpos = {e: j for j, e in enumerate(self.elements)}
+        for i, (_, plan, pos) in enumerate(self.plans):
+            cols = np.array([kpos[e] for e in plan["elements"]], np.int64)
+            arrays[f"f{i}_pos"], arrays[f"f{i}_cols"] = np.asarray(pos, np.int64), cols
+            for p in self.fam_raw.get(i, {}):
+                arrays[f"f{i}_a_{p}"] = np.ascontiguousarray(self.a[p][np.ix_(pos, cols)])
+            if i in self.fam_done:
+                arrays[f"f{i}_done"] = self.fam_done[i]
+                arrays.update({f"f{i}_r_{p}": v for p, v in self.fam_raw[i].items()})
+        save_arrays(_disk_sensitivities, self.section, arrays)
+
+    # -- computing ----------------------------------------------------------------------
+    def _plans(self):
+        if self.plans is None:
+            self.plans = _row_plans(self.keys)
+            fam_of = np.full(self.m, -1, np.int64)
+            local = np.full(self.m, -1, np.int64)
+            for i, (_, plan, pos) in enumerate(self.plans):
+                fam_of[pos] = i
+                local[pos] = np.arange(len(pos))
+            self.fam_of, self.local = fam_of, local
+        return self.plans
+
+    def ensure(self, rows) -> None:
+        """Compute the sensitivities of ``rows`` (indices into ``keys``) not yet known."""
+        rows = np.asarray(rows, np.int64)
+        need = np.unique(rows[~self.done[rows]])
+        if not len(need):
+            return
+        d, t = self.section
+        kpos = {e: j for j, e in enumerate(self.elements)}
+        for i, (fam, plan, pos) in enumerate(self._plans()):
+            loc = self.local[need[self.fam_of[need] == i]]
+            if not len(loc) or not plan["elements"]:
+                continue
+            idx, col, left, right, w, at = (plan[x] for x in ("idx", "col", "left", "right", "w", "at"))
+            done = self.fam_done.setdefault(i, np.zeros(len(idx), bool))
+            raw = self.fam_raw.setdefault(i, {})
+            want = np.zeros(plan["n"], bool)
+            want[left[loc]] = True
+            want[right[loc]] = True
+            ent = np.flatnonzero(want[idx] & ~done)
+            if len(ent):
+                q = len(ent)
+                pert = Batch(plan["grades"], plan["gidx"][ent], {e: v[ent] for e, v in plan["comp"].items()},
+                             {p: v[ent] for p, v in plan["params"].items()},
+                             np.full(q, np.nan if d is None else d), np.full(q, np.nan if t is None else t))
+                res = fam.compute(pert)
+                for p in SAMPLED:
+                    if p not in res:
+                        continue
+                    base = np.where(at[ent] >= 0, self.nominal[p][at[ent]], np.nan)
+                    delta = np.asarray(res[p], float) - base
+                    raw.setdefault(p, np.zeros(len(idx)))[ent] = np.where(np.isfinite(delta), delta, 0.0)
+                done[ent] = True
+            cols = np.array([kpos[e] for e in plan["elements"]], int)
+            for p, r in raw.items():
+                full = np.zeros((plan["n"], len(plan["elements"])))
+                full[idx[done], col[done]] = r[done]
+                vals = w[loc, None] * full[left[loc]] + (1.0 - w[loc])[:, None] * full[right[loc]]
+                self.a[p][np.ix_(pos[loc], cols)] = vals
+        self.done[need] = True
+        self._save()
+
+
 #: the corner anchoring is used where the linear predictor points one way:
 #: |Σ a_e| >= ANCHOR_MIN_SHARE · Σ |a_e| (else the plain linearisation)
 ANCHOR_MIN_SHARE = 0.5
@@ -438,7 +613,7 @@ DRAWABLE = {**{p: p for p in SAMPLED}, "hardness_hrc": "hardness_hv", "surface_h
 
 def sample(nominal: pd.DataFrame, section_mm: float, diameter_mm, thickness_mm,
            n_draws: int = N_DRAWS, seed: int = SEED, dtype=np.float32, columns=None,
-           effect_rows=None) -> dict:
+           effect_rows=None, sens: "Sensitivities | None" = None) -> dict:
     """Monte Carlo draws of every state of ``nominal`` (rows of the nominal corner of
     :func:`expand`, in any order).
 
@@ -462,6 +637,10 @@ def sample(nominal: pd.DataFrame, section_mm: float, diameter_mm, thickness_mm,
     effect_rows : array of int, optional
         The row of each state of ``nominal`` in :func:`effects` (default: looked up by
         ``state_key``; a caller that draws subsets of one table looks them up once).
+        With ``sens``: the rows of ``nominal`` in ``sens.keys``.
+    sens : Sensitivities, optional
+        The sensitivities computed only for the states drawn (:class:`Sensitivities`); the
+        same draws as with :func:`effects` (default), bit for bit.
 
     Returns
     -------
@@ -483,12 +662,19 @@ def sample(nominal: pd.DataFrame, section_mm: float, diameter_mm, thickness_mm,
     >>> s = sample(nom, 60.0, 60.0, None); s["yield_mpa"].shape
     (5007, 200)
     """
-    eff = effects(diameter_mm, thickness_mm)
-    rows = (eff["index"].get_indexer(nominal["state_key"].to_numpy()) if effect_rows is None
-            else np.asarray(effect_rows, np.int64))
+    if sens is None:
+        eff = effects(diameter_mm, thickness_mm)
+        rows = (eff["index"].get_indexer(nominal["state_key"].to_numpy()) if effect_rows is None
+                else np.asarray(effect_rows, np.int64))
+    else:
+        eff = {"elements": sens.elements, "a": sens.a, "d_lean": sens.d_lean, "d_rich": sens.d_rich}
+        rows = (pd.Index(sens.keys).get_indexer(nominal["state_key"].to_numpy().astype(str))
+                if effect_rows is None else np.asarray(effect_rows, np.int64))
     if (rows < 0).any():
         raise KeyError("states missing from the sensitivities: " + ", ".join(
             nominal["state_key"].to_numpy()[rows < 0][:3]))
+    if sens is not None:
+        sens.ensure(rows)
     dr = draws(eff["elements"], n_draws, seed)
     zt = dr["z"].T                                         # (K, D)
     q = _band_quantiles(nominal, section_mm)
