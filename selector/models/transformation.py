@@ -181,6 +181,16 @@ def isothermal_time_s(comp, temp_c, fraction, reaction="ferrite", grain_size_ast
     return tau1 * s_integral(fraction)
 
 
+def _convert_in_proportion(on, s, x, f, avail, ds):
+    """One step of a reaction (pearlite or bainite) that converts the austenite present in
+    proportion to its normalised progress: the Scheil sum ``s`` grows by ``ds`` where ``on``;
+    returns the new sum, progress, fraction formed and austenite left."""
+    s = np.where(on, s + ds, s)
+    xn = _x_of_s(s)
+    d = np.where(on, avail * _clip((xn - x) / np.maximum(1 - x, 1e-9), 0, 1), 0.0)
+    return s, xn, f + d, avail - d
+
+
 def continuous_cooling_fractions(comp, cooling_rate_c_s, austenitize_c=845.0, bath_c=25.0,
                                  grain_size_astm=8.0, step_c=2.0):
     """Phase fractions after continuous cooling at a given rate at 700 °C (Li 1998 + Scheil + KM).
@@ -252,20 +262,12 @@ def continuous_cooling_fractions(comp, cooling_rate_c_s, austenitize_c=845.0, ba
         # pearlite and bainite convert the austenite present in proportion to normalised progress
         onP = (tm < ae1) & above_ms
         if onP.any():
-            sP = np.where(onP, sP + dt * np.maximum(ae1 - tm, 0) ** 3 * arr / kP, sP)
-            xPn = _x_of_s(sP)
-            dP = np.where(onP, avail * _clip((xPn - xP) / np.maximum(1 - xP, 1e-9), 0, 1), 0.0)
-            xP = xPn
-            fP = fP + dP
-            avail = avail - dP
+            sP, xP, fP, avail = _convert_in_proportion(onP, sP, xP, fP, avail,
+                                                       dt * np.maximum(ae1 - tm, 0) ** 3 * arr / kP)
         onB = (tm < bs) & above_ms
         if onB.any():
-            sB = np.where(onB, sB + dt * np.maximum(bs - tm, 0) ** 2 * arr / kB, sB)
-            xBn = _x_of_s(sB)
-            dB = np.where(onB, avail * _clip((xBn - xB) / np.maximum(1 - xB, 1e-9), 0, 1), 0.0)
-            xB = xBn
-            fB = fB + dB
-            avail = avail - dB
+            sB, xB, fB, avail = _convert_in_proportion(onB, sB, xB, fB, avail,
+                                                       dt * np.maximum(bs - tm, 0) ** 2 * arr / kB)
         if tm <= ms_top or np.isnan(ms_top):
             aust_at_ms = np.where(np.isnan(aust_at_ms) & ~above_ms, avail, aust_at_ms)
             if tm <= ms_top and not np.isnan(aust_at_ms).any():

@@ -238,11 +238,17 @@ def _severe(quench: np.ndarray) -> np.ndarray:
     return sev[inv].reshape(np.shape(quench))
 
 
-def _quench_cracking(f: _Frame, ctx: dict) -> np.ndarray:
-    # the route's own quench, or the prior through-hardening quench of an induction route
+def _severe_quench_and_limit(f: _Frame) -> tuple[np.ndarray, np.ndarray]:
+    """Rows quenched in water or brine (the route's own quench, or the prior through-hardening
+    quench of an induction route), and each row's cracking carbon limit (inf: none)."""
     severe = _severe(f.quench) | _severe(f.prior_quench)
     u, inv = np.unique(f.family.astype(str), return_inverse=True)
     limit = np.array([QUENCH_CRACK_C_PCT.get(fam, np.inf) for fam in u], float)[inv]
+    return severe, limit
+
+
+def _quench_cracking(f: _Frame, ctx: dict) -> np.ndarray:
+    severe, limit = _severe_quench_and_limit(f)
     return severe & _ge(f.c_pct - limit, -1e-9)
 
 
@@ -259,9 +265,7 @@ def _c_max_pct(grade: str) -> float:
 def _quench_cracking_range(f: _Frame, ctx: dict) -> np.ndarray:
     # the same severe quench of a steel whose nominal carbon is below the limit of quench_cracking
     # but whose specification range reaches it: a heat bought to the grade can be at the limit
-    severe = _severe(f.quench) | _severe(f.prior_quench)
-    u, inv = np.unique(f.family.astype(str), return_inverse=True)
-    limit = np.array([QUENCH_CRACK_C_PCT.get(fam, np.inf) for fam in u], float)[inv]
+    severe, limit = _severe_quench_and_limit(f)
     g, ginv = np.unique(f.grade.astype(str), return_inverse=True)
     c_max = np.array([_c_max_pct(x) for x in g], float)[ginv]
     below = ~_ge(f.c_pct - limit, -1e-9)
