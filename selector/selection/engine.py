@@ -377,7 +377,10 @@ _SAMPLE_INPUTS = ("state_key", "family", "route", bands.BAND_FREE) + tuple(scatt
 def _sample_store(prepared: pd.DataFrame) -> dict:
     """The draws kept with ``prepared`` (a few recent tables): the narrow nominal block that
     :func:`selector.states.scatter.sample` reads, each state's row of the sensitivities, and
-    per column the (m, N_DRAWS) draws with the mask of the rows drawn so far."""
+    per column the draws of the rows drawn so far, compact: ``draws[c]`` (k, N_DRAWS) holds
+    the drawn rows in the order they were drawn and ``pos[c]`` (m,) the row of each nominal
+    state in it (-1: not drawn), so that no (m, N_DRAWS) array is allocated for the few
+    states a selection draws."""
     key = id(prepared)
     hit = _SAMPLES.get(key)
     if hit is not None and hit[0] is prepared:
@@ -392,21 +395,18 @@ def _sample_store(prepared: pd.DataFrame) -> dict:
     blocks = [{p: prepared[p].to_numpy(float)[k * m:(k + 1) * m] for p in scatter.SAMPLED} for k in range(3)]
     sens = scatter.Sensitivities(nom["state_key"].to_numpy(), *blocks, d, t)
     store = {"nominal": nom, "section": (float(d if t is None else t), d, t), "sens": sens,
-             "effect_rows": np.arange(m), "draws": {}, "done": {}}
+             "effect_rows": np.arange(m), "draws": {}, "pos": {}}
     evict_oldest(_SAMPLES, 8)
     _SAMPLES[key] = (prepared, store)
     return store
 
 
-def samples(prepared: pd.DataFrame, columns=None, rows=None) -> dict:
-    """Monte Carlo draws (:func:`selector.states.scatter.sample`) of the nominal block
-    of ``prepared``, row-aligned with it: ``{column: (m, N_DRAWS) array}`` for
-    ``columns`` (default every drawable column), each drawn on first use and kept with
-    the prepared table (a few recent ones), so that a re-rank only re-thresholds them.
-    ``rows`` (a boolean mask or indices of the nominal block) draws only those states
-    (the others are NaN until drawn); a state's draws do not depend on which others are
-    drawn with it (:data:`selector.states.scatter.SAMPLE_BLOCK_ROWS`)."""
-    cols = list(scatter.DRAWABLE) if columns is None else list(columns)
+def _drawn(prepared: pd.DataFrame, columns, rows=None) -> tuple[dict, dict]:
+    """``(draws, pos)`` of ``columns``: the compact draws of :func:`_sample_store` after
+    drawing the states of ``rows`` (a boolean mask or indices of the nominal block; None:
+    every state) not drawn yet.  A state's draws do not depend on which others are drawn
+    with it (:data:`selector.states.scatter.SAMPLE_BLOCK_ROWS`)."""
+    cols = list(columns)
     store = _sample_store(prepared)
     nom = store["nominal"]
     m = len(nom)
@@ -416,10 +416,10 @@ def samples(prepared: pd.DataFrame, columns=None, rows=None) -> dict:
         rows = np.asarray(rows)
         want = rows.astype(bool) if rows.dtype == bool else np.isin(np.arange(m), rows)
     for c in cols:
-        if c not in store["draws"]:
-            store["draws"][c] = np.full((m, scatter.N_DRAWS), np.nan, np.float32)
-            store["done"][c] = np.zeros(m, bool)
-    todo = {c: want & ~store["done"][c] for c in cols}
+        if c not in store["pos"]:
+            store["pos"][c] = np.full(m, -1, np.int64)
+            store["draws"][c] = np.zeros((0, scatter.N_DRAWS), np.float32)
+    todo = {c: want & (store["pos"][c] < 0) for c in cols}
     for c in cols:
         need = np.flatnonzero(todo[c])
         if not len(need):
@@ -431,13 +431,30 @@ def samples(prepared: pd.DataFrame, columns=None, rows=None) -> dict:
         drawn = scatter.sample(sub, section, d, t, columns=same, effect_rows=store["effect_rows"][need],
                                sens=store["sens"])
         for k in same:
-            if len(need) == m:
-                store["draws"][k] = drawn[k]
-            else:
-                store["draws"][k][need] = drawn[k]
-            store["done"][k][need] = True
+            old = store["draws"][k]
+            store["draws"][k] = drawn[k] if not len(old) else np.concatenate([old, drawn[k]])
+            store["pos"][k][need] = len(old) + np.arange(len(need))
             todo[k] = np.zeros(m, bool)
-    return {c: store["draws"][c] for c in cols}
+    return {c: store["draws"][c] for c in cols}, {c: store["pos"][c] for c in cols}
+
+
+def samples(prepared: pd.DataFrame, columns=None, rows=None) -> dict:
+    """Monte Carlo draws (:func:`selector.states.scatter.sample`) of the nominal block
+    of ``prepared``, row-aligned with it: ``{column: (m, N_DRAWS) array}`` for
+    ``columns`` (default every drawable column), each drawn on first use and kept with
+    the prepared table (a few recent ones), so that a re-rank only re-thresholds them.
+    ``rows`` (a boolean mask or indices of the nominal block) draws only those states
+    (the others are NaN until drawn); a state's draws do not depend on which others are
+    drawn with it (:data:`selector.states.scatter.SAMPLE_BLOCK_ROWS`)."""
+    cols = list(scatter.DRAWABLE) if columns is None else list(columns)
+    draws, pos = _drawn(prepared, cols, rows)
+    out = {}
+    for c in cols:
+        at = np.flatnonzero(pos[c] >= 0)
+        full = np.full((len(pos[c]), scatter.N_DRAWS), np.nan, np.float32)
+        full[at] = draws[c][pos[c][at]]
+        out[c] = full
+    return out
 
 
 def p_meet(prepared: pd.DataFrame, targets: dict | None, rows=None) -> np.ndarray:
@@ -458,15 +475,17 @@ def p_meet(prepared: pd.DataFrame, targets: dict | None, rows=None) -> np.ndarra
         if rows.shape != (m,):
             raise ValueError(f"rows: a mask of the {m} nominal states, not shape {rows.shape}")
         idx = np.flatnonzero(rows)
-    sm = samples(prepared, sorted({NUMERIC_TARGETS[k][0] for k in t if k in NUMERIC_TARGETS}
-                                  & set(scatter.DRAWABLE)), rows=idx)
+    sm, pos = _drawn(prepared, sorted({NUMERIC_TARGETS[k][0] for k in t if k in NUMERIC_TARGETS}
+                                      & set(scatter.DRAWABLE)), rows=idx)
     ok = None
     for key in NUMERIC_TARGETS:
         if key not in t:
             continue
         col, side = NUMERIC_TARGETS[key]
         if col in sm:
-            v = sm[col] if idx is None else sm[col][idx]
+            at = pos[col] if idx is None else pos[col][idx]
+            # the compact draws as they are where they hold exactly these rows in this order
+            v = sm[col] if len(at) == len(sm[col]) and np.array_equal(at, np.arange(len(at))) else sm[col][at]
         else:
             v = nom[col].to_numpy(float)[:, None]
             v = v if idx is None else v[idx]
