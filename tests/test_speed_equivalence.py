@@ -111,6 +111,24 @@ def test_compact_draws_grown_in_steps_equal_the_draws_of_every_state():
     assert np.isfinite(again["yield_mpa"]).mean() > 0.9             # not a comparison of NaN
 
 
+def test_note_counts_kept_by_the_expansion_equal_the_counts_read_from_the_texts():
+    """The number of notes of each distinct notes text, counted from its messages as the text
+    is joined (expand.note_codes), equals the count read from the text (" | "-separated)."""
+    from selector.states import expand as X
+
+    for d in (12.0, 41.3):
+        st = X._expand_built(d, None)
+        notes = st.cols["notes"]
+        read = [0 if not x else x.count(" | ") + 1 for x in notes.uniques]
+        assert notes.counts is not None and notes.counts.tolist() == read
+        assert max(read) >= 3                                          # several notes joined
+    texts, kept = {}, {}
+    msgs = [("a | b", np.array([True, True, False])), ("c", np.array([True, False, True])), ("", np.ones(3, bool))]
+    X.note_codes(msgs, 3, texts, kept)
+    assert X.note_counts(texts, kept).tolist() == [0 if not x else x.count(" | ") + 1 for x in texts]
+    assert set(kept) == set()                                      # a "|" or an empty message: read from the text
+
+
 def test_prepared_table_from_the_kept_layout_equals_a_fresh_layout(monkeypatch):
     """The variant keys, main values and row order kept per structure digest (from an
     earlier section) give the prepared table of a build with no kept layout, bit for bit;

@@ -263,43 +263,92 @@ def _prepared_from_columns(st: StatesColumns, d, thickness_mm, length_mm: float,
     """The prepared table from the expansion's columns: each column taken in the layout's
     order once (numeric columns by numpy, text columns as codes), the cost columns computed
     on the ordered arrays; the same frame as costing, laying out and taking the states table
-    (tests/test_speed_equivalence.py)."""
+    (tests/test_speed_equivalence.py).  The text columns that are the same at every section
+    (grade, route, the window parameters ...) are taken once per layout and shared by the
+    prepared tables of later sections (:func:`_taken_text`; pandas copies on write)."""
     variant, main, vcode, order = _kept_layout(st, st.digest)
     data = {}
     for k, v in st.cols.items():
-        data[k] = column_series(k, Text(v.codes[order], v.uniques)) if isinstance(v, Text) else np.asarray(v)[order]
-    data["state_key"] = pd.Series(st.state_key.take(order))
-    cost = _cost_columns(data["relative_price"], st.cols["grade"], order, data["route"], data["family"],
+        data[k] = _taken_text(k, v, order) if isinstance(v, Text) else np.asarray(v)[order]
+    data["state_key"] = _taken(("state_key",), order, st.state_key, lambda: pd.Series(st.state_key.take(order)))
+    cost = _cost_columns(data["relative_price"], st.cols["grade"], order, st.cols["route"], st.cols["family"],
                          data["density_g_cm3"], length_mm, price_sheet, d, thickness_mm)
     data.update(cost)
-    data["variant"] = variant[order]
+    data["variant"] = _taken(("variant",), order, variant, lambda: pd.Series(variant[order]))
     data["main_value"] = main[order]
     data["variant_code"] = vcode[order]
     notes = st.cols["notes"]
-    per = np.array([0 if not x else x.count(" | ") + 1 for x in notes.uniques], dtype=np.int64)
+    per = (np.asarray(notes.counts, np.int64) if notes.counts is not None
+           else np.array([0 if not x else x.count(" | ") + 1 for x in notes.uniques], dtype=np.int64))
     codes = notes.codes[order]
     data["n_notes"] = (per[codes] if len(per) and not np.any(codes < 0)
                        else [0 if not x else x.count(" | ") + 1 for x in data["notes"]])
     return _with_section(pd.DataFrame(data, copy=False), d, thickness_mm, length_mm)
 
 
+#: (column, id(row order)) -> (row order, source, its check, the column taken in that order): the
+#: columns of :func:`_prepared_from_columns` that are the same at every section (a few recent)
+_TAKEN: dict = {}
+
+
+def _taken(key: tuple, order: np.ndarray, source, build, check=None):
+    """``build()`` (a column of ``source`` taken in ``order``), kept while ``order`` is the same
+    object and ``source`` the same object or, given ``check`` (a function of two sources), the
+    same values."""
+    k = key + (id(order),)
+    hit = _TAKEN.get(k)
+    if hit is not None and hit[0] is order and (hit[1] is source or (check is not None and check(hit[1], source))):
+        return hit[2]
+    out = build()
+    evict_oldest(_TAKEN, 64)
+    _TAKEN[k] = (order, source, out)
+    return out
+
+
+def _same_text(a: Text, b: Text) -> bool:
+    return a.uniques == b.uniques and np.array_equal(a.codes, b.codes)
+
+
+def _taken_text(name: str, v: Text, order: np.ndarray) -> pd.Series:
+    """The text column ``v`` taken in ``order`` (as :func:`column_series`), kept per column and
+    order while its codes and texts are equal (the notes, new at every section, are not kept)."""
+    build = lambda: column_series(name, Text(v.codes[order], v.uniques))  # noqa: E731
+    if name == "notes":
+        return build()
+    return _taken((name,), order, v, build, _same_text)
+
+
 def _cost_columns(price, grade: Text, order, route, family, density, length_mm, price_sheet, d, thickness_mm
                   ) -> dict:
-    """The columns of :func:`costed` over arrays in the prepared order (``grade`` the
-    expansion's codes, taken by ``order``)."""
+    """The columns of :func:`costed` over arrays in the prepared order (``grade``, ``route``
+    and ``family`` the expansion's :class:`Text` columns, taken by ``order``)."""
     price = np.asarray(price, float).copy()
-    src = np.full(len(price), "catalogue (indicative)", dtype=object)
     price_sheet = cost_mod.check_price_sheet(price_sheet)
     if price_sheet:
+        src = np.full(len(price), "catalogue (indicative)", dtype=object)
         gcodes = grade.codes[order]
         where = {g: i for i, g in enumerate(grade.uniques)}
         for gid, p in price_sheet.items():
             m = gcodes == where.get(gid, -2)
             price[m] = p
             src[m] = "price sheet"
-    rel = cost_mod.relative_cost_per_kg(price, route.to_numpy(dtype=object), family.to_numpy(dtype=object))
+        src = pd.Series(src)
+    else:
+        n = len(price)
+        src = _taken(("price_source", n), _NO_ORDER, None,
+                     lambda: pd.Series(np.full(n, "catalogue (indicative)", dtype=object)))
+    rc, fc = route.codes[order], family.codes[order]
+    if (len(rc) and rc.min() < 0) or (len(fc) and fc.min() < 0):
+        rel = cost_mod.relative_cost_per_kg(price, column_series("route", Text(rc, route.uniques)).to_numpy(object),
+                                            column_series("family", Text(fc, family.uniques)).to_numpy(object))
+    else:
+        rel = cost_mod.relative_cost_from_codes(price, rc, route.uniques, fc, family.uniques)
     mass = cost_mod.part_mass_kg(np.asarray(density, float), d, thickness_mm, length_mm)
     return {"relative_cost": rel, "mass_kg": mass, "part_cost": rel * mass, "price_source": src}
+
+
+#: the order under which a column that depends on the row count only is kept (:func:`_taken`)
+_NO_ORDER = np.zeros(0, np.int64)
 
 
 def _with_section(out: pd.DataFrame, d, thickness_mm, length_mm) -> pd.DataFrame:
