@@ -225,18 +225,19 @@ def note_codes(notes, n: int, texts: dict, n_notes: dict | None = None) -> np.nd
     ['', 'a | b', 'a']
     """
     texts.setdefault("", 0)
-    states, msg_no, msgs = [], [], []
+    states, msg_no, sizes, msgs = [], [], [], []
     for j, (msg, mask) in enumerate(notes):
         idx = (mask.rows if isinstance(mask, NoteRows) and mask.n == n
                else np.flatnonzero(np.broadcast_to(np.asarray(mask, bool), (n,))))
         msgs.append(msg)
         if len(idx):
             states.append(idx)
-            msg_no.append(np.full(len(idx), j, np.int64))
+            msg_no.append(j)
+            sizes.append(len(idx))
     out = np.zeros(n, np.int64)
     if not states:
         return out
-    st, mj = np.concatenate(states), np.concatenate(msg_no)
+    st, mj = np.concatenate(states), np.repeat(np.asarray(msg_no, np.int64), sizes)
     order = np.lexsort((mj, st))
     st, mj = st[order], mj[order]
     counts = np.bincount(st, minlength=n)
@@ -253,12 +254,15 @@ def note_codes(notes, n: int, texts: dict, n_notes: dict | None = None) -> np.nd
         n_msg = (rows_u >= 0).sum(axis=1)
         exact = plain[rows_u].all(axis=1).tolist()        # -1 (padding) reads the last: True
         n_msg = n_msg.tolist()
-    for u, row in enumerate(rows_u.tolist()):
-        text = " | ".join([msgs[j] for j in row if j >= 0])
-        size = len(texts)
-        code = code_of[u] = texts.setdefault(text, size)
-        if n_notes is not None and code == size and exact[u]:
-            n_notes[code] = n_msg[u]
+    joined = [" | ".join([msgs[j] for j in row if j >= 0]) for row in rows_u.tolist()]
+    get = texts.get
+    for u, text in enumerate(joined):
+        code = get(text)
+        if code is None:
+            code = texts[text] = len(texts)
+            if n_notes is not None and exact[u]:
+                n_notes[code] = n_msg[u]
+        code_of[u] = code
     out[has] = code_of[inv]
     return out
 
