@@ -204,7 +204,7 @@ def _fresh_memos(monkeypatch):
 
     for mod, name in ((engine, "_LAYOUTS"), (engine, "_LAYOUT_PARTS"), (engine, "_SAMPLES"), (engine, "_VIEWS"),
                       (engine, "_AVOID"), (X, "_STATE_KEYS"), (X, "_STRUCTURES"), (X, "_DIGESTS"),
-                      (scatter, "_PLANS"), (scatter, "_ROW_PLANS"), (QR, "_SECTION_FREE")):
+                      (scatter, "_PLANS"), (scatter, "_ROW_PLANS"), (QR, "_SECTION_FREE"), (engine, "_TAKEN")):
         monkeypatch.setattr(mod, name, {})
     engine._prepare_cached.cache_clear()
     X.expand.cache_clear()

@@ -274,7 +274,7 @@ def _prepared_from_columns(st: StatesColumns, d, thickness_mm, length_mm: float,
     cost = _cost_columns(data["relative_price"], st.cols["grade"], order, st.cols["route"], st.cols["family"],
                          data["density_g_cm3"], length_mm, price_sheet, d, thickness_mm)
     data.update(cost)
-    data["variant"] = _taken(("variant",), order, variant, lambda: pd.Series(variant[order]))
+    data["variant"] = _taken(("variant",), order, variant, lambda: pd.Series(variant[order]), _same_array)
     data["main_value"] = main[order]
     data["variant_code"] = vcode[order]
     notes = st.cols["notes"]
@@ -286,23 +286,29 @@ def _prepared_from_columns(st: StatesColumns, d, thickness_mm, length_mm: float,
     return _with_section(pd.DataFrame(data, copy=False), d, thickness_mm, length_mm)
 
 
-#: (column, id(row order)) -> (row order, source, its check, the column taken in that order): the
-#: columns of :func:`_prepared_from_columns` that are the same at every section (a few recent)
+#: (column, rows) -> (row order, source, the column taken in that order): the columns of
+#: :func:`_prepared_from_columns` that are the same at every section (a few recent)
 _TAKEN: dict = {}
 
 
 def _taken(key: tuple, order: np.ndarray, source, build, check=None):
-    """``build()`` (a column of ``source`` taken in ``order``), kept while ``order`` is the same
-    object and ``source`` the same object or, given ``check`` (a function of two sources), the
-    same values."""
-    k = key + (id(order),)
+    """``build()`` (a column of ``source`` taken in ``order``), kept while ``order`` has the same
+    values (a section whose window parameters hold a model result lays its rows out anew, most
+    often in the same order) and ``source`` is the same object or, given ``check`` (a function
+    of two sources), has the same values."""
+    k = key + (len(order),)
     hit = _TAKEN.get(k)
-    if hit is not None and hit[0] is order and (hit[1] is source or (check is not None and check(hit[1], source))):
+    if hit is not None and (hit[0] is order or np.array_equal(hit[0], order)) \
+            and (hit[1] is source or (check is not None and check(hit[1], source))):
         return hit[2]
     out = build()
     evict_oldest(_TAKEN, 64)
     _TAKEN[k] = (order, source, out)
     return out
+
+
+def _same_array(a: np.ndarray, b: np.ndarray) -> bool:
+    return a.dtype == b.dtype and np.array_equal(a, b)
 
 
 def _same_text(a: Text, b: Text) -> bool:
@@ -349,6 +355,7 @@ def _cost_columns(price, grade: Text, order, route, family, density, length_mm, 
 
 #: the order under which a column that depends on the row count only is kept (:func:`_taken`)
 _NO_ORDER = np.zeros(0, np.int64)
+_NO_ORDER.setflags(write=False)
 
 
 def _with_section(out: pd.DataFrame, d, thickness_mm, length_mm) -> pd.DataFrame:
