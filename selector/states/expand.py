@@ -254,7 +254,11 @@ def note_codes(notes, n: int, texts: dict, n_notes: dict | None = None) -> np.nd
         n_msg = (rows_u >= 0).sum(axis=1)
         exact = plain[rows_u].all(axis=1).tolist()        # -1 (padding) reads the last: True
         n_msg = n_msg.tolist()
-    joined = [" | ".join([msgs[j] for j in row if j >= 0]) for row in rows_u.tolist()]
+    # in blocks of rows: a few hundred row lists alive at a time, not thousands (each burst of
+    # live containers runs the cyclic garbage collector, and survivors push it to full passes)
+    joined = []
+    for a in range(0, len(rows_u), 256):
+        joined += [" | ".join([msgs[j] for j in row if j >= 0]) for row in rows_u[a:a + 256].tolist()]
     get = texts.get
     for u, text in enumerate(joined):
         code = get(text)
