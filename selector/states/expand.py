@@ -279,11 +279,16 @@ def family_columns(fam, batch, state_no, corner, notes_texts: dict, n_notes: dic
     results: dict = {}
     notes = np.zeros(n, np.int64)
     for rows, res in _computed(fam, batch):
+        whole = rows.start == 0 and rows.stop == n
         for col in RESULT_COLUMNS:
             if col in res:
+                v = np.asarray(res[col], float)
+                if whole and v.shape == (n,):
+                    results[col] = v          # one chunk: the result itself (the table copies it)
+                    continue
                 if col not in results:
                     results[col] = np.full(n, np.nan)
-                results[col][rows] = np.asarray(res[col], float)
+                results[col][rows] = v
         notes[rows] = note_codes(res.get("notes", []), rows.stop - rows.start, notes_texts, n_notes)
         del res
     gcodes = np.asarray(batch.gidx, np.int64)
