@@ -34,7 +34,6 @@ from __future__ import annotations
 import functools
 import hashlib
 import inspect
-import io
 import os
 import sys
 import tempfile
@@ -168,13 +167,13 @@ def _load(path: Path, key: str):
 def _save(path: Path, key: str, arrays: dict, was_tuple: bool) -> bool:
     try:
         path.parent.mkdir(parents=True, exist_ok=True)
-        buf = io.BytesIO()
-        np.savez(buf, **arrays, **{_KEY_NAME: np.array(key), _SUM_NAME: np.array(checksum(arrays)),
-                                   _TUPLE_NAME: np.array(was_tuple)})
+        total = checksum(arrays)
         fd, tmp = tempfile.mkstemp(prefix=path.name + ".", suffix=".tmp", dir=path.parent)
         try:
             with os.fdopen(fd, "wb") as f:
-                f.write(buf.getvalue())
+                # straight into the file (no in-memory copy of the whole archive first)
+                np.savez(f, **arrays, **{_KEY_NAME: np.array(key), _SUM_NAME: np.array(total),
+                                         _TUPLE_NAME: np.array(was_tuple)})
                 f.flush()
                 os.fsync(f.fileno())
             os.replace(tmp, path)
@@ -336,9 +335,8 @@ def frame_to_arrays(df) -> dict | None:
             arrays.append(s.to_numpy())
             dtypes.append(dt.str)
         elif str(dt) in ("str", "object") or isinstance(dt, pd.StringDtype):
-            vals = s.to_numpy(dtype=object)
             try:
-                codes, uniques = pd.factorize(vals, use_na_sentinel=True)
+                codes, uniques = _text_codes(s)
             except TypeError:                # unhashable values (lists ...): not a text column
                 return None
             if not all(isinstance(v, str) for v in uniques):
@@ -363,6 +361,35 @@ def frame_to_arrays(df) -> dict | None:
     out["__text_counts__"] = np.array(counts, np.int64)
     out["__dtypes__"] = np.array(dtypes, dtype=str)
     return out
+
+
+def _text_codes(s) -> tuple:
+    """``(codes, uniques)`` of a text column (code -1: missing) for :func:`frame_to_arrays`: a
+    str column factorized as it is stored; an object column by the identity of its values (its
+    rows share one object per distinct text: each long text is neither hashed nor compared
+    again per row; equal texts held as two objects are stored twice and read back equal)."""
+    import pandas as pd
+
+    if s.dtype != object:
+        codes, uniques = pd.factorize(s, use_na_sentinel=True)
+        return np.asarray(codes), uniques.tolist()
+    vals = s.to_numpy(dtype=object)
+    n = len(vals)
+    ids = np.fromiter(map(id, vals), np.uint64, count=n)
+    codes, _ = pd.factorize(ids)
+    codes = np.asarray(codes, np.int64)
+    k = int(codes.max()) + 1 if n else 0
+    first = np.empty(k, np.int64)
+    first[codes[::-1]] = np.arange(n - 1, -1, -1)            # each code's first row
+    objs = vals[first]
+    na = np.asarray(pd.isna(objs), bool) if k else np.zeros(0, bool)
+    if na.any():
+        remap = np.cumsum(~na) - 1
+        remap[na] = -1
+        codes, objs = remap[codes], objs[~na]
+    for v in objs:
+        hash(v)                      # an unhashable value (a list ...) is not text: TypeError
+    return codes, list(objs)
 
 
 def arrays_to_frame(arrays: dict):

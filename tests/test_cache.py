@@ -192,6 +192,22 @@ def test_frame_layout_refuses_what_it_cannot_hold():
     assert cache.frame_to_arrays(pd.DataFrame({"a": [[1, 2]]})) is None
 
 
+def test_object_text_column_coded_by_its_values_objects_round_trips_exactly():
+    """An object text column is coded by the identity of its values (rows that share one str
+    object share a code): equal texts held as distinct objects, missing values (None, NaN)
+    and shared objects all read back equal; a non-text or unhashable value is refused."""
+    long = "note " * 300
+    twin = "".join(["note "] * 300)                          # equal text, another object
+    assert long == twin and long is not twin
+    df = pd.DataFrame({"n": pd.Series([long, None, twin, long, np.nan, "a"], dtype=object)})
+    arrays = cache.frame_to_arrays(df)
+    back = cache.arrays_to_frame(arrays)
+    pd.testing.assert_frame_equal(back, df, check_exact=True)
+    assert back["n"].dtype == object and back["n"].isna().tolist() == [False, True, False, False, True, False]
+    assert cache.frame_to_arrays(pd.DataFrame({"n": pd.Series(["a", 1.5], dtype=object)})) is None
+    assert cache.frame_to_arrays(pd.DataFrame({"n": pd.Series(["a", ["b"]], dtype=object)})) is None
+
+
 def test_frame_file_holds_a_few_stacked_arrays_not_several_per_column():
     df = pd.DataFrame({f"x{i}": np.arange(4, dtype=float) + i for i in range(30)}
                       | {f"t{i}": ["a", "b", None, "a"] for i in range(10)} | {"n": [1, 2, 3, 4]})

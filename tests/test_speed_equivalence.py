@@ -84,6 +84,51 @@ def test_p_meet_on_the_nominal_rows_equals_p_meet_of_all_rows():
     assert 0.0 < whole[nominal].mean() < 1.0                 # the comparison is not between constants
 
 
+def test_compact_draws_grown_in_steps_equal_the_draws_of_every_state():
+    """The draws kept with a prepared table hold only the states drawn (compact rows and the
+    row of each state): drawn in two steps (scattered rows, then the rest) they equal the draws
+    of every state at once, and the states not yet drawn read as NaN."""
+    from selector.selection import engine
+
+    engine._SAMPLES.clear()
+    prepared = engine.prepare(41.3)
+    m = len(prepared) // 3
+    nom = prepared.iloc[:m]
+    cols = ["yield_mpa", "elongation_pct", "hardness_hrc"]
+    whole = scatter.sample(nom, 41.3, 41.3, None, columns=cols)
+    some = np.flatnonzero(np.arange(m) % 9 == 4)
+    first = engine.samples(prepared, cols, rows=some)
+    rest = np.setdiff1d(np.arange(m), some)
+    for c in cols:
+        assert np.array_equal(first[c][some], whole[c][some], equal_nan=True), c
+        assert np.isnan(first[c][rest]).all(), c
+    store = engine._sample_store(prepared)
+    assert len(store["draws"]["yield_mpa"]) == len(some)          # only the drawn rows are kept
+    again = engine.samples(prepared, cols)                         # draws the rest
+    assert len(store["draws"]["yield_mpa"]) == m
+    for c in cols:
+        assert np.array_equal(again[c], whole[c], equal_nan=True), c
+    assert np.isfinite(again["yield_mpa"]).mean() > 0.9             # not a comparison of NaN
+
+
+def test_note_counts_kept_by_the_expansion_equal_the_counts_read_from_the_texts():
+    """The number of notes of each distinct notes text, counted from its messages as the text
+    is joined (expand.note_codes), equals the count read from the text (" | "-separated)."""
+    from selector.states import expand as X
+
+    for d in (12.0, 41.3):
+        st = X._expand_built(d, None)
+        notes = st.cols["notes"]
+        read = [0 if not x else x.count(" | ") + 1 for x in notes.uniques]
+        assert notes.counts is not None and notes.counts.tolist() == read
+        assert max(read) >= 3                                          # several notes joined
+    texts, kept = {}, {}
+    msgs = [("a | b", np.array([True, True, False])), ("c", np.array([True, False, True])), ("", np.ones(3, bool))]
+    X.note_codes(msgs, 3, texts, kept)
+    assert X.note_counts(texts, kept).tolist() == [0 if not x else x.count(" | ") + 1 for x in texts]
+    assert set(kept) == set()                                      # a "|" or an empty message: read from the text
+
+
 def test_prepared_table_from_the_kept_layout_equals_a_fresh_layout(monkeypatch):
     """The variant keys, main values and row order kept per structure digest (from an
     earlier section) give the prepared table of a build with no kept layout, bit for bit;
@@ -159,7 +204,7 @@ def _fresh_memos(monkeypatch):
 
     for mod, name in ((engine, "_LAYOUTS"), (engine, "_LAYOUT_PARTS"), (engine, "_SAMPLES"), (engine, "_VIEWS"),
                       (engine, "_AVOID"), (X, "_STATE_KEYS"), (X, "_STRUCTURES"), (X, "_DIGESTS"),
-                      (scatter, "_PLANS"), (scatter, "_ROW_PLANS"), (QR, "_SECTION_FREE")):
+                      (scatter, "_PLANS"), (scatter, "_ROW_PLANS"), (QR, "_SECTION_FREE"), (engine, "_TAKEN")):
         monkeypatch.setattr(mod, name, {})
     engine._prepare_cached.cache_clear()
     X.expand.cache_clear()

@@ -212,16 +212,41 @@ def notes(model: str, name: str, values, on=None, rows: bool = False) -> list[tu
         return []
     idx = np.flatnonzero(bad)
     uniq, inv = np.unique(_round_sig(x[idx]), return_inverse=True)
-    order = np.argsort(inv, kind="stable")
-    groups = np.split(idx[order], np.cumsum(np.bincount(inv, minlength=len(uniq)))[:-1])
+    # each value's states in ascending order: a stable sort by value keeps idx's order
+    srt = idx[np.argsort(inv, kind="stable")] if len(uniq) > 1 else idx
+    ends = np.cumsum(np.bincount(inv.reshape(-1), minlength=len(uniq))).tolist()
+    texts = _messages(v, model, name, uniq.tolist())
     out = []
-    for u, at in zip(uniq, groups):
+    a = 0
+    for text, b in zip(texts, ends):
+        at = srt[a:b]
+        a = b
         if rows:
-            out.append((_message(model, name, _fmt(float(u))), np.sort(at)))
+            out.append((text, at))
             continue
         m = np.zeros(x.shape, bool)
         m[at] = True
-        out.append((_message(model, name, _fmt(float(u))), m))
+        out.append((text, m))
+    return out
+
+
+#: (model, variable) -> (its registry entry, {rounded value: message}) of :func:`notes` (the
+#: same values recur from section to section: each message is written once)
+_MESSAGES: dict = {}
+
+
+def _messages(v, model: str, name: str, values: list) -> list:
+    """:func:`_message` of each value (written as :func:`_fmt`), kept per registry entry."""
+    hit = _MESSAGES.get((model, name))
+    if hit is None or hit[0] is not v or hit[1] != v.ranges[name] or len(hit[2]) > 20_000:
+        hit = _MESSAGES[(model, name)] = (v, v.ranges[name], {})
+    kept = hit[2]
+    out = []
+    for u in values:
+        text = kept.get(u)
+        if text is None:
+            text = kept[u] = _message(model, name, _fmt(float(u)))
+        out.append(text)
     return out
 
 

@@ -74,12 +74,35 @@ def _table() -> dict:
             for r in t.itertuples(index=False)}
 
 
+#: (families, route, section bands, property) -> (band table, q_lo, q_hi, mode) of :func:`quantiles`
+#: for short arrays (the selection looks the band up once per distinct family and section)
+_KEPT: dict = {}
+#: longest arrays whose quantiles are kept
+KEPT_MAX_ROWS = 64
+
+
 def quantiles(families, route: str, section_mm, prop: str) -> tuple[np.ndarray, np.ndarray, str]:
     """(q_lo, q_hi, mode) per state for ``prop``: the most specific group of the band
     table that exists (family, route, section band → family, route → route → any)."""
     table = _table()
     fam = np.asarray(families, dtype=object)
     sb = section_band(section_mm)
+    n = fam.shape[0]
+    key = None
+    if fam.ndim == 1 and n <= KEPT_MAX_ROWS and sb.shape == fam.shape:
+        key = (tuple(fam.tolist()), route, tuple(sb.tolist()), prop)
+        hit = _KEPT.get(key)
+        if hit is not None and hit[0] is table:
+            return hit[1].copy(), hit[2].copy(), hit[3]
+    lo, hi, mode = _quantiles(table, fam, sb, route, prop)
+    if key is not None:
+        if len(_KEPT) >= 4096:
+            _KEPT.clear()
+        _KEPT[key] = (table, lo.copy(), hi.copy(), mode)
+    return lo, hi, mode
+
+
+def _quantiles(table, fam, sb, route, prop):
     n = fam.shape[0]
     mode = PROPERTIES[prop]
     lo, hi = np.full(n, np.nan), np.full(n, np.nan)

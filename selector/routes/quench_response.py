@@ -108,8 +108,11 @@ def _hrc_to_hv(hrc):
 
 
 #: content digest of the inputs -> the section-independent parts of :func:`as_quenched_profile`
-#: (a few recent batches: the catalogue's compositions recur at every section)
+#: (the recently used batches: the catalogue's compositions recur at every section; one new
+#: section reads about 16 of them, the expansion's families and their cores)
 _SECTION_FREE: dict = {}
+#: most entries of :data:`_SECTION_FREE` (least recently used dropped first)
+SECTION_FREE_ENTRIES = 128
 _SECTION_FREE_LOCK = threading.Lock()
 
 
@@ -127,11 +130,13 @@ def _section_free(tag: str, comp: dict, arrays: tuple, build):
         h.update(b"|" + str(v.shape).encode() + v.tobytes())
     key = h.hexdigest()
     with _SECTION_FREE_LOCK:
-        hit = _SECTION_FREE.get(key)
+        hit = _SECTION_FREE.pop(key, None)
+        if hit is not None:
+            _SECTION_FREE[key] = hit                 # most recently used last
     if hit is None:
         hit = tuple(np.array(v, copy=True) for v in build())
         with _SECTION_FREE_LOCK:
-            evict_oldest(_SECTION_FREE, 32)
+            evict_oldest(_SECTION_FREE, SECTION_FREE_ENTRIES)
             _SECTION_FREE[key] = hit
     return tuple(v.copy() for v in hit)
 

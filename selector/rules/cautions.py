@@ -174,8 +174,8 @@ class _Frame:
         self.family = self._str(frame, "family")
         route_col = "route_family" if "route_family" in frame.columns else "route"
         self.route = self._str(frame, route_col)
-        self.quench = np.char.lower(self._str(frame, "quench").astype(str))
-        self.prior_quench = np.char.lower(self._str(frame, "prior_quench").astype(str))
+        self.quench = self._str(frame, "quench", lower=True)
+        self.prior_quench = self._str(frame, "prior_quench", lower=True)
         self.prior = self._str(frame, "prior")
         self.designation = self._str(frame, "designation")
         for col in ("temper_temp_c", "age_temp_c", "peak_ratio", "c_pct", "hardness_hrc",
@@ -186,12 +186,19 @@ class _Frame:
         self.age_temp_c = np.where(np.isnan(self.age_temp_c) & (self.route == "age"), self.temp_c,
                                    self.age_temp_c)
 
-    def _str(self, frame, col) -> np.ndarray:
+    def _str(self, frame, col, lower: bool = False) -> np.ndarray:
+        """The column as stripped text ("" where missing), an object array; ``lower``: lower
+        case, a str array.  Written once per distinct value and taken per row."""
         if col not in frame.columns:
-            return np.full(self.n, "", dtype=object)
+            out = np.full(self.n, "", dtype=object)
+            return np.char.lower(out.astype(str)) if lower else out
         s = frame[col]
-        out = s.where(s.notna(), "").astype(str).str.strip().to_numpy(dtype=object)
-        return out
+        codes, uniq = pd.factorize(s, use_na_sentinel=True)
+        text = pd.Series(uniq, dtype=s.dtype).astype(str).str.strip().to_numpy(dtype=object)
+        text = np.append(text, np.array([""], dtype=object))           # code -1: missing
+        if lower:
+            text = np.char.lower(text.astype(str))
+        return text[codes]
 
     def _num(self, frame, col) -> np.ndarray:
         if col not in frame.columns:

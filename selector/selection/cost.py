@@ -134,16 +134,36 @@ def relative_cost_per_kg(price_per_kg: np.ndarray, routes: np.ndarray, families:
                          ) -> np.ndarray:
     """Relative cost per kg: the price per kg plus the adder of the route (of the route and the
     grade's family where ``data/route_costs.csv`` names it)."""
-    add = route_adders()
     rcodes, runiq = pd.factorize(np.asarray(routes, dtype=object))     # a few routes, many states
     if families is None:
+        return _relative_cost(price_per_kg, rcodes, runiq, None, None, routes)
+    fcodes, funiq = pd.factorize(np.asarray(families, dtype=object))
+    return _relative_cost(price_per_kg, rcodes, runiq, fcodes, funiq, routes)
+
+
+def relative_cost_from_codes(price_per_kg: np.ndarray, route_codes, routes, family_codes, families) -> np.ndarray:
+    """:func:`relative_cost_per_kg` of states given as codes into their distinct routes and
+    families (``routes[route_codes]``, ``families[family_codes]``; no code -1): the adder
+    looked up once per distinct pair, the same numbers."""
+    rcodes, fcodes = np.asarray(route_codes, np.int64), np.asarray(family_codes, np.int64)
+    if (len(rcodes) and rcodes.min() < 0) or (len(fcodes) and fcodes.min() < 0):
+        raise ValueError("route and family codes: no missing value (-1)")
+    return _relative_cost(price_per_kg, rcodes, list(routes), fcodes, list(families),
+                          lambda: np.asarray(list(routes), dtype=object)[rcodes])
+
+
+def _relative_cost(price_per_kg, rcodes, runiq, fcodes, funiq, routes) -> np.ndarray:
+    """The adders of :func:`relative_cost_per_kg` over codes (``routes``: the routes per state,
+    or a function returning them, read only to name a route without an adder)."""
+    add = route_adders()
+    if fcodes is None:
         adders = np.array([add.get(r, np.nan) for r in runiq], float)[rcodes]
     else:
         fam = family_adders()
-        fcodes, funiq = pd.factorize(np.asarray(families, dtype=object))
         table = np.array([[fam.get((r, f), add.get(r, np.nan)) for f in funiq] for r in runiq], float)
         adders = table.reshape(len(runiq), len(funiq))[rcodes, fcodes]
     if np.isnan(adders).any():
+        routes = routes() if callable(routes) else routes
         missing = sorted({r for r, a in zip(np.asarray(routes, dtype=object), adders) if a != a})
         raise InputError("route", missing[0], f"a route with a cost adder in data/route_costs.csv ({', '.join(add)})")
     return np.asarray(price_per_kg, float) + adders

@@ -263,43 +263,99 @@ def _prepared_from_columns(st: StatesColumns, d, thickness_mm, length_mm: float,
     """The prepared table from the expansion's columns: each column taken in the layout's
     order once (numeric columns by numpy, text columns as codes), the cost columns computed
     on the ordered arrays; the same frame as costing, laying out and taking the states table
-    (tests/test_speed_equivalence.py)."""
+    (tests/test_speed_equivalence.py).  The text columns that are the same at every section
+    (grade, route, the window parameters ...) are taken once per layout and shared by the
+    prepared tables of later sections (:func:`_taken_text`; pandas copies on write)."""
     variant, main, vcode, order = _kept_layout(st, st.digest)
     data = {}
     for k, v in st.cols.items():
-        data[k] = column_series(k, Text(v.codes[order], v.uniques)) if isinstance(v, Text) else np.asarray(v)[order]
-    data["state_key"] = pd.Series(st.state_key.take(order))
-    cost = _cost_columns(data["relative_price"], st.cols["grade"], order, data["route"], data["family"],
+        data[k] = _taken_text(k, v, order) if isinstance(v, Text) else np.asarray(v)[order]
+    data["state_key"] = _taken(("state_key",), order, st.state_key, lambda: pd.Series(st.state_key.take(order)))
+    cost = _cost_columns(data["relative_price"], st.cols["grade"], order, st.cols["route"], st.cols["family"],
                          data["density_g_cm3"], length_mm, price_sheet, d, thickness_mm)
     data.update(cost)
-    data["variant"] = variant[order]
+    data["variant"] = _taken(("variant",), order, variant, lambda: pd.Series(variant[order]), _same_array)
     data["main_value"] = main[order]
     data["variant_code"] = vcode[order]
     notes = st.cols["notes"]
-    per = np.array([0 if not x else x.count(" | ") + 1 for x in notes.uniques], dtype=np.int64)
+    per = (np.asarray(notes.counts, np.int64) if notes.counts is not None
+           else np.array([0 if not x else x.count(" | ") + 1 for x in notes.uniques], dtype=np.int64))
     codes = notes.codes[order]
     data["n_notes"] = (per[codes] if len(per) and not np.any(codes < 0)
                        else [0 if not x else x.count(" | ") + 1 for x in data["notes"]])
     return _with_section(pd.DataFrame(data, copy=False), d, thickness_mm, length_mm)
 
 
+#: (column, rows) -> (row order, source, the column taken in that order): the columns of
+#: :func:`_prepared_from_columns` that are the same at every section (a few recent)
+_TAKEN: dict = {}
+
+
+def _taken(key: tuple, order: np.ndarray, source, build, check=None):
+    """``build()`` (a column of ``source`` taken in ``order``), kept while ``order`` has the same
+    values (a section whose window parameters hold a model result lays its rows out anew, most
+    often in the same order) and ``source`` is the same object or, given ``check`` (a function
+    of two sources), has the same values."""
+    k = key + (len(order),)
+    hit = _TAKEN.get(k)
+    if hit is not None and (hit[0] is order or np.array_equal(hit[0], order)) \
+            and (hit[1] is source or (check is not None and check(hit[1], source))):
+        return hit[2]
+    out = build()
+    evict_oldest(_TAKEN, 64)
+    _TAKEN[k] = (order, source, out)
+    return out
+
+
+def _same_array(a: np.ndarray, b: np.ndarray) -> bool:
+    return a.dtype == b.dtype and np.array_equal(a, b)
+
+
+def _same_text(a: Text, b: Text) -> bool:
+    return a.uniques == b.uniques and np.array_equal(a.codes, b.codes)
+
+
+def _taken_text(name: str, v: Text, order: np.ndarray) -> pd.Series:
+    """The text column ``v`` taken in ``order`` (as :func:`column_series`), kept per column and
+    order while its codes and texts are equal (the notes, new at every section, are not kept)."""
+    build = lambda: column_series(name, Text(v.codes[order], v.uniques))  # noqa: E731
+    if name == "notes":
+        return build()
+    return _taken((name,), order, v, build, _same_text)
+
+
 def _cost_columns(price, grade: Text, order, route, family, density, length_mm, price_sheet, d, thickness_mm
                   ) -> dict:
-    """The columns of :func:`costed` over arrays in the prepared order (``grade`` the
-    expansion's codes, taken by ``order``)."""
+    """The columns of :func:`costed` over arrays in the prepared order (``grade``, ``route``
+    and ``family`` the expansion's :class:`Text` columns, taken by ``order``)."""
     price = np.asarray(price, float).copy()
-    src = np.full(len(price), "catalogue (indicative)", dtype=object)
     price_sheet = cost_mod.check_price_sheet(price_sheet)
     if price_sheet:
+        src = np.full(len(price), "catalogue (indicative)", dtype=object)
         gcodes = grade.codes[order]
         where = {g: i for i, g in enumerate(grade.uniques)}
         for gid, p in price_sheet.items():
             m = gcodes == where.get(gid, -2)
             price[m] = p
             src[m] = "price sheet"
-    rel = cost_mod.relative_cost_per_kg(price, route.to_numpy(dtype=object), family.to_numpy(dtype=object))
+        src = pd.Series(src)
+    else:
+        n = len(price)
+        src = _taken(("price_source", n), _NO_ORDER, None,
+                     lambda: pd.Series(np.full(n, "catalogue (indicative)", dtype=object)))
+    rc, fc = route.codes[order], family.codes[order]
+    if (len(rc) and rc.min() < 0) or (len(fc) and fc.min() < 0):
+        rel = cost_mod.relative_cost_per_kg(price, column_series("route", Text(rc, route.uniques)).to_numpy(object),
+                                            column_series("family", Text(fc, family.uniques)).to_numpy(object))
+    else:
+        rel = cost_mod.relative_cost_from_codes(price, rc, route.uniques, fc, family.uniques)
     mass = cost_mod.part_mass_kg(np.asarray(density, float), d, thickness_mm, length_mm)
     return {"relative_cost": rel, "mass_kg": mass, "part_cost": rel * mass, "price_source": src}
+
+
+#: the order under which a column that depends on the row count only is kept (:func:`_taken`)
+_NO_ORDER = np.zeros(0, np.int64)
+_NO_ORDER.setflags(write=False)
 
 
 def _with_section(out: pd.DataFrame, d, thickness_mm, length_mm) -> pd.DataFrame:
@@ -377,7 +433,10 @@ _SAMPLE_INPUTS = ("state_key", "family", "route", bands.BAND_FREE) + tuple(scatt
 def _sample_store(prepared: pd.DataFrame) -> dict:
     """The draws kept with ``prepared`` (a few recent tables): the narrow nominal block that
     :func:`selector.states.scatter.sample` reads, each state's row of the sensitivities, and
-    per column the (m, N_DRAWS) draws with the mask of the rows drawn so far."""
+    per column the draws of the rows drawn so far, compact: ``draws[c]`` (k, N_DRAWS) holds
+    the drawn rows in the order they were drawn and ``pos[c]`` (m,) the row of each nominal
+    state in it (-1: not drawn), so that no (m, N_DRAWS) array is allocated for the few
+    states a selection draws."""
     key = id(prepared)
     hit = _SAMPLES.get(key)
     if hit is not None and hit[0] is prepared:
@@ -392,21 +451,18 @@ def _sample_store(prepared: pd.DataFrame) -> dict:
     blocks = [{p: prepared[p].to_numpy(float)[k * m:(k + 1) * m] for p in scatter.SAMPLED} for k in range(3)]
     sens = scatter.Sensitivities(nom["state_key"].to_numpy(), *blocks, d, t)
     store = {"nominal": nom, "section": (float(d if t is None else t), d, t), "sens": sens,
-             "effect_rows": np.arange(m), "draws": {}, "done": {}}
+             "effect_rows": np.arange(m), "draws": {}, "pos": {}}
     evict_oldest(_SAMPLES, 8)
     _SAMPLES[key] = (prepared, store)
     return store
 
 
-def samples(prepared: pd.DataFrame, columns=None, rows=None) -> dict:
-    """Monte Carlo draws (:func:`selector.states.scatter.sample`) of the nominal block
-    of ``prepared``, row-aligned with it: ``{column: (m, N_DRAWS) array}`` for
-    ``columns`` (default every drawable column), each drawn on first use and kept with
-    the prepared table (a few recent ones), so that a re-rank only re-thresholds them.
-    ``rows`` (a boolean mask or indices of the nominal block) draws only those states
-    (the others are NaN until drawn); a state's draws do not depend on which others are
-    drawn with it (:data:`selector.states.scatter.SAMPLE_BLOCK_ROWS`)."""
-    cols = list(scatter.DRAWABLE) if columns is None else list(columns)
+def _drawn(prepared: pd.DataFrame, columns, rows=None) -> tuple[dict, dict]:
+    """``(draws, pos)`` of ``columns``: the compact draws of :func:`_sample_store` after
+    drawing the states of ``rows`` (a boolean mask or indices of the nominal block; None:
+    every state) not drawn yet.  A state's draws do not depend on which others are drawn
+    with it (:data:`selector.states.scatter.SAMPLE_BLOCK_ROWS`)."""
+    cols = list(columns)
     store = _sample_store(prepared)
     nom = store["nominal"]
     m = len(nom)
@@ -416,10 +472,10 @@ def samples(prepared: pd.DataFrame, columns=None, rows=None) -> dict:
         rows = np.asarray(rows)
         want = rows.astype(bool) if rows.dtype == bool else np.isin(np.arange(m), rows)
     for c in cols:
-        if c not in store["draws"]:
-            store["draws"][c] = np.full((m, scatter.N_DRAWS), np.nan, np.float32)
-            store["done"][c] = np.zeros(m, bool)
-    todo = {c: want & ~store["done"][c] for c in cols}
+        if c not in store["pos"]:
+            store["pos"][c] = np.full(m, -1, np.int64)
+            store["draws"][c] = np.zeros((0, scatter.N_DRAWS), np.float32)
+    todo = {c: want & (store["pos"][c] < 0) for c in cols}
     for c in cols:
         need = np.flatnonzero(todo[c])
         if not len(need):
@@ -431,13 +487,30 @@ def samples(prepared: pd.DataFrame, columns=None, rows=None) -> dict:
         drawn = scatter.sample(sub, section, d, t, columns=same, effect_rows=store["effect_rows"][need],
                                sens=store["sens"])
         for k in same:
-            if len(need) == m:
-                store["draws"][k] = drawn[k]
-            else:
-                store["draws"][k][need] = drawn[k]
-            store["done"][k][need] = True
+            old = store["draws"][k]
+            store["draws"][k] = drawn[k] if not len(old) else np.concatenate([old, drawn[k]])
+            store["pos"][k][need] = len(old) + np.arange(len(need))
             todo[k] = np.zeros(m, bool)
-    return {c: store["draws"][c] for c in cols}
+    return {c: store["draws"][c] for c in cols}, {c: store["pos"][c] for c in cols}
+
+
+def samples(prepared: pd.DataFrame, columns=None, rows=None) -> dict:
+    """Monte Carlo draws (:func:`selector.states.scatter.sample`) of the nominal block
+    of ``prepared``, row-aligned with it: ``{column: (m, N_DRAWS) array}`` for
+    ``columns`` (default every drawable column), each drawn on first use and kept with
+    the prepared table (a few recent ones), so that a re-rank only re-thresholds them.
+    ``rows`` (a boolean mask or indices of the nominal block) draws only those states
+    (the others are NaN until drawn); a state's draws do not depend on which others are
+    drawn with it (:data:`selector.states.scatter.SAMPLE_BLOCK_ROWS`)."""
+    cols = list(scatter.DRAWABLE) if columns is None else list(columns)
+    draws, pos = _drawn(prepared, cols, rows)
+    out = {}
+    for c in cols:
+        at = np.flatnonzero(pos[c] >= 0)
+        full = np.full((len(pos[c]), scatter.N_DRAWS), np.nan, np.float32)
+        full[at] = draws[c][pos[c][at]]
+        out[c] = full
+    return out
 
 
 def p_meet(prepared: pd.DataFrame, targets: dict | None, rows=None) -> np.ndarray:
@@ -458,15 +531,17 @@ def p_meet(prepared: pd.DataFrame, targets: dict | None, rows=None) -> np.ndarra
         if rows.shape != (m,):
             raise ValueError(f"rows: a mask of the {m} nominal states, not shape {rows.shape}")
         idx = np.flatnonzero(rows)
-    sm = samples(prepared, sorted({NUMERIC_TARGETS[k][0] for k in t if k in NUMERIC_TARGETS}
-                                  & set(scatter.DRAWABLE)), rows=idx)
+    sm, pos = _drawn(prepared, sorted({NUMERIC_TARGETS[k][0] for k in t if k in NUMERIC_TARGETS}
+                                      & set(scatter.DRAWABLE)), rows=idx)
     ok = None
     for key in NUMERIC_TARGETS:
         if key not in t:
             continue
         col, side = NUMERIC_TARGETS[key]
         if col in sm:
-            v = sm[col] if idx is None else sm[col][idx]
+            at = pos[col] if idx is None else pos[col][idx]
+            # the compact draws as they are where they hold exactly these rows in this order
+            v = sm[col] if len(at) == len(sm[col]) and np.array_equal(at, np.arange(len(at))) else sm[col][at]
         else:
             v = nom[col].to_numpy(float)[:, None]
             v = v if idx is None else v[idx]

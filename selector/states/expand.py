@@ -160,11 +160,13 @@ class Text:
     """A text column as integer codes into its distinct values (``codes`` -1: missing): the
     expansion builds every text column this way and writes each distinct text once."""
 
-    __slots__ = ("codes", "uniques")
+    __slots__ = ("codes", "uniques", "counts")
 
-    def __init__(self, codes: np.ndarray, uniques):
+    def __init__(self, codes: np.ndarray, uniques, counts=None):
         self.codes = np.asarray(codes, np.int64)
         self.uniques = list(uniques)
+        #: of the notes column: the number of notes of each distinct text (None: not known)
+        self.counts = counts
 
     @classmethod
     def of(cls, values) -> "Text | None":
@@ -191,13 +193,27 @@ class Text:
         return uniq[self.codes]
 
 
-def note_codes(notes, n: int, texts: dict) -> np.ndarray:
+def note_counts(texts: dict, counts: dict) -> np.ndarray:
+    """The number of notes of each text of ``texts`` (text -> code) in code order: its count
+    from :func:`note_codes` (``counts``, code -> count) where kept, else as the text reads
+    (``" | "``-separated; 0 for the empty text)."""
+    out = np.zeros(len(texts), np.int64)
+    for text, code in texts.items():
+        c = counts.get(code)
+        out[code] = c if c is not None else (0 if not text else text.count(" | ") + 1)
+    return out
+
+
+def note_codes(notes, n: int, texts: dict, n_notes: dict | None = None) -> np.ndarray:
     """Codes (n,) of the joined notes of each state into ``texts`` (text -> code, extended in
     place; code 0 is the empty text): every ``(message, mask)`` pair that applies to a state, in
     the order of ``notes``, joined by " | ".  The messages of a state are gathered as a padded
     row of message numbers, and the text is written once per distinct row (a family's
     thousands of validity messages made the per-message string concatenation over every state
-    the largest cost of the expansion).
+    the largest cost of the expansion).  ``n_notes`` (code -> number of notes, extended in place
+    for each new text): a text joined from messages that hold no ``"|"`` and are not empty
+    counts its messages (what ``text.count(" | ") + 1`` reads); the others are left out (read
+    from the text by :func:`note_counts`).
 
     Example (illustrative)
 
@@ -209,18 +225,19 @@ def note_codes(notes, n: int, texts: dict) -> np.ndarray:
     ['', 'a | b', 'a']
     """
     texts.setdefault("", 0)
-    states, msg_no, msgs = [], [], []
+    states, msg_no, sizes, msgs = [], [], [], []
     for j, (msg, mask) in enumerate(notes):
         idx = (mask.rows if isinstance(mask, NoteRows) and mask.n == n
                else np.flatnonzero(np.broadcast_to(np.asarray(mask, bool), (n,))))
         msgs.append(msg)
         if len(idx):
             states.append(idx)
-            msg_no.append(np.full(len(idx), j, np.int64))
+            msg_no.append(j)
+            sizes.append(len(idx))
     out = np.zeros(n, np.int64)
     if not states:
         return out
-    st, mj = np.concatenate(states), np.concatenate(msg_no)
+    st, mj = np.concatenate(states), np.repeat(np.asarray(msg_no, np.int64), sizes)
     order = np.lexsort((mj, st))
     st, mj = st[order], mj[order]
     counts = np.bincount(st, minlength=n)
@@ -231,27 +248,48 @@ def note_codes(notes, n: int, texts: dict) -> np.ndarray:
     sub = np.ascontiguousarray(rows[has])
     first, inv = distinct_rows(sub)
     code_of = np.empty(len(first), np.int64)
-    for u, row in enumerate(sub[first].tolist()):
-        text = " | ".join([msgs[j] for j in row if j >= 0])
-        code_of[u] = texts.setdefault(text, len(texts))
+    rows_u = sub[first]
+    if n_notes is not None:
+        plain = np.array([bool(m_) and "|" not in m_ for m_ in msgs] + [True], bool)
+        n_msg = (rows_u >= 0).sum(axis=1)
+        exact = plain[rows_u].all(axis=1).tolist()        # -1 (padding) reads the last: True
+        n_msg = n_msg.tolist()
+    # in blocks of rows: a few hundred row lists alive at a time, not thousands (each burst of
+    # live containers runs the cyclic garbage collector, and survivors push it to full passes)
+    joined = []
+    for a in range(0, len(rows_u), 256):
+        joined += [" | ".join([msgs[j] for j in row if j >= 0]) for row in rows_u[a:a + 256].tolist()]
+    get = texts.get
+    for u, text in enumerate(joined):
+        code = get(text)
+        if code is None:
+            code = texts[text] = len(texts)
+            if n_notes is not None and exact[u]:
+                n_notes[code] = n_msg[u]
+        code_of[u] = code
     out[has] = code_of[inv]
     return out
 
 
-def family_columns(fam, batch, state_no, corner, notes_texts: dict) -> dict:
+def family_columns(fam, batch, state_no, corner, notes_texts: dict, n_notes: dict | None = None) -> dict:
     """The columns of one family's states: name -> numeric ndarray or :class:`Text`
-    (``notes``: codes into ``notes_texts``, see :func:`note_codes`), computed in chunks of
-    :data:`CHUNK_STATES`."""
+    (``notes``: codes into ``notes_texts``, see :func:`note_codes`, with ``n_notes``),
+    computed in chunks of :data:`CHUNK_STATES`."""
     n = batch.n
     results: dict = {}
     notes = np.zeros(n, np.int64)
     for rows, res in _computed(fam, batch):
+        whole = rows.start == 0 and rows.stop == n
         for col in RESULT_COLUMNS:
             if col in res:
+                v = np.asarray(res[col], float)
+                if whole and v.shape == (n,):
+                    results[col] = v          # one chunk: the result itself (the table copies it)
+                    continue
                 if col not in results:
                     results[col] = np.full(n, np.nan)
-                results[col][rows] = np.asarray(res[col], float)
-        notes[rows] = note_codes(res.get("notes", []), rows.stop - rows.start, notes_texts)
+                results[col][rows] = v
+        notes[rows] = note_codes(res.get("notes", []), rows.stop - rows.start, notes_texts, n_notes)
         del res
     gcodes = np.asarray(batch.gidx, np.int64)
     cols = {"grade": Text(gcodes, [g.id for g in batch.grades]),
@@ -386,6 +424,7 @@ def _expand_built(d, t, grades=None, families=None):
     (the states table) where a column changes kind across families."""
     fams = fam_registry.available() if families is None else families
     texts: dict = {}
+    counts: dict = {}
     parts, kept = [], []
     for f in fams:
         blocks, is_kept = _blocks_of(f, grades or None, CORNERS)
@@ -394,7 +433,7 @@ def _expand_built(d, t, grades=None, families=None):
         if built is None:
             continue
         batch, state_no, corner = built
-        parts.append(family_columns(f, batch, state_no, Text.of(corner), texts))
+        parts.append(family_columns(f, batch, state_no, Text.of(corner), texts, counts))
     n = sum(len(c["state"]) for c in parts)
     cols = _concat(parts, n)
     if cols is None:
@@ -406,7 +445,7 @@ def _expand_built(d, t, grades=None, families=None):
         df["state_key"] = pd.Series((df["grade"] + "|" + df["route"] + "|" + df["state"].astype(str)).array)
         return df
     digest = _kept_digest(cols, kept)
-    cols["notes"] = Text(cols["notes"], list(texts))
+    cols["notes"] = Text(cols["notes"], list(texts), note_counts(texts, counts))
     for col in RESULT_COLUMNS:
         if col not in cols:
             cols[col] = np.full(n, np.nan)

@@ -87,7 +87,7 @@ import numpy as np
 import pandas as pd
 from scipy import special
 
-from ..cache import disk_arrays, disk_table, evict_oldest, load_arrays, save_arrays
+from ..cache import disk_arrays, disk_enabled, disk_table, evict_oldest, load_arrays, save_arrays
 from ..catalogue.grades import default_catalogue
 from ..models import conversions
 from ..routes import bands
@@ -469,7 +469,10 @@ class Sensitivities:
 
     def _save(self):
         """Write what is known (per family: its rows' sensitivities over its own elements, and
-        the computed moved-element changes from which more states are interpolated)."""
+        the computed moved-element changes from which more states are interpolated); nothing
+        to gather with the disk cache off."""
+        if not disk_enabled():
+            return
         arrays = {"keys": self.keys, "elements": np.asarray(self.elements, dtype=str), "done": self.done}
         kpos = {e: j for j, e in enumerate(self.elements)}
         for i, (_, plan, pos) in enumerate(self.plans):
