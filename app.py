@@ -804,7 +804,8 @@ def map_view(cand):
                    "precision, the route steps as JSON (docs/columns.md).")
     table = pg.display_table(cand, system, hs, all_columns=bool(ss.get("all_columns")))
     st.dataframe(table, width="stretch", hide_index=True, key="candidates")
-    st.download_button("Download the table (CSV)", pg.to_csv(table), file_name="candidates.csv",
+    # the CSV is written when the button is pressed (not at every run: no file stored and fetched per change)
+    st.download_button("Download the table (CSV)", lambda: pg.to_csv(table), file_name="candidates.csv",
                        mime="text/csv", key="download")
 
 
