@@ -795,6 +795,9 @@ def results():
     if not full:
         ss["_runs"] = ss.get("_runs", 0) + 1
         timings.clear()
+        for k in VIEW_KEYS:           # a fragment run drops the state of its widgets it does not draw, too
+            if k in ss:
+                ss[k] = ss[k]
     with targets_box:
         target_inputs()
     errs = list(errors)
