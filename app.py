@@ -99,6 +99,7 @@ def _apply_pin():
         ss[k] = v
     ss["_pin_applied"] = True
     ss["_prefill_compare"] = True      # side by side: first through-hardened and first case-hardened
+    ss["_full_rerun"] = True           # the section is outside the results' fragment: the whole page reruns
 
 
 _defaults()
@@ -156,22 +157,9 @@ with st.sidebar:
                     format=lfmt)
 
     st.markdown("### Targets")
-    st.caption("Blank means no limit.  Strength and hardness at the ASTM A370 test location.")
-    c1, c2 = st.columns(2)
-    c1.number_input(f"Min yield ({su})", key="min_yield", value=None, format=sfmt)
-    c2.number_input(f"Max yield ({su})", key="max_yield", value=None, format=sfmt)
-    c1.number_input(f"Min tensile ({su})", key="min_uts", value=None, format=sfmt)
-    c2.number_input(f"Max tensile ({su})", key="max_uts", value=None, format=sfmt)
-    c1.number_input("Min elongation (%)", key="min_elong", value=None, format="%.1f")
-    c2.number_input("Max rel. cost / kg", key="max_cost", value=None, format="%.2f")
-    with st.expander("Hardness and case", expanded=any(
-            ss.get(k) is not None for k in ("min_hrc", "max_hrc", "min_surface_hrc", "min_case_depth"))):
-        h1, h2 = st.columns(2)
-        h1.number_input("Min hardness (HRC)", key="min_hrc", value=None, format="%.1f")
-        h2.number_input("Max hardness (HRC)", key="max_hrc", value=None, format="%.1f")
-        h1.number_input("Min surface (HRC)", key="min_surface_hrc", value=None, format="%.1f")
-        h2.number_input(f"Min case depth ({lu})", key="min_case_depth", value=None,
-                        format="%.3f" if system == pg.US else "%.2f")
+    # the target inputs are drawn by the results' fragment (see ``results`` below) into this box, at
+    # their place in the sidebar: a change of target reruns only that fragment
+    targets_box = st.container()
 
     st.markdown("### Scope")
     st.multiselect("Families", list(FAMILIES), key="families", format_func=lambda f: f.replace("_", " "))
@@ -233,11 +221,7 @@ if len_si is None:
 fam_msg = pg.check_families(ss["families"])
 if fam_msg:
     errors.append(fam_msg)
-targets = pg.page_targets(ss, system)
-try:
-    targets = validate_targets(targets, FAMILIES)
-except SelectorError as exc:
-    errors.append(pg.explain(exc, system))
+i_target_errors = len(errors)          # the target messages go here (see ``results``)
 
 service = pg.page_service(ss, system)
 svc_msg = pg.check_service(service)
@@ -262,28 +246,13 @@ else:
 prices_in_use = pg.prices_in_use(price_name, prices)
 price_items = tuple(sorted(prices.items())) if prices else ()
 
-prepared_ok = False
-if not errors:
-    try:
-        t = time.perf_counter()
-        pg.cached_prepare(d_si, t_si, len_si, price_items)
-        timings["expansion"] = time.perf_counter() - t
-        prepared_ok = True
-    except SelectorError as exc:
-        errors.append(pg.explain(exc, system))
-
 if price_msg:
     st.error(f"Price sheet rejected, nothing of it is used: {price_msg}")
     st.warning(f"Prices in use: **{prices_in_use}**.  " + (
         "That sheet was accepted before this one; clear the rejected sheet or load a corrected one."
         if prices else "The catalogue's indicative prices apply."))
-for e in errors:
-    message(e)
-st.markdown(pg.settings_line(diameter_mm=d_si, thickness_mm=t_si, length_mm=len_si, targets=targets,
-                             families=ss["families"], all_families=list(FAMILIES),
-                             corrosion_resistant=bool(ss.get("corrosion")), robust_only=bool(ss.get("robust_only")),
-                             min_p_meet=float(ss.get("min_p_pct") or 90.0) / 100.0, allow=ss.get("allow") or (),
-                             service=service, prices=prices_in_use, system=system))
+prepare_args = (d_si, t_si, len_si, price_items)
+targets, prepared_ok, cand, pick, rank_args = {}, False, None, None, None
 
 
 # ----------------------------------------------------------------------------- views
@@ -728,24 +697,6 @@ def parts_view():
     st.caption(selector.CAUTION)
 
 
-cand = None
-prepare_args = (d_si, t_si, len_si, price_items)
-rank_args = pg.rank_args_of(prepare_args, targets, service, ss)
-ss["_rank_args"] = rank_args          # the ranking's cache key (serve.py's warm start computes the example's)
-if prepared_ok:
-    try:
-        t = time.perf_counter()
-        cand = pg.cached_rank(*rank_args)
-        timings["ranking"] = time.perf_counter() - t
-    except SelectorError as exc:
-        st.error(pg.explain(exc, system))
-        cand = None
-pick = None
-if cand is not None and len(cand):
-    pick = ss.get("pick") if ss.get("pick") in set(cand["variant"]) else cand["variant"].iloc[0]
-    st.markdown(pg.ranking_summary(cand))
-
-
 def candidate_states(variants) -> "pd.DataFrame":
     """The reachable region (every corner and main value) of ``variants`` (cached)."""
     t = time.perf_counter()
@@ -804,47 +755,131 @@ def map_view(cand):
                    "precision, the route steps as JSON (docs/columns.md).")
     table = pg.display_table(cand, system, hs, all_columns=bool(ss.get("all_columns")))
     st.dataframe(table, width="stretch", hide_index=True, key="candidates")
-    st.download_button("Download the table (CSV)", pg.to_csv(table), file_name="candidates.csv",
+    # the CSV is written when the button is pressed (not at every run: no file stored and fetched per change)
+    st.download_button("Download the table (CSV)", lambda: pg.to_csv(table), file_name="candidates.csv",
                        mime="text/csv", key="download")
 
 
-# only the open view is computed; the others cost nothing until opened (``ss["_all_views"]``,
-# set by the AppTest suite only, computes every view in one run)
-views = dict(zip(TAB_LABELS, st.tabs(TAB_LABELS, key="view", on_change="rerun")))
-no_table = "No candidate table: see the messages above."
-for label, tab in views.items():
-    if not (tab.open or ss.get("_all_views")):
-        continue
-    t = time.perf_counter()
-    with tab:
-        if label in ("Map and list", "One candidate", "Side by side"):
-            if cand is None:
-                st.info(no_table)
-            elif len(cand) == 0:
-                if label == "Map and list":
-                    misses_view()
-                else:
-                    st.info("No candidate meets every target: see the nearest misses under Map and list.")
-            elif label == "Map and list":
-                map_view(cand)
-            elif label == "One candidate":
-                candidate_view(cand, candidate_states([pick]))
-            else:
-                comparison_view(cand)
-        elif label == "Alternatives":
-            alternatives_view(cand)
-        elif label == "Clevis pin":
-            pin_view()
-        else:
-            parts_view()
-    timings[label] = time.perf_counter() - t
+def target_inputs():
+    """The target inputs (drawn by :func:`results` into ``targets_box`` in the sidebar)."""
+    st.caption("Blank means no limit.  Strength and hardness at the ASTM A370 test location.")
+    c1, c2 = st.columns(2)
+    c1.number_input(f"Min yield ({su})", key="min_yield", value=None, format=sfmt)
+    c2.number_input(f"Max yield ({su})", key="max_yield", value=None, format=sfmt)
+    c1.number_input(f"Min tensile ({su})", key="min_uts", value=None, format=sfmt)
+    c2.number_input(f"Max tensile ({su})", key="max_uts", value=None, format=sfmt)
+    c1.number_input("Min elongation (%)", key="min_elong", value=None, format="%.1f")
+    c2.number_input("Max rel. cost / kg", key="max_cost", value=None, format="%.2f")
+    with st.expander("Hardness and case", expanded=any(
+            ss.get(k) is not None for k in ("min_hrc", "max_hrc", "min_surface_hrc", "min_case_depth"))):
+        h1, h2 = st.columns(2)
+        h1.number_input("Min hardness (HRC)", key="min_hrc", value=None, format="%.1f")
+        h2.number_input("Max hardness (HRC)", key="max_hrc", value=None, format="%.1f")
+        h1.number_input("Min surface (HRC)", key="min_surface_hrc", value=None, format="%.1f")
+        h2.number_input(f"Min case depth ({lu})", key="min_case_depth", value=None,
+                        format="%.3f" if system == pg.US else "%.2f")
 
-# ----------------------------------------------------------------------------- footer
-st.divider()
-notice("footer")
-st.caption("Catalogue values carry a confidence tag (verified, partial, from memory, common practice); "
-           "models and their publications are listed in docs/methods.md.  "
-           f"This run: #{ss['_runs']}, " + ", ".join(f"{k} {v:.2f} s" for k, v in timings.items())
-           + f", page {time.perf_counter() - T0:.2f} s, library {pg.library_seconds() - LIB0:.3f} s "
-             "(expansion and ranking are cached).  "
-           f"Library computations of this server: {pg.library_calls()} (a unit switch adds none).")
+
+@st.fragment
+def results():
+    """Everything that depends on the targets: their inputs (in the sidebar's ``targets_box``),
+    their check, the expansion (cached per section), the ranking, the views and the footer.
+    A change of target, a view's input or the open tab reruns only this fragment (Streamlit
+    sends only its elements: the rest of the page stays as drawn); every other input of the
+    sidebar reruns the whole page, this fragment with it."""
+    global targets, prepared_ok, cand, pick, rank_args
+    if ss.pop("_full_rerun", False):          # a view's button changed inputs outside the fragment
+        st.rerun()
+    full = ss.pop("_full_run", False)
+    t0, lib0 = (T0, LIB0) if full else (time.perf_counter(), pg.library_seconds())
+    if not full:
+        ss["_runs"] = ss.get("_runs", 0) + 1
+        timings.clear()
+        for k in VIEW_KEYS:           # a fragment run drops the state of its widgets it does not draw, too
+            if k in ss:
+                ss[k] = ss[k]
+    with targets_box:
+        target_inputs()
+    errs = list(errors)
+    targets = pg.page_targets(ss, system)
+    try:
+        targets = validate_targets(targets, FAMILIES)
+    except SelectorError as exc:
+        errs.insert(i_target_errors, pg.explain(exc, system))
+    prepared_ok = False
+    if not errs:
+        try:
+            t = time.perf_counter()
+            pg.cached_prepare(*prepare_args)
+            timings["expansion"] = time.perf_counter() - t
+            prepared_ok = True
+        except SelectorError as exc:
+            errs.append(pg.explain(exc, system))
+    for e in errs:
+        message(e)
+    st.markdown(pg.settings_line(diameter_mm=d_si, thickness_mm=t_si, length_mm=len_si, targets=targets,
+                                 families=ss["families"], all_families=list(FAMILIES),
+                                 corrosion_resistant=bool(ss.get("corrosion")),
+                                 robust_only=bool(ss.get("robust_only")),
+                                 min_p_meet=float(ss.get("min_p_pct") or 90.0) / 100.0, allow=ss.get("allow") or (),
+                                 service=service, prices=prices_in_use, system=system))
+    cand = None
+    rank_args = pg.rank_args_of(prepare_args, targets, service, ss)
+    ss["_rank_args"] = rank_args          # the ranking's cache key (serve.py's warm start computes the example's)
+    if prepared_ok:
+        try:
+            t = time.perf_counter()
+            cand = pg.cached_rank(*rank_args)
+            timings["ranking"] = time.perf_counter() - t
+        except SelectorError as exc:
+            st.error(pg.explain(exc, system))
+            cand = None
+    pick = None
+    if cand is not None and len(cand):
+        pick = ss.get("pick") if ss.get("pick") in set(cand["variant"]) else cand["variant"].iloc[0]
+        st.markdown(pg.ranking_summary(cand))
+
+    # only the open view is computed; the others cost nothing until opened (``ss["_all_views"]``,
+    # set by the AppTest suite only, computes every view in one run)
+    views = dict(zip(TAB_LABELS, st.tabs(TAB_LABELS, key="view", on_change="rerun")))
+    no_table = "No candidate table: see the messages above."
+    for label, tab in views.items():
+        if not (tab.open or ss.get("_all_views")):
+            continue
+        t = time.perf_counter()
+        with tab:
+            if label in ("Map and list", "One candidate", "Side by side"):
+                if cand is None:
+                    st.info(no_table)
+                elif len(cand) == 0:
+                    if label == "Map and list":
+                        misses_view()
+                    else:
+                        st.info("No candidate meets every target: see the nearest misses under Map and list.")
+                elif label == "Map and list":
+                    map_view(cand)
+                elif label == "One candidate":
+                    candidate_view(cand, candidate_states([pick]))
+                else:
+                    comparison_view(cand)
+            elif label == "Alternatives":
+                alternatives_view(cand)
+            elif label == "Clevis pin":
+                pin_view()
+            else:
+                parts_view()
+        timings[label] = time.perf_counter() - t
+
+    # ----------------------------------------------------------------------------- footer
+    st.divider()
+    notice("footer")
+    st.caption("Catalogue values carry a confidence tag (verified, partial, from memory, common practice); "
+               "models and their publications are listed in docs/methods.md.  "
+               f"This run: #{ss['_runs']}, " + ", ".join(f"{k} {v:.2f} s" for k, v in timings.items())
+               + f", page {time.perf_counter() - t0:.2f} s, library {pg.library_seconds() - lib0:.3f} s "
+                 "(expansion and ranking are cached).  "
+               f"Library computations of this server: {pg.library_calls()} (a unit switch adds none).")
+
+
+ss["_full_run"] = True
+results()

@@ -237,3 +237,35 @@ def test_page_at_1024_px_renders_views_and_cuts_no_text(server, tmp_path):
     # units are display only: the switch computes nothing in the library
     assert calls_before >= 3 and calls_after == calls_before, (calls_before, calls_after)
     assert not {k: v for k, v in cut.items() if v}, cut
+
+
+def test_a_target_change_reruns_the_results_only_and_keeps_closed_views_inputs(server, tmp_path):
+    """A target change reruns the results' fragment only (the footer's run line changes, the
+    candidate count follows the new minimum yield) and the inputs of a closed view survive
+    such runs (a fragment run drops the state of its widgets it does not draw unless the page
+    writes it back): the pin's safety factor typed before is still there after two of them."""
+    playwright = pytest.importorskip("playwright.sync_api")
+    if not Path(CHROMIUM).exists():
+        pytest.fail(f"{CHROMIUM} not found: install Debian's chromium package (.ci/run does)")
+    with playwright.sync_playwright() as p:
+        browser = _launch(p, tmp_path / "profile_fragment")
+        try:
+            page = browser.new_page()
+            bench.first_answer(page, server)
+            n0 = page.evaluate(bench.N_CAND)
+            _tab(page, "Clevis pin")
+            sf = page.get_by_label(re.compile(r"^Safety factor"))
+            sf.fill("3.5")
+            sf.press("Enter")
+            page.wait_for_function(IDLE)
+            _tab(page, "Map and list")
+            before = page.evaluate(RUN_LINE)
+            _timed_rerun(page, bench.type_value(page, "Min yield (MPa)", "1000"))
+            n1 = page.evaluate(bench.N_CAND)
+            _timed_rerun(page, bench.type_value(page, "Min yield (MPa)", "1100"))
+            assert page.evaluate(RUN_LINE) != before
+            assert 0 <= n1 < n0, (n0, n1)
+            _tab(page, "Clevis pin")
+            assert page.get_by_label(re.compile(r"^Safety factor")).input_value() == "3.50"
+        finally:
+            browser.close()

@@ -528,6 +528,51 @@ def test_hull_band_contains_every_point():
     assert np.interp(0.5, tri["x"], tri["lo"]) == pytest.approx(0.0)
 
 
+def test_thinned_map_lines_hold_the_exact_ones_within_the_tolerance():
+    """The map draws fewer points (speed in the browser): a thinned band holds the exact
+    band and each edge moves by at most the tolerance; a thinned line passes within the
+    tolerance of every dropped vertex; on the example the map sends far fewer rows."""
+    rng = np.random.default_rng(11)
+    for trial in range(20):
+        t = np.sort(rng.uniform(0, 1, 300))
+        x = 5 + 20 * t + rng.normal(0, 0.3, 300)
+        y = 400 + 1200 * t ** (0.5 + trial / 10) + rng.normal(0, 30, 300)
+        band = pg.hull_band(x, y)
+        tol = 0.001 * np.ptp(y)
+        thin = pg.thin_band(band, tol)
+        assert len(thin["x"]) <= len(band)
+        assert thin["x"][0] == band["x"].iloc[0] and thin["x"][-1] == band["x"].iloc[-1]
+        lo, hi = np.interp(band["x"], thin["x"], thin["lo"]), np.interp(band["x"], thin["x"], thin["hi"])
+        assert (lo <= band["lo"] + 1e-9).all() and (band["hi"] <= hi + 1e-9).all()
+        assert (band["lo"] - lo).max() <= 2 * tol + 1e-9 and (hi - band["hi"]).max() <= 2 * tol + 1e-9
+        inside = (np.interp(x, thin["x"], thin["lo"]) <= y + 1e-9) & (y <= np.interp(x, thin["x"], thin["hi"]) + 1e-9)
+        assert inside.all()
+    # a polyline: every dropped vertex within the tolerance of the kept ones' line
+    s = np.linspace(0, 3, 200)
+    px, py = np.cos(s), np.sin(2 * s)
+    keep = pg.keep_vertices(px, py, 0.01)
+    assert keep[0] and keep[-1] and 3 < keep.sum() < 100
+    kx, ky = px[keep], py[keep]
+    for xi, yi in zip(px[~keep], py[~keep]):
+        d = min(_segment_distance(xi, yi, kx[j], ky[j], kx[j + 1], ky[j + 1]) for j in range(len(kx) - 1))
+        assert d <= 0.01 + 1e-12
+    # the example's map: thinned to a fraction of the exact rows
+    d = pg.DEMO
+    prep = prepare(d["diameter_mm"], None, d["length_mm"])
+    cand = pg.label_candidates(rank(prep, d["targets"])).head(15)
+    states = prep[prep["variant"].isin(cand["variant"])]
+    f = pg.chart_frames(states, cand, "yield_mpa", pg.SI, picked="C1")
+    exact = sum(len(pg.hull_band(g["elongation_pct"], g["yield_mpa"])) for _, g in states.groupby("variant"))
+    assert len(f["regions"]) < exact / 2
+
+
+def _segment_distance(x, y, x0, y0, x1, y1) -> float:
+    """Distance from the point (x, y) to the segment (x0, y0)-(x1, y1)."""
+    dx, dy = x1 - x0, y1 - y0
+    t = 0.0 if dx == dy == 0 else min(1.0, max(0.0, ((x - x0) * dx + (y - y0) * dy) / (dx * dx + dy * dy)))
+    return float(np.hypot(x - (x0 + t * dx), y - (y0 + t * dy)))
+
+
 def test_chart_frames_hold_each_candidate_region_and_path():
     d = pg.DEMO
     prep = prepare(d["diameter_mm"], None, d["length_mm"])

@@ -38,6 +38,6 @@ from .cache import (  # noqa: F401
     cached_alternatives, cached_evaluate, cached_map, cached_miss_analysis, cached_nearest_misses, cached_prepare,
     cached_rank, cached_sweep, cached_variant_states, library_calls, library_seconds)
 from .charts import (  # noqa: F401
-    COMPARE_COLOURS, chart_frames, chart_spec, comparison_bars, comparison_frame, fatigue_depth_chart,
+    COMPARE_COLOURS, chart_frames, chart_spec, comparison_bars, comparison_frame, fatigue_depth_chart, keep_vertices,
     fatigue_depth_frame, frontier_chart, hull_band, parameter_charts, parameter_frame, profile_chart,
-    profile_frame, strength_elongation_chart, sweep_chart)
+    profile_frame, strength_elongation_chart, sweep_chart, thin_band)
