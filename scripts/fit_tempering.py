@@ -22,6 +22,13 @@ independent set) and fits the surface of
    (``scipy.optimize.least_squares``; the alloy terms Mo·a and V·a bounded at >= 0, Grange,
    Hribal & Porter 1977: the carbide formers never lower the tempered hardness).
 
+Options (variants, not shipped; docs/methods/tempering.md section 5a): ``--series`` adds the published
+martensite series of :data:`SERIES_FILE` (Grange & Baughman 1956, 1 h tempers; read as tempered
+martensite, values printed below HRC 20 censored at :data:`HV_CENSOR`), ``--form element_shapes`` fits
+every term of ``tempering.FEATURES`` (Grange, Hribal & Porter's element shapes) instead of the shipped
+form, whose other coefficients are held at 0 (:data:`FORMS`).  A variant run overwrites the files below;
+the plain run restores the shipped ones.
+
 Writes, per the fit convention:
 
 * ``data/fits/tempering_coefficients.csv``: the coefficients (fit ``tempering_hv``)
@@ -33,7 +40,8 @@ Writes, per the fit convention:
 * ``data/fits/tempering_cv.csv``: leave-one-grade-out cross-validation (refit without
   each grade, predict that grade), error in HRC (values below HRC 20 counted at 20).
 
-Usage: ``PYTHONPATH=. python scripts/fit_tempering.py`` (prints the pooled LOGO error).
+Usage: ``PYTHONPATH=. python scripts/fit_tempering.py [--series] [--form NAME]`` (prints the pooled
+LOGO error).
 """
 from __future__ import annotations
 
