@@ -8,7 +8,9 @@ conservative reading: an unknown section cannot prove the row independent).  Onl
 other rows (independent) are measured here, through ``selector.evaluate`` with the
 row's grade, quench (blank: the grade's usual medium, first in
 data/route_windows.csv), section (blank: 25.4 mm round), tempering
-temperature and time (blank: 2 h) -- the same defaults as the validation report.  A row whose
+temperature and time (blank: 2 h) -- the same defaults as the validation report.  HB is compared
+where the row's ``hb_location`` says the source took it (centre, mid-radius, surface; blank: the
+ASTM A370 tension-test location, like the tensile strength; ``selector.validation.location``).  A row whose
 ``steel`` column names a published steel other than the catalogue grade (EN 42CrMo4 entered
 under 4140) is recomputed on that steel's mid-range composition
 (``selector.validation.steels.mid_composition``, passed as ``heat_composition``), as the
@@ -40,7 +42,7 @@ sys.path.insert(0, str(ROOT))
 import selector  # noqa: E402
 from selector.errors import SelectorError, UnknownGradeError  # noqa: E402
 from selector.routes.families.base import RouteFamily  # noqa: E402
-from selector.validation import steels  # noqa: E402
+from selector.validation import location, steels  # noqa: E402
 
 SECTION_TOL_MM = 2.0
 TEMP_TOL_C = 6.0
@@ -129,6 +131,8 @@ def predict(rows: pd.DataFrame) -> pd.DataFrame:
         for p, _ in PROPS:
             rec[p + "_pub"] = r.get(p)
             rec[p + "_pred"] = res.get(p)
+        # the hardness where the source took it (hb_location), else at the tension-test location
+        rec["hardness_hb_pred"] = location.hardness_hb_at(res, r.get("hb_location"))
         out.append(rec)
     return pd.DataFrame(out)
 

@@ -48,7 +48,7 @@ from ..errors import NotModelledError, SelectorError, UnknownGradeError
 from ..models.hardenability import jominy_curve_hrc
 from ..routes.evaluate import evaluate
 from ..routes.families.base import RouteFamily
-from . import calibration, steels
+from . import calibration, location, steels
 from .thresholds import HEADROOM_NOTE, THRESHOLDS
 
 #: defaults used where a reference row leaves a treatment condition blank
@@ -102,7 +102,9 @@ QT_SCHEMA = Schema((Column("grade"), Column("quench", allow_blank=True))
                    + (Column("temper_hours_basis", allow_blank=True),)
                    + _num("uts_mpa", "yield_mpa", "elongation_pct", "reduction_area_pct",
                           "hardness_hb", "hardness_hrc") + _COMMON
-                   + (Column("steel", required=False, allow_blank=True),))
+                   + (Column("steel", required=False, allow_blank=True),
+                      Column("hb_location", "choice", choices=tuple(location.LOCATIONS), required=False,
+                             allow_blank=True)))
 
 TEMPERS_SCHEMA = Schema((Column("grade"), Column("condition"),
                          Column("route", "choice", choices=("anneal", "cold_work", "age")),
@@ -154,6 +156,9 @@ class Case:
     heat: dict | None = None
     #: that steel's designation ("" when the row is the catalogue grade itself)
     steel: str = ""
+    #: where the source took its hardness (``hb_location`` of qt_steels.csv: centre, mid-radius,
+    #: surface); "" = not stated, compared at the ASTM A370 tension-test location
+    hb_location: str = ""
 
     @property
     def id(self) -> str:
@@ -215,6 +220,10 @@ def qt_case(rec: dict, file: str = QT_FILE) -> Case:
              "" if gid else "grade not in the catalogue")
     c.keys = {"quench": str(rec.get("quench") or "").strip(), "section_mm": _f(rec.get("section_mm")),
               "temp_c": _f(rec["temper_temp_c"])}
+    c.hb_location = location.check_location(rec.get("hb_location"))
+    if c.hb_location and "hardness_hb" in c.published:
+        c.assumptions.append(f"hardness compared at the {c.hb_location} of the section, where the "
+                             "source took it")
     steel = str(rec.get("steel") or "").strip()
     if steel and gid:
         c.steel, c.heat = steel, steels.mid_composition(steel)
@@ -406,6 +415,8 @@ def recompute_case(case: Case) -> list[dict]:
         if steps is not case.steps and not any(a.startswith("route as recomputed") for a in case.assumptions):
             case.assumptions.append(f"route as recomputed: {res['route_text']} (first form refused: {first})")
         pred = {p: res.get(spec[2]) for p, spec in PROPERTIES.items() if spec[2]}
+        if case.hb_location:
+            pred["hardness_hb"] = location.hardness_hb_at(res, case.hb_location)
         return _rows_for(case, pred, "compared")
     return _rows_for(case, {}, "not modelled", first)
 
