@@ -40,7 +40,7 @@ Writes, per the fit convention:
 * ``data/fits/tempering_cv.csv``: leave-one-grade-out cross-validation (refit without
   each grade, predict that grade), error in HRC (values below HRC 20 counted at 20).
 
-Usage: ``PYTHONPATH=. python scripts/fit_tempering.py [--series] [--form NAME]`` (prints the pooled
+Usage: ``PYTHONPATH=. python scripts/fit_tempering.py [--no-series] [--form NAME] [--free-carbon-slope]`` (prints the pooled
 LOGO error).
 """
 from __future__ import annotations
@@ -90,13 +90,24 @@ MIXTURE_MIN_MARTENSITE = 0.5
 #: ``element_shapes``: every term of ``tempering.FEATURES`` (Grange, Hribal & Porter's shapes: Ni, Si
 #: constant, Mn growing with the temper, Cr constant plus growing), tried with the martensite series
 FORMS = {"shipped": ("1", "C", "s", "C*s", "Mo*a", "V*a", "Cr"), "element_shapes": tp.FEATURES}
-#: the shipped fit: form and whether the martensite series of SERIES_FILE enters it (see main())
-FORM, USE_SERIES = "shipped", False
+#: the shipped fit: form and whether the martensite series of SERIES_FILE enters it (see main()); issue 11:
+#: the series and Grange, Hribal & Porter's element shapes, with the carbon slope held at >= 0
+#: (CARBON_SLOPE_NON_NEGATIVE; docs/methods/tempering.md section 5c).  The former shipped fit (form
+#: ``shipped``, no series, free carbon slope) is ``--form shipped --no-series --free-carbon-slope``
+FORM, USE_SERIES = "element_shapes", True
 #: element caps of the fit in progress (the span of its rows; set by fit())
 CAPS: dict = {}
 #: features bounded at >= 0 in stage 2 (Grange, Hribal & Porter 1977: each alloying element raises the
 #: hardness of tempered martensite)
 NON_NEGATIVE = ("Mo*a", "V*a", "Cr", "Cr*a", "Mn*a", "Si", "Ni")
+#: Grange, Hribal & Porter (1977): carbon raises the hardness of tempered martensite at every temper, its
+#: effect falling markedly with the tempering temperature.  With True, stage 2 holds the carbon slope of the
+#: surface, a1 + b1*s (HV per % C), at >= 0 up to the top of the fitted data (s_top = max P/1000 - 16) and
+#: b1 <= 0: it fits (k_top, k_fall) >= 0 with a1 = k_top + k_fall*s_top, b1 = -k_fall (the same two
+#: coefficients of the same form, bounded; no term added).  Without it the fit put the slope below 0 at
+#: the highest tempers (shipped form: a1 88.1, b1 -48.5, slope 0 at P/1000 = 17.8), so that at 550-700 C a
+#: 0.25 % C steel came out harder than a 0.40 % C one, against the martensite series it was fitted to
+CARBON_SLOPE_NON_NEGATIVE = True
 RANGE_UNITS = {"temp_c": "degC", "hours": "h", "P_1000": "K/1000"}
 CV_SOURCE = "leave-one-grade-out refit by scripts/fit_tempering.py"
 SOURCE = ("least squares on the fully hardened rows of data/tempering_points.csv and the EXTRA_TABLES rows of "
@@ -293,9 +304,28 @@ def solve(rows: pd.DataFrame, structures: dict | None = None) -> np.ndarray:
         c[keep] = k
         return c
 
-    r = least_squares(lambda k: residuals(predict(full(k), rows, structures), obs), start, bounds=(lo, np.inf),
-                      x_scale=np.abs(c1[keep]) + 1.0, diff_step=1e-6, xtol=1e-12, ftol=1e-12, gtol=1e-12)
-    return full(r.x)
+    to_coef = lambda k: k  # noqa: E731
+    scale = np.abs(c1[keep]) + 1.0
+    names = [f for f in tp.FEATURES if f in FORMS[FORM]]
+    if CARBON_SLOPE_NON_NEGATIVE and {"C", "C*s"} <= set(names):
+        i_c, i_cs = names.index("C"), names.index("C*s")
+        s_top = float(rows["P"].max()) / 1000.0 - 16.0
+
+        def to_coef(k):  # (k_top, k_fall) -> (a1, b1)
+            c = np.array(k, float)
+            c[i_c], c[i_cs] = k[i_c] + k[i_cs] * s_top, -k[i_cs]
+            return c
+
+        a1, b1 = start[i_c], start[i_cs]
+        start = start.copy()
+        start[i_c], start[i_cs] = max(a1 + b1 * s_top, 1e-6), max(-b1, 1e-6)
+        lo = lo.copy()
+        lo[i_c] = lo[i_cs] = 0.0
+        scale = np.abs(start) + 1.0
+    r = least_squares(lambda k: residuals(predict(full(to_coef(k)), rows, structures), obs), start,
+                      bounds=(lo, np.inf), x_scale=scale, diff_step=1e-6, xtol=1e-12, ftol=1e-12,
+                      gtol=1e-12)
+    return full(to_coef(r.x))
 
 
 def predict(coef, rows: pd.DataFrame, structures: dict | None = None) -> np.ndarray:
@@ -386,21 +416,24 @@ def fit(points: pd.DataFrame | None = None) -> dict:
 def write(result: dict, out: Path = OUT) -> None:
     fitted.write_tables(NAME, result, f"# written by scripts/fit_{NAME}.py from {SOURCE_FILE} (fully_hardened rows), "
                                       f"{REFERENCE_FILE} (tables of EXTRA_TABLES)"
-                                      f"{' and ' + SERIES_FILE if USE_SERIES else ''}, form {FORM}; "
+                                      f"{' and ' + SERIES_FILE if USE_SERIES else ''}, form {FORM}"
+                                      f"{', carbon slope >= 0' if CARBON_SLOPE_NON_NEGATIVE else ''}; "
                                       f"do not edit by hand\n", out)
 
 
 def main(argv=None) -> int:
     import argparse
 
-    global FORM, USE_SERIES
+    global FORM, USE_SERIES, CARBON_SLOPE_NON_NEGATIVE
     ap = argparse.ArgumentParser(description="Fit the tempered-martensite surface and write data/fits/tempering_*.")
     ap.add_argument("--form", choices=sorted(FORMS), default=FORM,
                     help="a variant's form (default: the shipped one)")
-    ap.add_argument("--series", action="store_true", default=USE_SERIES,
-                    help=f"fit the martensite series of {SERIES_FILE} too (a variant, not shipped)")
+    ap.add_argument("--series", action=argparse.BooleanOptionalAction, default=USE_SERIES,
+                    help=f"fit the martensite series of {SERIES_FILE} too (default: yes)")
+    ap.add_argument("--free-carbon-slope", action="store_true",
+                    help="leave the carbon slope a1 + b1*s unbounded (a variant; default: held at >= 0)")
     args = ap.parse_args(argv)
-    FORM, USE_SERIES = args.form, args.series
+    FORM, USE_SERIES, CARBON_SLOPE_NON_NEGATIVE = args.form, args.series, not args.free_carbon_slope
     r = fit()
     write(r)
     print(f"tempering_hv: {len(r['rows'])} rows ({r['n_through_mixture']} fitted through the mixture rule), "
