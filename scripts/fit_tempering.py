@@ -26,8 +26,9 @@ Options (variants, not shipped; docs/methods/tempering.md section 5a): ``--serie
 martensite series of :data:`SERIES_FILE` (Grange & Baughman 1956, 1 h tempers; read as tempered
 martensite, values printed below HRC 20 censored at :data:`HV_CENSOR`), ``--form element_shapes`` fits
 every term of ``tempering.FEATURES`` (Grange, Hribal & Porter's element shapes) instead of the shipped
-form, whose other coefficients are held at 0 (:data:`FORMS`).  A variant run overwrites the files below;
-the plain run restores the shipped ones.
+form, whose other coefficients are held at 0 (:data:`FORMS`), ``--carbon-slope`` holds the carbon slope of the
+surface at >= 0 over the fitted data (:data:`CARBON_SLOPE_NON_NEGATIVE`; section 5c).  A variant run overwrites
+the files below; the plain run restores the shipped ones.
 
 Writes, per the fit convention:
 
@@ -40,7 +41,7 @@ Writes, per the fit convention:
 * ``data/fits/tempering_cv.csv``: leave-one-grade-out cross-validation (refit without
   each grade, predict that grade), error in HRC (values below HRC 20 counted at 20).
 
-Usage: ``PYTHONPATH=. python scripts/fit_tempering.py [--no-series] [--form NAME] [--free-carbon-slope]`` (prints the pooled
+Usage: ``PYTHONPATH=. python scripts/fit_tempering.py [--series] [--form NAME] [--carbon-slope]`` (prints the pooled
 LOGO error).
 """
 from __future__ import annotations
@@ -90,11 +91,11 @@ MIXTURE_MIN_MARTENSITE = 0.5
 #: ``element_shapes``: every term of ``tempering.FEATURES`` (Grange, Hribal & Porter's shapes: Ni, Si
 #: constant, Mn growing with the temper, Cr constant plus growing), tried with the martensite series
 FORMS = {"shipped": ("1", "C", "s", "C*s", "Mo*a", "V*a", "Cr"), "element_shapes": tp.FEATURES}
-#: the shipped fit: form and whether the martensite series of SERIES_FILE enters it (see main()); issue 11:
-#: the series and Grange, Hribal & Porter's element shapes, with the carbon slope held at >= 0
-#: (CARBON_SLOPE_NON_NEGATIVE; docs/methods/tempering.md section 5c).  The former shipped fit (form
-#: ``shipped``, no series, free carbon slope) is ``--form shipped --no-series --free-carbon-slope``
-FORM, USE_SERIES = "element_shapes", True
+#: the shipped fit: form and whether the martensite series of SERIES_FILE enters it (see main()).  The
+#: variant of docs/methods/tempering.md section 5c (the series, Grange, Hribal & Porter's element shapes and
+#: the carbon slope held at >= 0) is ``--series --form element_shapes --carbon-slope``; it meets the headline
+#: accuracy targets but not the band-coverage check, so it is not shipped
+FORM, USE_SERIES = "shipped", False
 #: element caps of the fit in progress (the span of its rows; set by fit())
 CAPS: dict = {}
 #: features bounded at >= 0 in stage 2 (Grange, Hribal & Porter 1977: each alloying element raises the
@@ -107,7 +108,7 @@ NON_NEGATIVE = ("Mo*a", "V*a", "Cr", "Cr*a", "Mn*a", "Si", "Ni")
 #: coefficients of the same form, bounded; no term added).  Without it the fit put the slope below 0 at
 #: the highest tempers (shipped form: a1 88.1, b1 -48.5, slope 0 at P/1000 = 17.8), so that at 550-700 C a
 #: 0.25 % C steel came out harder than a 0.40 % C one, against the martensite series it was fitted to
-CARBON_SLOPE_NON_NEGATIVE = True
+CARBON_SLOPE_NON_NEGATIVE = False
 RANGE_UNITS = {"temp_c": "degC", "hours": "h", "P_1000": "K/1000"}
 CV_SOURCE = "leave-one-grade-out refit by scripts/fit_tempering.py"
 SOURCE = ("least squares on the fully hardened rows of data/tempering_points.csv and the EXTRA_TABLES rows of "
@@ -428,12 +429,13 @@ def main(argv=None) -> int:
     ap = argparse.ArgumentParser(description="Fit the tempered-martensite surface and write data/fits/tempering_*.")
     ap.add_argument("--form", choices=sorted(FORMS), default=FORM,
                     help="a variant's form (default: the shipped one)")
-    ap.add_argument("--series", action=argparse.BooleanOptionalAction, default=USE_SERIES,
-                    help=f"fit the martensite series of {SERIES_FILE} too (default: yes)")
-    ap.add_argument("--free-carbon-slope", action="store_true",
-                    help="leave the carbon slope a1 + b1*s unbounded (a variant; default: held at >= 0)")
+    ap.add_argument("--series", action="store_true", default=USE_SERIES,
+                    help=f"fit the martensite series of {SERIES_FILE} too (a variant, not shipped)")
+    ap.add_argument("--carbon-slope", action="store_true", default=CARBON_SLOPE_NON_NEGATIVE,
+                    help="hold the carbon slope a1 + b1*s at >= 0 up to the top of the fitted data (a variant, "
+                         "not shipped)")
     args = ap.parse_args(argv)
-    FORM, USE_SERIES, CARBON_SLOPE_NON_NEGATIVE = args.form, args.series, not args.free_carbon_slope
+    FORM, USE_SERIES, CARBON_SLOPE_NON_NEGATIVE = args.form, args.series, args.carbon_slope
     r = fit()
     write(r)
     print(f"tempering_hv: {len(r['rows'])} rows ({r['n_through_mixture']} fitted through the mixture rule), "
