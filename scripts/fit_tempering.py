@@ -22,6 +22,14 @@ independent set) and fits the surface of
    (``scipy.optimize.least_squares``; the alloy terms Mo·a and V·a bounded at >= 0, Grange,
    Hribal & Porter 1977: the carbide formers never lower the tempered hardness).
 
+Options (variants, not shipped; docs/methods/tempering.md section 5a): ``--series`` adds the published
+martensite series of :data:`SERIES_FILE` (Grange & Baughman 1956, 1 h tempers; read as tempered
+martensite, values printed below HRC 20 censored at :data:`HV_CENSOR`), ``--form element_shapes`` fits
+every term of ``tempering.FEATURES`` (Grange, Hribal & Porter's element shapes) instead of the shipped
+form, whose other coefficients are held at 0 (:data:`FORMS`), ``--carbon-slope`` holds the carbon slope of the
+surface at >= 0 over the fitted data (:data:`CARBON_SLOPE_NON_NEGATIVE`; section 5c).  A variant run overwrites
+the files below; the plain run restores the shipped ones.
+
 Writes, per the fit convention:
 
 * ``data/fits/tempering_coefficients.csv``: the coefficients (fit ``tempering_hv``)
@@ -33,7 +41,8 @@ Writes, per the fit convention:
 * ``data/fits/tempering_cv.csv``: leave-one-grade-out cross-validation (refit without
   each grade, predict that grade), error in HRC (values below HRC 20 counted at 20).
 
-Usage: ``PYTHONPATH=. python scripts/fit_tempering.py`` (prints the pooled LOGO error).
+Usage: ``PYTHONPATH=. python scripts/fit_tempering.py [--series] [--form NAME] [--carbon-slope]`` (prints the pooled
+LOGO error).
 """
 from __future__ import annotations
 
@@ -53,7 +62,14 @@ from selector.models import conversions, tempering as tp  # noqa: E402
 NAME = "tempering"
 SOURCE_FILE = "data/tempering_points.csv"
 OUT = ROOT / "data" / "fits"
-UNITS = {"1": "HV", "C": "HV/wt%", "s": "HV", "C*s": "HV/wt%", "Mo*a": "HV/wt%", "V*a": "HV/wt%", "Cr": "HV/wt%"}
+UNITS = {"1": "HV", "C": "HV/wt%", "s": "HV", "C*s": "HV/wt%", "Mo*a": "HV/wt%", "V*a": "HV/wt%", "Cr": "HV/wt%",
+         "Cr*a": "HV/wt%", "Mn*a": "HV/wt%", "Si": "HV/wt%", "Ni": "HV/wt%"}
+#: published hardness series of fully martensitic specimens tempered 1 h (Grange & Baughman 1956): read as
+#: tempered martensite (the study hardened small specimens to full martensite), no route chain
+SERIES_FILE = "data/tempering_martensite_series.csv"
+#: HV at HRC 20, the lower end of ASTM E140 Table 1: a series value printed below HRC 20 is read as
+#: "below this" (censored: the fit is penalised only where it predicts more)
+HV_CENSOR = 238.0
 REFERENCE_FILE = "data/reference/qt_steels.csv"
 #: published tempering tables of fully hardened steels taken from the reference file into the
 #: fit: (catalogue grade, section_mm, text the row's source contains).  41Cr4 (EN 10083-3),
@@ -70,8 +86,29 @@ DEFAULT_HOURS = 2.0
 #: (median / p90 HRC): 0.3 -> 2.47 / 9.79, 0.5 (= 0.7: no row between) -> 2.34 / 7.15,
 #: 0.9 -> 2.43 / 7.68; all rows read as tempered martensite (stage 1 alone) 2.38 / 7.57
 MIXTURE_MIN_MARTENSITE = 0.5
-#: features bounded at >= 0 in stage 2 (alloy resistance to softening)
-NON_NEGATIVE = ("Mo*a", "V*a")
+#: forms of the surface: the features each fits (the other coefficients are held at 0).  ``shipped``:
+#: the form chosen on the handbook rows (section "Choice of form" of docs/methods/tempering.md);
+#: ``element_shapes``: every term of ``tempering.FEATURES`` (Grange, Hribal & Porter's shapes: Ni, Si
+#: constant, Mn growing with the temper, Cr constant plus growing), tried with the martensite series
+FORMS = {"shipped": ("1", "C", "s", "C*s", "Mo*a", "V*a", "Cr"), "element_shapes": tp.FEATURES}
+#: the shipped fit: form and whether the martensite series of SERIES_FILE enters it (see main()).  The
+#: variant of docs/methods/tempering.md section 5c (the series, Grange, Hribal & Porter's element shapes and
+#: the carbon slope held at >= 0) is ``--series --form element_shapes --carbon-slope``; it meets the headline
+#: accuracy targets but not the band-coverage check, so it is not shipped
+FORM, USE_SERIES = "shipped", False
+#: element caps of the fit in progress (the span of its rows; set by fit())
+CAPS: dict = {}
+#: features bounded at >= 0 in stage 2 (Grange, Hribal & Porter 1977: each alloying element raises the
+#: hardness of tempered martensite)
+NON_NEGATIVE = ("Mo*a", "V*a", "Cr", "Cr*a", "Mn*a", "Si", "Ni")
+#: Grange, Hribal & Porter (1977): carbon raises the hardness of tempered martensite at every temper, its
+#: effect falling markedly with the tempering temperature.  With True, stage 2 holds the carbon slope of the
+#: surface, a1 + b1*s (HV per % C), at >= 0 up to the top of the fitted data (s_top = max P/1000 - 16) and
+#: b1 <= 0: it fits (k_top, k_fall) >= 0 with a1 = k_top + k_fall*s_top, b1 = -k_fall (the same two
+#: coefficients of the same form, bounded; no term added).  Without it the fit put the slope below 0 at
+#: the highest tempers (shipped form: a1 88.1, b1 -48.5, slope 0 at P/1000 = 17.8), so that at 550-700 C a
+#: 0.25 % C steel came out harder than a 0.40 % C one, against the martensite series it was fitted to
+CARBON_SLOPE_NON_NEGATIVE = False
 RANGE_UNITS = {"temp_c": "degC", "hours": "h", "P_1000": "K/1000"}
 CV_SOURCE = "leave-one-grade-out refit by scripts/fit_tempering.py"
 SOURCE = ("least squares on the fully hardened rows of data/tempering_points.csv and the EXTRA_TABLES rows of "
@@ -113,12 +150,39 @@ def extra_points(path: Path = ROOT / REFERENCE_FILE) -> pd.DataFrame:
     return t
 
 
-def fit_points(points: pd.DataFrame, extra: pd.DataFrame | None = None) -> pd.DataFrame:
-    """The rows the fit uses: ``fully_hardened`` rows of the tempering table, then the
-    rows of :data:`EXTRA_TABLES`."""
+def series_points() -> pd.DataFrame:
+    """The rows of :data:`SERIES_FILE` (validated), in the columns of :func:`tempering.load_points`;
+    ``hardness_hv`` is NaN where the printed value lies below HRC 20 (censored, :data:`HV_CENSOR`)."""
+    from selector.catalogue.loader import Column, Schema, read_table
+
+    schema = Schema((
+        Column("grade", "str"), Column("steel", "str"),
+        *(Column(f"{e}_pct", "float", lo=0.0, hi=5.0) for e in ("c", "mn", "p", "s", "si", "ni", "cr", "mo", "v")),
+        Column("quench", "choice", choices=("water", "oil", "brine")),
+        Column("section_mm", "float", allow_blank=True, lo=0.0, hi=1000.0),
+        Column("temp_c", "float", lo=100.0, hi=760.0), Column("hours", "float", lo=1e-3, hi=100.0),
+        Column("hardness_hrc", "float", lo=0.0, hi=70.0), Column("source", "str"),
+        Column("confidence", "choice", choices=("verified", "partial", "from memory")),
+    ))
+    t = read_table(Path(SERIES_FILE).name, schema)
+    hrc = t["hardness_hrc"].to_numpy(float)
+    t["hardness_hv"] = np.where(hrc >= 20.0, conversions.hrc_to_hv(np.maximum(hrc, 20.0)), np.nan)
+    t["hardness_hb"] = np.nan
+    t["P"] = tp.hollomon_jaffe_parameter(t["temp_c"].to_numpy(float), t["hours"].to_numpy(float),
+                                         tp.hollomon_jaffe_constant(t["c_pct"].to_numpy(float)))
+    return t.assign(fully_hardened=True, source_file=SERIES_FILE, series=True)
+
+
+def fit_points(points: pd.DataFrame, extra: pd.DataFrame | None = None,
+               series: pd.DataFrame | None = None) -> pd.DataFrame:
+    """The rows the fit uses: ``fully_hardened`` rows of the tempering table, the rows of
+    :data:`EXTRA_TABLES`, then the martensite series of :data:`SERIES_FILE` (column ``series``
+    true for these)."""
     own = points[points["fully_hardened"]].assign(source_file=SOURCE_FILE)
     extra = extra_points() if extra is None else extra
-    return pd.concat([own, extra], ignore_index=True)
+    series = series_points() if series is None else series
+    out = pd.concat([own, extra], ignore_index=True).assign(series=False)
+    return pd.concat([out, series], ignore_index=True)
 
 
 def chain_structures(rows: pd.DataFrame) -> dict:
@@ -128,14 +192,17 @@ def chain_structures(rows: pd.DataFrame) -> dict:
     round section (blank: 25.4 mm) and austenitizing temperature (blank: the route's default),
     the constituents of ``structure_tempering.constituents`` at every position, the undissolved
     carbide, the as-quenched profile and the tension-test position, plus ``x_m``, the martensite
-    fraction at that position.  The same steps as ``quench_temper.through_harden``."""
+    fraction at that position.  The same steps as ``quench_temper.through_harden``.  Only the rows
+    that are not martensite series (``has``, one flag per data row; the arrays hold those rows)."""
     from selector.catalogue.grades import grade
     from selector.models import structure_tempering as st
     from selector.routes.families import quench_temper as qt
     from selector.routes.families.base import Batch, at_position, tension_test_position
 
+    has = ~rows["series"].to_numpy(bool) if "series" in rows else np.ones(len(rows), bool)
+    chained = rows[has]
     parts, comps, f_carb, hv_aq, where, x_m, pos = [], [], [], [], [], [], None
-    for r in rows.to_dict("records"):
+    for r in chained.to_dict("records"):
         g = grade(str(r["grade"]))
         comp = {**g.composition(), **{e: float(r[f"{e.lower()}_pct"]) for e in tp.ALLOY_CHECKED}}
         aus = r.get("austenitize_c")
@@ -159,8 +226,8 @@ def chain_structures(rows: pd.DataFrame) -> dict:
     return {"parts": {k: cat([p[k] for p in parts]) for k in parts[0]},
             "comp": {k: cat([c.get(k, np.zeros((1, 1))) for c in comps]) for k in set().union(*comps)},
             "f_carb": cat(f_carb), "hv_aq": cat(hv_aq), "where": cat(where), "positions": pos,
-            "x_m": np.array(x_m), "temp_c": rows["temp_c"].to_numpy(float)[:, None],
-            "hours": rows["hours"].to_numpy(float)[:, None]}
+            "x_m": np.array(x_m), "temp_c": chained["temp_c"].to_numpy(float)[:, None],
+            "hours": chained["hours"].to_numpy(float)[:, None], "has": has}
 
 
 def chain_hv(coef, structures: dict, mask=None) -> np.ndarray:
@@ -179,67 +246,136 @@ def chain_hv(coef, structures: dict, mask=None) -> np.ndarray:
     return at_position(hv, s["positions"], s["where"][m])
 
 
+def _elements(rows: pd.DataFrame) -> tuple:
+    return tuple(rows[f"{e}_pct"].fillna(0.0).to_numpy(float) for e in ("c", "mo", "v")) + \
+        (rows["P"].to_numpy(float),) + tuple(rows[f"{e}_pct"].fillna(0.0).to_numpy(float)
+                                             for e in ("cr", "mn", "si", "ni"))
+
+
+def caps(rows: pd.DataFrame) -> dict:
+    """The top of the fitted data per element of ``tempering.CAPPED`` (the surface holds each there)."""
+    return {e: float(rows[f"{e.lower()}_pct"].fillna(0.0).max()) for e in tp.CAPPED}
+
+
 def _features(rows: pd.DataFrame) -> np.ndarray:
-    return tp.tempering_features(rows["c_pct"].to_numpy(float), rows["mo_pct"].to_numpy(float),
-                                 rows["v_pct"].to_numpy(float), rows["P"].to_numpy(float),
-                                 rows["cr_pct"].to_numpy(float))
+    return tp.tempering_features(*_elements(rows), caps=CAPS)
 
 
-def solve_direct(rows: pd.DataFrame) -> np.ndarray:
-    """Stage 1: every row read as tempered martensite, linear least squares."""
+def solve_direct(rows: pd.DataFrame, keep=None) -> np.ndarray:
+    """Stage 1: every row read as tempered martensite, linear least squares (the censored
+    series values left out) on the features ``keep`` (bool per feature; None: all)."""
     x = _features(rows)
-    coef, *_ = np.linalg.lstsq(x, rows["hardness_hv"].to_numpy(float), rcond=None)
+    if keep is not None:
+        x = x[:, np.asarray(keep, bool)]
+    obs = rows["hardness_hv"].to_numpy(float)
+    ok = np.isfinite(obs)
+    coef, *_ = np.linalg.lstsq(x[ok], obs[ok], rcond=None)
     return coef
 
 
+def residuals(pred_hv, obs_hv) -> np.ndarray:
+    """Fit residual, HV: prediction minus published value; for a censored value (NaN: printed
+    below HRC 20) the excess of the prediction over :data:`HV_CENSOR`, else 0."""
+    obs = np.asarray(obs_hv, float)
+    return np.where(np.isfinite(obs), pred_hv - np.nan_to_num(obs), np.maximum(pred_hv - HV_CENSOR, 0.0))
+
+
 def _through(structures: dict) -> np.ndarray:
-    return structures["x_m"] >= MIXTURE_MIN_MARTENSITE
+    """Per data row: fitted through the mixture rule (chain rows at least
+    :data:`MIXTURE_MIN_MARTENSITE` martensite)."""
+    out = np.zeros(len(structures["has"]), bool)
+    out[structures["has"]] = structures["x_m"] >= MIXTURE_MIN_MARTENSITE
+    return out
 
 
 def solve(rows: pd.DataFrame, structures: dict | None = None) -> np.ndarray:
     """Stage 1, then (with ``structures``, :func:`chain_structures` of the same rows) stage 2: the
     rows the chain makes mostly martensitic fitted through the mixture rule."""
-    c1 = solve_direct(rows)
+    keep = np.array([f in FORMS[FORM] for f in tp.FEATURES])
+    c1 = np.zeros(len(tp.FEATURES))
+    c1[keep] = solve_direct(rows, keep)
     if structures is None:
         return c1
     obs = rows["hardness_hv"].to_numpy(float)
-    lo = np.array([0.0 if f in NON_NEGATIVE else -np.inf for f in tp.FEATURES])
-    start = np.maximum(c1, lo + 1e-6)
-    r = least_squares(lambda c: predict(c, rows, structures) - obs, start, bounds=(lo, np.inf),
-                      x_scale=np.abs(c1) + 1.0, diff_step=1e-6, xtol=1e-12, ftol=1e-12, gtol=1e-12)
-    return r.x
+    lo = np.array([0.0 if f in NON_NEGATIVE else -np.inf for f in tp.FEATURES])[keep]
+    start = np.maximum(c1[keep], lo + 1e-6)
+
+    def full(k):
+        c = np.zeros(len(tp.FEATURES))
+        c[keep] = k
+        return c
+
+    to_coef = lambda k: k  # noqa: E731
+    scale = np.abs(c1[keep]) + 1.0
+    names = [f for f in tp.FEATURES if f in FORMS[FORM]]
+    if CARBON_SLOPE_NON_NEGATIVE and {"C", "C*s"} <= set(names):
+        i_c, i_cs = names.index("C"), names.index("C*s")
+        s_top = float(rows["P"].max()) / 1000.0 - 16.0
+
+        def to_coef(k):  # (k_top, k_fall) -> (a1, b1)
+            c = np.array(k, float)
+            c[i_c], c[i_cs] = k[i_c] + k[i_cs] * s_top, -k[i_cs]
+            return c
+
+        a1, b1 = start[i_c], start[i_cs]
+        start = start.copy()
+        start[i_c], start[i_cs] = max(a1 + b1 * s_top, 1e-6), max(-b1, 1e-6)
+        lo = lo.copy()
+        lo[i_c] = lo[i_cs] = 0.0
+        scale = np.abs(start) + 1.0
+    r = least_squares(lambda k: residuals(predict(full(to_coef(k)), rows, structures), obs), start,
+                      bounds=(lo, np.inf), x_scale=scale, diff_step=1e-6, xtol=1e-12, ftol=1e-12,
+                      gtol=1e-12)
+    return full(to_coef(r.x))
 
 
 def predict(coef, rows: pd.DataFrame, structures: dict | None = None) -> np.ndarray:
     """The fit's model of each row: the route's mixture where the chain makes it mostly
     martensitic (with ``structures``), else the surface itself."""
-    direct = tp.surface_hv(coef, rows["c_pct"].to_numpy(float), rows["mo_pct"].to_numpy(float),
-                           rows["v_pct"].to_numpy(float), rows["P"].to_numpy(float), rows["cr_pct"].to_numpy(float))
+    direct = tp.surface_hv(coef, *_elements(rows), caps=CAPS)
     if structures is None:
         return direct
-    return np.where(_through(structures), chain_hv(coef, structures), direct)
+    through = _through(structures)
+    if not through.any():
+        return direct
+    out = direct.copy()
+    sub = _subset_chain(structures, structures["x_m"] >= MIXTURE_MIN_MARTENSITE)
+    out[through] = chain_hv(coef, sub)
+    return out
 
 
-def _subset(structures: dict, mask) -> dict:
-    m = np.asarray(mask, bool)
-    out = {k: (v[m] if isinstance(v, np.ndarray) and k != "positions" else v) for k, v in structures.items()}
+def _subset_chain(structures: dict, m) -> dict:
+    """The chain arrays of ``structures`` at the chain rows ``m`` (``has`` left as it is)."""
+    m = np.asarray(m, bool)
+    out = {k: (v[m] if isinstance(v, np.ndarray) and k not in ("positions", "has") else v)
+           for k, v in structures.items()}
     out["parts"] = {k: v[m] for k, v in structures["parts"].items()}
     out["comp"] = {k: v[m] for k, v in structures["comp"].items()}
     return out
 
 
+def _subset(structures: dict, mask) -> dict:
+    """``structures`` of the data rows ``mask``."""
+    m = np.asarray(mask, bool)
+    out = _subset_chain(structures, m[structures["has"]])
+    out["has"] = structures["has"][m]
+    return out
+
+
 def hrc_error(pred_hv, obs_hv) -> np.ndarray:
     """Signed error in HRC with both values floored at HRC 20 (the scale's lower limit)."""
-    a = conversions.hv_to_hrc(np.maximum(pred_hv, 238.0))
-    b = conversions.hv_to_hrc(np.maximum(obs_hv, 238.0))
+    a = conversions.hv_to_hrc(np.maximum(pred_hv, HV_CENSOR))
+    b = conversions.hv_to_hrc(np.maximum(np.nan_to_num(np.asarray(obs_hv, float), nan=HV_CENSOR), HV_CENSOR))
     return a - b
 
 
 def fit(points: pd.DataFrame | None = None) -> dict:
     """Fit and return the three tables ``coefficients``, ``rows``, ``cv`` (DataFrames)
     and ``pooled_logo_median_hrc``.  ``points`` defaults to :func:`tempering.load_points`."""
+    global CAPS
     pts = tp.load_points() if points is None else points
-    rows = fit_points(pts)
+    rows = fit_points(pts, series=None if USE_SERIES else series_points().iloc[0:0])
+    CAPS = caps(rows)
     struct = chain_structures(rows)
     coef = solve(rows, struct)
     recs = [{"fit": "tempering_hv", "coefficient": n, "value": float(v), "unit": UNITS[n],
@@ -273,21 +409,40 @@ def fit(points: pd.DataFrame | None = None) -> dict:
             "pooled_logo_median_hrc": float(np.median(np.abs(err))),
             "pooled_logo_p90_hrc": float(np.percentile(np.abs(err), 90)),
             "in_sample_median_hrc": float(np.median(np.abs(hrc_error(predict(coef, rows, struct), obs)))),
+            "former_logo_median_hrc": float(np.median(np.abs(err[~rows["series"].to_numpy(bool)]))),
+            "former_logo_p90_hrc": float(np.percentile(np.abs(err[~rows["series"].to_numpy(bool)]), 90)),
             "n_through_mixture": int(_through(struct).sum())}
 
 
 def write(result: dict, out: Path = OUT) -> None:
-    fitted.write_tables(NAME, result, f"# written by scripts/fit_{NAME}.py from {SOURCE_FILE} (fully_hardened rows) "
-                                      f"and {REFERENCE_FILE} (tables of EXTRA_TABLES); do not edit by hand\n", out)
+    fitted.write_tables(NAME, result, f"# written by scripts/fit_{NAME}.py from {SOURCE_FILE} (fully_hardened rows), "
+                                      f"{REFERENCE_FILE} (tables of EXTRA_TABLES)"
+                                      f"{' and ' + SERIES_FILE if USE_SERIES else ''}, form {FORM}"
+                                      f"{', carbon slope >= 0' if CARBON_SLOPE_NON_NEGATIVE else ''}; "
+                                      f"do not edit by hand\n", out)
 
 
-def main() -> int:
+def main(argv=None) -> int:
+    import argparse
+
+    global FORM, USE_SERIES, CARBON_SLOPE_NON_NEGATIVE
+    ap = argparse.ArgumentParser(description="Fit the tempered-martensite surface and write data/fits/tempering_*.")
+    ap.add_argument("--form", choices=sorted(FORMS), default=FORM,
+                    help="a variant's form (default: the shipped one)")
+    ap.add_argument("--series", action="store_true", default=USE_SERIES,
+                    help=f"fit the martensite series of {SERIES_FILE} too (a variant, not shipped)")
+    ap.add_argument("--carbon-slope", action="store_true", default=CARBON_SLOPE_NON_NEGATIVE,
+                    help="hold the carbon slope a1 + b1*s at >= 0 up to the top of the fitted data (a variant, "
+                         "not shipped)")
+    args = ap.parse_args(argv)
+    FORM, USE_SERIES, CARBON_SLOPE_NON_NEGATIVE = args.form, args.series, args.carbon_slope
     r = fit()
     write(r)
     print(f"tempering_hv: {len(r['rows'])} rows ({r['n_through_mixture']} fitted through the mixture rule), "
           f"{r['rows']['grade'].nunique()} grades; in-sample median "
           f"{r['in_sample_median_hrc']:.2f} HRC; pooled LOGO median {r['pooled_logo_median_hrc']:.2f} HRC, "
-          f"p90 {r['pooled_logo_p90_hrc']:.2f} HRC")
+          f"p90 {r['pooled_logo_p90_hrc']:.2f} HRC; on the rows other than the martensite series "
+          f"{r['former_logo_median_hrc']:.2f} / {r['former_logo_p90_hrc']:.2f} HRC")
     print(r["cv"].round(2).to_string(index=False))
     return 0
 

@@ -111,7 +111,7 @@ def constituents(comp, martensite_pct, cooling_rate_c_s) -> dict:
     return {key: np.asarray(v)[inverse].reshape(shape) for key, v in out.items()}
 
 
-def mixture_hv(parts: dict, temp_c=None, hours=None, comp=None, coef=None) -> np.ndarray:
+def mixture_hv(parts: dict, temp_c=None, hours=None, comp=None, coef=None, caps=None) -> np.ndarray:
     """Hardness of the structure ``parts`` (from :func:`constituents`), as quenched
     (``temp_c`` None) or after tempering ``temp_c`` °C for ``hours`` h.
 
@@ -132,6 +132,9 @@ def mixture_hv(parts: dict, temp_c=None, hours=None, comp=None, coef=None) -> np
         Coefficients of the tempered-martensite surface
         (:func:`selector.models.tempering.tempered_martensite_hv`); None reads the shipped
         ones.  The fit script passes trial coefficients to fit the surface through this rule.
+    caps : mapping, optional
+        Element caps of the surface's alloy terms (``tempering.tempered_martensite_hv``);
+        None: the shipped fit's.
 
     Returns
     -------
@@ -162,7 +165,7 @@ def mixture_hv(parts: dict, temp_c=None, hours=None, comp=None, coef=None) -> np
     ok = np.isfinite(t)
     t1 = np.where(ok, t, 200.0)
     h1 = np.where(ok & np.isfinite(h), h, 1.0)
-    hv_tm = np.minimum(tempering.tempered_martensite_hv(comp, t1, h1, coef), hv_m)
+    hv_tm = np.minimum(tempering.tempered_martensite_hv(comp, t1, h1, coef, caps), hv_m)
     hv_tfp = np.minimum(hv_fp, hv_tm)
     # bainite never loses more than the martensite of the same steel at the same temper, and
     # never ends softer than its ferrite-pearlite at the same temper

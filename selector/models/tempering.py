@@ -77,13 +77,14 @@ ALLOY_CHECKED = ("C", "Mn", "Si", "Ni", "Cr", "Mo", "V")
 C_INTERCEPT, C_SLOPE, C_RANGE = 21.3, 5.8, (15.0, 21.3)
 #: P/1000 from which the Mo and V terms act (chosen by leave-one-grade-out error)
 P_ALLOY_ONSET = 12.0
-#: Mo, V and Cr are held at these values (top of the fitted data) in the fit's alloy terms
-MO_MAX, V_MAX, CR_MAX = 0.25, 0.15, 1.05
+#: elements of the surface's alloy terms; each is held at the top of the fitted data (``<El>_max`` of
+#: the fitted range, :func:`fitted_range`)
+CAPPED = ("Mo", "V", "Cr", "Mn", "Si", "Ni")
 #: lowest hardness returned for tempered martensite, HV (spheroidized low-carbon
 #: steel is about 120-150 HV: common practice)
 HV_FLOOR = 120.0
 
-FEATURES = ("1", "C", "s", "C*s", "Mo*a", "V*a", "Cr")
+FEATURES = ("1", "C", "s", "C*s", "Mo*a", "V*a", "Cr", "Cr*a", "Mn*a", "Si", "Ni")
 
 _SCHEMA = Schema((
     Column("grade", "str"),
@@ -221,27 +222,32 @@ def equivalent_hours(temp_c, hours, to_temp_c, c_const):
 # ---------------------------------------------------------------------------------
 # the fitted master surface (coefficients fitted offline by scripts/fit_tempering.py)
 
-def tempering_features(c, mo, v, p, cr=0.0):
+def tempering_features(c, mo, v, p, cr=0.0, mn=0.0, si=0.0, ni=0.0, caps=None):
     """Design matrix of the master surface, columns :data:`FEATURES` (last axis).
 
-    ``s = P/1000 − 16``, ``a = max(P/1000 − 12, 0)``; Mo, V and Cr are held at
-    :data:`MO_MAX` / :data:`V_MAX` / :data:`CR_MAX`.  Shared by the package and the fit
-    script so that the two can never use different forms.
+    ``s = P/1000 − 16``, ``a = max(P/1000 − 12, 0)``; each element of :data:`CAPPED` is held
+    at ``caps[el]`` (None: the top of the shipped fit's data, :func:`fitted_range`).  The element
+    terms follow the shapes of Grange, Hribal & Porter (1977): Ni and Si acting alike at every
+    temper, Mn, Mo and V growing from P/1000 = 12, Cr a constant plus a part growing with the
+    temper.  The shipped form holds the coefficients of the terms it does not use at 0
+    (``scripts/fit_tempering.py``, ``FORMS``).  Shared by the package and the fit script so
+    that the two can never use different forms.
 
     Example (illustrative: a value of this implementation, not a published one; 0.40 % C,
     0.20 % Mo at P = 16 000, so s = 0 and a = 4)
 
     >>> tempering_features(0.40, 0.20, 0.0, 16000.0).round(3).tolist()
-    [1.0, 0.4, 0.0, 0.0, 0.8, 0.0, 0.0]
+    [1.0, 0.4, 0.0, 0.0, 0.8, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0]
     """
-    c, mo, v, p, cr = (np.asarray(x, float) for x in (c, mo, v, p, cr))
+    if caps is None:
+        rng = fitted_range()
+        caps = {e: rng[e][1] for e in CAPPED}
+    c, mo, v, p, cr, mn, si, ni = (np.asarray(x, float) for x in (c, mo, v, p, cr, mn, si, ni))
     s = p / 1000.0 - 16.0
     a = np.maximum(p / 1000.0 - P_ALLOY_ONSET, 0.0)
-    mo = np.minimum(mo, MO_MAX)
-    v = np.minimum(v, V_MAX)
-    cr = np.minimum(cr, CR_MAX)
-    one = np.ones(np.broadcast(c, mo, v, p, cr).shape)
-    return np.stack(np.broadcast_arrays(one, c, s, c * s, mo * a, v * a, cr), axis=-1)
+    mo, v, cr, mn, si, ni = (np.minimum(x, caps[e]) for x, e in zip((mo, v, cr, mn, si, ni), CAPPED))
+    one = np.ones(np.broadcast(c, mo, v, p, cr, mn, si, ni).shape)
+    return np.stack(np.broadcast_arrays(one, c, s, c * s, mo * a, v * a, cr, cr * a, mn * a, si, ni), axis=-1)
 
 
 def load_points():
@@ -264,7 +270,7 @@ def load_points():
     return t
 
 
-def surface_hv(coef, c, mo, v, p, cr=0.0):
+def surface_hv(coef, c, mo, v, p, cr=0.0, mn=0.0, si=0.0, ni=0.0, caps=None):
     """The master surface with coefficients ``coef`` (in :data:`FEATURES` order),
     clipped to [HV_FLOOR, HV_M(C)].
 
@@ -272,7 +278,7 @@ def surface_hv(coef, c, mo, v, p, cr=0.0):
 
     >>> round(float(surface_hv(coefficients(), 0.40, 0.20, 0.0, 16000.0)))
     307"""
-    hv = tempering_features(c, mo, v, p, cr) @ np.asarray(coef, float)
+    hv = tempering_features(c, mo, v, p, cr, mn, si, ni, caps) @ np.asarray(coef, float)
     cap = conversions.hrc_to_hv(martensite_hardness_hrc(c, 99.9))
     return np.clip(hv, HV_FLOOR, cap)
 
@@ -314,7 +320,7 @@ def fitted_range() -> dict:
     return out
 
 
-def tempered_martensite_hv(comp, temp_c, hours, coef=None):
+def tempered_martensite_hv(comp, temp_c, hours, coef=None, caps=None):
     """Hardness of fully martensitic steel after tempering (master surface on the
     Hollomon–Jaffe parameter, Hollomon & Jaffe 1945; alloy terms after Grange,
     Hribal & Porter 1977).
@@ -338,6 +344,9 @@ def tempered_martensite_hv(comp, temp_c, hours, coef=None):
     coef : sequence of float, optional
         Coefficients in :data:`FEATURES` order; None (the package's use) reads the shipped
         ones (:func:`coefficients`).  The fit script passes trial coefficients here.
+    caps : mapping, optional
+        Element → wt % at which each alloy term is held (None: the top of the shipped fit's
+        data, :func:`fitted_range`); the fit script passes the span of its own rows.
 
     Returns
     -------
@@ -370,7 +379,7 @@ def tempered_martensite_hv(comp, temp_c, hours, coef=None):
     c = _carbon(el(comp, "C"))
     p = hollomon_jaffe_parameter(temp_c, hours, hollomon_jaffe_constant(c))
     return surface_hv(coefficients() if coef is None else coef, c, el(comp, "Mo"), el(comp, "V"), p,
-                      el(comp, "Cr"))
+                      el(comp, "Cr"), el(comp, "Mn"), el(comp, "Si"), el(comp, "Ni"), caps)
 
 
 
