@@ -741,7 +741,7 @@ def rank(prepared: pd.DataFrame, targets: dict | None = None, objectives=DEFAULT
         mine = vcode[s_all] == v
         subs.append("; ".join(_range_text(main[a], main[b]) for a, b in zip(s_all[mine], e_all[mine])))
     add["sub_windows"] = subs
-    return _finish(_with_columns(cand, add), t, objectives, ctx, allowed)
+    return _finish(cand, t, objectives, ctx, allowed, pre=add)
 
 
 def _with_columns(frame: pd.DataFrame, columns: dict) -> pd.DataFrame:
@@ -815,15 +815,17 @@ def _window_text(row) -> str:
 
 
 _ROUTES: dict = {}
+_NAN_KEY = object()      # stands for NaN in the keys of _ROUTES
 
 
 def _route_of(fam, params: tuple) -> tuple:
     """(steps, route text) of a route family at ``params`` ((name, value) pairs), kept
     (a re-rank lists mostly the same candidates again)."""
-    key = (fam.name, params)
     try:
+        # NaN is not equal to itself: a key holding a fresh NaN object would never be found again
+        key = (fam.name, tuple((k, _NAN_KEY if v != v else v) for k, v in params))
         hit = _ROUTES.get(key)
-    except TypeError:
+    except (TypeError, ValueError):
         hit, key = None, None
     if hit is None:
         steps = fam.to_steps(dict(params))
@@ -857,7 +859,12 @@ def p_meet_step(p: np.ndarray, robust: np.ndarray) -> np.ndarray:
     return np.where(np.asarray(robust, bool), np.floor(1.0 / P_MEET_STEP) + 1.0, step)
 
 
-def _finish(cand: pd.DataFrame, t: dict, objectives, service: dict | None = None, allowed=()) -> pd.DataFrame:
+def _finish(cand: pd.DataFrame, t: dict, objectives, service: dict | None = None, allowed=(),
+            pre: dict | None = None) -> pd.DataFrame:
+    """The candidates table of ``cand`` (one row per candidate) with ``pre`` (columns
+    to set on ``cand`` first, as by :func:`_with_columns`), cautions, routes, windows,
+    margins, pareto and rank, in rank order."""
+    pre = dict(pre or {})
     cand = cand.reset_index(drop=True)
     lists = cautions_mod.cautions_for(cand, **(service or {}))
     cautions = ["; ".join(d["title"] for d in row) for row in lists]
@@ -870,9 +877,10 @@ def _finish(cand: pd.DataFrame, t: dict, objectives, service: dict | None = None
             "feasible_min", "feasible_max", "sub_windows"}
     for f in fam_registry.available():
         need.update(f.parameters)
-    cols = [c for c in cand.columns if c in need]
+    cols = [c for c in cand.columns if c in need and c not in pre] + [c for c in pre if c in need]
     # rows as dicts of Python values (Series.tolist boxes like to_dict("records"), at a fraction of its cost)
-    for r in (dict(zip(cols, vals)) for vals in zip(*[cand[c].tolist() for c in cols])):
+    lists_of = [np.asarray(pre[c]).tolist() if c in pre else cand[c].tolist() for c in cols]
+    for r in (dict(zip(cols, vals)) for vals in zip(*lists_of)):
         fam = fam_registry.get(r["route"])
         steps, text = _route_of(fam, tuple((p, r[p]) for p in fam.parameters if p in r))
         routes.append([dict(st) for st in steps])        # the caller's own copy of the steps
@@ -882,33 +890,53 @@ def _finish(cand: pd.DataFrame, t: dict, objectives, service: dict | None = None
     add = {"cautions": cautions, "severity": severity, "avoid": avoid, "route_family": cand["route"],
            "route": routes, "route_text": texts, "window_parameter": wparam, "window": wtext}
     for col in ("p_meet", "corners_meet"):
-        if col not in cand:
+        if col not in cand and col not in pre:
             add[col] = np.nan
+    add = {**pre, **add}
     add["margin_bands"] = _margin_bands(cand, t)
-    cand = _with_columns(cand, add)
-    vals = np.column_stack([cand[c].to_numpy(float) for c, _ in objectives])
+
+    def col(c):
+        return add[c] if c in add else cand[c]
+    vals = np.column_stack([np.broadcast_to(np.asarray(col(c), float), (len(cand),)) for c, _ in objectives])
     clean = np.array([a == "" for a in avoid], bool)
     pool = clean if clean.any() else np.ones(len(cand), bool)
     par = np.zeros(len(cand), bool)
     if pool.any():
         par[pool] = pareto_mask(vals[pool], [s_ == "max" for _, s_ in objectives])
     m = margins(cand, t)
-    cand = _with_columns(cand, {"pareto": par, **{c: m[c].to_numpy() for c in m.columns}})
+    add.update({"pareto": par, **{c: m[c].to_numpy() for c in m.columns}})
     # the order of sorting the table by these keys, read from the keys alone; at equal cost and
     # p_meet step, a candidate whose worst live caution is milder comes first
-    keys = pd.DataFrame({"_avoid": ~clean, "robust": cand["robust"].to_numpy(),
-                         "_step": p_meet_step(cand["p_meet"].to_numpy(float), cand["robust"].to_numpy(bool)),
+    p_col = np.broadcast_to(np.asarray(col("p_meet"), float), (len(cand),))
+    robust = np.asarray(col("robust"))
+    keys = pd.DataFrame({"_avoid": ~clean, "robust": robust,
+                         "_step": p_meet_step(p_col, robust.astype(bool)),
                          "_sev": np.array([order.get(s_, -1) for s_ in severity], float),
-                         **{c: cand[c].to_numpy() for c in ("part_cost", "p_meet", "elongation_pct", "yield_mpa")}})
+                         "part_cost": cand["part_cost"].to_numpy(), "p_meet": p_col,
+                         **{c: cand[c].to_numpy() for c in ("elongation_pct", "yield_mpa")}})
     ranked = keys.sort_values(["_avoid", "robust", "_step", "part_cost", "_sev", "p_meet", "elongation_pct",
                                "yield_mpa"],
                               ascending=[True, False, False, True, True, False, False, False],
                               kind="stable", na_position="last").index.to_numpy()
-    cand = cand.take(ranked).reset_index(drop=True)
-    cand = _with_columns(cand, {"rank": np.arange(1, len(cand) + 1)})
+    # one assembly of the table in rank order (each new column put in that order too): the
+    # same columns, values and dtypes as adding them one step at a time, at a fraction of the copies
+    add = {k: _in_order(v, ranked) for k, v in add.items()}
+    add["rank"] = np.arange(1, len(cand) + 1)
+    cand = _with_columns(cand.take(ranked).reset_index(drop=True), add)
     cols = OUTPUT_COLUMNS + list(m.columns) + [c for c in cand.columns
                                                if c not in OUTPUT_COLUMNS and c not in m.columns]
     return cand[[c for c in cols if c in cand.columns]]
+
+
+def _in_order(v, order: np.ndarray):
+    """A column value of :func:`_finish` (scalar, list, array or Series) put in ``order``."""
+    if isinstance(v, pd.Series):
+        return v.take(order).reset_index(drop=True)
+    if isinstance(v, list):
+        return [v[i] for i in order]
+    if np.ndim(v) == 0:
+        return v
+    return np.asarray(v)[order]
 
 
 #: banded columns a target can test -> band columns (selector.routes.bands)
