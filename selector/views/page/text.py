@@ -53,10 +53,12 @@ def _variant_extra(row) -> str:
 def label_candidates(cand: pd.DataFrame) -> pd.DataFrame:
     """Add ``id`` (C1, C2 … in the engine's order) and ``label`` (id, grade and a
     short route name) to a candidates table."""
-    out = cand.reset_index(drop=True).copy()
-    out.insert(0, "id", [f"C{i + 1}" for i in range(len(out))])
-    out["label"] = [f"{i} {g} · {family_label(r)}{_variant_extra(row)}"
-                    for i, g, r, (_, row) in zip(out["id"], out["grade"], out["route_family"], out.iterrows())]
+    out = cand.reset_index(drop=True)        # copy-on-write: ``cand`` is never changed through it
+    ids = [f"C{i + 1}" for i in range(len(out))]
+    out.insert(0, "id", ids)
+    quench = out["quench"].tolist() if "quench" in out.columns else [None] * len(out)
+    out["label"] = [f"{i} {g} · {family_label(r)}{_variant_extra({'quench': q})}"
+                    for i, g, r, q in zip(ids, out["grade"].tolist(), out["route_family"].tolist(), quench)]
     return out
 
 
