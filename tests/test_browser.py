@@ -19,6 +19,7 @@ and the ``playwright`` Python package; no browser is downloaded.
 """
 from __future__ import annotations
 
+import contextlib
 import os
 import re
 import sys
@@ -109,9 +110,19 @@ def _shot(page, name: str) -> Path:
     return path
 
 
-def _launch(playwright, profile: Path):
-    # a new, throw-away profile directory (Playwright passes it as --user-data-dir)
-    return bench.launch(playwright, profile)
+@contextlib.contextmanager
+def _new_page(profile: Path):
+    """A page of Debian's Chromium through Playwright, in a new, throw-away profile directory
+    (Playwright passes it as --user-data-dir); the browser closed after."""
+    playwright = pytest.importorskip("playwright.sync_api")
+    if not Path(CHROMIUM).exists():
+        pytest.fail(f"{CHROMIUM} not found: install Debian's chromium package (.ci/run does)")
+    with playwright.sync_playwright() as p:
+        browser = bench.launch(p, profile)
+        try:
+            yield browser.new_page()       # browser: a persistent context (one profile)
+        finally:
+            browser.close()
 
 
 def test_page_at_1024_px_renders_views_and_cuts_no_text(server, tmp_path):
@@ -119,100 +130,92 @@ def test_page_at_1024_px_renders_views_and_cuts_no_text(server, tmp_path):
     (issue 13: first answer, target change, diameter change, unit switch; measured on the
     machine that runs the test and printed, not asserted on time).  Asserted: the unit
     switch makes no library computation (the footer's count of the server's computations)."""
-    playwright = pytest.importorskip("playwright.sync_api")
-    if not Path(CHROMIUM).exists():
-        pytest.fail(f"{CHROMIUM} not found: install Debian's chromium package (.ci/run does)")
-    with playwright.sync_playwright() as p:
-        browser = _launch(p, tmp_path / "profile")
-        try:
-            page = browser.new_page()
-            # a new server and an empty table cache: everything is built on this first visit
-            cold_s, cold_map_s, cold_idle_s, n_cand, first_run, cold_shell_s = _first_answer(page, server)
-            assert n_cand > 0
-            # the strength-elongation map: a vega-embed svg with nonzero size
-            chart = page.locator("[data-testid='stVegaLiteChart'] canvas, "
-                                 "[data-testid='stVegaLiteChart'] svg").first
-            chart.wait_for(state="visible", timeout=120_000)
-            box = chart.bounding_box()
-            assert box and box["width"] > 300 and box["height"] > 200
-            # drawn from data: a square per drawn candidate, its process path and its two dotted edges
-            marks = page.evaluate("""() => {
-                const el = document.querySelector("[data-testid='stVegaLiteChart']");
-                const svg = el && el.querySelector('svg');
-                if (!svg) return null;
-                const n = (sel) => svg.querySelectorAll(sel).length;
-                return {symbols: n('.mark-symbol path'), areas: n('.mark-area path'), lines: n('.mark-line path'),
-                        texts: n('.mark-text text')};
-            }""")
-            assert marks is not None, "the chart has no svg"
-            assert marks["symbols"] >= 3 and marks["lines"] >= 9 and marks["texts"] >= 3
-            assert marks["areas"] == 0                 # no filled region per candidate
-            grid = page.locator("[data-testid='stDataFrame']").first
-            gbox = grid.bounding_box()
-            assert gbox and gbox["height"] > 100
-            text = page.locator("[data-testid='stMarkdownContainer']").all_inner_texts()
-            assert any(t.startswith("In force") for t in text), "the line of the settings in force is missing"
-            alerts = page.locator("[data-testid='stAlert']").all_inner_texts()
-            assert sum("qualified" in a for a in alerts) >= 2
-            page.wait_for_timeout(1500)       # let the chart finish its transitions
-            cut = {}
-            cut["map"] = page.evaluate(CUT)
-            page.screenshot(path=str(SCREENSHOT), full_page=False, clip={"x": 0, "y": 0, "width": WIDTH, "height": 1500})
-            assert SCREENSHOT.stat().st_size > 20_000
-            _shot(page, "map")
-            for name, label in (("candidate", "One candidate"), ("side_by_side", "Side by side"),
-                                ("alternatives", "Alternatives"), ("pin", "Clevis pin"),
-                                ("parts", "Parts list")):
-                _tab(page, label)
-                cut[name] = page.evaluate(CUT)
-                _shot(page, name)
-            _tab(page, "Map and list")
-            # a second visit to the same server (a reload): the server's caches are warm
-            reload_page = browser.new_page()
-            reload_s, reload_map_s, _, n_again, reload_run, reload_shell_s = _first_answer(reload_page, server)
-            reload_page.close()
-            assert n_again == n_cand
-            # a change of targets re-ranks: the summary line changes to fewer candidates
-            field = page.get_by_label(re.compile(r"^Min yield \(MPa\)"))
-            t1 = time.monotonic()
-            field.fill("1000")
-            field.press("Enter")
-            page.wait_for_function(
-                """(before) => [...document.querySelectorAll("[data-testid='stMarkdownContainer']")]
-                       .some(e => /(\\d+) candidates meet/.test(e.textContent)
-                                  && +e.textContent.match(/(\\d+) candidates meet/)[1] !== before)""",
-                arg=n_cand, timeout=60_000)
-            page.wait_for_function(IDLE, timeout=60_000)
-            rerank_s = time.monotonic() - t1
-            text = page.locator("[data-testid='stMarkdownContainer']").all_inner_texts()
-            n_after = int(re.search(r"(\d+)\s+candidates meet", [t for t in text if "candidates meet" in t][0]).group(1))
-            assert 0 < n_after < n_cand
-            rerank_run = page.evaluate(RUN_LINE)
-            diameter = page.get_by_label(re.compile(r"^Diameter \(mm\)"))
-            diameter_s = _timed_rerun(page, lambda: (diameter.fill("41"), diameter.press("Enter")))
-            diameter_run = page.evaluate(RUN_LINE)
-            # the floor of a change: a re-run with every result cached and the same map (the table's
-            # "All columns" switch on, then off again: the second is timed)
-            switch = page.get_by_text("All columns", exact=True)
-            _timed_rerun(page, switch.click)
-            floor_s = _timed_rerun(page, switch.click)
-            floor_run = page.evaluate(RUN_LINE)
-            calls_before = page.evaluate(CALLS)
-            units_s = _timed_rerun(page, lambda: page.get_by_text("US customary", exact=True).click())
-            page.get_by_label(re.compile(r"^Diameter \(in\)")).wait_for(state="visible", timeout=120_000)
-            calls_after = page.evaluate(CALLS)
-            units_run = page.evaluate(RUN_LINE)
-            page.wait_for_timeout(1200)
-            cut["map, US units"] = page.evaluate(CUT)
-        finally:
-            browser.close()
+    with _new_page(tmp_path / "profile") as page:
+        # a new server and an empty table cache: everything is built on this first visit
+        cold_s, cold_map_s, cold_idle_s, n_cand, first_run, cold_shell_s = _first_answer(page, server)
+        assert n_cand > 0
+        # the strength-elongation map: a vega-embed svg with nonzero size
+        chart = page.locator("[data-testid='stVegaLiteChart'] canvas, "
+                             "[data-testid='stVegaLiteChart'] svg").first
+        chart.wait_for(state="visible", timeout=120_000)
+        box = chart.bounding_box()
+        assert box and box["width"] > 300 and box["height"] > 200
+        # drawn from data: a square per drawn candidate, its process path and its two dotted edges
+        marks = page.evaluate("""() => {
+            const el = document.querySelector("[data-testid='stVegaLiteChart']");
+            const svg = el && el.querySelector('svg');
+            if (!svg) return null;
+            const n = (sel) => svg.querySelectorAll(sel).length;
+            return {symbols: n('.mark-symbol path'), areas: n('.mark-area path'), lines: n('.mark-line path'),
+                    texts: n('.mark-text text')};
+        }""")
+        assert marks is not None, "the chart has no svg"
+        assert marks["symbols"] >= 3 and marks["lines"] >= 9 and marks["texts"] >= 3
+        assert marks["areas"] == 0                 # no filled region per candidate
+        grid = page.locator("[data-testid='stDataFrame']").first
+        gbox = grid.bounding_box()
+        assert gbox and gbox["height"] > 100
+        text = page.locator("[data-testid='stMarkdownContainer']").all_inner_texts()
+        assert any(t.startswith("In force") for t in text), "the line of the settings in force is missing"
+        alerts = page.locator("[data-testid='stAlert']").all_inner_texts()
+        assert sum("qualified" in a for a in alerts) >= 2
+        page.wait_for_timeout(1500)       # let the chart finish its transitions
+        cut = {}
+        cut["map"] = page.evaluate(CUT)
+        page.screenshot(path=str(SCREENSHOT), full_page=False, clip={"x": 0, "y": 0, "width": WIDTH, "height": 1500})
+        assert SCREENSHOT.stat().st_size > 20_000
+        _shot(page, "map")
+        for name, label in (("candidate", "One candidate"), ("side_by_side", "Side by side"),
+                            ("alternatives", "Alternatives"), ("pin", "Clevis pin"),
+                            ("parts", "Parts list")):
+            _tab(page, label)
+            cut[name] = page.evaluate(CUT)
+            _shot(page, name)
+        _tab(page, "Map and list")
+        # a second visit to the same server (a reload): the server's caches are warm
+        reload_page = page.context.new_page()
+        reload_s, reload_map_s, _, n_again, reload_run, reload_shell_s = _first_answer(reload_page, server)
+        reload_page.close()
+        assert n_again == n_cand
+        # a change of targets re-ranks: the summary line changes to fewer candidates
+        field = page.get_by_label(re.compile(r"^Min yield \(MPa\)"))
+        t1 = time.monotonic()
+        field.fill("1000")
+        field.press("Enter")
+        page.wait_for_function(
+            """(before) => [...document.querySelectorAll("[data-testid='stMarkdownContainer']")]
+                   .some(e => /(\\d+) candidates meet/.test(e.textContent)
+                              && +e.textContent.match(/(\\d+) candidates meet/)[1] !== before)""",
+            arg=n_cand, timeout=60_000)
+        page.wait_for_function(IDLE, timeout=60_000)
+        rerank_s = time.monotonic() - t1
+        text = page.locator("[data-testid='stMarkdownContainer']").all_inner_texts()
+        n_after = int(re.search(r"(\d+)\s+candidates meet", [t for t in text if "candidates meet" in t][0]).group(1))
+        assert 0 < n_after < n_cand
+        rerank_run = page.evaluate(RUN_LINE)
+        diameter = page.get_by_label(re.compile(r"^Diameter \(mm\)"))
+        diameter_s = _timed_rerun(page, lambda: (diameter.fill("41"), diameter.press("Enter")))
+        diameter_run = page.evaluate(RUN_LINE)
+        # the floor of a change: a re-run with every result cached and the same map (the table's
+        # "All columns" switch on, then off again: the second is timed)
+        switch = page.get_by_text("All columns", exact=True)
+        _timed_rerun(page, switch.click)
+        floor_s = _timed_rerun(page, switch.click)
+        floor_run = page.evaluate(RUN_LINE)
+        calls_before = page.evaluate(CALLS)
+        units_s = _timed_rerun(page, lambda: page.get_by_text("US customary", exact=True).click())
+        page.get_by_label(re.compile(r"^Diameter \(in\)")).wait_for(state="visible", timeout=120_000)
+        calls_after = page.evaluate(CALLS)
+        units_run = page.evaluate(RUN_LINE)
+        page.wait_for_timeout(1200)
+        cut["map, US units"] = page.evaluate(CUT)
     # one round of the page benchmark (scripts/bench_page.py): the two floors, then a new server process
     # with the warm start (serve.py) on the table cache that the first one wrote (a later start of the
     # page), the same harness and steps for each
     work = tmp_path / "bench"
     work.mkdir()
     n_bench = bench.prepare_work(work)
-    with playwright.sync_playwright() as p:
+    with pytest.importorskip("playwright.sync_api").sync_playwright() as p:
         floors = bench.measure_floors(p, work)
         warm = bench.measure_page(p, work, dict(os.environ), diameter="43")   # a section not computed yet
     assert n_bench == n_cand
@@ -244,28 +247,20 @@ def test_a_target_change_reruns_the_results_only_and_keeps_closed_views_inputs(s
     candidate count follows the new minimum yield) and the inputs of a closed view survive
     such runs (a fragment run drops the state of its widgets it does not draw unless the page
     writes it back): the pin's safety factor typed before is still there after two of them."""
-    playwright = pytest.importorskip("playwright.sync_api")
-    if not Path(CHROMIUM).exists():
-        pytest.fail(f"{CHROMIUM} not found: install Debian's chromium package (.ci/run does)")
-    with playwright.sync_playwright() as p:
-        browser = _launch(p, tmp_path / "profile_fragment")
-        try:
-            page = browser.new_page()
-            bench.first_answer(page, server)
-            n0 = page.evaluate(bench.N_CAND)
-            _tab(page, "Clevis pin")
-            sf = page.get_by_label(re.compile(r"^Safety factor"))
-            sf.fill("3.5")
-            sf.press("Enter")
-            page.wait_for_function(IDLE)
-            _tab(page, "Map and list")
-            before = page.evaluate(RUN_LINE)
-            _timed_rerun(page, bench.type_value(page, "Min yield (MPa)", "1000"))
-            n1 = page.evaluate(bench.N_CAND)
-            _timed_rerun(page, bench.type_value(page, "Min yield (MPa)", "1100"))
-            assert page.evaluate(RUN_LINE) != before
-            assert 0 <= n1 < n0, (n0, n1)
-            _tab(page, "Clevis pin")
-            assert page.get_by_label(re.compile(r"^Safety factor")).input_value() == "3.50"
-        finally:
-            browser.close()
+    with _new_page(tmp_path / "profile_fragment") as page:
+        bench.first_answer(page, server)
+        n0 = page.evaluate(bench.N_CAND)
+        _tab(page, "Clevis pin")
+        sf = page.get_by_label(re.compile(r"^Safety factor"))
+        sf.fill("3.5")
+        sf.press("Enter")
+        page.wait_for_function(IDLE)
+        _tab(page, "Map and list")
+        before = page.evaluate(RUN_LINE)
+        _timed_rerun(page, bench.type_value(page, "Min yield (MPa)", "1000"))
+        n1 = page.evaluate(bench.N_CAND)
+        _timed_rerun(page, bench.type_value(page, "Min yield (MPa)", "1100"))
+        assert page.evaluate(RUN_LINE) != before
+        assert 0 <= n1 < n0, (n0, n1)
+        _tab(page, "Clevis pin")
+        assert page.get_by_label(re.compile(r"^Safety factor")).input_value() == "3.50"
