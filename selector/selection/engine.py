@@ -68,7 +68,7 @@ from ..routes.steps import describe
 from ..rules import cautions as cautions_mod
 from ..rules.cautions import check_context
 from ..states import scatter
-from ..states.expand import RESULT_COLUMNS, StatesColumns, Text, column_series, expand_columns
+from ..states.expand import RESULT_COLUMNS, StatesColumns, Text, column_series, expand_columns, notes_in
 from ..states.expand import structure_of as expand_structure
 from . import cost as cost_mod
 from .pareto import pareto_mask
@@ -222,10 +222,10 @@ def _prepare_table(diameter_mm, thickness_mm, length_mm, prices: tuple) -> pd.Da
     out = df.take(order).reset_index(drop=True)
     codes, uniq = pd.factorize(out["notes"])
     if len(uniq) and not np.any(codes < 0):
-        per = np.array([0 if not x else x.count(" | ") + 1 for x in uniq], dtype=np.int64)
+        per = np.array([notes_in(x) for x in uniq], dtype=np.int64)
         out["n_notes"] = per[codes]
     else:
-        out["n_notes"] = [0 if not x else x.count(" | ") + 1 for x in out["notes"]]
+        out["n_notes"] = [notes_in(x) for x in out["notes"]]
     return _with_section(out, d, thickness_mm, length_mm)
 
 
@@ -279,10 +279,10 @@ def _prepared_from_columns(st: StatesColumns, d, thickness_mm, length_mm: float,
     data["variant_code"] = vcode[order]
     notes = st.cols["notes"]
     per = (np.asarray(notes.counts, np.int64) if notes.counts is not None
-           else np.array([0 if not x else x.count(" | ") + 1 for x in notes.uniques], dtype=np.int64))
+           else np.array([notes_in(x) for x in notes.uniques], dtype=np.int64))
     codes = notes.codes[order]
     data["n_notes"] = (per[codes] if len(per) and not np.any(codes < 0)
-                       else [0 if not x else x.count(" | ") + 1 for x in data["notes"]])
+                       else [notes_in(x) for x in data["notes"]])
     return _with_section(pd.DataFrame(data, copy=False), d, thickness_mm, length_mm)
 
 

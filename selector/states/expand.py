@@ -193,6 +193,15 @@ class Text:
         return uniq[self.codes]
 
 
+def notes_in(text: str) -> int:
+    """The number of notes in a joined notes text (``" | "``-separated; 0 for the empty text).
+
+    >>> notes_in(""), notes_in("a"), notes_in("a | b")
+    (0, 1, 2)
+    """
+    return text.count(" | ") + 1 if text else 0
+
+
 def note_counts(texts: dict, counts: dict) -> np.ndarray:
     """The number of notes of each text of ``texts`` (text -> code) in code order: its count
     from :func:`note_codes` (``counts``, code -> count) where kept, else as the text reads
@@ -200,7 +209,7 @@ def note_counts(texts: dict, counts: dict) -> np.ndarray:
     out = np.zeros(len(texts), np.int64)
     for text, code in texts.items():
         c = counts.get(code)
-        out[code] = c if c is not None else (0 if not text else text.count(" | ") + 1)
+        out[code] = c if c is not None else notes_in(text)
     return out
 
 
@@ -212,7 +221,7 @@ def note_codes(notes, n: int, texts: dict, n_notes: dict | None = None) -> np.nd
     thousands of validity messages made the per-message string concatenation over every state
     the largest cost of the expansion).  ``n_notes`` (code -> number of notes, extended in place
     for each new text): a text joined from messages that hold no ``"|"`` and are not empty
-    counts its messages (what ``text.count(" | ") + 1`` reads); the others are left out (read
+    counts its messages (what :func:`notes_in` reads); the others are left out (read
     from the text by :func:`note_counts`).
 
     Example (illustrative)

@@ -43,11 +43,9 @@ def param_unit(name: str, system: str, family: str | None = None) -> str:
     return unit(q, system) if q else si_unit
 
 
-def _variant_extra(row) -> str:
-    q = row.get("quench") if hasattr(row, "get") else None
-    if isinstance(q, str) and q:
-        return f" ({q})"
-    return ""
+def _quench_extra(q) -> str:
+    """" (oil)" after a candidate's label where its route names a quench, else ""."""
+    return f" ({q})" if isinstance(q, str) and q else ""
 
 
 def label_candidates(cand: pd.DataFrame) -> pd.DataFrame:
@@ -57,7 +55,7 @@ def label_candidates(cand: pd.DataFrame) -> pd.DataFrame:
     ids = [f"C{i + 1}" for i in range(len(out))]
     out.insert(0, "id", ids)
     quench = out["quench"].tolist() if "quench" in out.columns else [None] * len(out)
-    out["label"] = [f"{i} {g} · {family_label(r)}{_variant_extra({'quench': q})}"
+    out["label"] = [f"{i} {g} · {family_label(r)}{_quench_extra(q)}"
                     for i, g, r, q in zip(ids, out["grade"].tolist(), out["route_family"].tolist(), quench)]
     return out
 
