@@ -21,7 +21,7 @@ CAUTION = ("Estimates for preliminary selection only. The final choice needs cer
 #: public name -> module that defines it (imported on first access)
 _LAZY = {
     "grade": ".catalogue.grades",
-    "evaluate": ".routes.evaluate",
+    "evaluate": ".selection.single",
     "select": ".selection.engine", "nearest_misses": ".selection.engine", "alternatives": ".selection.engine",
     "miss_analysis": ".selection.engine",
     "pin_targets": ".design.pins", "pin_capacity": ".design.capacity",

@@ -22,3 +22,17 @@ def test_evaluate_json_matches_library():
     data = json.loads(out)
     ref = selector.evaluate("4140", QT, diameter_mm=40)
     assert code == 0 and data["uts_mpa"] == pytest.approx(ref["uts_mpa"]) and "caution" in data
+
+
+def test_evaluate_prints_the_rules_that_apply():
+    # 4140 (0.38-0.43 % C) quenched in water: the quench-cracking rule (limit 0.35 % C for alloy
+    # steels, data/cautions.csv; common practice) is printed with its severity; an oil quench has none
+    code, out, _ = run("evaluate", "4140", "harden quench=water", "temper temp_c=600", "--diameter", "25")
+    assert code == 0 and "[avoid] Quench-cracking risk (water or brine)" in out
+    code, out, _ = run("evaluate", "4140", "harden quench=oil", "temper temp_c=600", "--diameter", "25")
+    assert code == 0 and "Quench-cracking" not in out
+    # the heat's own carbon decides: a 34CrMo4 heat certified at 0.32 % C has no cracking caution
+    code, out, _ = run("evaluate", "34CrMo4", "harden quench=water", "temper temp_c=600", "--heat", "C=0.32")
+    assert code == 0 and "Quench-cracking" not in out
+    code, out, _ = run("evaluate", "34CrMo4", "harden quench=water", "temper temp_c=600", "--heat", "C=0.36")
+    assert code == 0 and "[avoid] Quench-cracking risk (water or brine)" in out

@@ -2,6 +2,7 @@
 ``evaluate(heat_composition=...)``, CLI ``--heat``)."""
 import math
 
+import pandas as pd
 import pytest
 
 import selector
@@ -81,3 +82,47 @@ def test_cli_heat(capsys):
     err = capsys.readouterr().err
     assert "heat_composition['C']" in err and len(err.strip().splitlines()) == 1
     assert main(["evaluate", "4140", "harden quench=oil", "--heat", "C0.4"]) == 2
+
+
+# --- cautions of one evaluation (selector.evaluate -> selector/selection/single.py) --------------
+# The cracking limit of a water or brine quench is 0.35 % C for alloy steels (data/cautions.csv,
+# rule quench_cracking; common practice).  34CrMo4 is specified at C 0.30-0.37 % (EN 10083-3
+# Table 2, data/compositions.csv): its nominal is below the limit, its maximum above it.
+WATER = [{"op": "harden", "quench": "water"}, {"op": "temper", "temp_c": 600}]
+
+
+def _codes(r):
+    return [c["code"] for c in r["cautions"]]
+
+
+def test_evaluate_reports_the_quench_cracking_caution_of_a_water_quenched_alloy_steel():
+    r = selector.evaluate("4140", WATER, diameter_mm=25)
+    crack = [c for c in r["cautions"] if c["code"] == "quench_cracking"]
+    assert crack and crack[0]["severity"] == "avoid" and crack[0]["title"]
+    assert "quench_cracking" not in _codes(selector.evaluate("4140", QT, diameter_mm=25))
+
+
+def test_a_certified_heat_decides_the_quench_cracking_rules_by_its_own_carbon():
+    g = selector.grade("34CrMo4")
+    assert g.comp_min["C"] < 0.35 <= g.comp_max["C"]
+    assert "quench_cracking_range" in _codes(selector.evaluate("34CrMo4", WATER, diameter_mm=25))
+    low = _codes(selector.evaluate("34CrMo4", WATER, diameter_mm=25, heat_composition={"C": 0.32}))
+    assert "quench_cracking" not in low and "quench_cracking_range" not in low
+    high = _codes(selector.evaluate("34CrMo4", WATER, diameter_mm=25, heat_composition={"C": 0.36}))
+    assert "quench_cracking" in high and "quench_cracking_range" not in high
+
+
+def test_evaluate_cautions_equal_those_of_the_selection_row():
+    # the same rules on the same state: a row of select() evaluated alone carries the same cautions
+    t = selector.select({"min_yield_mpa": 700, "min_elongation_pct": 12}, diameter_mm=30)
+    # one row of each distinct set of cautions, and rows without any
+    rows = pd.concat([t.drop_duplicates("cautions"), t[t["cautions"] == ""].head(3)])
+    assert (rows["cautions"] != "").sum() >= 3
+    for _, row in rows.iterrows():
+        r = selector.evaluate(row["grade"], row["route"], diameter_mm=30)
+        assert "; ".join(c["title"] for c in r["cautions"]) == row["cautions"], (row["grade"], row["route_text"])
+
+
+def test_evaluate_rejects_a_bad_caution_context_before_computing():
+    with pytest.raises(InputError, match="environment"):
+        selector.evaluate("4140", QT, diameter_mm=25, environment="wet")

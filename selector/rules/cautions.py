@@ -14,7 +14,9 @@ The columns read are those of the states table: ``grade``, ``family``, ``route``
 ``uts_mpa``, and for two-stage routes ``prior`` (the route of the prior
 hardening), ``prior_quench``, ``prior_temper_temp_c`` and ``temp_c`` (the
 nitriding temperature of a nitride route; on an ``age`` route it stands in for a
-missing ``age_temp_c``).  :data:`COLUMNS_READ` lists them all.  ``grade`` and ``family`` are required; a missing optional column
+missing ``age_temp_c``), and optionally ``c_max_pct`` (the highest carbon the part can
+have where it is known, e.g. a certified heat's own C; otherwise the grade's
+specification maximum is read).  :data:`COLUMNS_READ` lists them all.  ``grade`` and ``family`` are required; a missing optional column
 counts as "not applicable" (NaN or empty), since a table that joins several route
 families leaves the columns of the others empty.
 
@@ -180,7 +182,7 @@ class _Frame:
         self.designation = self._str(frame, "designation")
         for col in ("temper_temp_c", "age_temp_c", "peak_ratio", "c_pct", "hardness_hrc",
                     "surface_hardness_hrc", "uts_mpa", "prior_temper_temp_c", "temp_c",
-                    "center_martensite_pct", "case_depth_mm"):
+                    "center_martensite_pct", "case_depth_mm", "c_max_pct"):
             setattr(self, col, self._num(frame, col))
         # an aging route may carry its temperature as temp_c (the step's parameter name)
         self.age_temp_c = np.where(np.isnan(self.age_temp_c) & (self.route == "age"), self.temp_c,
@@ -275,6 +277,8 @@ def _quench_cracking_range(f: _Frame, ctx: dict) -> np.ndarray:
     severe, limit = _severe_quench_and_limit(f)
     g, ginv = np.unique(f.grade.astype(str), return_inverse=True)
     c_max = np.array([_c_max_pct(x) for x in g], float)[ginv]
+    # a row whose highest possible carbon is known (a certified heat analysis: its own C) reads that
+    c_max = np.where(np.isfinite(f.c_max_pct), f.c_max_pct, c_max)
     below = ~_ge(f.c_pct - limit, -1e-9)
     return severe & below & _ge(c_max - limit, -1e-9)
 
@@ -451,7 +455,7 @@ def _load_cautions() -> Mapping[str, Caution]:
 COLUMNS_READ = ("grade", "family", "route", "route_family", "quench", "prior", "prior_quench",
                 "prior_temper_temp_c", "temper_temp_c", "age_temp_c", "temp_c", "peak_ratio",
                 "designation", "c_pct", "hardness_hrc", "surface_hardness_hrc", "uts_mpa",
-                "center_martensite_pct", "case_depth_mm")
+                "center_martensite_pct", "case_depth_mm", "c_max_pct")
 
 #: every caution, by code (loaded once from data/cautions.csv)
 CAUTIONS: Mapping[str, Caution] = _load_cautions()

@@ -47,6 +47,9 @@ def format_evaluation(r: dict) -> str:
         lines += ["", "hardness across the section (depth from surface):"]
         for p in r["profile"]:
             lines.append(f"  {p['depth_mm']:7.2f} mm  {fmt(p['hardness_hv']):>5} HV  {fmt(p['hardness_hrc'], 1):>5} HRC")
+    if r.get("cautions"):
+        lines += ["", "cautions (rules of data/cautions.csv; severity note < caution < avoid):"]
+        lines += [f"  [{c['severity']}] {c['title']}: {c['reason']}" for c in r["cautions"]]
     if r.get("warnings"):
         lines += ["", "warnings:"] + [f"  ! {w}" for w in r["warnings"]]
     lines += ["", "sources:"] + [f"  - {s}" for s in r["sources"]]
