@@ -116,16 +116,21 @@ def _ph_predict(alloy, temp_c, hours):
 
 
 def test_ph_coefficients_equal_what_the_fit_script_produces():
-    # fit convention: the shipped file can never drift from its script.  rel 1e-6: the
-    # least-squares optimum agrees to ~3e-8 between BLAS builds (measured: sigma_i
-    # 642.80293 shipped vs 642.80291 refitted on the 2-core CI machine), far below any
-    # change of data or script, which moves the coefficients by percent
+    # fit convention: the shipped file can never drift from its script.  The least-squares optimum
+    # lies in a shallow valley (sigma_ss0 trades against s0 and Q): between numpy/scipy builds the
+    # coefficients move by up to ~2e-6 relative (measured: sigma_ss0 115.197069 shipped vs 115.197328
+    # refitted with numpy 2.4 / scipy 1.17) while the fitted yields move by ~1e-8; any change of data
+    # or script moves the coefficients by percent and the predictions by far more than 1e-6
     fit = _fit_script()
-    d = fit.fit(fit.load_rows())
+    rows_in = fit.load_rows()
+    d = fit.fit(rows_in)
     shipped = _csv("fits/aging_ph_coefficients.csv").set_index("coefficient")["value"]
     for name in ag.CONSTANT_NAMES:
-        assert float(shipped[name]) == pytest.approx(d[name], rel=1e-6), name
-    assert ag.ph_coefficients()["s0_mpa"] == pytest.approx(d["s0_mpa"], rel=1e-6)
+        assert float(shipped[name]) == pytest.approx(d[name], rel=1e-5), name
+    assert ag.ph_coefficients()["s0_mpa"] == pytest.approx(float(shipped["s0_mpa"]), rel=1e-12)
+    aged = rows_in[rows_in["condition"] != "A"]
+    as_shipped = fit.predict({**d, **{k: float(shipped[k]) for k in ag.CONSTANT_NAMES}}, aged)
+    np.testing.assert_allclose(as_shipped["yield_mpa"], fit.predict(d, aged)["yield_mpa"], rtol=1e-6)
     rows = _csv("fits/aging_ph_rows.csv")
     assert set(zip(rows["grade"], rows["condition"])) == set(
         zip(fit.load_rows()["grade"], fit.load_rows()["condition"]))

@@ -170,21 +170,31 @@ def _read_fit(file):
     return pd.read_csv(data_dir() / "fits" / file, comment="#", dtype={"grade": str})
 
 
+#: how closely a refit on another machine or library build reproduces the shipped optimum: the
+#: nonlinear least-squares optimum agrees to ~5e-9 relative between numpy/scipy builds (measured:
+#: 88.0760418469 shipped vs 88.0760422624 refitted with numpy 2.4 / scipy 1.17), and a coefficient
+#: held on its bound at 0 differs by ~1e-11 absolute; any change of data, form or script moves the
+#: coefficients by far more (percent)
+FIT_RTOL, FIT_ATOL = 1e-6, 1e-8
+
+
 def test_shipped_coefficients_equal_the_fit_script():
     import pandas as pd
     res = _script("fit_tempering").fit()
     shipped = _read_fit("tempering_coefficients.csv")
     assert list(shipped["coefficient"]) == list(res["coefficients"]["coefficient"])
     np.testing.assert_allclose(shipped["value"].to_numpy(float), res["coefficients"]["value"].to_numpy(float),
-                               rtol=1e-9, atol=0)
+                               rtol=FIT_RTOL, atol=FIT_ATOL)
     rows = _read_fit("tempering_rows.csv")
     assert len(rows) == len(res["rows"])
     pd.testing.assert_series_equal(rows["grade"], res["rows"]["grade"].reset_index(drop=True), check_names=False)
     np.testing.assert_allclose(rows["temp_c"], res["rows"]["temp_c"], rtol=1e-12)
     cv = _read_fit("tempering_cv.csv")
-    np.testing.assert_allclose(cv["median_abs_error"], res["cv"]["median_abs_error"], rtol=1e-9)
+    # the leave-one-grade-out refits stop within ~3e-6 relative of each other between builds (measured
+    # 0.967654 vs 0.967657 HRC); the figures are quoted to 0.01 HRC
+    np.testing.assert_allclose(cv["median_abs_error"], res["cv"]["median_abs_error"], rtol=0, atol=1e-3)
     # and the package reads exactly those coefficients
-    assert tp.coefficients() == pytest.approx(tuple(res["coefficients"]["value"][:len(tp.FEATURES)]), rel=1e-9)
+    assert tp.coefficients() == pytest.approx(tuple(shipped["value"][:len(tp.FEATURES)]), rel=1e-12)
 
 
 def test_cross_validation_figures_and_form():

@@ -16,7 +16,7 @@ from __future__ import annotations
 
 import pandas as pd
 
-from ..catalogue.grades import default_catalogue
+from ..catalogue.grades import Grade, default_catalogue
 from ..routes.evaluate import evaluate as _evaluate_properties
 from ..rules import cautions as caution_rules
 
@@ -29,8 +29,8 @@ def caution_frame(result: dict, c_pct: float | None, c_max_pct: float | None = N
     """The one-row table the caution rules read, from a result of the property evaluation.
 
     ``c_pct``: the carbon of the evaluated composition, wt %; ``c_max_pct``: the highest carbon
-    the part can have, wt % (the heat's own C when a heat analysis is given; None: the grade's
-    specification maximum)."""
+    the part can have, wt % (the heat's own C when a heat analysis is given, else the grade's
+    specification maximum; None: the rules look the grade up in the built-in catalogue)."""
     row = {"grade": result["grade"], "family": result["family"], "route_family": result["route_family"]}
     row.update({k: v for k, v in result.get("params", {}).items() if v is not None})
     row.update({k: result.get(k) for k in _RESULT_KEYS})
@@ -79,11 +79,11 @@ def evaluate(grade, route, diameter_mm: float | None = 25.0, thickness_mm: float
     out = _evaluate_properties(grade, route, diameter_mm=diameter_mm, thickness_mm=thickness_mm,
                                composition=composition, heat_composition=heat_composition, finish=finish,
                                load_type=load_type, reliability=reliability, service_temp_c=service_temp_c)
+    g = grade if isinstance(grade, Grade) else default_catalogue().lookup(grade)
     if heat_composition is not None:
-        c_pct = out["heat_composition"].get("C")
-        c_max = c_pct
+        c_pct = c_max = out["heat_composition"].get("C")      # the certified heat's own carbon
     else:
-        c_pct, c_max = default_catalogue().lookup(out["grade"]).composition(composition).get("C"), None
+        c_pct, c_max = g.composition(composition).get("C"), g.comp_max.get("C")
     frame = caution_frame(out, c_pct, c_max)
     out["cautions"] = caution_rules.cautions_for(
         frame, plated=plated, mating_material=mating_material, service_temp_c=service_temp_c,
