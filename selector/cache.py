@@ -20,6 +20,14 @@ A cache file is never trusted:
 * it is written atomically (a temporary file in the same directory, then
   ``os.replace``), so a reader never sees half a file.
 
+Writes happen **behind the answer**: the value is returned at once and one writer
+thread of the process (not a daemon: the interpreter waits for it before it exits)
+checksums and writes the file, in the order the writes were asked for.  The arrays
+handed to it are read-only or private copies, so nothing the caller does later can
+change a file being written.  :func:`wait_for_writes` waits for the pending writes
+(the tests and the benchmark call it); ``SELECTOR_WRITE_BEHIND=0`` writes in the
+caller's thread instead.
+
 The result is bit-identical to a fresh build (``.npz`` stores float64 exactly;
 ``tests/test_cache.py`` checks it).  Within one process the table is also kept in
 memory.  Returned arrays are read-only.
@@ -31,6 +39,7 @@ An unwritable directory only costs the rebuild; it is never an error.
 """
 from __future__ import annotations
 
+import collections
 import functools
 import hashlib
 import inspect
@@ -139,7 +148,10 @@ def checksum(arrays: dict) -> str:
     for name in sorted(arrays):
         a = np.ascontiguousarray(arrays[name])
         h.update(f"{name}|{a.dtype.str}|{a.shape}|".encode())
-        h.update(a.tobytes())
+        try:
+            h.update(memoryview(a).cast("B"))        # the same bytes, without a copy
+        except (TypeError, ValueError):
+            h.update(a.tobytes())
     return h.hexdigest()
 
 
@@ -186,6 +198,97 @@ def _save(path: Path, key: str, arrays: dict, was_tuple: bool) -> bool:
         return True
     except OSError:
         return False
+
+
+# --------------------------------------------------------------------------- writes behind the answer
+_PENDING: collections.deque = collections.deque()
+_WRITER_LOCK = threading.Lock()
+_WRITER: threading.Thread | None = None
+_WRITER_IDLE = threading.Condition(_WRITER_LOCK)
+
+
+def write_behind_enabled() -> bool:
+    return os.environ.get("SELECTOR_WRITE_BEHIND", "1").strip().lower() not in ("0", "off", "false", "no")
+
+
+#: seconds the writer leaves the process alone after a write is asked for: the answer is
+#: shown (the page's rerun, the CLI's table) before the file is written, instead of both
+#: sharing the interpreter at once; a process that ends, or :func:`wait_for_writes`, cuts it short
+WRITE_DELAY_S = 0.5
+_HURRY = threading.Event()
+
+
+def _writer_loop() -> None:
+    global _WRITER
+    _HURRY.wait(WRITE_DELAY_S)
+    while True:
+        with _WRITER_LOCK:
+            if not _PENDING:
+                _WRITER = None
+                _WRITER_IDLE.notify_all()
+                return
+            job = _PENDING.popleft()
+        try:
+            job()
+        except Exception:          # a cache write never fails the caller; the next reader rebuilds
+            pass
+
+
+def _submit(job) -> None:
+    """Run ``job`` (a cache write) on the writer thread, after the writes asked for before
+    it; in the caller's thread when write-behind is off."""
+    global _WRITER
+    if not write_behind_enabled():
+        job()
+        return
+    with _WRITER_LOCK:
+        _PENDING.append(job)
+        if _WRITER is None:
+            _WRITER = threading.Thread(target=_writer_loop, name="selector-cache-writer", daemon=False)
+            _WRITER.start()
+
+
+def wait_for_writes(timeout: float | None = None) -> bool:
+    """Wait until every cache write asked for so far is on disk (or given up on).
+    Returns False if ``timeout`` seconds passed first."""
+    _HURRY.set()
+    try:
+        with _WRITER_LOCK:
+            return _WRITER_IDLE.wait_for(lambda: _WRITER is None and not _PENDING, timeout)
+    finally:
+        _HURRY.clear()
+
+
+def _after_fork_in_child() -> None:
+    """A forked worker has no writer thread: its own writes start a new one."""
+    global _WRITER, _WRITER_LOCK, _WRITER_IDLE, _HURRY
+    _HURRY = threading.Event()
+    _WRITER_LOCK = threading.Lock()
+    _WRITER_IDLE = threading.Condition(_WRITER_LOCK)
+    _WRITER = None
+    _PENDING.clear()
+
+
+if hasattr(os, "register_at_fork"):
+    os.register_at_fork(after_in_child=_after_fork_in_child)
+
+
+def _hurry() -> None:
+    _HURRY.set()
+
+
+# when the main thread ends, the writer starts at once (called before the interpreter joins
+# its threads; the hook concurrent.futures uses, Python >= 3.9)
+getattr(threading, "_register_atexit", lambda f: None)(_hurry)
+
+
+def _private(arrays: dict) -> dict:
+    """``arrays`` safe to write later: read-only arrays as they are, writable ones copied."""
+    out = {}
+    for k, v in arrays.items():
+        a = np.asarray(v)
+        out[k] = a if not a.flags.writeable and a.base is None else a.copy()
+    return out
 
 
 def disk_table(func):
@@ -237,8 +340,9 @@ def _cached_build(func, build, args, kwargs):
     value = build(*args, **kwargs)
     arrays = _as_dict(value)
     was_tuple = isinstance(value, tuple)
-    _save(path, key, arrays, was_tuple)
-    return _from_dict(arrays, was_tuple)
+    out = _from_dict(arrays, was_tuple)          # read-only from here on: safe to write behind
+    _submit(functools.partial(_save, path, key, arrays, was_tuple))
+    return out
 
 
 # --------------------------------------------------------------------------- tables of states
@@ -445,6 +549,20 @@ def _prune(directory: Path, pattern: str, keep: int) -> None:
         pass
 
 
+def _save_and_prune(path: Path, key: str, flat: dict, pattern: str, touch: bool) -> bool:
+    """Write one file of named arrays, mark it the newest (``touch``) and keep the newest
+    :data:`MAX_FRAME_FILES` of ``pattern``."""
+    if not _save(path, key, flat, True):
+        return False
+    if touch:
+        try:
+            os.utime(path)
+        except OSError:
+            pass
+    _prune(path.parent, pattern, MAX_FRAME_FILES)
+    return True
+
+
 def disk_frame(func):
     """Decorator for a pure builder of a pandas DataFrame that depends on its
     arguments, the package code and the data files only (the prepared states table
@@ -538,13 +656,8 @@ def _disk_named(func, to_arrays, from_arrays):
         value = wrapper.build(*args, **kwargs)
         arrays = to_arrays(value)
         if arrays is not None:
-            flat = {f"arr_{i}": v for i, v in enumerate(_flatten(arrays))}
-            if _save(path, key, flat, True):
-                try:
-                    os.utime(path)
-                except OSError:
-                    pass
-                _prune(path.parent, f"{stem}*.npz", MAX_FRAME_FILES)
+            flat = _private({f"arr_{i}": v for i, v in enumerate(_flatten(arrays))})
+            _submit(functools.partial(_save_and_prune, path, key, flat, f"{stem}*.npz", True))
         return value
 
     wrapper.build = func
@@ -588,14 +701,14 @@ def load_arrays(func, args: tuple) -> dict | None:
 def save_arrays(func, args: tuple, arrays: dict) -> bool:
     """Write ``arrays`` (numeric or text ndarrays) for ``func`` and ``args`` atomically, replacing
     an earlier file of the same key (a store that grows: the partial sensitivities of
-    :class:`selector.states.scatter.Sensitivities`); at most :data:`MAX_FRAME_FILES` kept."""
+    :class:`selector.states.scatter.Sensitivities`); at most :data:`MAX_FRAME_FILES` kept.
+    The write goes behind the answer (:func:`wait_for_writes`), on private copies of the
+    writable arrays; returns True when it was asked for, False with the disk cache off."""
     if not disk_enabled():
         return False
     key = frame_key(func, args, {})
     stem = f"{func.__module__}.{func.__qualname__}-"
     path = cache_dir() / f"{stem}{key[:32]}.npz"
-    flat = {f"arr_{i}": v for i, v in enumerate(_flatten(_checked_arrays(arrays)))}
-    ok = _save(path, key, flat, True)
-    if ok:
-        _prune(path.parent, f"{stem}*.npz", MAX_FRAME_FILES)
-    return ok
+    flat = _private({f"arr_{i}": v for i, v in enumerate(_flatten(_checked_arrays(arrays)))})
+    _submit(functools.partial(_save_and_prune, path, key, flat, f"{stem}*.npz", False))
+    return True

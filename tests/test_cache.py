@@ -2,6 +2,11 @@
 for bit, and a corrupt, stale or foreign cache file is detected and rebuilt."""
 from __future__ import annotations
 
+import os
+import subprocess
+import sys
+import textwrap
+import threading
 import zipfile
 
 import numpy as np
@@ -47,6 +52,7 @@ def test_cache_dir_follows_the_environment(tmp_path, monkeypatch):
 def test_rate_table_from_disk_is_bit_identical_to_a_fresh_build(cache_dir):
     fresh = cooling._rate_table.build("cylinder", qr.POSITIONS)          # no cache of any kind
     first = cooling._rate_table("cylinder", qr.POSITIONS)                # builds and writes
+    assert cache.wait_for_writes(60)                                     # the write goes behind the answer
     path = cooling._rate_table.cache_path("cylinder", qr.POSITIONS)
     assert path.exists() and path.parent == cache_dir
     cooling._rate_table.cache_clear()
@@ -61,6 +67,7 @@ def test_cooling_rates_through_the_cache_equal_the_uncached_chain(cache_dir, mon
     h = np.array([300.0, 1500.0, 6000.0])
     d = np.array([12.0, 40.0, 95.0])
     with_disk = cooling.cooling_rate_at_c_s(h, diameter_mm=d)
+    assert cache.wait_for_writes(60)
     cooling._rate_table.cache_clear()
     with_disk_again = cooling.cooling_rate_at_c_s(h, diameter_mm=d)      # second process: from the file
     monkeypatch.setenv("SELECTOR_DISK_CACHE", "0")
@@ -72,6 +79,7 @@ def test_cooling_rates_through_the_cache_equal_the_uncached_chain(cache_dir, mon
 @pytest.mark.parametrize("damage", ["truncate", "flip", "garbage", "foreign_key"])
 def test_corrupt_cache_file_is_detected_and_rebuilt(cache_dir, monkeypatch, damage):
     good = cooling._rate_table("cylinder", (0.0,)).copy()
+    assert cache.wait_for_writes(60)
     path = cooling._rate_table.cache_path("cylinder", (0.0,))
     raw = path.read_bytes()
     if damage == "truncate":
@@ -90,6 +98,7 @@ def test_corrupt_cache_file_is_detected_and_rebuilt(cache_dir, monkeypatch, dama
         # a whole, self-consistent file written for other arguments
         other = cooling._rate_table.cache_path("cylinder", (0.5,))
         cooling._rate_table("cylinder", (0.5,))
+        assert cache.wait_for_writes(60)
         path.write_bytes(other.read_bytes())
     if damage != "garbage":
         assert zipfile.is_zipfile(path) or damage == "truncate"
@@ -98,6 +107,7 @@ def test_corrupt_cache_file_is_detected_and_rebuilt(cache_dir, monkeypatch, dama
     again = cooling._rate_table("cylinder", (0.0,))
     assert calls == [("cylinder", (0.0,))]                    # rebuilt, not read
     assert again.tobytes() == good.tobytes()
+    assert cache.wait_for_writes(60)
     # and the file is whole again: the next process reads it without building
     calls.clear()
     cooling._rate_table.cache_clear()
@@ -127,6 +137,7 @@ def test_aging_constant_from_the_cache_equals_the_solved_value(cache_dir):
     solved = aging._shape_peak_table.build()
     aging._shape_peak_table.cache_clear()
     aging._shape_peak_table()
+    assert cache.wait_for_writes(60)
     aging._shape_peak_table.cache_clear()
     loaded = aging._shape_peak_table()
     assert loaded.tobytes() == solved.tobytes()
@@ -137,6 +148,7 @@ def test_prepared_table_from_disk_equals_a_fresh_computation(cache_dir):
     args = (47.0, None, 120.0, (("4140", 2.5),))
     fresh = engine._prepare_table.build(*args)
     engine._prepare_table(*args)                                # builds and writes
+    assert cache.wait_for_writes(60)
     files = list(cache_dir.glob("selector.selection.engine._prepare_table-*.npz"))
     assert len(files) == 1
     loaded = engine._prepare_table(*args)                       # read from disk
@@ -151,6 +163,7 @@ def test_prepared_table_from_disk_equals_a_fresh_computation(cache_dir):
 def test_corrupt_prepared_table_is_rebuilt(cache_dir, monkeypatch):
     args = (52.0, None, 100.0, ())
     first = engine._prepare_table(*args)
+    assert cache.wait_for_writes(60)
     (path,) = cache_dir.glob("selector.selection.engine._prepare_table-*.npz")
     with np.load(path) as z:
         data = {k: z[k] for k in z.files}
@@ -172,6 +185,7 @@ def test_corrupt_prepared_table_is_rebuilt(cache_dir, monkeypatch):
     again = engine._prepare_table(*args)
     assert calls == [args]                                      # checksum failed: rebuilt, not read
     pd.testing.assert_frame_equal(again, first, check_exact=True)
+    assert cache.wait_for_writes(60)
     calls.clear()
     pd.testing.assert_frame_equal(engine._prepare_table(*args), first, check_exact=True)
     assert calls == []                                          # the rewritten file is whole
@@ -245,3 +259,97 @@ def test_code_and_data_hash_leaves_the_views_out(monkeypatch):
     for layer in ("models", "routes", "states", "rules", "selection", "catalogue"):
         assert any(layer in ps for ps in parts), layer
     assert any(p.suffix == ".csv" for p in read)
+
+
+# --------------------------------------------------------------------------- writes behind the answer
+@cache.disk_table
+def _small_table(n):
+    """A tiny constant table for the write-behind tests."""
+    return np.arange(float(n))
+
+
+def _gated_save(monkeypatch):
+    """Replace the file writer by one that waits for ``gate`` and records what it writes."""
+    gate, started, written = threading.Event(), threading.Event(), []
+    real = cache._save
+
+    def save(path, key, arrays, was_tuple):
+        started.set()
+        assert gate.wait(60)
+        written.append({k: np.array(v, copy=True) for k, v in arrays.items()})
+        return real(path, key, arrays, was_tuple)
+
+    monkeypatch.setattr(cache, "_save", save)
+    return gate, started, written
+
+
+def test_cache_file_is_written_behind_the_answer(cache_dir, monkeypatch):
+    """The value comes back while its file is still being written; the file is whole once
+    the writer is done, and a later process reads it without building."""
+    monkeypatch.delenv("SELECTOR_WRITE_BEHIND", raising=False)
+    gate, started, _ = _gated_save(monkeypatch)
+    _small_table.cache_clear()
+    value = _small_table(5)                                  # returns: the write waits for the gate
+    assert value.tolist() == [0.0, 1.0, 2.0, 3.0, 4.0]
+    assert started.wait(60)
+    path = _small_table.cache_path(5)
+    assert not path.exists()
+    assert not cache.wait_for_writes(0.05)                   # still pending
+    gate.set()
+    assert cache.wait_for_writes(60) and path.exists()
+    _small_table.cache_clear()
+    monkeypatch.setattr(_small_table, "build", lambda n: pytest.fail("read from the file, not built"))
+    assert _small_table(5).tobytes() == value.tobytes()
+    _small_table.cache_clear()
+
+
+def test_writes_behind_keep_their_order_and_what_was_asked(cache_dir, monkeypatch):
+    """Two writes of one store: the file ends with the later one; a caller that changes its
+    array after asking does not change what is written (a private copy)."""
+    monkeypatch.delenv("SELECTOR_WRITE_BEHIND", raising=False)
+    gate, started, written = _gated_save(monkeypatch)
+    first = {"x": np.arange(3.0)}
+    assert cache.save_arrays(_small_table, (7,), first)
+    first["x"][:] = -1.0                                     # the caller reuses its array at once
+    assert cache.save_arrays(_small_table, (7,), {"x": np.arange(4.0)})
+    assert started.wait(60)
+    gate.set()
+    assert cache.wait_for_writes(60)
+    assert len(written) == 2
+    assert written[0]["arr_1"].tolist() == [0.0, 1.0, 2.0]     # arr_0: the names, arr_1: "x"
+    assert cache.load_arrays(_small_table, (7,))["x"].tolist() == [0.0, 1.0, 2.0, 3.0]
+
+
+def test_write_behind_off_writes_in_the_callers_thread(cache_dir, monkeypatch):
+    monkeypatch.setenv("SELECTOR_WRITE_BEHIND", "0")
+    _small_table.cache_clear()
+    _small_table(6)
+    assert _small_table.cache_path(6).exists()               # no wait: written before the return
+    _small_table.cache_clear()
+
+
+def test_process_exit_waits_for_a_pending_write(tmp_path):
+    """A process that ends right after its answer still leaves a whole file (the writer is
+    not a daemon thread): here the write is held back for 1 s after the last statement."""
+    code = textwrap.dedent("""
+        import time
+        import numpy as np
+        from selector import cache
+        real = cache._save
+        def slow(*a, **k):
+            time.sleep(1.0)
+            return real(*a, **k)
+        cache._save = slow
+        @cache.disk_table
+        def table(n):
+            return np.arange(float(n))
+        print(table(4).tolist())
+    """)
+    env = {**os.environ, "SELECTOR_CACHE_DIR": str(tmp_path), "SELECTOR_DISK_CACHE": "1"}
+    env.pop("SELECTOR_WRITE_BEHIND", None)
+    r = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, env=env, timeout=120)
+    assert r.returncode == 0, r.stderr
+    assert r.stdout.strip() == "[0.0, 1.0, 2.0, 3.0]"
+    (path,) = tmp_path.glob("__main__.table-*.npz")
+    with np.load(path) as z:
+        assert z["arr_0"].tolist() == [0.0, 1.0, 2.0, 3.0]

@@ -400,6 +400,8 @@ def test_the_warm_start_builds_a_new_section_in_the_process_and_writes_nothing(t
     before = pg.library_calls()
     assert warm.build_process_tables() > 0
     assert pg.library_calls() > before
+    from selector import cache
+    assert cache.wait_for_writes(60)             # nothing pending that could still write a file
     assert os.environ["SELECTOR_DISK_CACHE"] == "1" and not any(tmp_path.iterdir())
     again = pg.library_calls()
     assert len(pg.cached_rank(*key)) > 0 and pg.library_calls() == again      # the page's cache holds it

@@ -410,6 +410,7 @@ def test_sensitivities_grown_by_a_later_process_from_the_disk_file_equal_a_fresh
     first = _sensitivities(prepared)
     some = np.flatnonzero(np.asarray(meets(prepared, {"min_yield_mpa": 850}), bool)[:m])
     first.ensure(some)
+    assert cache.wait_for_writes(60)
     files = list(tmp_path.glob("*_disk_sensitivities*.npz"))
     assert len(files) == 1
     later = _sensitivities(prepared)                      # reads the file
@@ -425,6 +426,7 @@ def test_sensitivities_grown_by_a_later_process_from_the_disk_file_equal_a_fresh
     assert calls and sum(calls) < sum(len(pl["idx"]) for _, pl, _ in later.plans)
     monkeypatch.setattr(scatter, "Batch", real)
     _assert_rows_of_effects(later, prepared, np.union1d(some, more))
+    assert cache.wait_for_writes(60)                      # the grown store is on disk before it is damaged
     files[0].write_bytes(files[0].read_bytes()[:-200] + b"x" * 200)   # corrupt
     assert cache.load_arrays(scatter._disk_sensitivities, later.section) is None
     again = _sensitivities(prepared)
