@@ -563,6 +563,28 @@ def _save_and_prune(path: Path, key: str, flat: dict, pattern: str, touch: bool)
     return True
 
 
+def _frame_snapshot(value):
+    """A frame that no later change of ``value`` can reach, to be converted to arrays on
+    the writer thread: with pandas >= 3 (copy-on-write always on) a shallow copy, whose
+    columns an in-place write of ``value`` copies before it writes; None for anything else
+    (converted in the caller's thread, then written behind)."""
+    try:
+        import pandas as pd
+    except ImportError:                      # pragma: no cover - pandas is a dependency
+        return None
+    if isinstance(value, pd.DataFrame) and int(pd.__version__.split(".")[0]) >= 3:
+        return value.copy(deep=False)
+    return None
+
+
+def _convert_save_and_prune(to_arrays, snapshot, path: Path, key: str, pattern: str) -> bool:
+    arrays = to_arrays(snapshot)
+    if arrays is None:
+        return False
+    flat = {f"arr_{i}": v for i, v in enumerate(_flatten(arrays))}
+    return _save_and_prune(path, key, flat, pattern, True)
+
+
 def disk_frame(func):
     """Decorator for a pure builder of a pandas DataFrame that depends on its
     arguments, the package code and the data files only (the prepared states table
@@ -654,6 +676,10 @@ def _disk_named(func, to_arrays, from_arrays):
             except (KeyError, ValueError, TypeError, IndexError):
                 pass
         value = wrapper.build(*args, **kwargs)
+        snapshot = _frame_snapshot(value) if write_behind_enabled() else None
+        if snapshot is not None:           # converted on the writer thread too
+            _submit(functools.partial(_convert_save_and_prune, to_arrays, snapshot, path, key, f"{stem}*.npz"))
+            return value
         arrays = to_arrays(value)
         if arrays is not None:
             flat = _private({f"arr_{i}": v for i, v in enumerate(_flatten(arrays))})

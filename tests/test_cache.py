@@ -353,3 +353,24 @@ def test_process_exit_waits_for_a_pending_write(tmp_path):
     (path,) = tmp_path.glob("__main__.table-*.npz")
     with np.load(path) as z:
         assert z["arr_0"].tolist() == [0.0, 1.0, 2.0, 3.0]
+
+
+@cache.disk_frame
+def _small_frame(n):
+    """A tiny states-like table for the write-behind test of frames."""
+    return pd.DataFrame({"a": np.arange(float(n)), "t": ["x", "y"] * (n // 2)})
+
+
+def test_frame_changed_after_the_answer_is_written_as_returned(cache_dir, monkeypatch):
+    """The frame is turned into arrays on the writer thread (pandas >= 3) or before the return:
+    either way a caller that changes its frame at once (a value, a new column) does not change
+    the file, which holds the frame as built."""
+    monkeypatch.delenv("SELECTOR_WRITE_BEHIND", raising=False)
+    gate, started, _ = _gated_save(monkeypatch)
+    df = _small_frame(4)
+    df.loc[0, "a"] = 99.0
+    df["b"] = 1.0
+    gate.set()
+    assert cache.wait_for_writes(60)
+    monkeypatch.setattr(_small_frame, "build", lambda n: pytest.fail("read from the file, not built"))
+    pd.testing.assert_frame_equal(_small_frame(4), _small_frame.__wrapped__(4), check_exact=True)
