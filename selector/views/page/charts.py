@@ -56,14 +56,24 @@ def hull_band(x: np.ndarray, y: np.ndarray) -> pd.DataFrame:
     lower and upper chains of the hull, both ordered by x, so the band is exact for
     the convex region.  A purely geometric display helper.
     """
+    edges = hull_edges(x, y)
+    if edges is None:
+        return pd.DataFrame(columns=["x", "lo", "hi"])
+    return pd.DataFrame(edges)
+
+
+def hull_edges(x: np.ndarray, y: np.ndarray) -> dict | None:
+    """:func:`hull_band` as a dict of arrays ``x, lo, hi`` (None for no finite point): the
+    map builds its bands from these without a frame per candidate."""
     pts = np.column_stack([np.asarray(x, float), np.asarray(y, float)])
     pts = pts[np.isfinite(pts).all(axis=1)]
     if len(pts) == 0:
-        return pd.DataFrame(columns=["x", "lo", "hi"])
+        return None
     pts = np.unique(pts, axis=0)          # sorted by x then y
     if len(pts) == 1 or np.ptp(pts[:, 0]) == 0:
         xs = float(pts[0, 0])
-        return pd.DataFrame({"x": [xs, xs], "lo": [pts[:, 1].min()] * 2, "hi": [pts[:, 1].max()] * 2})
+        return {"x": np.array([xs, xs]), "lo": np.array([pts[:, 1].min()] * 2),
+                "hi": np.array([pts[:, 1].max()] * 2)}
 
     def turn(o, a, b):   # z of the cross product (a - o) x (b - o)
         return (a[0] - o[0]) * (b[1] - o[1]) - (a[1] - o[1]) * (b[0] - o[0])
@@ -81,7 +91,7 @@ def hull_band(x: np.ndarray, y: np.ndarray) -> pd.DataFrame:
     xs = np.unique(np.concatenate([lower[:, 0], upper[:, 0]]))
     lo = np.interp(xs, lower[:, 0], lower[:, 1])
     hi = np.interp(xs, upper[:, 0], upper[:, 1])
-    return pd.DataFrame({"x": xs, "lo": np.minimum(lo, hi), "hi": np.maximum(lo, hi)})
+    return {"x": xs, "lo": np.minimum(lo, hi), "hi": np.maximum(lo, hi)}
 
 
 #: the largest distance, as a share of the drawn spread, by which a thinned line of the map
@@ -175,8 +185,8 @@ def chart_frames(states: pd.DataFrame, cand: pd.DataFrame, y: str, system: str,
                   ].to_dict("records"):
         pos = rows_of.get(c["variant"], none)
         focus = c["id"] == picked
-        band = hull_band(ex_col[pos], ey_col[pos])
-        if len(band):
+        band = hull_edges(ex_col[pos], ey_col[pos])
+        if band is not None:
             band = thin_band(band, MAP_TOLERANCE * span_y)
             regions.append({**band, "label": c["label"], "id": c["id"], "family": fam_of[c["id"]], "focus": focus,
                             "n": len(band["x"])})
