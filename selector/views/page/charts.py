@@ -86,8 +86,9 @@ def hull_edges(x: np.ndarray, y: np.ndarray) -> dict | None:
             out.append(p)
         return np.array(out)
 
-    lower = chain(pts)
-    upper = chain(pts[::-1])[::-1]
+    plist = pts.tolist()                  # Python floats: the chain's arithmetic without numpy scalars
+    lower = chain(plist)
+    upper = chain(plist[::-1])[::-1]
     xs = np.unique(np.concatenate([lower[:, 0], upper[:, 0]]))
     lo = np.interp(xs, lower[:, 0], lower[:, 1])
     hi = np.interp(xs, upper[:, 0], upper[:, 1])
