@@ -22,8 +22,11 @@ apart (where the model, which estimates typical values, is expected to lie above
 absolute % error, 90th percentile of the absolute % error and median signed % error (bias) of
 tensile and yield strength and of HB; for HRC the same in HRC points.
 
-Usage: ``PYTHONPATH=. python scripts/qt_accuracy.py [--rows]`` (``--rows`` lists every
-independent row with its prediction).
+Usage: ``PYTHONPATH=. python scripts/qt_accuracy.py [--rows] [--also-independent-of DIR ...]``
+(``--rows`` lists every independent row with its prediction; ``--also-independent-of`` keeps only
+the rows that are independent of the fits listed in ``DIR`` too, a ``data/fits`` directory of
+another tree: a model variant that fits more rows measured against the shipped one on the rows
+that neither has seen, so that the comparison is not a change of the row set).
 """
 from __future__ import annotations
 
@@ -86,9 +89,11 @@ def joins(ref: dict, fit: pd.DataFrame) -> bool:
 
 
 def independent_rows(ref_path: Path = ROOT / "data" / "reference" / "qt_steels.csv",
-                     fits_dir: Path = ROOT / "data" / "fits") -> pd.DataFrame:
+                     fits_dir: Path = ROOT / "data" / "fits", also=()) -> pd.DataFrame:
+    """The rows of ``ref_path`` that join no row of the fits in ``fits_dir`` nor in any
+    directory of ``also``."""
     ref = _read(ref_path)
-    fit = fit_rows(fits_dir)
+    fit = pd.concat([fit_rows(fits_dir)] + [fit_rows(Path(d)) for d in also], ignore_index=True)
     mask = np.array([not joins(r, fit) for r in ref.to_dict("records")], bool)
     return ref[mask].reset_index(drop=True)
 
@@ -174,11 +179,17 @@ def report(pred: pd.DataFrame) -> list[str]:
 def main(argv=None) -> int:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--rows", action="store_true", help="list every independent row with its prediction")
+    ap.add_argument("--also-independent-of", metavar="DIR", nargs="+", default=(),
+                    help="keep only rows independent of the fits in DIR too (another tree's data/fits)")
     a = ap.parse_args(argv)
     ref = _read(ROOT / "data" / "reference" / "qt_steels.csv")
-    rows = independent_rows()
+    for d in a.also_independent_of:
+        if not glob.glob(str(Path(d) / "*_rows.csv")):
+            ap.error(f"--also-independent-of: {d!r} holds no *_rows.csv file (a data/fits directory is expected)")
+    rows = independent_rows(also=a.also_independent_of)
     fits = sorted(Path(p).name for p in glob.glob(str(ROOT / "data" / "fits" / "*_rows.csv")))
-    print(f"reference rows {len(ref)}, independent of {', '.join(fits) or 'no fit files'}: {len(rows)}")
+    extra = "".join(f" and of the fits in {d}" for d in a.also_independent_of)
+    print(f"reference rows {len(ref)}, independent of {', '.join(fits) or 'no fit files'}{extra}: {len(rows)}")
     pred = predict(rows)
     if a.rows:
         with pd.option_context("display.width", 220, "display.max_rows", 500):

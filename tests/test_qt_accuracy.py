@@ -62,3 +62,26 @@ def test_report_keeps_minimum_rows_apart_from_the_headline_set():
     assert "n=  2" in head and "median   7.5" in head and "bias  +2.5" in head
     mins = next(x for x in lines if "minimum rows" in x)
     assert "n=  1" in mins and "bias +11.1" in mins     # (1000 - 900) / 900 = +11.1 % (hand calculation)
+
+
+def test_rows_independent_of_another_trees_fits_too(tmp_path):
+    """``--also-independent-of``: a variant's fits (here a rows file that takes two of today's
+    independent rows) remove exactly the rows they join, so that two models are compared on
+    the rows neither has seen."""
+    base = qa.independent_rows()
+    taken = base[base["grade"].astype(str) == "4140"].head(2)
+    assert len(taken) == 2
+    fits = tmp_path / "fits"
+    fits.mkdir()
+    pd.DataFrame({"fit": "variant", "source_file": "data/reference/qt_steels.csv",
+                  "grade": taken["grade"].astype(str), "quench": taken["quench"],
+                  "section_mm": taken["section_mm"], "temp_c": taken["temper_temp_c"]}
+                 ).to_csv(fits / "variant_rows.csv", index=False)
+    both = qa.independent_rows(also=[fits])
+    gone = [r for r in base.to_dict("records") if qa.joins(r, qa.fit_rows(fits))]
+    assert len(gone) >= 2 and len(both) == len(base) - len(gone)
+    key = ["grade", "quench", "section_mm", "temper_temp_c", "source"]
+    def keys(d):
+        return d[key].apply(lambda r: "|".join(map(str, r)), axis=1)
+
+    assert not keys(both).isin(keys(taken)).any()
