@@ -130,3 +130,16 @@ def test_docstring_documents_every_parameter(fn):
     params = doc.split("Parameters", 1)[1].split("Returns", 1)[0]
     for name in inspect.signature(fn).parameters:
         assert f"{name} :" in params, f"{fn.__name__}: parameter {name} not documented"
+
+
+def test_brinell_ball_column_matches_the_value():
+    # the file's rule (data/hardness_conversions.csv header, docs/methods/conversions.md): every HB
+    # above 450 is read from E140's tungsten-carbide ball column (phase2plus.com reproduction of E140
+    # Table 1 at HRC 48: HBS 451, HBW 455, the file keeps 455), every HB up to 450 from a steel-ball
+    # column or the Rockwell B table
+    from selector.catalogue.loader import read_table
+    t = read_table(cv.FILE, cv._SCHEMA)
+    hb = t["hb"].astype(float)
+    ball = t["hb_ball"].astype(str)
+    assert (ball[hb > 450] == "carbide").all(), t.loc[(hb > 450) & (ball != "carbide"), ["hrc", "hb", "hb_ball"]]
+    assert (ball[hb <= 450] != "carbide").all(), t.loc[(hb <= 450) & (ball == "carbide"), ["hrc", "hb", "hb_ball"]]

@@ -186,8 +186,8 @@ def hrc_to_hv(hardness_hrc):
 def hv_to_hb(hardness_hv):
     """Brinell hardness (10 mm ball, 3000 kgf) from Vickers hardness (ASTM E140 Tables 1–2).
 
-    HB = linear interpolation between table rows.  Above about 500 HB (52 HRC) the
-    Brinell value assumes a tungsten-carbide ball; E140 brackets the values above
+    HB = linear interpolation between table rows.  Above 450 HB (HRC 48) the
+    Brinell value is E140's tungsten-carbide ball column; E140 brackets the values above
     HRC 58 (outside the recommended Brinell range).
 
     Parameters
