@@ -33,7 +33,8 @@ The result is bit-identical to a fresh build (``.npz`` stores float64 exactly;
 memory.  Returned arrays are read-only.
 
 Cache directory: ``$SELECTOR_CACHE_DIR`` if set, else ``$XDG_CACHE_HOME/selector``,
-else ``~/.cache/selector`` (the XDG base-directory convention).  Set
+else ``~/.cache/selector`` (the XDG base-directory convention).  Its table files are kept
+within :data:`MAX_CACHE_MB` (``$SELECTOR_CACHE_MAX_MB``), the oldest removed first.  Set
 ``SELECTOR_DISK_CACHE=0`` to build in every process without touching the disk.
 An unwritable directory only costs the rebuild; it is never an error.
 """
@@ -348,6 +349,29 @@ def _cached_build(func, build, args, kwargs):
 # --------------------------------------------------------------------------- tables of states
 #: most frame files kept in the cache directory (the oldest are removed beyond it)
 MAX_FRAME_FILES = 48
+#: most megabytes of the package's table files kept in the cache directory, the newest first
+#: (a prepared states table is about 25 MB, the sensitivities of a section about 6 MB: 48 of
+#: each would be 1.5 GB); ``$SELECTOR_CACHE_MAX_MB`` sets another budget
+MAX_CACHE_MB = 512.0
+
+
+def cache_budget_bytes() -> float:
+    """The byte budget of the cache directory: ``$SELECTOR_CACHE_MAX_MB`` (megabytes, >= 0)
+    if set, else :data:`MAX_CACHE_MB`.  A value that is not a number >= 0 is reported (a
+    warning naming the variable, its value and what is allowed) and the default applies."""
+    env = os.environ.get("SELECTOR_CACHE_MAX_MB", "").strip()
+    if not env:
+        return MAX_CACHE_MB * 1e6
+    try:
+        mb = float(env)
+    except ValueError:
+        mb = float("nan")
+    if not (mb >= 0.0) or mb == float("inf"):
+        import warnings
+        warnings.warn(f"SELECTOR_CACHE_MAX_MB={env!r} is not allowed: a number of megabytes >= 0 is; "
+                      f"the default {MAX_CACHE_MB:g} MB applies", RuntimeWarning, stacklevel=2)
+        mb = MAX_CACHE_MB
+    return mb * 1e6
 
 
 @functools.cache
@@ -549,6 +573,25 @@ def _prune(directory: Path, pattern: str, keep: int) -> None:
         pass
 
 
+def _prune_bytes(directory: Path, keep: Path, budget: float) -> None:
+    """Remove the oldest of the package's table files (``selector.*.npz``) of ``directory``
+    until the rest fit in ``budget`` bytes; ``keep`` (the file just written) always stays."""
+    try:
+        files = []
+        for p in directory.glob("selector.*.npz"):
+            st = p.stat()
+            files.append((st.st_mtime, st.st_size, p))
+        files.sort(key=lambda f: f[0], reverse=True)
+        total = 0
+        for _, size, p in files:
+            if p == keep or total + size <= budget:
+                total += size
+            else:
+                p.unlink()
+    except OSError:
+        pass
+
+
 def _save_and_prune(path: Path, key: str, flat: dict, pattern: str, touch: bool) -> bool:
     """Write one file of named arrays, mark it the newest (``touch``) and keep the newest
     :data:`MAX_FRAME_FILES` of ``pattern``."""
@@ -560,6 +603,7 @@ def _save_and_prune(path: Path, key: str, flat: dict, pattern: str, touch: bool)
         except OSError:
             pass
     _prune(path.parent, pattern, MAX_FRAME_FILES)
+    _prune_bytes(path.parent, path, cache_budget_bytes())
     return True
 
 

@@ -6,6 +6,7 @@ import os
 import subprocess
 import sys
 import textwrap
+import time
 import threading
 import zipfile
 
@@ -374,3 +375,51 @@ def test_frame_changed_after_the_answer_is_written_as_returned(cache_dir, monkey
     assert cache.wait_for_writes(60)
     monkeypatch.setattr(_small_frame, "build", lambda n: pytest.fail("read from the file, not built"))
     pd.testing.assert_frame_equal(_small_frame(4), _small_frame.__wrapped__(4), check_exact=True)
+
+
+def _fake_table_file(directory, name, megabytes, age_s):
+    """A file named like the package's table files, of ``megabytes``, last written ``age_s`` ago."""
+    p = directory / f"selector.selection.engine._prepare_table-{name}.npz"
+    p.write_bytes(b"\0" * int(megabytes * 1e6))
+    t = time.time() - age_s
+    os.utime(p, (t, t))
+    return p
+
+
+def test_cache_directory_kept_within_its_byte_budget(tmp_path):
+    """Oldest files go first until the rest fit the budget; the file just written always stays;
+    files that are not the package's table files are not touched."""
+    old = _fake_table_file(tmp_path, "a" * 32, 3.0, 300)
+    mid = _fake_table_file(tmp_path, "b" * 32, 3.0, 200)
+    new = _fake_table_file(tmp_path, "c" * 32, 3.0, 100)
+    just = _fake_table_file(tmp_path, "d" * 32, 3.0, 0)
+    other = tmp_path / "notes.npz"
+    other.write_bytes(b"\0" * 4_000_000)
+    cache._prune_bytes(tmp_path, just, 7.0e6)                 # room for two files of 3 MB
+    assert just.exists() and new.exists()
+    assert not mid.exists() and not old.exists()
+    assert other.exists()
+    cache._prune_bytes(tmp_path, just, 0.0)                   # even a zero budget keeps the file just written
+    assert just.exists() and not new.exists()
+
+
+def test_cache_budget_from_the_environment(monkeypatch):
+    monkeypatch.delenv("SELECTOR_CACHE_MAX_MB", raising=False)
+    assert cache.cache_budget_bytes() == cache.MAX_CACHE_MB * 1e6
+    monkeypatch.setenv("SELECTOR_CACHE_MAX_MB", "64")
+    assert cache.cache_budget_bytes() == 64e6
+    for bad in ("-1", "lots", "inf", "nan"):
+        monkeypatch.setenv("SELECTOR_CACHE_MAX_MB", bad)
+        with pytest.warns(RuntimeWarning, match=r"SELECTOR_CACHE_MAX_MB=.*megabytes >= 0"):
+            assert cache.cache_budget_bytes() == cache.MAX_CACHE_MB * 1e6
+
+
+def test_a_written_table_keeps_the_directory_within_budget(cache_dir, monkeypatch):
+    """Through the real write path: with a budget of 1 MB, older table files are removed when a
+    new table file is written."""
+    monkeypatch.setenv("SELECTOR_CACHE_MAX_MB", "1")
+    stale = _fake_table_file(cache_dir, "e" * 32, 2.0, 100)
+    assert cache.save_arrays(_small_table, (11,), {"x": np.arange(5.0)})
+    assert cache.wait_for_writes(60)
+    assert not stale.exists()
+    assert cache.load_arrays(_small_table, (11,))["x"].tolist() == [0.0, 1.0, 2.0, 3.0, 4.0]
