@@ -573,18 +573,35 @@ def _prune(directory: Path, pattern: str, keep: int) -> None:
         pass
 
 
+#: name stems (``module.qualname-``) of the stores whose files :func:`_prune_bytes` may remove:
+#: the per-section tables of :func:`disk_frame`, :func:`disk_arrays` and :func:`save_arrays`.
+#: The constant tables of :func:`disk_table` (a few tens of kB, seconds to rebuild) are counted
+#: in the budget but never removed.
+_PRUNABLE_STEMS: set = set()
+
+
+def per_section_store(func):
+    """Mark ``func`` as naming a store of per-section files written by :func:`save_arrays`
+    (removable to keep the cache within its budget, like :func:`disk_frame` files); returns it."""
+    _PRUNABLE_STEMS.add(f"{func.__module__}.{func.__qualname__}-")
+    return func
+
+
 def _prune_bytes(directory: Path, keep: Path, budget: float) -> None:
-    """Remove the oldest of the package's table files (``selector.*.npz``) of ``directory``
-    until the rest fit in ``budget`` bytes; ``keep`` (the file just written) always stays."""
+    """Remove the oldest per-section table files (:data:`_PRUNABLE_STEMS`) of ``directory``
+    until the package's table files (``selector.*.npz``) fit in ``budget`` bytes; ``keep``
+    (the file just written) and the constant tables always stay."""
     try:
         files = []
         for p in directory.glob("selector.*.npz"):
             st = p.stat()
-            files.append((st.st_mtime, st.st_size, p))
-        files.sort(key=lambda f: f[0], reverse=True)
+            prunable = p != keep and any(p.name.startswith(stem) for stem in _PRUNABLE_STEMS)
+            files.append((not prunable, st.st_mtime, st.st_size, p))
+        # what stays in any case first, then the newest
+        files.sort(key=lambda f: (f[0], f[1]), reverse=True)
         total = 0
-        for _, size, p in files:
-            if p == keep or total + size <= budget:
+        for stays, _, size, p in files:
+            if stays or total + size <= budget:
                 total += size
             else:
                 p.unlink()
@@ -706,6 +723,8 @@ def _disk_named(func, to_arrays, from_arrays):
     :data:`MAX_FRAME_FILES`.  ``to_arrays(value)`` gives the named arrays to write (None:
     not written); ``from_arrays(arrays)`` rebuilds the value from a file."""
 
+    _PRUNABLE_STEMS.add(f"{func.__module__}.{func.__qualname__}-")
+
     @functools.wraps(func)
     def wrapper(*args, **kwargs):
         if not disk_enabled():
@@ -778,6 +797,7 @@ def save_arrays(func, args: tuple, arrays: dict) -> bool:
         return False
     key = frame_key(func, args, {})
     stem = f"{func.__module__}.{func.__qualname__}-"
+    _PRUNABLE_STEMS.add(stem)
     path = cache_dir() / f"{stem}{key[:32]}.npz"
     flat = _private({f"arr_{i}": v for i, v in enumerate(_flatten(_checked_arrays(arrays)))})
     _submit(functools.partial(_save_and_prune, path, key, flat, f"{stem}*.npz", False))

@@ -395,12 +395,16 @@ def test_cache_directory_kept_within_its_byte_budget(tmp_path):
     just = _fake_table_file(tmp_path, "d" * 32, 3.0, 0)
     other = tmp_path / "notes.npz"
     other.write_bytes(b"\0" * 4_000_000)
-    cache._prune_bytes(tmp_path, just, 7.0e6)                 # room for two files of 3 MB
-    assert just.exists() and new.exists()
+    # a constant table (the oldest file): counted, never removed (it costs seconds to rebuild)
+    constant = tmp_path / f"selector.models.cooling._rate_table-{'f' * 32}.npz"
+    constant.write_bytes(b"\0" * 1_000_000)
+    os.utime(constant, (time.time() - 1000, time.time() - 1000))
+    cache._prune_bytes(tmp_path, just, 8.0e6)                 # room for two files of 3 MB and the 1 MB table
+    assert just.exists() and new.exists() and constant.exists()
     assert not mid.exists() and not old.exists()
     assert other.exists()
     cache._prune_bytes(tmp_path, just, 0.0)                   # even a zero budget keeps the file just written
-    assert just.exists() and not new.exists()
+    assert just.exists() and not new.exists() and constant.exists()
 
 
 def test_cache_budget_from_the_environment(monkeypatch):

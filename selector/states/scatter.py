@@ -87,7 +87,7 @@ import numpy as np
 import pandas as pd
 from scipy import special
 
-from ..cache import disk_arrays, disk_enabled, disk_table, evict_oldest, load_arrays, save_arrays
+from ..cache import disk_arrays, disk_enabled, disk_table, evict_oldest, load_arrays, per_section_store, save_arrays
 from ..catalogue.grades import default_catalogue
 from ..models import conversions
 from ..routes import bands
@@ -392,6 +392,7 @@ def _row_plans(keys: np.ndarray) -> list:
     return out
 
 
+@per_section_store
 def _disk_sensitivities(diameter_mm, thickness_mm):
     """Names the disk file of :class:`Sensitivities` (its qualified name and the section key the
     file, :func:`selector.cache.save_arrays`); never called."""
