@@ -156,8 +156,13 @@ def checksum(arrays: dict) -> str:
     return h.hexdigest()
 
 
+def _stem(func) -> str:
+    """The start of the names of ``func``'s cache files: ``module.qualname-``."""
+    return f"{func.__module__}.{func.__qualname__}-"
+
+
 def table_path(func, key: str) -> Path:
-    return cache_dir() / f"{func.__module__}.{func.__qualname__}-{key[:32]}.npz"
+    return cache_dir() / f"{_stem(func)}{key[:32]}.npz"
 
 
 def _load(path: Path, key: str):
@@ -583,7 +588,7 @@ _PRUNABLE_STEMS: set = set()
 def per_section_store(func):
     """Mark ``func`` as naming a store of per-section files written by :func:`save_arrays`
     (removable to keep the cache within its budget, like :func:`disk_frame` files); returns it."""
-    _PRUNABLE_STEMS.add(f"{func.__module__}.{func.__qualname__}-")
+    _PRUNABLE_STEMS.add(_stem(func))
     return func
 
 
@@ -629,21 +634,24 @@ def _frame_snapshot(value):
     the writer thread: with pandas >= 3 (copy-on-write always on) a shallow copy, whose
     columns an in-place write of ``value`` copies before it writes; None for anything else
     (converted in the caller's thread, then written behind)."""
-    try:
-        import pandas as pd
-    except ImportError:                      # pragma: no cover - pandas is a dependency
-        return None
-    if isinstance(value, pd.DataFrame) and int(pd.__version__.split(".")[0]) >= 3:
+    pd = _pandas_with_copy_on_write()
+    if pd is not None and isinstance(value, pd.DataFrame):
         return value.copy(deep=False)
     return None
+
+
+@functools.cache
+def _pandas_with_copy_on_write():
+    """The pandas module when it is >= 3 (copy-on-write always on), else None."""
+    import pandas as pd
+    return pd if int(pd.__version__.split(".")[0]) >= 3 else None
 
 
 def _convert_save_and_prune(to_arrays, snapshot, path: Path, key: str, pattern: str) -> bool:
     arrays = to_arrays(snapshot)
     if arrays is None:
         return False
-    flat = {f"arr_{i}": v for i, v in enumerate(_flatten(arrays))}
-    return _save_and_prune(path, key, flat, pattern, True)
+    return _save_and_prune(path, key, _numbered(arrays), pattern, True)
 
 
 def disk_frame(func):
@@ -656,6 +664,11 @@ def disk_frame(func):
     ``wrapper.build`` builds from scratch; a frame whose columns this layout cannot
     hold exactly is returned but not written."""
     return _disk_named(func, frame_to_arrays, arrays_to_frame)
+
+
+def _numbered(arrays: dict) -> dict:
+    """Named arrays in the ``arr_i`` layout of the cache files (:func:`_flatten`, numbered)."""
+    return {f"arr_{i}": v for i, v in enumerate(_flatten(arrays))}
 
 
 def _flatten(arrays: dict) -> list:
@@ -723,15 +736,15 @@ def _disk_named(func, to_arrays, from_arrays):
     :data:`MAX_FRAME_FILES`.  ``to_arrays(value)`` gives the named arrays to write (None:
     not written); ``from_arrays(arrays)`` rebuilds the value from a file."""
 
-    _PRUNABLE_STEMS.add(f"{func.__module__}.{func.__qualname__}-")
+    per_section_store(func)
+    stem = _stem(func)
 
     @functools.wraps(func)
     def wrapper(*args, **kwargs):
         if not disk_enabled():
             return wrapper.build(*args, **kwargs)
         key = frame_key(func, args, kwargs)
-        stem = f"{func.__module__}.{func.__qualname__}-"
-        path = cache_dir() / f"{stem}{key[:32]}.npz"
+        path = table_path(func, key)
         loaded = _load(path, key)
         if loaded is not None:
             try:
@@ -745,7 +758,7 @@ def _disk_named(func, to_arrays, from_arrays):
             return value
         arrays = to_arrays(value)
         if arrays is not None:
-            flat = _private({f"arr_{i}": v for i, v in enumerate(_flatten(arrays))})
+            flat = _private(_numbered(arrays))
             _submit(functools.partial(_save_and_prune, path, key, flat, f"{stem}*.npz", True))
         return value
 
@@ -778,7 +791,7 @@ def load_arrays(func, args: tuple) -> dict | None:
     if not disk_enabled():
         return None
     key = frame_key(func, args, {})
-    loaded = _load(cache_dir() / f"{func.__module__}.{func.__qualname__}-{key[:32]}.npz", key)
+    loaded = _load(table_path(func, key), key)
     if loaded is None:
         return None
     try:
@@ -796,9 +809,7 @@ def save_arrays(func, args: tuple, arrays: dict) -> bool:
     if not disk_enabled():
         return False
     key = frame_key(func, args, {})
-    stem = f"{func.__module__}.{func.__qualname__}-"
-    _PRUNABLE_STEMS.add(stem)
-    path = cache_dir() / f"{stem}{key[:32]}.npz"
-    flat = _private({f"arr_{i}": v for i, v in enumerate(_flatten(_checked_arrays(arrays)))})
-    _submit(functools.partial(_save_and_prune, path, key, flat, f"{stem}*.npz", False))
+    stem = _stem(per_section_store(func))
+    flat = _private(_numbered(_checked_arrays(arrays)))
+    _submit(functools.partial(_save_and_prune, table_path(func, key), key, flat, f"{stem}*.npz", False))
     return True
