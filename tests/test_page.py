@@ -568,6 +568,39 @@ def test_thinned_map_lines_hold_the_exact_ones_within_the_tolerance():
     assert len(f["regions"]) < exact / 2
 
 
+def test_map_geometry_remembered_per_input_equals_a_fresh_computation():
+    """The hull and line thinning of the map are remembered per input (a change of targets
+    redraws the same candidates): a second call returns what the first computed, read-only, a
+    caller's change of its own result does not reach the memo, and another input (one value
+    moved, another tolerance) is computed afresh."""
+    from selector.views.page import charts
+    rng = np.random.default_rng(5)
+    x, y = rng.uniform(0, 20, 150), rng.uniform(300, 1500, 150)
+    first = charts.hull_edges(x, y)
+    again = charts.hull_edges(x.copy(), y.copy())
+    fresh = charts._hull_edges(x, y)
+    for k in ("x", "lo", "hi"):
+        assert np.array_equal(again[k], fresh[k]) and not again[k].flags.writeable
+    with pytest.raises(ValueError):
+        again["lo"][0] = 0.0
+    y2 = y.copy()
+    y2[int(np.argmax(y))] += 400.0                         # the top vertex moves up: another hull
+    moved = charts.hull_edges(x, y2)
+    assert moved["hi"].max() == pytest.approx(y.max() + 400.0) and first["hi"].max() == pytest.approx(y.max())
+    s = np.linspace(0, 3, 120)
+    px, py = np.cos(s), np.sin(2 * s)
+    k1 = pg.keep_vertices(px, py, 0.01)
+    k1[:] = False                                          # the caller's copy, not the memo's
+    assert np.array_equal(pg.keep_vertices(px, py, 0.01), charts._keep_vertices(px, py, 0.01, False))
+    assert pg.keep_vertices(px, py, 0.2).sum() < pg.keep_vertices(px, py, 0.01).sum()
+    # the spreads the map thins by: never above the true spread (never coarser than the tolerance),
+    # within one step of 2^(1/4) below it, and one value for spreads close together
+    for v in np.exp(rng.uniform(-5, 8, 200)):
+        q = charts._step_down(float(v))
+        assert v / 2 ** 0.25 < q <= v * (1 + 1e-12)
+    assert charts._step_down(1000.0) == charts._step_down(1010.0) and charts._step_down(0.0) == 0.0
+
+
 def _segment_distance(x, y, x0, y0, x1, y1) -> float:
     """Distance from the point (x, y) to the segment (x0, y0)-(x1, y1)."""
     dx, dy = x1 - x0, y1 - y0

@@ -7,6 +7,8 @@ as a Vega-Lite spec (a dict); the other charts are Altair charts."""
 from __future__ import annotations
 
 import math
+import threading
+from collections import OrderedDict
 from typing import Mapping, Sequence
 
 import altair as alt
@@ -62,10 +64,58 @@ def hull_band(x: np.ndarray, y: np.ndarray) -> pd.DataFrame:
     return pd.DataFrame(edges)
 
 
+class _GeometryMemo:
+    """The last results of a pure geometry helper keyed by the bytes of its array arguments
+    and its other arguments (least recently used dropped beyond ``size``; one lock: the page's
+    sessions run in threads).  The map redraws the same candidates' hulls and lines at every
+    change of targets; a hit returns read-only arrays equal to the first computation's."""
+
+    def __init__(self, size: int = 4096):
+        self.size, self.items, self.lock = size, OrderedDict(), threading.Lock()
+
+    @staticmethod
+    def key(*args):
+        return tuple((a.dtype.str, a.shape, a.tobytes()) if isinstance(a, np.ndarray) else a for a in args)
+
+    def get(self, key):
+        with self.lock:
+            hit = self.items.get(key)
+            if hit is not None:
+                self.items.move_to_end(key)
+            return hit
+
+    def put(self, key, value):
+        if isinstance(value, np.ndarray):
+            value.flags.writeable = False
+        elif isinstance(value, dict):
+            for v in value.values():
+                v.flags.writeable = False
+        with self.lock:
+            self.items[key] = value
+            while len(self.items) > self.size:
+                self.items.popitem(last=False)
+        return value
+
+
+_HULLS = _GeometryMemo()
+_KEPT = _GeometryMemo()
+
+
 def hull_edges(x: np.ndarray, y: np.ndarray) -> dict | None:
     """:func:`hull_band` as a dict of arrays ``x, lo, hi`` (None for no finite point): the
-    map builds its bands from these without a frame per candidate."""
-    pts = np.column_stack([np.asarray(x, float), np.asarray(y, float)])
+    map builds its bands from these without a frame per candidate.  Remembered per input
+    (:class:`_GeometryMemo`): the arrays returned are read-only."""
+    x, y = np.asarray(x, float), np.asarray(y, float)
+    key = _HULLS.key(x, y)
+    hit = _HULLS.get(key)
+    if hit is not None:
+        return hit
+    edges = _hull_edges(x, y)
+    return None if edges is None else _HULLS.put(key, edges)
+
+
+def _hull_edges(x: np.ndarray, y: np.ndarray) -> dict | None:
+    pts = np.column_stack([x, y])
     pts = pts[np.isfinite(pts).all(axis=1)]
     if len(pts) == 0:
         return None
@@ -100,6 +150,16 @@ def hull_edges(x: np.ndarray, y: np.ndarray) -> dict | None:
 MAP_TOLERANCE = 0.001
 
 
+def _step_down(value: float) -> float:
+    """``value`` rounded down to the series 2^(k/4) (steps of 19 %; 0 and non-finite as is):
+    the spreads by which the map thins its lines, so that a change of targets that moves the
+    drawn spread a little thins with the same numbers (the thinning remembered per input is
+    found again) and never more coarsely than :data:`MAP_TOLERANCE` of the true spread."""
+    if not (value > 0 and math.isfinite(value)):
+        return value
+    return 2.0 ** (math.floor(4.0 * math.log2(value) + 1e-9) / 4.0)
+
+
 def keep_vertices(x, y, tol: float, vertical: bool = False) -> np.ndarray:
     """The vertices of the polyline ``(x, y)`` to keep so that the polyline through them
     departs from every dropped vertex by at most ``tol`` (a bool mask; both ends kept):
@@ -112,6 +172,14 @@ def keep_vertices(x, y, tol: float, vertical: bool = False) -> np.ndarray:
     [True, False, True, True]
     """
     x, y = np.asarray(x, float), np.asarray(y, float)
+    key = _KEPT.key(x, y, float(tol), bool(vertical))
+    hit = _KEPT.get(key)
+    if hit is None:
+        hit = _KEPT.put(key, _keep_vertices(x, y, tol, vertical))
+    return hit.copy()
+
+
+def _keep_vertices(x: np.ndarray, y: np.ndarray, tol: float, vertical: bool) -> np.ndarray:
     n = len(x)
     keep = np.zeros(n, bool)
     if n == 0:
@@ -182,13 +250,15 @@ def chart_frames(states: pd.DataFrame, cand: pd.DataFrame, y: str, system: str,
     # a path shorter than this share of the drawn spread carries no end labels (they would overlap)
     span_x = float(np.nanmax(ex_col) - np.nanmin(ex_col)) if len(ex_col) else 0.0
     span_y = float(np.nanmax(ey_col) - np.nanmin(ey_col)) if len(ey_col) else 0.0
+    # the spreads the lines are thinned by (never above the true ones: never coarser)
+    thin_x, thin_y = _step_down(span_x), _step_down(span_y)
     for c in cand[["variant", "id", "label"] + (["window_parameter"] if "window_parameter" in cand else [])
                   ].to_dict("records"):
         pos = rows_of.get(c["variant"], none)
         focus = c["id"] == picked
         band = hull_edges(ex_col[pos], ey_col[pos])
         if band is not None:
-            band = thin_band(band, MAP_TOLERANCE * span_y)
+            band = thin_band(band, MAP_TOLERANCE * thin_y)
             regions.append({**band, "label": c["label"], "id": c["id"], "family": fam_of[c["id"]], "focus": focus,
                             "n": len(band["x"])})
         # the nominal composition along the main parameter (NaN values last, as a sort of the frame)
@@ -214,7 +284,7 @@ def chart_frames(states: pd.DataFrame, cand: pd.DataFrame, y: str, system: str,
             text = np.array([_param_text(v, q, u) if (k and v == v) else "" for v, k in zip(shown, keep)], object)
             # the points of the line that show at the map's scale (within MAP_TOLERANCE of the spread),
             # and every labelled one
-            drawn = keep | keep_vertices(ex / (span_x or 1.0), ey / (span_y or 1.0), MAP_TOLERANCE)
+            drawn = keep | keep_vertices(ex / (thin_x or 1.0), ey / (thin_y or 1.0), MAP_TOLERANCE)
             paths.append({"x": ex[drawn], "y": ey[drawn], "order": np.arange(n)[drawn], "text": text[drawn],
                           "param": shown[drawn], "label": c["label"], "id": c["id"], "family": fam_of[c["id"]],
                           "focus": focus, "n": int(drawn.sum())})

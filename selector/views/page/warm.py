@@ -20,7 +20,7 @@ from selector.catalogue.grades import FAMILIES
 from selector.selection.targets import validate_targets
 from selector.views.units import SI, to_si
 
-from . import cache, text
+from . import cache, charts, text
 from .inputs import example_inputs, page_service, page_targets, rank_args_of, targets_key
 from .tables import display_table
 from .units import si_key
@@ -96,6 +96,10 @@ def warm_up() -> float:
     if len(cand):
         spec = cache.cached_map(prep, rank, targets_key(targets), min(15, len(cand)), "yield_mpa", SI,
                                 cand["variant"].iloc[0])
+        # the hull of every candidate's scatter (remembered per input by the map's geometry), so that
+        # a first change of targets, which draws other candidates of the same section, finds them
+        everyone = cache.cached_variant_states(*prep, tuple(sorted(set(cand["variant"]))))
+        charts.chart_frames(everyone, cand, "yield_mpa", SI)
         text.ranking_summary(cand)
         table = display_table(cand, SI, "HRC")
         text.to_csv(table)
