@@ -4,7 +4,10 @@ A row of ``data/reference/qt_steels.csv`` is *calibration* when it joins any row
 used (every ``data/fits/*_rows.csv``), on the keys of the fit convention: same grade;
 same quench or one of them blank; |section difference| <= 2 mm; |temper temperature
 difference| <= 6 C.  A blank section on either side is taken as joining (the
-conservative reading: an unknown section cannot prove the row independent).  Only the
+conservative reading: an unknown section cannot prove the row independent).  The join is the
+package's own (``selector.validation.calibration.match``, route ``quench_temper``), the one the
+validation report and the prediction bands use, so the three agree on which rows are
+calibration.  Only the
 other rows (independent) are measured here, through ``selector.evaluate`` with the
 row's grade, quench (blank: the grade's usual medium, first in
 data/route_windows.csv), section (blank: 25.4 mm round), tempering
@@ -45,10 +48,10 @@ sys.path.insert(0, str(ROOT))
 import selector  # noqa: E402
 from selector.errors import SelectorError, UnknownGradeError  # noqa: E402
 from selector.routes.families.base import RouteFamily  # noqa: E402
-from selector.validation import location, steels  # noqa: E402
+from selector.validation import calibration, location, steels  # noqa: E402
 
-SECTION_TOL_MM = 2.0
-TEMP_TOL_C = 6.0
+SECTION_TOL_MM = calibration.SECTION_TOL_MM      # the package's join (selector.validation.calibration)
+TEMP_TOL_C = calibration.TEMP_TOL_C
 DEFAULT_HOURS = 2.0
 DEFAULT_SECTION_MM = 25.4
 PROPS = (("uts_mpa", "%"), ("yield_mpa", "%"), ("hardness_hb", "%"), ("hardness_hrc", "HRC"))
@@ -72,20 +75,31 @@ def _blank(x) -> bool:
     return x is None or (isinstance(x, float) and math.isnan(x)) or str(x).strip() in ("", "nan")
 
 
-def joins(ref: dict, fit: pd.DataFrame) -> bool:
-    """True when the reference row joins a fit row (fit convention keys)."""
-    f = fit[fit["grade"].astype(str).str.strip() == str(ref["grade"]).strip()]
-    for r in f.to_dict("records"):
-        q1, q2 = ref.get("quench"), r.get("quench")
-        if not (_blank(q1) or _blank(q2) or str(q1).strip() == str(q2).strip()):
-            continue
-        s1, s2 = ref.get("section_mm"), r.get("section_mm")
-        if not (_blank(s1) or _blank(s2) or abs(float(s1) - float(s2)) <= SECTION_TOL_MM):
-            continue
-        t1, t2 = ref.get("temper_temp_c"), r.get("temp_c")
-        if _blank(t1) or _blank(t2) or abs(float(t1) - float(t2)) <= TEMP_TOL_C:
-            return True
-    return False
+def _fit_tuple(fit: pd.DataFrame) -> tuple:
+    """The rows of a fits frame as the package's :class:`~selector.validation.calibration.FitRow`."""
+    def f(v):
+        return math.nan if _blank(v) else float(v)
+
+    return tuple(calibration.FitRow(str(r.get("fit", "")), str(r.get("source_file", "") or ""),
+                                    str(r.get("grade", "")).strip(),
+                                    "" if _blank(r.get("quench")) else str(r["quench"]).strip().lower(),
+                                    f(r.get("section_mm")), f(r.get("temp_c")),
+                                    "" if _blank(r.get("condition")) else str(r["condition"]).strip())
+                 for r in fit.to_dict("records"))
+
+
+def joins(ref: dict, fit) -> bool:
+    """True when the reference row joins a fit row (fit convention keys), decided by the
+    package's own join (:func:`selector.validation.calibration.match`, route
+    ``quench_temper``), the one the validation report and the bands use.  ``fit``: a
+    frame of ``*_rows.csv`` rows or a tuple of ``FitRow``."""
+    rows = fit if isinstance(fit, tuple) else _fit_tuple(fit)
+    def f(v):
+        return math.nan if _blank(v) else float(v)
+
+    return calibration.match(rows, grade=str(ref["grade"]).strip(), route="quench_temper",
+                             quench="" if _blank(ref.get("quench")) else str(ref["quench"]),
+                             section_mm=f(ref.get("section_mm")), temp_c=f(ref.get("temper_temp_c"))) is not None
 
 
 def independent_rows(ref_path: Path = ROOT / "data" / "reference" / "qt_steels.csv",
@@ -93,7 +107,7 @@ def independent_rows(ref_path: Path = ROOT / "data" / "reference" / "qt_steels.c
     """The rows of ``ref_path`` that join no row of the fits in ``fits_dir`` nor in any
     directory of ``also``."""
     ref = _read(ref_path)
-    fit = pd.concat([fit_rows(fits_dir)] + [fit_rows(Path(d)) for d in also], ignore_index=True)
+    fit = _fit_tuple(pd.concat([fit_rows(fits_dir)] + [fit_rows(Path(d)) for d in also], ignore_index=True))
     mask = np.array([not joins(r, fit) for r in ref.to_dict("records")], bool)
     return ref[mask].reset_index(drop=True)
 
