@@ -280,6 +280,21 @@ def test_shipped_form_holds_the_element_shape_terms_at_zero():
     assert not rows["source_file"].str.contains("tempering_martensite_series").any()
 
 
+def test_shipped_surface_never_reverses_the_effect_of_carbon():
+    # Grange, Hribal & Porter (Metall. Trans. A 8A (1977) 1775): carbon raises the hardness of tempered
+    # martensite at every temper, its effect falling with the temper.  The shipped coefficients
+    # (docs/methods/tempering.md sections 2 and 5c) hold the slope a1 + b1*s >= 0 up to the top of the
+    # fitted P, with b1 <= 0; the free fit shipped before 4 December 2026 failed both checks below
+    # (a1 88.1, b1 -48.5: slope -42 HV/% at the top, 0.25 % C harder than 0.40 % C at 600-700 C)
+    k = dict(zip(tp.FEATURES, tp.coefficients()))
+    s_top = tp.fitted_range()["P_1000"][1] - 16.0
+    assert k["C*s"] <= 0.0 and k["C"] + k["C*s"] * s_top >= -1e-6
+    for temp_c in (500.0, 600.0, 650.0, 700.0):
+        lean, rich = (float(tp.tempered_martensite_hv({"C": c, "Cr": 0.9, "Mo": 0.2}, temp_c, 2.0))
+                      for c in (0.25, 0.40))
+        assert lean <= rich + 1e-9, temp_c
+
+
 def test_carbon_slope_option_keeps_carbon_raising_tempered_hardness():
     # docs/methods/tempering.md section 5c.  Grange, Hribal & Porter (Metall. Trans. A 8A (1977) 1775):
     # carbon raises the hardness of tempered martensite at every temper, its effect falling markedly with
