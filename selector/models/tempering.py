@@ -332,6 +332,9 @@ def tempered_martensite_hv(comp, temp_c, hours, coef=None, caps=None):
     (:func:`selector.models.martensite.martensite_hardness_hrc`, converted by ASTM E140)
     and the coefficients fitted offline by ``scripts/fit_tempering.py`` to the fully
     hardened rows of ``data/tempering_points.csv`` (``data/fits/tempering_coefficients.csv``).
+    The fit holds the carbon slope a1 + b1·(P/1000 − 16) at ≥ 0 up to the top of its data,
+    with b1 ≤ 0: carbon raises the hardness of tempered martensite at every temper, its
+    effect falling with the temper (Grange, Hribal & Porter 1977).
 
     Parameters
     ----------
