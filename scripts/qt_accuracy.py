@@ -50,8 +50,6 @@ from selector.errors import SelectorError, UnknownGradeError  # noqa: E402
 from selector.routes.families.base import RouteFamily  # noqa: E402
 from selector.validation import calibration, location, steels  # noqa: E402
 
-SECTION_TOL_MM = calibration.SECTION_TOL_MM      # the package's join (selector.validation.calibration)
-TEMP_TOL_C = calibration.TEMP_TOL_C
 DEFAULT_HOURS = 2.0
 DEFAULT_SECTION_MM = 25.4
 PROPS = (("uts_mpa", "%"), ("yield_mpa", "%"), ("hardness_hb", "%"), ("hardness_hrc", "HRC"))
@@ -75,15 +73,16 @@ def _blank(x) -> bool:
     return x is None or (isinstance(x, float) and math.isnan(x)) or str(x).strip() in ("", "nan")
 
 
+def _num(v) -> float:
+    return math.nan if _blank(v) else float(v)
+
+
 def _fit_tuple(fit: pd.DataFrame) -> tuple:
     """The rows of a fits frame as the package's :class:`~selector.validation.calibration.FitRow`."""
-    def f(v):
-        return math.nan if _blank(v) else float(v)
-
     return tuple(calibration.FitRow(str(r.get("fit", "")), str(r.get("source_file", "") or ""),
                                     str(r.get("grade", "")).strip(),
                                     "" if _blank(r.get("quench")) else str(r["quench"]).strip().lower(),
-                                    f(r.get("section_mm")), f(r.get("temp_c")),
+                                    _num(r.get("section_mm")), _num(r.get("temp_c")),
                                     "" if _blank(r.get("condition")) else str(r["condition"]).strip())
                  for r in fit.to_dict("records"))
 
@@ -94,12 +93,10 @@ def joins(ref: dict, fit) -> bool:
     ``quench_temper``), the one the validation report and the bands use.  ``fit``: a
     frame of ``*_rows.csv`` rows or a tuple of ``FitRow``."""
     rows = fit if isinstance(fit, tuple) else _fit_tuple(fit)
-    def f(v):
-        return math.nan if _blank(v) else float(v)
-
     return calibration.match(rows, grade=str(ref["grade"]).strip(), route="quench_temper",
                              quench="" if _blank(ref.get("quench")) else str(ref["quench"]),
-                             section_mm=f(ref.get("section_mm")), temp_c=f(ref.get("temper_temp_c"))) is not None
+                             section_mm=_num(ref.get("section_mm")),
+                             temp_c=_num(ref.get("temper_temp_c"))) is not None
 
 
 def independent_rows(ref_path: Path = ROOT / "data" / "reference" / "qt_steels.csv",

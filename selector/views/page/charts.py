@@ -114,6 +114,15 @@ def hull_edges(x: np.ndarray, y: np.ndarray) -> dict | None:
     return None if edges is None else _HULLS.put(key, edges)
 
 
+def remember_hulls(states: pd.DataFrame, y: str = "yield_mpa") -> None:
+    """Compute, and so remember (:func:`hull_edges`), the scatter hull of every variant of
+    ``states`` as :func:`chart_frames` asks for it (the variant's rows in table order): the
+    page's warm start, so that a first change of targets finds the candidates it draws."""
+    ex, ey = states["elongation_pct"].to_numpy(float), states[y].to_numpy(float)
+    for pos in states.groupby("variant", sort=False).indices.values():
+        hull_edges(ex[pos], ey[pos])
+
+
 def _hull_edges(x: np.ndarray, y: np.ndarray) -> dict | None:
     pts = np.column_stack([x, y])
     pts = pts[np.isfinite(pts).all(axis=1)]

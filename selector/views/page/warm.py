@@ -98,8 +98,7 @@ def warm_up() -> float:
                                 cand["variant"].iloc[0])
         # the hull of every candidate's scatter (remembered per input by the map's geometry), so that
         # a first change of targets, which draws other candidates of the same section, finds them
-        everyone = cache.cached_variant_states(*prep, tuple(sorted(set(cand["variant"]))))
-        charts.chart_frames(everyone, cand, "yield_mpa", SI)
+        charts.remember_hulls(cache.cached_variant_states(*prep, tuple(sorted(set(cand["variant"])))))
         text.ranking_summary(cand)
         table = display_table(cand, SI, "HRC")
         text.to_csv(table)
