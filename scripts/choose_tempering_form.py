@@ -13,7 +13,7 @@ and the chosen terms.  Nothing is written; ``fit_tempering.py --form NAME`` fits
 (``FORMS``).  Measured 2026-12-04 with ``--series``: every term 1.180 / 3.59 HRC, without Ni
 1.124, without Ni and V*a 1.094 (stop): ``FORMS["series_chosen"]`` (docs/methods/tempering.md 5f).
 
-Usage: ``python scripts/choose_tempering_form.py [--series] [--no-carbon-slope]``  (about 10 s a trial)
+Usage: ``python scripts/choose_tempering_form.py [--series] [--no-carbon-slope]``  (about 4 s a trial)
 """
 from __future__ import annotations
 
